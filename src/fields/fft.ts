@@ -1,0 +1,208 @@
+/**
+ * Multi-dimensional FFTs on flat interleaved arrays, built from fft.js 1-D
+ * radix-4 transforms. Plans and scratch buffers are created once per shape;
+ * transforms are in place and allocate nothing.
+ *
+ * Conventions: forward F_k = Σ_x f_x e^{−i k·x}; inverse includes 1/N.
+ * Complex data are interleaved (re, im) in a Float64Array of length 2N, in
+ * the grid's row-major order. Axes of size 1 are skipped.
+ */
+import FFT from "fft.js";
+import type { Triple } from "../grid/grid.js";
+
+/** One fft.js plan with its in/out pencil buffers. */
+class Plan1D {
+  readonly n: number;
+  readonly fft: FFT;
+  readonly input: Float64Array;
+  readonly output: Float64Array;
+  constructor(n: number) {
+    this.n = n;
+    this.fft = new FFT(n);
+    this.input = new Float64Array(2 * n);
+    this.output = new Float64Array(2 * n);
+  }
+}
+
+/**
+ * Transform every pencil of a complex 3D array along one axis.
+ * @param data interleaved complex data of shape `shape`
+ * @param axis 0, 1 or 2
+ */
+function transformAxis(data: Float64Array, shape: Triple, axis: number, plan: Plan1D, inverse: boolean): void {
+  const [n0, n1, n2] = shape;
+  const n = plan.n;
+  const inBuf = plan.input;
+  const outBuf = plan.output;
+  const fft = plan.fft;
+  const stride = axis === 2 ? 1 : axis === 1 ? n2 : n1 * n2;
+  // Iterate over all pencil starts: the cells whose index along `axis` is 0.
+  const outerCount = axis === 0 ? 1 : n0;
+  const outerStride = n1 * n2;
+  const midCount = axis === 1 ? 1 : n1;
+  const innerCount = axis === 2 ? 1 : n2;
+  for (let a = 0; a < outerCount; a++) {
+    for (let b = 0; b < midCount; b++) {
+      for (let c = 0; c < innerCount; c++) {
+        const start = a * outerStride + b * n2 + c;
+        let p = 2 * start;
+        const step = 2 * stride;
+        for (let j = 0; j < n; j++, p += step) {
+          inBuf[2 * j] = data[p] as number;
+          inBuf[2 * j + 1] = data[p + 1] as number;
+        }
+        if (inverse) fft.inverseTransform(outBuf, inBuf);
+        else fft.transform(outBuf, inBuf);
+        p = 2 * start;
+        for (let j = 0; j < n; j++, p += step) {
+          data[p] = outBuf[2 * j] as number;
+          data[p + 1] = outBuf[2 * j + 1] as number;
+        }
+      }
+    }
+  }
+}
+
+/** In-place complex FFT over a 3D shape (axes of size 1 skipped). */
+export class ComplexFft {
+  readonly shape: Triple;
+  private readonly plans: (Plan1D | undefined)[];
+
+  constructor(shape: Triple) {
+    this.shape = shape;
+    this.plans = shape.map((n) => (n > 1 ? new Plan1D(n) : undefined));
+  }
+
+  /** Forward transform in place. */
+  forward(data: Float64Array): void {
+    for (let axis = 2; axis >= 0; axis--) {
+      const plan = this.plans[axis];
+      if (plan) transformAxis(data, this.shape, axis, plan, false);
+    }
+  }
+
+  /** Inverse transform in place (normalised by 1/N). */
+  inverse(data: Float64Array): void {
+    for (let axis = 0; axis < 3; axis++) {
+      const plan = this.plans[axis];
+      if (plan) transformAxis(data, this.shape, axis, plan, true);
+    }
+  }
+}
+
+/**
+ * Real-to-complex FFT over a 3D shape whose last axis has at least 4 cells.
+ * The half spectrum has shape [n0, n1, n2/2 + 1]. The last axis uses the
+ * classic packing of a length-n real sequence into a length-n/2 complex one
+ * (even samples real, odd samples imaginary) and an O(n) twiddle pass.
+ */
+export class RealFft {
+  readonly shape: Triple;
+  /** Shape of the half spectrum. */
+  readonly halfShape: Triple;
+  private readonly rowPlan: Plan1D;
+  private readonly outerPlans: (Plan1D | undefined)[];
+  private readonly cosTw: Float64Array;
+  private readonly sinTw: Float64Array;
+
+  constructor(shape: Triple) {
+    const [n0, n1, n2] = shape;
+    if (n2 < 4) throw new RangeError(`real FFT needs at least 4 cells on the last axis, got ${n2}`);
+    this.shape = shape;
+    this.halfShape = [n0, n1, n2 / 2 + 1];
+    this.rowPlan = new Plan1D(n2 / 2);
+    this.outerPlans = [n0 > 1 ? new Plan1D(n0) : undefined, n1 > 1 ? new Plan1D(n1) : undefined];
+    const m = n2 / 2;
+    this.cosTw = new Float64Array(m + 1);
+    this.sinTw = new Float64Array(m + 1);
+    for (let k = 0; k <= m; k++) {
+      this.cosTw[k] = Math.cos((2 * Math.PI * k) / n2);
+      this.sinTw[k] = Math.sin((2 * Math.PI * k) / n2);
+    }
+  }
+
+  /** Length of the interleaved half-spectrum array. */
+  get halfLength(): number {
+    return 2 * this.halfShape[0] * this.halfShape[1] * this.halfShape[2];
+  }
+
+  /** Forward transform of real `input` into the half spectrum `out` (interleaved). */
+  forward(input: Float64Array, out: Float64Array): void {
+    const [n0, n1, n2] = this.shape;
+    const h2 = this.halfShape[2];
+    const m = n2 / 2;
+    const { input: z, output: Z, fft } = this.rowPlan;
+    const c = this.cosTw;
+    const s = this.sinTw;
+    for (let row = 0; row < n0 * n1; row++) {
+      const src = row * n2;
+      for (let j = 0; j < 2 * m; j++) z[j] = input[src + j] as number;
+      fft.transform(Z, z);
+      const dst = 2 * row * h2;
+      for (let k = 0; k <= m; k++) {
+        const kk = k === m ? 0 : k;
+        const mk = k === 0 ? 0 : m - k;
+        const zr = Z[2 * kk] as number;
+        const zi = Z[2 * kk + 1] as number;
+        const wr = Z[2 * mk] as number;
+        const wi = -(Z[2 * mk + 1] as number);
+        // E = (Z_k + conj Z_{m−k})/2, O = (Z_k − conj Z_{m−k})/(2i), X = E + e^{−2πik/n} O
+        const er = 0.5 * (zr + wr);
+        const ei = 0.5 * (zi + wi);
+        const or = 0.5 * (zi - wi);
+        const oi = -0.5 * (zr - wr);
+        const cr = c[k] as number;
+        const si = -(s[k] as number);
+        out[dst + 2 * k] = er + cr * or - si * oi;
+        out[dst + 2 * k + 1] = ei + cr * oi + si * or;
+      }
+    }
+    this.outer(out, false);
+  }
+
+  /** Inverse transform of the half spectrum `spec` into real `out`; `spec` is overwritten. */
+  inverse(spec: Float64Array, out: Float64Array): void {
+    const [n0, n1, n2] = this.shape;
+    const h2 = this.halfShape[2];
+    const m = n2 / 2;
+    this.outer(spec, true);
+    const { input: Z, output: z, fft } = this.rowPlan;
+    const c = this.cosTw;
+    const s = this.sinTw;
+    for (let row = 0; row < n0 * n1; row++) {
+      const src = 2 * row * h2;
+      for (let k = 0; k < m; k++) {
+        const xr = spec[src + 2 * k] as number;
+        const xi = spec[src + 2 * k + 1] as number;
+        const yr = spec[src + 2 * (m - k)] as number;
+        const yi = -(spec[src + 2 * (m - k) + 1] as number);
+        // E = (X_k + conj X_{m−k})/2, O = (X_k − conj X_{m−k}) e^{+2πik/n}/2, Z = E + iO
+        const er = 0.5 * (xr + yr);
+        const ei = 0.5 * (xi + yi);
+        const dr = 0.5 * (xr - yr);
+        const di = 0.5 * (xi - yi);
+        const cr = c[k] as number;
+        const si = s[k] as number;
+        const or = dr * cr - di * si;
+        const oi = dr * si + di * cr;
+        Z[2 * k] = er - oi;
+        Z[2 * k + 1] = ei + or;
+      }
+      fft.inverseTransform(z, Z);
+      const dst = row * n2;
+      for (let j = 0; j < 2 * m; j++) out[dst + j] = z[j] as number;
+    }
+  }
+
+  private outer(spec: Float64Array, inverse: boolean): void {
+    const plan0 = this.outerPlans[0];
+    const plan1 = this.outerPlans[1];
+    if (inverse) {
+      if (plan0) transformAxis(spec, this.halfShape, 0, plan0, true);
+      if (plan1) transformAxis(spec, this.halfShape, 1, plan1, true);
+    } else {
+      if (plan1) transformAxis(spec, this.halfShape, 1, plan1, false);
+      if (plan0) transformAxis(spec, this.halfShape, 0, plan0, false);
+    }
+  }
+}

@@ -1,0 +1,103 @@
+/**
+ * The run loop: advance a stepper from its current time to an end time with
+ * the time-step rules, shortening the last step to land exactly on the end,
+ * and stop with a clear reason when a guard rail trips. Before every step
+ * the field is copied aside; a step that produces a non-finite field or a
+ * mass drift above tolerance is undone, so the stepper always holds the last
+ * good state.
+ */
+import type { SplitStepper } from "../integrators/split-step.js";
+import { chooseTimestep, type StepLimiter, type TimestepRules } from "../integrators/timestep.js";
+
+/** What bounds a run. */
+export interface EvolveLimits {
+  /** End time [code time]. */
+  readonly endTime: number;
+  /** Largest allowed |M − M₀| / M₀. @default 1e-8 */
+  readonly massTolerance: number;
+  /** Step cap. */
+  readonly maxSteps: number;
+}
+
+/** Facts about the step just taken, given to callbacks. */
+export interface StepInfo {
+  /** Steps taken so far (1 after the first). */
+  readonly step: number;
+  readonly dt: number;
+  readonly limiter: StepLimiter;
+  /** Relative mass drift since the start. */
+  readonly massDrift: number;
+  /** A buffer of 2N doubles that callbacks may overwrite until the next step. */
+  readonly scratch: Float64Array;
+}
+
+/** How a run ended. */
+export interface EvolveResult {
+  readonly status: "completed" | "stopped";
+  /** Why the run stopped (absent when completed). */
+  readonly reason?: string;
+  readonly steps: number;
+}
+
+/** Callbacks of the run loop. */
+export interface EvolveHooks {
+  /** After each accepted step. */
+  readonly onStep?: (stepper: SplitStepper, info: StepInfo) => void;
+  /** Checked before each step; return a reason to stop early (e.g. an interrupt). */
+  readonly stopRequested?: () => string | undefined;
+  /** Formats a code time for messages (default: the bare number). */
+  readonly formatTime?: (t: number) => string;
+}
+
+/** Advance `stepper` to `limits.endTime`. */
+export function evolve(stepper: SplitStepper, rules: TimestepRules, limits: EvolveLimits, hooks: EvolveHooks = {}): EvolveResult {
+  const fmt = hooks.formatTime ?? ((t: number) => t.toPrecision(6));
+  const backup = new Float64Array(stepper.psi.length);
+  const mass0 = stepper.mass;
+  const tEnd = limits.endTime;
+  let steps = 0;
+  const tolerance = 1e-12 * Math.max(1, Math.abs(tEnd));
+  while (stepper.time < tEnd - tolerance) {
+    const requested = hooks.stopRequested?.();
+    if (requested) return { status: "stopped", reason: requested, steps };
+    if (steps >= limits.maxSteps) {
+      return { status: "stopped", reason: `reached the step limit (${limits.maxSteps}) before the end time`, steps };
+    }
+    let { dt, limiter } = chooseTimestep(stepper, rules);
+    if (!(dt > 0) || !Number.isFinite(dt)) {
+      return {
+        status: "stopped",
+        reason: `step ${steps + 1} at t = ${fmt(stepper.time)}: the time-step rules gave Δt = ${dt} (${limiter} limit); the potential is probably non-finite`,
+        steps,
+      };
+    }
+    if (stepper.time + dt >= tEnd - tolerance) {
+      dt = tEnd - stepper.time;
+      limiter = "end";
+    } else if (stepper.time + 1.5 * dt > tEnd) {
+      // split the remainder evenly rather than leave a sliver of a step
+      dt = 0.5 * (tEnd - stepper.time);
+    }
+    backup.set(stepper.psi);
+    const t0 = stepper.time;
+    stepper.step(dt);
+    steps++;
+    const drift = Math.abs(stepper.mass - mass0) / mass0;
+    if (!Number.isFinite(stepper.mass) || !(drift <= limits.massTolerance)) {
+      const what = Number.isFinite(stepper.mass)
+        ? `the mass changed by ${drift.toExponential(2)} (tolerance ${limits.massTolerance.toExponential(1)})`
+        : "the field became non-finite";
+      stepper.setState(backup, t0);
+      return {
+        status: "stopped",
+        reason:
+          `step ${steps} at t = ${fmt(t0)} (Δt = ${fmt(dt)}, ${limiter} limit): ${what}; ` +
+          "likely cause: a time step too large (lower integrator.safety or integrator.fixed_step) " +
+          "or a grid too coarse for the structures that formed (more grid.cells); the last good state is kept",
+        steps: steps - 1,
+      };
+    }
+    hooks.onStep?.(stepper, { step: steps, dt, limiter, massDrift: drift, scratch: backup });
+  }
+  return { status: "completed", steps };
+}

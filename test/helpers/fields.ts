@@ -1,0 +1,58 @@
+/** Small helpers shared by the numerical tests. */
+import { Grid } from "../../src/grid/grid.js";
+
+/** Deterministic pseudo-random numbers in [−1, 1) (mulberry32). */
+export function seededRandom(seed: number): () => number {
+  let s = seed >>> 0;
+  return () => {
+    s = (s + 0x6d2b79f5) >>> 0;
+    let t = s;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return (((t ^ (t >>> 14)) >>> 0) / 4294967296) * 2 - 1;
+  };
+}
+
+/** Fill a complex field from a function of the internal coordinates (x0, x1, x2). */
+export function fillComplex(grid: Grid, f: (x: number, y: number, z: number) => [number, number]): Float64Array {
+  const out = new Float64Array(2 * grid.size);
+  const [n0, n1, n2] = grid.shape;
+  let p = 0;
+  for (let a = 0; a < n0; a++) {
+    for (let b = 0; b < n1; b++) {
+      for (let c = 0; c < n2; c++, p += 2) {
+        const [re, im] = f(grid.coordinate(0, a), grid.coordinate(1, b), grid.coordinate(2, c));
+        out[p] = re;
+        out[p + 1] = im;
+      }
+    }
+  }
+  return out;
+}
+
+/** Fill a real field from a function of the internal coordinates. */
+export function fillReal(grid: Grid, f: (x: number, y: number, z: number) => number): Float64Array {
+  const out = new Float64Array(grid.size);
+  const [n0, n1, n2] = grid.shape;
+  let p = 0;
+  for (let a = 0; a < n0; a++) {
+    for (let b = 0; b < n1; b++) {
+      for (let c = 0; c < n2; c++, p++) out[p] = f(grid.coordinate(0, a), grid.coordinate(1, b), grid.coordinate(2, c));
+    }
+  }
+  return out;
+}
+
+/** Largest |a − b| over two arrays. */
+export function maxAbsDiff(a: ArrayLike<number>, b: ArrayLike<number>): number {
+  let m = 0;
+  for (let i = 0; i < a.length; i++) m = Math.max(m, Math.abs((a[i] as number) - (b[i] as number)));
+  return m;
+}
+
+/** Largest |a|. */
+export function maxAbs(a: ArrayLike<number>): number {
+  let m = 0;
+  for (let i = 0; i < a.length; i++) m = Math.max(m, Math.abs(a[i] as number));
+  return m;
+}
