@@ -13,7 +13,9 @@ import { ConfigError } from "../core/errors.js";
 
 /** Smallest and largest cell count allowed along an axis. */
 export const MIN_CELLS = 4;
-export const MAX_CELLS = 1 << 14;
+export const MAX_CELLS = 1 << 20;
+/** Largest total number of cells (2^27: a 512³ grid, 2 GiB per complex field). */
+export const MAX_TOTAL_CELLS = 1 << 27;
 
 /** A 3-tuple of numbers, one per internal axis. */
 export type Triple = readonly [number, number, number];
@@ -41,7 +43,7 @@ export class Grid {
   private readonly k: readonly [Float64Array, Float64Array, Float64Array];
 
   /**
-   * @param cells cells per simulated axis (powers of two, 4 … 16384)
+   * @param cells cells per simulated axis (powers of two, 4 … 2²⁰; at most 2²⁷ in all)
    * @param lengths side lengths per simulated axis [code length], positive
    */
   constructor(cells: readonly number[], lengths: readonly number[]) {
@@ -58,6 +60,10 @@ export class Grid {
           `${n} is not a power of two from ${MIN_CELLS} to ${MAX_CELLS} (the FFT is radix-2/4): use e.g. 32, 64, 128`,
         );
       }
+    }
+    const total = cells.reduce((p, n) => p * n, 1);
+    if (total > MAX_TOTAL_CELLS) {
+      throw new ConfigError("grid.cells", `${cells.join("×")} is ${total} cells, more than the ${MAX_TOTAL_CELLS} (512³) psibox holds in memory`);
     }
     for (const l of lengths) {
       if (!(l > 0) || !Number.isFinite(l)) throw new ConfigError("grid.box", `side lengths must be positive, got ${l}`);

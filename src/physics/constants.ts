@@ -19,8 +19,8 @@ export const GM_SUN_SI = 1.3271244e20;
 export const M_SUN_KG = GM_SUN_SI / G_SI;
 /** Astronomical unit [m]. IAU 2012 Resolution B2 (exact). */
 export const AU_M = 149_597_870_700;
-/** Parsec [m] = au / tan(1″) per IAU 2015 Resolution B2 (exact). */
-export const PC_M = AU_M / Math.tan(Math.PI / (180 * 3600));
+/** Parsec [m] = (648000/π) au, IAU 2015 Resolution B2 (exact). */
+export const PC_M = (648_000 / Math.PI) * AU_M;
 /** Julian year [s] (IAU: 365.25 days of 86400 s). */
 export const YEAR_S = 365.25 * 86_400;
 /** Megaparsec [m]. */

@@ -21,8 +21,8 @@ export function radialDensity(grid: Grid, psi: Float64Array): (r: number) => num
   for (let m = 0; m < n2; m++) {
     for (let j = 0; j < n2; j++) {
       const ang = (-2 * Math.PI * m * j) / n2;
-      cr[m] += (re[j]! * Math.cos(ang) - im[j]! * Math.sin(ang)) / n2;
-      ci[m] += (re[j]! * Math.sin(ang) + im[j]! * Math.cos(ang)) / n2;
+      cr[m] = cr[m]! + (re[j]! * Math.cos(ang) - im[j]! * Math.sin(ang)) / n2;
+      ci[m] = ci[m]! + (re[j]! * Math.sin(ang) + im[j]! * Math.cos(ang)) / n2;
     }
   }
   const dx = grid.spacing[2];

@@ -151,3 +151,22 @@ export class LcdmBackground implements Background {
     return this.table().growthRate(a);
   }
 }
+
+/** A background described by plain data (code units), as stored in a resolved run. */
+export type BackgroundSpec =
+  | { readonly kind: "static" }
+  | {
+      readonly kind: "lcdm";
+      /** H0 [1/code time]. */
+      readonly hubble0: number;
+      readonly omegaMatter: number;
+      readonly omegaRadiation: number;
+      /** H0 / (100 km/s/Mpc). */
+      readonly littleH: number;
+    };
+
+/** Build the background a spec describes. */
+export function makeBackground(spec: BackgroundSpec): Background {
+  if (spec.kind === "static") return new StaticBackground();
+  return new LcdmBackground({ hubble0: spec.hubble0, omegaMatter: spec.omegaMatter, omegaRadiation: spec.omegaRadiation });
+}

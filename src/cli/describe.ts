@@ -1,0 +1,28 @@
+/** A readable tree of a resolved run, printed when a run starts. */
+import type { ResolvedRun } from "../config/resolve.js";
+import { OutputScales } from "../simulation/scales.js";
+
+/** Describe a run in physical units. */
+export function describeRun(run: ResolvedRun): string {
+  const c = run.config;
+  const scales = new OutputScales(run);
+  const cells = run.grid.cells.join("×");
+  const box = typeof c.grid.box === "string" ? c.grid.box : c.grid.box.join(" × ");
+  const bg = c.background.kind === "lcdm"
+    ? `flat ΛCDM, H0 = ${c.background.hubble}, Ω_m = ${c.background.omega_matter}, Ω_r = ${c.background.omega_radiation}`
+    : "static (a = 1)";
+  const span = c.background.kind === "lcdm"
+    ? `z = ${c.span.start_redshift} → ${c.span.end_redshift ?? 0} (${scales.formatTime(run.span.startTime)} → ${scales.formatTime(run.span.endTime)})`
+    : `${c.span.duration}`;
+  const lines = [
+    `psibox run "${run.name}"`,
+    `├─ grid         ${run.grid.cells.length}D, ${cells} cells, box ${box}, gravity ${run.grid.gravity}`,
+    `├─ particle     m = ${c.particle.mass}`,
+    `├─ background   ${bg}`,
+    `├─ span         ${span}`,
+    `├─ initial      ${c.initial.kind}`,
+    `├─ integrator   safety ${run.integrator.safety}${c.integrator.fixed_step ? `, fixed step ${c.integrator.fixed_step}` : ""}, mass tolerance ${run.integrator.massTolerance}`,
+    `└─ output       ${run.outputDir}`,
+  ];
+  return lines.join("\n");
+}

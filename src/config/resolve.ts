@@ -1,0 +1,236 @@
+/**
+ * Resolution: a checked config (physical units as text) → a ResolvedRun
+ * (complete, in code units, with an absolute output folder). Every value is
+ * range-checked here, with errors that name the key.
+ */
+import path from "node:path";
+import { ConfigError } from "../core/errors.js";
+import { CodeUnits, parseAs, parseUnit, UnitSyntaxError, type QuantityKind, type UnitContext } from "../physics/units.js";
+import { MPC_M } from "../physics/constants.js";
+import { makeBackground } from "../physics/cosmology/background.js";
+import { Grid } from "../grid/grid.js";
+import type { GravityKind, PoissonKernel } from "../fields/poisson.js";
+import type { CheckedConfig } from "./schema.js";
+
+/** Initial condition in code units. */
+export type ResolvedInitial =
+  | { readonly kind: "plane-wave"; readonly meanDensity: number; readonly contrast: number; readonly mode: readonly number[] }
+  | {
+      readonly kind: "gaussian-packet";
+      readonly mass: number;
+      readonly width: number;
+      readonly center: readonly number[];
+      readonly velocity: readonly number[];
+    }
+  | { readonly kind: "ground-state"; readonly mass: number; readonly guessWidth: number; readonly center: readonly number[] };
+
+/** Background in code units. */
+export type { BackgroundSpec as ResolvedBackground } from "../physics/cosmology/background.js";
+import type { BackgroundSpec as ResolvedBackground } from "../physics/cosmology/background.js";
+
+/** A complete run description in code units. */
+export interface ResolvedRun {
+  readonly name: string;
+  /** Absolute output folder. */
+  readonly outputDir: string;
+  /** The config with every default filled in (physical units, as text). */
+  readonly config: CheckedConfig;
+  readonly particleMassKg: number;
+  /** The code length unit ℓ: the first axis's box length [m]. */
+  readonly lengthUnitM: number;
+  readonly grid: {
+    readonly cells: readonly number[];
+    readonly lengths: readonly number[];
+    readonly gravity: GravityKind;
+    readonly poisson: PoissonKernel;
+  };
+  readonly background: ResolvedBackground;
+  readonly span: { readonly startTime: number; readonly endTime: number };
+  readonly initial: ResolvedInitial;
+  readonly integrator: {
+    readonly safety: number;
+    readonly fixedStep: number | undefined;
+    readonly maxDlnA: number;
+    readonly massTolerance: number;
+    readonly maxSteps: number;
+  };
+  readonly output: { readonly timeseriesEvery: number; readonly timeUnit: string; readonly timeUnitS: number };
+}
+
+const KM_S_MPC = 1e3 / MPC_M;
+
+function read(key: string, text: string, kind: QuantityKind, ctx: UnitContext): number {
+  try {
+    return parseAs(text, kind, ctx);
+  } catch (e) {
+    if (e instanceof UnitSyntaxError) throw new ConfigError(key, e.message);
+    throw e;
+  }
+}
+
+function positive(key: string, value: number, what = "positive"): number {
+  if (!(value > 0) || !Number.isFinite(value)) throw new ConfigError(key, `must be ${what}, got ${value}`);
+  return value;
+}
+
+function perAxis(key: string, values: string | readonly string[], dims: number): readonly string[] {
+  const list = typeof values === "string" ? Array<string>(dims).fill(values) : values;
+  if (list.length !== dims) throw new ConfigError(key, `give one value or ${dims} (one per axis), got ${list.length}`);
+  return list;
+}
+
+/**
+ * Resolve a checked config.
+ * @param config the validated config
+ * @param name run name (the config file's base name)
+ * @param cwd folder that relative output paths are taken from
+ */
+export function resolveRun(config: CheckedConfig, name: string, cwd: string): ResolvedRun {
+  const cells = typeof config.grid.cells === "number" ? [config.grid.cells] : [...config.grid.cells];
+  const dims = cells.length;
+  const bgc = config.background;
+  let littleH: number | undefined;
+  let hubbleSI = 0;
+  if (bgc.kind === "lcdm") {
+    hubbleSI = positive("background.hubble", read("background.hubble", bgc.hubble, "rate", {}));
+    littleH = hubbleSI / (100 * KM_S_MPC);
+  }
+  const ctx: UnitContext = { littleH };
+  const m = positive("particle.mass", read("particle.mass", config.particle.mass, "mass", ctx));
+  const boxSI = perAxis("grid.box", config.grid.box, dims).map((t) => positive("grid.box", read("grid.box", t, "length", ctx)));
+  const units = new CodeUnits(m, boxSI[0] as number);
+  const lengths = boxSI.map((l) => l / units.lengthM);
+  const gravity = config.grid.gravity;
+  new Grid(cells, lengths); // validates the cell counts (powers of two) with errors naming grid.cells
+
+  let background: ResolvedBackground = { kind: "static" };
+  let startTime = 0;
+  let endTime: number;
+  const span = config.span;
+  if (bgc.kind === "lcdm") {
+    const om = bgc.omega_matter;
+    const or = bgc.omega_radiation;
+    if (!(om > 0 && om <= 1)) throw new ConfigError("background.omega_matter", `must be in (0, 1], got ${om}`);
+    if (!(or >= 0 && om + or <= 1)) {
+      throw new ConfigError("background.omega_radiation", `must be ≥ 0 with omega_matter + omega_radiation ≤ 1 (flat, Ω_Λ ≥ 0), got ${or}`);
+    }
+    if (gravity === "isolated") {
+      throw new ConfigError("grid.gravity", 'isolated gravity needs background.kind = "static"; use "periodic" for expanding boxes');
+    }
+    if (span.duration !== undefined) throw new ConfigError("span.duration", 'is for static runs; expanding runs use span.start_redshift and span.end_redshift');
+    if (span.start_redshift === undefined) throw new ConfigError("span.start_redshift", "missing; expanding runs start at a redshift, e.g. 100");
+    const zEnd = span.end_redshift ?? 0;
+    if (!(span.start_redshift < 1e6)) throw new ConfigError("span.start_redshift", `must be below 1e6, got ${span.start_redshift}`);
+    if (!(zEnd > -1)) throw new ConfigError("span.end_redshift", `must be above −1, got ${zEnd}`);
+    if (!(span.start_redshift > zEnd)) {
+      throw new ConfigError("span.start_redshift", `must be larger than span.end_redshift (${zEnd}), got ${span.start_redshift}`);
+    }
+    background = { kind: "lcdm", hubble0: hubbleSI * units.timeS, omegaMatter: om, omegaRadiation: or, littleH: littleH as number };
+    const bg = makeBackground(background);
+    startTime = bg.time(1 / (1 + span.start_redshift));
+    endTime = bg.time(1 / (1 + zEnd));
+  } else {
+    if (span.start_redshift !== undefined || span.end_redshift !== undefined) {
+      const key = span.start_redshift !== undefined ? "span.start_redshift" : "span.end_redshift";
+      throw new ConfigError(key, 'needs background.kind = "lcdm"; static runs use span.duration');
+    }
+    if (span.duration === undefined) throw new ConfigError("span.duration", 'missing; static runs need a duration, e.g. "1 Gyr"');
+    endTime = positive("span.duration", read("span.duration", span.duration, "time", ctx)) / units.timeS;
+  }
+
+  const initial = resolveInitial(config, dims, lengths, units, ctx, background);
+  const integ = config.integrator;
+  if (!(integ.safety > 0 && integ.safety <= 1)) throw new ConfigError("integrator.safety", `must be in (0, 1], got ${integ.safety}`);
+  positive("integrator.max_dln_a", integ.max_dln_a);
+  positive("integrator.mass_tolerance", integ.mass_tolerance);
+  positive("integrator.max_steps", integ.max_steps);
+  const fixedStep =
+    integ.fixed_step === undefined
+      ? undefined
+      : positive("integrator.fixed_step", read("integrator.fixed_step", integ.fixed_step, "time", ctx)) / units.timeS;
+
+  const out = config.output;
+  positive("output.timeseries_every", out.timeseries_every);
+  const timeUnit = out.time_unit ?? (span.duration !== undefined ? unitText(span.duration) : "Gyr");
+  let timeUnitS: number;
+  try {
+    const u = parseUnit(timeUnit, ctx);
+    if (u.dim.L !== 0 || u.dim.M !== 0 || u.dim.T !== 1) throw new UnitSyntaxError("");
+    timeUnitS = u.si;
+  } catch {
+    throw new ConfigError("output.time_unit", `"${timeUnit}" is not a time unit; use s, yr, kyr, Myr or Gyr`);
+  }
+  const outputDir = path.resolve(cwd, out.dir ?? path.join("output", name));
+
+  return {
+    name,
+    outputDir,
+    config,
+    particleMassKg: m,
+    lengthUnitM: units.lengthM,
+    grid: { cells, lengths, gravity, poisson: config.grid.poisson },
+    background,
+    span: { startTime, endTime },
+    initial,
+    integrator: { safety: integ.safety, fixedStep, maxDlnA: integ.max_dln_a, massTolerance: integ.mass_tolerance, maxSteps: integ.max_steps },
+    output: { timeseriesEvery: out.timeseries_every, timeUnit, timeUnitS },
+  };
+}
+
+function unitText(quantity: string): string {
+  return quantity.trim().replace(/^[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?\s*/, "");
+}
+
+function resolveInitial(
+  config: CheckedConfig,
+  dims: number,
+  lengths: readonly number[],
+  units: CodeUnits,
+  ctx: UnitContext,
+  background: ResolvedBackground,
+): ResolvedInitial {
+  const ic = config.initial;
+  const len = (key: string, t: string) => read(key, t, "length", ctx) / units.lengthM;
+  const mass = (key: string, t: string) => positive(key, read(key, t, "mass", ctx)) / units.massKg;
+  const centre = (list: readonly string[] | undefined, key: string): number[] => {
+    if (list === undefined) return lengths.map((l) => l / 2);
+    const c = perAxis(key, list, dims).map((t) => len(key, t));
+    c.forEach((v, i) => {
+      if (!(v >= 0 && v <= (lengths[i] as number))) throw new ConfigError(key, `lies outside the box (axis ${i + 1})`);
+    });
+    return c;
+  };
+  switch (ic.kind) {
+    case "plane-wave": {
+      const mode = ic.mode ?? [1, ...Array<number>(dims - 1).fill(0)];
+      if (mode.length !== dims) throw new ConfigError("initial.mode", `give ${dims} integers (one per axis), got ${mode.length}`);
+      if (mode.every((v) => v === 0)) throw new ConfigError("initial.mode", "must not be all zeros");
+      if (!(Math.abs(ic.contrast) < 1)) throw new ConfigError("initial.contrast", `must be in (−1, 1), got ${ic.contrast}`);
+      let meanDensity: number;
+      if (ic.mean_density !== undefined) {
+        meanDensity = positive("initial.mean_density", read("initial.mean_density", ic.mean_density, "density", ctx)) / (units.massKg / units.lengthM ** 3);
+      } else if (background.kind === "lcdm") {
+        meanDensity = 1.5 * background.omegaMatter * background.hubble0 ** 2; // 4πGρ̄ = (3/2) Ω_m H0²
+      } else {
+        throw new ConfigError("initial.mean_density", 'missing; static runs need a mean density, e.g. "1e7 Msun/kpc^3"');
+      }
+      return { kind: "plane-wave", meanDensity, contrast: ic.contrast, mode };
+    }
+    case "gaussian-packet": {
+      const velocity = ic.velocity === undefined ? Array<number>(dims).fill(0) : perAxis("initial.velocity", ic.velocity, dims).map((t) => read("initial.velocity", t, "velocity", ctx) / (units.lengthM / units.timeS));
+      return {
+        kind: "gaussian-packet",
+        mass: mass("initial.mass", ic.mass),
+        width: positive("initial.width", len("initial.width", ic.width)),
+        center: centre(ic.center, "initial.center"),
+        velocity,
+      };
+    }
+    case "ground-state": {
+      if (config.grid.gravity === "none") throw new ConfigError("initial.kind", '"ground-state" needs gravity: set grid.gravity to "isolated" or "periodic"');
+      const guessWidth =
+        ic.guess_width === undefined ? Math.min(...lengths) / 10 : positive("initial.guess_width", len("initial.guess_width", ic.guess_width));
+      return { kind: "ground-state", mass: mass("initial.mass", ic.mass), guessWidth, center: centre(ic.center, "initial.center") };
+    }
+  }
+}

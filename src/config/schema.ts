@@ -1,0 +1,123 @@
+/**
+ * The config file's schema (TOML, validated with zod). Every dimensional
+ * value is a string of a number and a unit, read by physics/units.ts in
+ * config/resolve.ts. Unknown keys are errors. Defaults are listed here and
+ * in the README's config reference.
+ */
+import { z } from "zod";
+
+const quantity = z.string();
+const quantityList = z.union([quantity, z.array(quantity).min(1).max(3)], {
+  error: 'expected a value with a unit such as "10 kpc", or a list of 1–3 of them',
+});
+
+export const gridSchema = z.strictObject({
+  /** Cells per simulated axis: one number (1D) or a list of 1–3 powers of two. */
+  cells: z.union([z.number().int(), z.array(z.number().int()).min(1).max(3)], {
+    error: "expected a whole number or a list of 1–3 whole numbers, e.g. [64, 64]",
+  }),
+  /** Side length: one length for every axis, or one per axis. */
+  box: quantityList,
+  /** Gravity boundary conditions. @default "periodic" */
+  gravity: z.enum(["periodic", "isolated", "none"]).default("periodic"),
+  /** Laplacian symbol of the periodic Poisson solve. @default "spectral" */
+  poisson: z.enum(["spectral", "finite-difference"]).default("spectral"),
+});
+
+export const particleSchema = z.strictObject({
+  /** Particle mass, e.g. "1e-22 eV". */
+  mass: quantity,
+});
+
+export const backgroundSchema = z.discriminatedUnion("kind", [
+  z.strictObject({ kind: z.literal("static") }),
+  z.strictObject({
+    kind: z.literal("lcdm"),
+    /** H0. @default "67.36 km/s/Mpc" (Planck 2018) */
+    hubble: quantity.default("67.36 km/s/Mpc"),
+    /** Ω_m today. @default 0.3153 (Planck 2018) */
+    omega_matter: z.number().default(0.3153),
+    /** Ω_r today. @default 0 */
+    omega_radiation: z.number().default(0),
+  }),
+]);
+
+export const spanSchema = z.strictObject({
+  /** Static runs: how long to run, e.g. "2 Gyr". */
+  duration: quantity.optional(),
+  /** Expanding runs: start redshift. */
+  start_redshift: z.number().optional(),
+  /** Expanding runs: end redshift. @default 0 */
+  end_redshift: z.number().optional(),
+});
+
+export const planeWaveSchema = z.strictObject({
+  kind: z.literal("plane-wave"),
+  /** Mean density ρ̄; static runs must give it, expanding runs default to the cosmic mean Ω_m ρ_crit. */
+  mean_density: quantity.optional(),
+  /** Density contrast ε of δ = ε cos(k·x). @default 0.01 */
+  contrast: z.number().default(0.01),
+  /** Integer wave vector: whole wavelengths per box side, one per axis. @default [1, 0, 0] */
+  mode: z.array(z.number().int()).min(1).max(3).optional(),
+});
+
+export const packetSchema = z.strictObject({
+  kind: z.literal("gaussian-packet"),
+  /** Mass of the packet. */
+  mass: quantity,
+  /** Width σ of |ψ|² ∝ exp(−r²/2σ²). */
+  width: quantity,
+  /** Centre, one length per axis. @default the box centre */
+  center: z.array(quantity).min(1).max(3).optional(),
+  /** Bulk velocity, one per axis. @default 0 */
+  velocity: z.array(quantity).min(1).max(3).optional(),
+});
+
+export const groundStateSchema = z.strictObject({
+  kind: z.literal("ground-state"),
+  /** Mass of the soliton. */
+  mass: quantity,
+  /** Width σ of the Gaussian the relaxation starts from. @default a tenth of the smallest box side */
+  guess_width: quantity.optional(),
+  /** Centre, one length per axis. @default the box centre */
+  center: z.array(quantity).min(1).max(3).optional(),
+});
+
+export const initialSchema = z.discriminatedUnion("kind", [planeWaveSchema, packetSchema, groundStateSchema]);
+
+export const integratorSchema = z.strictObject({
+  /** Safety factor s: kinetic phase ≤ 2πs and potential phase ≤ πs per step. @default 0.25 */
+  safety: z.number().default(0.25),
+  /** A fixed step instead of the phase rules, e.g. "0.1 Myr". */
+  fixed_step: quantity.optional(),
+  /** Largest step in ln a (expanding runs). @default 0.01 */
+  max_dln_a: z.number().default(0.01),
+  /** Largest relative mass drift before the run stops. @default 1e-8 */
+  mass_tolerance: z.number().default(1e-8),
+  /** Step cap. @default 10000000 */
+  max_steps: z.number().int().default(10_000_000),
+});
+
+export const outputSchema = z.strictObject({
+  /** Output folder. @default "output/<config file name>" */
+  dir: z.string().optional(),
+  /** Write a time-series row every this many steps (and always the first and last). @default 1 */
+  timeseries_every: z.number().int().default(1),
+  /** Time unit of the outputs, e.g. "Myr". @default the unit of span.duration, or "Gyr" */
+  time_unit: z.string().optional(),
+});
+
+export const userConfigSchema = z.strictObject({
+  grid: gridSchema,
+  particle: particleSchema,
+  background: backgroundSchema.default({ kind: "static" }),
+  span: spanSchema,
+  initial: initialSchema,
+  integrator: integratorSchema.default(integratorSchema.parse({})),
+  output: outputSchema.default(outputSchema.parse({})),
+});
+
+/** A config as written by a user (before defaults). */
+export type UserConfig = z.input<typeof userConfigSchema>;
+/** A config with defaults filled in (still in physical units, as text). */
+export type CheckedConfig = z.output<typeof userConfigSchema>;

@@ -1,0 +1,22 @@
+/** psibox's public API: explicit named re-exports only. */
+export { VERSION } from "./version.js";
+export { PsiboxError, ConfigError, InputError, NumericsError } from "./core/errors.js";
+export { Grid } from "./grid/grid.js";
+export { ComplexFft, RealFft } from "./fields/fft.js";
+export { PeriodicPoisson, IsolatedPoisson, NoGravity, makePoissonSolver } from "./fields/poisson.js";
+export type { GravityKind, PoissonKernel, PoissonSolver } from "./fields/poisson.js";
+export { CodeUnits, parseAs, parseQuantity, parseUnit } from "./physics/units.js";
+export { StaticBackground, LcdmBackground, makeBackground } from "./physics/cosmology/background.js";
+export type { Background, BackgroundSpec } from "./physics/cosmology/background.js";
+export { SplitStepper } from "./integrators/split-step.js";
+export { chooseTimestep } from "./integrators/timestep.js";
+export type { TimestepRules } from "./integrators/timestep.js";
+export { relaxGroundState } from "./ground-state/imaginary-time.js";
+export type { GroundState, RelaxOptions } from "./ground-state/imaginary-time.js";
+export { fieldMass, kineticEnergy, potentialEnergy, maxDensity } from "./diagnostics/energies.js";
+export { loadConfig, checkConfig } from "./config/load.js";
+export { resolveRun } from "./config/resolve.js";
+export type { ResolvedRun } from "./config/resolve.js";
+export { evolve } from "./simulation/evolve.js";
+export { runSimulation, prepareOutputDir } from "./simulation/run.js";
+export type { RunReporter, RunSummary } from "./simulation/run.js";

@@ -1,0 +1,172 @@
+/**
+ * One run from a resolved config: build the grid, background, gravity and
+ * initial field, advance to the end, and write the time series and a
+ * summary into the run's output folder. The CLI and the tests call this
+ * same function; progress goes to a reporter.
+ */
+import fs from "node:fs";
+import path from "node:path";
+import { Grid } from "../grid/grid.js";
+import { makePoissonSolver } from "../fields/poisson.js";
+import { makeBackground } from "../physics/cosmology/background.js";
+import { SplitStepper } from "../integrators/split-step.js";
+import { buildInitialField } from "../initial-conditions/build.js";
+import { fieldMass, kineticEnergy, maxDensity, potentialEnergy } from "../diagnostics/energies.js";
+import { CsvWriter } from "../io/csv-writer.js";
+import { writeFileAtomic } from "../io/atomic.js";
+import type { ResolvedRun } from "../config/resolve.js";
+import { InputError } from "../core/errors.js";
+import { evolve, type StepInfo } from "./evolve.js";
+import { OutputScales } from "./scales.js";
+
+/** Where a run reports what it is doing. */
+export interface RunReporter {
+  /** A new phase of work begins ("relaxing the ground state", "evolving"). */
+  phase(text: string): void;
+  /** Progress within the phase, fraction in [0, 1], with a short status text. */
+  progress(fraction: number, status: string): void;
+  /** The phase ended. */
+  endPhase(): void;
+}
+
+/** A reporter that says nothing. */
+export const silentReporter: RunReporter = { phase() {}, progress() {}, endPhase() {} };
+
+/** What a run ends with (also written to summary.json). */
+export interface RunSummary {
+  readonly name: string;
+  readonly status: "completed" | "stopped";
+  readonly reason?: string;
+  readonly steps: number;
+  readonly wall_time_s: number;
+  readonly time_unit: string;
+  readonly start: { readonly t: number; readonly a: number; readonly z: number | null };
+  readonly end: { readonly t: number; readonly a: number; readonly z: number | null };
+  readonly mass_drift: number;
+  readonly relaxation?: { readonly iterations: number; readonly converged: boolean };
+}
+
+/** Options of a run. */
+export interface RunOptions {
+  readonly reporter?: RunReporter;
+  /** Checked before every step; return a reason to stop (e.g. "interrupted (SIGINT)"). */
+  readonly stopRequested?: () => string | undefined;
+}
+
+/** Run a resolved config; the output folder must exist. */
+export function runSimulation(run: ResolvedRun, options: RunOptions = {}): RunSummary {
+  const reporter = options.reporter ?? silentReporter;
+  const wallStart = performance.now();
+  const scales = new OutputScales(run);
+  const grid = new Grid(run.grid.cells, run.grid.lengths);
+  const background = makeBackground(run.background);
+  const gravity = makePoissonSolver(grid, run.grid.gravity, run.grid.poisson);
+  const expanding = background.kind !== "static";
+  const { startTime, endTime } = run.span;
+
+  if (run.initial.kind === "ground-state") reporter.phase("relaxing the ground state");
+  const initial = buildInitialField(run.initial, grid, background, startTime, gravity, (info) =>
+    reporter.progress(Math.min(1, info.iteration / 400), `iteration ${info.iteration}`),
+  );
+  if (run.initial.kind === "ground-state") reporter.endPhase();
+
+  const stepper = new SplitStepper(grid, background, gravity);
+  stepper.setState(initial.psi, startTime);
+  const mass0 = fieldMass(grid, stepper.psi);
+
+  const u = scales.timeUnit;
+  const energyUnit = "Msun_km2_s2";
+  const columns = [
+    "step",
+    `t_${u}`,
+    ...(expanding ? ["a", "z"] : []),
+    `dt_${u}`,
+    "limiter",
+    "mass_Msun",
+    `kinetic_${energyUnit}`,
+    `potential_${energyUnit}`,
+    `total_${energyUnit}`,
+    "max_density_Msun_kpc3",
+  ];
+  const series = new CsvWriter(path.join(run.outputDir, "timeseries.csv"), columns);
+  const scratch = new Float64Array(stepper.psi.length);
+  const record = (step: number, dt: number, limiter: string, buffer: Float64Array): void => {
+    const a = background.scaleFactor(stepper.time);
+    const K = kineticEnergy(grid, stepper.psi, a, stepper.fft, buffer);
+    const W = potentialEnergy(grid, stepper.psi, stepper.phi, a);
+    series.row([
+      step,
+      scales.time(stepper.time),
+      ...(expanding ? [a, 1 / a - 1] : []),
+      scales.time(dt),
+      limiter,
+      scales.massMsun(stepper.mass),
+      scales.energy(K),
+      scales.energy(W),
+      scales.energy(K + W),
+      scales.density(maxDensity(stepper.psi)),
+    ]);
+  };
+  record(0, 0, "start", scratch);
+
+  const span = expanding ? Math.log(background.scaleFactor(endTime) / background.scaleFactor(startTime)) : endTime - startTime;
+  const progressOf = (t: number): number =>
+    expanding ? Math.log(background.scaleFactor(t) / background.scaleFactor(startTime)) / span : (t - startTime) / span;
+  let lastRecorded = 0;
+  let lastReport = 0;
+  reporter.phase("evolving");
+  const onStep = (s: SplitStepper, info: StepInfo): void => {
+    const atEnd = info.limiter === "end";
+    if (info.step % run.output.timeseriesEvery === 0 || atEnd) {
+      record(info.step, info.dt, info.limiter, info.scratch);
+      lastRecorded = info.step;
+    }
+    const now = performance.now();
+    if (now - lastReport > 200 || atEnd) {
+      lastReport = now;
+      const a = background.scaleFactor(s.time);
+      const where = expanding ? `z = ${(1 / a - 1).toFixed(3)}` : `t = ${scales.time(s.time).toPrecision(4)} ${u}`;
+      reporter.progress(progressOf(s.time), `step ${info.step}, ${where}, dt = ${scales.time(info.dt).toPrecision(3)} ${u} (${info.limiter})`);
+    }
+  };
+  const result = evolve(
+    stepper,
+    { safety: run.integrator.safety, maxDlnA: run.integrator.maxDlnA, fixedStep: run.integrator.fixedStep },
+    { endTime, massTolerance: run.integrator.massTolerance, maxSteps: run.integrator.maxSteps },
+    { onStep, formatTime: (t) => scales.formatTime(t), ...(options.stopRequested ? { stopRequested: options.stopRequested } : {}) },
+  );
+  if (result.steps > lastRecorded && result.status === "stopped") record(result.steps, 0, "stop", scratch);
+  series.close();
+  reporter.endPhase();
+
+  const point = (t: number) => {
+    const a = background.scaleFactor(t);
+    return { t: scales.time(t), a, z: expanding ? 1 / a - 1 : null };
+  };
+  const summary: RunSummary = {
+    name: run.name,
+    status: result.status,
+    ...(result.reason ? { reason: result.reason } : {}),
+    steps: result.steps,
+    wall_time_s: (performance.now() - wallStart) / 1000,
+    time_unit: u,
+    start: point(startTime),
+    end: point(stepper.time),
+    mass_drift: Math.abs(stepper.mass - mass0) / mass0,
+    ...(initial.relaxation ? { relaxation: { iterations: initial.relaxation.iterations, converged: initial.relaxation.converged } } : {}),
+  };
+  writeFileAtomic(path.join(run.outputDir, "summary.json"), JSON.stringify(summary, null, 2) + "\n");
+  return summary;
+}
+
+/** Create a run's output folder; refuse to reuse a folder that holds a run unless `force`. */
+export function prepareOutputDir(dir: string, force: boolean): void {
+  if (fs.existsSync(dir)) {
+    if (!fs.statSync(dir).isDirectory()) throw new InputError(`output path ${dir} exists and is not a folder`);
+    const taken = ["summary.json", "timeseries.csv"].some((f) => fs.existsSync(path.join(dir, f)));
+    if (taken && !force) {
+      throw new InputError(`output folder ${dir} already holds a run; pass --force to overwrite its files, or set output.dir`);
+    }
+  }
+  fs.mkdirSync(dir, { recursive: true });
+}

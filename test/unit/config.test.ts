@@ -1,0 +1,77 @@
+// Config loading, validation and resolution.
+import fs from "node:fs";
+import path from "node:path";
+import { describe, expect, it } from "vitest";
+import { applyOverrides, checkConfig, loadConfig, parseTomlText } from "../../src/config/load.js";
+import { resolveRun } from "../../src/config/resolve.js";
+import { ConfigError } from "../../src/core/errors.js";
+import { VERSION } from "../../src/version.js";
+
+const base = {
+  grid: { cells: [32], box: "10 kpc" },
+  particle: { mass: "1e-22 eV" },
+  span: { duration: "1 Gyr" },
+  initial: { kind: "plane-wave", mean_density: "1e7 Msun/kpc^3" },
+};
+
+function errorOf(raw: unknown): string {
+  try {
+    resolveRun(checkConfig(raw), "t", "/");
+  } catch (e) {
+    expect(e).toBeInstanceOf(ConfigError);
+    return (e as Error).message;
+  }
+  throw new Error("expected a config error");
+}
+
+describe("config", () => {
+  it("every shipped config in configs/ resolves", () => {
+    const dir = path.resolve("configs");
+    const files = fs.readdirSync(dir).filter((f) => f.endsWith(".toml"));
+    expect(files.length).toBeGreaterThanOrEqual(4);
+    for (const f of files) {
+      const run = resolveRun(loadConfig(path.join(dir, f)), f, process.cwd());
+      expect(run.span.endTime).toBeGreaterThan(run.span.startTime);
+    }
+  });
+
+  it("fills defaults and converts to code units", () => {
+    const run = resolveRun(checkConfig(base), "t", "/tmp");
+    expect(run.grid.gravity).toBe("periodic");
+    expect(run.integrator.safety).toBe(0.25);
+    expect(run.grid.lengths[0]).toBe(1);
+    expect(run.output.timeUnit).toBe("Gyr");
+    expect(run.outputDir).toBe(path.resolve("/tmp", "output", "t"));
+  });
+
+  it("names the key and what is valid in every error", () => {
+    expect(errorOf({ ...base, grid: { cells: [48], box: "10 kpc" } })).toMatch(/^grid\.cells: 48 is not a power of two/);
+    expect(errorOf({ ...base, particle: { mass: "-1e-22 eV" } })).toMatch(/^particle\.mass: must be positive/);
+    expect(errorOf({ ...base, grid: { cells: [32], box: "0 kpc" } })).toMatch(/^grid\.box: must be positive/);
+    expect(errorOf({ ...base, grid: { cells: [32], box: "10 km/s" } })).toMatch(/^grid\.box: "10 km\/s" is not a length/);
+    expect(errorOf({ ...base, extra: 1 })).toMatch(/^extra: unknown key; valid keys here: grid, particle/);
+    expect(errorOf({ ...base, grid: { ...base.grid, cell: 3 } })).toMatch(/^grid\.cell: unknown key/);
+    const lcdm = { ...base, background: { kind: "lcdm" }, span: { start_redshift: 0, end_redshift: 5 }, initial: { kind: "plane-wave" } };
+    expect(errorOf(lcdm)).toMatch(/^span\.start_redshift: must be larger than span\.end_redshift/);
+    expect(errorOf({ ...base, span: { start_redshift: 10 } })).toMatch(/^span\.start_redshift: needs background\.kind = "lcdm"/);
+    expect(errorOf({ ...base, initial: { kind: "soliton" } })).toMatch(/^initial\.kind: must be one of "plane-wave"/);
+    expect(errorOf({ ...base, integrator: { safety: 2 } })).toMatch(/^integrator\.safety: must be in \(0, 1\]/);
+    expect(errorOf({ ...base, grid: { cells: [32], box: "1 Mpc/h" } })).toMatch(/^grid\.box: unit "h" in "Mpc\/h" needs a cosmology/);
+  });
+
+  it("applies --set overrides as TOML values or plain strings", () => {
+    const out = applyOverrides(base, ["grid.cells=[64, 64]", "particle.mass=2e-22 eV", "integrator.safety=0.1"]);
+    expect(out["grid"]).toEqual({ cells: [64, 64], box: "10 kpc" });
+    expect(out["particle"]).toEqual({ mass: "2e-22 eV" });
+    expect(out["integrator"]).toEqual({ safety: 0.1 });
+    expect(() => applyOverrides(base, ["grid"])).toThrow(/--set: "grid" is not of the form/);
+  });
+
+  it("reports TOML syntax errors with the line", () => {
+    expect(() => parseTomlText("[grid]\ncells = [32,\n", "x.toml")).toThrow(/^x\.toml: not valid TOML at line \d+/);
+  });
+
+  it("the code version matches package.json", () => {
+    expect(VERSION).toBe(JSON.parse(fs.readFileSync("package.json", "utf8")).version);
+  });
+});
