@@ -4,21 +4,12 @@
  * with an exit code: 2 for bad input, 3 for a run stopped by a guard rail,
  * 1 for anything unexpected. Stack traces only with --debug.
  */
-import path from "node:path";
 import { Command, CommanderError } from "commander";
 import { PsiboxError } from "../core/errors.js";
-import { loadConfig } from "../config/load.js";
-import { resolveRun } from "../config/resolve.js";
-import { prepareOutputDir, runSimulation, silentReporter } from "../simulation/run.js";
-import { TextReporter } from "./progress.js";
-import { describeRun } from "./describe.js";
 import { VERSION } from "../version.js";
-
-interface RunFlags {
-  set: string[];
-  force: boolean;
-  quiet: boolean;
-}
+import { runCommand, type RunFlags } from "./run-command.js";
+import { initTemplate, listTemplates } from "./init-command.js";
+import { inspectCommand } from "./inspect-command.js";
 
 function collect(value: string, previous: string[]): string[] {
   return [...previous, value];
@@ -40,13 +31,42 @@ export async function main(argv: readonly string[]): Promise<number> {
 
   program
     .command("run")
-    .description("advance the field of a config file and write the time series and a summary")
-    .argument("<config>", "a TOML config file")
+    .description("advance the field of a config file and write snapshots, the time series and a summary")
+    .argument("[config]", "a TOML config file")
     .option("--set <key=value>", "override one config key, e.g. --set grid.cells=[64,64] (repeatable)", collect, [])
+    .option("--resume <dir>", "continue a stopped or killed run from its checkpoint")
     .option("--force", "overwrite the files of an earlier run in the same output folder", false)
     .option("-q, --quiet", "no progress output", false)
-    .action((configFile: string, flags: RunFlags) => {
-      exitCode = runCommand(configFile, flags);
+    .action(async (configFile: string | undefined, flags: RunFlags) => {
+      exitCode = await runCommand(configFile, flags);
+    });
+
+  program
+    .command("init")
+    .description("write a commented starter config from a template")
+    .argument("[template]", "template name (see --list)")
+    .argument("[dir]", "folder to write it into", ".")
+    .option("--list", "list the templates", false)
+    .option("--force", "overwrite an existing file", false)
+    .action((template: string | undefined, dir: string, flags: { list: boolean; force: boolean }) => {
+      if (flags.list || template === undefined) {
+        const list = listTemplates();
+        const width = Math.max(...list.map((t) => t.name.length));
+        process.stdout.write(list.map((t) => `${t.name.padEnd(width)}  ${t.description}`).join("\n") + "\n");
+        if (!flags.list) exitCode = 2;
+        return;
+      }
+      const file = initTemplate(template, dir, flags.force);
+      process.stdout.write(`wrote ${file}; run it with: psibox run ${file}\n`);
+    });
+
+  program
+    .command("inspect")
+    .description("print a snapshot's metadata and field statistics")
+    .argument("<file>", "a psibox snapshot (.h5)")
+    .option("--json", "print JSON for scripts", false)
+    .action(async (file: string, flags: { json: boolean }) => {
+      exitCode = await inspectCommand(file, flags.json);
     });
 
   try {
@@ -58,36 +78,6 @@ export async function main(argv: readonly string[]): Promise<number> {
       return 2;
     }
     return reportError(e, debug);
-  }
-}
-
-function runCommand(configFile: string, flags: RunFlags): number {
-  const config = loadConfig(configFile, flags.set);
-  const name = path.basename(configFile).replace(/\.[^.]*$/, "");
-  const run = resolveRun(config, name, process.cwd());
-  prepareOutputDir(run.outputDir, flags.force);
-  const reporter = flags.quiet ? silentReporter : new TextReporter();
-  if (!flags.quiet) process.stderr.write(describeRun(run) + "\n");
-  let interrupted: string | undefined;
-  const onSignal = (signal: string) => () => {
-    interrupted = `interrupted (${signal})`;
-  };
-  const sigint = onSignal("SIGINT");
-  const sigterm = onSignal("SIGTERM");
-  process.once("SIGINT", sigint);
-  process.once("SIGTERM", sigterm);
-  try {
-    const summary = runSimulation(run, { reporter, stopRequested: () => interrupted });
-    const where = path.relative(process.cwd(), run.outputDir) || ".";
-    if (summary.status === "completed") {
-      process.stdout.write(`completed ${summary.steps} steps in ${summary.wall_time_s.toFixed(1)} s; outputs in ${where}\n`);
-      return 0;
-    }
-    process.stderr.write(`psibox: run stopped: ${summary.reason}; outputs up to the last good step in ${where}\n`);
-    return interrupted ? 130 : 3;
-  } finally {
-    process.removeListener("SIGINT", sigint);
-    process.removeListener("SIGTERM", sigterm);
   }
 }
 

@@ -22,7 +22,16 @@ export type ResolvedInitial =
       readonly center: readonly number[];
       readonly velocity: readonly number[];
     }
-  | { readonly kind: "ground-state"; readonly mass: number; readonly guessWidth: number; readonly center: readonly number[] };
+  | { readonly kind: "ground-state"; readonly mass: number; readonly guessWidth: number; readonly center: readonly number[] }
+  | {
+      readonly kind: "solitons";
+      readonly solitons: readonly {
+        readonly mass: number;
+        readonly center: readonly number[];
+        readonly velocity: readonly number[];
+        readonly phase: number;
+      }[];
+    };
 
 /** Background in code units. */
 export type { BackgroundSpec as ResolvedBackground } from "../physics/cosmology/background.js";
@@ -54,7 +63,17 @@ export interface ResolvedRun {
     readonly massTolerance: number;
     readonly maxSteps: number;
   };
-  readonly output: { readonly timeseriesEvery: number; readonly timeUnit: string; readonly timeUnitS: number };
+  readonly output: {
+    readonly timeseriesEvery: number;
+    readonly timeUnit: string;
+    readonly timeUnitS: number;
+    /** Steps between snapshots (undefined: none by count). */
+    readonly snapshotEvery: number | undefined;
+    /** Code times of snapshots by time interval or redshift, sorted, inside the span. */
+    readonly snapshotTimes: readonly number[];
+    readonly snapshotPrecision: "float64" | "float32";
+    readonly checkpointEvery: number;
+  };
 }
 
 const KM_S_MPC = 1e3 / MPC_M;
@@ -161,6 +180,9 @@ export function resolveRun(config: CheckedConfig, name: string, cwd: string): Re
     throw new ConfigError("output.time_unit", `"${timeUnit}" is not a time unit; use s, yr, kyr, Myr or Gyr`);
   }
   const outputDir = path.resolve(cwd, out.dir ?? path.join("output", name));
+  const snapshotTimes = resolveSnapshotTimes(config, background, startTime, endTime, units, ctx);
+  if (out.snapshot_every !== undefined) positive("output.snapshot_every", out.snapshot_every);
+  positive("output.checkpoint_every", out.checkpoint_every);
 
   return {
     name,
@@ -173,8 +195,47 @@ export function resolveRun(config: CheckedConfig, name: string, cwd: string): Re
     span: { startTime, endTime },
     initial,
     integrator: { safety: integ.safety, fixedStep, maxDlnA: integ.max_dln_a, massTolerance: integ.mass_tolerance, maxSteps: integ.max_steps },
-    output: { timeseriesEvery: out.timeseries_every, timeUnit, timeUnitS },
+    output: {
+      timeseriesEvery: out.timeseries_every,
+      timeUnit,
+      timeUnitS,
+      snapshotEvery: out.snapshot_every,
+      snapshotTimes,
+      snapshotPrecision: out.snapshot_precision,
+      checkpointEvery: out.checkpoint_every,
+    },
   };
+}
+
+function resolveSnapshotTimes(
+  config: CheckedConfig,
+  background: ResolvedBackground,
+  startTime: number,
+  endTime: number,
+  units: CodeUnits,
+  ctx: UnitContext,
+): number[] {
+  const out = config.output;
+  const times: number[] = [];
+  if (out.snapshot_interval !== undefined) {
+    const dt = positive("output.snapshot_interval", read("output.snapshot_interval", out.snapshot_interval, "time", ctx)) / units.timeS;
+    const count = Math.floor((endTime - startTime) / dt + 1e-9);
+    if (count > 100_000) throw new ConfigError("output.snapshot_interval", `would write ${count} snapshots; choose a longer interval`);
+    for (let k = 1; k <= count; k++) times.push(startTime + k * dt);
+  }
+  if (out.snapshot_redshifts !== undefined) {
+    if (background.kind !== "lcdm") throw new ConfigError("output.snapshot_redshifts", 'needs background.kind = "lcdm"; static runs use output.snapshot_interval');
+    const bg = makeBackground(background);
+    const zStart = config.span.start_redshift as number;
+    const zEnd = config.span.end_redshift ?? 0;
+    for (const z of out.snapshot_redshifts) {
+      if (!(z < zStart && z >= zEnd)) {
+        throw new ConfigError("output.snapshot_redshifts", `${z} is outside the run's redshift range (${zStart} → ${zEnd})`);
+      }
+      times.push(bg.time(1 / (1 + z)));
+    }
+  }
+  return [...new Set(times)].filter((t) => t > startTime && t <= endTime).sort((a, b) => a - b);
 }
 
 function unitText(quantity: string): string {
@@ -225,6 +286,22 @@ function resolveInitial(
         center: centre(ic.center, "initial.center"),
         velocity,
       };
+    }
+    case "solitons": {
+      if (config.grid.gravity === "none") throw new ConfigError("initial.kind", '"solitons" need gravity: set grid.gravity to "isolated" or "periodic"');
+      const solitons = ic.soliton.map((s, i) => {
+        const key = `initial.soliton[${i}]`;
+        return {
+          mass: mass(`${key}.mass`, s.mass),
+          center: centre(s.center, `${key}.center`),
+          velocity:
+            s.velocity === undefined
+              ? Array<number>(dims).fill(0)
+              : perAxis(`${key}.velocity`, s.velocity, dims).map((t) => read(`${key}.velocity`, t, "velocity", ctx) / (units.lengthM / units.timeS)),
+          phase: s.phase,
+        };
+      });
+      return { kind: "solitons", solitons };
     }
     case "ground-state": {
       if (config.grid.gravity === "none") throw new ConfigError("initial.kind", '"ground-state" needs gravity: set grid.gravity to "isolated" or "periodic"');

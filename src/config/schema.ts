@@ -83,7 +83,24 @@ export const groundStateSchema = z.strictObject({
   center: z.array(quantity).min(1).max(3).optional(),
 });
 
-export const initialSchema = z.discriminatedUnion("kind", [planeWaveSchema, packetSchema, groundStateSchema]);
+export const solitonSchema = z.strictObject({
+  /** Mass of this soliton. */
+  mass: quantity,
+  /** Centre, one length per axis. */
+  center: z.array(quantity).min(1).max(3),
+  /** Velocity, one per axis. @default at rest */
+  velocity: z.array(quantity).min(1).max(3).optional(),
+  /** Phase offset [radians]. @default 0 */
+  phase: z.number().default(0),
+});
+
+export const solitonsSchema = z.strictObject({
+  kind: z.literal("solitons"),
+  /** The solitons: a list of tables [[initial.soliton]]. */
+  soliton: z.array(solitonSchema).min(1),
+});
+
+export const initialSchema = z.discriminatedUnion("kind", [planeWaveSchema, packetSchema, groundStateSchema, solitonsSchema]);
 
 export const integratorSchema = z.strictObject({
   /** Safety factor s: kinetic phase ≤ 2πs and potential phase ≤ πs per step. @default 0.25 */
@@ -105,6 +122,16 @@ export const outputSchema = z.strictObject({
   timeseries_every: z.number().int().default(1),
   /** Time unit of the outputs, e.g. "Myr". @default the unit of span.duration, or "Gyr" */
   time_unit: z.string().optional(),
+  /** Write a snapshot every this many steps. @default off */
+  snapshot_every: z.number().int().optional(),
+  /** Write a snapshot at every multiple of this time after the start, e.g. "10 Myr". @default off */
+  snapshot_interval: quantity.optional(),
+  /** Expanding runs: write a snapshot at each of these redshifts. @default none */
+  snapshot_redshifts: z.array(z.number()).optional(),
+  /** Floating-point precision of ψ in snapshots. @default "float64" */
+  snapshot_precision: z.enum(["float64", "float32"]).default("float64"),
+  /** Write a checkpoint (for --resume) every this many steps. @default 1000 */
+  checkpoint_every: z.number().int().default(1000),
 });
 
 export const userConfigSchema = z.strictObject({

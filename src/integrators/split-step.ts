@@ -59,6 +59,20 @@ export class SplitStepper {
     this.updatePotential();
   }
 
+  /**
+   * Restore a saved state exactly (ψ, φ and mass as they were), without
+   * recomputing φ, so that a resumed run continues bit for bit.
+   */
+  restoreState(psi: Float64Array, phi: Float64Array, time: number, mass: number): void {
+    if (psi.length !== this.psi.length || phi.length !== this.phi.length) {
+      throw new RangeError(`saved state has ${phi.length} cells, grid has ${this.grid.size}`);
+    }
+    this.psi.set(psi);
+    this.phi.set(phi);
+    this.time = time;
+    this.mass = mass;
+  }
+
   /** Recompute φ and the mass from ψ. */
   updatePotential(): void {
     const psi = this.psi;

@@ -6,7 +6,8 @@
 import fs from "node:fs";
 import path from "node:path";
 
-function fsyncPath(p: string): void {
+/** fsync a file or folder by path. */
+export function fsyncPath(p: string): void {
   const fd = fs.openSync(p, "r");
   try {
     fs.fsyncSync(fd);
@@ -15,10 +16,38 @@ function fsyncPath(p: string): void {
   }
 }
 
+/** The hidden temporary name an atomic write of `file` uses (same folder, so rename is atomic). */
+export function temporaryPathFor(file: string): string {
+  const dir = path.dirname(path.resolve(file));
+  return path.join(dir, `.${path.basename(file)}.tmp-${process.pid}-${Date.now()}`);
+}
+
+/** Remove leftover temporary files of interrupted atomic writes in a folder; returns their names. */
+export function cleanStaleTemporaries(dir: string): string[] {
+  if (!fs.existsSync(dir)) return [];
+  const removed: string[] = [];
+  for (const name of fs.readdirSync(dir)) {
+    if (/^\..+\.tmp-\d+-\d+$/.test(name)) {
+      fs.unlinkSync(path.join(dir, name));
+      removed.push(name);
+    }
+  }
+  return removed;
+}
+
+/** fsync a folder, where the filesystem allows it (makes a rename durable). */
+export function fsyncFolder(dir: string): void {
+  try {
+    fsyncPath(dir);
+  } catch {
+    /* some filesystems cannot fsync a folder; the rename itself is done */
+  }
+}
+
 /** Write `data` to `file` atomically. */
 export function writeFileAtomic(file: string, data: string | Uint8Array): void {
   const dir = path.dirname(path.resolve(file));
-  const tmp = path.join(dir, `.${path.basename(file)}.tmp-${process.pid}-${Date.now()}`);
+  const tmp = temporaryPathFor(file);
   try {
     fs.writeFileSync(tmp, data);
     fsyncPath(tmp);
@@ -31,9 +60,5 @@ export function writeFileAtomic(file: string, data: string | Uint8Array): void {
     }
     throw e;
   }
-  try {
-    fsyncPath(dir);
-  } catch {
-    /* some filesystems cannot fsync a folder; the rename itself is done */
-  }
+  fsyncFolder(dir);
 }

@@ -4,6 +4,7 @@
  * the header or earlier blocks.
  */
 import fs from "node:fs";
+import { writeFileAtomic } from "./atomic.js";
 
 /** Writes rows of numbers (or text) under a fixed header. */
 export class CsvWriter {
@@ -11,10 +12,26 @@ export class CsvWriter {
   private pending: string[] = [];
   readonly columns: readonly string[];
 
-  constructor(file: string, columns: readonly string[]) {
+  /** Start a new table (`append` false) or continue an existing one after its last row. */
+  constructor(file: string, columns: readonly string[], append = false) {
     this.columns = columns;
-    this.fd = fs.openSync(file, "w");
-    fs.writeSync(this.fd, columns.join(",") + "\n");
+    this.fd = fs.openSync(file, append ? "a" : "w");
+    if (!append) fs.writeSync(this.fd, columns.join(",") + "\n");
+  }
+
+  /**
+   * Continue a table after keeping only the rows `keep` accepts (the table is
+   * rewritten atomically first). The header must match `columns`.
+   */
+  static resume(file: string, columns: readonly string[], keep: (cells: readonly string[]) => boolean): CsvWriter {
+    const lines = fs.existsSync(file) ? fs.readFileSync(file, "utf8").split("\n").filter((l) => l !== "") : [];
+    if (lines[0] !== columns.join(",")) {
+      writeFileAtomic(file, columns.join(",") + "\n");
+    } else {
+      const kept = lines.slice(1).filter((l) => keep(l.split(",")));
+      writeFileAtomic(file, [lines[0], ...kept].join("\n") + "\n");
+    }
+    return new CsvWriter(file, columns, true);
   }
 
   /** Queue one row; values are written with full double precision. */

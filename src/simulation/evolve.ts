@@ -13,6 +13,8 @@ import { chooseTimestep, type StepLimiter, type TimestepRules } from "../integra
 export interface EvolveLimits {
   /** End time [code time]. */
   readonly endTime: number;
+  /** Times [code time] the run must land on exactly (output times), in any order. */
+  readonly stops?: readonly number[];
   /** Largest allowed |M − M₀| / M₀. @default 1e-8 */
   readonly massTolerance: number;
   /** Step cap. */
@@ -29,6 +31,16 @@ export interface StepInfo {
   readonly massDrift: number;
   /** A buffer of 2N doubles that callbacks may overwrite until the next step. */
   readonly scratch: Float64Array;
+  /** The step ended exactly on one of `limits.stops` or the end time. */
+  readonly landed: boolean;
+}
+
+/** Where a resumed run left off. */
+export interface EvolveStart {
+  /** Steps already taken. */
+  readonly steps: number;
+  /** Mass at the very start of the run (the reference of the drift check). */
+  readonly mass0: number;
 }
 
 /** How a run ended. */
@@ -50,14 +62,22 @@ export interface EvolveHooks {
 }
 
 /** Advance `stepper` to `limits.endTime`. */
-export function evolve(stepper: SplitStepper, rules: TimestepRules, limits: EvolveLimits, hooks: EvolveHooks = {}): EvolveResult {
+export function evolve(
+  stepper: SplitStepper,
+  rules: TimestepRules,
+  limits: EvolveLimits,
+  hooks: EvolveHooks = {},
+  start?: EvolveStart,
+): EvolveResult {
   const fmt = hooks.formatTime ?? ((t: number) => t.toPrecision(6));
   const backup = new Float64Array(stepper.psi.length);
-  const mass0 = stepper.mass;
+  const mass0 = start?.mass0 ?? stepper.mass;
   const tEnd = limits.endTime;
-  let steps = 0;
+  let steps = start?.steps ?? 0;
   const tolerance = 1e-12 * Math.max(1, Math.abs(tEnd));
+  const stops = [...(limits.stops ?? []), tEnd].filter((t) => t <= tEnd).sort((a, b) => a - b);
   while (stepper.time < tEnd - tolerance) {
+    const target = stops.find((t) => t > stepper.time + tolerance) ?? tEnd;
     const requested = hooks.stopRequested?.();
     if (requested) return { status: "stopped", reason: requested, steps };
     if (steps >= limits.maxSteps) {
@@ -71,16 +91,19 @@ export function evolve(stepper: SplitStepper, rules: TimestepRules, limits: Evol
         steps,
       };
     }
-    if (stepper.time + dt >= tEnd - tolerance) {
-      dt = tEnd - stepper.time;
-      limiter = "end";
-    } else if (stepper.time + 1.5 * dt > tEnd) {
+    let landed = false;
+    if (stepper.time + dt >= target - tolerance) {
+      dt = target - stepper.time;
+      landed = true;
+      if (target === tEnd) limiter = "end";
+    } else if (stepper.time + 1.5 * dt > target) {
       // split the remainder evenly rather than leave a sliver of a step
-      dt = 0.5 * (tEnd - stepper.time);
+      dt = 0.5 * (target - stepper.time);
     }
     backup.set(stepper.psi);
     const t0 = stepper.time;
     stepper.step(dt);
+    if (landed) stepper.time = target; // exact, so output times are not off by round-off
     steps++;
     const drift = Math.abs(stepper.mass - mass0) / mass0;
     if (!Number.isFinite(stepper.mass) || !(drift <= limits.massTolerance)) {
@@ -97,7 +120,7 @@ export function evolve(stepper: SplitStepper, rules: TimestepRules, limits: Evol
         steps: steps - 1,
       };
     }
-    hooks.onStep?.(stepper, { step: steps, dt, limiter, massDrift: drift, scratch: backup });
+    hooks.onStep?.(stepper, { step: steps, dt, limiter, massDrift: drift, scratch: backup, landed });
   }
   return { status: "completed", steps };
 }

@@ -1,8 +1,8 @@
 /**
  * One run from a resolved config: build the grid, background, gravity and
- * initial field, advance to the end, and write the time series and a
- * summary into the run's output folder. The CLI and the tests call this
- * same function; progress goes to a reporter.
+ * initial field (or restore a checkpoint), advance to the end, and write the
+ * run folder (see outputs.ts and the README's output layout). The CLI and
+ * the tests call this same function; progress goes to a reporter.
  */
 import fs from "node:fs";
 import path from "node:path";
@@ -11,13 +11,17 @@ import { makePoissonSolver } from "../fields/poisson.js";
 import { makeBackground } from "../physics/cosmology/background.js";
 import { SplitStepper } from "../integrators/split-step.js";
 import { buildInitialField } from "../initial-conditions/build.js";
-import { fieldMass, kineticEnergy, maxDensity, potentialEnergy } from "../diagnostics/energies.js";
+import { kineticEnergy, maxDensity, potentialEnergy } from "../diagnostics/energies.js";
 import { CsvWriter } from "../io/csv-writer.js";
-import { writeFileAtomic } from "../io/atomic.js";
+import { cleanStaleTemporaries, writeFileAtomic } from "../io/atomic.js";
+import { loadHdf5 } from "../io/h5.js";
+import { readSnapshot, type CheckpointState } from "../io/snapshot.js";
 import type { ResolvedRun } from "../config/resolve.js";
+import { resolvedConfigToml, sha256 } from "../config/serialize.js";
 import { InputError } from "../core/errors.js";
 import { evolve, type StepInfo } from "./evolve.js";
 import { OutputScales } from "./scales.js";
+import { RunWriter, runPaths } from "./outputs.js";
 
 /** Where a run reports what it is doing. */
 export interface RunReporter {
@@ -43,6 +47,8 @@ export interface RunSummary {
   readonly start: { readonly t: number; readonly a: number; readonly z: number | null };
   readonly end: { readonly t: number; readonly a: number; readonly z: number | null };
   readonly mass_drift: number;
+  readonly snapshots: number;
+  readonly resumed_from_step?: number;
   readonly relaxation?: { readonly iterations: number; readonly converged: boolean };
 }
 
@@ -51,10 +57,15 @@ export interface RunOptions {
   readonly reporter?: RunReporter;
   /** Checked before every step; return a reason to stop (e.g. "interrupted (SIGINT)"). */
   readonly stopRequested?: () => string | undefined;
+  /** Continue from the run folder's checkpoint instead of starting afresh. */
+  readonly resume?: boolean;
+  /** Folder that relative paths in the written config are taken from. @default process.cwd() */
+  readonly cwd?: string;
 }
 
-/** Run a resolved config; the output folder must exist. */
-export function runSimulation(run: ResolvedRun, options: RunOptions = {}): RunSummary {
+/** Run a resolved config; the output folder must exist (see prepareOutputDir). */
+export async function runSimulation(run: ResolvedRun, options: RunOptions = {}): Promise<RunSummary> {
+  await loadHdf5();
   const reporter = options.reporter ?? silentReporter;
   const wallStart = performance.now();
   const scales = new OutputScales(run);
@@ -63,16 +74,38 @@ export function runSimulation(run: ResolvedRun, options: RunOptions = {}): RunSu
   const gravity = makePoissonSolver(grid, run.grid.gravity, run.grid.poisson);
   const expanding = background.kind !== "static";
   const { startTime, endTime } = run.span;
+  const paths = runPaths(run.outputDir);
+  cleanStaleTemporaries(run.outputDir);
+  cleanStaleTemporaries(paths.snapshots);
 
-  if (run.initial.kind === "ground-state") reporter.phase("relaxing the ground state");
-  const initial = buildInitialField(run.initial, grid, background, startTime, gravity, (info) =>
-    reporter.progress(Math.min(1, info.iteration / 400), `iteration ${info.iteration}`),
-  );
-  if (run.initial.kind === "ground-state") reporter.endPhase();
-
+  const configText = options.resume ? fs.readFileSync(paths.config, "utf8") : resolvedConfigToml(run, options.cwd ?? process.cwd());
+  if (!options.resume) writeFileAtomic(paths.config, configText);
+  const writer = new RunWriter(run, scales, configText, sha256(configText));
   const stepper = new SplitStepper(grid, background, gravity);
-  stepper.setState(initial.psi, startTime);
-  const mass0 = fieldMass(grid, stepper.psi);
+
+  let resumed: CheckpointState | undefined;
+  let relaxation: RunSummary["relaxation"];
+  if (options.resume) {
+    resumed = readSnapshot(paths.checkpoint, true).state as CheckpointState;
+    stepper.restoreState(resumed.psiCode, resumed.phiCode, resumed.timeCode, resumed.massCode);
+    writer.log(`resumed from the checkpoint at step ${resumed.steps}, t = ${scales.formatTime(resumed.timeCode)}`);
+  } else {
+    writer.log(`started ${run.name}: ${run.grid.cells.join("×")} cells, ${run.initial.kind}`);
+    if (run.initial.kind === "ground-state") reporter.phase("relaxing the ground state");
+    const initial = buildInitialField(run.initial, grid, background, startTime, gravity, (info) =>
+      reporter.progress(Math.min(1, info.iteration / 400), `iteration ${info.iteration}`),
+    );
+    if (initial.relaxation) {
+      reporter.endPhase();
+      relaxation = { iterations: initial.relaxation.iterations, converged: initial.relaxation.converged };
+      writer.log(`ground state relaxed in ${relaxation.iterations} iterations (converged: ${relaxation.converged})`);
+    }
+    stepper.setState(initial.psi, startTime);
+  }
+  const mass0 = resumed?.mass0Code ?? stepper.mass;
+  const stepsBefore = resumed?.steps ?? 0;
+  let snapshotsWritten = resumed?.snapshotsWritten ?? 0;
+  const wallBefore = resumed?.wallTimeS ?? 0;
 
   const u = scales.timeUnit;
   const energyUnit = "Msun_km2_s2";
@@ -88,7 +121,10 @@ export function runSimulation(run: ResolvedRun, options: RunOptions = {}): RunSu
     `total_${energyUnit}`,
     "max_density_Msun_kpc3",
   ];
-  const series = new CsvWriter(path.join(run.outputDir, "timeseries.csv"), columns);
+  const limiterColumn = columns.indexOf("limiter");
+  const series = resumed
+    ? CsvWriter.resume(paths.timeseries, columns, (cells) => Number(cells[0]) < stepsBefore || (Number(cells[0]) === stepsBefore && cells[limiterColumn] !== "stop"))
+    : new CsvWriter(paths.timeseries, columns);
   const scratch = new Float64Array(stepper.psi.length);
   const record = (step: number, dt: number, limiter: string, buffer: Float64Array): void => {
     const a = background.scaleFactor(stepper.time);
@@ -107,20 +143,37 @@ export function runSimulation(run: ResolvedRun, options: RunOptions = {}): RunSu
       scales.density(maxDensity(stepper.psi)),
     ]);
   };
-  record(0, 0, "start", scratch);
+  const checkpoint = (steps: number): void => {
+    series.flush();
+    writer.writeCheckpoint(stepper, {
+      mass0Code: mass0,
+      steps,
+      wallTimeS: wallBefore + (performance.now() - wallStart) / 1000,
+      snapshotsWritten,
+    });
+  };
+  if (!resumed) {
+    record(0, 0, "start", scratch);
+    writer.writeSnapshot(stepper, 0, snapshotsWritten++);
+  }
 
   const span = expanding ? Math.log(background.scaleFactor(endTime) / background.scaleFactor(startTime)) : endTime - startTime;
   const progressOf = (t: number): number =>
     expanding ? Math.log(background.scaleFactor(t) / background.scaleFactor(startTime)) / span : (t - startTime) / span;
-  let lastRecorded = 0;
+  const snapshotTimes = new Set(run.output.snapshotTimes);
+  let lastRecorded = stepsBefore;
   let lastReport = 0;
-  reporter.phase("evolving");
+  reporter.phase(resumed ? `evolving (resumed at step ${stepsBefore})` : "evolving");
   const onStep = (s: SplitStepper, info: StepInfo): void => {
     const atEnd = info.limiter === "end";
     if (info.step % run.output.timeseriesEvery === 0 || atEnd) {
       record(info.step, info.dt, info.limiter, info.scratch);
       lastRecorded = info.step;
     }
+    const byCount = run.output.snapshotEvery !== undefined && info.step % run.output.snapshotEvery === 0;
+    const byTime = info.landed && snapshotTimes.has(s.time);
+    if (byCount || byTime || atEnd) writer.writeSnapshot(s, info.step, snapshotsWritten++);
+    if (info.step % run.output.checkpointEvery === 0 && !atEnd) checkpoint(info.step);
     const now = performance.now();
     if (now - lastReport > 200 || atEnd) {
       lastReport = now;
@@ -132,10 +185,18 @@ export function runSimulation(run: ResolvedRun, options: RunOptions = {}): RunSu
   const result = evolve(
     stepper,
     { safety: run.integrator.safety, maxDlnA: run.integrator.maxDlnA, fixedStep: run.integrator.fixedStep },
-    { endTime, massTolerance: run.integrator.massTolerance, maxSteps: run.integrator.maxSteps },
+    { endTime, stops: run.output.snapshotTimes, massTolerance: run.integrator.massTolerance, maxSteps: run.integrator.maxSteps },
     { onStep, formatTime: (t) => scales.formatTime(t), ...(options.stopRequested ? { stopRequested: options.stopRequested } : {}) },
+    { steps: stepsBefore, mass0 },
   );
-  if (result.steps > lastRecorded && result.status === "stopped") record(result.steps, 0, "stop", scratch);
+  if (result.status === "stopped") {
+    if (result.steps > lastRecorded) record(result.steps, 0, "stop", scratch);
+    writer.log(`stopped: ${result.reason}`);
+    checkpoint(result.steps);
+    writer.writeSnapshot(stepper, result.steps, snapshotsWritten++);
+  } else {
+    writer.log(`completed after ${result.steps} steps`);
+  }
   series.close();
   reporter.endPhase();
 
@@ -148,14 +209,16 @@ export function runSimulation(run: ResolvedRun, options: RunOptions = {}): RunSu
     status: result.status,
     ...(result.reason ? { reason: result.reason } : {}),
     steps: result.steps,
-    wall_time_s: (performance.now() - wallStart) / 1000,
+    wall_time_s: wallBefore + (performance.now() - wallStart) / 1000,
     time_unit: u,
     start: point(startTime),
     end: point(stepper.time),
     mass_drift: Math.abs(stepper.mass - mass0) / mass0,
-    ...(initial.relaxation ? { relaxation: { iterations: initial.relaxation.iterations, converged: initial.relaxation.converged } } : {}),
+    snapshots: snapshotsWritten,
+    ...(resumed ? { resumed_from_step: resumed.steps } : {}),
+    ...(relaxation ? { relaxation } : {}),
   };
-  writeFileAtomic(path.join(run.outputDir, "summary.json"), JSON.stringify(summary, null, 2) + "\n");
+  writeFileAtomic(paths.summary, JSON.stringify(summary, null, 2) + "\n");
   return summary;
 }
 
@@ -163,9 +226,17 @@ export function runSimulation(run: ResolvedRun, options: RunOptions = {}): RunSu
 export function prepareOutputDir(dir: string, force: boolean): void {
   if (fs.existsSync(dir)) {
     if (!fs.statSync(dir).isDirectory()) throw new InputError(`output path ${dir} exists and is not a folder`);
-    const taken = ["summary.json", "timeseries.csv"].some((f) => fs.existsSync(path.join(dir, f)));
+    const p = runPaths(dir);
+    const taken = [p.summary, p.timeseries, p.config, p.checkpoint].some((f) => fs.existsSync(f));
     if (taken && !force) {
       throw new InputError(`output folder ${dir} already holds a run; pass --force to overwrite its files, or set output.dir`);
+    }
+    if (force) {
+      // remove only what psibox itself writes, never other files
+      for (const f of [p.summary, p.timeseries, p.checkpoint, p.log]) fs.rmSync(f, { force: true });
+      if (fs.existsSync(p.snapshots)) {
+        for (const name of fs.readdirSync(p.snapshots)) if (/^snap_\d{5}\.h5$/.test(name)) fs.rmSync(path.join(p.snapshots, name));
+      }
     }
   }
   fs.mkdirSync(dir, { recursive: true });

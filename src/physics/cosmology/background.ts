@@ -68,14 +68,12 @@ export class LcdmBackground implements Background {
   readonly kind = "lcdm" as const;
   readonly params: LcdmParameters;
   readonly omegaLambda: number;
-  private lastA = 1;
-  private lastT: number;
+  private readonly recent: [number, number][] = [];
   private growthTable: GrowthTable | undefined;
 
   constructor(params: LcdmParameters) {
     this.params = params;
     this.omegaLambda = 1 - params.omegaMatter - params.omegaRadiation;
-    this.lastT = this.time(1);
   }
 
   /** E(a) = H(a)/H0. */
@@ -99,17 +97,17 @@ export class LcdmBackground implements Background {
     return integrate(f, 0, Math.sqrt(a)) / hubble0;
   }
 
-  /** a(t) by Newton iteration from the last solution (dt/da = 1/(a H)). */
+  /**
+   * a(t) by Newton iteration (dt/da = 1/(a H)) from the matter-era guess
+   * a ∝ t^(2/3). The result depends on t alone, never on earlier calls, so a
+   * resumed run reproduces an uninterrupted one bit for bit; the last few
+   * answers are remembered by their exact t.
+   */
   scaleFactor(t: number): number {
-    if (t === this.lastT) return this.lastA;
-    let a = this.lastA;
-    let ta = this.lastT;
-    if (t < 0.5 * ta || t > 2 * ta) {
-      // far from the last point: start from the matter-era guess a ∝ t^(2/3)
-      a = Math.pow(1.5 * this.params.hubble0 * Math.sqrt(this.params.omegaMatter) * t, 2 / 3);
-      ta = this.time(a);
-    }
-    for (let iter = 0; iter < 60; iter++) {
+    for (const [tc, ac] of this.recent) if (tc === t) return ac;
+    let a = Math.pow(1.5 * this.params.hubble0 * Math.sqrt(this.params.omegaMatter) * t, 2 / 3);
+    let ta = this.time(a);
+    for (let iter = 0; iter < 100; iter++) {
       const da = (t - ta) * a * this.hubble(a);
       const next = Math.max(a + da, 0.5 * a);
       if (Math.abs(next - a) <= 1e-15 * a) {
@@ -119,8 +117,8 @@ export class LcdmBackground implements Background {
       ta += this.interval(a, next, 0);
       a = next;
     }
-    this.lastA = a;
-    this.lastT = t;
+    this.recent.unshift([t, a]);
+    if (this.recent.length > 8) this.recent.pop();
     return a;
   }
 

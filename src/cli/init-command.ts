@@ -1,0 +1,34 @@
+/** `psibox init TEMPLATE [DIR]` and `psibox init --list`: starter configs from the shipped templates. */
+import fs from "node:fs";
+import path from "node:path";
+import { fileURLToPath } from "node:url";
+import { InputError } from "../core/errors.js";
+
+/** The folder of shipped templates (configs/ in the package). */
+export function templateDir(): string {
+  return path.resolve(path.dirname(fileURLToPath(import.meta.url)), "../../configs");
+}
+
+/** Template names and their one-line descriptions (the first comment line). */
+export function listTemplates(): { name: string; description: string }[] {
+  return fs
+    .readdirSync(templateDir())
+    .filter((f) => f.endsWith(".toml"))
+    .sort()
+    .map((f) => {
+      const first = fs.readFileSync(path.join(templateDir(), f), "utf8").split("\n")[0] ?? "";
+      return { name: f.replace(/\.toml$/, ""), description: first.replace(/^#\s*/, "") };
+    });
+}
+
+/** Write a template into a folder; returns the written path. */
+export function initTemplate(name: string, dir: string, force: boolean): string {
+  const templates = listTemplates();
+  const t = templates.find((x) => x.name === name);
+  if (!t) throw new InputError(`unknown template "${name}"; choose one of: ${templates.map((x) => x.name).join(", ")}`);
+  fs.mkdirSync(dir, { recursive: true });
+  const target = path.join(dir, `${name}.toml`);
+  if (fs.existsSync(target) && !force) throw new InputError(`${target} exists; pass --force to overwrite it`);
+  fs.copyFileSync(path.join(templateDir(), `${name}.toml`), target);
+  return target;
+}

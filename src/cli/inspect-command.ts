@@ -1,0 +1,46 @@
+/** `psibox inspect FILE`: a snapshot's metadata and field statistics. */
+import { loadHdf5 } from "../io/h5.js";
+import { readSnapshot } from "../io/snapshot.js";
+import { fieldStats, loadField } from "../simulation/from-snapshot.js";
+
+function fmt(x: number): string {
+  return Number.isInteger(x) ? String(x) : x.toPrecision(6);
+}
+
+/** Inspect a snapshot; returns the exit code. */
+export async function inspectCommand(file: string, json: boolean): Promise<number> {
+  await loadHdf5();
+  const snap = readSnapshot(file);
+  const stats = fieldStats(loadField(snap));
+  const m = snap.meta;
+  if (json) {
+    const { config, ...rest } = m;
+    process.stdout.write(JSON.stringify({ file, ...rest, config_toml: config, stats }, null, 2) + "\n");
+    return 0;
+  }
+  const bg =
+    m.background.kind === "lcdm"
+      ? `flat ΛCDM, H0 = ${fmt(m.background.hubbleKmSMpc)} km/s/Mpc, Ω_m = ${fmt(m.background.omegaMatter)}, Ω_r = ${fmt(m.background.omegaRadiation)}`
+      : "static";
+  const rows: [string, string][] = [
+    ["file", file],
+    ["kind", `${m.kind} (${m.software})`],
+    ["step", String(m.step)],
+    ["time", `${fmt(m.time)} ${m.timeUnit}`],
+    ...(m.redshift !== null ? ([["scale factor, redshift", `${fmt(m.scaleFactor)}, z = ${fmt(m.redshift)}`]] as [string, string][]) : []),
+    ["grid", `${m.cells.join("×")} cells, box ${m.boxSizeKpc.map(fmt).join(" × ")} kpc`],
+    ["particle mass", `${fmt(m.particleMassEv)} eV`],
+    ["gravity", m.gravity],
+    ["background", bg],
+    ["mass", `${fmt(stats.massMsun)} Msun`],
+    ["density min / mean / max", `${fmt(stats.minDensityMsunKpc3)} / ${fmt(stats.meanDensityMsunKpc3)} / ${fmt(stats.maxDensityMsunKpc3)} Msun/kpc^3`],
+    ["kinetic energy K", `${fmt(stats.kineticMsunKm2S2)} Msun (km/s)^2`],
+    ["potential energy W", `${fmt(stats.potentialMsunKm2S2)} Msun (km/s)^2`],
+    ["total energy K + W", `${fmt(stats.totalMsunKm2S2)} Msun (km/s)^2`],
+    ["virial ratio 2K/|W|", fmt(stats.virialRatio)],
+    ["config sha256", m.configSha256.slice(0, 16) + "…"],
+  ];
+  const width = Math.max(...rows.map(([k]) => k.length));
+  process.stdout.write(rows.map(([k, v]) => `${k.padEnd(width)}  ${v}`).join("\n") + "\n");
+  return 0;
+}

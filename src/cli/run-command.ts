@@ -1,0 +1,68 @@
+/** `psibox run CONFIG` and `psibox run --resume DIR`. */
+import fs from "node:fs";
+import path from "node:path";
+import { InputError } from "../core/errors.js";
+import { checkConfig, loadConfig, readTomlFile } from "../config/load.js";
+import { resolveRun, type ResolvedRun } from "../config/resolve.js";
+import { prepareOutputDir, runSimulation, silentReporter } from "../simulation/run.js";
+import { runPaths } from "../simulation/outputs.js";
+import { TextReporter } from "./progress.js";
+import { describeRun } from "./describe.js";
+
+export interface RunFlags {
+  set: string[];
+  force: boolean;
+  quiet: boolean;
+  resume?: string;
+}
+
+function resumeTarget(dir: string): ResolvedRun {
+  const p = runPaths(path.resolve(dir));
+  if (!fs.existsSync(p.config)) throw new InputError(`${dir}: not a psibox run folder (no config.toml)`);
+  if (!fs.existsSync(p.checkpoint)) throw new InputError(`${dir}: has no checkpoint.h5 to resume from`);
+  const run = resolveRun(checkConfig(readTomlFile(p.config)), path.basename(path.resolve(dir)), process.cwd());
+  return { ...run, outputDir: path.resolve(dir) };
+}
+
+/** Run or resume; returns the exit code. */
+export async function runCommand(configFile: string | undefined, flags: RunFlags): Promise<number> {
+  let run: ResolvedRun;
+  if (flags.resume !== undefined) {
+    if (configFile !== undefined) throw new InputError("give either a config file or --resume DIR, not both");
+    if (flags.set.length > 0) throw new InputError("--set cannot change a resumed run; edit its config.toml instead");
+    run = resumeTarget(flags.resume);
+    const summary = runPaths(run.outputDir).summary;
+    if (fs.existsSync(summary) && JSON.parse(fs.readFileSync(summary, "utf8")).status === "completed") {
+      process.stdout.write(`${flags.resume}: the run has already completed; nothing to resume\n`);
+      return 0;
+    }
+  } else {
+    if (configFile === undefined) throw new InputError("give a config file (psibox run CONFIG) or --resume DIR");
+    const config = loadConfig(configFile, flags.set);
+    run = resolveRun(config, path.basename(configFile).replace(/\.[^.]*$/, ""), process.cwd());
+    prepareOutputDir(run.outputDir, flags.force);
+  }
+  const reporter = flags.quiet ? silentReporter : new TextReporter();
+  if (!flags.quiet) process.stderr.write(describeRun(run) + "\n");
+  let interrupted: string | undefined;
+  const handlers = (["SIGINT", "SIGTERM"] as const).map((signal) => {
+    const h = () => {
+      interrupted = `interrupted (${signal})`;
+    };
+    process.once(signal, h);
+    return [signal, h] as const;
+  });
+  try {
+    const summary = await runSimulation(run, { reporter, stopRequested: () => interrupted, resume: flags.resume !== undefined });
+    const where = path.relative(process.cwd(), run.outputDir) || ".";
+    if (summary.status === "completed") {
+      process.stdout.write(`completed ${summary.steps} steps in ${summary.wall_time_s.toFixed(1)} s; outputs in ${where}\n`);
+      return 0;
+    }
+    const hint = interrupted ? `; continue with: psibox run --resume ${where}` : "";
+    process.stderr.write(`psibox: run stopped: ${summary.reason}; outputs up to the last good step in ${where}${hint}\n`);
+    return interrupted ? 130 : 3;
+  } finally {
+    for (const [signal, h] of handlers) process.removeListener(signal, h);
+  }
+}

@@ -1,0 +1,104 @@
+/**
+ * What a run writes besides its time series: snapshots, checkpoints and the
+ * run log, all in the run folder:
+ *   config.toml             the resolved config
+ *   snapshots/snap_NNNNN.h5 snapshots (NNNNN counts from 0, the initial state)
+ *   checkpoint.h5           the latest checkpoint (a snapshot plus the exact code-unit state)
+ *   run.log                 one line per event
+ */
+import fs from "node:fs";
+import path from "node:path";
+import type { ResolvedRun } from "../config/resolve.js";
+import type { SplitStepper } from "../integrators/split-step.js";
+import { writeSnapshot, type CheckpointState, type SnapshotMeta } from "../io/snapshot.js";
+import { KG_PER_EV, MPC_M } from "../physics/constants.js";
+import { VERSION } from "../version.js";
+import type { OutputScales } from "./scales.js";
+
+/** Paths of a run folder. */
+export function runPaths(dir: string) {
+  return {
+    config: path.join(dir, "config.toml"),
+    timeseries: path.join(dir, "timeseries.csv"),
+    summary: path.join(dir, "summary.json"),
+    log: path.join(dir, "run.log"),
+    checkpoint: path.join(dir, "checkpoint.h5"),
+    snapshots: path.join(dir, "snapshots"),
+    snapshot: (index: number) => path.join(dir, "snapshots", `snap_${String(index).padStart(5, "0")}.h5`),
+  };
+}
+
+/** Writes a run's snapshots, checkpoints and log lines. */
+export class RunWriter {
+  private readonly run: ResolvedRun;
+  private readonly scales: OutputScales;
+  private readonly configText: string;
+  private readonly configHash: string;
+  readonly paths: ReturnType<typeof runPaths>;
+
+  constructor(run: ResolvedRun, scales: OutputScales, configText: string, configHash: string) {
+    this.run = run;
+    this.scales = scales;
+    this.configText = configText;
+    this.configHash = configHash;
+    this.paths = runPaths(run.outputDir);
+    fs.mkdirSync(this.paths.snapshots, { recursive: true });
+  }
+
+  /** Append a line to run.log. */
+  log(text: string): void {
+    fs.appendFileSync(this.paths.log, `${new Date().toISOString()} ${text}\n`);
+  }
+
+  private meta(stepper: SplitStepper, step: number, kind: "snapshot" | "checkpoint"): SnapshotMeta {
+    const run = this.run;
+    const a = stepper.background.scaleFactor(stepper.time);
+    const kpc = this.run.lengthUnitM / (MPC_M / 1e3);
+    const bg = run.background;
+    return {
+      kind,
+      software: `psibox ${VERSION}`,
+      step,
+      time: this.scales.time(stepper.time),
+      timeUnit: this.scales.timeUnit,
+      scaleFactor: a,
+      redshift: bg.kind === "lcdm" ? 1 / a - 1 : null,
+      cells: run.grid.cells,
+      boxSizeKpc: run.grid.lengths.map((l) => l * kpc),
+      particleMassEv: run.particleMassKg / KG_PER_EV,
+      gravity: run.grid.gravity,
+      background:
+        bg.kind === "lcdm"
+          ? { kind: "lcdm", hubbleKmSMpc: bg.littleH * 100, omegaMatter: bg.omegaMatter, omegaRadiation: bg.omegaRadiation }
+          : { kind: "static" },
+      massMsun: this.scales.massMsun(stepper.mass),
+      config: this.configText,
+      configSha256: this.configHash,
+    };
+  }
+
+  private physicalPsi(psi: Float64Array): Float64Array {
+    const f = Math.sqrt(this.scales.density(1));
+    const out = new Float64Array(psi.length);
+    for (let i = 0; i < psi.length; i++) out[i] = (psi[i] as number) * f;
+    return out;
+  }
+
+  /** Write snapshot number `index` of the current state. */
+  writeSnapshot(stepper: SplitStepper, step: number, index: number): string {
+    const file = this.paths.snapshot(index);
+    writeSnapshot(file, { meta: this.meta(stepper, step, "snapshot"), psi: this.physicalPsi(stepper.psi) }, this.run.output.snapshotPrecision);
+    this.log(`snapshot ${path.basename(file)} at step ${step}, t = ${this.scales.formatTime(stepper.time)}`);
+    return file;
+  }
+
+  /** Write the checkpoint (replacing the previous one atomically). */
+  writeCheckpoint(stepper: SplitStepper, state: Omit<CheckpointState, "psiCode" | "phiCode" | "timeCode" | "massCode">): void {
+    writeSnapshot(this.paths.checkpoint, {
+      meta: this.meta(stepper, state.steps, "checkpoint"),
+      psi: this.physicalPsi(stepper.psi),
+      state: { ...state, psiCode: stepper.psi, phiCode: stepper.phi, timeCode: stepper.time, massCode: stepper.mass },
+    });
+    this.log(`checkpoint at step ${state.steps}, t = ${this.scales.formatTime(stepper.time)}`);
+  }
+}

@@ -1,0 +1,105 @@
+// Snapshot files: a round trip through psibox's reader and a read by an independent HDF5 tool (h5dump).
+import { spawnSync } from "node:child_process";
+import fs from "node:fs";
+import os from "node:os";
+import path from "node:path";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { loadHdf5 } from "../../src/io/h5.js";
+import { readSnapshot, writeSnapshot, type Snapshot, type SnapshotMeta } from "../../src/io/snapshot.js";
+import { seededRandom } from "../helpers/fields.js";
+
+let dir: string;
+beforeAll(async () => {
+  await loadHdf5();
+  dir = fs.mkdtempSync(path.join(os.tmpdir(), "psibox-io-"));
+});
+afterAll(() => fs.rmSync(dir, { recursive: true, force: true }));
+
+function snapshot(cells: number[], kind: "snapshot" | "checkpoint" = "snapshot"): Snapshot {
+  const n = cells.reduce((p, c) => p * c, 1);
+  const rnd = seededRandom(cells.length);
+  const psi = Float64Array.from({ length: 2 * n }, () => 1e3 * rnd());
+  const meta: SnapshotMeta = {
+    kind,
+    software: "psibox test",
+    step: 42,
+    time: 123.456789,
+    timeUnit: "Myr",
+    scaleFactor: 0.25,
+    redshift: 3,
+    cells,
+    boxSizeKpc: cells.map((c) => c * 0.5),
+    particleMassEv: 1e-22,
+    gravity: "periodic",
+    background: { kind: "lcdm", hubbleKmSMpc: 67.36, omegaMatter: 0.3153, omegaRadiation: 0 },
+    massMsun: 1.5e10,
+    config: '[grid]\ncells = [4]\nbox = "2 kpc"\n',
+    configSha256: "0123abcd",
+  };
+  return kind === "checkpoint"
+    ? { meta, psi, state: { psiCode: psi, phiCode: psi.subarray(0, n), timeCode: 7.5, massCode: 3.25, mass0Code: 3.25, steps: 42, wallTimeS: 9, snapshotsWritten: 3 } }
+    : { meta, psi };
+}
+
+describe("snapshot round trip", () => {
+  for (const cells of [[16], [8, 16], [4, 8, 16]]) {
+    for (const precision of ["float64", "float32"] as const) {
+      it(`${cells.length}D ${precision}: metadata exact, field exact (float64) or to float32 rounding`, () => {
+        const snap = snapshot(cells);
+        const file = path.join(dir, `s-${cells.length}-${precision}.h5`);
+        writeSnapshot(file, snap, precision);
+        const back = readSnapshot(file);
+        expect(back.meta).toEqual(snap.meta);
+        if (precision === "float64") expect(Array.from(back.psi)).toEqual(Array.from(snap.psi));
+        else for (let i = 0; i < snap.psi.length; i++) expect(back.psi[i]).toBe(Math.fround(snap.psi[i]!));
+      });
+    }
+  }
+
+  it("a checkpoint keeps its exact code-unit state", () => {
+    const snap = snapshot([8, 8], "checkpoint");
+    const file = path.join(dir, "cp.h5");
+    writeSnapshot(file, snap);
+    const back = readSnapshot(file, true);
+    expect(back.state?.steps).toBe(42);
+    expect(Array.from(back.state!.phiCode)).toEqual(Array.from(snap.state!.phiCode));
+    expect(back.state?.mass0Code).toBe(3.25);
+  });
+
+  it("rejects missing, truncated and non-HDF5 files with a message naming the file", () => {
+    const good = path.join(dir, "good.h5");
+    writeSnapshot(good, snapshot([8, 8]));
+    const truncated = path.join(dir, "truncated.h5");
+    fs.writeFileSync(truncated, fs.readFileSync(good).subarray(0, 2000));
+    const text = path.join(dir, "text.h5");
+    fs.writeFileSync(text, "not hdf5");
+    expect(() => readSnapshot(path.join(dir, "missing.h5"))).toThrow(/missing\.h5: no such file/);
+    expect(() => readSnapshot(truncated)).toThrow(/truncated\.h5: not a readable HDF5 file/);
+    expect(() => readSnapshot(text)).toThrow(/text\.h5: not a readable HDF5 file \(Not an HDF5 file\)/);
+    expect(() => readSnapshot(good, true)).toThrow(/not a checkpoint/);
+  });
+});
+
+// An independent reader: h5dump from the HDF5 project's own tools (Debian hdf5-tools; .ci/run installs it).
+const h5dump = spawnSync("h5dump", ["--version"], { encoding: "utf8" }).status === 0;
+describe.runIf(h5dump || process.env["CI"] === "true")("snapshot read by h5dump", () => {
+  it("shows the attributes and the field values psibox wrote", () => {
+    const snap = snapshot([4, 8]);
+    const file = path.join(dir, "dump.h5");
+    writeSnapshot(file, snap);
+    const attrs = spawnSync("h5dump", ["-A", file], { encoding: "utf8" });
+    expect(attrs.status).toBe(0);
+    expect(attrs.stdout).toMatch(/ATTRIBUTE "format" \{[\s\S]*?"psibox snapshot"/);
+    expect(attrs.stdout).toMatch(/ATTRIBUTE "time" \{[\s\S]*?DATA \{\s*\(0\): 123\.457/);
+    expect(attrs.stdout).toMatch(/ATTRIBUTE "time_units" \{[\s\S]*?"Myr"/);
+    expect(attrs.stdout).toMatch(/ATTRIBUTE "cells" \{[\s\S]*?\(0\): 4, 8/);
+    expect(attrs.stdout).toMatch(/DATASET "psi" \{\s*DATATYPE\s+H5T_IEEE_F64LE\s*DATASPACE\s+SIMPLE \{ \( 4, 8, 2 \)/);
+    // the raw values, exported by h5dump as little-endian binary
+    const raw = path.join(dir, "dump.bin");
+    const data = spawnSync("h5dump", ["-d", "/field/psi", "-b", "LE", "-o", raw, file], { encoding: "utf8" });
+    expect(data.status).toBe(0);
+    const bytes = fs.readFileSync(raw);
+    const dumped = new Float64Array(bytes.buffer, bytes.byteOffset, bytes.byteLength / 8);
+    expect(Array.from(dumped)).toEqual(Array.from(snap.psi));
+  });
+});
