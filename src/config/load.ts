@@ -79,7 +79,7 @@ export function checkConfig(raw: unknown): CheckedConfig {
 
 function issueToError(issue: z.core.$ZodIssue, raw: unknown): ConfigError {
   const path = issue.path.map(String);
-  const key = path.join(".");
+  const key = issue.path.map((p, i) => (typeof p === "number" ? `[${p}]` : `${i > 0 ? "." : ""}${String(p)}`)).join("");
   switch (issue.code) {
     case "unrecognized_keys": {
       const section = key === "" ? "" : `${key}.`;
@@ -103,8 +103,11 @@ function issueToError(issue: z.core.$ZodIssue, raw: unknown): ConfigError {
     case "invalid_value":
       return new ConfigError(key, `must be one of ${issue.values.map((v) => JSON.stringify(v)).join(", ")}`);
     case "too_small":
-    case "too_big":
-      return new ConfigError(key, issue.message.replace(/^Too (small|big): expected /, "expected "));
+    case "too_big": {
+      const bound = Number((issue as unknown as { minimum?: number; maximum?: number }).minimum ?? (issue as unknown as { maximum?: number }).maximum);
+      const what = issue.origin === "array" ? `${bound} item${bound === 1 ? "" : "s"}` : String(bound);
+      return new ConfigError(key, `expected ${issue.code === "too_small" ? "at least" : "at most"} ${what}`);
+    }
     default:
       return new ConfigError(key, issue.message);
   }
@@ -114,6 +117,7 @@ function describeExpected(expected: string): string {
   if (expected === "string") return 'a quoted value with a unit, e.g. "10 kpc"';
   if (expected === "int") return "a whole number";
   if (expected === "object") return "a [section]";
+  if (expected === "array") return "a list such as [1, 0]";
   return `a ${expected}`;
 }
 

@@ -141,3 +141,48 @@ describe("psibox run", () => {
     expect(summary.reason).toMatch(/the last good state is kept/);
   });
 });
+
+describe("psibox init", () => {
+  it("lists the templates, writes one that runs, and refuses to overwrite it", () => {
+    const list = psibox(["init", "--list"]);
+    expect(list.code).toBe(0);
+    for (const name of ["cosmological-box-3d", "soliton-merger-2d", "plane-wave-collapse-1d", "ground-state-3d", "jeans-collapse-2d"]) {
+      expect(list.stdout).toMatch(new RegExp(`^${name} +\\S`, "m"));
+    }
+    const r = psibox(["init", "plane-wave-collapse-1d", "mine"]);
+    expect(r.code).toBe(0);
+    expect(fs.readFileSync(path.join(work, "mine/plane-wave-collapse-1d.toml"), "utf8")).toMatch(/^# Plane-wave \(pancake\) collapse/);
+    expect(psibox(["init", "plane-wave-collapse-1d", "mine"]).code).toBe(2);
+    const bad = psibox(["init", "nope"]);
+    expect(bad.code).toBe(2);
+    expect(bad.stderr).toMatch(/^psibox: unknown template "nope"; choose one of: cosmological-box-3d, /);
+  });
+});
+
+describe("psibox inspect", () => {
+  it("prints a snapshot's metadata and statistics, as a table or JSON", () => {
+    writeConfig("insp.toml", PACKET.replace('duration = "10 Myr"', 'duration = "4 Myr"') + '\n[output]\nsnapshot_interval = "2 Myr"\n');
+    expect(psibox(["run", "insp.toml", "-q"]).code).toBe(0);
+    const snaps = fs.readdirSync(path.join(work, "output/insp/snapshots"));
+    expect(snaps).toEqual(["snap_00000.h5", "snap_00001.h5", "snap_00002.h5"]);
+    const table = psibox(["inspect", "output/insp/snapshots/snap_00002.h5"]);
+    expect(table.code).toBe(0);
+    expect(table.stdout).toMatch(/^time +4 Myr$/m);
+    expect(table.stdout).toMatch(/^mass +1\.00000e\+8 Msun$/m);
+    const json = JSON.parse(psibox(["inspect", "output/insp/snapshots/snap_00001.h5", "--json"]).stdout);
+    expect(json.time).toBeCloseTo(2, 12);
+    expect(json.cells).toEqual([256]);
+    expect(json.stats.massMsun / 1e8).toBeCloseTo(1, 10);
+    // the kinetic energy read back from the file equals the run's own time-series value at that step
+    const rows = readCsv(path.join(work, "output/insp/timeseries.csv"));
+    const row = rows.find((r) => Number(r["step"]) === json.step)!;
+    expect(json.stats.kineticMsunKm2S2 / Number(row["kinetic_Msun_km2_s2"])).toBeCloseTo(1, 9);
+  });
+
+  it("rejects a file that is not a snapshot", () => {
+    fs.writeFileSync(path.join(work, "plain.h5"), "hello");
+    const r = psibox(["inspect", "plain.h5"]);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toBe("psibox: plain.h5: not a readable HDF5 file (Not an HDF5 file)\n");
+  });
+});
