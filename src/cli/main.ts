@@ -10,6 +10,7 @@ import { VERSION } from "../version.js";
 import { runCommand, type RunFlags } from "./run-command.js";
 import { initTemplate, listTemplates } from "./init-command.js";
 import { inspectCommand } from "./inspect-command.js";
+import { importCommand, type ImportFlags } from "./import-command.js";
 
 function collect(value: string, previous: string[]): string[] {
   return [...previous, value];
@@ -67,6 +68,27 @@ export async function main(argv: readonly string[]): Promise<number> {
     .option("--json", "print JSON for scripts", false)
     .action(async (file: string, flags: { json: boolean }) => {
       exitCode = await inspectCommand(file, flags.json);
+    });
+
+  program
+    .command("import")
+    .description("convert a complex field from a .npy or HDF5 file into a psibox snapshot")
+    .argument("<source>", "a .npy file, or an HDF5 file with --dataset or --re/--im")
+    .requiredOption("--out <file>", "the snapshot to write (.h5)")
+    .requiredOption("--box <length>", 'box side(s), e.g. "20 kpc" or "20 kpc, 10 kpc"')
+    .requiredOption("--particle-mass <mass>", 'particle mass, e.g. "1e-22 eV"')
+    .option("--dataset <path>", "HDF5: a complex dataset, or a real one with a last axis (re, im)")
+    .option("--re <path>", "HDF5: dataset of the real part")
+    .option("--im <path>", "HDF5: dataset of the imaginary part")
+    .option("--density-unit <unit>", "unit of |ψ|² in the source", "Msun/kpc^3")
+    .option("--time <time>", 'time of the field, e.g. "1.2 Gyr"')
+    .option("--redshift <z>", "redshift of the field (makes the snapshot comoving, flat ΛCDM)")
+    .option("--hubble <rate>", "H0 with --redshift", "67.36 km/s/Mpc")
+    .option("--omega-matter <value>", "Ω_m with --redshift", "0.3153")
+    .option("--gravity <kind>", "periodic, isolated or none", "periodic")
+    .option("--force", "overwrite the output file", false)
+    .action(async (source: string, flags: ImportFlags) => {
+      exitCode = await importCommand(source, flags);
     });
 
   try {
