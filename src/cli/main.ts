@@ -11,6 +11,8 @@ import { runCommand, type RunFlags } from "./run-command.js";
 import { initTemplate, listTemplates } from "./init-command.js";
 import { inspectCommand } from "./inspect-command.js";
 import { importCommand, type ImportFlags } from "./import-command.js";
+import { clocksCommand, type ClocksFlags } from "./clocks-command.js";
+import { estimateCommand, type EstimateFlags } from "./estimate-command.js";
 
 function collect(value: string, previous: string[]): string[] {
   return [...previous, value];
@@ -89,6 +91,35 @@ export async function main(argv: readonly string[]): Promise<number> {
     .option("--force", "overwrite the output file", false)
     .action(async (source: string, flags: ImportFlags) => {
       exitCode = await importCommand(source, flags);
+    });
+
+  program
+    .command("clocks")
+    .description("the quantum sidecar on saved snapshots: mode coefficients and the squeezing, phase-diffusion and breakdown clocks")
+    .argument("<paths...>", "a run folder, snapshot files, or both (imported snapshots too)")
+    .option("--region <kind>", "box (whole box), sphere, cube or densest (a sphere around the densest cell)", "box")
+    .option("--center <lengths>", 'region centre, one length per axis, e.g. "10 kpc, 10 kpc"')
+    .option("--radius <length>", "sphere radius or cube half-width")
+    .option("--squeezing-db <dB>", "squeezing level to time", "-10")
+    .option("--out <dir>", "where to write snapshot-clocks.csv and .json (default: the run folder, or .)")
+    .option("--json", "print the summary as JSON", false)
+    .action(async (paths: string[], flags: ClocksFlags) => {
+      exitCode = await clocksCommand(paths, flags);
+    });
+
+  program
+    .command("estimate")
+    .description("order-of-magnitude squeezing, phase-diffusion and breakdown times from physical inputs alone")
+    .requiredOption("--particle-mass <mass>", 'particle mass, e.g. "1e-5 eV"')
+    .option("--velocity <v>", 'velocity dispersion, e.g. "200 km/s" or "1e-3 c"')
+    .option("--halo-mass <mass>", 'object mass, e.g. "1e12 Msun"')
+    .option("--radius <length>", 'object radius, e.g. "100 kpc"')
+    .option("--density <density>", 'density for the breakdown rate, e.g. "0.3 GeV/cm^3" or "1e7 Msun/kpc^3"')
+    .option("--mode-mass <mass>", "mass in the condensate mode (default: the halo mass)")
+    .option("--squeezing-db <dB>", "squeezing level to time", "-10")
+    .option("--json", "print JSON", false)
+    .action((flags: EstimateFlags) => {
+      exitCode = estimateCommand(flags);
     });
 
   try {

@@ -8,6 +8,7 @@ import { prepareOutputDir, runSimulation, silentReporter } from "../simulation/r
 import { runPaths } from "../simulation/outputs.js";
 import { TextReporter } from "./progress.js";
 import { describeRun } from "./describe.js";
+import type { ClockReport } from "../simulation/sidecar-report.js";
 
 export interface RunFlags {
   set: string[];
@@ -57,6 +58,7 @@ export async function runCommand(configFile: string | undefined, flags: RunFlags
     const where = path.relative(process.cwd(), run.outputDir) || ".";
     if (summary.status === "completed") {
       process.stdout.write(`completed ${summary.steps} steps in ${summary.wall_time_s.toFixed(1)} s; outputs in ${where}\n`);
+      if (summary.clocks) process.stdout.write(formatClocks(summary.clocks));
       return 0;
     }
     const hint = interrupted ? `; continue with: psibox run --resume ${where}` : "";
@@ -65,4 +67,22 @@ export async function runCommand(configFile: string | undefined, flags: RunFlags
   } finally {
     for (const [signal, h] of handlers) process.removeListener(signal, h);
   }
+}
+
+const CLOCK_TITLES: Record<ClockReport["name"], string> = {
+  "squeezing-onset": "squeezing onset (N|X| = 1)",
+  "squeezing-level": "squeezing level",
+  "phase-diffusion": "phase diffusion (1/e)",
+  "classical-breakdown": "classical breakdown",
+};
+
+/** One line per clock: when it rang (or will), and how that compares with the run and the universe. */
+export function formatClocks(clocks: readonly ClockReport[]): string {
+  const width = Math.max(...Object.values(CLOCK_TITLES).map((t) => t.length));
+  const lines = clocks.map((c) => {
+    const when = c.time_s === null ? "never" : `${c.reached ? "at" : "projected at"} ${c.time}`;
+    const ratios = c.ratio_to_span === null ? "" : ` (${c.ratio_to_span.toPrecision(3)} × the run, ${c.ratio_to_age_of_universe!.toPrecision(3)} × the age of the universe)`;
+    return `  ${CLOCK_TITLES[c.name].padEnd(width)}  ${when}${ratios}`;
+  });
+  return `quantum sidecar clocks (whole-box mode):\n${lines.join("\n")}\n`;
 }

@@ -74,6 +74,7 @@ export interface ResolvedRun {
     readonly snapshotPrecision: "float64" | "float32";
     readonly checkpointEvery: number;
   };
+  readonly sidecar: { readonly enabled: boolean; readonly squeezingDb: number };
 }
 
 const KM_S_MPC = 1e3 / MPC_M;
@@ -184,10 +185,14 @@ export function resolveRun(config: CheckedConfig, name: string, cwd: string): Re
   if (out.snapshot_every !== undefined) positive("output.snapshot_every", out.snapshot_every);
   positive("output.checkpoint_every", out.checkpoint_every);
 
+  if (!(config.sidecar.squeezing_db < 0)) {
+    throw new ConfigError("sidecar.squeezing_db", `must be negative (a variance below the coherent state's), got ${config.sidecar.squeezing_db}`);
+  }
   return {
     name,
     outputDir,
     config,
+    sidecar: { enabled: config.sidecar.enabled, squeezingDb: config.sidecar.squeezing_db },
     particleMassKg: m,
     lengthUnitM: units.lengthM,
     grid: { cells, lengths, gravity, poisson: config.grid.poisson },

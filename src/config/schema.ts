@@ -134,6 +134,13 @@ export const outputSchema = z.strictObject({
   checkpoint_every: z.number().int().default(1000),
 });
 
+export const sidecarSchema = z.strictObject({
+  /** Run the quantum sidecar's clocks alongside the solver. @default true */
+  enabled: z.boolean().default(true),
+  /** The squeezing level the squeezing clock times, in dB (negative). @default -10 */
+  squeezing_db: z.number().default(-10),
+});
+
 export const userConfigSchema = z.strictObject({
   grid: gridSchema,
   particle: particleSchema,
@@ -142,6 +149,7 @@ export const userConfigSchema = z.strictObject({
   initial: initialSchema,
   integrator: integratorSchema.default(integratorSchema.parse({})),
   output: outputSchema.default(outputSchema.parse({})),
+  sidecar: sidecarSchema.default(sidecarSchema.parse({})),
 });
 
 /** A config as written by a user (before defaults). */

@@ -33,6 +33,13 @@ export class SplitStepper {
   /** Mass Σ|ψ|² ΔV of the current field. */
   mass = 0;
   readonly fft: ComplexFft;
+  /** When set, each drift also measures ½∫|∇ψ|² dV (the a-free kinetic energy Ka²) at the step's middle. */
+  trackKinetic = false;
+  /** ½∫|∇ψ|² dV measured during the last drift (NaN unless trackKinetic). */
+  midKineticTilde = Number.NaN;
+  /** The last step's factors D = ∫dt/a² and K = K₁ + K₂ = ∫dt/a. */
+  lastDrift = 0;
+  lastKick = 0;
   private readonly phase: readonly [Float64Array, Float64Array, Float64Array];
 
   constructor(grid: Grid, background: Background, gravity: PoissonSolver) {
@@ -120,6 +127,7 @@ export class SplitStepper {
     }
     const [n0, n1, n2] = this.grid.shape;
     const [p0, p1, p2] = this.phase;
+    if (this.trackKinetic) this.midKineticTilde = this.spectralGradientNorm();
     let p = 0;
     for (let a = 0; a < n0; a++) {
       const ar = p0[2 * a] as number;
@@ -144,16 +152,37 @@ export class SplitStepper {
     this.fft.inverse(psi);
   }
 
+  /** ½ Σ_k k²|ψ_k|² ΔV/N of the transformed field in `psi` (Parseval: ½∫|∇ψ|² dV). */
+  private spectralGradientNorm(): number {
+    const psi = this.psi;
+    const [k0, k1, k2] = [this.grid.wavenumbers(0), this.grid.wavenumbers(1), this.grid.wavenumbers(2)];
+    const [n0, n1, n2] = this.grid.shape;
+    let sum = 0;
+    let p = 0;
+    for (let a = 0; a < n0; a++) {
+      const ka = k0[a]! * k0[a]!;
+      for (let b = 0; b < n1; b++) {
+        const kab = ka + k1[b]! * k1[b]!;
+        for (let c = 0; c < n2; c++, p += 2) sum += (kab + k2[c]! * k2[c]!) * (psi[p]! * psi[p]! + psi[p + 1]! * psi[p + 1]!);
+      }
+    }
+    return (0.5 * sum * this.grid.cellVolume) / this.grid.size;
+  }
+
   /** Advance by Δt (code time) with one kick–drift–kick step. */
   step(dt: number): void {
     const bg = this.background;
     const t0 = this.time;
     const tHalf = t0 + 0.5 * dt;
     const t1 = t0 + dt;
-    this.kick(bg.kickFactor(t0, tHalf));
-    this.drift(bg.driftFactor(t0, t1));
+    const k1 = bg.kickFactor(t0, tHalf);
+    const k2 = bg.kickFactor(tHalf, t1);
+    this.lastDrift = bg.driftFactor(t0, t1);
+    this.lastKick = k1 + k2;
+    this.kick(k1);
+    this.drift(this.lastDrift);
     this.updatePotential();
-    this.kick(bg.kickFactor(tHalf, t1));
+    this.kick(k2);
     this.time = t1;
   }
 

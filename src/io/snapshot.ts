@@ -14,7 +14,8 @@
  *                     |ψ|² the comoving mass density; attributes units ("(Msun/kpc^3)^(1/2)"),
  *                     components ("re,im"); dimensions labelled x, y, z (as many as the grid), part
  *   /state            checkpoints only: psi_code, phi_code (float64, code units, bit-exact state),
- *                     attributes time_code, mass_code, mass0_code, steps, wall_time_s, snapshots_written
+ *                     attributes time_code, mass_code, mass0_code, steps, wall_time_s, snapshots_written,
+ *                     sidecar (the clocks' running state as JSON, when the run has them)
  */
 import { InputError } from "../core/errors.js";
 import { Dataset, Group, hdf5Reason, openHdf5, writeHdf5Atomic, type H5File } from "./h5.js";
@@ -58,6 +59,8 @@ export interface CheckpointState {
   readonly steps: number;
   readonly wallTimeS: number;
   readonly snapshotsWritten: number;
+  /** The sidecar's running state (JSON text), when the run has one. */
+  readonly sidecar?: string;
 }
 
 /** A snapshot in memory. `psi` is interleaved (re, im) in √(Msun/kpc³). */
@@ -156,6 +159,7 @@ export function writeSnapshot(file: string, snap: Snapshot, precision: "float64"
       intAttr(g, "steps", st.steps);
       numberAttr(g, "wall_time_s", st.wallTimeS);
       intAttr(g, "snapshots_written", st.snapshotsWritten);
+      if (st.sidecar !== undefined) g.create_attribute("sidecar", st.sidecar);
     }
   });
 }
@@ -253,6 +257,7 @@ export function readSnapshot(file: string, withState = false): Snapshot {
         steps: numberOf(g, "steps", file),
         wallTimeS: numberOf(g, "wall_time_s", file),
         snapshotsWritten: numberOf(g, "snapshots_written", file),
+        ...(g.attrs["sidecar"] ? { sidecar: stringOf(g, "sidecar", file) } : {}),
       };
     }
     return state ? { meta, psi, state } : { meta, psi };

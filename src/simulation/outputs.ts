@@ -5,6 +5,7 @@
  *   snapshots/snap_NNNNN.h5 snapshots (NNNNN counts from 0, the initial state)
  *   checkpoint.h5           the latest checkpoint (a snapshot plus the exact code-unit state)
  *   run.log                 one line per event
+ *   clocks.json             the quantum sidecar's clocks (when enabled)
  */
 import fs from "node:fs";
 import path from "node:path";
@@ -22,6 +23,7 @@ export function runPaths(dir: string) {
     timeseries: path.join(dir, "timeseries.csv"),
     summary: path.join(dir, "summary.json"),
     log: path.join(dir, "run.log"),
+    clocks: path.join(dir, "clocks.json"),
     checkpoint: path.join(dir, "checkpoint.h5"),
     snapshots: path.join(dir, "snapshots"),
     snapshot: (index: number) => path.join(dir, "snapshots", `snap_${String(index).padStart(5, "0")}.h5`),

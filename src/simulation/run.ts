@@ -22,6 +22,8 @@ import { InputError } from "../core/errors.js";
 import { evolve, type StepInfo } from "./evolve.js";
 import { OutputScales } from "./scales.js";
 import { RunWriter, runPaths } from "./outputs.js";
+import { SidecarTracker } from "../quantum/tracker.js";
+import { SIDECAR_COLUMNS, clocksRecord, sidecarRow, type ClockReport } from "./sidecar-report.js";
 
 /** Where a run reports what it is doing. */
 export interface RunReporter {
@@ -50,6 +52,7 @@ export interface RunSummary {
   readonly snapshots: number;
   readonly resumed_from_step?: number;
   readonly relaxation?: { readonly iterations: number; readonly converged: boolean };
+  readonly clocks?: readonly ClockReport[];
 }
 
 /** Options of a run. */
@@ -106,6 +109,11 @@ export async function runSimulation(run: ResolvedRun, options: RunOptions = {}):
   const stepsBefore = resumed?.steps ?? 0;
   let snapshotsWritten = resumed?.snapshotsWritten ?? 0;
   const wallBefore = resumed?.wallTimeS ?? 0;
+  const particleMassCode = run.particleMassKg / scales.units.massKg;
+  const tracker = run.sidecar.enabled
+    ? new SidecarTracker(stepper, particleMassCode, mass0 / particleMassCode, run.sidecar.squeezingDb, startTime)
+    : undefined;
+  if (tracker && resumed?.sidecar) tracker.restore(resumed.sidecar);
 
   const u = scales.timeUnit;
   const energyUnit = "Msun_km2_s2";
@@ -120,6 +128,7 @@ export async function runSimulation(run: ResolvedRun, options: RunOptions = {}):
     `potential_${energyUnit}`,
     `total_${energyUnit}`,
     "max_density_Msun_kpc3",
+    ...(tracker ? SIDECAR_COLUMNS : []),
   ];
   const limiterColumn = columns.indexOf("limiter");
   const series = resumed
@@ -141,6 +150,7 @@ export async function runSimulation(run: ResolvedRun, options: RunOptions = {}):
       scales.energy(W),
       scales.energy(K + W),
       scales.density(maxDensity(stepper.psi)),
+      ...(tracker ? sidecarRow(tracker, a, scales.units.timeS) : []),
     ]);
   };
   const checkpoint = (steps: number): void => {
@@ -150,6 +160,7 @@ export async function runSimulation(run: ResolvedRun, options: RunOptions = {}):
       steps,
       wallTimeS: wallBefore + (performance.now() - wallStart) / 1000,
       snapshotsWritten,
+      ...(tracker ? { sidecar: tracker.save() } : {}),
     });
   };
   if (!resumed) {
@@ -165,6 +176,7 @@ export async function runSimulation(run: ResolvedRun, options: RunOptions = {}):
   let lastReport = 0;
   reporter.phase(resumed ? `evolving (resumed at step ${stepsBefore})` : "evolving");
   const onStep = (s: SplitStepper, info: StepInfo): void => {
+    tracker?.afterStep(s);
     const atEnd = info.limiter === "end";
     if (info.step % run.output.timeseriesEvery === 0 || atEnd) {
       record(info.step, info.dt, info.limiter, info.scratch);
@@ -199,6 +211,12 @@ export async function runSimulation(run: ResolvedRun, options: RunOptions = {}):
   }
   series.close();
   reporter.endPhase();
+  let clocks: ClockReport[] | undefined;
+  if (tracker) {
+    const record = clocksRecord(tracker, background, scales.units.timeS, (endTime - startTime) * scales.units.timeS);
+    clocks = record.clocks;
+    writeFileAtomic(paths.clocks, JSON.stringify(record, null, 2) + "\n");
+  }
 
   const point = (t: number) => {
     const a = background.scaleFactor(t);
@@ -217,6 +235,7 @@ export async function runSimulation(run: ResolvedRun, options: RunOptions = {}):
     snapshots: snapshotsWritten,
     ...(resumed ? { resumed_from_step: resumed.steps } : {}),
     ...(relaxation ? { relaxation } : {}),
+    ...(clocks ? { clocks } : {}),
   };
   writeFileAtomic(paths.summary, JSON.stringify(summary, null, 2) + "\n");
   return summary;
@@ -233,7 +252,7 @@ export function prepareOutputDir(dir: string, force: boolean): void {
     }
     if (force) {
       // remove only what psibox itself writes, never other files
-      for (const f of [p.summary, p.timeseries, p.checkpoint, p.log]) fs.rmSync(f, { force: true });
+      for (const f of [p.summary, p.timeseries, p.checkpoint, p.log, p.clocks]) fs.rmSync(f, { force: true });
       if (fs.existsSync(p.snapshots)) {
         for (const name of fs.readdirSync(p.snapshots)) if (/^snap_\d{5}\.h5$/.test(name)) fs.rmSync(path.join(p.snapshots, name));
       }

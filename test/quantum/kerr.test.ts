@@ -1,6 +1,6 @@
 // The exact Kerr evolution of a coherent state against arbitrary precision, Fock-space sums,
 // published limits and the team's check table (PHYSICS §5.5, computed independently).
-import Decimal from "decimal.js";
+import { Decimal } from "decimal.js";
 import { describe, expect, it } from "vitest";
 import { bestSqueezing, kerrState, xForPhaseDiffusion, xForSqueezing } from "../../src/quantum/kerr.js";
 

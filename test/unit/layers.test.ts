@@ -15,8 +15,8 @@ const ORDER = [
   "config",
   "initial-conditions",
   "io",
-  "simulation",
   "quantum",
+  "simulation",
   "cli",
 ];
 

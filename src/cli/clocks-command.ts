@@ -1,0 +1,134 @@
+/**
+ * `psibox clocks PATH...`: the sidecar on saved snapshots. For each snapshot
+ * the mode's coefficients come from the field and its own potential; the
+ * integrals Θ = ∫ω dt, X = ∫χ dt and B = ∫λ dt are taken by the trapezoid
+ * rule over the snapshot times, and the clocks ring as in a run.
+ */
+import fs from "node:fs";
+import path from "node:path";
+import { InputError } from "../core/errors.js";
+import { loadHdf5 } from "../io/h5.js";
+import { readSnapshot } from "../io/snapshot.js";
+import { writeFileAtomic } from "../io/atomic.js";
+import { loadField } from "../simulation/from-snapshot.js";
+import { modeCoefficients, type ModeRegion } from "../quantum/mode.js";
+import { ClockAccumulator, formatDuration } from "../quantum/clocks.js";
+import { parseAs, unitInSI, UnitSyntaxError } from "../physics/units.js";
+import { PLANCK_AGE_S } from "../simulation/sidecar-report.js";
+import { formatClocks } from "./run-command.js";
+import type { ClockReport } from "../simulation/sidecar-report.js";
+import { PC_M } from "../physics/constants.js";
+
+export interface ClocksFlags {
+  region: string;
+  center?: string;
+  radius?: string;
+  squeezingDb: string;
+  out?: string;
+  json: boolean;
+}
+
+/** The snapshot files a list of paths names (run folders expand to their snapshots, in order). */
+export function snapshotFiles(paths: readonly string[]): string[] {
+  const files: string[] = [];
+  for (const p of paths) {
+    if (!fs.existsSync(p)) throw new InputError(`${p}: no such file or folder`);
+    if (fs.statSync(p).isDirectory()) {
+      const dir = fs.existsSync(path.join(p, "snapshots")) ? path.join(p, "snapshots") : p;
+      const found = fs.readdirSync(dir).filter((f) => /\.h5$/.test(f) && !f.startsWith(".")).sort();
+      if (found.length === 0) throw new InputError(`${p}: no snapshots (.h5 files) found`);
+      files.push(...found.map((f) => path.join(dir, f)));
+    } else files.push(p);
+  }
+  return files;
+}
+
+function length(name: string, text: string): number {
+  try {
+    return parseAs(text, "length");
+  } catch (e) {
+    if (e instanceof UnitSyntaxError) throw new InputError(`--${name}: ${e.message}`);
+    throw e;
+  }
+}
+
+/** Run the sidecar over snapshots; returns the exit code. */
+export async function clocksCommand(paths: readonly string[], flags: ClocksFlags): Promise<number> {
+  await loadHdf5();
+  const files = snapshotFiles(paths);
+  const db = Number(flags.squeezingDb);
+  if (!(db < 0)) throw new InputError(`--squeezing-db: must be a negative number of dB, got ${flags.squeezingDb}`);
+  if (!["box", "sphere", "cube", "densest"].includes(flags.region)) throw new InputError(`--region: must be box, sphere, cube or densest, got "${flags.region}"`);
+  const rows: (string | number)[][] = [];
+  let acc: ClockAccumulator | undefined;
+  let t0S = 0;
+  let lastS = 0;
+  let ageS = PLANCK_AGE_S;
+  for (const file of files) {
+    const snap = readSnapshot(file);
+    const field = loadField(snap);
+    const { units, grid } = field;
+    const kpcCode = (1e3 * PC_M) / units.lengthM;
+    let region: ModeRegion = { kind: "box" };
+    if (flags.region !== "box") {
+      if (flags.radius === undefined) throw new InputError(`--radius: needed with --region ${flags.region}`);
+      const r = length("radius", flags.radius) / units.lengthM;
+      if (!(r > 0)) throw new InputError("--radius: must be positive");
+      if (flags.region === "densest") region = { kind: "densest", radius: r };
+      else {
+        if (flags.center === undefined) throw new InputError(`--center: needed with --region ${flags.region}, one length per axis separated by commas`);
+        const c = flags.center.split(",").map((t) => length("center", t.trim()) / units.lengthM);
+        if (c.length !== grid.dims) throw new InputError(`--center: give ${grid.dims} lengths, got ${c.length}`);
+        c.forEach((v, i) => {
+          if (!(v >= 0 && v <= (grid.lengths[i] as number))) throw new InputError(`--center: lies outside the box on axis ${i + 1} (0 … ${((grid.lengths[i] as number) / kpcCode).toPrecision(4)} kpc)`);
+        });
+        region = flags.region === "sphere" ? { kind: "sphere", center: c, radius: r } : { kind: "cube", center: c, halfWidth: r };
+      }
+    }
+    const m = modeCoefficients({ grid, psi: field.psi, scaleFactor: field.scaleFactor, particleMass: units.particleMassKg / units.massKg, gravity: field.gravity, region });
+    if (!(m.particles >= 1)) throw new InputError(`${file}: the mode holds N = ${m.particles.toPrecision(3)} particles (< 1); choose a larger region`);
+    const tS = snap.meta.time * unitInSI(snap.meta.timeUnit);
+    const toS = 1 / units.timeS;
+    const rates = { omegaTilde: m.omega * toS, chiTilde: m.chi * toS, lambda: m.lambda * toS };
+    if (!acc) {
+      acc = new ClockAccumulator(m.particles, db, tS, rates);
+      t0S = tS;
+      if (snap.meta.background.kind === "lcdm") ageS = field.background.time(1) * units.timeS;
+    } else {
+      if (!(tS > lastS)) throw new InputError(`${file}: its time is not after the previous snapshot's; give snapshots of one run in time order`);
+      acc.advance(tS, tS - lastS, tS - lastS, rates);
+    }
+    lastS = tS;
+    const st = acc.state();
+    rows.push([path.basename(file), tS, field.scaleFactor, m.particles, rates.omegaTilde, rates.chiTilde, m.particles * Math.abs(rates.chiTilde), rates.lambda, m.virialRatio, acc.theta, acc.chiIntegral, st.squeezingDb, st.logMeanFieldFraction / Math.LN10, acc.breakdown]);
+  }
+  const a = acc as ClockAccumulator;
+  const spanS = lastS - t0S;
+  const clocks: ClockReport[] = a.results().map((r) => {
+    const t = r.time;
+    return {
+      name: r.name,
+      reached: r.reached,
+      time_s: t === undefined ? null : t,
+      time: t === undefined ? "never" : formatDuration(t),
+      method: `${r.method}; trapezoid over ${files.length} snapshot times`,
+      ratio_to_span: t === undefined || spanS === 0 ? null : t / spanS,
+      ratio_to_age_of_universe: t === undefined ? null : t / ageS,
+    };
+  });
+  const outDir = path.resolve(flags.out ?? (paths.length === 1 && fs.statSync(paths[0] as string).isDirectory() ? (paths[0] as string) : "."));
+  fs.mkdirSync(outDir, { recursive: true });
+  const header = "snapshot,t_s,a,particles_N,omega_per_s,chi_per_s,rate_Nchi_per_s,lambda_per_s,virial_ratio,theta_rad,chi_integral_rad,squeezing_dB,log10_meanfield_fraction,breakdown_integral";
+  const csv = [header, ...rows.map((r) => r.map((v) => (typeof v === "number" ? v.toPrecision(12) : v)).join(","))].join("\n") + "\n";
+  writeFileAtomic(path.join(outDir, "snapshot-clocks.csv"), csv);
+  const summary = { snapshots: files.length, region: flags.region, particles_N: a.particles, squeezing_db_target: db, clocks };
+  writeFileAtomic(path.join(outDir, "snapshot-clocks.json"), JSON.stringify(summary, null, 2) + "\n");
+  if (flags.json) {
+    process.stdout.write(JSON.stringify(summary, null, 2) + "\n");
+    return 0;
+  }
+  const table = rows.map((r) => `  ${String(r[0]).padEnd(16)} t = ${formatDuration(r[1] as number).padEnd(11)} N|χ| = ${(r[6] as number).toExponential(3)} /s   λ = ${(r[7] as number).toExponential(3)} /s   squeezing ${(r[11] as number).toFixed(2)} dB`);
+  process.stdout.write(`${files.length} snapshots, mode: ${flags.region}, N = ${a.particles.toPrecision(5)}\n${table.join("\n")}\n${formatClocks(clocks).replace("(whole-box mode)", `(${flags.region} mode, from snapshots)`)}`);
+  process.stdout.write(`wrote ${path.relative(process.cwd(), path.join(outDir, "snapshot-clocks.csv")) || "snapshot-clocks.csv"} and snapshot-clocks.json\n`);
+  return 0;
+}

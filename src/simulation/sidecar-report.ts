@@ -1,0 +1,96 @@
+/**
+ * The sidecar's outputs in physical units: time-series columns and the
+ * clocks' verdicts (clocks.json), with each time compared to the run's span
+ * and to the age of the universe.
+ */
+import type { SidecarTracker } from "../quantum/tracker.js";
+import { formatDuration, type ClockResult } from "../quantum/clocks.js";
+import type { Background } from "../physics/cosmology/background.js";
+import { YEAR_S } from "../physics/constants.js";
+
+/** Age of the universe used for comparisons when the run has no cosmology: 13.797 Gyr (Planck 2018, A&A 641, A6). */
+export const PLANCK_AGE_S = 13.797e9 * YEAR_S;
+
+/** Column names the sidecar adds to the time series. */
+export const SIDECAR_COLUMNS = [
+  "particles_N",
+  "omega_per_s",
+  "chi_per_s",
+  "rate_Nchi_per_s",
+  "lambda_per_s",
+  "theta_rad",
+  "chi_integral_rad",
+  "squeezing_dB",
+  "log10_meanfield_fraction",
+  "breakdown_integral",
+];
+
+/** The sidecar's time-series values now. */
+export function sidecarRow(tracker: SidecarTracker, a: number, timeS: number): number[] {
+  const c = tracker.clocks;
+  const st = c.state();
+  const r = tracker.rates;
+  return [
+    c.particles,
+    r.omegaTilde / (a * a) / timeS,
+    r.chiTilde / a / timeS,
+    (c.particles * Math.abs(r.chiTilde)) / a / timeS,
+    r.lambda / timeS,
+    c.theta,
+    c.chiIntegral,
+    st.squeezingDb,
+    st.logMeanFieldFraction / Math.LN10,
+    c.breakdown,
+  ];
+}
+
+/** One clock in physical units. */
+export interface ClockReport {
+  readonly name: ClockResult["name"];
+  readonly reached: boolean;
+  readonly time_s: number | null;
+  readonly time: string;
+  readonly method: string;
+  readonly ratio_to_span: number | null;
+  readonly ratio_to_age_of_universe: number | null;
+}
+
+/** The clocks' verdicts with physical times. */
+export function clockReports(tracker: SidecarTracker, timeS: number, spanS: number, ageS: number): ClockReport[] {
+  return tracker.clocks.results().map((r) => {
+    const t = r.time === undefined ? null : r.time * timeS;
+    return {
+      name: r.name,
+      reached: r.reached,
+      time_s: t,
+      time: t === null ? "never" : formatDuration(t),
+      method: r.method,
+      ratio_to_span: t === null ? null : t / spanS,
+      ratio_to_age_of_universe: t === null ? null : t / ageS,
+    };
+  });
+}
+
+/** The whole clocks.json record. */
+export function clocksRecord(tracker: SidecarTracker, background: Background, timeS: number, spanS: number) {
+  const age = background.kind === "lcdm" ? background.time(1) * timeS : PLANCK_AGE_S;
+  const st = tracker.clocks.state();
+  return {
+    particles_N: tracker.clocks.particles,
+    squeezing_db_target: tracker.clocks.squeezingDb,
+    age_of_universe_s: age,
+    age_of_universe_source: background.kind === "lcdm" ? "the run's own cosmology, t(a = 1)" : "Planck 2018 (13.797 Gyr)",
+    clocks: clockReports(tracker, timeS, spanS, age),
+    final: {
+      theta_rad: tracker.clocks.theta,
+      chi_integral_rad: tracker.clocks.chiIntegral,
+      squeezing_db: st.squeezingDb,
+      squeezing_parameter: st.squeezingParameter,
+      squeezing_angle_rad: st.squeezingAngle,
+      meanfield_fraction: st.meanFieldFraction,
+      ln_meanfield_fraction: st.logMeanFieldFraction,
+      breakdown_integral: tracker.clocks.breakdown,
+      ln_N: Math.log(tracker.clocks.particles),
+    },
+  };
+}
