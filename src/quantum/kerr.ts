@@ -42,6 +42,8 @@ export interface KerrState {
   readonly squeezingAngle: number;
   /** ⟨b⟩ / √N (real and imaginary parts), for α real; its phase is meaningful only while N|sin X| < 1e15. */
   readonly meanField: readonly [number, number];
+  /** ⟨b²⟩ / N (real and imaginary parts), for α real; its phase is meaningful only while N|sin 2X| < 1e15. */
+  readonly secondMoment: readonly [number, number];
   /** |⟨b²⟩ − ⟨b⟩²| / N. */
   readonly pairCorrelation: number;
 }
@@ -135,6 +137,9 @@ export function kerrState(N: number, X: number, theta = 0): KerrState {
   // ⟨b⟩/√N = e^{−iΘ} e^{−u/2} e^{−iN sin X}
   const phase = -theta - ((N * sinX) % (2 * Math.PI));
   const amp = Math.exp(-u / 2);
+  // ⟨b²⟩/N = e^{−2iΘ} e^{−iX} e^{N(cos 2X − 1)} e^{−iN sin 2X}, |·| = e^{−w}
+  const phase2 = -2 * theta - X - ((N * Math.sin(2 * X)) % (2 * Math.PI));
+  const amp2 = Math.exp(-w);
   return {
     meanFieldFraction: q,
     logMeanFieldFraction: -u,
@@ -144,6 +149,7 @@ export function kerrState(N: number, X: number, theta = 0): KerrState {
     squeezingParameter: -0.5 * Math.log(S),
     squeezingAngle: qEz === 0 ? 0 : angle,
     meanField: [amp * Math.cos(phase), amp * Math.sin(phase)],
+    secondMoment: [amp2 * Math.cos(phase2), amp2 * Math.sin(phase2)],
     pairCorrelation: qEz,
   };
 }

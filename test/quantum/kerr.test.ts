@@ -88,6 +88,8 @@ describe("Kerr coherent state: stable double-precision closed forms", () => {
         expect(Math.abs(got.minVariance - V) / V, `N=${N} X=${X}`).toBeLessThan(1e-10);
         expect(Math.abs(got.meanField[0] * Math.sqrt(N) - b1r.toNumber())).toBeLessThan(1e-10 * Math.sqrt(N));
         expect(Math.abs(got.meanField[1] * Math.sqrt(N) - b1i.toNumber())).toBeLessThan(1e-10 * Math.sqrt(N));
+        expect(Math.abs(got.secondMoment[0] * N - b2r.toNumber())).toBeLessThan(1e-10 * N);
+        expect(Math.abs(got.secondMoment[1] * N - b2i.toNumber())).toBeLessThan(1e-10 * N);
       }
     }
   });
