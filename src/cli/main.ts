@@ -45,6 +45,17 @@ export async function main(argv: readonly string[]): Promise<number> {
     });
 
   program
+    .command("ic")
+    .description("write a config's initial conditions (snapshot 0, and the spectrum table of a cosmological field) without running")
+    .argument("<config>", "a TOML config file")
+    .option("--set <key=value>", "override one config key (repeatable)", collect, [])
+    .option("--force", "overwrite the files of an earlier run in the same output folder", false)
+    .option("-q, --quiet", "no progress output", false)
+    .action(async (configFile: string, flags: RunFlags) => {
+      exitCode = await runCommand(configFile, { ...flags, initialOnly: true });
+    });
+
+  program
     .command("init")
     .description("write a commented starter config from a template")
     .argument("[template]", "template name (see --list)")

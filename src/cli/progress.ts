@@ -43,6 +43,12 @@ export class TextReporter implements RunReporter {
     }
   }
 
+  warn(text: string): void {
+    if (this.tty && this.drawn) this.stream.write("\n");
+    this.drawn = false;
+    this.stream.write(`warning: ${text}\n`);
+  }
+
   endPhase(): void {
     if (this.tty && this.drawn) this.stream.write("\n");
     this.drawn = false;

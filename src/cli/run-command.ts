@@ -15,6 +15,8 @@ export interface RunFlags {
   force: boolean;
   quiet: boolean;
   resume?: string;
+  /** Only write the initial conditions (psibox ic). */
+  initialOnly?: boolean;
 }
 
 function resumeTarget(dir: string): ResolvedRun {
@@ -54,8 +56,17 @@ export async function runCommand(configFile: string | undefined, flags: RunFlags
     return [signal, h] as const;
   });
   try {
-    const summary = await runSimulation(run, { reporter, stopRequested: () => interrupted, resume: flags.resume !== undefined });
+    const summary = await runSimulation(run, {
+      reporter,
+      stopRequested: () => interrupted,
+      resume: flags.resume !== undefined,
+      initialOnly: flags.initialOnly === true,
+    });
     const where = path.relative(process.cwd(), run.outputDir) || ".";
+    if (flags.initialOnly) {
+      process.stdout.write(`wrote the initial conditions to ${where}/snapshots/snap_00000.h5\n`);
+      return 0;
+    }
     if (summary.status === "completed") {
       process.stdout.write(`completed ${summary.steps} steps in ${summary.wall_time_s.toFixed(1)} s; outputs in ${where}\n`);
       if (summary.clocks) process.stdout.write(formatClocks(summary.clocks));

@@ -12,26 +12,9 @@ import { Grid } from "../grid/grid.js";
 import type { GravityKind, PoissonKernel } from "../fields/poisson.js";
 import type { CheckedConfig } from "./schema.js";
 
-/** Initial condition in code units. */
-export type ResolvedInitial =
-  | { readonly kind: "plane-wave"; readonly meanDensity: number; readonly contrast: number; readonly mode: readonly number[] }
-  | {
-      readonly kind: "gaussian-packet";
-      readonly mass: number;
-      readonly width: number;
-      readonly center: readonly number[];
-      readonly velocity: readonly number[];
-    }
-  | { readonly kind: "ground-state"; readonly mass: number; readonly guessWidth: number; readonly center: readonly number[] }
-  | {
-      readonly kind: "solitons";
-      readonly solitons: readonly {
-        readonly mass: number;
-        readonly center: readonly number[];
-        readonly velocity: readonly number[];
-        readonly phase: number;
-      }[];
-    };
+export type { ResolvedInitial } from "./resolve-initial.js";
+import { resolveInitial, type ResolvedInitial } from "./resolve-initial.js";
+import { perAxis, positive, read } from "./values.js";
 
 /** Background in code units. */
 export type { BackgroundSpec as ResolvedBackground } from "../physics/cosmology/background.js";
@@ -78,26 +61,6 @@ export interface ResolvedRun {
 }
 
 const KM_S_MPC = 1e3 / MPC_M;
-
-function read(key: string, text: string, kind: QuantityKind, ctx: UnitContext): number {
-  try {
-    return parseAs(text, kind, ctx);
-  } catch (e) {
-    if (e instanceof UnitSyntaxError) throw new ConfigError(key, e.message);
-    throw e;
-  }
-}
-
-function positive(key: string, value: number, what = "positive"): number {
-  if (!(value > 0) || !Number.isFinite(value)) throw new ConfigError(key, `must be ${what}, got ${value}`);
-  return value;
-}
-
-function perAxis(key: string, values: string | readonly string[], dims: number): readonly string[] {
-  const list = typeof values === "string" ? Array<string>(dims).fill(values) : values;
-  if (list.length !== dims) throw new ConfigError(key, `give one value or ${dims} (one per axis), got ${list.length}`);
-  return list;
-}
 
 /**
  * Resolve a checked config.
@@ -245,74 +208,4 @@ function resolveSnapshotTimes(
 
 function unitText(quantity: string): string {
   return quantity.trim().replace(/^[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?\s*/, "");
-}
-
-function resolveInitial(
-  config: CheckedConfig,
-  dims: number,
-  lengths: readonly number[],
-  units: CodeUnits,
-  ctx: UnitContext,
-  background: ResolvedBackground,
-): ResolvedInitial {
-  const ic = config.initial;
-  const len = (key: string, t: string) => read(key, t, "length", ctx) / units.lengthM;
-  const mass = (key: string, t: string) => positive(key, read(key, t, "mass", ctx)) / units.massKg;
-  const centre = (list: readonly string[] | undefined, key: string): number[] => {
-    if (list === undefined) return lengths.map((l) => l / 2);
-    const c = perAxis(key, list, dims).map((t) => len(key, t));
-    c.forEach((v, i) => {
-      if (!(v >= 0 && v <= (lengths[i] as number))) throw new ConfigError(key, `lies outside the box (axis ${i + 1})`);
-    });
-    return c;
-  };
-  switch (ic.kind) {
-    case "plane-wave": {
-      const mode = ic.mode ?? [1, ...Array<number>(dims - 1).fill(0)];
-      if (mode.length !== dims) throw new ConfigError("initial.mode", `give ${dims} integers (one per axis), got ${mode.length}`);
-      if (mode.every((v) => v === 0)) throw new ConfigError("initial.mode", "must not be all zeros");
-      if (!(Math.abs(ic.contrast) < 1)) throw new ConfigError("initial.contrast", `must be in (−1, 1), got ${ic.contrast}`);
-      let meanDensity: number;
-      if (ic.mean_density !== undefined) {
-        meanDensity = positive("initial.mean_density", read("initial.mean_density", ic.mean_density, "density", ctx)) / (units.massKg / units.lengthM ** 3);
-      } else if (background.kind === "lcdm") {
-        meanDensity = 1.5 * background.omegaMatter * background.hubble0 ** 2; // 4πGρ̄ = (3/2) Ω_m H0²
-      } else {
-        throw new ConfigError("initial.mean_density", 'missing; static runs need a mean density, e.g. "1e7 Msun/kpc^3"');
-      }
-      return { kind: "plane-wave", meanDensity, contrast: ic.contrast, mode };
-    }
-    case "gaussian-packet": {
-      const velocity = ic.velocity === undefined ? Array<number>(dims).fill(0) : perAxis("initial.velocity", ic.velocity, dims).map((t) => read("initial.velocity", t, "velocity", ctx) / (units.lengthM / units.timeS));
-      return {
-        kind: "gaussian-packet",
-        mass: mass("initial.mass", ic.mass),
-        width: positive("initial.width", len("initial.width", ic.width)),
-        center: centre(ic.center, "initial.center"),
-        velocity,
-      };
-    }
-    case "solitons": {
-      if (config.grid.gravity === "none") throw new ConfigError("initial.kind", '"solitons" need gravity: set grid.gravity to "isolated" or "periodic"');
-      const solitons = ic.soliton.map((s, i) => {
-        const key = `initial.soliton[${i}]`;
-        return {
-          mass: mass(`${key}.mass`, s.mass),
-          center: centre(s.center, `${key}.center`),
-          velocity:
-            s.velocity === undefined
-              ? Array<number>(dims).fill(0)
-              : perAxis(`${key}.velocity`, s.velocity, dims).map((t) => read(`${key}.velocity`, t, "velocity", ctx) / (units.lengthM / units.timeS)),
-          phase: s.phase,
-        };
-      });
-      return { kind: "solitons", solitons };
-    }
-    case "ground-state": {
-      if (config.grid.gravity === "none") throw new ConfigError("initial.kind", '"ground-state" needs gravity: set grid.gravity to "isolated" or "periodic"');
-      const guessWidth =
-        ic.guess_width === undefined ? Math.min(...lengths) / 10 : positive("initial.guess_width", len("initial.guess_width", ic.guess_width));
-      return { kind: "ground-state", mass: mass("initial.mass", ic.mass), guessWidth, center: centre(ic.center, "initial.center") };
-    }
-  }
 }

@@ -83,9 +83,55 @@ export const groundStateSchema = z.strictObject({
   center: z.array(quantity).min(1).max(3).optional(),
 });
 
-export const solitonSchema = z.strictObject({
-  /** Mass of this soliton. */
+export const cosmologicalSchema = z.strictObject({
+  kind: z.literal("cosmological"),
+  /** Seed of the random field: the same seed gives the same field. @default 1 */
+  seed: z.number().int().default(1),
+  /** σ₈ at z = 0 (top-hat of 8 Mpc/h). @default 0.8111 (Planck 2018) */
+  sigma_8: z.number().default(0.8111),
+  /** Primordial spectral index n_s. @default 0.9649 (Planck 2018) */
+  spectral_index: z.number().default(0.9649),
+  /** Ω_b today (Eisenstein & Hu transfer function only). @default 0.0493 (Planck 2018: Ω_b h² = 0.02237) */
+  omega_baryon: z.number().default(0.0493),
+  /** CMB temperature, e.g. "2.7255 K". @default "2.7255 K" */
+  cmb_temperature: z.string().default("2.7255 K"),
+  /** CDM transfer function. @default "eisenstein-hu" */
+  transfer: z.enum(["eisenstein-hu", "bbks"]).default("eisenstein-hu"),
+  /** Apply the wave-dark-matter suppression of Hu, Barkana & Gruzinov 2000. @default true */
+  wave_suppression: z.boolean().default(true),
+  /** Set every mode's amplitude to its mean ("fixed" fields). @default false */
+  fixed_amplitude: z.boolean().default(false),
+  /** Flip the sign of every mode (the partner of a "paired" field). @default false */
+  paired: z.boolean().default(false),
+});
+
+export const noiseSchema = z.strictObject({
+  kind: z.literal("white-noise"),
+  /** Mean density; expanding runs default to the cosmic mean. */
+  mean_density: quantity.optional(),
+  /** Standard deviation of δ in each cell (white, Gaussian). */
+  amplitude: z.number(),
+  /** Seed. @default 1 */
+  seed: z.number().int().default(1),
+});
+
+export const randomSolitonsSchema = z.strictObject({
+  kind: z.literal("random-solitons"),
+  /** How many solitons. */
+  count: z.number().int(),
+  /** Mass of each. */
   mass: quantity,
+  /** Seed of positions, velocities and phases. @default 1 */
+  seed: z.number().int().default(1),
+  /** One-dimensional velocity dispersion of the solitons. @default at rest */
+  velocity_dispersion: quantity.optional(),
+});
+
+export const solitonSchema = z.strictObject({
+  /** Mass of this soliton (or give core_radius in 3D). */
+  mass: quantity.optional(),
+  /** 3D only: core radius (density half its peak) instead of the mass. */
+  core_radius: quantity.optional(),
   /** Centre, one length per axis. */
   center: z.array(quantity).min(1).max(3),
   /** Velocity, one per axis. @default at rest */
@@ -96,11 +142,21 @@ export const solitonSchema = z.strictObject({
 
 export const solitonsSchema = z.strictObject({
   kind: z.literal("solitons"),
+  /** Profile: relaxed on the grid by imaginary time, or the published core fit (3D). @default "relaxed" */
+  profile: z.enum(["relaxed", "core-fit"]).default("relaxed"),
   /** The solitons: a list of tables [[initial.soliton]]. */
   soliton: z.array(solitonSchema).min(1),
 });
 
-export const initialSchema = z.discriminatedUnion("kind", [planeWaveSchema, packetSchema, groundStateSchema, solitonsSchema]);
+export const initialSchema = z.discriminatedUnion("kind", [
+  planeWaveSchema,
+  packetSchema,
+  groundStateSchema,
+  solitonsSchema,
+  randomSolitonsSchema,
+  cosmologicalSchema,
+  noiseSchema,
+]);
 
 export const integratorSchema = z.strictObject({
   /** Safety factor s: kinetic phase ≤ 2πs and potential phase ≤ πs per step. @default 0.25 */

@@ -6,6 +6,7 @@
  *   checkpoint.h5           the latest checkpoint (a snapshot plus the exact code-unit state)
  *   run.log                 one line per event
  *   clocks.json             the quantum sidecar's clocks (when enabled)
+ *   initial-power.csv       the linear spectrum of a cosmological initial field
  */
 import fs from "node:fs";
 import path from "node:path";
@@ -24,6 +25,7 @@ export function runPaths(dir: string) {
     summary: path.join(dir, "summary.json"),
     log: path.join(dir, "run.log"),
     clocks: path.join(dir, "clocks.json"),
+    power: path.join(dir, "initial-power.csv"),
     checkpoint: path.join(dir, "checkpoint.h5"),
     snapshots: path.join(dir, "snapshots"),
     snapshot: (index: number) => path.join(dir, "snapshots", `snap_${String(index).padStart(5, "0")}.h5`),

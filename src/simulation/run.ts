@@ -33,10 +33,12 @@ export interface RunReporter {
   progress(fraction: number, status: string): void;
   /** The phase ended. */
   endPhase(): void;
+  /** Something the user should know, that does not stop the run. */
+  warn(text: string): void;
 }
 
 /** A reporter that says nothing. */
-export const silentReporter: RunReporter = { phase() {}, progress() {}, endPhase() {} };
+export const silentReporter: RunReporter = { phase() {}, progress() {}, endPhase() {}, warn() {} };
 
 /** What a run ends with (also written to summary.json). */
 export interface RunSummary {
@@ -53,6 +55,7 @@ export interface RunSummary {
   readonly resumed_from_step?: number;
   readonly relaxation?: { readonly iterations: number; readonly converged: boolean };
   readonly clocks?: readonly ClockReport[];
+  readonly warnings?: readonly string[];
 }
 
 /** Options of a run. */
@@ -64,6 +67,8 @@ export interface RunOptions {
   readonly resume?: boolean;
   /** Folder that relative paths in the written config are taken from. @default process.cwd() */
   readonly cwd?: string;
+  /** Write the initial state (snapshot 0, and the spectrum table of a cosmological field) and stop. */
+  readonly initialOnly?: boolean;
 }
 
 /** Run a resolved config; the output folder must exist (see prepareOutputDir). */
@@ -88,6 +93,7 @@ export async function runSimulation(run: ResolvedRun, options: RunOptions = {}):
 
   let resumed: CheckpointState | undefined;
   let relaxation: RunSummary["relaxation"];
+  const warnings: string[] = [];
   if (options.resume) {
     resumed = readSnapshot(paths.checkpoint, true).state as CheckpointState;
     stepper.restoreState(resumed.psiCode, resumed.phiCode, resumed.timeCode, resumed.massCode);
@@ -103,6 +109,12 @@ export async function runSimulation(run: ResolvedRun, options: RunOptions = {}):
       relaxation = { iterations: initial.relaxation.iterations, converged: initial.relaxation.converged };
       writer.log(`ground state relaxed in ${relaxation.iterations} iterations (converged: ${relaxation.converged})`);
     }
+    for (const w of initial.warnings ?? []) {
+      warnings.push(w);
+      reporter.warn(w);
+      writer.log(`warning: ${w}`);
+    }
+    if (initial.powerTable) writeFileAtomic(paths.power, initial.powerTable);
     stepper.setState(initial.psi, startTime);
   }
   const mass0 = resumed?.mass0Code ?? stepper.mass;
@@ -166,6 +178,22 @@ export async function runSimulation(run: ResolvedRun, options: RunOptions = {}):
   if (!resumed) {
     record(0, 0, "start", scratch);
     writer.writeSnapshot(stepper, 0, snapshotsWritten++);
+  }
+  if (options.initialOnly) {
+    series.close();
+    writer.log("initial conditions written");
+    return {
+      name: run.name,
+      status: "completed",
+      steps: 0,
+      wall_time_s: (performance.now() - wallStart) / 1000,
+      time_unit: u,
+      start: { t: scales.time(startTime), a: background.scaleFactor(startTime), z: expanding ? 1 / background.scaleFactor(startTime) - 1 : null },
+      end: { t: scales.time(startTime), a: background.scaleFactor(startTime), z: expanding ? 1 / background.scaleFactor(startTime) - 1 : null },
+      mass_drift: 0,
+      snapshots: 1,
+      ...(warnings.length ? { warnings } : {}),
+    };
   }
 
   const span = expanding ? Math.log(background.scaleFactor(endTime) / background.scaleFactor(startTime)) : endTime - startTime;
@@ -236,6 +264,7 @@ export async function runSimulation(run: ResolvedRun, options: RunOptions = {}):
     ...(resumed ? { resumed_from_step: resumed.steps } : {}),
     ...(relaxation ? { relaxation } : {}),
     ...(clocks ? { clocks } : {}),
+    ...(warnings.length ? { warnings } : {}),
   };
   writeFileAtomic(paths.summary, JSON.stringify(summary, null, 2) + "\n");
   return summary;
@@ -252,7 +281,7 @@ export function prepareOutputDir(dir: string, force: boolean): void {
     }
     if (force) {
       // remove only what psibox itself writes, never other files
-      for (const f of [p.summary, p.timeseries, p.checkpoint, p.log, p.clocks]) fs.rmSync(f, { force: true });
+      for (const f of [p.summary, p.timeseries, p.checkpoint, p.log, p.clocks, p.power]) fs.rmSync(f, { force: true });
       if (fs.existsSync(p.snapshots)) {
         for (const name of fs.readdirSync(p.snapshots)) if (/^snap_\d{5}\.h5$/.test(name)) fs.rmSync(path.join(p.snapshots, name));
       }
