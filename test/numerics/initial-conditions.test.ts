@@ -94,9 +94,9 @@ function measurePower(grid: Grid, delta: Float64Array, lengthMpc: number, bins: 
         if (k === 0 || k >= kNy) continue;
         const bin = Math.floor(((k - kF / 2) / (kNy - kF / 2)) * bins);
         if (bin < 0 || bin >= bins) continue;
-        sums[bin] += (volume * (data[p]! ** 2 + data[p + 1]! ** 2)) / grid.size ** 2;
-        counts[bin] += 1;
-        kMean[bin] += k;
+        sums[bin] = sums[bin]! + (volume * (data[p]! ** 2 + data[p + 1]! ** 2)) / grid.size ** 2;
+        counts[bin] = counts[bin]! + 1;
+        kMean[bin] = kMean[bin]! + k;
       }
   return { sums, counts, kMean, data };
 }
@@ -116,8 +116,8 @@ describe("Gaussian random field", () => {
     for (const f of fields) {
       const m = measurePower(grid, f.delta, lengthMpc, bins);
       for (let i = 0; i < bins; i++) {
-        total[i] += m.sums[i]!;
-        counts[i] += m.counts[i]!;
+        total[i] = total[i]! + m.sums[i]!;
+        counts[i] = counts[i]! + m.counts[i]!;
       }
     }
     // the input averaged over the same modes
