@@ -13,6 +13,7 @@ import { inspectCommand } from "./inspect-command.js";
 import { importCommand, type ImportFlags } from "./import-command.js";
 import { clocksCommand, type ClocksFlags } from "./clocks-command.js";
 import { estimateCommand, type EstimateFlags } from "./estimate-command.js";
+import { sweepCommand, type SweepFlags } from "./sweep-command.js";
 
 function collect(value: string, previous: string[]): string[] {
   return [...previous, value];
@@ -102,6 +103,18 @@ export async function main(argv: readonly string[]): Promise<number> {
     .option("--force", "overwrite the output file", false)
     .action(async (source: string, flags: ImportFlags) => {
       exitCode = await importCommand(source, flags);
+    });
+
+  program
+    .command("sweep")
+    .description("run a parameter sweep ([sweep] section) with a local worker pool, emit it as a Slurm job array, or rebuild its summary")
+    .argument("[config]", "a TOML config with a [sweep] section")
+    .option("--set <key=value>", "override one config key of the base config (repeatable)", collect, [])
+    .option("--workers <n>", "child processes at once (default: the number of cores)")
+    .option("--emit <target>", "write job scripts instead of running: slurm")
+    .option("--summary <dir>", "rebuild sweep-summary.csv and .json from a sweep folder")
+    .action(async (configFile: string | undefined, flags: SweepFlags) => {
+      exitCode = await sweepCommand(configFile, flags);
     });
 
   program

@@ -42,12 +42,16 @@ export async function runCommand(configFile: string | undefined, flags: RunFlags
   } else {
     if (configFile === undefined) throw new InputError("give a config file (psibox run CONFIG) or --resume DIR");
     const config = loadConfig(configFile, flags.set);
+    if (config.sweep) throw new InputError(`${configFile} describes a sweep ([sweep] section): run it with psibox sweep ${configFile}`);
     run = resolveRun(config, path.basename(configFile).replace(/\.[^.]*$/, ""), process.cwd());
     prepareOutputDir(run.outputDir, flags.force);
   }
   const reporter = flags.quiet ? silentReporter : new TextReporter();
   if (!flags.quiet) process.stderr.write(describeRun(run) + "\n");
   let interrupted: string | undefined;
+  // a run started by psibox sweep stops (with a checkpoint) when the sweep itself is gone
+  const parent = Number(process.env["PSIBOX_PARENT_PID"] ?? 0);
+  const orphaned = (): string | undefined => (parent > 0 && process.ppid !== parent ? "interrupted (the sweep that started this run has ended)" : undefined);
   const handlers = (["SIGINT", "SIGTERM"] as const).map((signal) => {
     const h = () => {
       interrupted = `interrupted (${signal})`;
@@ -58,7 +62,7 @@ export async function runCommand(configFile: string | undefined, flags: RunFlags
   try {
     const summary = await runSimulation(run, {
       reporter,
-      stopRequested: () => interrupted,
+      stopRequested: () => interrupted ?? orphaned(),
       resume: flags.resume !== undefined,
       initialOnly: flags.initialOnly === true,
     });

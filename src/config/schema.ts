@@ -197,6 +197,37 @@ export const sidecarSchema = z.strictObject({
   squeezing_db: z.number().default(-10),
 });
 
+const sweepRange = z.strictObject({
+  /** First value: a number, or a quantity with its unit. */
+  from: z.union([z.number(), z.string()]),
+  /** Last value (same unit as `from`). */
+  to: z.union([z.number(), z.string()]),
+  /** How many values, ≥ 2. */
+  count: z.number().int(),
+  /** Spacing. @default "linear" */
+  scale: z.enum(["linear", "log"]).default("linear"),
+});
+
+export const sweepSchema = z.strictObject({
+  /** How the value lists combine: every combination, or the i-th values together. @default "product" */
+  combine: z.enum(["product", "zip"]).default("product"),
+  /** The swept keys ("section.key") with a list of values or a range. */
+  values: z.record(z.string(), z.union([z.array(z.union([z.number(), z.string(), z.boolean(), z.array(z.number())])), sweepRange])),
+});
+
+export const clusterSchema = z.strictObject({
+  /** Slurm partition. @default the cluster's default */
+  partition: z.string().optional(),
+  /** Wall-time limit per entry, Slurm format "HH:MM:SS". @default "01:00:00" */
+  time: z.string().default("01:00:00"),
+  /** CPU cores per entry. @default 1 */
+  cpus: z.number().int().default(1),
+  /** Memory per entry, Slurm format, e.g. "4G". @default "2G" */
+  memory: z.string().default("2G"),
+  /** Most array tasks running at once (Slurm's %N throttle). @default 8 */
+  max_parallel: z.number().int().default(8),
+});
+
 export const userConfigSchema = z.strictObject({
   grid: gridSchema,
   particle: particleSchema,
@@ -206,6 +237,10 @@ export const userConfigSchema = z.strictObject({
   integrator: integratorSchema.default(integratorSchema.parse({})),
   output: outputSchema.default(outputSchema.parse({})),
   sidecar: sidecarSchema.default(sidecarSchema.parse({})),
+  /** A parameter sweep (psibox sweep). */
+  sweep: sweepSchema.optional(),
+  /** Cluster resources for psibox sweep --emit slurm. */
+  cluster: clusterSchema.optional(),
 });
 
 /** A config as written by a user (before defaults). */

@@ -1,0 +1,143 @@
+// psibox sweep: a local pool of real child processes, resume after SIGKILL, failures, Slurm scripts, bad input.
+import { spawn, spawnSync } from "node:child_process";
+import fs from "node:fs";
+import os from "node:os";
+import path from "node:path";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+
+const BIN = path.resolve("dist/cli/bin.js");
+let work: string;
+beforeAll(() => {
+  work = fs.mkdtempSync(path.join(os.tmpdir(), "psibox-sweep-"));
+});
+afterAll(() => fs.rmSync(work, { recursive: true, force: true }));
+
+function psibox(args: string[], env: Record<string, string> = {}) {
+  const r = spawnSync(process.execPath, [BIN, ...args], { cwd: work, encoding: "utf8", env: { ...process.env, ...env } });
+  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
+}
+
+const BASE = `[grid]
+cells = [64, 64]
+box = "20 kpc"
+[particle]
+mass = "1e-22 eV"
+[span]
+duration = "300 Myr"
+[initial]
+kind = "plane-wave"
+mean_density = "1e7 Msun/kpc^3"
+contrast = 0.2
+mode = [1, 1]
+[output]
+time_unit = "Myr"
+checkpoint_every = 50
+`;
+const SWEEP = `${BASE}[sweep]
+combine = "product"
+[sweep.values]
+"particle.mass" = ["1e-22 eV", "2e-22 eV"]
+"initial.contrast" = { from = 0.1, to = 0.2, count = 2 }
+`;
+
+/** The summary without what legitimately differs between two runs (wall times). */
+function comparable(dir: string): unknown {
+  const s = JSON.parse(fs.readFileSync(path.join(work, dir, "sweep-summary.json"), "utf8")) as { entries: Record<string, unknown>[] };
+  return s.entries.map(({ wall_time_s: _w, ...rest }) => rest);
+}
+
+describe("psibox sweep", () => {
+  it("runs a 4-entry sweep with 2 workers; killed mid-way and re-run, it finishes with the same summary", async () => {
+    fs.writeFileSync(path.join(work, "s.toml"), SWEEP);
+    const full = psibox(["sweep", "s.toml", "--workers", "2", "--set", 'output.dir="full"']);
+    expect(full.code, full.stderr).toBe(0);
+    expect(full.stdout).toMatch(/^sweep done: 4 completed, 0 already done, 0 failed/);
+    const rows = JSON.parse(fs.readFileSync(path.join(work, "full/sweep-summary.json"), "utf8")).entries;
+    expect(rows.map((r: { entry: string }) => r.entry)).toEqual([
+      "mass=1e-22eV_contrast=0.1",
+      "mass=1e-22eV_contrast=0.2",
+      "mass=2e-22eV_contrast=0.1",
+      "mass=2e-22eV_contrast=0.2",
+    ]);
+    expect(rows.every((r: { status: string }) => r.status === "completed")).toBe(true);
+    expect(fs.readFileSync(path.join(work, "full/sweep-summary.csv"), "utf8").split("\n")[0]).toMatch(/^entry,particle\.mass,initial\.contrast,status,reason,steps,wall_time_s,/);
+
+    // the same sweep, its parent killed with SIGKILL once the first checkpoints exist
+    const child = spawn(process.execPath, [BIN, "sweep", "s.toml", "--workers", "2", "--set", 'output.dir="cut"'], { cwd: work, stdio: "ignore" });
+    const exited = new Promise<void>((r) => child.on("exit", () => r()));
+    const start = Date.now();
+    const anyCheckpoint = () =>
+      fs.existsSync(path.join(work, "cut")) &&
+      fs.readdirSync(path.join(work, "cut")).some((d) => fs.existsSync(path.join(work, "cut", d, "checkpoint.h5")));
+    while (!anyCheckpoint() && Date.now() - start < 60_000) await new Promise((r) => setTimeout(r, 20));
+    child.kill("SIGKILL");
+    await exited;
+    expect(fs.existsSync(path.join(work, "cut/sweep-summary.json"))).toBe(false);
+    const again = psibox(["sweep", "s.toml", "--workers", "2", "--set", 'output.dir="cut"']);
+    expect(again.code, again.stderr).toBe(0);
+    expect(again.stderr).toMatch(/resumed|already completed/);
+    expect(comparable("cut")).toEqual(comparable("full"));
+    // --summary rebuilds the same table from the folders alone
+    fs.rmSync(path.join(work, "cut/sweep-summary.json"));
+    expect(psibox(["sweep", "--summary", "cut"]).code).toBe(0);
+    expect(comparable("cut")).toEqual(comparable("full"));
+  });
+
+  it("records a failing entry with its reason while the others complete", () => {
+    fs.writeFileSync(path.join(work, "f.toml"), `${BASE.replace('"300 Myr"', '"50 Myr"')}[sweep]\n[sweep.values]\n"integrator.mass_tolerance" = [1e-8, 1e-18]\n`);
+    const r = psibox(["sweep", "f.toml", "--workers", "2"]);
+    expect(r.code).toBe(3);
+    expect(r.stdout).toMatch(/1 completed, 0 already done, 1 failed/);
+    const rows = JSON.parse(fs.readFileSync(path.join(work, "output/f/sweep-summary.json"), "utf8")).entries;
+    expect(rows[0].status).toBe("completed");
+    expect(rows[1].status).toBe("failed");
+    expect(rows[1].reason).toMatch(/the mass changed by .* \(tolerance 1\.0e-18\)/);
+  });
+
+  it("emits a Slurm job array: valid bash, every entry exactly once, each task runs its entry", () => {
+    fs.writeFileSync(path.join(work, "c.toml"), `${SWEEP.replace('"300 Myr"', '"20 Myr"')}[cluster]\npartition = "debug"\ntime = "00:10:00"\ncpus = 2\nmemory = "1G"\nmax_parallel = 3\n`);
+    const r = psibox(["sweep", "c.toml", "--emit", "slurm"]);
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stdout).toMatch(/^wrote a Slurm array of 4 tasks: output\/c\/sweep\.sbatch\nsubmit: /);
+    const script = path.join(work, "output/c/sweep.sbatch");
+    expect(spawnSync("bash", ["-n", script]).status).toBe(0);
+    expect(spawnSync("bash", ["-n", path.join(work, "output/c/collect.sbatch")]).status).toBe(0);
+    const text = fs.readFileSync(script, "utf8");
+    expect(text).toMatch(/^#SBATCH --array=0-3%3$/m);
+    expect(text).toMatch(/^#SBATCH --partition=debug$/m);
+    expect(text).toMatch(/^#SBATCH --cpus-per-task=2$/m);
+    const listed = [...text.matchAll(/^ {2}'(.*)'$/gm)].map((m) => path.basename(m[1]!));
+    const manifest = JSON.parse(fs.readFileSync(path.join(work, "output/c/sweep.json"), "utf8")).entries.map((e: { name: string }) => e.name);
+    expect(listed).toEqual(manifest);
+    expect(new Set(listed).size).toBe(4);
+    // run task 2 by hand, as Slurm would
+    const task = spawnSync("bash", [script], { cwd: work, encoding: "utf8", env: { ...process.env, SLURM_ARRAY_TASK_ID: "2" } });
+    expect(task.status, task.stderr).toBe(0);
+    const entry = path.join(work, "output/c", manifest[2]);
+    expect(JSON.parse(fs.readFileSync(path.join(entry, "summary.json"), "utf8")).status).toBe("completed");
+    expect(fs.existsSync(path.join(work, "output/c", manifest[1], "summary.json"))).toBe(false);
+    expect(spawnSync("bash", [script], { cwd: work, encoding: "utf8", env: { ...process.env, SLURM_ARRAY_TASK_ID: "2" } }).stdout).toMatch(/has already completed/);
+  });
+
+  const bad: [string, string, RegExp][] = [
+    ["an empty sweep", `${BASE}[sweep]\n[sweep.values]\n`, /^psibox: sweep\.values: is empty/],
+    ["a key that does not exist", `${BASE}[sweep]\n[sweep.values]\n"particle.masss" = ["1e-22 eV"]\n`, /^psibox: particle\.masss: unknown key; valid keys here: mass \(in sweep entry "masss=1e-22eV"\)/],
+    ["values of the wrong unit", `${BASE}[sweep]\n[sweep.values]\n"particle.mass" = ["1e-22 eV", "2 kpc"]\n`, /^psibox: particle\.mass: "2 kpc" is not a mass.*\(in sweep entry "mass=2kpc"\)/],
+    ["two entries in one folder", `${BASE}[sweep]\n[sweep.values]\n"particle.mass" = ["1e-22 eV", "1e-22eV"]\n`, /^psibox: sweep\.values: entries 1 and 2 would share the folder "mass=1e-22eV"/],
+    ["zipped lists of different lengths", `${BASE}[sweep]\ncombine = "zip"\n[sweep.values]\n"particle.mass" = ["1e-22 eV", "2e-22 eV"]\n"initial.contrast" = [0.1]\n`, /^psibox: sweep\.values\."initial\.contrast": has 1 values; combine = "zip" needs every list to have 2/],
+  ];
+  for (const [what, text, message] of bad) {
+    it(`rejects ${what} before anything runs`, () => {
+      fs.writeFileSync(path.join(work, "bad.toml"), text);
+      const r = psibox(["sweep", "bad.toml"]);
+      expect(r.code).toBe(2);
+      expect(r.stderr).toMatch(message);
+      expect(fs.existsSync(path.join(work, "output/bad"))).toBe(false);
+    });
+  }
+
+  it("psibox run refuses a sweep config and points to psibox sweep", () => {
+    fs.writeFileSync(path.join(work, "sw.toml"), SWEEP);
+    expect(psibox(["run", "sw.toml"]).stderr).toBe("psibox: sw.toml describes a sweep ([sweep] section): run it with psibox sweep sw.toml\n");
+  });
+});
