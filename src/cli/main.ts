@@ -14,6 +14,7 @@ import { importCommand, type ImportFlags } from "./import-command.js";
 import { clocksCommand, type ClocksFlags } from "./clocks-command.js";
 import { estimateCommand, type EstimateFlags } from "./estimate-command.js";
 import { sweepCommand, type SweepFlags } from "./sweep-command.js";
+import { analyzeCommand, reportCommand, type AnalyzeFlags } from "./analyze-command.js";
 
 function collect(value: string, previous: string[]): string[] {
   return [...previous, value];
@@ -115,6 +116,26 @@ export async function main(argv: readonly string[]): Promise<number> {
     .option("--summary <dir>", "rebuild sweep-summary.csv and .json from a sweep folder")
     .action(async (configFile: string | undefined, flags: SweepFlags) => {
       exitCode = await sweepCommand(configFile, flags);
+    });
+
+  program
+    .command("analyze")
+    .description("diagnostics and pictures of run folders or snapshots: P(k), PDF, energies, peaks, profiles, core fits, slices")
+    .argument("<paths...>", "run folders or snapshot files")
+    .option("--out <dir>", "where to write (default: <run>/analysis)")
+    .option("--frames", "also write numbered movie frames (frames/frame_NNNNN.png)", false)
+    .option("--no-pictures", "tables only")
+    .action(async (paths: string[], flags: AnalyzeFlags) => {
+      exitCode = await analyzeCommand(paths, flags);
+    });
+
+  program
+    .command("report")
+    .description("write a self-contained HTML report of a run (report.html in the run folder)")
+    .argument("<run>", "a run folder")
+    .option("--out <file>", "the HTML file to write")
+    .action(async (run: string, flags: { out?: string }) => {
+      exitCode = await reportCommand(run, flags.out);
     });
 
   program

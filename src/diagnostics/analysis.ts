@@ -6,7 +6,9 @@
  *
  * With ψ = √ρ e^{iS}: the current j = Im(ψ* ∇ψ) = ρ∇S, the peculiar velocity
  * v = j/(aρ), the bulk kinetic energy K_v = ½ ∫ ρ v² dV = (1/2a²) ∫ |j|²/ρ dV,
- * and the quantum-gradient part K_q = (1/2a²) ∫ |∇√ρ|² dV = K − K_v.
+ * and the quantum-gradient part K_q = (1/2a²) ∫ |∇√ρ|² dV = K − K_v. K itself
+ * is Parseval's sum with the full k² (as in the solver); the current uses
+ * spectral first derivatives with the Nyquist mode's derivative set to zero.
  */
 import type { Grid } from "../grid/grid.js";
 import { ComplexFft } from "../fields/fft.js";
@@ -138,7 +140,6 @@ export function kineticSplit(grid: Grid, psi: Float64Array, a: number): KineticS
       const j = re * gi - im * gr; // Im(ψ* ∂ψ)
       jj[i] = jj[i]! + j * j;
       js += j;
-      gradSquared += gr * gr + gi * gi;
     }
     jSum.push(js);
   }
@@ -150,6 +151,17 @@ export function kineticSplit(grid: Grid, psi: Float64Array, a: number): KineticS
     if (rho > 0) bulk2 += jj[i]! / rho;
   }
   const dv = grid.cellVolume;
+  // K from Parseval with the full k² (Nyquist included), as the solver's kinetic operator has it
+  {
+    const [k0, k1, k2] = [grid.wavenumbers(0), grid.wavenumbers(1), grid.wavenumbers(2)];
+    let p = 0;
+    for (let i0 = 0; i0 < n0; i0++)
+      for (let i1 = 0; i1 < n1; i1++)
+        for (let i2 = 0; i2 < n2; i2++, p += 2) {
+          gradSquared += (k0[i0]! ** 2 + k1[i1]! ** 2 + k2[i2]! ** 2) * (spectrum[p]! ** 2 + spectrum[p + 1]! ** 2);
+        }
+    gradSquared /= n;
+  }
   const kinetic = (0.5 / (a * a)) * gradSquared * dv;
   const bulk = (0.5 / (a * a)) * bulk2 * dv;
   const meanVelocity = jSum.map((s) => s / (a * mass));

@@ -17,6 +17,7 @@ const ORDER = [
   "io",
   "quantum",
   "simulation",
+  "report",
   "batch",
   "cli",
 ];

@@ -1,0 +1,41 @@
+/** `psibox analyze PATH...` and `psibox report RUN_DIR`. */
+import fs from "node:fs";
+import path from "node:path";
+import { InputError } from "../core/errors.js";
+import { loadHdf5 } from "../io/h5.js";
+import { analyzeRun, analyzeSnapshot } from "../report/analyze.js";
+import { writeReport } from "../report/html.js";
+
+export interface AnalyzeFlags {
+  out?: string;
+  frames: boolean;
+  pictures: boolean;
+}
+
+/** Analyse run folders and snapshot files; returns the exit code. */
+export async function analyzeCommand(paths: readonly string[], flags: AnalyzeFlags): Promise<number> {
+  await loadHdf5();
+  for (const p of paths) {
+    if (!fs.existsSync(p)) throw new InputError(`${p}: no such file or folder`);
+    const started = performance.now();
+    if (fs.statSync(p).isDirectory()) {
+      if (!fs.existsSync(path.join(p, "snapshots"))) throw new InputError(`${p}: not a psibox run folder (no snapshots/)`);
+      const out = flags.out ?? path.join(p, "analysis");
+      const r = await analyzeRun(p, out, { frames: flags.frames, pictures: flags.pictures });
+      process.stdout.write(`${p}: ${r.snapshots.length} snapshots analysed in ${((performance.now() - started) / 1000).toFixed(1)} s; tables and pictures in ${out}\n`);
+    } else {
+      const out = flags.out ?? path.join(path.dirname(p), "..", "analysis", path.basename(p, ".h5"));
+      await analyzeSnapshot(p, out, flags.pictures);
+      process.stdout.write(`${p}: analysed in ${((performance.now() - started) / 1000).toFixed(1)} s; tables and pictures in ${out}\n`);
+    }
+  }
+  return 0;
+}
+
+/** Write a run's HTML report; returns the exit code. */
+export async function reportCommand(runDir: string, out?: string): Promise<number> {
+  await loadHdf5();
+  const file = await writeReport(runDir, out);
+  process.stdout.write(`wrote ${file}\n`);
+  return 0;
+}
