@@ -8,6 +8,7 @@ import { prepareOutputDir, runSimulation, silentReporter } from "../simulation/r
 import { runPaths } from "../simulation/outputs.js";
 import { TextReporter } from "./progress.js";
 import { describeRun } from "./describe.js";
+import { analyzeRun } from "../report/analyze.js";
 import type { ClockReport } from "../simulation/sidecar-report.js";
 
 export interface RunFlags {
@@ -70,6 +71,10 @@ export async function runCommand(configFile: string | undefined, flags: RunFlags
     if (flags.initialOnly) {
       process.stdout.write(`wrote the initial conditions to ${where}/snapshots/snap_00000.h5\n`);
       return 0;
+    }
+    if (run.config.output.analyze) {
+      const analysis = await analyzeRun(run.outputDir, path.join(run.outputDir, "analysis"));
+      process.stderr.write(`analysed ${analysis.snapshots.length} snapshots into ${path.join(where, "analysis")}\n`);
     }
     if (summary.status === "completed") {
       process.stdout.write(`completed ${summary.steps} steps in ${summary.wall_time_s.toFixed(1)} s; outputs in ${where}\n`);

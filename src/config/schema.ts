@@ -186,6 +186,8 @@ export const outputSchema = z.strictObject({
   snapshot_redshifts: z.array(z.number()).optional(),
   /** Floating-point precision of ψ in snapshots. @default "float64" */
   snapshot_precision: z.enum(["float64", "float32"]).default("float64"),
+  /** After the run, analyse every snapshot (tables and pictures in analysis/), as psibox analyze does. @default false */
+  analyze: z.boolean().default(false),
   /** Write a checkpoint (for --resume) every this many steps. @default 1000 */
   checkpoint_every: z.number().int().default(1000),
 });

@@ -173,11 +173,25 @@ export function kineticSplit(grid: Grid, psi: Float64Array, a: number): KineticS
 /** The `count` densest local maxima at least `minSeparation` cells apart (indices and densities). */
 export function densestPoints(grid: Grid, psi: Float64Array, count: number, minSeparation: number): { index: number; coords: number[]; density: number }[] {
   const n = grid.size;
-  const order = Array.from({ length: n }, (_, i) => i);
   const rho = new Float64Array(n);
   for (let i = 0; i < n; i++) rho[i] = psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2;
+  const [n0, n1, n2] = grid.shape;
+  // candidates: cells at least as dense as their neighbours along every simulated axis (periodic)
+  const strides = [n1 * n2, n2, 1];
+  const order: number[] = [];
+  for (let i = 0; i < n; i++) {
+    const idx = [Math.floor(i / (n1 * n2)), Math.floor(i / n2) % n1, i % n2];
+    let peak = true;
+    for (let ax = 0; ax < 3 && peak; ax++) {
+      const m = [n0, n1, n2][ax]!;
+      if (m === 1) continue;
+      const up = idx[ax] === m - 1 ? i - (m - 1) * strides[ax]! : i + strides[ax]!;
+      const down = idx[ax] === 0 ? i + (m - 1) * strides[ax]! : i - strides[ax]!;
+      if (rho[up]! > rho[i]! || rho[down]! > rho[i]!) peak = false;
+    }
+    if (peak) order.push(i);
+  }
   order.sort((x, y) => rho[y]! - rho[x]!);
-  const [, n1, n2] = grid.shape;
   const cell = (i: number) => [Math.floor(i / (n1 * n2)), Math.floor(i / n2) % n1, i % n2];
   const chosen: { index: number; coords: number[]; density: number }[] = [];
   for (const i of order) {
