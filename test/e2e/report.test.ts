@@ -102,6 +102,9 @@ describe.runIf(chromium !== undefined || process.env["CI"] === "true")("psibox r
       expect(images.every((w) => w > 100)).toBe(true);
       expect(await page.locator(".verdict li").count()).toBe(4);
       await page.screenshot({ path: path.join(work, "output/jeans/report-screenshot.png"), fullPage: true });
+      // and one in the project's own (git-ignored) output/ folder, to look at
+      fs.mkdirSync(path.resolve("output"), { recursive: true });
+      fs.copyFileSync(path.join(work, "output/jeans/report-screenshot.png"), path.resolve("output/report-screenshot.png"));
       expect(errors).toEqual([]);
     } finally {
       await browser.close();
