@@ -1,11 +1,19 @@
 #!/usr/bin/env node
 // Time per split-step of psibox's solver, from the built library (npm run bench builds it first).
 // Prints ms per step (median), ns per cell-step, nominal GFLOP/s and peak resident memory.
-// Usage: node scripts/bench.mjs [--large] [--steps N]
+// When python3 with NumPy is available it also runs scripts/numpy_step.py, NumPy's version of the
+// identical step, checks that both give the same field to 1e-10 and prints the time ratio.
+// Usage: node scripts/bench.mjs [--large] [--steps N] [--no-numpy]
 import { Grid } from "../dist/grid/grid.js";
 import { makePoissonSolver } from "../dist/fields/poisson.js";
 import { StaticBackground } from "../dist/physics/cosmology/background.js";
 import { SplitStepper } from "../dist/integrators/split-step.js";
+import { spawnSync } from "node:child_process";
+import fs from "node:fs";
+import os from "node:os";
+import path from "node:path";
+import { fileURLToPath } from "node:url";
+import { readNpyComplex } from "../dist/io/npy.js";
 
 const args = process.argv.slice(2);
 const large = args.includes("--large");
@@ -47,6 +55,52 @@ function bench(cells, gravity = "periodic") {
   return { label: `${cells.length}D ${cells.join("×")} ${gravity}`, ms, nsPerCell: (ms * 1e6) / n, gflops: flops / (ms * 1e6), heapGrowth };
 }
 
+const here = path.dirname(fileURLToPath(import.meta.url));
+const useNumpy = !args.includes("--no-numpy") && spawnSync("python3", ["-c", "import numpy"]).status === 0;
+
+function writeNpy(file, shape, data) {
+  let header = `{'descr': '<c16', 'fortran_order': False, 'shape': (${shape.join(", ")}), }`;
+  header += " ".repeat((64 - ((10 + header.length + 1) % 64)) % 64) + "\n";
+  const head = Buffer.alloc(10);
+  head.write("\x93NUMPY", 0, "latin1");
+  head[6] = 1;
+  head.writeUInt16LE(header.length, 8);
+  fs.writeFileSync(file, Buffer.concat([head, Buffer.from(header, "latin1"), Buffer.from(data.buffer, data.byteOffset, data.byteLength)]));
+}
+
+/** psibox and NumPy on the same 3D field: ms/step of each and the largest difference after `steps` steps. */
+function compareWithNumpy(n) {
+  const grid = new Grid([n, n, n], [1, 1, 1]);
+  const psi0 = field(grid);
+  const dt = 1e-5;
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), "psibox-bench-"));
+  try {
+    writeNpy(path.join(dir, "in.npy"), [n, n, n], psi0);
+    const r = spawnSync("python3", [path.join(here, "numpy_step.py"), path.join(dir, "in.npy"), path.join(dir, "out.npy"), String(steps), String(dt)], { encoding: "utf8" });
+    if (r.status !== 0) return undefined;
+    const numpyMs = Number(r.stdout.trim());
+    const stepper = new SplitStepper(grid, new StaticBackground(), makePoissonSolver(grid, "periodic"));
+    stepper.setState(psi0, 0);
+    const times = [];
+    for (let i = 0; i < steps; i++) {
+      const t0 = performance.now();
+      stepper.step(dt);
+      times.push(performance.now() - t0);
+    }
+    times.sort((a, b) => a - b);
+    const ref = readNpyComplex(path.join(dir, "out.npy")).data;
+    let diff = 0;
+    let scale = 0;
+    for (let i = 0; i < ref.length; i++) {
+      diff = Math.max(diff, Math.abs(ref[i] - stepper.psi[i]));
+      scale = Math.max(scale, Math.abs(ref[i]));
+    }
+    return { numpyMs, psiboxMs: times[Math.floor(times.length / 2)], relDiff: diff / scale };
+  } finally {
+    fs.rmSync(dir, { recursive: true, force: true });
+  }
+}
+
 const cases = [[[32, 32, 32]], [[64, 64, 64]], [[128, 128, 128]]];
 if (large) cases.push([[256, 256, 256]]);
 cases.push([[32, 32, 32], "isolated"], [[64, 64, 64], "isolated"], [[512, 512]], [[1024, 1024]], [[1 << 16]], [[1 << 20]]);
@@ -59,3 +113,18 @@ for (const [cells, gravity] of cases) {
   );
 }
 console.log(`peak resident memory: ${(process.resourceUsage().maxRSS / 1024).toFixed(0)} MB`);
+if (useNumpy) {
+  console.log("\nagainst NumPy (scripts/numpy_step.py, the identical step), same machine, same run:");
+  console.log("grid      psibox ms/step   NumPy ms/step   ratio   max |Δψ|/max|ψ| after " + steps + " steps");
+  for (const n of large ? [64, 128, 256] : [64, 128]) {
+    const c = compareWithNumpy(n);
+    if (!c) {
+      console.log(`${n}³: NumPy run failed`);
+      continue;
+    }
+    const ok = c.relDiff < 1e-10 ? "agree" : "DIFFER";
+    console.log(`${String(n).padStart(3)}³   ${c.psiboxMs.toFixed(1).padStart(14)} ${c.numpyMs.toFixed(1).padStart(15)} ${(c.psiboxMs / c.numpyMs).toFixed(2).padStart(7)}   ${c.relDiff.toExponential(1)} (${ok})`);
+  }
+} else {
+  console.log("(no python3 with NumPy here: the comparison with NumPy is skipped)");
+}
