@@ -3,11 +3,12 @@
 // Prints ms per step (median), ns per cell-step, nominal GFLOP/s and peak resident memory.
 // When python3 with NumPy is available it also runs scripts/numpy_step.py, NumPy's version of the
 // identical step, checks that both give the same field to 1e-10 and prints the time ratio.
-// Usage: node scripts/bench.mjs [--large] [--steps N] [--no-numpy]
+// Usage: node scripts/bench.mjs [--large] [--steps N] [--no-numpy] [--threads N] (default: the number of cores)
 import { Grid } from "../dist/grid/grid.js";
 import { makePoissonSolver } from "../dist/fields/poisson.js";
 import { StaticBackground } from "../dist/physics/cosmology/background.js";
 import { SplitStepper } from "../dist/integrators/split-step.js";
+import { ThreadedStepper } from "../dist/integrators/threaded-step.js";
 import { spawnSync } from "node:child_process";
 import fs from "node:fs";
 import os from "node:os";
@@ -19,6 +20,10 @@ const args = process.argv.slice(2);
 const large = args.includes("--large");
 const stepsArg = args.indexOf("--steps");
 const steps = stepsArg >= 0 ? Number(args[stepsArg + 1]) : 5;
+const threadsArg = args.indexOf("--threads");
+const threads = threadsArg >= 0 ? Number(args[threadsArg + 1]) : os.availableParallelism();
+const makeStepper = (grid, gravity, t) =>
+  t > 1 ? new ThreadedStepper(grid, new StaticBackground(), makePoissonSolver(grid, gravity), t) : new SplitStepper(grid, new StaticBackground(), makePoissonSolver(grid, gravity));
 
 function field(grid) {
   const psi = new Float64Array(2 * grid.size);
@@ -31,9 +36,9 @@ function field(grid) {
   return psi;
 }
 
-function bench(cells, gravity = "periodic") {
+function bench(cells, gravity = "periodic", t = 1) {
   const grid = new Grid(cells, cells.map(() => 1));
-  const stepper = new SplitStepper(grid, new StaticBackground(), makePoissonSolver(grid, gravity));
+  const stepper = makeStepper(grid, gravity, t);
   stepper.setState(field(grid), 0);
   const dt = 1e-5;
   stepper.step(dt);
@@ -48,11 +53,12 @@ function bench(cells, gravity = "periodic") {
   }
   const heapGrowth = process.memoryUsage().heapUsed - heapBefore;
   times.sort((a, b) => a - b);
+  stepper.close();
   const ms = times[Math.floor(times.length / 2)];
   const n = grid.size;
   // nominal work: one complex FFT pair (2 × 5 N log2 N) plus one real FFT pair (about half that)
   const flops = 15 * n * Math.log2(n);
-  return { label: `${cells.length}D ${cells.join("×")} ${gravity}`, ms, nsPerCell: (ms * 1e6) / n, gflops: flops / (ms * 1e6), heapGrowth };
+  return { label: `${cells.length}D ${cells.join("×")} ${gravity}${t > 1 ? ` ${t}t` : ""}`, ms, nsPerCell: (ms * 1e6) / n, gflops: flops / (ms * 1e6), heapGrowth };
 }
 
 const here = path.dirname(fileURLToPath(import.meta.url));
@@ -79,7 +85,7 @@ function compareWithNumpy(n) {
     const r = spawnSync("python3", [path.join(here, "numpy_step.py"), path.join(dir, "in.npy"), path.join(dir, "out.npy"), String(steps), String(dt)], { encoding: "utf8" });
     if (r.status !== 0) return undefined;
     const numpyMs = Number(r.stdout.trim());
-    const stepper = new SplitStepper(grid, new StaticBackground(), makePoissonSolver(grid, "periodic"));
+    const stepper = makeStepper(grid, "periodic", threads);
     stepper.setState(psi0, 0);
     const times = [];
     for (let i = 0; i < steps; i++) {
@@ -88,6 +94,7 @@ function compareWithNumpy(n) {
       times.push(performance.now() - t0);
     }
     times.sort((a, b) => a - b);
+    stepper.close();
     const ref = readNpyComplex(path.join(dir, "out.npy")).data;
     let diff = 0;
     let scale = 0;
@@ -103,18 +110,24 @@ function compareWithNumpy(n) {
 
 const cases = [[[32, 32, 32]], [[64, 64, 64]], [[128, 128, 128]]];
 if (large) cases.push([[256, 256, 256]]);
-cases.push([[32, 32, 32], "isolated"], [[64, 64, 64], "isolated"], [[512, 512]], [[1024, 1024]], [[1 << 16]], [[1 << 20]]);
+if (threads > 1) {
+  cases.push([[32, 32, 32], "periodic", threads], [[64, 64, 64], "periodic", threads], [[128, 128, 128], "periodic", threads]);
+  if (large) cases.push([[256, 256, 256], "periodic", threads]);
+}
+cases.push([[32, 32, 32], "isolated"], [[64, 64, 64], "isolated"], [[512, 512]], [[1024, 1024]]);
+if (threads > 1) cases.push([[1024, 1024], "periodic", threads]);
+cases.push([[1 << 16]], [[1 << 20]]);
 console.log(`psibox split-step benchmark, node ${process.version}, ${steps} timed steps per grid (median)`);
 console.log("grid                         ms/step   ns/cell-step   GFLOP/s   heap growth during steps");
-for (const [cells, gravity] of cases) {
-  const r = bench(cells, gravity);
+for (const [cells, gravity, t] of cases) {
+  const r = bench(cells, gravity, t);
   console.log(
     `${r.label.padEnd(28)} ${r.ms.toFixed(1).padStart(8)} ${r.nsPerCell.toFixed(1).padStart(14)} ${r.gflops.toFixed(2).padStart(9)}   ${(r.heapGrowth / 1024).toFixed(0)} KiB`,
   );
 }
 console.log(`peak resident memory: ${(process.resourceUsage().maxRSS / 1024).toFixed(0)} MB`);
 if (useNumpy) {
-  console.log("\nagainst NumPy (scripts/numpy_step.py, the identical step), same machine, same run:");
+  console.log(`\nagainst NumPy (scripts/numpy_step.py, the identical step), same machine, same run; psibox on ${threads} thread(s):`);
   console.log("grid      psibox ms/step   NumPy ms/step   ratio   max |Δψ|/max|ψ| after " + steps + " steps");
   for (const n of large ? [64, 128, 256] : [64, 128]) {
     const c = compareWithNumpy(n);

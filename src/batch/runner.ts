@@ -74,7 +74,7 @@ export async function runSweep(plan: SweepPlan, bin: string, workers: number, re
     const resume = fs.existsSync(path.join(dir, "checkpoint.h5"));
     const args = resume ? [bin, "run", "--resume", dir, "-q"] : [bin, "run", path.join(dir, "entry.toml"), "-q", "--force"];
     const started = Date.now();
-    const child = spawn(process.execPath, args, { stdio: ["ignore", "ignore", "pipe"], env: { ...process.env, PSIBOX_PARENT_PID: String(process.pid) } });
+    const child = spawn(process.execPath, args, { stdio: ["ignore", "ignore", "pipe"], env: { ...process.env, PSIBOX_PARENT_PID: String(process.pid), PSIBOX_THREADS: process.env["PSIBOX_THREADS"] ?? "1" } });
     fs.writeFileSync(path.join(dir, ".running"), String(child.pid ?? 0));
     let stderr = "";
     child.stderr.on("data", (d: Buffer) => {

@@ -40,6 +40,7 @@ export async function main(argv: readonly string[]): Promise<number> {
     .argument("[config]", "a TOML config file")
     .option("--set <key=value>", "override one config key, e.g. --set grid.cells=[64,64] (repeatable)", collect, [])
     .option("--resume <dir>", "continue a stopped or killed run from its checkpoint")
+    .option("--threads <n>", "worker threads for the step (default: the number of cores; 1 below 32³ cells)")
     .option("--force", "overwrite the files of an earlier run in the same output folder", false)
     .option("-q, --quiet", "no progress output", false)
     .action(async (configFile: string | undefined, flags: RunFlags) => {

@@ -16,6 +16,7 @@ export interface RunFlags {
   force: boolean;
   quiet: boolean;
   resume?: string;
+  threads?: string;
   /** Only write the initial conditions (psibox ic). */
   initialOnly?: boolean;
 }
@@ -30,6 +31,11 @@ function resumeTarget(dir: string): ResolvedRun {
 
 /** Run or resume; returns the exit code. */
 export async function runCommand(configFile: string | undefined, flags: RunFlags): Promise<number> {
+  if (flags.threads !== undefined) {
+    const t = Number(flags.threads);
+    if (!(Number.isInteger(t) && t >= 1 && t <= 64)) throw new InputError(`--threads: must be a whole number from 1 to 64, got ${flags.threads}`);
+    process.env["PSIBOX_THREADS"] = String(t);
+  }
   let run: ResolvedRun;
   if (flags.resume !== undefined) {
     if (configFile !== undefined) throw new InputError("give either a config file or --resume DIR, not both");

@@ -3,6 +3,7 @@
  * (complete, in code units, with an absolute output folder). Every value is
  * range-checked here, with errors that name the key.
  */
+import os from "node:os";
 import path from "node:path";
 import { ConfigError } from "../core/errors.js";
 import { CodeUnits, parseAs, parseUnit, UnitSyntaxError, type QuantityKind, type UnitContext } from "../physics/units.js";
@@ -45,6 +46,8 @@ export interface ResolvedRun {
     readonly maxDlnA: number;
     readonly massTolerance: number;
     readonly maxSteps: number;
+    /** Worker threads (1: the step runs on the main thread). */
+    readonly threads: number;
   };
   readonly output: {
     readonly timeseriesEvery: number;
@@ -162,7 +165,14 @@ export function resolveRun(config: CheckedConfig, name: string, cwd: string): Re
     background,
     span: { startTime, endTime },
     initial,
-    integrator: { safety: integ.safety, fixedStep, maxDlnA: integ.max_dln_a, massTolerance: integ.mass_tolerance, maxSteps: integ.max_steps },
+    integrator: {
+      safety: integ.safety,
+      fixedStep,
+      maxDlnA: integ.max_dln_a,
+      massTolerance: integ.mass_tolerance,
+      maxSteps: integ.max_steps,
+      threads: resolveThreads(integ.threads, cells.reduce((p, n) => p * n, 1)),
+    },
     output: {
       timeseriesEvery: out.timeseries_every,
       timeUnit,
@@ -173,6 +183,17 @@ export function resolveRun(config: CheckedConfig, name: string, cwd: string): Re
       checkpointEvery: out.checkpoint_every,
     },
   };
+}
+
+/** Threads: as configured, else PSIBOX_THREADS, else the cores (one thread below 32³ cells, where threads do not pay). */
+function resolveThreads(configured: number | undefined, cells: number): number {
+  if (configured !== undefined) {
+    if (!(configured >= 1 && configured <= 64)) throw new ConfigError("integrator.threads", `must be from 1 to 64, got ${configured}`);
+    return configured;
+  }
+  const env = Number(process.env["PSIBOX_THREADS"] ?? NaN);
+  if (Number.isInteger(env) && env >= 1) return Math.min(env, 64);
+  return cells < 32 ** 3 ? 1 : os.availableParallelism();
 }
 
 function resolveSnapshotTimes(

@@ -169,6 +169,8 @@ export const integratorSchema = z.strictObject({
   mass_tolerance: z.number().default(1e-8),
   /** Step cap. @default 10000000 */
   max_steps: z.number().int().default(10_000_000),
+  /** Worker threads for the step (1: none). @default the number of cores (1 for grids below 32³ cells) */
+  threads: z.number().int().optional(),
 });
 
 export const outputSchema = z.strictObject({

@@ -10,11 +10,18 @@
 import FFT from "fft.js";
 import type { Triple } from "../grid/grid.js";
 
+/** How many independent units a pass along `axis` splits into (rows for the last axis, outer slabs otherwise). */
+export function outerCount(shape: Triple, axis: number): number {
+  const [n0, n1, n2] = shape;
+  const blocks = Math.ceil(n2 / BLOCK);
+  return axis === 2 ? n0 * n1 : (axis === 1 ? n0 : n1) * blocks;
+}
+
 /** Pencils transformed together along a strided axis (cache blocking). */
 const BLOCK = 16;
 
 /** One fft.js plan with pencil buffers for a block of pencils. */
-class Plan1D {
+export class Plan1D {
   readonly n: number;
   readonly fft: FFT;
   readonly input: Float64Array;
@@ -42,14 +49,14 @@ class Plan1D {
  * @param data interleaved complex data of shape `shape`
  * @param axis 0, 1 or 2
  */
-function transformAxis(data: Float64Array, shape: Triple, axis: number, plan: Plan1D, inverse: boolean): void {
+export function transformAxis(data: Float64Array, shape: Triple, axis: number, plan: Plan1D, inverse: boolean, lo = 0, hi = outerCount(shape, axis)): void {
   const [n0, n1, n2] = shape;
   const n = plan.n;
   const inBuf = plan.input;
   const outBuf = plan.output;
   const fft = plan.fft;
   if (axis === 2) {
-    for (let row = 0; row < n0 * n1; row++) {
+    for (let row = lo; row < hi; row++) {
       const base = 2 * row * n2;
       for (let j = 0; j < 2 * n; j++) inBuf[j] = data[base + j] as number;
       if (inverse) fft.inverseTransform(outBuf, inBuf);
@@ -60,12 +67,14 @@ function transformAxis(data: Float64Array, shape: Triple, axis: number, plan: Pl
   }
   const stride = axis === 1 ? n2 : n1 * n2;
   // pencil starts: (a, ·, c) for axis 1, (·, b, c) for axis 0; c is contiguous in memory
-  const outerCount = axis === 1 ? n0 : n1;
   const outerStride = axis === 1 ? n1 * n2 : n2;
   const bin = plan.blockIn;
   const bout = plan.blockOut;
-  for (let o = 0; o < outerCount; o++) {
-    for (let c0 = 0; c0 < n2; c0 += BLOCK) {
+  const blocks = Math.ceil(n2 / BLOCK);
+  for (let unit = lo; unit < hi; unit++) {
+    const o = Math.floor(unit / blocks);
+    const c0 = (unit - o * blocks) * BLOCK;
+    {
       const count = Math.min(BLOCK, n2 - c0);
       const start = o * outerStride + c0;
       for (let j = 0; j < n; j++) {
@@ -95,7 +104,7 @@ function transformAxis(data: Float64Array, shape: Triple, axis: number, plan: Pl
 /** In-place complex FFT over a 3D shape (axes of size 1 skipped). */
 export class ComplexFft {
   readonly shape: Triple;
-  private readonly plans: (Plan1D | undefined)[];
+  readonly plans: (Plan1D | undefined)[];
 
   constructor(shape: Triple) {
     this.shape = shape;
@@ -108,6 +117,12 @@ export class ComplexFft {
       const plan = this.plans[axis];
       if (plan) transformAxis(data, this.shape, axis, plan, false);
     }
+  }
+
+  /** One pass along `axis` over units [lo, hi) of outerCount(shape, axis). */
+  pass(data: Float64Array, axis: number, inverse: boolean, lo: number, hi: number): void {
+    const plan = this.plans[axis];
+    if (plan) transformAxis(data, this.shape, axis, plan, inverse, lo, hi);
   }
 
   /** Inverse transform in place (normalised by 1/N). */
@@ -130,7 +145,8 @@ export class RealFft {
   /** Shape of the half spectrum. */
   readonly halfShape: Triple;
   private readonly rowPlan: Plan1D;
-  private readonly outerPlans: (Plan1D | undefined)[];
+  /** Plans of the two outer axes of the half spectrum. */
+  readonly outerPlans: (Plan1D | undefined)[];
   private readonly cosTw: Float64Array;
   private readonly sinTw: Float64Array;
 
@@ -157,13 +173,19 @@ export class RealFft {
 
   /** Forward transform of real `input` into the half spectrum `out` (interleaved). */
   forward(input: Float64Array, out: Float64Array): void {
-    const [n0, n1, n2] = this.shape;
+    this.forwardRows(input, out, 0, this.shape[0] * this.shape[1]);
+    this.outer(out, false);
+  }
+
+  /** The last-axis real transforms of rows [lo, hi) (the first half of forward()). */
+  forwardRows(input: Float64Array, out: Float64Array, lo: number, hi: number): void {
+    const [, , n2] = this.shape;
     const h2 = this.halfShape[2];
     const m = n2 / 2;
     const { input: z, output: Z, fft } = this.rowPlan;
     const c = this.cosTw;
     const s = this.sinTw;
-    for (let row = 0; row < n0 * n1; row++) {
+    for (let row = lo; row < hi; row++) {
       const src = row * n2;
       for (let j = 0; j < 2 * m; j++) z[j] = input[src + j] as number;
       fft.transform(Z, z);
@@ -186,19 +208,23 @@ export class RealFft {
         out[dst + 2 * k + 1] = ei + cr * oi + si * or;
       }
     }
-    this.outer(out, false);
   }
 
   /** Inverse transform of the half spectrum `spec` into real `out`; `spec` is overwritten. */
   inverse(spec: Float64Array, out: Float64Array): void {
-    const [n0, n1, n2] = this.shape;
+    this.outer(spec, true);
+    this.inverseRows(spec, out, 0, this.shape[0] * this.shape[1]);
+  }
+
+  /** The last-axis inverse real transforms of rows [lo, hi) (the second half of inverse()). */
+  inverseRows(spec: Float64Array, out: Float64Array, lo: number, hi: number): void {
+    const [, , n2] = this.shape;
     const h2 = this.halfShape[2];
     const m = n2 / 2;
-    this.outer(spec, true);
     const { input: Z, output: z, fft } = this.rowPlan;
     const c = this.cosTw;
     const s = this.sinTw;
-    for (let row = 0; row < n0 * n1; row++) {
+    for (let row = lo; row < hi; row++) {
       const src = 2 * row * h2;
       for (let k = 0; k < m; k++) {
         const xr = spec[src + 2 * k] as number;
@@ -221,6 +247,12 @@ export class RealFft {
       const dst = row * n2;
       for (let j = 0; j < 2 * m; j++) out[dst + j] = z[j] as number;
     }
+  }
+
+  /** One pass of the half spectrum along outer `axis` (0 or 1) over units [lo, hi) of outerCount(halfShape, axis). */
+  outerPass(spec: Float64Array, axis: 0 | 1, inverse: boolean, lo: number, hi: number): void {
+    const plan = this.outerPlans[axis];
+    if (plan) transformAxis(spec, this.halfShape, axis, plan, inverse, lo, hi);
   }
 
   private outer(spec: Float64Array, inverse: boolean): void {

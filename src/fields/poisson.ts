@@ -15,6 +15,7 @@ import type { Grid } from "../grid/grid.js";
 import { Grid as GridClass } from "../grid/grid.js";
 import { RealFft } from "./fft.js";
 import { freeGreen, selfCellWeight } from "./green.js";
+import { poissonRows } from "./step-kernels.js";
 
 /** The gravity boundary conditions psibox offers. */
 export type GravityKind = "periodic" | "isolated" | "none";
@@ -65,22 +66,15 @@ export class PeriodicPoisson implements PoissonSolver {
   solveInPlace(field: Float64Array): void {
     const spec = this.spectrum;
     this.fft.forward(field, spec);
-    const [h0, h1, h2] = this.fft.halfShape;
+    const [h0, h1] = this.fft.halfShape;
     const [k0, k1, k2] = this.k2;
-    let p = 0;
-    for (let a = 0; a < h0; a++) {
-      const ka = k0[a] as number;
-      for (let b = 0; b < h1; b++) {
-        const kab = ka + (k1[b] as number);
-        for (let c = 0; c < h2; c++, p += 2) {
-          const kk = kab + (k2[c] as number);
-          const g = kk > 0 ? -1 / kk : 0;
-          spec[p] = (spec[p] as number) * g;
-          spec[p + 1] = (spec[p + 1] as number) * g;
-        }
-      }
-    }
+    poissonRows(spec, this.fft.halfShape, k0, k1, k2, 0, h0 * h1);
     this.fft.inverse(spec, field);
+  }
+
+  /** The k² tables per axis (the last one for the half spectrum). */
+  get kSquared(): readonly [Float64Array, Float64Array, Float64Array] {
+    return this.k2;
   }
 }
 

@@ -18,6 +18,7 @@ import type { Grid } from "../grid/grid.js";
 import type { Background } from "../physics/cosmology/background.js";
 import type { PoissonSolver } from "../fields/poisson.js";
 import { ComplexFft } from "../fields/fft.js";
+import { densityRows, driftRows, gradientNormRows, kickRows } from "../fields/step-kernels.js";
 
 /** The evolving field and the machinery to advance it. */
 export class SplitStepper {
@@ -40,21 +41,26 @@ export class SplitStepper {
   /** The last step's factors D = ∫dt/a² and K = K₁ + K₂ = ∫dt/a. */
   lastDrift = 0;
   lastKick = 0;
-  private readonly phase: readonly [Float64Array, Float64Array, Float64Array];
+  protected readonly phase: readonly [Float64Array, Float64Array, Float64Array];
 
-  constructor(grid: Grid, background: Background, gravity: PoissonSolver) {
+  /**
+   * @param shared allocate ψ, φ and the phase tables in shared memory (for worker threads)
+   */
+  constructor(grid: Grid, background: Background, gravity: PoissonSolver, shared = false) {
     this.grid = grid;
     this.background = background;
     this.gravity = gravity;
-    this.psi = new Float64Array(2 * grid.size);
-    this.phi = new Float64Array(grid.size);
+    const alloc = (n: number) => (shared ? new Float64Array(new SharedArrayBuffer(8 * n)) : new Float64Array(n));
+    this.psi = alloc(2 * grid.size);
+    this.phi = alloc(grid.size);
     this.fft = new ComplexFft(grid.shape);
-    this.phase = [
-      new Float64Array(2 * grid.shape[0]),
-      new Float64Array(2 * grid.shape[1]),
-      new Float64Array(2 * grid.shape[2]),
-    ];
+    const [n0, n1, n2] = grid.shape;
+    const tables = alloc(2 * (n0 + n1 + n2));
+    this.phase = [tables.subarray(0, 2 * n0), tables.subarray(2 * n0, 2 * (n0 + n1)), tables.subarray(2 * (n0 + n1))];
   }
+
+  /** Release resources (worker threads in subclasses). */
+  close(): void {}
 
   /** Load a field (copied) at time t and compute its potential. */
   setState(psi: Float64Array, time: number): void {
@@ -82,40 +88,31 @@ export class SplitStepper {
 
   /** Recompute φ and the mass from ψ. */
   updatePotential(): void {
-    const psi = this.psi;
-    const phi = this.phi;
-    let sum = 0;
-    for (let i = 0; i < phi.length; i++) {
-      const re = psi[2 * i] as number;
-      const im = psi[2 * i + 1] as number;
-      const rho = re * re + im * im;
-      phi[i] = rho;
-      sum += rho;
-    }
-    this.mass = sum * this.grid.cellVolume;
-    this.gravity.solveInPlace(phi);
+    const [n0, n1, n2] = this.grid.shape;
+    this.mass = densityRows(this.psi, this.phi, n2, 0, n0 * n1) * this.grid.cellVolume;
+    this.gravity.solveInPlace(this.phi);
   }
 
   /** ψ ← e^{−iφK} ψ. */
   kick(factor: number): void {
     if (factor === 0 || this.gravity.kind === "none") return;
-    const psi = this.psi;
-    const phi = this.phi;
-    for (let i = 0; i < phi.length; i++) {
-      const angle = -(phi[i] as number) * factor;
-      const c = Math.cos(angle);
-      const s = Math.sin(angle);
-      const re = psi[2 * i] as number;
-      const im = psi[2 * i + 1] as number;
-      psi[2 * i] = re * c - im * s;
-      psi[2 * i + 1] = re * s + im * c;
-    }
+    const [n0, n1, n2] = this.grid.shape;
+    kickRows(this.psi, this.phi, factor, n2, 0, n0 * n1);
   }
 
   /** ψ ← F⁻¹ e^{−ik²D/2} F ψ, with the phase factored per axis (no sin/cos per cell). */
   drift(factor: number): void {
     const psi = this.psi;
     this.fft.forward(psi);
+    this.fillPhaseTables(factor);
+    const [n0, n1] = this.grid.shape;
+    if (this.trackKinetic) this.midKineticTilde = this.spectralGradientNorm();
+    driftRows(psi, this.grid.shape, this.phase[0], this.phase[1], this.phase[2], 0, n0 * n1);
+    this.fft.inverse(psi);
+  }
+
+  /** cos and sin of −k²D/2 per axis (the drift's phase factors). */
+  protected fillPhaseTables(factor: number): void {
     for (let ax = 0; ax < 3; ax++) {
       const k = this.grid.wavenumbers(ax as 0 | 1 | 2);
       const table = this.phase[ax] as Float64Array;
@@ -125,48 +122,13 @@ export class SplitStepper {
         table[2 * j + 1] = Math.sin(angle);
       }
     }
-    const [n0, n1, n2] = this.grid.shape;
-    const [p0, p1, p2] = this.phase;
-    if (this.trackKinetic) this.midKineticTilde = this.spectralGradientNorm();
-    let p = 0;
-    for (let a = 0; a < n0; a++) {
-      const ar = p0[2 * a] as number;
-      const ai = p0[2 * a + 1] as number;
-      for (let b = 0; b < n1; b++) {
-        const br = p1[2 * b] as number;
-        const bi = p1[2 * b + 1] as number;
-        const abr = ar * br - ai * bi;
-        const abi = ar * bi + ai * br;
-        for (let c = 0; c < n2; c++, p += 2) {
-          const cr = p2[2 * c] as number;
-          const ci = p2[2 * c + 1] as number;
-          const er = abr * cr - abi * ci;
-          const ei = abr * ci + abi * cr;
-          const re = psi[p] as number;
-          const im = psi[p + 1] as number;
-          psi[p] = re * er - im * ei;
-          psi[p + 1] = re * ei + im * er;
-        }
-      }
-    }
-    this.fft.inverse(psi);
   }
 
   /** ½ Σ_k k²|ψ_k|² ΔV/N of the transformed field in `psi` (Parseval: ½∫|∇ψ|² dV). */
-  private spectralGradientNorm(): number {
-    const psi = this.psi;
-    const [k0, k1, k2] = [this.grid.wavenumbers(0), this.grid.wavenumbers(1), this.grid.wavenumbers(2)];
-    const [n0, n1, n2] = this.grid.shape;
-    let sum = 0;
-    let p = 0;
-    for (let a = 0; a < n0; a++) {
-      const ka = k0[a]! * k0[a]!;
-      for (let b = 0; b < n1; b++) {
-        const kab = ka + k1[b]! * k1[b]!;
-        for (let c = 0; c < n2; c++, p += 2) sum += (kab + k2[c]! * k2[c]!) * (psi[p]! * psi[p]! + psi[p + 1]! * psi[p + 1]!);
-      }
-    }
-    return (0.5 * sum * this.grid.cellVolume) / this.grid.size;
+  protected spectralGradientNorm(): number {
+    const [n0, n1] = this.grid.shape;
+    const sum = gradientNormRows(this.psi, this.grid.shape, this.grid.wavenumbers(0), this.grid.wavenumbers(1), this.grid.wavenumbers(2), 0, n0 * n1);
+    return (sum * this.grid.cellVolume) / this.grid.size;
   }
 
   /** Advance by Δt (code time) with one kick–drift–kick step. */

@@ -69,6 +69,41 @@ export function evolve(
   hooks: EvolveHooks = {},
   start?: EvolveStart,
 ): EvolveResult {
+  const steps = evolveSteps(stepper, rules, limits, hooks, start);
+  for (let r = steps.next(); ; r = steps.next()) if (r.done) return r.value;
+}
+
+/**
+ * The same as evolve(), but returning to the event loop every `yieldMs`
+ * milliseconds so that signals (Ctrl-C) and timers are handled during a run.
+ */
+export async function evolveAsync(
+  stepper: SplitStepper,
+  rules: TimestepRules,
+  limits: EvolveLimits,
+  hooks: EvolveHooks = {},
+  start?: EvolveStart,
+  yieldMs = 100,
+): Promise<EvolveResult> {
+  const steps = evolveSteps(stepper, rules, limits, hooks, start);
+  let last = performance.now();
+  for (let r = steps.next(); ; r = steps.next()) {
+    if (r.done) return r.value;
+    if (performance.now() - last > yieldMs) {
+      await new Promise((resolve) => setImmediate(resolve));
+      last = performance.now();
+    }
+  }
+}
+
+/** The run loop as a generator: it yields after every accepted step and returns how the run ended. */
+function* evolveSteps(
+  stepper: SplitStepper,
+  rules: TimestepRules,
+  limits: EvolveLimits,
+  hooks: EvolveHooks,
+  start?: EvolveStart,
+): Generator<void, EvolveResult, void> {
   const fmt = hooks.formatTime ?? ((t: number) => t.toPrecision(6));
   const backup = new Float64Array(stepper.psi.length);
   const mass0 = start?.mass0 ?? stepper.mass;
@@ -121,6 +156,7 @@ export function evolve(
       };
     }
     hooks.onStep?.(stepper, { step: steps, dt, limiter, massDrift: drift, scratch: backup, landed });
+    yield;
   }
   return { status: "completed", steps };
 }

@@ -10,6 +10,7 @@ import { Grid } from "../grid/grid.js";
 import { makePoissonSolver } from "../fields/poisson.js";
 import { makeBackground } from "../physics/cosmology/background.js";
 import { SplitStepper } from "../integrators/split-step.js";
+import { ThreadedStepper } from "../integrators/threaded-step.js";
 import { buildInitialField } from "../initial-conditions/build.js";
 import { kineticEnergy, maxDensity, potentialEnergy } from "../diagnostics/energies.js";
 import { CsvWriter } from "../io/csv-writer.js";
@@ -19,7 +20,7 @@ import { readSnapshot, type CheckpointState } from "../io/snapshot.js";
 import type { ResolvedRun } from "../config/resolve.js";
 import { resolvedConfigToml, sha256 } from "../config/serialize.js";
 import { InputError } from "../core/errors.js";
-import { evolve, type StepInfo } from "./evolve.js";
+import { evolveAsync, type StepInfo } from "./evolve.js";
 import { OutputScales } from "./scales.js";
 import { RunWriter, runPaths } from "./outputs.js";
 import { SidecarTracker } from "../quantum/tracker.js";
@@ -89,7 +90,32 @@ export async function runSimulation(run: ResolvedRun, options: RunOptions = {}):
   const configText = options.resume ? fs.readFileSync(paths.config, "utf8") : resolvedConfigToml(run, options.cwd ?? process.cwd());
   if (!options.resume) writeFileAtomic(paths.config, configText);
   const writer = new RunWriter(run, scales, configText, sha256(configText));
-  const stepper = new SplitStepper(grid, background, gravity);
+  const stepper = run.integrator.threads > 1 ? new ThreadedStepper(grid, background, gravity, run.integrator.threads) : new SplitStepper(grid, background, gravity);
+  try {
+    return await evolveRun(run, options, { scales, grid, background, gravity, expanding, startTime, endTime, paths, writer, stepper, reporter, wallStart, configText });
+  } finally {
+    stepper.close();
+  }
+}
+
+interface RunParts {
+  readonly scales: OutputScales;
+  readonly grid: Grid;
+  readonly background: ReturnType<typeof makeBackground>;
+  readonly gravity: ReturnType<typeof makePoissonSolver>;
+  readonly expanding: boolean;
+  readonly startTime: number;
+  readonly endTime: number;
+  readonly paths: ReturnType<typeof runPaths>;
+  readonly writer: RunWriter;
+  readonly stepper: SplitStepper;
+  readonly reporter: RunReporter;
+  readonly wallStart: number;
+  readonly configText: string;
+}
+
+async function evolveRun(run: ResolvedRun, options: RunOptions, parts: RunParts): Promise<RunSummary> {
+  const { scales, grid, background, gravity, expanding, startTime, endTime, paths, writer, stepper, reporter, wallStart } = parts;
 
   let resumed: CheckpointState | undefined;
   let relaxation: RunSummary["relaxation"];
@@ -222,7 +248,7 @@ export async function runSimulation(run: ResolvedRun, options: RunOptions = {}):
       reporter.progress(progressOf(s.time), `step ${info.step}, ${where}, dt = ${scales.time(info.dt).toPrecision(3)} ${u} (${info.limiter})`);
     }
   };
-  const result = evolve(
+  const result = await evolveAsync(
     stepper,
     { safety: run.integrator.safety, maxDlnA: run.integrator.maxDlnA, fixedStep: run.integrator.fixedStep },
     { endTime, stops: run.output.snapshotTimes, massTolerance: run.integrator.massTolerance, maxSteps: run.integrator.maxSteps },

@@ -1,0 +1,46 @@
+// Worker threads end cleanly: after a normal run, after a run stopped by a guard rail, and on SIGINT.
+import { spawn, spawnSync } from "node:child_process";
+import fs from "node:fs";
+import os from "node:os";
+import path from "node:path";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+
+const BIN = path.resolve("dist/cli/bin.js");
+let work: string;
+const CONFIG = (duration: string, extra = "") =>
+  `[grid]\ncells = [32, 32, 32]\nbox = "20 kpc"\n[particle]\nmass = "1e-22 eV"\n[span]\nduration = "${duration}"\n` +
+  `[initial]\nkind = "plane-wave"\nmean_density = "1e7 Msun/kpc^3"\ncontrast = 0.2\nmode = [1, 1, 0]\n[integrator]\nthreads = 2\n${extra}`;
+
+beforeAll(() => {
+  work = fs.mkdtempSync(path.join(os.tmpdir(), "psibox-threads-"));
+});
+afterAll(() => fs.rmSync(work, { recursive: true, force: true }));
+
+describe("worker threads shut down", () => {
+  it("after a normal end and after a guard-rail stop, the process exits by itself", () => {
+    fs.writeFileSync(path.join(work, "ok.toml"), CONFIG("20 Myr"));
+    const ok = spawnSync(process.execPath, [BIN, "run", "ok.toml", "-q"], { cwd: work, encoding: "utf8", timeout: 60_000 });
+    expect(ok.status, ok.stderr).toBe(0);
+    fs.writeFileSync(path.join(work, "bad.toml"), CONFIG("20 Myr", "mass_tolerance = 1e-18\n"));
+    const bad = spawnSync(process.execPath, [BIN, "run", "bad.toml", "-q"], { cwd: work, encoding: "utf8", timeout: 60_000 });
+    expect(bad.status).toBe(3);
+    expect(bad.stderr).toMatch(/run stopped: step \d+/);
+  });
+
+  it("on SIGINT the run stops at its next step, checkpoints and exits with 130", async () => {
+    fs.writeFileSync(path.join(work, "long.toml"), CONFIG("100 Gyr", "[output]\ncheckpoint_every = 10\n"));
+    const child = spawn(process.execPath, [BIN, "run", "long.toml", "-q"], { cwd: work, stdio: ["ignore", "ignore", "pipe"] });
+    let stderr = "";
+    child.stderr.on("data", (d: Buffer) => (stderr += d.toString()));
+    const exited = new Promise<number | null>((r) => child.on("exit", (code) => r(code)));
+    const checkpoint = path.join(work, "output/long/checkpoint.h5");
+    const start = Date.now();
+    while (!fs.existsSync(checkpoint) && Date.now() - start < 60_000) await new Promise((r) => setTimeout(r, 20));
+    const sent = Date.now();
+    child.kill("SIGINT");
+    const code = await exited;
+    expect(code).toBe(130);
+    expect(Date.now() - sent).toBeLessThan(15_000);
+    expect(stderr).toMatch(/interrupted \(SIGINT\).*psibox run --resume/);
+  });
+});
