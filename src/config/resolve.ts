@@ -6,7 +6,7 @@
 import os from "node:os";
 import path from "node:path";
 import { ConfigError } from "../core/errors.js";
-import { CodeUnits, parseAs, parseUnit, UnitSyntaxError, type QuantityKind, type UnitContext } from "../physics/units.js";
+import { CodeUnits, parseUnit, UnitSyntaxError, type UnitContext } from "../physics/units.js";
 import { MPC_M } from "../physics/constants.js";
 import { makeBackground } from "../physics/cosmology/background.js";
 import { Grid } from "../grid/grid.js";

@@ -39,19 +39,14 @@ export function densityPowerSpectrum(grid: Grid, psi: Float64Array): PowerBin[] 
   const sum = new Float64Array(bins);
   const ksum = new Float64Array(bins);
   const count = new Float64Array(bins);
-  const [k0, k1, k2] = [grid.wavenumbers(0), grid.wavenumbers(1), grid.wavenumbers(2)];
-  const [n0, n1, n2] = grid.shape;
-  let p = 0;
-  for (let a = 0; a < n0; a++)
-    for (let b = 0; b < n1; b++)
-      for (let c = 0; c < n2; c++, p += 2) {
-        const k = Math.sqrt(k0[a]! ** 2 + k1[b]! ** 2 + k2[c]! ** 2);
-        if (k === 0) continue;
-        const bin = Math.min(bins - 1, Math.max(0, Math.round(k / kF) - 1));
-        sum[bin] = sum[bin]! + (grid.volume * (data[p]! ** 2 + data[p + 1]! ** 2)) / (n * n);
-        ksum[bin] = ksum[bin]! + k;
-        count[bin] = count[bin]! + 1;
-      }
+  grid.forEachMode((p, kx, ky, kz) => {
+    const k = Math.sqrt(kx * kx + ky * ky + kz * kz);
+    if (k === 0) return;
+    const bin = Math.min(bins - 1, Math.max(0, Math.round(k / kF) - 1));
+    sum[bin] = sum[bin]! + (grid.volume * (data[p]! ** 2 + data[p + 1]! ** 2)) / (n * n);
+    ksum[bin] = ksum[bin]! + k;
+    count[bin] = count[bin]! + 1;
+  });
   const out: PowerBin[] = [];
   for (let i = 0; i < bins; i++) if (count[i]! > 0) out.push({ k: ksum[i]! / count[i]!, power: sum[i]! / count[i]!, modes: count[i]! });
   return out;
@@ -152,16 +147,10 @@ export function kineticSplit(grid: Grid, psi: Float64Array, a: number): KineticS
   }
   const dv = grid.cellVolume;
   // K from Parseval with the full k² (Nyquist included), as the solver's kinetic operator has it
-  {
-    const [k0, k1, k2] = [grid.wavenumbers(0), grid.wavenumbers(1), grid.wavenumbers(2)];
-    let p = 0;
-    for (let i0 = 0; i0 < n0; i0++)
-      for (let i1 = 0; i1 < n1; i1++)
-        for (let i2 = 0; i2 < n2; i2++, p += 2) {
-          gradSquared += (k0[i0]! ** 2 + k1[i1]! ** 2 + k2[i2]! ** 2) * (spectrum[p]! ** 2 + spectrum[p + 1]! ** 2);
-        }
-    gradSquared /= n;
-  }
+  grid.forEachMode((p, kx, ky, kz) => {
+    gradSquared += (kx * kx + ky * ky + kz * kz) * (spectrum[p]! ** 2 + spectrum[p + 1]! ** 2);
+  });
+  gradSquared /= n;
   const kinetic = (0.5 / (a * a)) * gradSquared * dv;
   const bulk = (0.5 / (a * a)) * bulk2 * dv;
   const meanVelocity = jSum.map((s) => s / (a * mass));

@@ -50,7 +50,7 @@ export class Plan1D {
  * @param axis 0, 1 or 2
  */
 export function transformAxis(data: Float64Array, shape: Triple, axis: number, plan: Plan1D, inverse: boolean, lo = 0, hi = outerCount(shape, axis)): void {
-  const [n0, n1, n2] = shape;
+  const [, n1, n2] = shape;
   const n = plan.n;
   const inBuf = plan.input;
   const outBuf = plan.output;

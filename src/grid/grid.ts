@@ -104,6 +104,20 @@ export class Grid {
     return i * (this.spacing[axis] as number);
   }
 
+  /**
+   * Visit every Fourier mode in storage order: `visit(p, kx, ky, kz, a, b, c)`
+   * with p the interleaved complex offset (2 × cell index), the angular
+   * wavenumbers along the three internal axes and the mode's indices.
+   */
+  forEachMode(visit: (p: number, kx: number, ky: number, kz: number, a: number, b: number, c: number) => void): void {
+    const [k0, k1, k2] = this.k;
+    const [n0, n1, n2] = this.shape;
+    let p = 0;
+    for (let a = 0; a < n0; a++)
+      for (let b = 0; b < n1; b++)
+        for (let c = 0; c < n2; c++, p += 2) visit(p, k0[a] as number, k1[b] as number, k2[c] as number, a, b, c);
+  }
+
   /** Readable one-line summary. */
   describe(): string {
     return `${this.dims}D grid ${this.cells.join("×")} cells, box ${this.lengths.map((l) => l.toPrecision(4)).join("×")} (code lengths)`;

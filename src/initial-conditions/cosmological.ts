@@ -48,29 +48,24 @@ export function gaussianRandomField(grid: Grid, power: LinearPower, opts: Random
   const fft = new ComplexFft(grid.shape);
   fft.forward(data);
   const volumeMpc3 = grid.volume * opts.lengthUnitMpc ** 3;
-  const [k0, k1, k2] = [grid.wavenumbers(0), grid.wavenumbers(1), grid.wavenumbers(2)];
-  const [n0, n1, n2] = grid.shape;
   const sign = opts.paired ? -1 : 1;
-  let p = 0;
-  for (let a = 0; a < n0; a++)
-    for (let b = 0; b < n1; b++)
-      for (let c = 0; c < n2; c++, p += 2) {
-        const kk = k0[a]! * k0[a]! + k1[b]! * k1[b]! + k2[c]! * k2[c]!;
-        if (kk === 0) {
-          data[p] = 0;
-          data[p + 1] = 0;
-          continue;
-        }
-        const kMpc = Math.sqrt(kk) / opts.lengthUnitMpc;
-        let amp = sign * opts.growthRatio * Math.sqrt((n * power.at(kMpc)) / volumeMpc3);
-        if (opts.fixedAmplitude) amp *= Math.sqrt(n) / Math.hypot(data[p]!, data[p + 1]!);
-        const re = data[p]! * amp;
-        const im = data[p + 1]! * amp;
-        // δ_k + i S_k with S_k = (flow/k²) δ_k
-        const f = opts.flowFactor / kk;
-        data[p] = re - f * im;
-        data[p + 1] = im + f * re;
-      }
+  grid.forEachMode((p, kx, ky, kz) => {
+    const kk = kx * kx + ky * ky + kz * kz;
+    if (kk === 0) {
+      data[p] = 0;
+      data[p + 1] = 0;
+      return;
+    }
+    const kMpc = Math.sqrt(kk) / opts.lengthUnitMpc;
+    let amp = sign * opts.growthRatio * Math.sqrt((n * power.at(kMpc)) / volumeMpc3);
+    if (opts.fixedAmplitude) amp *= Math.sqrt(n) / Math.hypot(data[p]!, data[p + 1]!);
+    const re = data[p]! * amp;
+    const im = data[p + 1]! * amp;
+    // δ_k + i S_k with S_k = (flow/k²) δ_k
+    const f = opts.flowFactor / kk;
+    data[p] = re - f * im;
+    data[p + 1] = im + f * re;
+  });
   fft.inverse(data);
   const delta = new Float64Array(n);
   const phase = new Float64Array(n);

@@ -92,21 +92,17 @@ export function shiftField(grid: Grid, psi: Float64Array, displacement: readonly
   const pad = 3 - grid.dims;
   const d3 = [0, 0, 0];
   displacement.forEach((d, i) => (d3[pad + i] = d));
-  const [k0, k1, k2] = [grid.wavenumbers(0), grid.wavenumbers(1), grid.wavenumbers(2)];
   const [n0, n1, n2] = grid.shape;
-  let p = 0;
-  for (let a = 0; a < n0; a++)
-    for (let b = 0; b < n1; b++)
-      for (let c = 0; c < n2; c++, p += 2) {
-        // the Nyquist mode has no sign: shift it by the real part of its phase only
-        const nyq = (n: number, j: number) => n > 1 && j === n / 2;
-        const ang = -((nyq(n0, a) ? 0 : k0[a]! * d3[0]!) + (nyq(n1, b) ? 0 : k1[b]! * d3[1]!) + (nyq(n2, c) ? 0 : k2[c]! * d3[2]!));
-        const cs = Math.cos(ang);
-        const sn = Math.sin(ang);
-        const re = psi[p]!;
-        const im = psi[p + 1]!;
-        psi[p] = re * cs - im * sn;
-        psi[p + 1] = re * sn + im * cs;
-      }
+  // the Nyquist mode has no sign: it is left unshifted
+  const nyq = (n: number, j: number) => n > 1 && j === n / 2;
+  grid.forEachMode((p, kx, ky, kz, a, b, c) => {
+    const ang = -((nyq(n0, a) ? 0 : kx * d3[0]!) + (nyq(n1, b) ? 0 : ky * d3[1]!) + (nyq(n2, c) ? 0 : kz * d3[2]!));
+    const cs = Math.cos(ang);
+    const sn = Math.sin(ang);
+    const re = psi[p]!;
+    const im = psi[p + 1]!;
+    psi[p] = re * cs - im * sn;
+    psi[p + 1] = re * sn + im * cs;
+  });
   fft.inverse(psi);
 }

@@ -1,7 +1,6 @@
 // Diagnostics against known spectra, Parseval, exact profiles, the solver's own energies and a moving packet.
 import { describe, expect, it } from "vitest";
 import { Grid } from "../../src/grid/grid.js";
-import { IsolatedPoisson } from "../../src/fields/poisson.js";
 import { LinearPower } from "../../src/physics/cosmology/power.js";
 import { gaussianRandomField } from "../../src/initial-conditions/cosmological.js";
 import { buildSolitons } from "../../src/initial-conditions/solitons.js";

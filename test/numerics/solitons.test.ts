@@ -79,7 +79,7 @@ describe("solitons", () => {
     stepper.setState(moving.psi, 0);
     evolve(stepper, { safety: 0.25, maxDlnA: 0.01 }, { endTime: T, massTolerance: 1e-8, maxSteps: 1e6 });
     const c = centreOfMass(stepper.psi);
-    const moved = c.map((x, i) => x - 0.5);
+    const moved = c.map((x) => x - 0.5);
     moved.forEach((d, i) => expect(Math.abs(d - v[i]! * T)).toBeLessThan(0.01 * Math.hypot(...v) * T));
   });
 
