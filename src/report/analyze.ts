@@ -148,8 +148,10 @@ export async function analyzeSnapshot(file: string, outDir: string, withPictures
       if (pl.projection) figures["projection"] = await fieldFigure(pl.projection, { xTitle: "x [kpc]", yTitle: "y [kpc]", legend: "log₁₀ ⟨ρ⟩ [Msun/kpc³]", caption: `projection, ${caption(snap)}` });
     }
     const linear = linearPrediction(file, field);
+    // bins at round-off level (a field with a few modes) would only stretch the log axis
+    const maxP = Math.max(...power.map((b) => b.power));
     figures["power"] = await powerPlot(
-      power.map((b) => ({ k: b.k / kpcPerCode, P: b.power * kpcPerCode ** 3 })),
+      power.filter((b) => b.power > 1e-12 * maxP).map((b) => ({ k: b.k / kpcPerCode, P: b.power * kpcPerCode ** 3 })),
       linear,
       "k [1/kpc]",
       "P(k) [kpc³]",

@@ -21,7 +21,8 @@ function img(fig: Figure | undefined, alt: string): string {
 function table(rows: Record<string, unknown>[]): string {
   if (rows.length === 0) return "<p>none</p>";
   const cols = Object.keys(rows[0]!);
-  const cell = (v: unknown) => (typeof v === "number" ? (Number.isInteger(v) ? String(v) : v.toPrecision(4)) : v === null || v === undefined ? "—" : esc(String(v)));
+  const cell = (v: unknown) =>
+    typeof v === "number" ? (Number.isNaN(v) ? "—" : Number.isInteger(v) ? String(v) : v.toPrecision(4)) : v === null || v === undefined ? "—" : esc(String(v));
   return `<table><thead><tr>${cols.map((c) => `<th>${esc(c)}</th>`).join("")}</tr></thead><tbody>${rows.map((r) => `<tr>${cols.map((c) => `<td>${cell(r[c])}</td>`).join("")}</tr>`).join("")}</tbody></table>`;
 }
 
