@@ -49,12 +49,12 @@ function kSquaredTable(k: Float64Array, dx: number, kernel: PoissonKernel): Floa
 export class PeriodicPoisson implements PoissonSolver {
   readonly kind = "periodic" as const;
   private readonly fft: RealFft;
-  private readonly spectrum: Float64Array;
+  /** Allocated on first use (a threaded stepper brings its own shared one). */
+  private spectrum: Float64Array | undefined;
   private readonly k2: readonly [Float64Array, Float64Array, Float64Array];
 
   constructor(grid: Grid, kernel: PoissonKernel = "spectral") {
     this.fft = new RealFft(grid.shape);
-    this.spectrum = new Float64Array(this.fft.halfLength);
     this.k2 = [
       kSquaredTable(grid.wavenumbers(0), grid.spacing[0], kernel),
       kSquaredTable(grid.wavenumbers(1), grid.spacing[1], kernel),
@@ -64,6 +64,7 @@ export class PeriodicPoisson implements PoissonSolver {
   }
 
   solveInPlace(field: Float64Array): void {
+    this.spectrum ??= new Float64Array(this.fft.halfLength);
     const spec = this.spectrum;
     this.fft.forward(field, spec);
     const [h0, h1] = this.fft.halfShape;
