@@ -3,7 +3,8 @@
 // Prints ms per step (median), ns per cell-step, nominal GFLOP/s and peak resident memory.
 // When python3 with NumPy is available it also runs scripts/numpy_step.py, NumPy's version of the
 // identical step, checks that both give the same field to 1e-10 and prints the time ratio.
-// Usage: node scripts/bench.mjs [--large] [--steps N] [--no-numpy] [--threads N] (default: the number of cores)
+// Usage: node scripts/bench.mjs [--large] [--steps N] [--no-numpy] [--threads N] [--fft auto|wasm|js]
+// (threads default to the number of cores; the fft backend to auto, and the 3D grids are also run on the other backend)
 import { Grid } from "../dist/grid/grid.js";
 import { makePoissonSolver } from "../dist/fields/poisson.js";
 import { StaticBackground } from "../dist/physics/cosmology/background.js";
@@ -22,8 +23,12 @@ const stepsArg = args.indexOf("--steps");
 const steps = stepsArg >= 0 ? Number(args[stepsArg + 1]) : 5;
 const threadsArg = args.indexOf("--threads");
 const threads = threadsArg >= 0 ? Number(args[threadsArg + 1]) : os.availableParallelism();
-const makeStepper = (grid, gravity, t) =>
-  t > 1 ? new ThreadedStepper(grid, new StaticBackground(), makePoissonSolver(grid, gravity), t) : new SplitStepper(grid, new StaticBackground(), makePoissonSolver(grid, gravity));
+const fftArg = args.indexOf("--fft");
+const fft = fftArg >= 0 ? args[fftArg + 1] : "auto";
+const makeStepper = (grid, gravity, t, backend = fft) =>
+  t > 1
+    ? new ThreadedStepper(grid, new StaticBackground(), makePoissonSolver(grid, gravity), t, backend)
+    : new SplitStepper(grid, new StaticBackground(), makePoissonSolver(grid, gravity), backend);
 
 function field(grid) {
   const psi = new Float64Array(2 * grid.size);
@@ -36,9 +41,9 @@ function field(grid) {
   return psi;
 }
 
-function bench(cells, gravity = "periodic", t = 1) {
+function bench(cells, gravity = "periodic", t = 1, backend = fft) {
   const grid = new Grid(cells, cells.map(() => 1));
-  const stepper = makeStepper(grid, gravity, t);
+  const stepper = makeStepper(grid, gravity, t, backend);
   stepper.setState(field(grid), 0);
   const dt = 1e-5;
   stepper.step(dt);
@@ -58,7 +63,7 @@ function bench(cells, gravity = "periodic", t = 1) {
   const n = grid.size;
   // nominal work: one complex FFT pair (2 × 5 N log2 N) plus one real FFT pair (about half that)
   const flops = 15 * n * Math.log2(n);
-  return { label: `${cells.length}D ${cells.join("×")} ${gravity}${t > 1 ? ` ${t}t` : ""}`, ms, nsPerCell: (ms * 1e6) / n, gflops: flops / (ms * 1e6), heapGrowth };
+  return { label: `${cells.length}D ${cells.join("×")} ${gravity}${t > 1 ? ` ${t}t` : ""} ${stepper.backend}`, ms, nsPerCell: (ms * 1e6) / n, gflops: flops / (ms * 1e6), heapGrowth };
 }
 
 const here = path.dirname(fileURLToPath(import.meta.url));
@@ -114,15 +119,18 @@ if (threads > 1) {
   cases.push([[32, 32, 32], "periodic", threads], [[64, 64, 64], "periodic", threads], [[128, 128, 128], "periodic", threads]);
   if (large) cases.push([[256, 256, 256], "periodic", threads]);
 }
+const other = fft === "js" ? "wasm" : "js";
+cases.push([[64, 64, 64], "periodic", 1, other], [[128, 128, 128], "periodic", 1, other]);
+if (threads > 1) cases.push([[128, 128, 128], "periodic", threads, other]);
 cases.push([[32, 32, 32], "isolated"], [[64, 64, 64], "isolated"], [[512, 512]], [[1024, 1024]]);
 if (threads > 1) cases.push([[1024, 1024], "periodic", threads]);
 cases.push([[1 << 16]], [[1 << 20]]);
 console.log(`psibox split-step benchmark, node ${process.version}, ${steps} timed steps per grid (median)`);
-console.log("grid                         ms/step   ns/cell-step   GFLOP/s   heap growth during steps");
-for (const [cells, gravity, t] of cases) {
-  const r = bench(cells, gravity, t);
+console.log("grid                              ms/step   ns/cell-step   GFLOP/s   heap growth during steps");
+for (const [cells, gravity, t, backend] of cases) {
+  const r = bench(cells, gravity, t, backend);
   console.log(
-    `${r.label.padEnd(28)} ${r.ms.toFixed(1).padStart(8)} ${r.nsPerCell.toFixed(1).padStart(14)} ${r.gflops.toFixed(2).padStart(9)}   ${(r.heapGrowth / 1024).toFixed(0)} KiB`,
+    `${r.label.padEnd(33)} ${r.ms.toFixed(1).padStart(8)} ${r.nsPerCell.toFixed(1).padStart(14)} ${r.gflops.toFixed(2).padStart(9)}   ${(r.heapGrowth / 1024).toFixed(0)} KiB`,
   );
 }
 console.log(`peak resident memory: ${(process.resourceUsage().maxRSS / 1024).toFixed(0)} MB`);

@@ -48,6 +48,8 @@ export interface ResolvedRun {
     readonly maxSteps: number;
     /** Worker threads (1: the step runs on the main thread). */
     readonly threads: number;
+    /** FFT implementation of the step. */
+    readonly fft: "auto" | "wasm" | "js";
   };
   readonly output: {
     readonly timeseriesEvery: number;
@@ -172,6 +174,7 @@ export function resolveRun(config: CheckedConfig, name: string, cwd: string): Re
       massTolerance: integ.mass_tolerance,
       maxSteps: integ.max_steps,
       threads: resolveThreads(integ.threads, cells.reduce((p, n) => p * n, 1)),
+      fft: integ.fft,
     },
     output: {
       timeseriesEvery: out.timeseries_every,

@@ -171,6 +171,8 @@ export const integratorSchema = z.strictObject({
   max_steps: z.number().int().default(10_000_000),
   /** Worker threads for the step (1: none). @default the number of cores (1 for grids below 32³ cells) */
   threads: z.number().int().optional(),
+  /** FFT implementation of the step: "wasm" (WebAssembly SIMD), "js" (fft.js) or "auto" (wasm when the grid fits its 4 GiB memory). @default "auto" */
+  fft: z.enum(["auto", "wasm", "js"]).default("auto"),
 });
 
 export const outputSchema = z.strictObject({

@@ -17,8 +17,9 @@ export function outerCount(shape: Triple, axis: number): number {
   return axis === 2 ? n0 * n1 : (axis === 1 ? n0 : n1) * blocks;
 }
 
-/** Pencils transformed together along a strided axis (cache blocking). */
-const BLOCK = 16;
+/** Pencils transformed together along a strided axis (cache blocking); also the wasm kernels' block. */
+export const PENCIL_BLOCK = 16;
+const BLOCK = PENCIL_BLOCK;
 
 /** One fft.js plan with pencil buffers for a block of pencils. */
 export class Plan1D {

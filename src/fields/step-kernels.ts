@@ -45,18 +45,18 @@ export function driftRows(psi: Float64Array, shape: Triple, p0: Float64Array, p1
   }
 }
 
-/** ½ Σ k²|ψ_k|² over rows [lo, hi) of a transformed field (the a-free kinetic sum before ΔV/N). */
-export function gradientNormRows(psi: Float64Array, shape: Triple, k0: Float64Array, k1: Float64Array, k2: Float64Array, lo: number, hi: number): number {
+/** Σ k²|ψ_k|² over rows [lo, hi) of a transformed field, with k² tabulated per axis. */
+export function gradientNormRows(psi: Float64Array, shape: Triple, kk0: Float64Array, kk1: Float64Array, kk2: Float64Array, lo: number, hi: number): number {
   const [, n1, n2] = shape;
   let sum = 0;
   for (let row = lo; row < hi; row++) {
     const a = Math.floor(row / n1);
     const b = row - a * n1;
-    const kab = k0[a]! * k0[a]! + k1[b]! * k1[b]!;
+    const kab = kk0[a]! + kk1[b]!;
     let p = 2 * row * n2;
-    for (let c = 0; c < n2; c++, p += 2) sum += (kab + k2[c]! * k2[c]!) * (psi[p]! * psi[p]! + psi[p + 1]! * psi[p + 1]!);
+    for (let c = 0; c < n2; c++, p += 2) sum += (kab + kk2[c]!) * (psi[p]! * psi[p]! + psi[p + 1]! * psi[p + 1]!);
   }
-  return 0.5 * sum;
+  return sum;
 }
 
 /** φ ← |ψ|² over rows [lo, hi); returns Σ|ψ|² over them. */

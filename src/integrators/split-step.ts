@@ -16,9 +16,12 @@
  */
 import type { Grid } from "../grid/grid.js";
 import type { Background } from "../physics/cosmology/background.js";
-import type { PoissonSolver } from "../fields/poisson.js";
+import { PeriodicPoisson, type PoissonSolver } from "../fields/poisson.js";
 import { ComplexFft } from "../fields/fft.js";
-import { densityRows, driftRows, gradientNormRows, kickRows } from "../fields/step-kernels.js";
+import { createEngine, outerCount, type StepEngine } from "../fields/step-engine.js";
+import { allocateStepMemory, type FftBackend, type StepMemory } from "../fields/step-memory.js";
+import { resolveFftBackend, type FftChoice } from "./fft-backend.js";
+import { runTask, type StepTask } from "./step-task.js";
 
 /** The evolving field and the machinery to advance it. */
 export class SplitStepper {
@@ -33,7 +36,6 @@ export class SplitStepper {
   time = 0;
   /** Mass Σ|ψ|² ΔV of the current field. */
   mass = 0;
-  readonly fft: ComplexFft;
   /** When set, each drift also measures ½∫|∇ψ|² dV (the a-free kinetic energy Ka²) at the step's middle. */
   trackKinetic = false;
   /** ½∫|∇ψ|² dV measured during the last drift (NaN unless trackKinetic). */
@@ -41,24 +43,45 @@ export class SplitStepper {
   /** The last step's factors D = ∫dt/a² and K = K₁ + K₂ = ∫dt/a. */
   lastDrift = 0;
   lastKick = 0;
+  /** The FFT implementation the step runs on. */
+  readonly backend: FftBackend;
+  protected readonly memory: StepMemory;
   protected readonly phase: readonly [Float64Array, Float64Array, Float64Array];
+  private engineOnThisThread: StepEngine | undefined;
+  private complexFft: ComplexFft | undefined;
 
   /**
-   * @param shared allocate ψ, φ and the phase tables in shared memory (for worker threads)
+   * @param fft the FFT backend ("auto": WebAssembly when the grid fits its 4 GiB memory)
+   * @param slots threads that will run the step's passes (subclasses with worker threads)
    */
-  constructor(grid: Grid, background: Background, gravity: PoissonSolver, shared = false) {
+  constructor(grid: Grid, background: Background, gravity: PoissonSolver, fft: FftChoice = "auto", slots = 1) {
     this.grid = grid;
     this.background = background;
     this.gravity = gravity;
-    const alloc = (n: number) => (shared ? new Float64Array(new SharedArrayBuffer(8 * n)) : new Float64Array(n));
-    this.psi = alloc(2 * grid.size);
-    this.phi = alloc(grid.size);
-    this.fft = new ComplexFft(grid.shape);
-    const [n0, n1, n2] = grid.shape;
-    const tables = alloc(2 * (n0 + n1 + n2));
-    this.phase = [tables.subarray(0, 2 * n0), tables.subarray(2 * n0, 2 * (n0 + n1)), tables.subarray(2 * (n0 + n1))];
+    const periodic = gravity instanceof PeriodicPoisson ? gravity : undefined;
+    this.backend = resolveFftBackend(fft, grid.shape, periodic !== undefined, slots);
+    const kSquared = [0, 1, 2].map((ax) => grid.wavenumbers(ax as 0 | 1 | 2).map((k) => k * k));
+    this.memory = allocateStepMemory(this.backend, grid.shape, kSquared, periodic?.kSquared, slots);
+    this.psi = this.memory.psi;
+    this.phi = this.memory.phi;
+    this.phase = this.memory.phase;
   }
 
+  /** A complex FFT of the grid's shape (JavaScript) for measurements outside the step. */
+  get fft(): ComplexFft {
+    this.complexFft ??= new ComplexFft(this.grid.shape);
+    return this.complexFft;
+  }
+
+  /** Run `task` over units [0, count) and return the sum of its results (one thread here; subclasses split it). */
+  protected runPass(count: number, task: StepTask): number {
+    this.engineOnThisThread ??= createEngine(this.memory.setup, 0);
+    return runTask(this.engineOnThisThread, task, 0, count);
+  }
+
+  private get rows(): number {
+    return this.grid.shape[0] * this.grid.shape[1];
+  }
   /** Release resources (worker threads in subclasses). */
   close(): void {}
 
@@ -88,27 +111,50 @@ export class SplitStepper {
 
   /** Recompute φ and the mass from ψ. */
   updatePotential(): void {
-    const [n0, n1, n2] = this.grid.shape;
-    this.mass = densityRows(this.psi, this.phi, n2, 0, n0 * n1) * this.grid.cellVolume;
-    this.gravity.solveInPlace(this.phi);
+    this.mass = this.runPass(this.rows, { op: "density" }) * this.grid.cellVolume;
+    if (!this.memory.spectrum) {
+      this.gravity.solveInPlace(this.phi);
+      return;
+    }
+    const [h0, h1, h2] = [this.grid.shape[0], this.grid.shape[1], this.grid.shape[2] / 2 + 1] as const;
+    const half = [h0, h1, h2] as const;
+    this.runPass(this.rows, { op: "real-rows" });
+    const outer = h0 > 1 ? 0 : h1 > 1 ? 1 : -1;
+    const middle = outer === 0 && h1 > 1;
+    if (middle) this.runPass(outerCount(half, 1), { op: "half-axis", axis: 1, inverse: false });
+    if (outer >= 0) this.runPass(outerCount(half, outer), { op: "poisson-outer", axis: outer });
+    else this.runPass(this.rows, { op: "poisson" });
+    if (middle) this.runPass(outerCount(half, 1), { op: "half-axis", axis: 1, inverse: true });
+    this.runPass(this.rows, { op: "real-rows-inverse" });
   }
 
   /** ψ ← e^{−iφK} ψ. */
   kick(factor: number): void {
     if (factor === 0 || this.gravity.kind === "none") return;
-    const [n0, n1, n2] = this.grid.shape;
-    kickRows(this.psi, this.phi, factor, n2, 0, n0 * n1);
+    this.runPass(this.rows, { op: "kick", factor });
   }
 
-  /** ψ ← F⁻¹ e^{−ik²D/2} F ψ, with the phase factored per axis (no sin/cos per cell). */
+  /**
+   * ψ ← F⁻¹ e^{−ik²D/2} F ψ, with the phase factored per axis (no sin/cos per
+   * cell). The outermost simulated axis transforms forward, multiplies and
+   * transforms back in one pass.
+   */
   drift(factor: number): void {
-    const psi = this.psi;
-    this.fft.forward(psi);
+    const shape = this.grid.shape;
     this.fillPhaseTables(factor);
-    const [n0, n1] = this.grid.shape;
-    if (this.trackKinetic) this.midKineticTilde = this.spectralGradientNorm();
-    driftRows(psi, this.grid.shape, this.phase[0], this.phase[1], this.phase[2], 0, n0 * n1);
-    this.fft.inverse(psi);
+    const outer = shape[0] > 1 ? 0 : shape[1] > 1 ? 1 : -1;
+    const inner = [2, 1].filter((axis) => axis > outer && shape[axis]! > 1);
+    for (const axis of inner) this.runPass(outerCount(shape, axis), { op: "axis", axis, inverse: false });
+    let sum: number;
+    if (outer >= 0) {
+      sum = this.runPass(outerCount(shape, outer), { op: "drift-outer", axis: outer, gradient: this.trackKinetic });
+    } else {
+      sum = this.trackKinetic ? this.runPass(this.rows, { op: "gradient" }) : 0;
+      this.runPass(this.rows, { op: "drift" });
+    }
+    // Parseval: ½∫|∇ψ|² dV = ½ Σ_k k²|ψ_k|² ΔV/N
+    this.midKineticTilde = this.trackKinetic ? (0.5 * sum * this.grid.cellVolume) / this.grid.size : Number.NaN;
+    for (const axis of inner.reverse()) this.runPass(outerCount(shape, axis), { op: "axis", axis, inverse: true });
   }
 
   /** cos and sin of −k²D/2 per axis (the drift's phase factors). */
@@ -122,13 +168,6 @@ export class SplitStepper {
         table[2 * j + 1] = Math.sin(angle);
       }
     }
-  }
-
-  /** ½ Σ_k k²|ψ_k|² ΔV/N of the transformed field in `psi` (Parseval: ½∫|∇ψ|² dV). */
-  protected spectralGradientNorm(): number {
-    const [n0, n1] = this.grid.shape;
-    const sum = gradientNormRows(this.psi, this.grid.shape, this.grid.wavenumbers(0), this.grid.wavenumbers(1), this.grid.wavenumbers(2), 0, n0 * n1);
-    return (sum * this.grid.cellVolume) / this.grid.size;
   }
 
   /** Advance by Δt (code time) with one kick–drift–kick step. */

@@ -8,26 +8,23 @@
 import { Worker } from "node:worker_threads";
 import { fileURLToPath } from "node:url";
 import path from "node:path";
+import type { StepSetup } from "../fields/step-memory.js";
+import type { StepTask } from "./step-task.js";
 
-/** What a worker is given once. */
+/** What a worker is given once: the step's memory layout and its scratch slot, plus the shared control words. */
 export interface WorkerSetup {
-  readonly shape: readonly number[];
-  readonly psi: SharedArrayBuffer;
-  readonly phi: SharedArrayBuffer;
-  readonly spectrum: SharedArrayBuffer | undefined;
-  readonly phase: SharedArrayBuffer;
+  readonly step: StepSetup;
+  readonly slot: number;
   readonly results: SharedArrayBuffer;
   readonly control: SharedArrayBuffer;
-  readonly wavenumbers: readonly number[][];
-  readonly kSquared: readonly number[][] | undefined;
 }
 
 /** One unit of work for a worker. */
-export type StepTask =
-  | { readonly op: "kick"; readonly factor: number; readonly lo: number; readonly hi: number }
-  | { readonly op: "axis" | "half-axis"; readonly axis: number; readonly inverse: boolean; readonly lo: number; readonly hi: number }
-  | { readonly op: "drift" | "rfft-rows" | "poisson" | "irfft-rows"; readonly lo: number; readonly hi: number }
-  | { readonly op: "gradient" | "density"; readonly slot: number; readonly lo: number; readonly hi: number };
+export interface WorkerTask {
+  readonly task: StepTask;
+  readonly lo: number;
+  readonly hi: number;
+}
 
 /** The compiled worker script (tests that import the TypeScript sources use the built one). */
 function workerScript(): string {
@@ -40,36 +37,46 @@ export class ThreadPool {
   readonly size: number;
   private readonly workers: Worker[];
   private readonly ctrl: Int32Array;
+  private readonly results: Float64Array;
   private closed = false;
 
-  constructor(size: number, setup: Omit<WorkerSetup, "control">) {
+  constructor(size: number, step: StepSetup) {
     this.size = size;
     const control = new SharedArrayBuffer(8);
+    const results = new SharedArrayBuffer(8 * size);
     this.ctrl = new Int32Array(control);
-    this.workers = Array.from({ length: size }, () => {
-      const w = new Worker(workerScript(), { workerData: { ...setup, control } });
+    this.results = new Float64Array(results);
+    this.workers = Array.from({ length: size }, (_, slot) => {
+      const setup: WorkerSetup = { step, slot, results, control };
+      const w = new Worker(workerScript(), { workerData: setup });
       w.unref();
       return w;
     });
   }
 
   /**
-   * Split units [0, count) into one contiguous range per worker and run
-   * `make(lo, hi, slot)` on each; returns when all are done.
+   * Split units [0, count) into one contiguous range per worker, run `task`
+   * on each and return the sum of the workers' results (in worker order).
    */
-  parallel(count: number, make: (lo: number, hi: number, slot: number) => StepTask): void {
+  run(count: number, task: StepTask): number {
     if (this.closed) throw new Error("the thread pool is closed");
-    const tasks: StepTask[] = [];
+    let posted = 0;
+    this.results.fill(0);
+    const ranges: [number, number][] = [];
     for (let i = 0; i < this.size; i++) {
-      const lo = Math.floor((i * count) / this.size);
-      const hi = Math.floor(((i + 1) * count) / this.size);
-      if (hi > lo) tasks.push(make(lo, hi, i));
+      ranges.push([Math.floor((i * count) / this.size), Math.floor(((i + 1) * count) / this.size)]);
     }
-    Atomics.store(this.ctrl, 0, tasks.length);
+    for (const [lo, hi] of ranges) if (hi > lo) posted++;
+    Atomics.store(this.ctrl, 0, posted);
     Atomics.store(this.ctrl, 1, 0);
-    tasks.forEach((t, i) => this.workers[i]!.postMessage(t));
+    ranges.forEach(([lo, hi], i) => {
+      if (hi > lo) this.workers[i]!.postMessage({ task, lo, hi } satisfies WorkerTask);
+    });
     for (let v = Atomics.load(this.ctrl, 0); v !== 0; v = Atomics.load(this.ctrl, 0)) Atomics.wait(this.ctrl, 0, v);
     if (Atomics.load(this.ctrl, 1) !== 0) throw new Error("a worker thread failed during a step");
+    let sum = 0;
+    for (let i = 0; i < this.size; i++) sum += this.results[i]!;
+    return sum;
   }
 
   /** Stop the workers. */

@@ -90,7 +90,8 @@ export async function runSimulation(run: ResolvedRun, options: RunOptions = {}):
   const configText = options.resume ? fs.readFileSync(paths.config, "utf8") : resolvedConfigToml(run, options.cwd ?? process.cwd());
   if (!options.resume) writeFileAtomic(paths.config, configText);
   const writer = new RunWriter(run, scales, configText, sha256(configText));
-  const stepper = run.integrator.threads > 1 ? new ThreadedStepper(grid, background, gravity, run.integrator.threads) : new SplitStepper(grid, background, gravity);
+  const { threads, fft } = run.integrator;
+  const stepper = threads > 1 ? new ThreadedStepper(grid, background, gravity, threads, fft) : new SplitStepper(grid, background, gravity, fft);
   try {
     return await evolveRun(run, options, { scales, grid, background, gravity, expanding, startTime, endTime, paths, writer, stepper, reporter, wallStart, configText });
   } finally {

@@ -1,6 +1,9 @@
 // The FFTs against a direct O(N²) discrete Fourier transform (the DFT's definition).
 import { describe, expect, it } from "vitest";
-import { ComplexFft, RealFft } from "../../src/fields/fft.js";
+import { ComplexFft, outerCount, PENCIL_BLOCK, RealFft } from "../../src/fields/fft.js";
+import { WasmStepEngine } from "../../src/fields/step-engine.js";
+import { allocateStepMemory } from "../../src/fields/step-memory.js";
+import { WASM_BLOCK } from "../../src/fields/wasm-kernels.js";
 import type { Triple } from "../../src/grid/grid.js";
 import { maxAbs, maxAbsDiff, seededRandom } from "../helpers/fields.js";
 
@@ -34,6 +37,7 @@ const shapes: Triple[] = [
   [1, 8, 4],
   [4, 8, 16],
   [8, 4, 4],
+  [2, 32, 8],
 ];
 
 describe("complex FFT", () => {
@@ -79,6 +83,66 @@ describe("real FFT", () => {
       const back = new Float64Array(n);
       rfft.inverse(half, back);
       expect(maxAbsDiff(back, real)).toBeLessThan(1e-14 * n * maxAbs(real));
+    });
+  }
+});
+
+/** The WebAssembly step engine of a shape, with its views. */
+function wasmEngine(shape: Triple) {
+  const zeros = shape.map((n) => new Float64Array(n));
+  const half = [shape[0], shape[1], shape[2] / 2 + 1] as const;
+  const memory = allocateStepMemory("wasm", shape, zeros, half.map((n) => new Float64Array(n)), 1);
+  return { memory, engine: new WasmStepEngine(memory.setup, 0) };
+}
+
+describe("WebAssembly SIMD transforms", () => {
+  it("block pencils as many at once as the JavaScript passes (the unit counts agree)", () => {
+    expect(WASM_BLOCK).toBe(PENCIL_BLOCK);
+  });
+
+  for (const shape of shapes) {
+    it(`match the direct DFT and invert, shape ${shape.join("×")}`, () => {
+      const rnd = seededRandom(17);
+      const n = shape[0] * shape[1] * shape[2];
+      const data = Float64Array.from({ length: 2 * n }, rnd);
+      const reference = directDft(data, shape);
+      const { memory, engine } = wasmEngine(shape);
+      memory.psi.set(data);
+      for (const axis of [2, 1, 0]) if (shape[axis]! > 1) engine.axis(axis, false, 0, outerCount(shape, axis));
+      expect(maxAbsDiff(memory.psi, reference)).toBeLessThan(1e-12 * n);
+      for (const axis of [0, 1, 2]) if (shape[axis]! > 1) engine.axis(axis, true, 0, outerCount(shape, axis));
+      expect(maxAbsDiff(memory.psi, data)).toBeLessThan(1e-14 * n);
+    });
+
+    it(`take real rows to the complex transform's half spectrum and back, shape ${shape.join("×")}`, () => {
+      const rnd = seededRandom(19);
+      const n = shape[0] * shape[1] * shape[2];
+      const real = Float64Array.from({ length: n }, rnd);
+      const complex = new Float64Array(2 * n);
+      for (let i = 0; i < n; i++) complex[2 * i] = real[i]!;
+      const reference = directDft(complex, shape);
+      const { memory, engine } = wasmEngine(shape);
+      const half = [shape[0], shape[1], shape[2] / 2 + 1] as const;
+      const rows = shape[0] * shape[1];
+      memory.phi.set(real);
+      engine.realRows(0, rows);
+      for (const axis of [1, 0]) if (half[axis]! > 1) engine.halfAxis(axis, false, 0, outerCount(half, axis));
+      const spec = memory.spectrum!;
+      const h2 = half[2];
+      let worst = 0;
+      for (let r = 0; r < rows; r++)
+        for (let k = 0; k < h2; k++) {
+          worst = Math.max(
+            worst,
+            Math.abs(spec[2 * (r * h2 + k)]! - reference[2 * (r * shape[2] + k)]!),
+            Math.abs(spec[2 * (r * h2 + k) + 1]! - reference[2 * (r * shape[2] + k) + 1]!),
+          );
+        }
+      expect(worst).toBeLessThan(1e-12 * n);
+      for (const axis of [0, 1]) if (half[axis]! > 1) engine.halfAxis(axis, true, 0, outerCount(half, axis));
+      memory.phi.fill(0);
+      engine.realRowsInverse(0, rows);
+      expect(maxAbsDiff(memory.phi, real)).toBeLessThan(1e-14 * n * maxAbs(real));
     });
   }
 });

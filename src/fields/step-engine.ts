@@ -1,0 +1,264 @@
+/**
+ * The split-step's passes on one thread, each over a range of units so that
+ * one thread or several run the very same arithmetic per cell. Two engines
+ * share the elementwise passes and differ in the transforms: fft.js in
+ * JavaScript, or the WebAssembly SIMD kernels. Units are rows of the last
+ * axis for row passes and outerCount() units for passes along axes 0 and 1.
+ *
+ * "Outer" passes fuse a forward transform along the outermost simulated
+ * strided axis, a multiplication in Fourier space and the inverse transform
+ * (the drift's phase, the Poisson kernel), so the block never leaves cache.
+ */
+import type { Triple } from "../grid/grid.js";
+import { ComplexFft, outerCount, PENCIL_BLOCK, RealFft } from "./fft.js";
+import { densityRows, driftRows, gradientNormRows, kickRows, poissonRows } from "./step-kernels.js";
+import { perAxis, regionView, type StepSetup } from "./step-memory.js";
+import { instantiateKernels, kernelModule, type WasmKernelExports } from "./wasm-kernels.js";
+
+export interface StepEngine {
+  /** ψ ← e^{−iφK} ψ over rows. */
+  kick(factor: number, lo: number, hi: number): void;
+  /** FFT pass of ψ along `axis` over units. */
+  axis(axis: number, inverse: boolean, lo: number, hi: number): void;
+  /** Drift phase over rows of the transformed ψ (1D grids). */
+  drift(lo: number, hi: number): void;
+  /** Σ k²|ψ_k|² over rows of the transformed ψ (1D grids). */
+  gradient(lo: number, hi: number): number;
+  /** Forward along outer `axis`, the drift phase, inverse; returns Σ k²|ψ_k|² when `gradient`. */
+  driftOuter(axis: number, lo: number, hi: number, gradient: boolean): number;
+  /** φ ← |ψ|² over rows; returns Σ|ψ|² over them. */
+  density(lo: number, hi: number): number;
+  /** Real transforms of φ's rows into the half spectrum. */
+  realRows(lo: number, hi: number): void;
+  /** Inverse real transforms of half-spectrum rows into φ. */
+  realRowsInverse(lo: number, hi: number): void;
+  /** FFT pass of the half spectrum along axis 0 or 1. */
+  halfAxis(axis: number, inverse: boolean, lo: number, hi: number): void;
+  /** spec ← −spec/k² over half-spectrum rows (1D grids). */
+  poisson(lo: number, hi: number): void;
+  /** Forward along outer `axis` of the half spectrum, −1/k², inverse. */
+  poissonOuter(axis: number, lo: number, hi: number): void;
+}
+
+/** The elementwise passes, on views of the step's memory. */
+abstract class EngineBase implements StepEngine {
+  protected readonly shape: Triple;
+  protected readonly half: Triple;
+  protected readonly psi: Float64Array;
+  protected readonly phi: Float64Array;
+  protected readonly spec: Float64Array | undefined;
+  protected readonly phase: [Float64Array, Float64Array, Float64Array];
+  protected readonly kk: [Float64Array, Float64Array, Float64Array];
+  protected readonly kp: [Float64Array, Float64Array, Float64Array] | undefined;
+
+  constructor(setup: StepSetup) {
+    this.shape = setup.shape;
+    const [n0, n1, n2] = setup.shape;
+    this.half = [n0, n1, n2 / 2 + 1];
+    this.psi = regionView(setup, setup.psi);
+    this.phi = regionView(setup, setup.phi);
+    this.spec = setup.spectrum ? regionView(setup, setup.spectrum) : undefined;
+    this.phase = perAxis(regionView(setup, setup.phase), setup.shape, 2);
+    this.kk = perAxis(regionView(setup, setup.kGrad), setup.shape);
+    this.kp = setup.kPoisson ? perAxis(regionView(setup, setup.kPoisson), this.half) : undefined;
+  }
+
+  kick(factor: number, lo: number, hi: number): void {
+    kickRows(this.psi, this.phi, factor, this.shape[2], lo, hi);
+  }
+  drift(lo: number, hi: number): void {
+    driftRows(this.psi, this.shape, this.phase[0], this.phase[1], this.phase[2], lo, hi);
+  }
+  gradient(lo: number, hi: number): number {
+    return gradientNormRows(this.psi, this.shape, this.kk[0], this.kk[1], this.kk[2], lo, hi);
+  }
+  density(lo: number, hi: number): number {
+    return densityRows(this.psi, this.phi, this.shape[2], lo, hi);
+  }
+  poisson(lo: number, hi: number): void {
+    const kp = this.kp!;
+    poissonRows(this.spec!, this.half, kp[0], kp[1], kp[2], lo, hi);
+  }
+  abstract axis(axis: number, inverse: boolean, lo: number, hi: number): void;
+  abstract driftOuter(axis: number, lo: number, hi: number, gradient: boolean): number;
+  abstract realRows(lo: number, hi: number): void;
+  abstract realRowsInverse(lo: number, hi: number): void;
+  abstract halfAxis(axis: number, inverse: boolean, lo: number, hi: number): void;
+  abstract poissonOuter(axis: number, lo: number, hi: number): void;
+}
+
+/**
+ * Visit the pencils of outer units [lo, hi) along `axis` (0 or 1) of a complex
+ * array of `shape`: f(index of point j, j, outer index, lane index c).
+ */
+function forEachUnitPoint(shape: Triple, axis: number, lo: number, hi: number, f: (p: number, j: number, o: number, c: number) => void): void {
+  const [n0, n1, n2] = shape;
+  const n = axis === 1 ? n1 : n0;
+  const pointStride = axis === 1 ? n2 : n1 * n2;
+  const outerStride = axis === 1 ? n1 * n2 : n2;
+  const blocks = Math.ceil(n2 / PENCIL_BLOCK);
+  for (let u = lo; u < hi; u++) {
+    const o = Math.floor(u / blocks);
+    const c0 = (u - o * blocks) * PENCIL_BLOCK;
+    const c1 = Math.min(n2, c0 + PENCIL_BLOCK);
+    for (let j = 0; j < n; j++) {
+      const base = o * outerStride + j * pointStride;
+      for (let c = c0; c < c1; c++) f(base + c, j, o, c);
+    }
+  }
+}
+
+/** Transforms by fft.js (the JavaScript backend). */
+export class JsStepEngine extends EngineBase {
+  private readonly cfft: ComplexFft;
+  private readonly rfft: RealFft | undefined;
+
+  constructor(setup: StepSetup) {
+    super(setup);
+    this.cfft = new ComplexFft(setup.shape);
+    this.rfft = setup.spectrum ? new RealFft(setup.shape) : undefined;
+  }
+
+  axis(axis: number, inverse: boolean, lo: number, hi: number): void {
+    this.cfft.pass(this.psi, axis, inverse, lo, hi);
+  }
+
+  driftOuter(axis: number, lo: number, hi: number, gradient: boolean): number {
+    const psi = this.psi;
+    this.cfft.pass(psi, axis, false, lo, hi);
+    const kA = this.kk[axis]!;
+    const kO = this.kk[1 - axis]!;
+    const kL = this.kk[2];
+    const pA = this.phase[axis]!;
+    const pO = this.phase[1 - axis]!;
+    const pL = this.phase[2];
+    let sum = 0;
+    forEachUnitPoint(this.shape, axis, lo, hi, (p, j, o, c) => {
+      const re = psi[2 * p]!;
+      const im = psi[2 * p + 1]!;
+      if (gradient) sum += (kA[j]! + kO[o]! + kL[c]!) * (re * re + im * im);
+      // e = (pL[c] · pO[o]) · pA[j], the wasm kernel's order
+      const qr = pL[2 * c]! * pO[2 * o]! - pL[2 * c + 1]! * pO[2 * o + 1]!;
+      const qi = pL[2 * c]! * pO[2 * o + 1]! + pL[2 * c + 1]! * pO[2 * o]!;
+      const er = qr * pA[2 * j]! - qi * pA[2 * j + 1]!;
+      const ei = qr * pA[2 * j + 1]! + qi * pA[2 * j]!;
+      psi[2 * p] = re * er - im * ei;
+      psi[2 * p + 1] = re * ei + im * er;
+    });
+    this.cfft.pass(psi, axis, true, lo, hi);
+    return sum;
+  }
+
+  realRows(lo: number, hi: number): void {
+    this.rfft!.forwardRows(this.phi, this.spec!, lo, hi);
+  }
+
+  realRowsInverse(lo: number, hi: number): void {
+    this.rfft!.inverseRows(this.spec!, this.phi, lo, hi);
+  }
+
+  halfAxis(axis: number, inverse: boolean, lo: number, hi: number): void {
+    this.rfft!.outerPass(this.spec!, axis as 0 | 1, inverse, lo, hi);
+  }
+
+  poissonOuter(axis: number, lo: number, hi: number): void {
+    const spec = this.spec!;
+    const [kA, kO, kL] = [this.kp![axis]!, this.kp![1 - axis]!, this.kp![2]];
+    this.rfft!.outerPass(spec, axis as 0 | 1, false, lo, hi);
+    forEachUnitPoint(this.half, axis, lo, hi, (p, j, o, c) => {
+      const kk = kA[j]! + kO[o]! + kL[c]!;
+      const g = kk > 0 ? -1 / kk : 0;
+      spec[2 * p] = spec[2 * p]! * g;
+      spec[2 * p + 1] = spec[2 * p + 1]! * g;
+    });
+    this.rfft!.outerPass(spec, axis as 0 | 1, true, lo, hi);
+  }
+}
+
+/** Transforms by the WebAssembly SIMD kernels on the shared memory. */
+export class WasmStepEngine extends EngineBase {
+  private readonly k: WasmKernelExports;
+  private readonly setup: StepSetup;
+  private readonly buf: number;
+  private readonly buf2: number;
+
+  /** @param slot this thread's scratch block */
+  constructor(setup: StepSetup, slot: number) {
+    super(setup);
+    const module = kernelModule();
+    const wasm = setup.wasm;
+    if (!module || !wasm) throw new Error("the wasm FFT backend is not available");
+    this.setup = setup;
+    this.k = instantiateKernels(module, wasm.memory);
+    this.buf = wasm.scratch[slot]!;
+    this.buf2 = this.buf + wasm.scratchBytes;
+  }
+
+  private tables(n: number) {
+    return this.setup.wasm!.tables[n]!;
+  }
+
+  /** Byte address of entry `index` of a region of width `width` values per entry. */
+  private at(region: { offset: number }, index: number, width: number): number {
+    return region.offset + 8 * width * index;
+  }
+
+  axis(axis: number, inverse: boolean, lo: number, hi: number): void {
+    this.pass(this.setup.psi.offset, this.shape, axis, inverse, lo, hi);
+  }
+
+  halfAxis(axis: number, inverse: boolean, lo: number, hi: number): void {
+    this.pass(this.setup.spectrum!.offset, this.half, axis, inverse, lo, hi);
+  }
+
+  private pass(data: number, shape: Triple, axis: number, inverse: boolean, lo: number, hi: number): void {
+    const n = shape[axis]!;
+    const t = this.tables(n);
+    this.k.axisPass(data, shape[0], shape[1], shape[2], axis, lo, hi, this.buf, inverse ? t.inverse : t.forward, t.reversal, inverse ? 1 : 0, inverse ? 1 / n : 1);
+  }
+
+  driftOuter(axis: number, lo: number, hi: number, gradient: boolean): number {
+    const s = this.setup;
+    const [n0, n1, n2] = this.shape;
+    const t = this.tables(this.shape[axis]!);
+    const starts = [0, n0, n0 + n1];
+    const other = 1 - axis;
+    return this.k.driftOuter(
+      s.psi.offset, n0, n1, n2, axis, lo, hi, this.buf, this.buf2, t.forward, t.inverse, t.reversal,
+      this.at(s.phase, starts[axis]!, 2), this.at(s.phase, starts[other]!, 2), this.at(s.phase, starts[2]!, 2),
+      gradient ? this.at(s.kGrad, starts[axis]!, 1) : 0, this.at(s.kGrad, starts[other]!, 1), this.at(s.kGrad, starts[2]!, 1),
+    );
+  }
+
+  poissonOuter(axis: number, lo: number, hi: number): void {
+    const s = this.setup;
+    const [h0, h1, h2] = this.half;
+    const t = this.tables(this.half[axis]!);
+    const starts = [0, h0, h0 + h1];
+    const kp = s.kPoisson!;
+    this.k.poissonOuter(
+      s.spectrum!.offset, h0, h1, h2, axis, lo, hi, this.buf, this.buf2, t.forward, t.inverse, t.reversal,
+      this.at(kp, starts[axis]!, 1), this.at(kp, starts[1 - axis]!, 1), this.at(kp, starts[2]!, 1),
+    );
+  }
+
+  realRows(lo: number, hi: number): void {
+    const s = this.setup;
+    const t = this.tables(this.shape[2] / 2);
+    this.k.realRows(s.phi.offset, s.spectrum!.offset, this.shape[2], lo, hi, this.buf, t.forward, t.reversal, s.wasm!.realTwiddles);
+  }
+
+  realRowsInverse(lo: number, hi: number): void {
+    const s = this.setup;
+    const t = this.tables(this.shape[2] / 2);
+    this.k.realRowsInverse(s.spectrum!.offset, s.phi.offset, this.shape[2], lo, hi, this.buf, t.inverse, t.reversal, s.wasm!.realTwiddles);
+  }
+}
+
+/** The engine for a layout on this thread (`slot` picks the wasm scratch block). */
+export function createEngine(setup: StepSetup, slot: number): StepEngine {
+  return setup.backend === "wasm" ? new WasmStepEngine(setup, slot) : new JsStepEngine(setup);
+}
+
+/** Units of a pass along `axis` of `shape` (re-exported for the steppers). */
+export { outerCount };

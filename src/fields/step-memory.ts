@@ -1,0 +1,193 @@
+/**
+ * The memory of one split-step: ψ, φ, the Poisson half spectrum, the drift's
+ * phase tables and the k² tables, laid out once. With the "js" FFT backend
+ * every region is its own SharedArrayBuffer; with "wasm" all of them, the
+ * kernels' twiddle tables and one scratch block per thread live in a single
+ * shared WebAssembly memory of exactly the size needed. Either way the
+ * layout is plain data that worker threads receive to build their engines.
+ */
+import type { Triple } from "../grid/grid.js";
+import { fillBitReversal, fillTwiddles, twiddleBytes, WASM_BLOCK } from "./wasm-kernels.js";
+
+/** The FFT implementations of the step. */
+export type FftBackend = "wasm" | "js";
+
+/** A run of float64 values: byte offset into its buffer and length in values. */
+export interface Region {
+  readonly offset: number;
+  readonly length: number;
+  /** The region's own buffer (js backend); absent when it lives in the wasm memory. */
+  readonly buffer?: SharedArrayBuffer;
+}
+
+/** Tables of one transform length in the wasm memory (byte offsets). */
+export interface WasmFftTables {
+  readonly forward: number;
+  readonly inverse: number;
+  readonly reversal: number;
+}
+
+/** Everything an engine needs, in any thread. */
+export interface StepSetup {
+  readonly backend: FftBackend;
+  readonly shape: Triple;
+  /** ψ, interleaved complex. */
+  readonly psi: Region;
+  /** φ (and |ψ|² on the way). */
+  readonly phi: Region;
+  /** Half spectrum of the periodic Poisson solve (shape n0 × n1 × (n2/2 + 1)). */
+  readonly spectrum: Region | undefined;
+  /** (cos, sin) of the drift phase per index, axes 0, 1, 2 concatenated. */
+  readonly phase: Region;
+  /** k² per index along axes 0, 1, 2 concatenated (kinetic sums). */
+  readonly kGrad: Region;
+  /** The Poisson kernel's k² along axes 0, 1 and the half axis 2, concatenated. */
+  readonly kPoisson: Region | undefined;
+  readonly wasm?: {
+    readonly memory: WebAssembly.Memory;
+    /** Tables per transform length. */
+    readonly tables: Readonly<Record<number, WasmFftTables>>;
+    /** (cos, sin)(2πk/n2), k = 0 … n2/2, for the real row transforms. */
+    readonly realTwiddles: number;
+    /** Per thread slot: two scratch blocks of `scratchBytes` each. */
+    readonly scratch: readonly number[];
+    readonly scratchBytes: number;
+  };
+}
+
+/** What the stepper is given back: the layout and views of the regions on this thread. */
+export interface StepMemory {
+  readonly setup: StepSetup;
+  readonly psi: Float64Array;
+  readonly phi: Float64Array;
+  readonly spectrum: Float64Array | undefined;
+  readonly phase: readonly [Float64Array, Float64Array, Float64Array];
+}
+
+/** A Float64Array over a region. */
+export function regionView(setup: StepSetup, region: Region): Float64Array {
+  const buffer = region.buffer ?? setup.wasm?.memory.buffer;
+  if (!buffer) throw new Error("region without a buffer");
+  return new Float64Array(buffer, region.offset, region.length);
+}
+
+/** Split a concatenated per-axis table into its three axes. */
+export function perAxis(table: Float64Array, lengths: Triple, width = 1): [Float64Array, Float64Array, Float64Array] {
+  const [a, b] = lengths;
+  return [table.subarray(0, width * a), table.subarray(width * a, width * (a + b)), table.subarray(width * (a + b))];
+}
+
+/** Bytes the wasm backend needs for a grid (used to decide whether it fits in a 4 GiB memory). */
+export function wasmBytesNeeded(shape: Triple, periodic: boolean, slots: number): number {
+  return planWasm(shape, periodic, slots).total;
+}
+
+const WASM_PAGE = 65536;
+/** Largest wasm memory (4 GiB of 32-bit addresses). */
+export const WASM_MAX_BYTES = 65536 * WASM_PAGE;
+
+function planWasm(shape: Triple, periodic: boolean, slots: number) {
+  const [n0, n1, n2] = shape;
+  const size = n0 * n1 * n2;
+  const h2 = n2 / 2 + 1;
+  let top = 64;
+  const take = (bytes: number): number => {
+    const at = top;
+    top += Math.ceil(bytes / 64) * 64;
+    return at;
+  };
+  const psi = take(16 * size);
+  const phi = take(8 * size);
+  const spectrum = periodic ? take(16 * n0 * n1 * h2) : 0;
+  const phase = take(16 * (n0 + n1 + n2));
+  const kGrad = take(8 * (n0 + n1 + n2));
+  const kPoisson = periodic ? take(8 * (n0 + n1 + h2)) : 0;
+  const lengths = new Set([n0, n1, n2, n2 / 2].filter((n) => n > 1));
+  const tables: Record<number, WasmFftTables> = {};
+  for (const n of lengths) tables[n] = { forward: take(twiddleBytes(n)), inverse: take(twiddleBytes(n)), reversal: take(4 * n) };
+  const realTwiddles = take(16 * (n2 / 2 + 1));
+  // a block holds at most WASM_BLOCK pencils of the longest transform (fewer when there are fewer pencils)
+  const pencils = (n: number, count: number) => Math.min(WASM_BLOCK, count) * n;
+  const scratchBytes = 16 * Math.max(pencils(n2, n0 * n1), pencils(n1, n0 * n2), pencils(n0, n1 * n2), pencils(n2 / 2, n0 * n1));
+  const scratch = Array.from({ length: slots }, () => take(2 * scratchBytes));
+  return { psi, phi, spectrum, phase, kGrad, kPoisson, tables, realTwiddles, scratch, scratchBytes, total: top };
+}
+
+/**
+ * Lay out and allocate the step's memory.
+ * @param kPoisson the periodic Poisson kernel's k² per axis (half axis 2), or undefined without periodic gravity
+ * @param kSquared k² per axis for the kinetic sums
+ * @param slots threads that will run kernels (the wasm backend gives each a scratch block)
+ */
+export function allocateStepMemory(
+  backend: FftBackend,
+  shape: Triple,
+  kSquared: readonly Float64Array[],
+  kPoisson: readonly Float64Array[] | undefined,
+  slots: number,
+): StepMemory {
+  const [n0, n1, n2] = shape;
+  const size = n0 * n1 * n2;
+  const h2 = n2 / 2 + 1;
+  const axes = n0 + n1 + n2;
+  let setup: StepSetup;
+  if (backend === "js") {
+    const own = (length: number): Region => ({ offset: 0, length, buffer: new SharedArrayBuffer(8 * length) });
+    setup = {
+      backend,
+      shape,
+      psi: own(2 * size),
+      phi: own(size),
+      spectrum: kPoisson ? own(2 * n0 * n1 * h2) : undefined,
+      phase: own(2 * axes),
+      kGrad: own(axes),
+      kPoisson: kPoisson ? own(n0 + n1 + h2) : undefined,
+    };
+  } else {
+    const plan = planWasm(shape, kPoisson !== undefined, slots);
+    if (plan.total > WASM_MAX_BYTES) throw new RangeError(`the wasm FFT backend needs ${plan.total} bytes, more than a 4 GiB WebAssembly memory`);
+    const pages = Math.ceil(plan.total / WASM_PAGE);
+    const memory = new WebAssembly.Memory({ initial: pages, maximum: pages, shared: true });
+    const at = (offset: number, length: number): Region => ({ offset, length });
+    setup = {
+      backend,
+      shape,
+      psi: at(plan.psi, 2 * size),
+      phi: at(plan.phi, size),
+      spectrum: kPoisson ? at(plan.spectrum, 2 * n0 * n1 * h2) : undefined,
+      phase: at(plan.phase, 2 * axes),
+      kGrad: at(plan.kGrad, axes),
+      kPoisson: kPoisson ? at(plan.kPoisson, n0 + n1 + h2) : undefined,
+      wasm: { memory, tables: plan.tables, realTwiddles: plan.realTwiddles, scratch: plan.scratch, scratchBytes: plan.scratchBytes },
+    };
+    const buffer = memory.buffer;
+    for (const [n, t] of Object.entries(plan.tables)) {
+      const len = Number(n);
+      fillTwiddles(new Float64Array(buffer, t.forward, twiddleBytes(len) / 8), len, false);
+      fillTwiddles(new Float64Array(buffer, t.inverse, twiddleBytes(len) / 8), len, true);
+      fillBitReversal(new Int32Array(buffer, t.reversal, len), len);
+    }
+    const ctw = new Float64Array(buffer, plan.realTwiddles, 2 * (n2 / 2 + 1));
+    for (let k = 0; k <= n2 / 2; k++) {
+      ctw[2 * k] = Math.cos((2 * Math.PI * k) / n2);
+      ctw[2 * k + 1] = Math.sin((2 * Math.PI * k) / n2);
+    }
+  }
+  const kg = regionView(setup, setup.kGrad);
+  kg.set(kSquared[0]!, 0);
+  kg.set(kSquared[1]!, n0);
+  kg.set(kSquared[2]!, n0 + n1);
+  if (kPoisson && setup.kPoisson) {
+    const kp = regionView(setup, setup.kPoisson);
+    kp.set(kPoisson[0]!, 0);
+    kp.set(kPoisson[1]!, n0);
+    kp.set(kPoisson[2]!, n0 + n1);
+  }
+  return {
+    setup,
+    psi: regionView(setup, setup.psi),
+    phi: regionView(setup, setup.phi),
+    spectrum: setup.spectrum ? regionView(setup, setup.spectrum) : undefined,
+    phase: perAxis(regionView(setup, setup.phase), shape, 2),
+  };
+}

@@ -1,0 +1,92 @@
+/**
+ * The WebAssembly transform kernels (fields/wasm/kernels.as.ts, compiled by
+ * the build): loading the module, and the tables it reads (twiddles in its
+ * layout, bit-reversal permutations).
+ */
+import fs from "node:fs";
+import { fileURLToPath } from "node:url";
+
+/** The kernels' exports; addresses are byte offsets into the shared memory. */
+export interface WasmKernelExports {
+  axisPass(data: number, n0: number, n1: number, n2: number, axis: number, lo: number, hi: number, buf: number, tw: number, rev: number, inverse: number, scale: number): void;
+  driftOuter(
+    data: number, n0: number, n1: number, n2: number, axis: number, lo: number, hi: number, buf: number, buf2: number,
+    twF: number, twI: number, rev: number, pAxis: number, pOuter: number, pLane: number, kAxis: number, kOuter: number, kLane: number,
+  ): number;
+  poissonOuter(
+    data: number, n0: number, n1: number, n2: number, axis: number, lo: number, hi: number, buf: number, buf2: number,
+    twF: number, twI: number, rev: number, kAxis: number, kOuter: number, kLane: number,
+  ): void;
+  realRows(input: number, out: number, n2: number, lo: number, hi: number, buf: number, tw: number, rev: number, ctw: number): void;
+  realRowsInverse(spec: number, out: number, n2: number, lo: number, hi: number, buf: number, tw: number, rev: number, ctw: number): void;
+}
+
+/** Pencils a kernel pass holds in its scratch block at once (BLOCK in the kernel source). */
+export const WASM_BLOCK = 16;
+
+/** Where the compiled module is: next to this file when built, in dist/ when running from the sources (tests). */
+function modulePath(): string {
+  const built = fileURLToPath(new URL("./wasm/kernels.wasm", import.meta.url));
+  if (fs.existsSync(built)) return built;
+  return fileURLToPath(new URL("../../dist/fields/wasm/kernels.wasm", import.meta.url));
+}
+
+let compiled: WebAssembly.Module | null | undefined;
+
+/** The compiled module, or null when it is missing or this runtime lacks SIMD or shared memory. */
+export function kernelModule(): WebAssembly.Module | null {
+  if (compiled === undefined) {
+    try {
+      compiled = new WebAssembly.Module(fs.readFileSync(modulePath()));
+    } catch {
+      compiled = null;
+    }
+  }
+  return compiled;
+}
+
+/** Instantiate the kernels on a shared memory. */
+export function instantiateKernels(module: WebAssembly.Module, memory: WebAssembly.Memory): WasmKernelExports {
+  const instance = new WebAssembly.Instance(module, { env: { memory } });
+  return instance.exports as unknown as WasmKernelExports;
+}
+
+/** Bytes of the twiddle table of an n-point transform (six v128 per butterfly index per radix-4 stage). */
+export function twiddleBytes(n: number): number {
+  let count = 0;
+  for (let h = Math.log2(n) % 2 === 1 ? 2 : 1; h < n; h *= 4) count += h;
+  return 96 * count;
+}
+
+/** Fill the twiddle table of an n-point transform (forward: e^{−2πi/4h}; inverse: e^{+2πi/4h}). */
+export function fillTwiddles(out: Float64Array, n: number, inverse: boolean): void {
+  const sign = inverse ? 1 : -1;
+  let p = 0;
+  for (let h = Math.log2(n) % 2 === 1 ? 2 : 1; h < n; h *= 4) {
+    for (let k = 0; k < h; k++) {
+      for (let m = 1; m <= 3; m++) {
+        const angle = (sign * 2 * Math.PI * m * k) / (4 * h);
+        const wr = Math.cos(angle);
+        const wi = Math.sin(angle);
+        out[p++] = wr;
+        out[p++] = wr;
+        out[p++] = -wi;
+        out[p++] = wi;
+      }
+    }
+  }
+}
+
+/** The bit-reversal permutation of 0 … n−1. */
+export function fillBitReversal(out: Int32Array, n: number): void {
+  const bits = Math.log2(n);
+  for (let j = 0; j < n; j++) {
+    let x = j;
+    let y = 0;
+    for (let b = 0; b < bits; b++) {
+      y = (y << 1) | (x & 1);
+      x >>= 1;
+    }
+    out[j] = y;
+  }
+}

@@ -1,0 +1,304 @@
+// The split-step's transform kernels in WebAssembly with 128-bit SIMD, written
+// in AssemblyScript and compiled by `npm run build` to dist/fields/wasm/kernels.wasm.
+//
+// Every field lives in one shared linear memory that JavaScript allocates
+// (fields/wasm-arena.ts); functions take byte addresses and sizes. A v128
+// holds one complex double (re, im). Along every axis a pass gathers up to
+// BLOCK pencils into a scratch block, point-major ([point][pencil]), in
+// bit-reversed point order; runs radix-4 decimation-in-time butterflies
+// (one radix-2 stage first when log2 n is odd) on all pencils at once, each
+// twiddle loaded once per butterfly and used for every pencil; and scatters
+// the result back. Pencils never mix, so a pencil's arithmetic does not
+// depend on how many share its block: results are the same for any thread
+// count or block split.
+//
+// Twiddle tables (built in JavaScript): for each radix-4 stage of quarter
+// length h, for k < h, six v128: (w^k re, w^k re), (−w^k im, w^k im), the same
+// for w^2k and w^3k, with w = e^{∓2πi/4h} (forward: minus).
+//
+// Conventions as fields/fft.ts: forward F_k = Σ f_x e^{−ikx}; the inverse is
+// scaled by the `scale` its caller passes (1/n for a normalised inverse).
+
+const BLOCK: i32 = 16;
+
+@inline function cmul(x: v128, wr: v128, wi: v128): v128 {
+  return f64x2.add(f64x2.mul(x, wr), f64x2.mul(v128.shuffle<f64>(x, x, 1, 0), wi));
+}
+
+@inline function swap(x: v128): v128 {
+  return v128.shuffle<f64>(x, x, 1, 0);
+}
+
+/** In-place transform of `count` pencils of n points stored point-major with row pitch `pitch` bytes, input in bit-reversed order. */
+function butterflies(buf: usize, n: i32, pitch: i32, count: i32, tw: usize, inverse: bool): void {
+  // ×(−i) forward, ×(+i) inverse: (re, im) → (±im, ∓re)
+  const rot = inverse ? f64x2(-1.0, 1.0) : f64x2(1.0, -1.0);
+  let h: i32 = 1;
+  if (ctz<i32>(n) & 1) {
+    for (let s: i32 = 0; s < n; s += 2) {
+      const p0 = buf + <usize>(s * pitch);
+      const p1 = p0 + <usize>pitch;
+      for (let b: i32 = 0; b < count; b++) {
+        const o = <usize>(b << 4);
+        const x = v128.load(p0 + o);
+        const y = v128.load(p1 + o);
+        v128.store(p0 + o, f64x2.add(x, y));
+        v128.store(p1 + o, f64x2.sub(x, y));
+      }
+    }
+    h = 2;
+  }
+  let t = tw;
+  for (; h < n; h <<= 2) {
+    const q = <usize>(h * pitch);
+    for (let s: i32 = 0; s < n; s += 4 * h) {
+      for (let k: i32 = 0; k < h; k++) {
+        const tk = t + <usize>(k * 96);
+        const w1r = v128.load(tk);
+        const w1i = v128.load(tk, 16);
+        const w2r = v128.load(tk, 32);
+        const w2i = v128.load(tk, 48);
+        const w3r = v128.load(tk, 64);
+        const w3i = v128.load(tk, 80);
+        const p0 = buf + <usize>((s + k) * pitch);
+        const p1 = p0 + q;
+        const p2 = p1 + q;
+        const p3 = p2 + q;
+        for (let b: i32 = 0; b < count; b++) {
+          const o = <usize>(b << 4);
+          // blocks 0…3 hold the DFTs of the residues 0, 2, 1, 3 (mod 4)
+          const x0 = v128.load(p0 + o);
+          const t2 = cmul(v128.load(p1 + o), w2r, w2i);
+          const t1 = cmul(v128.load(p2 + o), w1r, w1i);
+          const t3 = cmul(v128.load(p3 + o), w3r, w3i);
+          const u0 = f64x2.add(x0, t2);
+          const u1 = f64x2.sub(x0, t2);
+          const v0 = f64x2.add(t1, t3);
+          const v1 = f64x2.mul(swap(f64x2.sub(t1, t3)), rot);
+          v128.store(p0 + o, f64x2.add(u0, v0));
+          v128.store(p2 + o, f64x2.sub(u0, v0));
+          v128.store(p1 + o, f64x2.add(u1, v1));
+          v128.store(p3 + o, f64x2.sub(u1, v1));
+        }
+      }
+    }
+    t += <usize>(h * 96);
+  }
+}
+
+/** Gather `count` pencils (point j of pencil b at src + j·pointStride + b·pencilStride) into buf, point j to row rev[j]. */
+function gather(src: usize, pointStride: i32, pencilStride: i32, n: i32, count: i32, buf: usize, pitch: i32, rev: usize): void {
+  for (let j: i32 = 0; j < n; j++) {
+    const s = src + <usize>(j * pointStride);
+    const d = buf + <usize>(load<i32>(rev + (<usize>j << 2)) * pitch);
+    for (let b: i32 = 0; b < count; b++) v128.store(d + (<usize>b << 4), v128.load(s + <usize>(b * pencilStride)));
+  }
+}
+
+/** Scatter buf (natural point order) back, each value multiplied by `scale`. */
+function scatter(dst: usize, pointStride: i32, pencilStride: i32, n: i32, count: i32, buf: usize, pitch: i32, scale: f64): void {
+  const sc = f64x2.splat(scale);
+  for (let j: i32 = 0; j < n; j++) {
+    const d = dst + <usize>(j * pointStride);
+    const s = buf + <usize>(j * pitch);
+    for (let b: i32 = 0; b < count; b++) v128.store(d + <usize>(b * pencilStride), f64x2.mul(v128.load(s + (<usize>b << 4)), sc));
+  }
+}
+
+// A pass along `axis` of a complex array of shape (n0, n1, n2) covers units
+// [lo, hi): rows (axis 2), or (outer index, block of BLOCK columns) pairs
+// (axes 0 and 1), as outerCount() in fields/fft.ts counts them.
+
+/** One FFT pass along `axis` over units [lo, hi). */
+export function axisPass(data: usize, n0: i32, n1: i32, n2: i32, axis: i32, lo: i32, hi: i32, buf: usize, tw: usize, rev: usize, inverse: bool, scale: f64): void {
+  if (axis == 2) {
+    for (let r = lo; r < hi; r += BLOCK) {
+      const count = min(BLOCK, hi - r);
+      const p = data + (<usize>(r * n2) << 4);
+      gather(p, 16, n2 << 4, n2, count, buf, count << 4, rev);
+      butterflies(buf, n2, count << 4, count, tw, inverse);
+      scatter(p, 16, n2 << 4, n2, count, buf, count << 4, scale);
+    }
+    return;
+  }
+  const n = axis == 1 ? n1 : n0;
+  const pointStride = (axis == 1 ? n2 : n1 * n2) << 4;
+  const outerStride = axis == 1 ? n1 * n2 : n2;
+  const blocks = (n2 + BLOCK - 1) / BLOCK;
+  for (let u = lo; u < hi; u++) {
+    const o = u / blocks;
+    const c0 = (u - o * blocks) * BLOCK;
+    const count = min(BLOCK, n2 - c0);
+    const p = data + (<usize>(o * outerStride + c0) << 4);
+    gather(p, pointStride, 16, n, count, buf, count << 4, rev);
+    butterflies(buf, n, count << 4, count, tw, inverse);
+    scatter(p, pointStride, 16, n, count, buf, count << 4, scale);
+  }
+}
+
+/**
+ * The drift's three middle steps fused for the outermost strided axis (0, or
+ * 1 when n0 = 1): forward transform along it, ψ_k ← ψ_k e^{−ik²D/2}, inverse
+ * transform, all while the block is in cache. Phase tables hold (cos, sin)
+ * per index: `pAxis` along the axis, `pOuter` along the other strided axis
+ * (1 for axis 0, 0 for axis 1) and `pLane` along axis 2. With `kAxis`
+ * non-zero, returns Σ (kA² + kO² + kL²)|ψ_k|² over the units (the k² tables
+ * are laid out as the phase tables, one f64 per index), before the phase.
+ */
+export function driftOuter(
+  data: usize, n0: i32, n1: i32, n2: i32, axis: i32, lo: i32, hi: i32, buf: usize, buf2: usize,
+  twF: usize, twI: usize, rev: usize, pAxis: usize, pOuter: usize, pLane: usize, kAxis: usize, kOuter: usize, kLane: usize,
+): f64 {
+  const n = axis == 1 ? n1 : n0;
+  const pointStride = (axis == 1 ? n2 : n1 * n2) << 4;
+  const outerStride = axis == 1 ? n1 * n2 : n2;
+  const blocks = (n2 + BLOCK - 1) / BLOCK;
+  let sum = f64x2.splat(0);
+  for (let u = lo; u < hi; u++) {
+    const o = u / blocks;
+    const c0 = (u - o * blocks) * BLOCK;
+    const count = min(BLOCK, n2 - c0);
+    const pitch = count << 4;
+    const p = data + (<usize>(o * outerStride + c0) << 4);
+    gather(p, pointStride, 16, n, count, buf, pitch, rev);
+    butterflies(buf, n, pitch, count, twF, false);
+    if (kAxis != 0) {
+      const ko = load<f64>(kOuter + (<usize>o << 3));
+      for (let j: i32 = 0; j < n; j++) {
+        const s = buf + <usize>(j * pitch);
+        const kj = load<f64>(kAxis + (<usize>j << 3)) + ko;
+        for (let b: i32 = 0; b < count; b++) {
+          const x = v128.load(s + (<usize>b << 4));
+          const kk = f64x2.splat(kj + load<f64>(kLane + (<usize>(c0 + b) << 3)));
+          sum = f64x2.add(sum, f64x2.mul(kk, f64x2.mul(x, x)));
+        }
+      }
+    }
+    // e = (pLane[c0 + b] · pOuter[o]) · pAxis[j], applied while permuting into bit-reversed order
+    const po = v128.load(pOuter + (<usize>o << 4));
+    const por = v128.shuffle<f64>(po, po, 0, 0);
+    const poi = f64x2.mul(v128.shuffle<f64>(po, po, 1, 1), f64x2(-1.0, 1.0));
+    for (let j: i32 = 0; j < n; j++) {
+      const s = buf + <usize>(j * pitch);
+      const d = buf2 + <usize>(load<i32>(rev + (<usize>j << 2)) * pitch);
+      const pa = v128.load(pAxis + (<usize>j << 4));
+      const par = v128.shuffle<f64>(pa, pa, 0, 0);
+      const pai = f64x2.mul(v128.shuffle<f64>(pa, pa, 1, 1), f64x2(-1.0, 1.0));
+      for (let b: i32 = 0; b < count; b++) {
+        const e = cmul(cmul(v128.load(pLane + (<usize>(c0 + b) << 4)), por, poi), par, pai);
+        const x = v128.load(s + (<usize>b << 4));
+        const er = v128.shuffle<f64>(e, e, 0, 0);
+        const ei = f64x2.mul(v128.shuffle<f64>(e, e, 1, 1), f64x2(-1.0, 1.0));
+        v128.store(d + (<usize>b << 4), cmul(x, er, ei));
+      }
+    }
+    butterflies(buf2, n, pitch, count, twI, true);
+    scatter(p, pointStride, 16, n, count, buf2, pitch, 1.0 / <f64>n);
+  }
+  return f64x2.extract_lane(sum, 0) + f64x2.extract_lane(sum, 1);
+}
+
+/**
+ * The periodic Poisson solve's middle fused for the outermost strided axis of
+ * the half spectrum: forward transform along it, spec ← −spec/k² (0 at
+ * k = 0), inverse transform. k² tables as in driftOuter (half-spectrum
+ * length along axis 2).
+ */
+export function poissonOuter(
+  data: usize, n0: i32, n1: i32, n2: i32, axis: i32, lo: i32, hi: i32, buf: usize, buf2: usize,
+  twF: usize, twI: usize, rev: usize, kAxis: usize, kOuter: usize, kLane: usize,
+): void {
+  const n = axis == 1 ? n1 : n0;
+  const pointStride = (axis == 1 ? n2 : n1 * n2) << 4;
+  const outerStride = axis == 1 ? n1 * n2 : n2;
+  const blocks = (n2 + BLOCK - 1) / BLOCK;
+  for (let u = lo; u < hi; u++) {
+    const o = u / blocks;
+    const c0 = (u - o * blocks) * BLOCK;
+    const count = min(BLOCK, n2 - c0);
+    const pitch = count << 4;
+    const p = data + (<usize>(o * outerStride + c0) << 4);
+    gather(p, pointStride, 16, n, count, buf, pitch, rev);
+    butterflies(buf, n, pitch, count, twF, false);
+    const ko = load<f64>(kOuter + (<usize>o << 3));
+    for (let j: i32 = 0; j < n; j++) {
+      const s = buf + <usize>(j * pitch);
+      const d = buf2 + <usize>(load<i32>(rev + (<usize>j << 2)) * pitch);
+      const kj = load<f64>(kAxis + (<usize>j << 3)) + ko;
+      for (let b: i32 = 0; b < count; b++) {
+        const kk = kj + load<f64>(kLane + (<usize>(c0 + b) << 3));
+        const g = kk > 0 ? -1.0 / kk : 0.0;
+        v128.store(d + (<usize>b << 4), f64x2.mul(v128.load(s + (<usize>b << 4)), f64x2.splat(g)));
+      }
+    }
+    butterflies(buf2, n, pitch, count, twI, true);
+    scatter(p, pointStride, 16, n, count, buf2, pitch, 1.0 / <f64>n);
+  }
+}
+
+/**
+ * Real-to-complex transforms of rows [lo, hi) of a real array with rows of
+ * n2 values into half-spectrum rows of n2/2 + 1 complex values: the row is
+ * read as n2/2 complex numbers (even samples real, odd imaginary), transformed
+ * (tables `tw`, `rev` of length m = n2/2), and untangled with the twiddles
+ * `ctw` = (cos 2πk/n2, sin 2πk/n2), k = 0 … m, as RealFft.forwardRows does.
+ */
+export function realRows(input: usize, out: usize, n2: i32, lo: i32, hi: i32, buf: usize, tw: usize, rev: usize, ctw: usize): void {
+  const m = n2 >> 1;
+  const h2 = m + 1;
+  const half = f64x2.splat(0.5);
+  const conj = f64x2(1.0, -1.0);
+  for (let r = lo; r < hi; r += BLOCK) {
+    const count = min(BLOCK, hi - r);
+    const pitch = count << 4;
+    gather(input + (<usize>(r * n2) << 3), 16, n2 << 3, m, count, buf, pitch, rev);
+    butterflies(buf, m, pitch, count, tw, false);
+    const dst = out + (<usize>(r * h2) << 4);
+    for (let k: i32 = 0; k <= m; k++) {
+      const zk = buf + <usize>((k == m ? 0 : k) * pitch);
+      const wk = buf + <usize>((k == 0 ? 0 : m - k) * pitch);
+      const c = load<f64>(ctw + (<usize>k << 4));
+      const s = load<f64>(ctw + (<usize>k << 4), 8);
+      const cr = f64x2.splat(c);
+      const ci = f64x2(s, -s); // multiply by (c − i s)
+      for (let b: i32 = 0; b < count; b++) {
+        const z = v128.load(zk + (<usize>b << 4));
+        const w = f64x2.mul(v128.load(wk + (<usize>b << 4)), conj);
+        const e = f64x2.mul(half, f64x2.add(z, w));
+        const od = f64x2.mul(f64x2.mul(half, swap(f64x2.sub(z, w))), conj);
+        v128.store(dst + <usize>((b * h2 + k) << 4), f64x2.add(e, cmul(od, cr, ci)));
+      }
+    }
+  }
+}
+
+/** The inverse of realRows: half-spectrum rows [lo, hi) to real rows of n2 values, normalised (1/m per row transform). */
+export function realRowsInverse(spec: usize, out: usize, n2: i32, lo: i32, hi: i32, buf: usize, tw: usize, rev: usize, ctw: usize): void {
+  const m = n2 >> 1;
+  const h2 = m + 1;
+  const half = f64x2.splat(0.5);
+  const conj = f64x2(1.0, -1.0);
+  for (let r = lo; r < hi; r += BLOCK) {
+    const count = min(BLOCK, hi - r);
+    const pitch = count << 4;
+    const src = spec + (<usize>(r * h2) << 4);
+    for (let k: i32 = 0; k < m; k++) {
+      const d = buf + <usize>(load<i32>(rev + (<usize>k << 2)) * pitch);
+      const c = load<f64>(ctw + (<usize>k << 4));
+      const s = load<f64>(ctw + (<usize>k << 4), 8);
+      const cr = f64x2.splat(c);
+      const ci = f64x2(-s, s); // multiply by (c + i s)
+      for (let b: i32 = 0; b < count; b++) {
+        const x = v128.load(src + <usize>((b * h2 + k) << 4));
+        const y = f64x2.mul(v128.load(src + <usize>((b * h2 + m - k) << 4)), conj);
+        const e = f64x2.mul(half, f64x2.add(x, y));
+        const o = cmul(f64x2.mul(half, f64x2.sub(x, y)), cr, ci);
+        // Z = E + iO = (er − oi, ei + or)
+        v128.store(d + (<usize>b << 4), f64x2.add(e, f64x2.mul(swap(o), f64x2(-1.0, 1.0))));
+      }
+    }
+    butterflies(buf, m, pitch, count, tw, true);
+    scatter(out + (<usize>(r * n2) << 3), 16, n2 << 3, m, count, buf, pitch, 1.0 / <f64>m);
+  }
+}
+

@@ -1,0 +1,77 @@
+// The step on the WebAssembly SIMD kernels against the step on fft.js (a
+// general-purpose FFT library from the npm registry): the same field to
+// round-off after a nonlinear run, for every geometry and thread count.
+import { describe, expect, it } from "vitest";
+import { Grid } from "../../src/grid/grid.js";
+import { makePoissonSolver } from "../../src/fields/poisson.js";
+import { LcdmBackground, StaticBackground } from "../../src/physics/cosmology/background.js";
+import { SplitStepper } from "../../src/integrators/split-step.js";
+import { ThreadedStepper } from "../../src/integrators/threaded-step.js";
+import { resolveFftBackend } from "../../src/integrators/fft-backend.js";
+import { evolve } from "../../src/simulation/evolve.js";
+import { ConfigError } from "../../src/core/errors.js";
+import { fillComplex, maxAbs, maxAbsDiff } from "../helpers/fields.js";
+
+function lumpy(grid: Grid): Float64Array {
+  return fillComplex(grid, (x, y, z) => {
+    const d = 0.4 * Math.cos(2 * Math.PI * (x + 2 * y)) * Math.sin(2 * Math.PI * z) + 0.2 * Math.cos(6 * Math.PI * z + 1);
+    const s = 0.02 * Math.sin(2 * Math.PI * (y - z));
+    const amp = Math.sqrt(300 * (1 + d));
+    return [amp * Math.cos(s), amp * Math.sin(s)];
+  });
+}
+
+type Gravity = "periodic" | "isolated";
+
+function runWith(cells: readonly number[], gravity: Gravity, fft: "wasm" | "js", threads: number) {
+  const grid = new Grid([...cells], cells.map(() => 1));
+  const bg = gravity === "periodic" && cells.length === 3 ? new LcdmBackground({ hubble0: 30, omegaMatter: 0.3, omegaRadiation: 0 }) : new StaticBackground();
+  const t0 = bg.kind === "lcdm" ? bg.time(0.3) : 0;
+  const solver = makePoissonSolver(grid, gravity);
+  const s = threads === 1 ? new SplitStepper(grid, bg, solver, fft) : new ThreadedStepper(grid, bg, solver, threads, fft);
+  try {
+    expect(s.backend).toBe(fft);
+    s.setState(lumpy(grid), t0);
+    s.trackKinetic = true;
+    const r = evolve(s, { safety: 0.25, maxDlnA: 0.01 }, { endTime: t0 + 0.004, massTolerance: 1e-8, maxSteps: 200 });
+    return { psi: Float64Array.from(s.psi), phi: Float64Array.from(s.phi), steps: r.steps, kinetic: s.midKineticTilde };
+  } finally {
+    s.close();
+  }
+}
+
+describe("FFT backends", () => {
+  for (const [cells, gravity] of [
+    [[32, 32, 32], "periodic"],
+    [[64, 32], "periodic"],
+    [[256], "periodic"],
+    [[16, 16, 16], "isolated"],
+  ] as const) {
+    it(`wasm and fft.js give the same ${cells.length}D ${gravity} field to 1e-12 after a nonlinear run, on 1 and 2 threads`, () => {
+      const js = runWith(cells, gravity, "js", 1);
+      expect(js.steps).toBeGreaterThan(5);
+      for (const threads of [1, 2]) {
+        const wasm = runWith(cells, gravity, "wasm", threads);
+        expect(wasm.steps).toBe(js.steps);
+        expect(maxAbsDiff(wasm.psi, js.psi) / maxAbs(js.psi)).toBeLessThan(1e-12);
+        expect(maxAbsDiff(wasm.phi, js.phi) / maxAbs(js.phi)).toBeLessThan(1e-12);
+        expect(Math.abs(wasm.kinetic / js.kinetic - 1)).toBeLessThan(1e-12);
+      }
+    });
+  }
+
+  for (const fft of ["wasm", "js"] as const) {
+    it(`${fft}: the same backend and thread count run twice give bitwise the same field`, () => {
+      const a = runWith([32, 32, 32], "periodic", fft, 2);
+      const b = runWith([32, 32, 32], "periodic", fft, 2);
+      expect(Buffer.from(a.psi.buffer).equals(Buffer.from(b.psi.buffer))).toBe(true);
+    });
+  }
+
+  it("auto picks wasm where it fits and fft.js where a grid needs more than a 4 GiB WebAssembly memory", () => {
+    expect(resolveFftBackend("auto", [64, 64, 64], true, 2)).toBe("wasm");
+    expect(resolveFftBackend("auto", [512, 512, 512], true, 2)).toBe("js");
+    expect(() => resolveFftBackend("wasm", [512, 512, 512], true, 2)).toThrow(ConfigError);
+    expect(resolveFftBackend("js", [64, 64, 64], true, 2)).toBe("js");
+  });
+});
