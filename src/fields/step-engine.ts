@@ -20,6 +20,11 @@ export interface StepEngine {
   kick(factor: number, lo: number, hi: number): void;
   /** FFT pass of ψ along `axis` over units. */
   axis(axis: number, inverse: boolean, lo: number, hi: number): void;
+  /**
+   * FFT pass along the last axis over rows; with `kick` ≠ 0 the rows get
+   * e^{−iφ·kick} first, with `density` φ ← |ψ|² afterwards (returns Σ|ψ|²).
+   */
+  rows(inverse: boolean, kick: number, density: boolean, lo: number, hi: number): number;
   /** Drift phase over rows of the transformed ψ (1D grids). */
   drift(lo: number, hi: number): void;
   /** Σ k²|ψ_k|² over rows of the transformed ψ (1D grids). */
@@ -80,6 +85,7 @@ abstract class EngineBase implements StepEngine {
     poissonRows(this.spec!, this.half, kp[0], kp[1], kp[2], lo, hi);
   }
   abstract axis(axis: number, inverse: boolean, lo: number, hi: number): void;
+  abstract rows(inverse: boolean, kick: number, density: boolean, lo: number, hi: number): number;
   abstract driftOuter(axis: number, lo: number, hi: number, gradient: boolean): number;
   abstract realRows(lo: number, hi: number): void;
   abstract realRowsInverse(lo: number, hi: number): void;
@@ -121,6 +127,12 @@ export class JsStepEngine extends EngineBase {
 
   axis(axis: number, inverse: boolean, lo: number, hi: number): void {
     this.cfft.pass(this.psi, axis, inverse, lo, hi);
+  }
+
+  rows(inverse: boolean, kick: number, density: boolean, lo: number, hi: number): number {
+    if (kick !== 0) this.kick(kick, lo, hi);
+    this.cfft.pass(this.psi, 2, inverse, lo, hi);
+    return density ? this.density(lo, hi) : 0;
   }
 
   driftOuter(axis: number, lo: number, hi: number, gradient: boolean): number {
@@ -203,8 +215,20 @@ export class WasmStepEngine extends EngineBase {
     return region.offset + 8 * width * index;
   }
 
+  override kick(factor: number, lo: number, hi: number): void {
+    const n2 = this.shape[2];
+    this.k.kick(this.setup.psi.offset, this.setup.phi.offset, factor, lo * n2, hi * n2);
+  }
+
   axis(axis: number, inverse: boolean, lo: number, hi: number): void {
     this.pass(this.setup.psi.offset, this.shape, axis, inverse, lo, hi);
+  }
+
+  rows(inverse: boolean, kick: number, density: boolean, lo: number, hi: number): number {
+    const n2 = this.shape[2];
+    const t = this.tables(n2);
+    const s = this.setup;
+    return this.k.rowsPass(s.psi.offset, n2, lo, hi, this.buf, inverse ? t.inverse : t.forward, t.reversal, inverse ? 1 : 0, inverse ? 1 / n2 : 1, s.phi.offset, kick, density ? 1 : 0);
   }
 
   halfAxis(axis: number, inverse: boolean, lo: number, hi: number): void {

@@ -7,7 +7,7 @@
  * layout is plain data that worker threads receive to build their engines.
  */
 import type { Triple } from "../grid/grid.js";
-import { fillBitReversal, fillTwiddles, twiddleBytes, WASM_BLOCK } from "./wasm-kernels.js";
+import { fillBitReversal, fillTwiddles, instantiateKernels, kernelModule, twiddleBytes, WASM_BLOCK, WASM_RESERVED_BYTES } from "./wasm-kernels.js";
 
 /** The FFT implementations of the step. */
 export type FftBackend = "wasm" | "js";
@@ -90,7 +90,7 @@ function planWasm(shape: Triple, periodic: boolean, slots: number) {
   const [n0, n1, n2] = shape;
   const size = n0 * n1 * n2;
   const h2 = n2 / 2 + 1;
-  let top = 64;
+  let top = WASM_RESERVED_BYTES;
   const take = (bytes: number): number => {
     const at = top;
     top += Math.ceil(bytes / 64) * 64;
@@ -160,6 +160,9 @@ export function allocateStepMemory(
       kPoisson: kPoisson ? at(plan.kPoisson, n0 + n1 + h2) : undefined,
       wasm: { memory, tables: plan.tables, realTwiddles: plan.realTwiddles, scratch: plan.scratch, scratchBytes: plan.scratchBytes },
     };
+    const module = kernelModule();
+    if (!module) throw new Error("the wasm FFT backend is not available");
+    instantiateKernels(module, memory).initConstants();
     const buffer = memory.buffer;
     for (const [n, t] of Object.entries(plan.tables)) {
       const len = Number(n);

@@ -8,6 +8,12 @@ import { fileURLToPath } from "node:url";
 
 /** The kernels' exports; addresses are byte offsets into the shared memory. */
 export interface WasmKernelExports {
+  rowsPass(
+    data: number, n2: number, lo: number, hi: number, buf: number, tw: number, rev: number, inverse: number, scale: number,
+    phi: number, kickFactor: number, density: number,
+  ): number;
+  initConstants(): void;
+  readonly CONSTANTS_BYTES: { readonly value: number };
   axisPass(data: number, n0: number, n1: number, n2: number, axis: number, lo: number, hi: number, buf: number, tw: number, rev: number, inverse: number, scale: number): void;
   driftOuter(
     data: number, n0: number, n1: number, n2: number, axis: number, lo: number, hi: number, buf: number, buf2: number,
@@ -19,7 +25,12 @@ export interface WasmKernelExports {
   ): void;
   realRows(input: number, out: number, n2: number, lo: number, hi: number, buf: number, tw: number, rev: number, ctw: number): void;
   realRowsInverse(spec: number, out: number, n2: number, lo: number, hi: number, buf: number, tw: number, rev: number, ctw: number): void;
+  kick(psi: number, phi: number, factor: number, lo: number, hi: number): void;
+  sinCos(angles: number, out: number, count: number): void;
 }
+
+/** Bytes at the start of the memory reserved for the kernels' constants table (address 64 on). */
+export const WASM_RESERVED_BYTES = 512;
 
 /** Pencils a kernel pass holds in its scratch block at once (BLOCK in the kernel source). */
 export const WASM_BLOCK = 16;
@@ -47,7 +58,7 @@ export function kernelModule(): WebAssembly.Module | null {
 
 /** Instantiate the kernels on a shared memory. */
 export function instantiateKernels(module: WebAssembly.Module, memory: WebAssembly.Memory): WasmKernelExports {
-  const instance = new WebAssembly.Instance(module, { env: { memory } });
+  const instance = new WebAssembly.Instance(module, { env: { memory, sin: Math.sin, cos: Math.cos } });
   return instance.exports as unknown as WasmKernelExports;
 }
 

@@ -12,7 +12,14 @@
  * start. The scheme is unitary, time-reversible and second order in Δt
  * (Strang 1968, SIAM J. Numer. Anal. 5, 506). The potential after a step is
  * kept for the first kick of the next, so a step costs one complex FFT pair
- * and one Poisson solve, and allocates nothing.
+ * and one Poisson solve, and allocates no arrays.
+ *
+ * Both kicks multiply by a phase of the same φ, so the closing kick of one
+ * step and the opening kick of the next are applied together, as one
+ * e^{−iφ(K₂+K₁)} folded into the next step's first transform pass: one sin
+ * and cos per cell and step instead of two. Until then the closing kick is
+ * owed; reading `psi` applies it (`rawPsi` gives ψ without it, which has the
+ * same |ψ|). The density for the potential is taken in the drift's last pass.
  */
 import type { Grid } from "../grid/grid.js";
 import type { Background } from "../physics/cosmology/background.js";
@@ -28,8 +35,6 @@ export class SplitStepper {
   readonly grid: Grid;
   readonly background: Background;
   readonly gravity: PoissonSolver;
-  /** ψ, interleaved complex, √(mass density) in code units. */
-  readonly psi: Float64Array;
   /** φ of the current ψ (∇²φ = ρ − ρ̄ or ρ); the potential is Φ = φ/a. */
   readonly phi: Float64Array;
   /** Cosmic (or ordinary) time in code units. */
@@ -49,6 +54,8 @@ export class SplitStepper {
   protected readonly phase: readonly [Float64Array, Float64Array, Float64Array];
   private engineOnThisThread: StepEngine | undefined;
   private complexFft: ComplexFft | undefined;
+  /** The closing kick's factor K₂ not yet applied to the stored ψ. */
+  private owedKick = 0;
 
   /**
    * @param fft the FFT backend ("auto": WebAssembly when the grid fits its 4 GiB memory)
@@ -62,9 +69,31 @@ export class SplitStepper {
     this.backend = resolveFftBackend(fft, grid.shape, periodic !== undefined, slots);
     const kSquared = [0, 1, 2].map((ax) => grid.wavenumbers(ax as 0 | 1 | 2).map((k) => k * k));
     this.memory = allocateStepMemory(this.backend, grid.shape, kSquared, periodic?.kSquared, slots);
-    this.psi = this.memory.psi;
     this.phi = this.memory.phi;
     this.phase = this.memory.phase;
+  }
+
+  /** ψ, interleaved complex, √(mass density) in code units (applies an owed kick first). */
+  get psi(): Float64Array {
+    this.synchronize();
+    return this.memory.psi;
+  }
+
+  /** ψ as stored: it may owe the closing kick, a phase per cell, so only |ψ| is current. */
+  get rawPsi(): Float64Array {
+    return this.memory.psi;
+  }
+
+  /** The owed kick factor (0 when ψ is current). */
+  get owedKickFactor(): number {
+    return this.owedKick;
+  }
+
+  /** Apply an owed kick, so that the stored ψ is the current field. */
+  synchronize(): void {
+    const k = this.owedKick;
+    this.owedKick = 0;
+    this.kick(k);
   }
 
   /** A complex FFT of the grid's shape (JavaScript) for measurements outside the step. */
@@ -82,15 +111,25 @@ export class SplitStepper {
   private get rows(): number {
     return this.grid.shape[0] * this.grid.shape[1];
   }
+
   /** Release resources (worker threads in subclasses). */
   close(): void {}
 
   /** Load a field (copied) at time t and compute its potential. */
   setState(psi: Float64Array, time: number): void {
-    if (psi.length !== this.psi.length) {
+    this.restoreRaw(psi, time, 0);
+  }
+
+  /**
+   * Load a field as stored (see rawPsi) with the kick it owes, at time t, and
+   * compute its potential: undoes a failed step from a copy of rawPsi.
+   */
+  restoreRaw(psi: Float64Array, time: number, owedKick: number): void {
+    if (psi.length !== this.memory.psi.length) {
       throw new RangeError(`field has ${psi.length / 2} cells, grid has ${this.grid.size}`);
     }
-    this.psi.set(psi);
+    this.memory.psi.set(psi);
+    this.owedKick = owedKick;
     this.time = time;
     this.updatePotential();
   }
@@ -100,10 +139,11 @@ export class SplitStepper {
    * recomputing φ, so that a resumed run continues bit for bit.
    */
   restoreState(psi: Float64Array, phi: Float64Array, time: number, mass: number): void {
-    if (psi.length !== this.psi.length || phi.length !== this.phi.length) {
+    if (psi.length !== this.memory.psi.length || phi.length !== this.phi.length) {
       throw new RangeError(`saved state has ${phi.length} cells, grid has ${this.grid.size}`);
     }
-    this.psi.set(psi);
+    this.memory.psi.set(psi);
+    this.owedKick = 0;
     this.phi.set(phi);
     this.time = time;
     this.mass = mass;
@@ -112,6 +152,11 @@ export class SplitStepper {
   /** Recompute φ and the mass from ψ. */
   updatePotential(): void {
     this.mass = this.runPass(this.rows, { op: "density" }) * this.grid.cellVolume;
+    this.solvePotential();
+  }
+
+  /** φ from the density φ holds. */
+  private solvePotential(): void {
     if (!this.memory.spectrum) {
       this.gravity.solveInPlace(this.phi);
       return;
@@ -140,11 +185,23 @@ export class SplitStepper {
    * transforms back in one pass.
    */
   drift(factor: number): void {
+    this.synchronize();
+    this.driftPasses(factor, 0, false);
+  }
+
+  /**
+   * The drift's passes; the first (along the last axis) kicks with `kick`
+   * before transforming, and with `density` the last one leaves |ψ|² in φ.
+   * Returns Σ|ψ|² when `density`.
+   */
+  private driftPasses(factor: number, kick: number, density: boolean): number {
     const shape = this.grid.shape;
     this.fillPhaseTables(factor);
     const outer = shape[0] > 1 ? 0 : shape[1] > 1 ? 1 : -1;
-    const inner = [2, 1].filter((axis) => axis > outer && shape[axis]! > 1);
-    for (const axis of inner) this.runPass(outerCount(shape, axis), { op: "axis", axis, inverse: false });
+    // the last axis has at least 4 cells, so it always comes first
+    const middle = outer === 0 && shape[1] > 1;
+    this.runPass(this.rows, { op: "rows", inverse: false, kick, density: false });
+    if (middle) this.runPass(outerCount(shape, 1), { op: "axis", axis: 1, inverse: false });
     let sum: number;
     if (outer >= 0) {
       sum = this.runPass(outerCount(shape, outer), { op: "drift-outer", axis: outer, gradient: this.trackKinetic });
@@ -154,7 +211,8 @@ export class SplitStepper {
     }
     // Parseval: ½∫|∇ψ|² dV = ½ Σ_k k²|ψ_k|² ΔV/N
     this.midKineticTilde = this.trackKinetic ? (0.5 * sum * this.grid.cellVolume) / this.grid.size : Number.NaN;
-    for (const axis of inner.reverse()) this.runPass(outerCount(shape, axis), { op: "axis", axis, inverse: true });
+    if (middle) this.runPass(outerCount(shape, 1), { op: "axis", axis: 1, inverse: true });
+    return this.runPass(this.rows, { op: "rows", inverse: true, kick: 0, density });
   }
 
   /** cos and sin of −k²D/2 per axis (the drift's phase factors). */
@@ -170,7 +228,7 @@ export class SplitStepper {
     }
   }
 
-  /** Advance by Δt (code time) with one kick–drift–kick step. */
+  /** Advance by Δt (code time) with one kick–drift–kick step (the closing kick stays owed, see above). */
   step(dt: number): void {
     const bg = this.background;
     const t0 = this.time;
@@ -180,10 +238,12 @@ export class SplitStepper {
     const k2 = bg.kickFactor(tHalf, t1);
     this.lastDrift = bg.driftFactor(t0, t1);
     this.lastKick = k1 + k2;
-    this.kick(k1);
-    this.drift(this.lastDrift);
-    this.updatePotential();
-    this.kick(k2);
+    const gravity = this.gravity.kind !== "none";
+    const opening = gravity ? this.owedKick + k1 : 0;
+    this.owedKick = 0;
+    this.mass = this.driftPasses(this.lastDrift, opening, true) * this.grid.cellVolume;
+    this.solvePotential();
+    this.owedKick = gravity ? k2 : 0;
     this.time = t1;
   }
 

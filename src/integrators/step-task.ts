@@ -8,6 +8,7 @@ import type { StepEngine } from "../fields/step-engine.js";
 export type StepTask =
   | { readonly op: "kick"; readonly factor: number }
   | { readonly op: "axis" | "half-axis"; readonly axis: number; readonly inverse: boolean }
+  | { readonly op: "rows"; readonly inverse: boolean; readonly kick: number; readonly density: boolean }
   | { readonly op: "drift-outer"; readonly axis: number; readonly gradient: boolean }
   | { readonly op: "poisson-outer"; readonly axis: number }
   | { readonly op: "drift" | "gradient" | "density" | "real-rows" | "real-rows-inverse" | "poisson" };
@@ -21,6 +22,8 @@ export function runTask(engine: StepEngine, t: StepTask, lo: number, hi: number)
     case "axis":
       engine.axis(t.axis, t.inverse, lo, hi);
       return 0;
+    case "rows":
+      return engine.rows(t.inverse, t.kick, t.density, lo, hi);
     case "half-axis":
       engine.halfAxis(t.axis, t.inverse, lo, hi);
       return 0;

@@ -38,7 +38,7 @@ export class ThreadPool {
   private readonly workers: Worker[];
   private readonly ctrl: Int32Array;
   private readonly results: Float64Array;
-  private closed = false;
+  private isClosed = false;
 
   constructor(size: number, step: StepSetup) {
     this.size = size;
@@ -59,7 +59,7 @@ export class ThreadPool {
    * on each and return the sum of the workers' results (in worker order).
    */
   run(count: number, task: StepTask): number {
-    if (this.closed) throw new Error("the thread pool is closed");
+    if (this.isClosed) throw new Error("the thread pool is closed");
     let posted = 0;
     this.results.fill(0);
     const ranges: [number, number][] = [];
@@ -79,10 +79,15 @@ export class ThreadPool {
     return sum;
   }
 
+  /** Whether close() was called. */
+  get closed(): boolean {
+    return this.isClosed;
+  }
+
   /** Stop the workers. */
   close(): void {
-    if (this.closed) return;
-    this.closed = true;
+    if (this.isClosed) return;
+    this.isClosed = true;
     for (const w of this.workers) void w.terminate();
   }
 }

@@ -25,8 +25,9 @@ export class ThreadedStepper extends SplitStepper {
     this.pool = new ThreadPool(threads, this.memory.setup);
   }
 
+  /** Passes run on the workers; after close() on this thread (so an owed kick can still be applied when ψ is read). */
   protected override runPass(count: number, task: StepTask): number {
-    return this.pool.run(count, task);
+    return this.pool.closed ? super.runPass(count, task) : this.pool.run(count, task);
   }
 
   override close(): void {

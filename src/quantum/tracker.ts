@@ -11,7 +11,7 @@ import { ClockAccumulator, type ClockRates } from "./clocks.js";
 
 /** Whole-box rates of the current field: ½∫|∇ψ|² is taken from `kineticTilde` when given. */
 function ratesOf(stepper: SplitStepper, particleMass: number, kineticTilde: number): { rates: ClockRates; mass: number } {
-  const psi = stepper.psi;
+  const psi = stepper.rawPsi; // only |ψ|² is used, so an owed kick does not matter
   const phi = stepper.phi;
   let mass = 0;
   let rho2 = 0;

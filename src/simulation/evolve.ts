@@ -105,7 +105,7 @@ function* evolveSteps(
   start?: EvolveStart,
 ): Generator<void, EvolveResult, void> {
   const fmt = hooks.formatTime ?? ((t: number) => t.toPrecision(6));
-  const backup = new Float64Array(stepper.psi.length);
+  const backup = new Float64Array(stepper.rawPsi.length);
   const mass0 = start?.mass0 ?? stepper.mass;
   const tEnd = limits.endTime;
   let steps = start?.steps ?? 0;
@@ -135,7 +135,9 @@ function* evolveSteps(
       // split the remainder evenly rather than leave a sliver of a step
       dt = 0.5 * (target - stepper.time);
     }
-    backup.set(stepper.psi);
+    // the state as stored (ψ may owe its closing kick), so keeping it does not force that kick
+    backup.set(stepper.rawPsi);
+    const owed = stepper.owedKickFactor;
     const t0 = stepper.time;
     stepper.step(dt);
     if (landed) stepper.time = target; // exact, so output times are not off by round-off
@@ -145,7 +147,7 @@ function* evolveSteps(
       const what = Number.isFinite(stepper.mass)
         ? `the mass changed by ${drift.toExponential(2)} (tolerance ${limits.massTolerance.toExponential(1)})`
         : "the field became non-finite";
-      stepper.setState(backup, t0);
+      stepper.restoreRaw(backup, t0, owed);
       return {
         status: "stopped",
         reason:

@@ -51,3 +51,21 @@ describe("threaded split-step", () => {
     });
   }
 });
+
+describe("a closed threaded stepper", () => {
+  it("still gives its field, with the owed closing kick applied on the main thread", () => {
+    const grid = new Grid([32, 32, 32], [1, 1, 1]);
+    const psi0 = lumpy(grid);
+    const one = new SplitStepper(grid, new StaticBackground(), makePoissonSolver(grid, "periodic"));
+    const two = new ThreadedStepper(grid, new StaticBackground(), makePoissonSolver(grid, "periodic"), 2);
+    one.setState(psi0, 0);
+    two.setState(psi0, 0);
+    for (let i = 0; i < 3; i++) {
+      one.step(1e-4);
+      two.step(1e-4);
+    }
+    two.close();
+    expect(two.owedKickFactor).toBeGreaterThan(0);
+    expect(Buffer.from(Float64Array.from(two.psi).buffer).equals(Buffer.from(Float64Array.from(one.psi).buffer))).toBe(true);
+  });
+});

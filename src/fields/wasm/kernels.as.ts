@@ -109,16 +109,46 @@ function scatter(dst: usize, pointStride: i32, pencilStride: i32, n: i32, count:
 // [lo, hi): rows (axis 2), or (outer index, block of BLOCK columns) pairs
 // (axes 0 and 1), as outerCount() in fields/fft.ts counts them.
 
+/**
+ * FFT of rows [lo, hi) along the last axis, BLOCK rows at a time. With
+ * `kickFactor` non-zero the rows are first multiplied by e^{−iφK} (the step's
+ * opening kick, while the block is in cache); with `density` set, φ ← |ψ|²
+ * of the transformed rows is written afterwards and Σ|ψ|² returned.
+ */
+export function rowsPass(
+  data: usize, n2: i32, lo: i32, hi: i32, buf: usize, tw: usize, rev: usize, inverse: bool, scale: f64,
+  phi: usize, kickFactor: f64, density: bool,
+): f64 {
+  let sum = f64x2.splat(0);
+  for (let r = lo; r < hi; r += BLOCK) {
+    const count = min(BLOCK, hi - r);
+    const p = data + (<usize>(r * n2) << 4);
+    if (kickFactor != 0) kick(data, phi, kickFactor, r * n2, (r + count) * n2);
+    gather(p, 16, n2 << 4, n2, count, buf, count << 4, rev);
+    butterflies(buf, n2, count << 4, count, tw, inverse);
+    scatter(p, 16, n2 << 4, n2, count, buf, count << 4, scale);
+    if (density) {
+      const q = phi + (<usize>(r * n2) << 3);
+      const cells = count * n2;
+      for (let i: i32 = 0; i < cells; i += 2) {
+        const x0 = v128.load(p + (<usize>i << 4));
+        const x1 = v128.load(p + (<usize>i << 4), 16);
+        const s0 = f64x2.mul(x0, x0);
+        const s1 = f64x2.mul(x1, x1);
+        // (|ψ_i|², |ψ_i+1|²) from the two squared pairs
+        const rho = f64x2.add(v128.shuffle<f64>(s0, s1, 0, 2), v128.shuffle<f64>(s0, s1, 1, 3));
+        v128.store(q + (<usize>i << 3), rho);
+        sum = f64x2.add(sum, rho);
+      }
+    }
+  }
+  return f64x2.extract_lane(sum, 0) + f64x2.extract_lane(sum, 1);
+}
+
 /** One FFT pass along `axis` over units [lo, hi). */
 export function axisPass(data: usize, n0: i32, n1: i32, n2: i32, axis: i32, lo: i32, hi: i32, buf: usize, tw: usize, rev: usize, inverse: bool, scale: f64): void {
   if (axis == 2) {
-    for (let r = lo; r < hi; r += BLOCK) {
-      const count = min(BLOCK, hi - r);
-      const p = data + (<usize>(r * n2) << 4);
-      gather(p, 16, n2 << 4, n2, count, buf, count << 4, rev);
-      butterflies(buf, n2, count << 4, count, tw, inverse);
-      scatter(p, 16, n2 << 4, n2, count, buf, count << 4, scale);
-    }
+    rowsPass(data, n2, lo, hi, buf, tw, rev, inverse, scale, 0, 0.0, false);
     return;
   }
   const n = axis == 1 ? n1 : n0;
@@ -302,3 +332,150 @@ export function realRowsInverse(spec: usize, out: usize, n2: i32, lo: i32, hi: i
   }
 }
 
+
+// sin and cos of two angles at once: reduction by k = nearest(x·2/π) with
+// π/2 split in three parts (Cody & Waite), then the minimax polynomials of
+// fdlibm's __kernel_sin and __kernel_cos on |r| ≤ π/4, and the quadrant k mod
+// 4 selecting and negating. Angles beyond 1e5 in magnitude go through the
+// scalar library functions instead (the three-part split is exact only for
+// moderate k). The module must not carry static data (the memory is all
+// JavaScript's), so the library functions come from the host.
+@external("env", "sin") declare function hostSin(x: f64): f64;
+@external("env", "cos") declare function hostCos(x: f64): f64;
+const PIO2_1: f64 = 1.57079632673412561417e+00;
+const PIO2_2: f64 = 6.07710050630396597660e-11;
+const PIO2_3: f64 = 2.02226624871116645580e-21;
+const INV_PIO2: f64 = 6.36619772367581382433e-01;
+const S1: f64 = -1.66666666666666324348e-01;
+const S2: f64 = 8.33333333332248946124e-03;
+const S3: f64 = -1.98412698298579493134e-04;
+const S4: f64 = 2.75573137070700676789e-06;
+const S5: f64 = -2.50507602534068634195e-08;
+const S6: f64 = 1.58969099521155010221e-10;
+const C1: f64 = 4.16666666666666019037e-02;
+const C2: f64 = -1.38888888888741095749e-03;
+const C3: f64 = 2.48015872894767294178e-05;
+const C4: f64 = -2.75573143513906633035e-07;
+const C5: f64 = 2.08757232129817482790e-09;
+const C6: f64 = -1.13596475577881948265e-11;
+const LARGE_ANGLE: f64 = 1.0e5;
+
+// The polynomial's constants as (c, c) vectors at a fixed address, written
+// once by initConstants(): loading them is cheaper than rebuilding each
+// 128-bit constant from immediates inside the loop.
+const CONSTANTS: usize = 64;
+/** Bytes at CONSTANTS the layout must leave free. */
+export const CONSTANTS_BYTES: i32 = 22 * 16;
+const K_INV_PIO2: usize = 0;
+const K_PIO2_1: usize = 16;
+const K_PIO2_2: usize = 32;
+const K_PIO2_3: usize = 48;
+const K_S: usize = 64; // S1 … S6 at 64 … 144
+const K_C: usize = 160; // C1 … C6 at 160 … 240
+const K_HALF: usize = 256;
+const K_TWO: usize = 272;
+const K_ONE: usize = 288;
+const K_SIGN: usize = 304;
+const K_CONJ_RE: usize = 320; // (−1, 1)
+
+/** Write the constants table (call once per memory, before any kick). */
+export function initConstants(): void {
+  put(K_INV_PIO2, INV_PIO2);
+  put(K_PIO2_1, PIO2_1);
+  put(K_PIO2_2, PIO2_2);
+  put(K_PIO2_3, PIO2_3);
+  put(K_S, S1);
+  put(K_S + 16, S2);
+  put(K_S + 32, S3);
+  put(K_S + 48, S4);
+  put(K_S + 64, S5);
+  put(K_S + 80, S6);
+  put(K_C, C1);
+  put(K_C + 16, C2);
+  put(K_C + 32, C3);
+  put(K_C + 48, C4);
+  put(K_C + 64, C5);
+  put(K_C + 80, C6);
+  put(K_HALF, 0.5);
+  put(K_TWO, 2.0);
+  put(K_ONE, 1.0);
+  put(K_SIGN, -0.0);
+  v128.store(CONSTANTS + K_CONJ_RE, f64x2(-1.0, 1.0));
+}
+
+@inline function put(at: usize, x: f64): void {
+  v128.store(CONSTANTS + at, f64x2.splat(x));
+}
+
+@inline function kc(at: usize): v128 {
+  return v128.load(CONSTANTS + at);
+}
+
+/** ψ ← e^{i·angle} ψ for two consecutive cells at address p (angle lanes 0, 1). */
+@inline function rotatePair(p: usize, angle: v128): void {
+  let s: v128;
+  let c: v128;
+  if (f64x2.extract_lane(f64x2.abs(angle), 0) > LARGE_ANGLE || f64x2.extract_lane(f64x2.abs(angle), 1) > LARGE_ANGLE) {
+    const a0 = f64x2.extract_lane(angle, 0);
+    const a1 = f64x2.extract_lane(angle, 1);
+    s = f64x2(hostSin(a0), hostSin(a1));
+    c = f64x2(hostCos(a0), hostCos(a1));
+  } else {
+    const k = f64x2.nearest(f64x2.mul(angle, kc(K_INV_PIO2)));
+    const r = f64x2.sub(f64x2.sub(f64x2.sub(angle, f64x2.mul(k, kc(K_PIO2_1))), f64x2.mul(k, kc(K_PIO2_2))), f64x2.mul(k, kc(K_PIO2_3)));
+    const z = f64x2.mul(r, r);
+    // Estrin's scheme: short dependency chains, so consecutive cells overlap in the pipeline
+    const z2 = f64x2.mul(z, z);
+    const z4 = f64x2.mul(z2, z2);
+    const ps = f64x2.add(
+      f64x2.add(f64x2.add(kc(K_S), f64x2.mul(z, kc(K_S + 16))), f64x2.mul(z2, f64x2.add(kc(K_S + 32), f64x2.mul(z, kc(K_S + 48))))),
+      f64x2.mul(z4, f64x2.add(kc(K_S + 64), f64x2.mul(z, kc(K_S + 80)))),
+    );
+    const pc = f64x2.add(
+      f64x2.add(f64x2.add(kc(K_C), f64x2.mul(z, kc(K_C + 16))), f64x2.mul(z2, f64x2.add(kc(K_C + 32), f64x2.mul(z, kc(K_C + 48))))),
+      f64x2.mul(z4, f64x2.add(kc(K_C + 64), f64x2.mul(z, kc(K_C + 80)))),
+    );
+    const sr = f64x2.add(r, f64x2.mul(f64x2.mul(r, z), ps));
+    // cos r = w + ((1 − w) − z/2 + z²·pc) with w = 1 − z/2 (fdlibm's way of keeping the low bits)
+    const one = kc(K_ONE);
+    const half = kc(K_HALF);
+    const hz = f64x2.mul(half, z);
+    const w = f64x2.sub(one, hz);
+    const cr = f64x2.add(w, f64x2.add(f64x2.sub(f64x2.sub(one, w), hz), f64x2.mul(z2, pc)));
+    // quadrant k mod 4 from the float k: odd k swaps sin and cos; bit 1 of k (of k + 1) negates sin (cos)
+    const two = kc(K_TWO);
+    const h = f64x2.floor(f64x2.mul(k, half));
+    const odd = f64x2.ne(f64x2.mul(h, two), k);
+    const sinNeg = f64x2.ne(f64x2.mul(f64x2.floor(f64x2.mul(h, half)), two), h);
+    const h1 = f64x2.floor(f64x2.mul(f64x2.add(k, one), half));
+    const cosNeg = f64x2.ne(f64x2.mul(f64x2.floor(f64x2.mul(h1, half)), two), h1);
+    const sign = kc(K_SIGN);
+    s = v128.xor(v128.bitselect(cr, sr, odd), v128.and(sinNeg, sign));
+    c = v128.xor(v128.bitselect(sr, cr, odd), v128.and(cosNeg, sign));
+  }
+  const x0 = v128.load(p);
+  const x1 = v128.load(p, 16);
+  const c0 = v128.shuffle<f64>(c, c, 0, 0);
+  const c1 = v128.shuffle<f64>(c, c, 1, 1);
+  const s0 = f64x2.mul(v128.shuffle<f64>(s, s, 0, 0), kc(K_CONJ_RE));
+  const s1 = f64x2.mul(v128.shuffle<f64>(s, s, 1, 1), kc(K_CONJ_RE));
+  v128.store(p, cmul(x0, c0, s0));
+  v128.store(p, cmul(x1, c1, s1), 16);
+}
+
+/** ψ ← e^{−iφK} ψ over cells [lo, hi) (an even count, from an even start). */
+export function kick(psi: usize, phi: usize, factor: f64, lo: i32, hi: i32): void {
+  const f = f64x2.splat(-factor);
+  for (let i = lo; i < hi; i += 2) {
+    rotatePair(psi + (<usize>i << 4), f64x2.mul(v128.load(phi + (<usize>i << 3)), f));
+  }
+}
+
+/** e^{i·angle} applied to (1, 0) for `count` angles (pairs): writes (cos, sin) per angle, for testing the sincos. */
+export function sinCos(angles: usize, out: usize, count: i32): void {
+  for (let i = 0; i < count; i += 2) {
+    v128.store(out + (<usize>i << 4), f64x2(1.0, 0.0));
+    v128.store(out + (<usize>i << 4), f64x2(1.0, 0.0), 16);
+    rotatePair(out + (<usize>i << 4), v128.load(angles + (<usize>i << 3)));
+  }
+}

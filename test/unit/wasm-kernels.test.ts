@@ -1,0 +1,62 @@
+// The WebAssembly module's own contracts: no static data of its own (the
+// memory belongs to JavaScript), a constants table inside the reserved bytes,
+// and its vectorised sin/cos against the JavaScript engine's Math.sin and
+// Math.cos (the ECMAScript library functions, correctly rounded to within an ulp or so).
+import fs from "node:fs";
+import { describe, expect, it } from "vitest";
+import { instantiateKernels, kernelModule, WASM_RESERVED_BYTES } from "../../src/fields/wasm-kernels.js";
+import { seededRandom } from "../helpers/fields.js";
+
+function sections(bytes: Uint8Array): number[] {
+  const ids: number[] = [];
+  let p = 8;
+  while (p < bytes.length) {
+    const id = bytes[p++]!;
+    let len = 0;
+    let shift = 0;
+    let b: number;
+    do {
+      b = bytes[p++]!;
+      len |= (b & 127) << shift;
+      shift += 7;
+    } while (b & 128);
+    ids.push(id);
+    p += len;
+  }
+  return ids;
+}
+
+describe("WebAssembly kernels", () => {
+  it("carry no data segment and keep their constants inside the reserved bytes", () => {
+    const file = new URL("../../dist/fields/wasm/kernels.wasm", import.meta.url);
+    const ids = sections(new Uint8Array(fs.readFileSync(file)));
+    expect(ids).not.toContain(11); // data
+    expect(ids).not.toContain(12); // data count
+    const memory = new WebAssembly.Memory({ initial: 1, maximum: 1, shared: true });
+    const k = instantiateKernels(kernelModule()!, memory);
+    expect(64 + k.CONSTANTS_BYTES.value).toBeLessThanOrEqual(WASM_RESERVED_BYTES);
+  });
+
+  it("rotate by sin and cos within 2 ulp-sized errors of Math.sin and Math.cos, from tiny angles to 1e9", () => {
+    const count = 20000;
+    const memory = new WebAssembly.Memory({ initial: 8, maximum: 8, shared: true });
+    const k = instantiateKernels(kernelModule()!, memory);
+    k.initConstants();
+    const anglesAt = WASM_RESERVED_BYTES;
+    const outAt = anglesAt + 8 * count;
+    const angles = new Float64Array(memory.buffer, anglesAt, count);
+    const out = new Float64Array(memory.buffer, outAt, 2 * count);
+    const rnd = seededRandom(5);
+    for (const scale of [1e-9, 0.5, Math.PI, 30, 1e4, 1e5, 3e5, 1e9]) {
+      for (let i = 0; i < count; i++) angles[i] = rnd() * scale;
+      angles[0] = 0;
+      angles[1] = scale;
+      k.sinCos(anglesAt, outAt, count);
+      let worst = 0;
+      for (let i = 0; i < count; i++) {
+        worst = Math.max(worst, Math.abs(out[2 * i]! - Math.cos(angles[i]!)), Math.abs(out[2 * i + 1]! - Math.sin(angles[i]!)));
+      }
+      expect(worst, `angles up to ${scale}`).toBeLessThan(2.3e-16);
+    }
+  });
+});
