@@ -29,70 +29,211 @@ const BLOCK: i32 = 16;
   return v128.shuffle<f64>(x, x, 1, 0);
 }
 
-/** In-place transform of `count` pencils of n points stored point-major with row pitch `pitch` bytes, input in bit-reversed order. */
-function butterflies(buf: usize, n: i32, pitch: i32, count: i32, tw: usize, inverse: bool): void {
-  // ×(−i) forward, ×(+i) inverse: (re, im) → (±im, ∓re)
-  const rot = inverse ? f64x2(-1.0, 1.0) : f64x2(1.0, -1.0);
-  let h: i32 = 1;
+// A transform of a block runs as: the first stage (twiddle-free: radix-2
+// when log2 n is odd, radix-4 with w = 1 otherwise), fused with the gather
+// that puts points in bit-reversed order; the radix-4 stages of quarter
+// lengths h = 2 or 4, then ×4 …; the last one (h = n/4) fused with the
+// scatter that writes the result (times `scale`) back. Butterflies with k = 0
+// skip their twiddle multiplications.
+
+/** Quarter length h of the first twiddled radix-4 stage, after the first stage. */
+@inline function firstTwiddledH(n: i32): i32 {
+  return ctz<i32>(n) & 1 ? 2 : 4;
+}
+
+/** Address of the twiddles of the first twiddled stage (an even log2 n skips the h = 1 stage's entry). */
+@inline function firstTwiddles(n: i32, tw: usize): usize {
+  return ctz<i32>(n) & 1 ? tw : tw + 96;
+}
+
+/** The twiddle-free radix-4 butterfly of four rows (natural residues 0, 2, 1, 3 in x0…x3), results to q0…q3. */
+@inline function plainRadix4(x0: v128, x1: v128, x2: v128, x3: v128, rot: v128, q0: usize, q1: usize, q2: usize, q3: usize, sc: v128): void {
+  const u0 = f64x2.add(x0, x1);
+  const u1 = f64x2.sub(x0, x1);
+  const v0 = f64x2.add(x2, x3);
+  const v1 = f64x2.mul(swap(f64x2.sub(x2, x3)), rot);
+  v128.store(q0, f64x2.mul(f64x2.add(u0, v0), sc));
+  v128.store(q2, f64x2.mul(f64x2.sub(u0, v0), sc));
+  v128.store(q1, f64x2.mul(f64x2.add(u1, v1), sc));
+  v128.store(q3, f64x2.mul(f64x2.sub(u1, v1), sc));
+}
+
+/**
+ * Gather `count` pencils (point j of pencil b at src + j·pointStride + b·pencilStride)
+ * into buf in bit-reversed point order, doing the first stage on the way.
+ */
+function gatherFirst(src: usize, pointStride: i32, pencilStride: i32, n: i32, count: i32, buf: usize, pitch: i32, rev: usize, rot: v128): void {
+  const one = f64x2.splat(1.0);
   if (ctz<i32>(n) & 1) {
-    for (let s: i32 = 0; s < n; s += 2) {
-      const p0 = buf + <usize>(s * pitch);
-      const p1 = p0 + <usize>pitch;
+    for (let t: i32 = 0; t < n; t += 2) {
+      const s0 = src + <usize>(load<i32>(rev + (<usize>t << 2)) * pointStride);
+      const s1 = s0 + <usize>((n >> 1) * pointStride);
+      const d0 = buf + <usize>(t * pitch);
+      const d1 = d0 + <usize>pitch;
       for (let b: i32 = 0; b < count; b++) {
-        const o = <usize>(b << 4);
-        const x = v128.load(p0 + o);
-        const y = v128.load(p1 + o);
-        v128.store(p0 + o, f64x2.add(x, y));
-        v128.store(p1 + o, f64x2.sub(x, y));
+        const x = v128.load(s0 + <usize>(b * pencilStride));
+        const y = v128.load(s1 + <usize>(b * pencilStride));
+        v128.store(d0 + (<usize>b << 4), f64x2.add(x, y));
+        v128.store(d1 + (<usize>b << 4), f64x2.sub(x, y));
       }
     }
-    h = 2;
+    return;
   }
-  let t = tw;
-  for (; h < n; h <<= 2) {
-    const q = <usize>(h * pitch);
-    for (let s: i32 = 0; s < n; s += 4 * h) {
-      for (let k: i32 = 0; k < h; k++) {
-        const tk = t + <usize>(k * 96);
-        const w1r = v128.load(tk);
-        const w1i = v128.load(tk, 16);
-        const w2r = v128.load(tk, 32);
-        const w2i = v128.load(tk, 48);
-        const w3r = v128.load(tk, 64);
-        const w3i = v128.load(tk, 80);
-        const p0 = buf + <usize>((s + k) * pitch);
-        const p1 = p0 + q;
-        const p2 = p1 + q;
-        const p3 = p2 + q;
-        for (let b: i32 = 0; b < count; b++) {
-          const o = <usize>(b << 4);
-          // blocks 0…3 hold the DFTs of the residues 0, 2, 1, 3 (mod 4)
-          const x0 = v128.load(p0 + o);
-          const t2 = cmul(v128.load(p1 + o), w2r, w2i);
-          const t1 = cmul(v128.load(p2 + o), w1r, w1i);
-          const t3 = cmul(v128.load(p3 + o), w3r, w3i);
-          const u0 = f64x2.add(x0, t2);
-          const u1 = f64x2.sub(x0, t2);
-          const v0 = f64x2.add(t1, t3);
-          const v1 = f64x2.mul(swap(f64x2.sub(t1, t3)), rot);
-          v128.store(p0 + o, f64x2.add(u0, v0));
-          v128.store(p2 + o, f64x2.sub(u0, v0));
-          v128.store(p1 + o, f64x2.add(u1, v1));
-          v128.store(p3 + o, f64x2.sub(u1, v1));
-        }
+  const quarter = <usize>((n >> 2) * pointStride);
+  for (let t: i32 = 0; t < n; t += 4) {
+    // rows 4t … 4t+3 hold points r, r + n/2, r + n/4, r + 3n/4 with r = rev[4t]
+    const s0 = src + <usize>(load<i32>(rev + (<usize>t << 2)) * pointStride);
+    const s2 = s0 + quarter;
+    const s1 = s2 + quarter;
+    const s3 = s1 + quarter;
+    const d0 = buf + <usize>(t * pitch);
+    const d1 = d0 + <usize>pitch;
+    const d2 = d1 + <usize>pitch;
+    const d3 = d2 + <usize>pitch;
+    for (let b: i32 = 0; b < count; b++) {
+      const o = <usize>(b * pencilStride);
+      const q = <usize>b << 4;
+      plainRadix4(v128.load(s0 + o), v128.load(s1 + o), v128.load(s2 + o), v128.load(s3 + o), rot, d0 + q, d1 + q, d2 + q, d3 + q, one);
+    }
+  }
+}
+
+/** The first stage in place, for data already in bit-reversed order in buf. */
+function firstStage(buf: usize, n: i32, pitch: i32, count: i32, rot: v128): void {
+  const one = f64x2.splat(1.0);
+  if (ctz<i32>(n) & 1) {
+    for (let t: i32 = 0; t < n; t += 2) {
+      const d0 = buf + <usize>(t * pitch);
+      const d1 = d0 + <usize>pitch;
+      for (let b: i32 = 0; b < count; b++) {
+        const q = <usize>b << 4;
+        const x = v128.load(d0 + q);
+        const y = v128.load(d1 + q);
+        v128.store(d0 + q, f64x2.add(x, y));
+        v128.store(d1 + q, f64x2.sub(x, y));
       }
     }
+    return;
+  }
+  for (let t: i32 = 0; t < n; t += 4) {
+    const d0 = buf + <usize>(t * pitch);
+    const d1 = d0 + <usize>pitch;
+    const d2 = d1 + <usize>pitch;
+    const d3 = d2 + <usize>pitch;
+    for (let b: i32 = 0; b < count; b++) {
+      const q = <usize>b << 4;
+      plainRadix4(v128.load(d0 + q), v128.load(d1 + q), v128.load(d2 + q), v128.load(d3 + q), rot, d0 + q, d1 + q, d2 + q, d3 + q, one);
+    }
+  }
+}
+
+/**
+ * One radix-4 stage of quarter length h on buf, twiddles at t. Output rows go
+ * back to buf, or with `dst` ≠ 0 (the last stage, h = n/4) to point j of each
+ * pencil at dst + j·pointStride + b·pencilStride, times `scale`.
+ */
+@inline function stage(
+  buf: usize, n: i32, pitch: i32, count: i32, t: usize, h: i32, rot: v128,
+  dst: usize, pointStride: i32, pencilStride: i32, scale: f64,
+): void {
+  const q = <usize>(h * pitch);
+  const sc = f64x2.splat(scale);
+  const toMemory = dst != 0;
+  for (let s: i32 = 0; s < n; s += 4 * h) {
+    for (let k: i32 = 0; k < h; k++) {
+      const p0 = buf + <usize>((s + k) * pitch);
+      const p1 = p0 + q;
+      const p2 = p1 + q;
+      const p3 = p2 + q;
+      let o0 = p0;
+      let o1 = p1;
+      let o2 = p2;
+      let o3 = p3;
+      let step: usize = 16;
+      if (toMemory) {
+        o0 = dst + <usize>(k * pointStride);
+        o1 = o0 + <usize>(h * pointStride);
+        o2 = o1 + <usize>(h * pointStride);
+        o3 = o2 + <usize>(h * pointStride);
+        step = <usize>pencilStride;
+      }
+      if (k == 0) {
+        for (let b: i32 = 0; b < count; b++) {
+          const i = <usize>b << 4;
+          const j = <usize>b * step;
+          plainRadix4(v128.load(p0 + i), v128.load(p1 + i), v128.load(p2 + i), v128.load(p3 + i), rot, o0 + j, o1 + j, o2 + j, o3 + j, sc);
+        }
+        continue;
+      }
+      const tk = t + <usize>(k * 96);
+      const w1r = v128.load(tk);
+      const w1i = v128.load(tk, 16);
+      const w2r = v128.load(tk, 32);
+      const w2i = v128.load(tk, 48);
+      const w3r = v128.load(tk, 64);
+      const w3i = v128.load(tk, 80);
+      for (let b: i32 = 0; b < count; b++) {
+        const i = <usize>b << 4;
+        const j = <usize>b * step;
+        // blocks 0…3 hold the DFTs of the residues 0, 2, 1, 3 (mod 4)
+        const x0 = v128.load(p0 + i);
+        const t2 = cmul(v128.load(p1 + i), w2r, w2i);
+        const t1 = cmul(v128.load(p2 + i), w1r, w1i);
+        const t3 = cmul(v128.load(p3 + i), w3r, w3i);
+        plainRadix4(x0, t2, t1, t3, rot, o0 + j, o1 + j, o2 + j, o3 + j, sc);
+      }
+    }
+  }
+}
+
+@inline function rotation(inverse: bool): v128 {
+  // ×(−i) forward, ×(+i) inverse: (re, im) → (±im, ∓re)
+  return inverse ? f64x2(-1.0, 1.0) : f64x2(1.0, -1.0);
+}
+
+/** All stages after the first on buf (result in natural order in buf). */
+function stagesInBuf(buf: usize, n: i32, pitch: i32, count: i32, tw: usize, inverse: bool): void {
+  const rot = rotation(inverse);
+  let t = firstTwiddles(n, tw);
+  for (let h = firstTwiddledH(n); h < n; h <<= 2) {
+    stage(buf, n, pitch, count, t, h, rot, 0, 0, 0, 1.0);
     t += <usize>(h * 96);
   }
 }
 
-/** Gather `count` pencils (point j of pencil b at src + j·pointStride + b·pencilStride) into buf, point j to row rev[j]. */
-function gather(src: usize, pointStride: i32, pencilStride: i32, n: i32, count: i32, buf: usize, pitch: i32, rev: usize): void {
-  for (let j: i32 = 0; j < n; j++) {
-    const s = src + <usize>(j * pointStride);
-    const d = buf + <usize>(load<i32>(rev + (<usize>j << 2)) * pitch);
-    for (let b: i32 = 0; b < count; b++) v128.store(d + (<usize>b << 4), v128.load(s + <usize>(b * pencilStride)));
+/** All stages after the first, the last one writing to memory (times `scale`). */
+function stagesToMemory(buf: usize, n: i32, pitch: i32, count: i32, tw: usize, inverse: bool, dst: usize, pointStride: i32, pencilStride: i32, scale: f64): void {
+  const rot = rotation(inverse);
+  if (n <= 4) {
+    // the first stage was the whole transform
+    scatter(dst, pointStride, pencilStride, n, count, buf, pitch, scale);
+    return;
   }
+  let t = firstTwiddles(n, tw);
+  let h = firstTwiddledH(n);
+  for (; 4 * h < n; h <<= 2) {
+    stage(buf, n, pitch, count, t, h, rot, 0, 0, 0, 1.0);
+    t += <usize>(h * 96);
+  }
+  stage(buf, n, pitch, count, t, h, rot, dst, pointStride, pencilStride, scale);
+}
+
+/** Transform `count` pencils from memory into buf (natural order). */
+function transformToBuf(src: usize, pointStride: i32, pencilStride: i32, n: i32, count: i32, buf: usize, pitch: i32, rev: usize, tw: usize, inverse: bool): void {
+  gatherFirst(src, pointStride, pencilStride, n, count, buf, pitch, rev, rotation(inverse));
+  stagesInBuf(buf, n, pitch, count, tw, inverse);
+}
+
+/** Transform `count` pencils in memory in place (times `scale`). */
+function transformInPlace(data: usize, pointStride: i32, pencilStride: i32, n: i32, count: i32, buf: usize, pitch: i32, rev: usize, tw: usize, inverse: bool, scale: f64): void {
+  gatherFirst(data, pointStride, pencilStride, n, count, buf, pitch, rev, rotation(inverse));
+  stagesToMemory(buf, n, pitch, count, tw, inverse, data, pointStride, pencilStride, scale);
+}
+
+/** Transform bit-reversed data in buf and write it to memory (times `scale`). */
+function transformBufToMemory(buf: usize, n: i32, pitch: i32, count: i32, tw: usize, inverse: bool, dst: usize, pointStride: i32, pencilStride: i32, scale: f64): void {
+  firstStage(buf, n, pitch, count, rotation(inverse));
+  stagesToMemory(buf, n, pitch, count, tw, inverse, dst, pointStride, pencilStride, scale);
 }
 
 /** Scatter buf (natural point order) back, each value multiplied by `scale`. */
@@ -124,9 +265,7 @@ export function rowsPass(
     const count = min(BLOCK, hi - r);
     const p = data + (<usize>(r * n2) << 4);
     if (kickFactor != 0) kick(data, phi, kickFactor, r * n2, (r + count) * n2);
-    gather(p, 16, n2 << 4, n2, count, buf, count << 4, rev);
-    butterflies(buf, n2, count << 4, count, tw, inverse);
-    scatter(p, 16, n2 << 4, n2, count, buf, count << 4, scale);
+    transformInPlace(p, 16, n2 << 4, n2, count, buf, count << 4, rev, tw, inverse, scale);
     if (density) {
       const q = phi + (<usize>(r * n2) << 3);
       const cells = count * n2;
@@ -160,9 +299,7 @@ export function axisPass(data: usize, n0: i32, n1: i32, n2: i32, axis: i32, lo: 
     const c0 = (u - o * blocks) * BLOCK;
     const count = min(BLOCK, n2 - c0);
     const p = data + (<usize>(o * outerStride + c0) << 4);
-    gather(p, pointStride, 16, n, count, buf, count << 4, rev);
-    butterflies(buf, n, count << 4, count, tw, inverse);
-    scatter(p, pointStride, 16, n, count, buf, count << 4, scale);
+    transformInPlace(p, pointStride, 16, n, count, buf, count << 4, rev, tw, inverse, scale);
   }
 }
 
@@ -190,8 +327,7 @@ export function driftOuter(
     const count = min(BLOCK, n2 - c0);
     const pitch = count << 4;
     const p = data + (<usize>(o * outerStride + c0) << 4);
-    gather(p, pointStride, 16, n, count, buf, pitch, rev);
-    butterflies(buf, n, pitch, count, twF, false);
+    transformToBuf(p, pointStride, 16, n, count, buf, pitch, rev, twF, false);
     if (kAxis != 0) {
       const ko = load<f64>(kOuter + (<usize>o << 3));
       for (let j: i32 = 0; j < n; j++) {
@@ -222,8 +358,7 @@ export function driftOuter(
         v128.store(d + (<usize>b << 4), cmul(x, er, ei));
       }
     }
-    butterflies(buf2, n, pitch, count, twI, true);
-    scatter(p, pointStride, 16, n, count, buf2, pitch, 1.0 / <f64>n);
+    transformBufToMemory(buf2, n, pitch, count, twI, true, p, pointStride, 16, 1.0 / <f64>n);
   }
   return f64x2.extract_lane(sum, 0) + f64x2.extract_lane(sum, 1);
 }
@@ -248,8 +383,7 @@ export function poissonOuter(
     const count = min(BLOCK, n2 - c0);
     const pitch = count << 4;
     const p = data + (<usize>(o * outerStride + c0) << 4);
-    gather(p, pointStride, 16, n, count, buf, pitch, rev);
-    butterflies(buf, n, pitch, count, twF, false);
+    transformToBuf(p, pointStride, 16, n, count, buf, pitch, rev, twF, false);
     const ko = load<f64>(kOuter + (<usize>o << 3));
     for (let j: i32 = 0; j < n; j++) {
       const s = buf + <usize>(j * pitch);
@@ -261,8 +395,7 @@ export function poissonOuter(
         v128.store(d + (<usize>b << 4), f64x2.mul(v128.load(s + (<usize>b << 4)), f64x2.splat(g)));
       }
     }
-    butterflies(buf2, n, pitch, count, twI, true);
-    scatter(p, pointStride, 16, n, count, buf2, pitch, 1.0 / <f64>n);
+    transformBufToMemory(buf2, n, pitch, count, twI, true, p, pointStride, 16, 1.0 / <f64>n);
   }
 }
 
@@ -281,8 +414,7 @@ export function realRows(input: usize, out: usize, n2: i32, lo: i32, hi: i32, bu
   for (let r = lo; r < hi; r += BLOCK) {
     const count = min(BLOCK, hi - r);
     const pitch = count << 4;
-    gather(input + (<usize>(r * n2) << 3), 16, n2 << 3, m, count, buf, pitch, rev);
-    butterflies(buf, m, pitch, count, tw, false);
+    transformToBuf(input + (<usize>(r * n2) << 3), 16, n2 << 3, m, count, buf, pitch, rev, tw, false);
     const dst = out + (<usize>(r * h2) << 4);
     for (let k: i32 = 0; k <= m; k++) {
       const zk = buf + <usize>((k == m ? 0 : k) * pitch);
@@ -327,8 +459,7 @@ export function realRowsInverse(spec: usize, out: usize, n2: i32, lo: i32, hi: i
         v128.store(d + (<usize>b << 4), f64x2.add(e, f64x2.mul(swap(o), f64x2(-1.0, 1.0))));
       }
     }
-    butterflies(buf, m, pitch, count, tw, true);
-    scatter(out + (<usize>(r * n2) << 3), 16, n2 << 3, m, count, buf, pitch, 1.0 / <f64>m);
+    transformBufToMemory(buf, m, pitch, count, tw, true, out + (<usize>(r * n2) << 3), 16, n2 << 3, 1.0 / <f64>m);
   }
 }
 
