@@ -85,9 +85,11 @@ export class IsolatedPoisson implements PoissonSolver {
   private readonly grid: Grid;
   private readonly padded: Grid;
   private readonly fft: RealFft;
-  private readonly kernelHat: Float64Array;
-  private readonly work: Float64Array;
-  private readonly spectrum: Float64Array;
+  /** The Green's function's transform on the padded half spectrum (real: the kernel is even). */
+  readonly kernelHat: Float64Array;
+  /** Work arrays of solveInPlace, allocated on first use (a stepper brings its own). */
+  private work: Float64Array | undefined;
+  private spectrum: Float64Array | undefined;
 
   constructor(grid: Grid) {
     this.grid = grid;
@@ -96,9 +98,12 @@ export class IsolatedPoisson implements PoissonSolver {
       grid.lengths.map((l) => 2 * l),
     );
     this.fft = new RealFft(this.padded.shape);
-    this.work = new Float64Array(this.padded.size);
-    this.spectrum = new Float64Array(this.fft.halfLength);
     this.kernelHat = this.buildKernel();
+  }
+
+  /** Shape of the zero-padded grid. */
+  get paddedShape(): readonly [number, number, number] {
+    return this.padded.shape;
   }
 
   private buildKernel(): Float64Array {
@@ -107,7 +112,8 @@ export class IsolatedPoisson implements PoissonSolver {
     const [d0, d1, d2] = g.spacing;
     const simulated = [0, 1, 2].filter((ax) => (g.shape[ax] as number) > 1).map((ax) => g.spacing[ax] as number);
     const selfWeight = selfCellWeight(simulated);
-    const k = this.work;
+    const k = new Float64Array(this.padded.size);
+    const spectrum = new Float64Array(this.fft.halfLength);
     const wrap = (j: number, m: number): number => (j <= m / 2 ? j : j - m);
     let p = 0;
     for (let a = 0; a < m0; a++) {
@@ -121,16 +127,18 @@ export class IsolatedPoisson implements PoissonSolver {
         }
       }
     }
-    this.fft.forward(k, this.spectrum);
+    this.fft.forward(k, spectrum);
     // The kernel is real and even, so its transform is real: keep the real part.
     const hat = new Float64Array(this.fft.halfLength / 2);
-    for (let i = 0; i < hat.length; i++) hat[i] = this.spectrum[2 * i] as number;
+    for (let i = 0; i < hat.length; i++) hat[i] = spectrum[2 * i] as number;
     return hat;
   }
 
   solveInPlace(field: Float64Array): void {
     const [n0, n1, n2] = this.grid.shape;
     const [, m1, m2] = this.padded.shape;
+    this.work ??= new Float64Array(this.padded.size);
+    this.spectrum ??= new Float64Array(this.fft.halfLength);
     const w = this.work;
     w.fill(0);
     for (let a = 0; a < n0; a++) {

@@ -15,6 +15,9 @@ import { densityRows, driftRows, gradientNormRows, kickRows, poissonRows } from 
 import { perAxis, regionView, type StepSetup } from "./step-memory.js";
 import { instantiateKernels, kernelModule, type WasmKernelExports } from "./wasm-kernels.js";
 
+/** Which Poisson grid a real-transform pass works on: the periodic half spectrum or the isolated solve's padded grid. */
+export type PoissonTarget = "periodic" | "isolated";
+
 export interface StepEngine {
   /** ψ ← e^{−iφK} ψ over rows. */
   kick(factor: number, lo: number, hi: number): void;
@@ -33,12 +36,23 @@ export interface StepEngine {
   driftOuter(axis: number, lo: number, hi: number, gradient: boolean): number;
   /** φ ← |ψ|² over rows; returns Σ|ψ|² over them. */
   density(lo: number, hi: number): number;
-  /** Real transforms of φ's rows into the half spectrum. */
-  realRows(lo: number, hi: number): void;
-  /** Inverse real transforms of half-spectrum rows into φ. */
-  realRowsInverse(lo: number, hi: number): void;
-  /** FFT pass of the half spectrum along axis 0 or 1. */
-  halfAxis(axis: number, inverse: boolean, lo: number, hi: number): void;
+  /** Real transforms of rows (of φ, or of the padded work array) into the half spectrum. */
+  realRows(target: PoissonTarget, lo: number, hi: number): void;
+  /** Inverse real transforms of half-spectrum rows (into φ, or into the padded work array). */
+  realRowsInverse(target: PoissonTarget, lo: number, hi: number): void;
+  /** FFT pass of a half spectrum along axis 0 or 1. */
+  halfAxis(target: PoissonTarget, axis: number, inverse: boolean, lo: number, hi: number): void;
+  /**
+   * Isolated solve: φ's rows [lo, hi), zero-padded to the padded row length,
+   * real-transformed into their rows of the padded half spectrum.
+   */
+  isolatedRows(lo: number, hi: number): void;
+  /** Isolated solve: zero the padded half-spectrum rows [lo, hi) that no row of φ fills. */
+  isolatedZero(lo: number, hi: number): void;
+  /** Isolated solve: φ's rows [lo, hi) ← the start of their padded rows after the inverse real transform. */
+  isolatedRowsInverse(lo: number, hi: number): void;
+  /** Padded half-spectrum rows [lo, hi) times the Green's function's transform. */
+  convolve(lo: number, hi: number): void;
   /** spec ← −spec/k² over half-spectrum rows (1D grids). */
   poisson(lo: number, hi: number): void;
   /** Forward along outer `axis` of the half spectrum, −1/k², inverse. */
@@ -55,6 +69,7 @@ abstract class EngineBase implements StepEngine {
   protected readonly phase: [Float64Array, Float64Array, Float64Array];
   protected readonly kk: [Float64Array, Float64Array, Float64Array];
   protected readonly kp: [Float64Array, Float64Array, Float64Array] | undefined;
+  protected readonly iso: { shape: Triple; half: Triple; work: Float64Array; spec: Float64Array; hat: Float64Array } | undefined;
 
   constructor(setup: StepSetup) {
     this.shape = setup.shape;
@@ -66,6 +81,74 @@ abstract class EngineBase implements StepEngine {
     this.phase = perAxis(regionView(setup, setup.phase), setup.shape, 2);
     this.kk = perAxis(regionView(setup, setup.kGrad), setup.shape);
     this.kp = setup.kPoisson ? perAxis(regionView(setup, setup.kPoisson), this.half) : undefined;
+    const iso = setup.isolated;
+    this.iso = iso
+      ? {
+          shape: iso.shape,
+          half: [iso.shape[0], iso.shape[1], iso.shape[2] / 2 + 1],
+          work: regionView(setup, iso.work),
+          spec: regionView(setup, iso.spectrum),
+          hat: regionView(setup, iso.hat),
+        }
+      : undefined;
+  }
+
+  /** Call f(first padded row, first row, count) for each run of rows [lo, hi) of φ that are consecutive in the padded grid. */
+  private paddedRuns(lo: number, hi: number, f: (padded: number, row: number, count: number) => void): void {
+    const [, n1] = this.shape;
+    const p1 = this.iso!.shape[1];
+    for (let row = lo; row < hi; ) {
+      const a = Math.floor(row / n1);
+      const b = row - a * n1;
+      const count = Math.min(hi - row, n1 - b);
+      f(a * p1 + b, row, count);
+      row += count;
+    }
+  }
+
+  isolatedRows(lo: number, hi: number): void {
+    const { shape, work } = this.iso!;
+    const n2 = this.shape[2];
+    const p2 = shape[2];
+    this.paddedRuns(lo, hi, (padded, row, count) => {
+      for (let i = 0; i < count; i++) {
+        const dst = (padded + i) * p2;
+        work.set(this.phi.subarray((row + i) * n2, (row + i + 1) * n2), dst);
+        work.fill(0, dst + n2, dst + p2);
+      }
+      this.realRows("isolated", padded, padded + count);
+    });
+  }
+
+  isolatedZero(lo: number, hi: number): void {
+    const { half, spec } = this.iso!;
+    const [n0, n1] = this.shape;
+    const [, h1, h2] = half;
+    for (let row = lo; row < hi; row++) {
+      const a = Math.floor(row / h1);
+      const b = row - a * h1;
+      if (a >= n0 || b >= n1) spec.fill(0, 2 * row * h2, 2 * (row + 1) * h2);
+    }
+  }
+
+  isolatedRowsInverse(lo: number, hi: number): void {
+    const { shape, work } = this.iso!;
+    const n2 = this.shape[2];
+    const p2 = shape[2];
+    this.paddedRuns(lo, hi, (padded, row, count) => {
+      this.realRowsInverse("isolated", padded, padded + count);
+      for (let i = 0; i < count; i++) this.phi.set(work.subarray((padded + i) * p2, (padded + i) * p2 + n2), (row + i) * n2);
+    });
+  }
+
+  convolve(lo: number, hi: number): void {
+    const { half, spec, hat } = this.iso!;
+    const h2 = half[2];
+    for (let i = lo * h2; i < hi * h2; i++) {
+      const g = hat[i]!;
+      spec[2 * i] = spec[2 * i]! * g;
+      spec[2 * i + 1] = spec[2 * i + 1]! * g;
+    }
   }
 
   kick(factor: number, lo: number, hi: number): void {
@@ -87,9 +170,9 @@ abstract class EngineBase implements StepEngine {
   abstract axis(axis: number, inverse: boolean, lo: number, hi: number): void;
   abstract rows(inverse: boolean, kick: number, density: boolean, lo: number, hi: number): number;
   abstract driftOuter(axis: number, lo: number, hi: number, gradient: boolean): number;
-  abstract realRows(lo: number, hi: number): void;
-  abstract realRowsInverse(lo: number, hi: number): void;
-  abstract halfAxis(axis: number, inverse: boolean, lo: number, hi: number): void;
+  abstract realRows(target: PoissonTarget, lo: number, hi: number): void;
+  abstract realRowsInverse(target: PoissonTarget, lo: number, hi: number): void;
+  abstract halfAxis(target: PoissonTarget, axis: number, inverse: boolean, lo: number, hi: number): void;
   abstract poissonOuter(axis: number, lo: number, hi: number): void;
 }
 
@@ -118,11 +201,18 @@ function forEachUnitPoint(shape: Triple, axis: number, lo: number, hi: number, f
 export class JsStepEngine extends EngineBase {
   private readonly cfft: ComplexFft;
   private readonly rfft: RealFft | undefined;
+  private readonly rfftPadded: RealFft | undefined;
 
   constructor(setup: StepSetup) {
     super(setup);
     this.cfft = new ComplexFft(setup.shape);
     this.rfft = setup.spectrum ? new RealFft(setup.shape) : undefined;
+    this.rfftPadded = setup.isolated ? new RealFft(setup.isolated.shape) : undefined;
+  }
+
+  /** The real FFT, its real array and its half spectrum for a target. */
+  private real(target: PoissonTarget): [RealFft, Float64Array, Float64Array] {
+    return target === "periodic" ? [this.rfft!, this.phi, this.spec!] : [this.rfftPadded!, this.iso!.work, this.iso!.spec];
   }
 
   axis(axis: number, inverse: boolean, lo: number, hi: number): void {
@@ -161,16 +251,19 @@ export class JsStepEngine extends EngineBase {
     return sum;
   }
 
-  realRows(lo: number, hi: number): void {
-    this.rfft!.forwardRows(this.phi, this.spec!, lo, hi);
+  realRows(target: PoissonTarget, lo: number, hi: number): void {
+    const [fft, real, spec] = this.real(target);
+    fft.forwardRows(real, spec, lo, hi);
   }
 
-  realRowsInverse(lo: number, hi: number): void {
-    this.rfft!.inverseRows(this.spec!, this.phi, lo, hi);
+  realRowsInverse(target: PoissonTarget, lo: number, hi: number): void {
+    const [fft, real, spec] = this.real(target);
+    fft.inverseRows(spec, real, lo, hi);
   }
 
-  halfAxis(axis: number, inverse: boolean, lo: number, hi: number): void {
-    this.rfft!.outerPass(this.spec!, axis as 0 | 1, inverse, lo, hi);
+  halfAxis(target: PoissonTarget, axis: number, inverse: boolean, lo: number, hi: number): void {
+    const [fft, , spec] = this.real(target);
+    fft.outerPass(spec, axis as 0 | 1, inverse, lo, hi);
   }
 
   poissonOuter(axis: number, lo: number, hi: number): void {
@@ -231,8 +324,17 @@ export class WasmStepEngine extends EngineBase {
     return this.k.rowsPass(s.psi.offset, n2, lo, hi, this.buf, inverse ? t.inverse : t.forward, t.reversal, inverse ? 1 : 0, inverse ? 1 / n2 : 1, s.phi.offset, kick, density ? 1 : 0);
   }
 
-  halfAxis(axis: number, inverse: boolean, lo: number, hi: number): void {
-    this.pass(this.setup.spectrum!.offset, this.half, axis, inverse, lo, hi);
+  halfAxis(target: PoissonTarget, axis: number, inverse: boolean, lo: number, hi: number): void {
+    const { spectrum, half } = this.realTarget(target);
+    this.pass(spectrum, half, axis, inverse, lo, hi);
+  }
+
+  /** Addresses and shapes of a target's real array and half spectrum. */
+  private realTarget(target: PoissonTarget): { real: number; spectrum: number; n2: number; half: Triple } {
+    const s = this.setup;
+    if (target === "periodic") return { real: s.phi.offset, spectrum: s.spectrum!.offset, n2: this.shape[2], half: this.half };
+    const iso = s.isolated!;
+    return { real: iso.work.offset, spectrum: iso.spectrum.offset, n2: iso.shape[2], half: this.iso!.half };
   }
 
   private pass(data: number, shape: Triple, axis: number, inverse: boolean, lo: number, hi: number): void {
@@ -266,16 +368,16 @@ export class WasmStepEngine extends EngineBase {
     );
   }
 
-  realRows(lo: number, hi: number): void {
-    const s = this.setup;
-    const t = this.tables(this.shape[2] / 2);
-    this.k.realRows(s.phi.offset, s.spectrum!.offset, this.shape[2], lo, hi, this.buf, t.forward, t.reversal, s.wasm!.realTwiddles);
+  realRows(target: PoissonTarget, lo: number, hi: number): void {
+    const { real, spectrum, n2 } = this.realTarget(target);
+    const t = this.tables(n2 / 2);
+    this.k.realRows(real, spectrum, n2, lo, hi, this.buf, t.forward, t.reversal, this.setup.wasm!.realTwiddles[n2]!);
   }
 
-  realRowsInverse(lo: number, hi: number): void {
-    const s = this.setup;
-    const t = this.tables(this.shape[2] / 2);
-    this.k.realRowsInverse(s.spectrum!.offset, s.phi.offset, this.shape[2], lo, hi, this.buf, t.inverse, t.reversal, s.wasm!.realTwiddles);
+  realRowsInverse(target: PoissonTarget, lo: number, hi: number): void {
+    const { real, spectrum, n2 } = this.realTarget(target);
+    const t = this.tables(n2 / 2);
+    this.k.realRowsInverse(spectrum, real, n2, lo, hi, this.buf, t.inverse, t.reversal, this.setup.wasm!.realTwiddles[n2]!);
   }
 }
 

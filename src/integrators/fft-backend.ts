@@ -5,7 +5,7 @@
  */
 import { ConfigError } from "../core/errors.js";
 import type { Triple } from "../grid/grid.js";
-import { WASM_MAX_BYTES, wasmBytesNeeded, type FftBackend } from "../fields/step-memory.js";
+import { WASM_MAX_BYTES, wasmBytesNeeded, type FftBackend, type GravityLayout } from "../fields/step-memory.js";
 import { kernelModule } from "../fields/wasm-kernels.js";
 
 /** A backend or "auto". */
@@ -15,9 +15,9 @@ export type FftChoice = FftBackend | "auto";
 export const FFT_CHOICES = ["auto", "wasm", "js"] as const;
 
 /** Resolve a choice for a grid; an explicit "wasm" that cannot run is a config error. */
-export function resolveFftBackend(choice: FftChoice, shape: Triple, periodic: boolean, slots: number): FftBackend {
+export function resolveFftBackend(choice: FftChoice, shape: Triple, gravity: GravityLayout["kind"], slots: number): FftBackend {
   if (choice === "js") return "js";
-  const fits = wasmBytesNeeded(shape, periodic, slots) <= WASM_MAX_BYTES;
+  const fits = wasmBytesNeeded(shape, gravity, slots) <= WASM_MAX_BYTES;
   const available = kernelModule() !== null;
   if (choice === "auto") return fits && available ? "wasm" : "js";
   if (!available) throw new ConfigError("integrator.fft", `the WebAssembly kernels did not load (is psibox built? run npm run build): use "js" or "auto"`);

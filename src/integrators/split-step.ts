@@ -23,10 +23,10 @@
  */
 import type { Grid } from "../grid/grid.js";
 import type { Background } from "../physics/cosmology/background.js";
-import { PeriodicPoisson, type PoissonSolver } from "../fields/poisson.js";
+import { IsolatedPoisson, PeriodicPoisson, type PoissonSolver } from "../fields/poisson.js";
 import { ComplexFft } from "../fields/fft.js";
 import { createEngine, outerCount, type StepEngine } from "../fields/step-engine.js";
-import { allocateStepMemory, type FftBackend, type StepMemory } from "../fields/step-memory.js";
+import { allocateStepMemory, type FftBackend, type GravityLayout, type StepMemory } from "../fields/step-memory.js";
 import { resolveFftBackend, type FftChoice } from "./fft-backend.js";
 import { runTask, type StepTask } from "./step-task.js";
 
@@ -65,10 +65,15 @@ export class SplitStepper {
     this.grid = grid;
     this.background = background;
     this.gravity = gravity;
-    const periodic = gravity instanceof PeriodicPoisson ? gravity : undefined;
-    this.backend = resolveFftBackend(fft, grid.shape, periodic !== undefined, slots);
+    const layout: GravityLayout =
+      gravity instanceof PeriodicPoisson
+        ? { kind: "periodic", kSquared: gravity.kSquared }
+        : gravity instanceof IsolatedPoisson
+          ? { kind: "isolated", padded: gravity.paddedShape, hat: gravity.kernelHat }
+          : { kind: "none" };
+    this.backend = resolveFftBackend(fft, grid.shape, layout.kind, slots);
     const kSquared = [0, 1, 2].map((ax) => grid.wavenumbers(ax as 0 | 1 | 2).map((k) => k * k));
-    this.memory = allocateStepMemory(this.backend, grid.shape, kSquared, periodic?.kSquared, slots);
+    this.memory = allocateStepMemory(this.backend, grid.shape, kSquared, layout, slots);
     this.phi = this.memory.phi;
     this.phase = this.memory.phase;
   }
@@ -157,20 +162,38 @@ export class SplitStepper {
 
   /** φ from the density φ holds. */
   private solvePotential(): void {
-    if (!this.memory.spectrum) {
+    const setup = this.memory.setup;
+    if (setup.spectrum) {
+      const [n0, n1, n2] = this.grid.shape;
+      this.runPass(n0 * n1, { op: "real-rows", target: "periodic" });
+      const half = [n0, n1, n2 / 2 + 1] as const;
+      const outer = n0 > 1 ? 0 : n1 > 1 ? 1 : -1;
+      const middle = outer === 0 && n1 > 1;
+      if (middle) this.runPass(outerCount(half, 1), { op: "half-axis", target: "periodic", axis: 1, inverse: false });
+      if (outer >= 0) this.runPass(outerCount(half, outer), { op: "poisson-outer", axis: outer });
+      else this.runPass(n0 * n1, { op: "poisson" });
+      if (middle) this.runPass(outerCount(half, 1), { op: "half-axis", target: "periodic", axis: 1, inverse: true });
+      this.runPass(n0 * n1, { op: "real-rows-inverse", target: "periodic" });
+    } else if (setup.isolated) {
+      // free-space convolution on the zero-padded grid (as IsolatedPoisson.solveInPlace), transforming
+      // only what is not zero on the way in and only what is kept on the way out
+      const [n0, n1] = this.grid.shape;
+      const [p0, p1, p2] = setup.isolated.shape;
+      const half = [p0, p1, p2 / 2 + 1] as const;
+      this.runPass(n0 * n1, { op: "isolated-rows" });
+      this.runPass(p0 * p1, { op: "isolated-zero" });
+      // along axis 1, pencils with a ≥ n0 (the units from n0 · blocks on) are zero in and unused out
+      const middle = outerCount([n0, p1, half[2]], 1);
+      if (p1 > 1 && p0 > 1) this.runPass(middle, { op: "half-axis", target: "isolated", axis: 1, inverse: false });
+      const outer = p0 > 1 ? 0 : p1 > 1 ? 1 : -1;
+      if (outer >= 0) this.runPass(outerCount(half, outer), { op: "half-axis", target: "isolated", axis: outer, inverse: false });
+      this.runPass(p0 * p1, { op: "convolve" });
+      if (outer >= 0) this.runPass(outerCount(half, outer), { op: "half-axis", target: "isolated", axis: outer, inverse: true });
+      if (p1 > 1 && p0 > 1) this.runPass(middle, { op: "half-axis", target: "isolated", axis: 1, inverse: true });
+      this.runPass(n0 * n1, { op: "isolated-rows-inverse" });
+    } else {
       this.gravity.solveInPlace(this.phi);
-      return;
     }
-    const [h0, h1, h2] = [this.grid.shape[0], this.grid.shape[1], this.grid.shape[2] / 2 + 1] as const;
-    const half = [h0, h1, h2] as const;
-    this.runPass(this.rows, { op: "real-rows" });
-    const outer = h0 > 1 ? 0 : h1 > 1 ? 1 : -1;
-    const middle = outer === 0 && h1 > 1;
-    if (middle) this.runPass(outerCount(half, 1), { op: "half-axis", axis: 1, inverse: false });
-    if (outer >= 0) this.runPass(outerCount(half, outer), { op: "poisson-outer", axis: outer });
-    else this.runPass(this.rows, { op: "poisson" });
-    if (middle) this.runPass(outerCount(half, 1), { op: "half-axis", axis: 1, inverse: true });
-    this.runPass(this.rows, { op: "real-rows-inverse" });
   }
 
   /** ψ ← e^{−iφK} ψ. */

@@ -68,10 +68,33 @@ describe("FFT backends", () => {
     });
   }
 
+  for (const cells of [[64], [32, 16], [16, 8, 16]] as const) {
+    it(`the threaded stepper's isolated potential equals IsolatedPoisson's (tested against analytic potentials) on a ${cells.join("×")} grid`, () => {
+      const grid = new Grid([...cells], cells.map(() => 1));
+      const psi = lumpy(grid);
+      const rho = new Float64Array(grid.size);
+      for (let i = 0; i < grid.size; i++) rho[i] = psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2;
+      const reference = makePoissonSolver(grid, "isolated");
+      reference.solveInPlace(rho);
+      for (const fft of ["wasm", "js"] as const) {
+        const s = new ThreadedStepper(grid, new StaticBackground(), makePoissonSolver(grid, "isolated"), 2, fft);
+        try {
+          s.setState(psi, 0);
+          expect(maxAbsDiff(s.phi, rho) / maxAbs(rho), fft).toBeLessThan(1e-13);
+        } finally {
+          s.close();
+        }
+      }
+    });
+  }
+
   it("auto picks wasm where it fits and fft.js where a grid needs more than a 4 GiB WebAssembly memory", () => {
-    expect(resolveFftBackend("auto", [64, 64, 64], true, 2)).toBe("wasm");
-    expect(resolveFftBackend("auto", [512, 512, 512], true, 2)).toBe("js");
-    expect(() => resolveFftBackend("wasm", [512, 512, 512], true, 2)).toThrow(ConfigError);
-    expect(resolveFftBackend("js", [64, 64, 64], true, 2)).toBe("js");
+    expect(resolveFftBackend("auto", [64, 64, 64], "periodic", 2)).toBe("wasm");
+    expect(resolveFftBackend("auto", [512, 512, 512], "periodic", 2)).toBe("js");
+    expect(() => resolveFftBackend("wasm", [512, 512, 512], "periodic", 2)).toThrow(ConfigError);
+    expect(resolveFftBackend("js", [64, 64, 64], "periodic", 2)).toBe("js");
+    // isolated gravity pads to twice the cells per axis: a 1024×512×512 padded grid needs over 4 GiB
+    expect(resolveFftBackend("auto", [256, 256, 256], "isolated", 2)).toBe("wasm");
+    expect(resolveFftBackend("auto", [512, 256, 256], "isolated", 2)).toBe("js");
   });
 });

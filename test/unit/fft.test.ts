@@ -91,7 +91,7 @@ describe("real FFT", () => {
 function wasmEngine(shape: Triple) {
   const zeros = shape.map((n) => new Float64Array(n));
   const half = [shape[0], shape[1], shape[2] / 2 + 1] as const;
-  const memory = allocateStepMemory("wasm", shape, zeros, half.map((n) => new Float64Array(n)), 1);
+  const memory = allocateStepMemory("wasm", shape, zeros, { kind: "periodic", kSquared: half.map((n) => new Float64Array(n)) }, 1);
   return { memory, engine: new WasmStepEngine(memory.setup, 0) };
 }
 
@@ -125,8 +125,8 @@ describe("WebAssembly SIMD transforms", () => {
       const half = [shape[0], shape[1], shape[2] / 2 + 1] as const;
       const rows = shape[0] * shape[1];
       memory.phi.set(real);
-      engine.realRows(0, rows);
-      for (const axis of [1, 0]) if (half[axis]! > 1) engine.halfAxis(axis, false, 0, outerCount(half, axis));
+      engine.realRows("periodic", 0, rows);
+      for (const axis of [1, 0]) if (half[axis]! > 1) engine.halfAxis("periodic", axis, false, 0, outerCount(half, axis));
       const spec = memory.spectrum!;
       const h2 = half[2];
       let worst = 0;
@@ -139,9 +139,9 @@ describe("WebAssembly SIMD transforms", () => {
           );
         }
       expect(worst).toBeLessThan(1e-12 * n);
-      for (const axis of [0, 1]) if (half[axis]! > 1) engine.halfAxis(axis, true, 0, outerCount(half, axis));
+      for (const axis of [0, 1]) if (half[axis]! > 1) engine.halfAxis("periodic", axis, true, 0, outerCount(half, axis));
       memory.phi.fill(0);
-      engine.realRowsInverse(0, rows);
+      engine.realRowsInverse("periodic", 0, rows);
       expect(maxAbsDiff(memory.phi, real)).toBeLessThan(1e-14 * n * maxAbs(real));
     });
   }
