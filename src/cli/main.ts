@@ -7,14 +7,14 @@
 import { Command, CommanderError } from "commander";
 import { PsiboxError } from "../core/errors.js";
 import { VERSION } from "../version.js";
-import { runCommand, type RunFlags } from "./run-command.js";
-import { initTemplate, listTemplates } from "./init-command.js";
-import { inspectCommand } from "./inspect-command.js";
-import { importCommand, type ImportFlags } from "./import-command.js";
-import { clocksCommand, type ClocksFlags } from "./clocks-command.js";
-import { estimateCommand, type EstimateFlags } from "./estimate-command.js";
-import { sweepCommand, type SweepFlags } from "./sweep-command.js";
-import { analyzeCommand, reportCommand, type AnalyzeFlags } from "./analyze-command.js";
+import type { RunFlags } from "./run-command.js";
+import type { ImportFlags } from "./import-command.js";
+import type { ClocksFlags } from "./clocks-command.js";
+import type { EstimateFlags } from "./estimate-command.js";
+import type { SweepFlags } from "./sweep-command.js";
+import type { AnalyzeFlags } from "./analyze-command.js";
+// Each command's module is loaded when the command runs, so that `psibox run`
+// does not load the plotting libraries (startup time and memory).
 
 function collect(value: string, previous: string[]): string[] {
   return [...previous, value];
@@ -44,7 +44,7 @@ export async function main(argv: readonly string[]): Promise<number> {
     .option("--force", "overwrite the files of an earlier run in the same output folder", false)
     .option("-q, --quiet", "no progress output", false)
     .action(async (configFile: string | undefined, flags: RunFlags) => {
-      exitCode = await runCommand(configFile, flags);
+      exitCode = await (await import("./run-command.js")).runCommand(configFile, flags);
     });
 
   program
@@ -55,7 +55,7 @@ export async function main(argv: readonly string[]): Promise<number> {
     .option("--force", "overwrite the files of an earlier run in the same output folder", false)
     .option("-q, --quiet", "no progress output", false)
     .action(async (configFile: string, flags: RunFlags) => {
-      exitCode = await runCommand(configFile, { ...flags, initialOnly: true });
+      exitCode = await (await import("./run-command.js")).runCommand(configFile, { ...flags, initialOnly: true });
     });
 
   program
@@ -65,15 +65,15 @@ export async function main(argv: readonly string[]): Promise<number> {
     .argument("[dir]", "folder to write it into", ".")
     .option("--list", "list the templates", false)
     .option("--force", "overwrite an existing file", false)
-    .action((template: string | undefined, dir: string, flags: { list: boolean; force: boolean }) => {
+    .action(async (template: string | undefined, dir: string, flags: { list: boolean; force: boolean }) => {
       if (flags.list || template === undefined) {
-        const list = listTemplates();
+        const list = (await import("./init-command.js")).listTemplates();
         const width = Math.max(...list.map((t) => t.name.length));
         process.stdout.write(list.map((t) => `${t.name.padEnd(width)}  ${t.description}`).join("\n") + "\n");
         if (!flags.list) exitCode = 2;
         return;
       }
-      const file = initTemplate(template, dir, flags.force);
+      const file = (await import("./init-command.js")).initTemplate(template, dir, flags.force);
       process.stdout.write(`wrote ${file}; run it with: psibox run ${file}\n`);
     });
 
@@ -83,7 +83,7 @@ export async function main(argv: readonly string[]): Promise<number> {
     .argument("<file>", "a psibox snapshot (.h5)")
     .option("--json", "print JSON for scripts", false)
     .action(async (file: string, flags: { json: boolean }) => {
-      exitCode = await inspectCommand(file, flags.json);
+      exitCode = await (await import("./inspect-command.js")).inspectCommand(file, flags.json);
     });
 
   program
@@ -104,7 +104,7 @@ export async function main(argv: readonly string[]): Promise<number> {
     .option("--gravity <kind>", "periodic, isolated or none", "periodic")
     .option("--force", "overwrite the output file", false)
     .action(async (source: string, flags: ImportFlags) => {
-      exitCode = await importCommand(source, flags);
+      exitCode = await (await import("./import-command.js")).importCommand(source, flags);
     });
 
   program
@@ -116,7 +116,7 @@ export async function main(argv: readonly string[]): Promise<number> {
     .option("--emit <target>", "write job scripts instead of running: slurm")
     .option("--summary <dir>", "rebuild sweep-summary.csv and .json from a sweep folder")
     .action(async (configFile: string | undefined, flags: SweepFlags) => {
-      exitCode = await sweepCommand(configFile, flags);
+      exitCode = await (await import("./sweep-command.js")).sweepCommand(configFile, flags);
     });
 
   program
@@ -127,7 +127,7 @@ export async function main(argv: readonly string[]): Promise<number> {
     .option("--frames", "also write numbered movie frames (frames/frame_NNNNN.png)", false)
     .option("--no-pictures", "tables only")
     .action(async (paths: string[], flags: AnalyzeFlags) => {
-      exitCode = await analyzeCommand(paths, flags);
+      exitCode = await (await import("./analyze-command.js")).analyzeCommand(paths, flags);
     });
 
   program
@@ -136,7 +136,7 @@ export async function main(argv: readonly string[]): Promise<number> {
     .argument("<run>", "a run folder")
     .option("--out <file>", "the HTML file to write")
     .action(async (run: string, flags: { out?: string }) => {
-      exitCode = await reportCommand(run, flags.out);
+      exitCode = await (await import("./analyze-command.js")).reportCommand(run, flags.out);
     });
 
   program
@@ -150,7 +150,7 @@ export async function main(argv: readonly string[]): Promise<number> {
     .option("--out <dir>", "where to write snapshot-clocks.csv and .json (default: the run folder, or .)")
     .option("--json", "print the summary as JSON", false)
     .action(async (paths: string[], flags: ClocksFlags) => {
-      exitCode = await clocksCommand(paths, flags);
+      exitCode = await (await import("./clocks-command.js")).clocksCommand(paths, flags);
     });
 
   program
@@ -164,8 +164,8 @@ export async function main(argv: readonly string[]): Promise<number> {
     .option("--mode-mass <mass>", "mass in the condensate mode (default: the halo mass)")
     .option("--squeezing-db <dB>", "squeezing level to time", "-10")
     .option("--json", "print JSON", false)
-    .action((flags: EstimateFlags) => {
-      exitCode = estimateCommand(flags);
+    .action(async (flags: EstimateFlags) => {
+      exitCode = (await import("./estimate-command.js")).estimateCommand(flags);
     });
 
   try {

@@ -8,7 +8,6 @@ import { prepareOutputDir, runSimulation, silentReporter } from "../simulation/r
 import { runPaths } from "../simulation/outputs.js";
 import { TextReporter } from "./progress.js";
 import { describeRun } from "./describe.js";
-import { analyzeRun } from "../report/analyze.js";
 import type { ClockReport } from "../simulation/sidecar-report.js";
 
 export interface RunFlags {
@@ -79,6 +78,7 @@ export async function runCommand(configFile: string | undefined, flags: RunFlags
       return 0;
     }
     if (run.config.output.analyze) {
+      const { analyzeRun } = await import("../report/analyze.js");
       const analysis = await analyzeRun(run.outputDir, path.join(run.outputDir, "analysis"));
       process.stderr.write(`analysed ${analysis.snapshots.length} snapshots into ${path.join(where, "analysis")}\n`);
     }

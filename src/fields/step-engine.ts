@@ -15,23 +15,31 @@ import { densityRows, driftRows, gradientNormRows, kickRows, poissonRows } from 
 import { perAxis, regionView, type StepSetup } from "./step-memory.js";
 import { instantiateKernels, kernelModule, type WasmKernelExports } from "./wasm-kernels.js";
 
+/** Which complex field a transform pass works on: ψ, or the undo copy (measurements). */
+export type ComplexField = "psi" | "undo";
+
 /** Which Poisson grid a real-transform pass works on: the periodic half spectrum or the isolated solve's padded grid. */
 export type PoissonTarget = "periodic" | "isolated";
 
 export interface StepEngine {
   /** ψ ← e^{−iφK} ψ over rows. */
   kick(factor: number, lo: number, hi: number): void;
-  /** FFT pass of ψ along `axis` over units. */
-  axis(axis: number, inverse: boolean, lo: number, hi: number): void;
+  /** FFT pass of a field along `axis` over units. */
+  axis(field: ComplexField, axis: number, inverse: boolean, lo: number, hi: number): void;
   /**
-   * FFT pass along the last axis over rows; with `kick` ≠ 0 the rows get
-   * e^{−iφ·kick} first, with `density` φ ← |ψ|² afterwards (returns Σ|ψ|²).
+   * FFT pass of a field along the last axis over rows; with `kick` ≠ 0 the
+   * rows get e^{−iφ·kick} first, with `density` φ ← |ψ|² afterwards (returns
+   * Σ|ψ|²); both only for ψ.
    */
-  rows(inverse: boolean, kick: number, density: boolean, lo: number, hi: number): number;
+  rows(field: ComplexField, inverse: boolean, kick: number, density: boolean, lo: number, hi: number): number;
+  /** Copy rows of ψ to the undo copy (`toUndo`) or back. */
+  copy(toUndo: boolean, lo: number, hi: number): void;
+  /** Over rows: Σ|ψ|², Σ|ψ|⁴, Σ|ψ|²φ and max |ψ|² into out[0…3]. */
+  moments(lo: number, hi: number, out: Float64Array): void;
   /** Drift phase over rows of the transformed ψ (1D grids). */
   drift(lo: number, hi: number): void;
-  /** Σ k²|ψ_k|² over rows of the transformed ψ (1D grids). */
-  gradient(lo: number, hi: number): number;
+  /** Σ k²|ψ_k|² over rows of a transformed field. */
+  gradient(field: ComplexField, lo: number, hi: number): number;
   /** Forward along outer `axis`, the drift phase, inverse; returns Σ k²|ψ_k|² when `gradient`. */
   driftOuter(axis: number, lo: number, hi: number, gradient: boolean): number;
   /** φ ← |ψ|² over rows; returns Σ|ψ|² over them. */
@@ -64,6 +72,7 @@ abstract class EngineBase implements StepEngine {
   protected readonly shape: Triple;
   protected readonly half: Triple;
   protected readonly psi: Float64Array;
+  protected readonly undo: Float64Array;
   protected readonly phi: Float64Array;
   protected readonly spec: Float64Array | undefined;
   protected readonly phase: [Float64Array, Float64Array, Float64Array];
@@ -76,6 +85,7 @@ abstract class EngineBase implements StepEngine {
     const [n0, n1, n2] = setup.shape;
     this.half = [n0, n1, n2 / 2 + 1];
     this.psi = regionView(setup, setup.psi);
+    this.undo = regionView(setup, setup.undo);
     this.phi = regionView(setup, setup.phi);
     this.spec = setup.spectrum ? regionView(setup, setup.spectrum) : undefined;
     this.phase = perAxis(regionView(setup, setup.phase), setup.shape, 2);
@@ -157,8 +167,39 @@ abstract class EngineBase implements StepEngine {
   drift(lo: number, hi: number): void {
     driftRows(this.psi, this.shape, this.phase[0], this.phase[1], this.phase[2], lo, hi);
   }
-  gradient(lo: number, hi: number): number {
-    return gradientNormRows(this.psi, this.shape, this.kk[0], this.kk[1], this.kk[2], lo, hi);
+  gradient(field: ComplexField, lo: number, hi: number): number {
+    return gradientNormRows(this.complex(field), this.shape, this.kk[0], this.kk[1], this.kk[2], lo, hi);
+  }
+
+  protected complex(field: ComplexField): Float64Array {
+    return field === "psi" ? this.psi : this.undo;
+  }
+
+  copy(toUndo: boolean, lo: number, hi: number): void {
+    const n2 = this.shape[2];
+    const [from, to] = toUndo ? [this.psi, this.undo] : [this.undo, this.psi];
+    to.set(from.subarray(2 * lo * n2, 2 * hi * n2), 2 * lo * n2);
+  }
+
+  moments(lo: number, hi: number, out: Float64Array): void {
+    const psi = this.psi;
+    const phi = this.phi;
+    let mass = 0;
+    let rho2 = 0;
+    let rhoPhi = 0;
+    let max = 0;
+    const n2 = this.shape[2];
+    for (let i = lo * n2; i < hi * n2; i++) {
+      const rho = psi[2 * i]! * psi[2 * i]! + psi[2 * i + 1]! * psi[2 * i + 1]!;
+      mass += rho;
+      rho2 += rho * rho;
+      rhoPhi += rho * phi[i]!;
+      if (rho > max) max = rho;
+    }
+    out[0] = mass;
+    out[1] = rho2;
+    out[2] = rhoPhi;
+    out[3] = max;
   }
   density(lo: number, hi: number): number {
     return densityRows(this.psi, this.phi, this.shape[2], lo, hi);
@@ -167,8 +208,8 @@ abstract class EngineBase implements StepEngine {
     const kp = this.kp!;
     poissonRows(this.spec!, this.half, kp[0], kp[1], kp[2], lo, hi);
   }
-  abstract axis(axis: number, inverse: boolean, lo: number, hi: number): void;
-  abstract rows(inverse: boolean, kick: number, density: boolean, lo: number, hi: number): number;
+  abstract axis(field: ComplexField, axis: number, inverse: boolean, lo: number, hi: number): void;
+  abstract rows(field: ComplexField, inverse: boolean, kick: number, density: boolean, lo: number, hi: number): number;
   abstract driftOuter(axis: number, lo: number, hi: number, gradient: boolean): number;
   abstract realRows(target: PoissonTarget, lo: number, hi: number): void;
   abstract realRowsInverse(target: PoissonTarget, lo: number, hi: number): void;
@@ -215,13 +256,13 @@ export class JsStepEngine extends EngineBase {
     return target === "periodic" ? [this.rfft!, this.phi, this.spec!] : [this.rfftPadded!, this.iso!.work, this.iso!.spec];
   }
 
-  axis(axis: number, inverse: boolean, lo: number, hi: number): void {
-    this.cfft.pass(this.psi, axis, inverse, lo, hi);
+  axis(field: ComplexField, axis: number, inverse: boolean, lo: number, hi: number): void {
+    this.cfft.pass(this.complex(field), axis, inverse, lo, hi);
   }
 
-  rows(inverse: boolean, kick: number, density: boolean, lo: number, hi: number): number {
+  rows(field: ComplexField, inverse: boolean, kick: number, density: boolean, lo: number, hi: number): number {
     if (kick !== 0) this.kick(kick, lo, hi);
-    this.cfft.pass(this.psi, 2, inverse, lo, hi);
+    this.cfft.pass(this.complex(field), 2, inverse, lo, hi);
     return density ? this.density(lo, hi) : 0;
   }
 
@@ -313,15 +354,19 @@ export class WasmStepEngine extends EngineBase {
     this.k.kick(this.setup.psi.offset, this.setup.phi.offset, factor, lo * n2, hi * n2);
   }
 
-  axis(axis: number, inverse: boolean, lo: number, hi: number): void {
-    this.pass(this.setup.psi.offset, this.shape, axis, inverse, lo, hi);
+  axis(field: ComplexField, axis: number, inverse: boolean, lo: number, hi: number): void {
+    this.pass(this.address(field), this.shape, axis, inverse, lo, hi);
   }
 
-  rows(inverse: boolean, kick: number, density: boolean, lo: number, hi: number): number {
+  private address(field: ComplexField): number {
+    return field === "psi" ? this.setup.psi.offset : this.setup.undo.offset;
+  }
+
+  rows(field: ComplexField, inverse: boolean, kick: number, density: boolean, lo: number, hi: number): number {
     const n2 = this.shape[2];
     const t = this.tables(n2);
     const s = this.setup;
-    return this.k.rowsPass(s.psi.offset, n2, lo, hi, this.buf, inverse ? t.inverse : t.forward, t.reversal, inverse ? 1 : 0, inverse ? 1 / n2 : 1, s.phi.offset, kick, density ? 1 : 0);
+    return this.k.rowsPass(this.address(field), n2, lo, hi, this.buf, inverse ? t.inverse : t.forward, t.reversal, inverse ? 1 : 0, inverse ? 1 / n2 : 1, s.phi.offset, kick, density ? 1 : 0);
   }
 
   halfAxis(target: PoissonTarget, axis: number, inverse: boolean, lo: number, hi: number): void {

@@ -53,6 +53,8 @@ export interface StepSetup {
   readonly psi: Region;
   /** φ (and |ψ|² on the way). */
   readonly phi: Region;
+  /** A copy of ψ to undo a failed step, and afterwards scratch for measuring the kinetic energy. */
+  readonly undo: Region;
   /** Half spectrum of the periodic Poisson solve (shape n0 × n1 × (n2/2 + 1)). */
   readonly spectrum: Region | undefined;
   /** (cos, sin) of the drift phase per index, axes 0, 1, 2 concatenated. */
@@ -80,6 +82,7 @@ export interface StepMemory {
   readonly setup: StepSetup;
   readonly psi: Float64Array;
   readonly phi: Float64Array;
+  readonly undo: Float64Array;
   readonly spectrum: Float64Array | undefined;
   readonly phase: readonly [Float64Array, Float64Array, Float64Array];
 }
@@ -126,6 +129,7 @@ function planWasm(shape: Triple, gravity: GravityLayout["kind"], padded: Triple,
   const isolated = gravity === "isolated";
   const psi = take(16 * size);
   const phi = take(8 * size);
+  const undo = take(16 * size);
   const spectrum = periodic ? take(16 * halfCells(shape)) : 0;
   const phase = take(16 * (n0 + n1 + n2));
   const kGrad = take(8 * (n0 + n1 + n2));
@@ -151,7 +155,7 @@ function planWasm(shape: Triple, gravity: GravityLayout["kind"], padded: Triple,
   // a block holds at most WASM_BLOCK pencils of a transform (fewer when there are fewer pencils)
   const scratchBytes = 16 * Math.max(...passes.map(([n, count]) => Math.min(WASM_BLOCK, count) * n));
   const scratch = Array.from({ length: slots }, () => take(2 * scratchBytes));
-  return { psi, phi, spectrum, phase, kGrad, kPoisson, iso, tables, realTwiddles, scratch, scratchBytes, total: top };
+  return { psi, phi, undo, spectrum, phase, kGrad, kPoisson, iso, tables, realTwiddles, scratch, scratchBytes, total: top };
 }
 
 /**
@@ -176,6 +180,7 @@ export function allocateStepMemory(backend: FftBackend, shape: Triple, kSquared:
       shape,
       psi: own(2 * size),
       phi: own(size),
+      undo: own(2 * size),
       spectrum: periodic ? own(2 * halfCells(shape)) : undefined,
       phase: own(2 * axes),
       kGrad: own(axes),
@@ -196,6 +201,7 @@ export function allocateStepMemory(backend: FftBackend, shape: Triple, kSquared:
       shape,
       psi: at(plan.psi, 2 * size),
       phi: at(plan.phi, size),
+      undo: at(plan.undo, 2 * size),
       spectrum: periodic ? at(plan.spectrum, 2 * halfCells(shape)) : undefined,
       phase: at(plan.phase, 2 * axes),
       kGrad: at(plan.kGrad, axes),
@@ -239,6 +245,7 @@ export function allocateStepMemory(backend: FftBackend, shape: Triple, kSquared:
     setup,
     psi: regionView(setup, setup.psi),
     phi: regionView(setup, setup.phi),
+    undo: regionView(setup, setup.undo),
     spectrum: setup.spectrum ? regionView(setup, setup.spectrum) : undefined,
     phase: perAxis(regionView(setup, setup.phase), shape, 2),
   };

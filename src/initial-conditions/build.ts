@@ -35,6 +35,7 @@ export interface InitialField {
  * Build the initial field.
  * @param startTime code time of the start (sets a, H and f in expanding runs)
  * @param gravity the run's Poisson solver (used by the ground-state relaxation)
+ * @param into where to build grid-filling fields (plane wave, white noise, cosmological), e.g. the stepper's own ψ, to save a copy
  */
 export function buildInitialField(
   ic: ResolvedInitial,
@@ -43,14 +44,16 @@ export function buildInitialField(
   startTime: number,
   gravity: PoissonSolver,
   onRelaxProgress?: (info: { iteration: number; energy: number }) => void,
+  into?: Float64Array,
 ): InitialField {
   const a = background.scaleFactor(startTime);
+  const fresh = (): Float64Array => (into ? into.fill(0) : new Float64Array(2 * grid.size));
   switch (ic.kind) {
     case "plane-wave": {
       const k = ic.mode.map((m, i) => (2 * Math.PI * m) / (grid.lengths[i] as number));
       const k2 = k.reduce((s, v) => s + v * v, 0);
       const flow = background.kind === "static" ? 0 : (a * a * background.hubble(a) * background.growthRate(a)) / k2;
-      const psi = new Float64Array(2 * grid.size);
+      const psi = fresh();
       forEachCell(grid, (p, x) => {
         let arg = 0;
         for (let i = 0; i < grid.dims; i++) arg += (k[i] as number) * (x[i] as number);
@@ -68,7 +71,7 @@ export function buildInitialField(
       return buildSolitons(ic, grid, a, onRelaxProgress);
     case "white-noise": {
       const rng = new SeededRandom(ic.seed);
-      const psi = new Float64Array(2 * grid.size);
+      const psi = fresh();
       let clipped = 0;
       for (let p = 0; p < grid.size; p++) {
         const d = ic.amplitude * rng.normal();
@@ -78,7 +81,7 @@ export function buildInitialField(
       return clipped > 0 ? { psi, warnings: [`${clipped} cells drew δ < −1 and were set to zero density; lower initial.amplitude`] } : { psi };
     }
     case "cosmological":
-      return buildCosmological(ic, grid, background, a);
+      return buildCosmological(ic, grid, background, a, into);
     case "ground-state": {
       const guess = gaussian(grid, ic.mass, ic.guessWidth, ic.center, ic.center.map(() => 0));
       const gs = relaxGroundState(grid, gravity, guess, onRelaxProgress ? { onProgress: onRelaxProgress } : {});

@@ -12,28 +12,30 @@ import type { InitialField } from "./build.js";
 type Cosmological = Extract<ResolvedInitial, { kind: "cosmological" }>;
 
 /** Build the field at scale factor a; warns when it is already nonlinear. */
-export function buildCosmological(ic: Cosmological, grid: Grid, background: Background, a: number): InitialField {
+export function buildCosmological(ic: Cosmological, grid: Grid, background: Background, a: number, into?: Float64Array): InitialField {
   const power = new LinearPower(ic.power);
   const growthRatio = background.growth(a) / background.growth(1);
   const flowFactor = a * a * background.hubble(a) * background.growthRate(a);
-  const { delta, phase } = gaussianRandomField(grid, power, {
+  const { values } = gaussianRandomField(grid, power, {
     seed: ic.seed,
     fixedAmplitude: ic.fixedAmplitude,
     paired: ic.paired,
     growthRatio,
     flowFactor,
     lengthUnitMpc: ic.lengthUnitMpc,
-  });
-  const psi = new Float64Array(2 * grid.size);
+  }, into);
+  // ψ = √(ρ̄(1 + δ)) e^{iS}, written over (δ, S) in place (one grid's worth of memory)
+  const psi = values;
   let maxAbs = 0;
   let clipped = 0;
   for (let p = 0; p < grid.size; p++) {
-    const d = delta[p]!;
+    const d = values[2 * p]!;
+    const phase = values[2 * p + 1]!;
     maxAbs = Math.max(maxAbs, Math.abs(d));
     if (d < -1) clipped++;
     const amp = Math.sqrt(ic.meanDensity * Math.max(0, 1 + d));
-    psi[2 * p] = amp * Math.cos(phase[p]!);
-    psi[2 * p + 1] = amp * Math.sin(phase[p]!);
+    psi[2 * p] = amp * Math.cos(phase);
+    psi[2 * p + 1] = amp * Math.sin(phase);
   }
   const warnings: string[] = [];
   if (maxAbs > 1) {

@@ -33,16 +33,26 @@ export interface RandomFieldOptions {
   readonly lengthUnitMpc: number;
 }
 
-/** δ and the phase S on the grid. */
-export interface RandomField {
-  readonly delta: Float64Array;
-  readonly phase: Float64Array;
+/** δ and the phase S on the grid, interleaved (δ, S) per cell in one array of 2N. */
+export class RandomField {
+  readonly values: Float64Array;
+  constructor(values: Float64Array) {
+    this.values = values;
+  }
+  /** δ per cell (a copy). */
+  get delta(): Float64Array {
+    return Float64Array.from({ length: this.values.length / 2 }, (_, i) => this.values[2 * i]!);
+  }
+  /** S per cell (a copy). */
+  get phase(): Float64Array {
+    return Float64Array.from({ length: this.values.length / 2 }, (_, i) => this.values[2 * i + 1]!);
+  }
 }
 
-/** Draw δ and S for a spectrum. */
-export function gaussianRandomField(grid: Grid, power: LinearPower, opts: RandomFieldOptions): RandomField {
+/** Draw δ and S for a spectrum (into `into`, 2N values, when given). */
+export function gaussianRandomField(grid: Grid, power: LinearPower, opts: RandomFieldOptions, into?: Float64Array): RandomField {
   const n = grid.size;
-  const data = new Float64Array(2 * n);
+  const data = into ? into.fill(0) : new Float64Array(2 * n);
   const rng = new SeededRandom(opts.seed);
   for (let i = 0; i < n; i++) data[2 * i] = rng.normal();
   const fft = new ComplexFft(grid.shape);
@@ -67,13 +77,7 @@ export function gaussianRandomField(grid: Grid, power: LinearPower, opts: Random
     data[p + 1] = im + f * re;
   });
   fft.inverse(data);
-  const delta = new Float64Array(n);
-  const phase = new Float64Array(n);
-  for (let i = 0; i < n; i++) {
-    delta[i] = data[2 * i]!;
-    phase[i] = data[2 * i + 1]!;
-  }
-  return { delta, phase };
+  return new RandomField(data);
 }
 
 /** A table of the spectrum used: k, P at z = 0 and at the start, in h and plain units (CSV text). */

@@ -28,7 +28,7 @@ import { ComplexFft } from "../fields/fft.js";
 import { createEngine, outerCount, type StepEngine } from "../fields/step-engine.js";
 import { allocateStepMemory, type FftBackend, type GravityLayout, type StepMemory } from "../fields/step-memory.js";
 import { resolveFftBackend, type FftChoice } from "./fft-backend.js";
-import { runTask, type StepTask } from "./step-task.js";
+import { RESULT_LENGTH, runTask, type StepTask } from "./step-task.js";
 
 /** The evolving field and the machinery to advance it. */
 export class SplitStepper {
@@ -56,6 +56,10 @@ export class SplitStepper {
   private complexFft: ComplexFft | undefined;
   /** The closing kick's factor K₂ not yet applied to the stored ψ. */
   private owedKick = 0;
+  /** A pass's result vector. */
+  private readonly results = new Float64Array(RESULT_LENGTH);
+  /** Time and owed kick of the state in the undo copy (undefined: none kept). */
+  private undoState: { time: number; owedKick: number } | undefined;
 
   /**
    * @param fft the FFT backend ("auto": WebAssembly when the grid fits its 4 GiB memory)
@@ -107,10 +111,16 @@ export class SplitStepper {
     return this.complexFft;
   }
 
-  /** Run `task` over units [0, count) and return the sum of its results (one thread here; subclasses split it). */
-  protected runPass(count: number, task: StepTask): number {
+  /** Run `task` over units [0, count) into the result vector `out` (one thread here; subclasses split it). */
+  protected runPassInto(count: number, task: StepTask, out: Float64Array): void {
     this.engineOnThisThread ??= createEngine(this.memory.setup, 0);
-    return runTask(this.engineOnThisThread, task, 0, count);
+    runTask(this.engineOnThisThread, task, 0, count, out);
+  }
+
+  /** Run `task` over units [0, count) and return its summed scalar result. */
+  protected runPass(count: number, task: StepTask): number {
+    this.runPassInto(count, task, this.results);
+    return this.results[0]!;
   }
 
   private get rows(): number {
@@ -122,19 +132,12 @@ export class SplitStepper {
 
   /** Load a field (copied) at time t and compute its potential. */
   setState(psi: Float64Array, time: number): void {
-    this.restoreRaw(psi, time, 0);
-  }
-
-  /**
-   * Load a field as stored (see rawPsi) with the kick it owes, at time t, and
-   * compute its potential: undoes a failed step from a copy of rawPsi.
-   */
-  restoreRaw(psi: Float64Array, time: number, owedKick: number): void {
     if (psi.length !== this.memory.psi.length) {
       throw new RangeError(`field has ${psi.length / 2} cells, grid has ${this.grid.size}`);
     }
-    this.memory.psi.set(psi);
-    this.owedKick = owedKick;
+    if (psi !== this.memory.psi) this.memory.psi.set(psi);
+    this.owedKick = 0;
+    this.undoState = undefined;
     this.time = time;
     this.updatePotential();
   }
@@ -149,6 +152,7 @@ export class SplitStepper {
     }
     this.memory.psi.set(psi);
     this.owedKick = 0;
+    this.undoState = undefined;
     this.phi.set(phi);
     this.time = time;
     this.mass = mass;
@@ -223,19 +227,19 @@ export class SplitStepper {
     const outer = shape[0] > 1 ? 0 : shape[1] > 1 ? 1 : -1;
     // the last axis has at least 4 cells, so it always comes first
     const middle = outer === 0 && shape[1] > 1;
-    this.runPass(this.rows, { op: "rows", inverse: false, kick, density: false });
-    if (middle) this.runPass(outerCount(shape, 1), { op: "axis", axis: 1, inverse: false });
+    this.runPass(this.rows, { op: "rows", field: "psi", inverse: false, kick, density: false });
+    if (middle) this.runPass(outerCount(shape, 1), { op: "axis", field: "psi", axis: 1, inverse: false });
     let sum: number;
     if (outer >= 0) {
       sum = this.runPass(outerCount(shape, outer), { op: "drift-outer", axis: outer, gradient: this.trackKinetic });
     } else {
-      sum = this.trackKinetic ? this.runPass(this.rows, { op: "gradient" }) : 0;
+      sum = this.trackKinetic ? this.runPass(this.rows, { op: "gradient", field: "psi" }) : 0;
       this.runPass(this.rows, { op: "drift" });
     }
     // Parseval: ½∫|∇ψ|² dV = ½ Σ_k k²|ψ_k|² ΔV/N
     this.midKineticTilde = this.trackKinetic ? (0.5 * sum * this.grid.cellVolume) / this.grid.size : Number.NaN;
-    if (middle) this.runPass(outerCount(shape, 1), { op: "axis", axis: 1, inverse: true });
-    return this.runPass(this.rows, { op: "rows", inverse: true, kick: 0, density });
+    if (middle) this.runPass(outerCount(shape, 1), { op: "axis", field: "psi", axis: 1, inverse: true });
+    return this.runPass(this.rows, { op: "rows", field: "psi", inverse: true, kick: 0, density });
   }
 
   /** cos and sin of −k²D/2 per axis (the drift's phase factors). */
@@ -268,6 +272,45 @@ export class SplitStepper {
     this.solvePotential();
     this.owedKick = gravity ? k2 : 0;
     this.time = t1;
+  }
+
+  /** Keep a copy of the current state (in the undo buffer) for undo(). */
+  saveUndo(): void {
+    this.runPass(this.rows, { op: "copy", toUndo: true });
+    this.undoState = { time: this.time, owedKick: this.owedKick };
+  }
+
+  /** Return to the state saveUndo() kept (φ recomputed); false when none is kept any more. */
+  undo(): boolean {
+    const kept = this.undoState;
+    if (!kept) return false;
+    this.runPass(this.rows, { op: "copy", toUndo: false });
+    this.owedKick = kept.owedKick;
+    this.time = kept.time;
+    this.updatePotential();
+    return true;
+  }
+
+  /**
+   * ½∫|∇ψ|² dV of the current ψ (the a-free kinetic energy Ka²), spectrally:
+   * a forward transform of a copy in the undo buffer, which this uses up.
+   */
+  kineticTilde(): number {
+    this.synchronize();
+    this.undoState = undefined;
+    const shape = this.grid.shape;
+    this.runPass(this.rows, { op: "copy", toUndo: true });
+    this.runPass(this.rows, { op: "rows", field: "undo", inverse: false, kick: 0, density: false });
+    for (const axis of [1, 0]) if (shape[axis]! > 1) this.runPass(outerCount(shape, axis), { op: "axis", field: "undo", axis, inverse: false });
+    const sum = this.runPass(this.rows, { op: "gradient", field: "undo" });
+    return (0.5 * sum * this.grid.cellVolume) / this.grid.size;
+  }
+
+  /** Sums over the grid of the current field: Σ|ψ|², Σ|ψ|⁴, Σ|ψ|²φ (no ΔV) and max |ψ|². */
+  moments(): { rho: number; rho2: number; rhoPhi: number; maxRho: number } {
+    this.runPass(this.rows, { op: "moments" });
+    const r = this.results;
+    return { rho: r[0]!, rho2: r[1]!, rhoPhi: r[2]!, maxRho: r[3]! };
   }
 
   /** Range max φ − min φ of the current potential (0 without gravity). */

@@ -6,17 +6,17 @@
  */
 import { parentPort, workerData } from "node:worker_threads";
 import { createEngine } from "../fields/step-engine.js";
-import { runTask } from "./step-task.js";
+import { RESULT_LENGTH, runTask } from "./step-task.js";
 import type { WorkerSetup, WorkerTask } from "./thread-pool.js";
 
 const setup = workerData as WorkerSetup;
 const engine = createEngine(setup.step, setup.slot);
-const results = new Float64Array(setup.results);
+const results = new Float64Array(setup.results, 8 * RESULT_LENGTH * setup.slot, RESULT_LENGTH);
 const ctrl = new Int32Array(setup.control);
 
 parentPort!.on("message", (message: WorkerTask) => {
   try {
-    results[setup.slot] = runTask(engine, message.task, message.lo, message.hi);
+    runTask(engine, message.task, message.lo, message.hi, results);
   } catch {
     Atomics.store(ctrl, 1, 1);
   } finally {

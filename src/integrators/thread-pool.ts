@@ -9,7 +9,7 @@ import { Worker } from "node:worker_threads";
 import { fileURLToPath } from "node:url";
 import path from "node:path";
 import type { StepSetup } from "../fields/step-memory.js";
-import type { StepTask } from "./step-task.js";
+import { combineResults, RESULT_LENGTH, type StepTask } from "./step-task.js";
 
 /** What a worker is given once: the step's memory layout and its scratch slot, plus the shared control words. */
 export interface WorkerSetup {
@@ -43,7 +43,7 @@ export class ThreadPool {
   constructor(size: number, step: StepSetup) {
     this.size = size;
     const control = new SharedArrayBuffer(8);
-    const results = new SharedArrayBuffer(8 * size);
+    const results = new SharedArrayBuffer(8 * RESULT_LENGTH * size);
     this.ctrl = new Int32Array(control);
     this.results = new Float64Array(results);
     this.workers = Array.from({ length: size }, (_, slot) => {
@@ -56,9 +56,10 @@ export class ThreadPool {
 
   /**
    * Split units [0, count) into one contiguous range per worker, run `task`
-   * on each and return the sum of the workers' results (in worker order).
+   * on each and combine the workers' result vectors into `out` (sums in
+   * worker order, and a maximum).
    */
-  run(count: number, task: StepTask): number {
+  run(count: number, task: StepTask, out: Float64Array): void {
     if (this.isClosed) throw new Error("the thread pool is closed");
     let posted = 0;
     this.results.fill(0);
@@ -74,9 +75,7 @@ export class ThreadPool {
     });
     for (let v = Atomics.load(this.ctrl, 0); v !== 0; v = Atomics.load(this.ctrl, 0)) Atomics.wait(this.ctrl, 0, v);
     if (Atomics.load(this.ctrl, 1) !== 0) throw new Error("a worker thread failed during a step");
-    let sum = 0;
-    for (let i = 0; i < this.size; i++) sum += this.results[i]!;
-    return sum;
+    combineResults(this.results, this.size, out);
   }
 
   /** Whether close() was called. */

@@ -26,8 +26,9 @@ export class ThreadedStepper extends SplitStepper {
   }
 
   /** Passes run on the workers; after close() on this thread (so an owed kick can still be applied when ψ is read). */
-  protected override runPass(count: number, task: StepTask): number {
-    return this.pool.closed ? super.runPass(count, task) : this.pool.run(count, task);
+  protected override runPassInto(count: number, task: StepTask, out: Float64Array): void {
+    if (this.pool.closed) super.runPassInto(count, task, out);
+    else this.pool.run(count, task, out);
   }
 
   override close(): void {

@@ -67,6 +67,8 @@ export interface CheckpointState {
 export interface Snapshot {
   readonly meta: SnapshotMeta;
   readonly psi: Float64Array;
+  /** Factor applied to psi as it is written, slab by slab (default 1: psi is written as given). */
+  readonly psiScale?: number;
   readonly state?: CheckpointState;
 }
 
@@ -84,7 +86,7 @@ function rowsPerChunk(cells: readonly number[], bytesPerValue: number): number {
   return Math.max(1, Math.min(cells[0] as number, Math.floor((2 << 20) / (rowValues * bytesPerValue))));
 }
 
-function writePsi(group: Group, name: string, cells: readonly number[], psi: Float64Array, precision: "float64" | "float32"): Dataset {
+function writePsi(group: Group, name: string, cells: readonly number[], psi: Float64Array, precision: "float64" | "float32", scale = 1): Dataset {
   const shape = [...cells, 2];
   const bytes = precision === "float64" ? 8 : 4;
   const rows = rowsPerChunk(cells, bytes);
@@ -101,7 +103,8 @@ function writePsi(group: Group, name: string, cells: readonly number[], psi: Flo
   for (let r0 = 0; r0 < (cells[0] as number); r0 += rows) {
     const r1 = Math.min(cells[0] as number, r0 + rows);
     const part = psi.subarray(r0 * rowLength, r1 * rowLength);
-    ds.write_slice([[r0, r1], ...shape.slice(1).map(() => [] as [])], precision === "float64" ? part : Float32Array.from(part));
+    const slab = scale === 1 ? part : part.map((v) => v * scale);
+    ds.write_slice([[r0, r1], ...shape.slice(1).map(() => [] as [])], precision === "float64" ? slab : Float32Array.from(slab));
   }
   return ds;
 }
@@ -141,7 +144,7 @@ export function writeSnapshot(file: string, snap: Snapshot, precision: "float64"
     grid.create_attribute("box_size_units", "kpc");
 
     const field = f.create_group("field");
-    const ds = writePsi(field, "psi", m.cells, snap.psi, precision);
+    const ds = writePsi(field, "psi", m.cells, snap.psi, precision, snap.psiScale);
     ds.create_attribute("units", PSI_UNITS);
     ds.create_attribute("components", "re,im");
     const labels = ["x", "y", "z"].slice(0, m.cells.length);

@@ -6,22 +6,12 @@
  * factors D = ∫dt/a² and K = ∫dt/a.
  */
 import type { SplitStepper } from "../integrators/split-step.js";
-import { kineticEnergy } from "../diagnostics/energies.js";
 import { ClockAccumulator, type ClockRates } from "./clocks.js";
 
-/** Whole-box rates of the current field: ½∫|∇ψ|² is taken from `kineticTilde` when given. */
+/** Whole-box rates of the current field, with ½∫|∇ψ|² given as `kineticTilde`. */
 function ratesOf(stepper: SplitStepper, particleMass: number, kineticTilde: number): { rates: ClockRates; mass: number } {
-  const psi = stepper.rawPsi; // only |ψ|² is used, so an owed kick does not matter
-  const phi = stepper.phi;
-  let mass = 0;
-  let rho2 = 0;
-  let wTilde = 0;
-  for (let i = 0; i < phi.length; i++) {
-    const rho = psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2;
-    mass += rho;
-    rho2 += rho * rho;
-    wTilde += rho * phi[i]!;
-  }
+  // sums over the grid in the step's own (threaded) pass; only |ψ|² enters, so an owed kick does not matter
+  const { rho: mass, rho2, rhoPhi: wTilde } = stepper.moments();
   const dv = stepper.grid.cellVolume;
   const a = stepper.background.scaleFactor(stepper.time);
   const M = mass * dv;
@@ -48,10 +38,7 @@ export class SidecarTracker {
   constructor(stepper: SplitStepper, particleMass: number, particles: number, squeezingDb: number, startTime: number) {
     this.particleMass = particleMass;
     stepper.trackKinetic = true;
-    const a = stepper.background.scaleFactor(stepper.time);
-    const scratch = new Float64Array(stepper.psi.length);
-    const kTilde = kineticEnergy(stepper.grid, stepper.psi, a, stepper.fft, scratch) * a * a;
-    this.rates = ratesOf(stepper, particleMass, kTilde).rates;
+    this.rates = ratesOf(stepper, particleMass, stepper.kineticTilde()).rates;
     this.clocks = new ClockAccumulator(particles, squeezingDb, startTime, this.rates);
   }
 

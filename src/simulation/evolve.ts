@@ -29,8 +29,6 @@ export interface StepInfo {
   readonly limiter: StepLimiter;
   /** Relative mass drift since the start. */
   readonly massDrift: number;
-  /** A buffer of 2N doubles that callbacks may overwrite until the next step. */
-  readonly scratch: Float64Array;
   /** The step ended exactly on one of `limits.stops` or the end time. */
   readonly landed: boolean;
 }
@@ -105,7 +103,6 @@ function* evolveSteps(
   start?: EvolveStart,
 ): Generator<void, EvolveResult, void> {
   const fmt = hooks.formatTime ?? ((t: number) => t.toPrecision(6));
-  const backup = new Float64Array(stepper.rawPsi.length);
   const mass0 = start?.mass0 ?? stepper.mass;
   const tEnd = limits.endTime;
   let steps = start?.steps ?? 0;
@@ -135,9 +132,8 @@ function* evolveSteps(
       // split the remainder evenly rather than leave a sliver of a step
       dt = 0.5 * (target - stepper.time);
     }
-    // the state as stored (ψ may owe its closing kick), so keeping it does not force that kick
-    backup.set(stepper.rawPsi);
-    const owed = stepper.owedKickFactor;
+    // a copy of the state as stored (ψ may owe its closing kick) in the stepper's undo buffer
+    stepper.saveUndo();
     const t0 = stepper.time;
     stepper.step(dt);
     if (landed) stepper.time = target; // exact, so output times are not off by round-off
@@ -147,7 +143,7 @@ function* evolveSteps(
       const what = Number.isFinite(stepper.mass)
         ? `the mass changed by ${drift.toExponential(2)} (tolerance ${limits.massTolerance.toExponential(1)})`
         : "the field became non-finite";
-      stepper.restoreRaw(backup, t0, owed);
+      stepper.undo();
       return {
         status: "stopped",
         reason:
@@ -157,7 +153,7 @@ function* evolveSteps(
         steps: steps - 1,
       };
     }
-    hooks.onStep?.(stepper, { step: steps, dt, limiter, massDrift: drift, scratch: backup, landed });
+    hooks.onStep?.(stepper, { step: steps, dt, limiter, massDrift: drift, landed });
     yield;
   }
   return { status: "completed", steps };

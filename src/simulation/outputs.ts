@@ -81,17 +81,15 @@ export class RunWriter {
     };
   }
 
-  private physicalPsi(psi: Float64Array): Float64Array {
-    const f = Math.sqrt(this.scales.density(1));
-    const out = new Float64Array(psi.length);
-    for (let i = 0; i < psi.length; i++) out[i] = (psi[i] as number) * f;
-    return out;
+  /** The factor from code ψ to physical ψ (√ of the density unit), applied as snapshots are written. */
+  private get psiScale(): number {
+    return Math.sqrt(this.scales.density(1));
   }
 
   /** Write snapshot number `index` of the current state. */
   writeSnapshot(stepper: SplitStepper, step: number, index: number): string {
     const file = this.paths.snapshot(index);
-    writeSnapshot(file, { meta: this.meta(stepper, step, "snapshot"), psi: this.physicalPsi(stepper.psi) }, this.run.output.snapshotPrecision);
+    writeSnapshot(file, { meta: this.meta(stepper, step, "snapshot"), psi: stepper.psi, psiScale: this.psiScale }, this.run.output.snapshotPrecision);
     this.log(`snapshot ${path.basename(file)} at step ${step}, t = ${this.scales.formatTime(stepper.time)}`);
     return file;
   }
@@ -100,7 +98,8 @@ export class RunWriter {
   writeCheckpoint(stepper: SplitStepper, state: Omit<CheckpointState, "psiCode" | "phiCode" | "timeCode" | "massCode">): void {
     writeSnapshot(this.paths.checkpoint, {
       meta: this.meta(stepper, state.steps, "checkpoint"),
-      psi: this.physicalPsi(stepper.psi),
+      psi: stepper.psi,
+      psiScale: this.psiScale,
       state: { ...state, psiCode: stepper.psi, phiCode: stepper.phi, timeCode: stepper.time, massCode: stepper.mass },
     });
     this.log(`checkpoint at step ${state.steps}, t = ${this.scales.formatTime(stepper.time)}`);

@@ -12,7 +12,6 @@ import { makeBackground } from "../physics/cosmology/background.js";
 import { SplitStepper } from "../integrators/split-step.js";
 import { ThreadedStepper } from "../integrators/threaded-step.js";
 import { buildInitialField } from "../initial-conditions/build.js";
-import { kineticEnergy, maxDensity, potentialEnergy } from "../diagnostics/energies.js";
 import { CsvWriter } from "../io/csv-writer.js";
 import { cleanStaleTemporaries, writeFileAtomic } from "../io/atomic.js";
 import { loadHdf5 } from "../io/h5.js";
@@ -128,8 +127,14 @@ async function evolveRun(run: ResolvedRun, options: RunOptions, parts: RunParts)
   } else {
     writer.log(`started ${run.name}: ${run.grid.cells.join("×")} cells, ${run.initial.kind}`);
     if (run.initial.kind === "ground-state") reporter.phase("relaxing the ground state");
-    const initial = buildInitialField(run.initial, grid, background, startTime, gravity, (info) =>
-      reporter.progress(Math.min(1, info.iteration / 400), `iteration ${info.iteration}`),
+    const initial = buildInitialField(
+      run.initial,
+      grid,
+      background,
+      startTime,
+      gravity,
+      (info) => reporter.progress(Math.min(1, info.iteration / 400), `iteration ${info.iteration}`),
+      stepper.rawPsi,
     );
     if (initial.relaxation) {
       reporter.endPhase();
@@ -173,11 +178,12 @@ async function evolveRun(run: ResolvedRun, options: RunOptions, parts: RunParts)
   const series = resumed
     ? CsvWriter.resume(paths.timeseries, columns, (cells) => Number(cells[0]) < stepsBefore || (Number(cells[0]) === stepsBefore && cells[limiterColumn] !== "stop"))
     : new CsvWriter(paths.timeseries, columns);
-  const scratch = new Float64Array(stepper.psi.length);
-  const record = (step: number, dt: number, limiter: string, buffer: Float64Array): void => {
+  const record = (step: number, dt: number, limiter: string): void => {
     const a = background.scaleFactor(stepper.time);
-    const K = kineticEnergy(grid, stepper.psi, a, stepper.fft, buffer);
-    const W = potentialEnergy(grid, stepper.psi, stepper.phi, a);
+    // K = ½∫|∇ψ|²/a² (spectral, on the step's own transforms), W = ½∫ρφ/a
+    const K = stepper.kineticTilde() / (a * a);
+    const moments = stepper.moments();
+    const W = (0.5 / a) * moments.rhoPhi * grid.cellVolume;
     series.row([
       step,
       scales.time(stepper.time),
@@ -188,7 +194,7 @@ async function evolveRun(run: ResolvedRun, options: RunOptions, parts: RunParts)
       scales.energy(K),
       scales.energy(W),
       scales.energy(K + W),
-      scales.density(maxDensity(stepper.psi)),
+      scales.density(moments.maxRho),
       ...(tracker ? sidecarRow(tracker, a, scales.units.timeS) : []),
     ]);
   };
@@ -203,7 +209,7 @@ async function evolveRun(run: ResolvedRun, options: RunOptions, parts: RunParts)
     });
   };
   if (!resumed) {
-    record(0, 0, "start", scratch);
+    record(0, 0, "start");
     writer.writeSnapshot(stepper, 0, snapshotsWritten++);
   }
   if (options.initialOnly) {
@@ -234,7 +240,7 @@ async function evolveRun(run: ResolvedRun, options: RunOptions, parts: RunParts)
     tracker?.afterStep(s);
     const atEnd = info.limiter === "end";
     if (info.step % run.output.timeseriesEvery === 0 || atEnd) {
-      record(info.step, info.dt, info.limiter, info.scratch);
+      record(info.step, info.dt, info.limiter);
       lastRecorded = info.step;
     }
     const byCount = run.output.snapshotEvery !== undefined && info.step % run.output.snapshotEvery === 0;
@@ -257,7 +263,7 @@ async function evolveRun(run: ResolvedRun, options: RunOptions, parts: RunParts)
     { steps: stepsBefore, mass0 },
   );
   if (result.status === "stopped") {
-    if (result.steps > lastRecorded) record(result.steps, 0, "stop", scratch);
+    if (result.steps > lastRecorded) record(result.steps, 0, "stop");
     writer.log(`stopped: ${result.reason}`);
     checkpoint(result.steps);
     writer.writeSnapshot(stepper, result.steps, snapshotsWritten++);

@@ -5,7 +5,8 @@ import { makePoissonSolver } from "../../src/fields/poisson.js";
 import { StaticBackground } from "../../src/physics/cosmology/background.js";
 import { SplitStepper } from "../../src/integrators/split-step.js";
 import { evolve } from "../../src/simulation/evolve.js";
-import { fieldMass, kineticEnergy, potentialEnergy } from "../../src/diagnostics/energies.js";
+import { fieldMass, kineticEnergy, maxDensity, potentialEnergy } from "../../src/diagnostics/energies.js";
+import { ComplexFft } from "../../src/fields/fft.js";
 import { fillComplex, maxAbs, seededRandom } from "../helpers/fields.js";
 
 /** A lumpy self-gravitating 2D field: well into the nonlinear regime. */
@@ -173,16 +174,39 @@ describe("the closing kick folded into the next step", () => {
     expect(worst / maxAbs(a)).toBeLessThan(1e-13);
   });
 
-  it("restores a stored state with its owed kick exactly (the run loop's undo of a failed step)", () => {
+  it("undoes a step exactly: saveUndo() before it, undo() after it give back ψ (with its owed kick), φ and t", () => {
     const grid = new Grid([32, 32], [1, 1]);
     const stepper = new SplitStepper(grid, new StaticBackground(), makePoissonSolver(grid, "periodic"));
     stepper.setState(lumpyField(grid, 4), 0);
     stepper.step(2e-4);
-    const raw = Float64Array.from(stepper.rawPsi);
-    const owed = stepper.owedKickFactor;
+    stepper.saveUndo();
     const t = stepper.time;
+    const owed = stepper.owedKickFactor;
+    const phi = Float64Array.from(stepper.phi);
     const expected = Float64Array.from(stepper.psi);
-    stepper.restoreRaw(raw, t, owed);
+    stepper.step(2e-4);
+    expect(stepper.undo()).toBe(true);
+    expect(stepper.time).toBe(t);
+    expect(stepper.owedKickFactor).toBe(owed);
+    expect(Buffer.from(Float64Array.from(stepper.phi).buffer).equals(Buffer.from(phi.buffer))).toBe(true);
     expect(Buffer.from(Float64Array.from(stepper.psi).buffer).equals(Buffer.from(expected.buffer))).toBe(true);
+  });
+
+  it("measures K, W and the peak density as the diagnostics do with fft.js and direct sums", () => {
+    for (const fft of ["wasm", "js"] as const) {
+      const grid = new Grid([16, 32, 16], [1, 2, 1]);
+      const stepper = new SplitStepper(grid, new StaticBackground(), makePoissonSolver(grid, "periodic"), fft);
+      const psi0 = fillComplex(grid, (x, y, z) => [1 + 0.3 * Math.cos(2 * Math.PI * x) * Math.sin(Math.PI * y), 0.2 * Math.sin(2 * Math.PI * (z + x))]);
+      stepper.setState(psi0, 0);
+      stepper.step(1e-3);
+      const psi = Float64Array.from(stepper.psi);
+      const K = kineticEnergy(grid, psi, 1, new ComplexFft(grid.shape), new Float64Array(psi.length));
+      const W = potentialEnergy(grid, psi, stepper.phi, 1);
+      expect(Math.abs(stepper.kineticTilde() / K - 1), fft).toBeLessThan(1e-13);
+      const m = stepper.moments();
+      expect(Math.abs((0.5 * m.rhoPhi * grid.cellVolume) / W - 1), fft).toBeLessThan(1e-13);
+      expect(m.maxRho).toBe(maxDensity(psi));
+      expect(Math.abs((m.rho * grid.cellVolume) / fieldMass(grid, psi) - 1)).toBeLessThan(1e-13);
+    }
   });
 });

@@ -108,9 +108,9 @@ describe("WebAssembly SIMD transforms", () => {
       const reference = directDft(data, shape);
       const { memory, engine } = wasmEngine(shape);
       memory.psi.set(data);
-      for (const axis of [2, 1, 0]) if (shape[axis]! > 1) engine.axis(axis, false, 0, outerCount(shape, axis));
+      for (const axis of [2, 1, 0]) if (shape[axis]! > 1) engine.axis("psi", axis, false, 0, outerCount(shape, axis));
       expect(maxAbsDiff(memory.psi, reference)).toBeLessThan(1e-12 * n);
-      for (const axis of [0, 1, 2]) if (shape[axis]! > 1) engine.axis(axis, true, 0, outerCount(shape, axis));
+      for (const axis of [0, 1, 2]) if (shape[axis]! > 1) engine.axis("psi", axis, true, 0, outerCount(shape, axis));
       expect(maxAbsDiff(memory.psi, data)).toBeLessThan(1e-14 * n);
     });
 
