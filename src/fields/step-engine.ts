@@ -120,10 +120,12 @@ abstract class EngineBase implements StepEngine {
     const { shape, work } = this.iso!;
     const n2 = this.shape[2];
     const p2 = shape[2];
+    const phi = this.phi;
     this.paddedRuns(lo, hi, (padded, row, count) => {
       for (let i = 0; i < count; i++) {
         const dst = (padded + i) * p2;
-        work.set(this.phi.subarray((row + i) * n2, (row + i + 1) * n2), dst);
+        const src = (row + i) * n2;
+        for (let c = 0; c < n2; c++) work[dst + c] = phi[src + c]!;
         work.fill(0, dst + n2, dst + p2);
       }
       this.realRows("isolated", padded, padded + count);
@@ -145,9 +147,14 @@ abstract class EngineBase implements StepEngine {
     const { shape, work } = this.iso!;
     const n2 = this.shape[2];
     const p2 = shape[2];
+    const phi = this.phi;
     this.paddedRuns(lo, hi, (padded, row, count) => {
       this.realRowsInverse("isolated", padded, padded + count);
-      for (let i = 0; i < count; i++) this.phi.set(work.subarray((padded + i) * p2, (padded + i) * p2 + n2), (row + i) * n2);
+      for (let i = 0; i < count; i++) {
+        const src = (padded + i) * p2;
+        const dst = (row + i) * n2;
+        for (let c = 0; c < n2; c++) phi[dst + c] = work[src + c]!;
+      }
     });
   }
 
