@@ -56,6 +56,8 @@ export class SplitStepper {
   private complexFft: ComplexFft | undefined;
   /** The closing kick's factor K₂ not yet applied to the stored ψ. */
   private owedKick = 0;
+  /** The drift factor the phase tables hold. */
+  private phaseFactor = Number.NaN;
   /** A pass's result vector. */
   private readonly results = new Float64Array(RESULT_LENGTH);
   /** Time and owed kick of the state in the undo copy (undefined: none kept). */
@@ -244,6 +246,9 @@ export class SplitStepper {
 
   /** cos and sin of −k²D/2 per axis (the drift's phase factors). */
   protected fillPhaseTables(factor: number): void {
+    // recomputed only when the drift factor changes (a fixed step in a static box keeps it)
+    if (factor === this.phaseFactor) return;
+    this.phaseFactor = factor;
     for (let ax = 0; ax < 3; ax++) {
       const k = this.grid.wavenumbers(ax as 0 | 1 | 2);
       const table = this.phase[ax] as Float64Array;
