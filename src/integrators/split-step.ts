@@ -30,6 +30,14 @@ import { allocateStepMemory, type FftBackend, type GravityLayout, type StepMemor
 import { resolveFftBackend, type FftChoice } from "./fft-backend.js";
 import { RESULT_LENGTH, runTask, type StepTask } from "./step-task.js";
 
+/** Sums over the grid of |ψ|² = ρ and φ, without the cell volume. */
+export interface FieldMoments {
+  readonly rho: number;
+  readonly rho2: number;
+  readonly rhoPhi: number;
+  readonly maxRho: number;
+}
+
 /** The evolving field and the machinery to advance it. */
 export class SplitStepper {
   readonly grid: Grid;
@@ -56,6 +64,8 @@ export class SplitStepper {
   private complexFft: ComplexFft | undefined;
   /** The closing kick's factor K₂ not yet applied to the stored ψ. */
   private owedKick = 0;
+  /** moments() of the current |ψ| and φ (kicks change neither), until they change. */
+  private momentsCache: FieldMoments | undefined;
   /** The drift factor the phase tables hold. */
   private phaseFactor = Number.NaN;
   /** A pass's result vector. */
@@ -77,9 +87,19 @@ export class SplitStepper {
         : gravity instanceof IsolatedPoisson
           ? { kind: "isolated", padded: gravity.paddedShape, hat: gravity.kernelHat }
           : { kind: "none" };
-    this.backend = resolveFftBackend(fft, grid.shape, layout.kind, slots);
     const kSquared = [0, 1, 2].map((ax) => grid.wavenumbers(ax as 0 | 1 | 2).map((k) => k * k));
-    this.memory = allocateStepMemory(this.backend, grid.shape, kSquared, layout, slots);
+    let backend = resolveFftBackend(fft, grid.shape, layout.kind, slots);
+    let memory: StepMemory;
+    try {
+      memory = allocateStepMemory(backend, grid.shape, kSquared, layout, slots);
+    } catch (e) {
+      // "auto" falls back to fft.js when the runtime refuses one memory of this size
+      if (fft !== "auto" || backend !== "wasm" || !(e instanceof RangeError)) throw e;
+      backend = "js";
+      memory = allocateStepMemory(backend, grid.shape, kSquared, layout, slots);
+    }
+    this.backend = backend;
+    this.memory = memory;
     this.phi = this.memory.phi;
     this.phase = this.memory.phase;
   }
@@ -155,6 +175,7 @@ export class SplitStepper {
     this.memory.psi.set(psi);
     this.owedKick = 0;
     this.undoState = undefined;
+    this.momentsCache = undefined;
     this.phi.set(phi);
     this.time = time;
     this.mass = mass;
@@ -162,6 +183,7 @@ export class SplitStepper {
 
   /** Recompute φ and the mass from ψ. */
   updatePotential(): void {
+    this.momentsCache = undefined;
     this.mass = this.runPass(this.rows, { op: "density" }) * this.grid.cellVolume;
     this.solvePotential();
   }
@@ -215,6 +237,7 @@ export class SplitStepper {
    */
   drift(factor: number): void {
     this.synchronize();
+    this.momentsCache = undefined;
     this.driftPasses(factor, 0, false);
   }
 
@@ -271,6 +294,7 @@ export class SplitStepper {
     this.lastDrift = bg.driftFactor(t0, t1);
     this.lastKick = k1 + k2;
     const gravity = this.gravity.kind !== "none";
+    this.momentsCache = undefined;
     const opening = gravity ? this.owedKick + k1 : 0;
     this.owedKick = 0;
     this.mass = this.driftPasses(this.lastDrift, opening, true) * this.grid.cellVolume;
@@ -312,10 +336,13 @@ export class SplitStepper {
   }
 
   /** Sums over the grid of the current field: Σ|ψ|², Σ|ψ|⁴, Σ|ψ|²φ (no ΔV) and max |ψ|². */
-  moments(): { rho: number; rho2: number; rhoPhi: number; maxRho: number } {
-    this.runPass(this.rows, { op: "moments" });
-    const r = this.results;
-    return { rho: r[0]!, rho2: r[1]!, rhoPhi: r[2]!, maxRho: r[3]! };
+  moments(): FieldMoments {
+    if (!this.momentsCache) {
+      this.runPass(this.rows, { op: "moments" });
+      const r = this.results;
+      this.momentsCache = { rho: r[0]!, rho2: r[1]!, rhoPhi: r[2]!, maxRho: r[3]! };
+    }
+    return this.momentsCache;
   }
 
   /** Range max φ − min φ of the current potential (0 without gravity). */
