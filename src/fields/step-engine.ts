@@ -24,6 +24,8 @@ export type PoissonTarget = "periodic" | "isolated";
 export interface StepEngine {
   /** ψ ← e^{−iφK} ψ over rows. */
   kick(factor: number, lo: number, hi: number): void;
+  /** The drift's phase tables: (cos, sin)(−½ k² D) per index of every axis. */
+  fillPhases(factor: number): void;
   /** FFT pass of a field along `axis` over units. */
   axis(field: ComplexField, axis: number, inverse: boolean, lo: number, hi: number): void;
   /**
@@ -170,6 +172,17 @@ abstract class EngineBase implements StepEngine {
 
   kick(factor: number, lo: number, hi: number): void {
     kickRows(this.psi, this.phi, factor, this.shape[2], lo, hi);
+  }
+  fillPhases(factor: number): void {
+    for (let ax = 0; ax < 3; ax++) {
+      const kk = this.kk[ax]!;
+      const table = this.phase[ax]!;
+      for (let j = 0; j < kk.length; j++) {
+        const angle = -0.5 * kk[j]! * factor;
+        table[2 * j] = Math.cos(angle);
+        table[2 * j + 1] = Math.sin(angle);
+      }
+    }
   }
   drift(lo: number, hi: number): void {
     driftRows(this.psi, this.shape, this.phase[0], this.phase[1], this.phase[2], lo, hi);
@@ -354,6 +367,11 @@ export class WasmStepEngine extends EngineBase {
   /** Byte address of entry `index` of a region of width `width` values per entry. */
   private at(region: { offset: number }, index: number, width: number): number {
     return region.offset + 8 * width * index;
+  }
+
+  override fillPhases(factor: number): void {
+    const s = this.setup;
+    this.k.phaseTable(s.kGrad.offset, factor, s.phase.offset, s.kGrad.length);
   }
 
   override kick(factor: number, lo: number, hi: number): void {

@@ -96,8 +96,8 @@ export function regionView(setup: StepSetup, region: Region): Float64Array {
 
 /** Split a concatenated per-axis table into its three axes. */
 export function perAxis(table: Float64Array, lengths: Triple, width = 1): [Float64Array, Float64Array, Float64Array] {
-  const [a, b] = lengths;
-  return [table.subarray(0, width * a), table.subarray(width * a, width * (a + b)), table.subarray(width * (a + b))];
+  const [a, b, c] = lengths;
+  return [table.subarray(0, width * a), table.subarray(width * a, width * (a + b)), table.subarray(width * (a + b), width * (a + b + c))];
 }
 
 /** Bytes the wasm backend needs for a grid (used to decide whether it fits in a 4 GiB memory). */
@@ -109,6 +109,12 @@ export function wasmBytesNeeded(shape: Triple, gravity: GravityLayout["kind"], s
 const WASM_PAGE = 65536;
 /** Largest wasm memory (4 GiB of 32-bit addresses). */
 export const WASM_MAX_BYTES = 65536 * WASM_PAGE;
+
+/** n0 + n1 + n2 rounded up to even: the length of the per-axis tables. */
+export function evenAxes(shape: Triple): number {
+  const axes = shape[0] + shape[1] + shape[2];
+  return axes + (axes & 1);
+}
 
 /** Cells of a half spectrum of `shape`. */
 function halfCells(shape: Triple): number {
@@ -131,8 +137,10 @@ function planWasm(shape: Triple, gravity: GravityLayout["kind"], padded: Triple,
   const phi = take(8 * size);
   const undo = take(16 * size);
   const spectrum = periodic ? take(16 * halfCells(shape)) : 0;
-  const phase = take(16 * (n0 + n1 + n2));
-  const kGrad = take(8 * (n0 + n1 + n2));
+  // the per-axis tables padded to an even length (the kernels work on pairs)
+  const axes = evenAxes(shape);
+  const phase = take(16 * axes);
+  const kGrad = take(8 * axes);
   const kPoisson = periodic ? take(8 * (n0 + n1 + h2)) : 0;
   const [p0, p1, p2] = padded;
   const iso = isolated
@@ -168,7 +176,7 @@ export function allocateStepMemory(backend: FftBackend, shape: Triple, kSquared:
   const [n0, n1, n2] = shape;
   const size = n0 * n1 * n2;
   const h2 = n2 / 2 + 1;
-  const axes = n0 + n1 + n2;
+  const axes = evenAxes(shape);
   const periodic = gravity.kind === "periodic";
   const padded: Triple = gravity.kind === "isolated" ? gravity.padded : [1, 1, 1];
   const paddedCells = padded[0] * padded[1] * padded[2];

@@ -27,6 +27,7 @@ export interface WasmKernelExports {
   realRowsInverse(spec: number, out: number, n2: number, lo: number, hi: number, buf: number, tw: number, rev: number, ctw: number): void;
   kick(psi: number, phi: number, factor: number, lo: number, hi: number): void;
   sinCos(angles: number, out: number, count: number): void;
+  phaseTable(kk: number, factor: number, out: number, count: number): void;
 }
 
 /** Bytes at the start of the memory reserved for the kernels' constants table (address 64 on). */

@@ -272,15 +272,8 @@ export class SplitStepper {
     // recomputed only when the drift factor changes (a fixed step in a static box keeps it)
     if (factor === this.phaseFactor) return;
     this.phaseFactor = factor;
-    for (let ax = 0; ax < 3; ax++) {
-      const k = this.grid.wavenumbers(ax as 0 | 1 | 2);
-      const table = this.phase[ax] as Float64Array;
-      for (let j = 0; j < k.length; j++) {
-        const angle = -0.5 * (k[j] as number) * (k[j] as number) * factor;
-        table[2 * j] = Math.cos(angle);
-        table[2 * j + 1] = Math.sin(angle);
-      }
-    }
+    this.engineOnThisThread ??= createEngine(this.memory.setup, 0);
+    this.engineOnThisThread.fillPhases(factor);
   }
 
   /** Advance by Δt (code time) with one kick–drift–kick step (the closing kick stays owed, see above). */

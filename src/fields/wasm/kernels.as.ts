@@ -610,3 +610,17 @@ export function sinCos(angles: usize, out: usize, count: i32): void {
     rotatePair(out + (<usize>i << 4), v128.load(angles + (<usize>i << 3)));
   }
 }
+
+/**
+ * The drift's phase table: (cos, sin) of −½ k² D for `count` entries of the k²
+ * table `kk` (an even count; tables are padded to one), written to `out`.
+ */
+export function phaseTable(kk: usize, factor: f64, out: usize, count: i32): void {
+  const f = f64x2.splat(-0.5 * factor);
+  for (let i: i32 = 0; i < count; i += 2) {
+    const p = out + (<usize>i << 4);
+    v128.store(p, f64x2(1.0, 0.0));
+    v128.store(p, f64x2(1.0, 0.0), 16);
+    rotatePair(p, f64x2.mul(v128.load(kk + (<usize>i << 3)), f));
+  }
+}
