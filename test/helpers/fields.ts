@@ -56,3 +56,13 @@ export function maxAbs(a: ArrayLike<number>): number {
   for (let i = 0; i < a.length; i++) m = Math.max(m, Math.abs(a[i] as number));
   return m;
 }
+
+/** A lumpy self-gravitating field in 1D, 2D or 3D (density contrast up to 0.6, a small phase): nonlinear within a few steps. */
+export function lumpy(grid: Grid): Float64Array {
+  return fillComplex(grid, (x, y, z) => {
+    const d = 0.4 * Math.cos(2 * Math.PI * (x + 2 * y)) * Math.sin(2 * Math.PI * z) + 0.2 * Math.cos(6 * Math.PI * z + 1);
+    const s = 0.02 * Math.sin(2 * Math.PI * (y - z));
+    const amp = Math.sqrt(300 * (1 + d));
+    return [amp * Math.cos(s), amp * Math.sin(s)];
+  });
+}

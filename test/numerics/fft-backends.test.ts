@@ -10,16 +10,7 @@ import { ThreadedStepper } from "../../src/integrators/threaded-step.js";
 import { resolveFftBackend } from "../../src/integrators/fft-backend.js";
 import { evolve } from "../../src/simulation/evolve.js";
 import { ConfigError } from "../../src/core/errors.js";
-import { fillComplex, maxAbs, maxAbsDiff } from "../helpers/fields.js";
-
-function lumpy(grid: Grid): Float64Array {
-  return fillComplex(grid, (x, y, z) => {
-    const d = 0.4 * Math.cos(2 * Math.PI * (x + 2 * y)) * Math.sin(2 * Math.PI * z) + 0.2 * Math.cos(6 * Math.PI * z + 1);
-    const s = 0.02 * Math.sin(2 * Math.PI * (y - z));
-    const amp = Math.sqrt(300 * (1 + d));
-    return [amp * Math.cos(s), amp * Math.sin(s)];
-  });
-}
+import { lumpy, maxAbs, maxAbsDiff } from "../helpers/fields.js";
 
 type Gravity = "periodic" | "isolated";
 

@@ -284,23 +284,107 @@ export function rowsPass(
   return f64x2.extract_lane(sum, 0) + f64x2.extract_lane(sum, 1);
 }
 
-/** One FFT pass along `axis` over units [lo, hi). */
-export function axisPass(data: usize, n0: i32, n1: i32, n2: i32, axis: i32, lo: i32, hi: i32, buf: usize, tw: usize, rev: usize, inverse: bool, scale: f64): void {
-  if (axis == 2) {
-    rowsPass(data, n2, lo, hi, buf, tw, rev, inverse, scale, 0, 0.0, false);
-    return;
-  }
+// What a strided pass does between its forward and inverse transforms.
+const PLAIN: i32 = 0; // one transform only, in place
+const DRIFT: i32 = 1;
+const POISSON: i32 = 2;
+
+/**
+ * A pass along axis 0 or 1 over units [lo, hi): each unit is a block of up
+ * to BLOCK neighbouring pencils. PLAIN transforms in place (tw, `inverse`,
+ * `scale`); DRIFT and POISSON transform forward (tw), multiply in Fourier
+ * space (driftBlock, poissonBlock) and transform back (twI, 1/n). Returns
+ * the drift block's kinetic sum.
+ */
+function stridedPass(
+  data: usize, n0: i32, n1: i32, n2: i32, axis: i32, lo: i32, hi: i32, buf: usize, buf2: usize,
+  tw: usize, twI: usize, rev: usize, inverse: bool, scale: f64, mode: i32,
+  pAxis: usize, pOuter: usize, pLane: usize, kAxis: usize, kOuter: usize, kLane: usize,
+): f64 {
   const n = axis == 1 ? n1 : n0;
   const pointStride = (axis == 1 ? n2 : n1 * n2) << 4;
   const outerStride = axis == 1 ? n1 * n2 : n2;
   const blocks = (n2 + BLOCK - 1) / BLOCK;
+  let sum = f64x2.splat(0);
   for (let u = lo; u < hi; u++) {
     const o = u / blocks;
     const c0 = (u - o * blocks) * BLOCK;
     const count = min(BLOCK, n2 - c0);
+    const pitch = count << 4;
     const p = data + (<usize>(o * outerStride + c0) << 4);
-    transformInPlace(p, pointStride, 16, n, count, buf, count << 4, rev, tw, inverse, scale);
+    if (mode == PLAIN) {
+      transformInPlace(p, pointStride, 16, n, count, buf, pitch, rev, tw, inverse, scale);
+      continue;
+    }
+    transformToBuf(p, pointStride, 16, n, count, buf, pitch, rev, tw, false);
+    if (mode == DRIFT) sum = driftBlock(buf, buf2, n, count, pitch, o, c0, rev, pAxis, pOuter, pLane, kAxis, kOuter, kLane, sum);
+    else poissonBlock(buf, buf2, n, count, pitch, o, c0, rev, kAxis, kOuter, kLane);
+    transformBufToMemory(buf2, n, pitch, count, twI, true, p, pointStride, 16, 1.0 / <f64>n);
   }
+  return f64x2.extract_lane(sum, 0) + f64x2.extract_lane(sum, 1);
+}
+
+/**
+ * The drift's phase on a transformed block (pencils c0 … c0+count−1 of outer
+ * index o), written to buf2 in bit-reversed order for the inverse; with kAxis
+ * non-zero, adds Σ k²|ψ_k|² of the block to `sum` first.
+ */
+@inline function driftBlock(
+  buf: usize, buf2: usize, n: i32, count: i32, pitch: i32, o: i32, c0: i32, rev: usize,
+  pAxis: usize, pOuter: usize, pLane: usize, kAxis: usize, kOuter: usize, kLane: usize, sum: v128,
+): v128 {
+  if (kAxis != 0) {
+    const ko = load<f64>(kOuter + (<usize>o << 3));
+    for (let j: i32 = 0; j < n; j++) {
+      const s = buf + <usize>(j * pitch);
+      const kj = load<f64>(kAxis + (<usize>j << 3)) + ko;
+      for (let b: i32 = 0; b < count; b++) {
+        const x = v128.load(s + (<usize>b << 4));
+        const kk = f64x2.splat(kj + load<f64>(kLane + (<usize>(c0 + b) << 3)));
+        sum = f64x2.add(sum, f64x2.mul(kk, f64x2.mul(x, x)));
+      }
+    }
+  }
+  // e = (pLane[c0 + b] · pOuter[o]) · pAxis[j]
+  const po = v128.load(pOuter + (<usize>o << 4));
+  const por = v128.shuffle<f64>(po, po, 0, 0);
+  const poi = f64x2.mul(v128.shuffle<f64>(po, po, 1, 1), f64x2(-1.0, 1.0));
+  for (let j: i32 = 0; j < n; j++) {
+    const s = buf + <usize>(j * pitch);
+    const d = buf2 + <usize>(load<i32>(rev + (<usize>j << 2)) * pitch);
+    const pa = v128.load(pAxis + (<usize>j << 4));
+    const par = v128.shuffle<f64>(pa, pa, 0, 0);
+    const pai = f64x2.mul(v128.shuffle<f64>(pa, pa, 1, 1), f64x2(-1.0, 1.0));
+    for (let b: i32 = 0; b < count; b++) {
+      const e = cmul(cmul(v128.load(pLane + (<usize>(c0 + b) << 4)), por, poi), par, pai);
+      const x = v128.load(s + (<usize>b << 4));
+      const er = v128.shuffle<f64>(e, e, 0, 0);
+      const ei = f64x2.mul(v128.shuffle<f64>(e, e, 1, 1), f64x2(-1.0, 1.0));
+      v128.store(d + (<usize>b << 4), cmul(x, er, ei));
+    }
+  }
+  return sum;
+}
+
+/** spec ← −spec/k² (0 at k = 0) on a transformed block, written to buf2 in bit-reversed order. */
+@inline function poissonBlock(buf: usize, buf2: usize, n: i32, count: i32, pitch: i32, o: i32, c0: i32, rev: usize, kAxis: usize, kOuter: usize, kLane: usize): void {
+  const ko = load<f64>(kOuter + (<usize>o << 3));
+  for (let j: i32 = 0; j < n; j++) {
+    const s = buf + <usize>(j * pitch);
+    const d = buf2 + <usize>(load<i32>(rev + (<usize>j << 2)) * pitch);
+    const kj = load<f64>(kAxis + (<usize>j << 3)) + ko;
+    for (let b: i32 = 0; b < count; b++) {
+      const kk = kj + load<f64>(kLane + (<usize>(c0 + b) << 3));
+      const g = kk > 0 ? -1.0 / kk : 0.0;
+      v128.store(d + (<usize>b << 4), f64x2.mul(v128.load(s + (<usize>b << 4)), f64x2.splat(g)));
+    }
+  }
+}
+
+/** One FFT pass along `axis` over units [lo, hi). */
+export function axisPass(data: usize, n0: i32, n1: i32, n2: i32, axis: i32, lo: i32, hi: i32, buf: usize, tw: usize, rev: usize, inverse: bool, scale: f64): void {
+  if (axis == 2) rowsPass(data, n2, lo, hi, buf, tw, rev, inverse, scale, 0, 0.0, false);
+  else stridedPass(data, n0, n1, n2, axis, lo, hi, buf, 0, tw, 0, rev, inverse, scale, PLAIN, 0, 0, 0, 0, 0, 0);
 }
 
 /**
@@ -316,51 +400,7 @@ export function driftOuter(
   data: usize, n0: i32, n1: i32, n2: i32, axis: i32, lo: i32, hi: i32, buf: usize, buf2: usize,
   twF: usize, twI: usize, rev: usize, pAxis: usize, pOuter: usize, pLane: usize, kAxis: usize, kOuter: usize, kLane: usize,
 ): f64 {
-  const n = axis == 1 ? n1 : n0;
-  const pointStride = (axis == 1 ? n2 : n1 * n2) << 4;
-  const outerStride = axis == 1 ? n1 * n2 : n2;
-  const blocks = (n2 + BLOCK - 1) / BLOCK;
-  let sum = f64x2.splat(0);
-  for (let u = lo; u < hi; u++) {
-    const o = u / blocks;
-    const c0 = (u - o * blocks) * BLOCK;
-    const count = min(BLOCK, n2 - c0);
-    const pitch = count << 4;
-    const p = data + (<usize>(o * outerStride + c0) << 4);
-    transformToBuf(p, pointStride, 16, n, count, buf, pitch, rev, twF, false);
-    if (kAxis != 0) {
-      const ko = load<f64>(kOuter + (<usize>o << 3));
-      for (let j: i32 = 0; j < n; j++) {
-        const s = buf + <usize>(j * pitch);
-        const kj = load<f64>(kAxis + (<usize>j << 3)) + ko;
-        for (let b: i32 = 0; b < count; b++) {
-          const x = v128.load(s + (<usize>b << 4));
-          const kk = f64x2.splat(kj + load<f64>(kLane + (<usize>(c0 + b) << 3)));
-          sum = f64x2.add(sum, f64x2.mul(kk, f64x2.mul(x, x)));
-        }
-      }
-    }
-    // e = (pLane[c0 + b] · pOuter[o]) · pAxis[j], applied while permuting into bit-reversed order
-    const po = v128.load(pOuter + (<usize>o << 4));
-    const por = v128.shuffle<f64>(po, po, 0, 0);
-    const poi = f64x2.mul(v128.shuffle<f64>(po, po, 1, 1), f64x2(-1.0, 1.0));
-    for (let j: i32 = 0; j < n; j++) {
-      const s = buf + <usize>(j * pitch);
-      const d = buf2 + <usize>(load<i32>(rev + (<usize>j << 2)) * pitch);
-      const pa = v128.load(pAxis + (<usize>j << 4));
-      const par = v128.shuffle<f64>(pa, pa, 0, 0);
-      const pai = f64x2.mul(v128.shuffle<f64>(pa, pa, 1, 1), f64x2(-1.0, 1.0));
-      for (let b: i32 = 0; b < count; b++) {
-        const e = cmul(cmul(v128.load(pLane + (<usize>(c0 + b) << 4)), por, poi), par, pai);
-        const x = v128.load(s + (<usize>b << 4));
-        const er = v128.shuffle<f64>(e, e, 0, 0);
-        const ei = f64x2.mul(v128.shuffle<f64>(e, e, 1, 1), f64x2(-1.0, 1.0));
-        v128.store(d + (<usize>b << 4), cmul(x, er, ei));
-      }
-    }
-    transformBufToMemory(buf2, n, pitch, count, twI, true, p, pointStride, 16, 1.0 / <f64>n);
-  }
-  return f64x2.extract_lane(sum, 0) + f64x2.extract_lane(sum, 1);
+  return stridedPass(data, n0, n1, n2, axis, lo, hi, buf, buf2, twF, twI, rev, false, 1.0, DRIFT, pAxis, pOuter, pLane, kAxis, kOuter, kLane);
 }
 
 /**
@@ -373,30 +413,7 @@ export function poissonOuter(
   data: usize, n0: i32, n1: i32, n2: i32, axis: i32, lo: i32, hi: i32, buf: usize, buf2: usize,
   twF: usize, twI: usize, rev: usize, kAxis: usize, kOuter: usize, kLane: usize,
 ): void {
-  const n = axis == 1 ? n1 : n0;
-  const pointStride = (axis == 1 ? n2 : n1 * n2) << 4;
-  const outerStride = axis == 1 ? n1 * n2 : n2;
-  const blocks = (n2 + BLOCK - 1) / BLOCK;
-  for (let u = lo; u < hi; u++) {
-    const o = u / blocks;
-    const c0 = (u - o * blocks) * BLOCK;
-    const count = min(BLOCK, n2 - c0);
-    const pitch = count << 4;
-    const p = data + (<usize>(o * outerStride + c0) << 4);
-    transformToBuf(p, pointStride, 16, n, count, buf, pitch, rev, twF, false);
-    const ko = load<f64>(kOuter + (<usize>o << 3));
-    for (let j: i32 = 0; j < n; j++) {
-      const s = buf + <usize>(j * pitch);
-      const d = buf2 + <usize>(load<i32>(rev + (<usize>j << 2)) * pitch);
-      const kj = load<f64>(kAxis + (<usize>j << 3)) + ko;
-      for (let b: i32 = 0; b < count; b++) {
-        const kk = kj + load<f64>(kLane + (<usize>(c0 + b) << 3));
-        const g = kk > 0 ? -1.0 / kk : 0.0;
-        v128.store(d + (<usize>b << 4), f64x2.mul(v128.load(s + (<usize>b << 4)), f64x2.splat(g)));
-      }
-    }
-    transformBufToMemory(buf2, n, pitch, count, twI, true, p, pointStride, 16, 1.0 / <f64>n);
-  }
+  stridedPass(data, n0, n1, n2, axis, lo, hi, buf, buf2, twF, twI, rev, false, 1.0, POISSON, 0, 0, 0, kAxis, kOuter, kLane);
 }
 
 /**
