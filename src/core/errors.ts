@@ -10,7 +10,8 @@ export type ErrorCode =
   | "config" // a bad key or value in a config file or override
   | "input" // a bad file or argument
   | "numerics" // a run stopped by a guard rail (non-finite field, mass drift)
-  | "io"; // a file could not be read or written
+  | "io" // a file could not be read or written
+  | "thread"; // a worker thread of the step failed, exited or stopped answering
 
 /** Base error of psibox: a code, an exit status and a one-line message. */
 export class PsiboxError extends Error {
@@ -47,5 +48,13 @@ export class NumericsError extends PsiboxError {
   constructor(message: string) {
     super("numerics", message, 3);
     this.name = "NumericsError";
+  }
+}
+
+/** A worker thread of the step failed, exited or stopped answering. Exit code 1. */
+export class ThreadError extends PsiboxError {
+  constructor(message: string) {
+    super("thread", message.replace(/\s*\n\s*/g, " ").trim(), 1);
+    this.name = "ThreadError";
   }
 }

@@ -4,7 +4,8 @@
  * memory. Every cell and pencil is computed by the same code whatever the
  * thread count, so the field is bit for bit the one a single thread gives
  * (only sums, the mass and the kinetic sum, are added up in a
- * thread-dependent order). Isolated gravity's solve runs on the main thread.
+ * thread-dependent order). A worker that fails, exits or stops answering
+ * makes the step throw a ThreadError (exit code 1) with its reason.
  */
 import type { Grid } from "../grid/grid.js";
 import type { Background } from "../physics/cosmology/background.js";
@@ -12,17 +13,18 @@ import type { PoissonSolver } from "../fields/poisson.js";
 import type { FftChoice } from "./fft-backend.js";
 import { SplitStepper } from "./split-step.js";
 import type { StepTask } from "./step-task.js";
-import { ThreadPool } from "./thread-pool.js";
+import { ThreadPool, type ThreadPoolOptions } from "./thread-pool.js";
 
 /** A SplitStepper whose passes run on `threads` worker threads. */
 export class ThreadedStepper extends SplitStepper {
   readonly threads: number;
   private readonly pool: ThreadPool;
 
-  constructor(grid: Grid, background: Background, gravity: PoissonSolver, threads: number, fft: FftChoice = "auto") {
+  /** @param pool where the worker script is and how long the pool waits for its workers (defaults suit runs) */
+  constructor(grid: Grid, background: Background, gravity: PoissonSolver, threads: number, fft: FftChoice = "auto", pool: ThreadPoolOptions = {}) {
     super(grid, background, gravity, fft, threads);
     this.threads = threads;
-    this.pool = new ThreadPool(threads, this.memory.setup);
+    this.pool = new ThreadPool(threads, this.memory.setup, pool);
   }
 
   /** Passes run on the workers; after close() on this thread (so an owed kick can still be applied when ψ is read). */

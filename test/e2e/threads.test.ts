@@ -1,4 +1,5 @@
-// Worker threads end cleanly: after a normal run, after a run stopped by a guard rail, and on SIGINT.
+// Worker threads end cleanly: after a normal run, after a run stopped by a guard rail, and on SIGINT;
+// and a run whose worker threads cannot start stops with exit code 1 and a one-line reason.
 import { spawn, spawnSync } from "node:child_process";
 import fs from "node:fs";
 import os from "node:os";
@@ -42,5 +43,22 @@ describe("worker threads shut down", () => {
     expect(code).toBe(130);
     expect(Date.now() - sent).toBeLessThan(15_000);
     expect(stderr).toMatch(/interrupted \(SIGINT\).*psibox run --resume/);
+  });
+});
+
+describe("worker threads that cannot start", () => {
+  it("stop the run with exit code 1 and a one-line reason when the built worker script is missing", () => {
+    // a copy of the built program without its worker script, as after a partial build
+    const copy = path.join(work, "partial");
+    fs.mkdirSync(copy);
+    fs.cpSync(path.resolve("dist"), path.join(copy, "dist"), { recursive: true });
+    fs.copyFileSync(path.resolve("package.json"), path.join(copy, "package.json"));
+    fs.symlinkSync(path.resolve("node_modules"), path.join(copy, "node_modules"), "dir");
+    fs.rmSync(path.join(copy, "dist/integrators/step-worker.js"));
+    fs.writeFileSync(path.join(work, "partial.toml"), CONFIG("20 Myr"));
+    const r = spawnSync(process.execPath, [path.join(copy, "dist/cli/bin.js"), "run", "partial.toml", "-q"], { cwd: work, encoding: "utf8", timeout: 60_000 });
+    expect(r.status, r.stderr).toBe(1);
+    expect(r.stderr.trim().split("\n")).toHaveLength(1);
+    expect(r.stderr).toMatch(/^psibox: the worker thread script .*step-worker\.js is missing \(is psibox built\? run npm run build\)/);
   });
 });

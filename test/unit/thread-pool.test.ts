@@ -1,0 +1,97 @@
+// Worker threads that fail loudly: every failure of a worker reaches the main
+// thread as a ThreadError with its reason, within seconds, instead of a hang.
+import fs from "node:fs";
+import os from "node:os";
+import path from "node:path";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { ThreadError } from "../../src/core/errors.js";
+import { Grid } from "../../src/grid/grid.js";
+import { makePoissonSolver } from "../../src/fields/poisson.js";
+import { StaticBackground } from "../../src/physics/cosmology/background.js";
+import { allocateStepMemory } from "../../src/fields/step-memory.js";
+import { ThreadPool } from "../../src/integrators/thread-pool.js";
+import { ThreadedStepper } from "../../src/integrators/threaded-step.js";
+import type { StepTask } from "../../src/integrators/step-task.js";
+
+let work: string;
+beforeAll(() => {
+  work = fs.mkdtempSync(path.join(os.tmpdir(), "psibox-pool-"));
+});
+afterAll(() => fs.rmSync(work, { recursive: true, force: true }));
+
+const grid = new Grid([8, 8, 8], [1, 1, 1]);
+const kSquared = [0, 1, 2].map((ax) => grid.wavenumbers(ax as 0 | 1 | 2).map((k) => k * k));
+const setup = () => allocateStepMemory("wasm", grid.shape, kSquared, { kind: "none" }, 2).setup;
+const out = new Float64Array(4);
+// a pass along an axis the grid does not have: the engine throws. With one unit and two threads
+// the main thread's range is empty, so only the worker runs it.
+const BAD: StepTask = { op: "axis", field: "psi", axis: 5, inverse: false };
+const GOOD: StepTask = { op: "copy", toUndo: true };
+
+/** Milliseconds `f` takes to throw, and what it threw. */
+function timeThrow(f: () => unknown): { ms: number; error: unknown } {
+  const start = Date.now();
+  try {
+    f();
+  } catch (error) {
+    return { ms: Date.now() - start, error };
+  }
+  throw new Error("did not throw");
+}
+
+describe("a thread pool whose workers fail", () => {
+  it("refuses a missing worker script at once, naming the file (also through ThreadedStepper)", () => {
+    const missing = path.join(work, "no-such-worker.js");
+    const r = timeThrow(() => new ThreadPool(2, setup(), { script: missing }));
+    expect(r.error).toBeInstanceOf(ThreadError);
+    expect((r.error as ThreadError).exitCode).toBe(1);
+    expect((r.error as Error).message).toMatch(/worker thread script .*no-such-worker\.js is missing/);
+    const viaStepper = timeThrow(() => new ThreadedStepper(grid, new StaticBackground(), makePoissonSolver(grid, "periodic"), 2, "wasm", { script: missing }));
+    expect((viaStepper.error as Error).message).toMatch(/is missing/);
+  });
+
+  it("stops the constructor with the message of a script that throws while loading", () => {
+    const broken = path.join(work, "broken-worker.mjs");
+    fs.writeFileSync(broken, 'throw new Error("broken on purpose");\n');
+    const r = timeThrow(() => new ThreadPool(2, setup(), { script: broken, startSeconds: 20 }));
+    expect((r.error as Error).message).toBe("worker thread 1 did not start: broken on purpose");
+    expect(r.ms).toBeLessThan(15_000);
+  });
+
+  it("passes a worker's exception to the main thread, and keeps failing after it", () => {
+    const pool = new ThreadPool(2, setup());
+    try {
+      pool.run(2, GOOD, out);
+      const r = timeThrow(() => pool.run(1, BAD, out));
+      expect(r.error).toBeInstanceOf(ThreadError);
+      expect((r.error as Error).message).toMatch(/^worker thread 1 failed: \S/);
+      expect((r.error as Error).message).not.toMatch(/\n/);
+      expect(() => pool.run(2, GOOD, out)).toThrow(/worker thread 1 failed/);
+    } finally {
+      pool.close();
+    }
+  });
+
+  it("notices a worker that was terminated between passes", async () => {
+    const pool = new ThreadPool(2, setup());
+    try {
+      pool.run(2, GOOD, out);
+      await pool.workers[0]!.terminate();
+      expect(() => pool.run(2, GOOD, out)).toThrow(/^worker thread 1 exited during the run$/);
+    } finally {
+      pool.close();
+    }
+  });
+
+  it("stops waiting for a worker terminated just before a pass, after the answer time-out", () => {
+    const pool = new ThreadPool(2, setup(), { answerSeconds: 0.5 });
+    try {
+      void pool.workers[0]!.terminate();
+      const r = timeThrow(() => pool.run(2, GOOD, out));
+      expect((r.error as Error).message).toMatch(/^worker thread 1 (did not answer within 0.5 s|exited during the run)/);
+      expect(r.ms).toBeLessThan(10_000);
+    } finally {
+      pool.close();
+    }
+  });
+});
