@@ -5,12 +5,15 @@ import { InputError } from "../core/errors.js";
 import { loadHdf5 } from "../io/h5.js";
 import { analyzeRun, analyzeSnapshot } from "../report/analyze.js";
 import { writeReport } from "../report/html.js";
+import { formatDuration } from "../core/format.js";
 
 export interface AnalyzeFlags {
   out?: string;
   frames: boolean;
   pictures: boolean;
 }
+
+const what = (flags: AnalyzeFlags): string => (flags.pictures ? "tables and pictures" : "tables (no pictures)");
 
 /** Analyse run folders and snapshot files; returns the exit code. */
 export async function analyzeCommand(paths: readonly string[], flags: AnalyzeFlags): Promise<number> {
@@ -22,11 +25,11 @@ export async function analyzeCommand(paths: readonly string[], flags: AnalyzeFla
       if (!fs.existsSync(path.join(p, "snapshots"))) throw new InputError(`${p}: not a psibox run folder (no snapshots/)`);
       const out = flags.out ?? path.join(p, "analysis");
       const r = await analyzeRun(p, out, { frames: flags.frames, pictures: flags.pictures });
-      process.stdout.write(`${p}: ${r.snapshots.length} snapshots analysed in ${((performance.now() - started) / 1000).toFixed(1)} s; tables and pictures in ${out}\n`);
+      process.stdout.write(`${p}: ${r.snapshots.length} snapshots analysed in ${formatDuration((performance.now() - started) / 1000)}; ${what(flags)} in ${out}\n`);
     } else {
       const out = flags.out ?? path.join(path.dirname(p), "..", "analysis", path.basename(p, ".h5"));
       await analyzeSnapshot(p, out, flags.pictures);
-      process.stdout.write(`${p}: analysed in ${((performance.now() - started) / 1000).toFixed(1)} s; tables and pictures in ${out}\n`);
+      process.stdout.write(`${p}: analysed in ${formatDuration((performance.now() - started) / 1000)}; ${what(flags)} in ${out}\n`);
     }
   }
   return 0;

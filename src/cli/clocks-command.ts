@@ -16,6 +16,7 @@ import { ClockAccumulator, formatDuration } from "../quantum/clocks.js";
 import { parseAs, unitInSI, UnitSyntaxError } from "../physics/units.js";
 import { PLANCK_AGE_S } from "../simulation/sidecar-report.js";
 import { formatClocks } from "./run-command.js";
+import { formatNumber, formatQuantity } from "../core/format.js";
 import type { ClockReport } from "../simulation/sidecar-report.js";
 import { PC_M } from "../physics/constants.js";
 
@@ -127,8 +128,12 @@ export async function clocksCommand(paths: readonly string[], flags: ClocksFlags
     process.stdout.write(JSON.stringify(summary, null, 2) + "\n");
     return 0;
   }
-  const table = rows.map((r) => `  ${String(r[0]).padEnd(16)} t = ${formatDuration(r[1] as number).padEnd(11)} N|χ| = ${(r[6] as number).toExponential(3)} /s   λ = ${(r[7] as number).toExponential(3)} /s   squeezing ${(r[11] as number).toFixed(2)} dB`);
-  process.stdout.write(`${files.length} snapshots, mode: ${flags.region}, N = ${a.particles.toPrecision(5)}\n${table.join("\n")}\n${formatClocks(clocks).replace("(whole-box mode)", `(${flags.region} mode, from snapshots)`)}`);
+  const table = rows.map(
+    (r) =>
+      `  ${String(r[0]).padEnd(16)} t − t₀ = ${formatDuration((r[1] as number) - t0S).padEnd(11)} N|χ| = ${formatQuantity(r[6] as number, "/s").padEnd(17)} λ = ${formatQuantity(r[7] as number, "/s").padEnd(17)} squeezing ${formatQuantity(r[11] as number, "dB")}`,
+  );
+  const clockText = formatClocks(clocks, db).replace("(whole-box mode):", `(${flags.region} mode, from snapshots; times counted from the first snapshot, t₀):`);
+  process.stdout.write(`${files.length} snapshots, mode: ${flags.region}, N = ${formatNumber(a.particles, 5)}\n${table.join("\n")}\n${clockText}`);
   process.stdout.write(`wrote ${path.relative(process.cwd(), path.join(outDir, "snapshot-clocks.csv")) || "snapshot-clocks.csv"} and snapshot-clocks.json\n`);
   return 0;
 }

@@ -2,10 +2,10 @@
 import { loadHdf5 } from "../io/h5.js";
 import { readSnapshot } from "../io/snapshot.js";
 import { fieldStats, loadField } from "../simulation/from-snapshot.js";
+import { formatNumber, tidyDeep } from "../core/format.js";
 
-function fmt(x: number): string {
-  return Number.isInteger(x) ? String(x) : x.toPrecision(6);
-}
+/** Four significant digits: enough to tell snapshots apart, short enough to read. */
+const fmt = (x: number): string => formatNumber(x, 4);
 
 /** Inspect a snapshot; returns the exit code. */
 export async function inspectCommand(file: string, json: boolean): Promise<number> {
@@ -15,7 +15,7 @@ export async function inspectCommand(file: string, json: boolean): Promise<numbe
   const m = snap.meta;
   if (json) {
     const { config, ...rest } = m;
-    process.stdout.write(JSON.stringify({ file, ...rest, config_toml: config, stats }, null, 2) + "\n");
+    process.stdout.write(JSON.stringify(tidyDeep({ file, ...rest, config_toml: config, stats }), null, 2) + "\n");
     return 0;
   }
   const bg =
@@ -33,10 +33,10 @@ export async function inspectCommand(file: string, json: boolean): Promise<numbe
     ["gravity", m.gravity],
     ["background", bg],
     ["mass", `${fmt(stats.massMsun)} Msun`],
-    ["density min / mean / max", `${fmt(stats.minDensityMsunKpc3)} / ${fmt(stats.meanDensityMsunKpc3)} / ${fmt(stats.maxDensityMsunKpc3)} Msun/kpc^3`],
-    ["kinetic energy K", `${fmt(stats.kineticMsunKm2S2)} Msun (km/s)^2`],
-    ["potential energy W", `${fmt(stats.potentialMsunKm2S2)} Msun (km/s)^2`],
-    ["total energy K + W", `${fmt(stats.totalMsunKm2S2)} Msun (km/s)^2`],
+    ["density min / mean / max", `${fmt(stats.minDensityMsunKpc3)} / ${fmt(stats.meanDensityMsunKpc3)} / ${fmt(stats.maxDensityMsunKpc3)} Msun/kpc³`],
+    ["kinetic energy K", `${fmt(stats.kineticMsunKm2S2)} Msun (km/s)²`],
+    ["potential energy W", `${fmt(stats.potentialMsunKm2S2)} Msun (km/s)²`],
+    ["total energy K + W", `${fmt(stats.totalMsunKm2S2)} Msun (km/s)²`],
     ["virial ratio 2K/|W|", fmt(stats.virialRatio)],
     ["config sha256", m.configSha256.slice(0, 16) + "…"],
   ];

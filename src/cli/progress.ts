@@ -4,6 +4,13 @@
  * clean for data.
  */
 import type { RunReporter } from "../simulation/run.js";
+import { formatDuration } from "../core/format.js";
+
+/** The time left, from the time spent on the fraction done so far (shown once 2% and 2 s are behind). */
+export function remaining(fraction: number, elapsedS: number): string {
+  if (fraction < 0.02 || fraction >= 1 || elapsedS < 2) return "";
+  return `, about ${formatDuration((elapsedS * (1 - fraction)) / fraction)} left`;
+}
 
 /** A reporter that draws progress on a stream. */
 export class TextReporter implements RunReporter {
@@ -12,6 +19,7 @@ export class TextReporter implements RunReporter {
   private title = "";
   private lastDecile = -1;
   private drawn = false;
+  private started = performance.now();
 
   constructor(stream: NodeJS.WriteStream = process.stderr) {
     this.stream = stream;
@@ -21,16 +29,18 @@ export class TextReporter implements RunReporter {
   phase(text: string): void {
     this.title = text;
     this.lastDecile = -1;
+    this.started = performance.now();
     if (!this.tty) this.stream.write(`${text}\n`);
   }
 
   progress(fraction: number, status: string): void {
     const f = Math.min(1, Math.max(0, fraction));
+    const eta = remaining(f, (performance.now() - this.started) / 1000);
     if (this.tty) {
       const width = 24;
       const full = Math.round(f * width);
       const bar = "#".repeat(full) + "-".repeat(width - full);
-      const line = `${this.title} [${bar}] ${(100 * f).toFixed(0).padStart(3)}% ${status}`;
+      const line = `${this.title} [${bar}] ${(100 * f).toFixed(0).padStart(3)}% ${status}${eta}`;
       const cols = this.stream.columns ?? 100;
       this.stream.write(`\r${line.slice(0, cols - 1).padEnd(cols - 1)}`);
       this.drawn = true;
@@ -39,7 +49,7 @@ export class TextReporter implements RunReporter {
     const decile = Math.floor(f * 10);
     if (decile > this.lastDecile) {
       this.lastDecile = decile;
-      this.stream.write(`  ${(100 * f).toFixed(0).padStart(3)}% ${status}\n`);
+      this.stream.write(`  ${(100 * f).toFixed(0).padStart(3)}% ${status}${eta}\n`);
     }
   }
 

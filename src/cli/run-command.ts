@@ -1,4 +1,5 @@
 /** `psibox run CONFIG` and `psibox run --resume DIR`. */
+import { formatNumber } from "../core/format.js";
 import fs from "node:fs";
 import path from "node:path";
 import { InputError } from "../core/errors.js";
@@ -84,7 +85,7 @@ export async function runCommand(configFile: string | undefined, flags: RunFlags
     }
     if (summary.status === "completed") {
       process.stdout.write(`completed ${summary.steps} steps in ${summary.wall_time_s.toFixed(1)} s; outputs in ${where}\n`);
-      if (summary.clocks) process.stdout.write(formatClocks(summary.clocks));
+      if (summary.clocks) process.stdout.write(formatClocks(summary.clocks, run.sidecar.squeezingDb));
       return 0;
     }
     const hint = interrupted ? `; continue with: psibox run --resume ${where}` : "";
@@ -95,20 +96,22 @@ export async function runCommand(configFile: string | undefined, flags: RunFlags
   }
 }
 
-const CLOCK_TITLES: Record<ClockReport["name"], string> = {
-  "squeezing-onset": "squeezing onset (N|X| = 1)",
-  "squeezing-level": "squeezing level",
-  "phase-diffusion": "phase diffusion (1/e)",
-  "classical-breakdown": "classical breakdown",
-};
+const clockTitle = (name: ClockReport["name"], squeezingDb: number): string =>
+  ({
+    "squeezing-onset": "squeezing onset (N|X| = 1)",
+    "squeezing-level": `squeezing to ${formatNumber(squeezingDb)} dB`,
+    "phase-diffusion": "phase diffusion (1/e)",
+    "classical-breakdown": "classical breakdown",
+  })[name];
 
 /** One line per clock: when it rang (or will), and how that compares with the run and the universe. */
-export function formatClocks(clocks: readonly ClockReport[]): string {
-  const width = Math.max(...Object.values(CLOCK_TITLES).map((t) => t.length));
-  const lines = clocks.map((c) => {
+export function formatClocks(clocks: readonly ClockReport[], squeezingDb = -10): string {
+  const titles = clocks.map((c) => clockTitle(c.name, squeezingDb));
+  const width = Math.max(...titles.map((t) => t.length));
+  const lines = clocks.map((c, i) => {
     const when = c.time_s === null ? "never" : `${c.reached ? "at" : "projected at"} ${c.time}`;
-    const ratios = c.ratio_to_span === null ? "" : ` (${c.ratio_to_span.toPrecision(3)} × the run, ${c.ratio_to_age_of_universe!.toPrecision(3)} × the age of the universe)`;
-    return `  ${CLOCK_TITLES[c.name].padEnd(width)}  ${when}${ratios}`;
+    const ratios = c.ratio_to_span === null ? "" : ` (${formatNumber(c.ratio_to_span)} × the run, ${formatNumber(c.ratio_to_age_of_universe!)} × the age of the universe)`;
+    return `  ${titles[i]!.padEnd(width)}  ${when}${ratios}`;
   });
   return `quantum sidecar clocks (whole-box mode):\n${lines.join("\n")}\n`;
 }

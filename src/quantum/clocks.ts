@@ -13,6 +13,7 @@
  *   Berman & Zaslavsky 1978), with λ = √(4πG ρ_eff).
  * A clock that has not rung by the end is projected with the last rate.
  */
+import { formatNumber } from "../core/format.js";
 import { kerrState, xForPhaseDiffusion, xForSqueezing, type KerrState } from "./kerr.js";
 
 /** The a-free coefficients at one instant (code units). */
@@ -142,7 +143,8 @@ const YEAR = 365.25 * 86400;
 /** A duration in seconds as readable text: ns … Gyr, then years in powers of ten. */
 export function formatDuration(seconds: number): string {
   const s = Math.abs(seconds);
-  const fmt = (v: number, unit: string) => `${v.toPrecision(3)} ${unit}`;
+  const fmt = (v: number, unit: string) => `${formatNumber(v)} ${unit}`;
+  if (s === 0) return "0 s";
   if (s < 1e-6) return fmt(seconds * 1e9, "ns");
   if (s < 1e-3) return fmt(seconds * 1e6, "µs");
   if (s < 1) return fmt(seconds * 1e3, "ms");
@@ -151,5 +153,5 @@ export function formatDuration(seconds: number): string {
   if (s < 1e6 * YEAR) return fmt(seconds / (1e3 * YEAR), "kyr");
   if (s < 1e9 * YEAR) return fmt(seconds / (1e6 * YEAR), "Myr");
   if (s < 1e12 * YEAR) return fmt(seconds / (1e9 * YEAR), "Gyr");
-  return `${(seconds / YEAR).toExponential(2)} yr`;
+  return fmt(seconds / YEAR, "yr");
 }

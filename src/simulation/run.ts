@@ -4,6 +4,7 @@
  * run folder (see outputs.ts and the README's output layout). The CLI and
  * the tests call this same function; progress goes to a reporter.
  */
+import { formatNumber } from "../core/format.js";
 import fs from "node:fs";
 import path from "node:path";
 import { Grid } from "../grid/grid.js";
@@ -251,8 +252,8 @@ async function evolveRun(run: ResolvedRun, options: RunOptions, parts: RunParts)
     if (now - lastReport > 200 || atEnd) {
       lastReport = now;
       const a = background.scaleFactor(s.time);
-      const where = expanding ? `z = ${(1 / a - 1).toFixed(3)}` : `t = ${scales.time(s.time).toPrecision(4)} ${u}`;
-      reporter.progress(progressOf(s.time), `step ${info.step}, ${where}, dt = ${scales.time(info.dt).toPrecision(3)} ${u} (${info.limiter})`);
+      const where = expanding ? `z = ${formatNumber(1 / a - 1, 4)}` : `t = ${formatNumber(scales.time(s.time), 4)} ${u}`;
+      reporter.progress(progressOf(s.time), `step ${info.step}, ${where}, dt = ${formatNumber(scales.time(info.dt))} ${u} (${info.limiter})`);
     }
   };
   const result = await evolveAsync(
