@@ -32,3 +32,21 @@ export function initTemplate(name: string, dir: string, force: boolean): string 
   fs.copyFileSync(path.join(templateDir(), `${name}.toml`), target);
   return target;
 }
+
+export interface InitFlags {
+  list: boolean;
+  force: boolean;
+}
+
+/** `psibox init`: list the templates, or write one; returns the exit code (2 when no template is named). */
+export async function initCommand(template: string | undefined, dir: string, flags: InitFlags): Promise<number> {
+  if (flags.list || template === undefined) {
+    const list = listTemplates();
+    const width = Math.max(...list.map((t) => t.name.length));
+    process.stdout.write(list.map((t) => `${t.name.padEnd(width)}  ${t.description}`).join("\n") + "\n");
+    return flags.list ? 0 : 2;
+  }
+  const file = initTemplate(template, dir, flags.force);
+  process.stdout.write(`wrote ${file}; run it with: psibox run ${file}\n`);
+  return 0;
+}

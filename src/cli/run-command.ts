@@ -17,9 +17,10 @@ export interface RunFlags {
   quiet: boolean;
   resume?: string;
   threads?: string;
-  /** Only write the initial conditions (psibox ic). */
-  initialOnly?: boolean;
 }
+
+/** The flags of `psibox ic` (the same command, writing the initial conditions only). */
+export type IcFlags = Pick<RunFlags, "set" | "force" | "quiet">;
 
 function resumeTarget(dir: string): ResolvedRun {
   const p = runPaths(path.resolve(dir));
@@ -30,7 +31,7 @@ function resumeTarget(dir: string): ResolvedRun {
 }
 
 /** Run or resume; returns the exit code. */
-export async function runCommand(configFile: string | undefined, flags: RunFlags): Promise<number> {
+export async function runCommand(configFile: string | undefined, flags: RunFlags & { readonly initialOnly?: boolean }): Promise<number> {
   if (flags.threads !== undefined) {
     const t = Number(flags.threads);
     if (!(Number.isInteger(t) && t >= 1 && t <= 64)) throw new InputError(`--threads: must be a whole number from 1 to 64, got ${flags.threads}`);
