@@ -14,10 +14,10 @@ import { loadField } from "../simulation/from-snapshot.js";
 import { modeCoefficients, type ModeRegion } from "../quantum/mode.js";
 import { ClockAccumulator, formatDuration } from "../quantum/clocks.js";
 import { parseAs, unitInSI, UnitSyntaxError } from "../physics/units.js";
-import { PLANCK_AGE_S } from "../simulation/sidecar-report.js";
+import { PLANCK_AGE_S } from "../quantum/sidecar-report.js";
 import { formatClocks } from "./run-command.js";
 import { formatNumber, formatQuantity } from "../core/format.js";
-import type { ClockReport } from "../simulation/sidecar-report.js";
+import type { ClockReport } from "../quantum/sidecar-report.js";
 import { PC_M } from "../physics/constants.js";
 
 export interface ClocksFlags {

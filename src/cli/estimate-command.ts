@@ -3,7 +3,7 @@ import { InputError } from "../core/errors.js";
 import { parseAs, UnitSyntaxError, type QuantityKind } from "../physics/units.js";
 import { estimateClocks } from "../quantum/estimate.js";
 import { formatDuration } from "../quantum/clocks.js";
-import { PLANCK_AGE_S } from "../simulation/sidecar-report.js";
+import { PLANCK_AGE_S } from "../quantum/sidecar-report.js";
 import { C_M_PER_S } from "../physics/constants.js";
 
 export interface EstimateFlags {

@@ -5,11 +5,12 @@ import path from "node:path";
 import { InputError } from "../core/errors.js";
 import { checkConfig, loadConfig, readTomlFile } from "../config/load.js";
 import { resolveRun, type ResolvedRun } from "../config/resolve.js";
-import { prepareOutputDir, runSimulation, silentReporter } from "../simulation/run.js";
+import { prepareOutputDir, silentReporter } from "../simulation/run.js";
+import { runSimulation } from "../app/run.js";
 import { runPaths } from "../simulation/outputs.js";
 import { TextReporter } from "./progress.js";
 import { describeRun } from "./describe.js";
-import type { ClockReport } from "../simulation/sidecar-report.js";
+import type { ClockReport } from "../quantum/sidecar-report.js";
 
 export interface RunFlags {
   set: string[];
@@ -86,7 +87,8 @@ export async function runCommand(configFile: string | undefined, flags: RunFlags
     }
     if (summary.status === "completed") {
       process.stdout.write(`completed ${summary.steps} steps in ${summary.wall_time_s.toFixed(1)} s; outputs in ${where}\n`);
-      if (summary.clocks) process.stdout.write(formatClocks(summary.clocks, run.sidecar.squeezingDb));
+      const clocks = summary["clocks"] as readonly ClockReport[] | undefined;
+      if (clocks) process.stdout.write(formatClocks(clocks, run.sidecar.squeezingDb));
       return 0;
     }
     const hint = interrupted ? `; continue with: psibox run --resume ${where}` : "";

@@ -14,8 +14,11 @@
  *                     |ψ|² the comoving mass density; attributes units ("(Msun/kpc^3)^(1/2)"),
  *                     components ("re,im"); dimensions labelled x, y, z (as many as the grid), part
  *   /state            checkpoints only: psi_code, phi_code (float64, code units, bit-exact state),
- *                     attributes time_code, mass_code, mass0_code, steps, wall_time_s, snapshots_written,
- *                     sidecar (the clocks' running state as JSON, when the run has them)
+ *                     attributes time_code, mass_code, mass0_code, steps, wall_time_s, snapshots_written
+ *   /state/plugins    checkpoints of runs with plug-ins that keep state: one attribute per plug-in, named
+ *                     by it, holding JSON text {"version": n, "state": …} (the quantum sidecar's is "sidecar";
+ *                     checkpoints written before plug-ins held the sidecar's state, unversioned, in an
+ *                     attribute "sidecar" of /state, which is read as version 1)
  */
 import { InputError } from "../core/errors.js";
 import { Dataset, Group, hdf5Reason, openHdf5, writeHdf5Atomic, type H5File } from "./h5.js";
@@ -59,8 +62,8 @@ export interface CheckpointState {
   readonly steps: number;
   readonly wallTimeS: number;
   readonly snapshotsWritten: number;
-  /** The sidecar's running state (JSON text), when the run has one. */
-  readonly sidecar?: string;
+  /** Each run plug-in's saved state by plug-in name: JSON text {"version": n, "state": …}. */
+  readonly plugins?: Readonly<Record<string, string>>;
 }
 
 /** A snapshot in memory. `psi` is interleaved (re, im) in √(Msun/kpc³). */
@@ -162,7 +165,10 @@ export function writeSnapshot(file: string, snap: Snapshot, precision: "float64"
       intAttr(g, "steps", st.steps);
       numberAttr(g, "wall_time_s", st.wallTimeS);
       intAttr(g, "snapshots_written", st.snapshotsWritten);
-      if (st.sidecar !== undefined) g.create_attribute("sidecar", st.sidecar);
+      if (st.plugins && Object.keys(st.plugins).length) {
+        const states = g.create_group("plugins");
+        for (const [name, text] of Object.entries(st.plugins)) states.create_attribute(name, text);
+      }
     }
   });
 }
@@ -260,7 +266,7 @@ export function readSnapshot(file: string, withState = false): Snapshot {
         steps: numberOf(g, "steps", file),
         wallTimeS: numberOf(g, "wall_time_s", file),
         snapshotsWritten: numberOf(g, "snapshots_written", file),
-        ...(g.attrs["sidecar"] ? { sidecar: stringOf(g, "sidecar", file) } : {}),
+        ...pluginStates(f, g, file),
       };
     }
     return state ? { meta, psi, state } : { meta, psi };
@@ -270,4 +276,13 @@ export function readSnapshot(file: string, withState = false): Snapshot {
   } finally {
     f.close();
   }
+}
+
+/** The plug-in states of a checkpoint's /state group (see the layout above). */
+function pluginStates(f: H5File, g: Group, file: string): { plugins?: Record<string, string> } {
+  const plugins: Record<string, string> = {};
+  const group = f.get("state/plugins");
+  if (group instanceof Group) for (const name of Object.keys(group.attrs)) plugins[name] = stringOf(group, name, file);
+  else if (g.attrs["sidecar"]) plugins["sidecar"] = `{"version":1,"state":${stringOf(g, "sidecar", file)}}`;
+  return Object.keys(plugins).length ? { plugins } : {};
 }

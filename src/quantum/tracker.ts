@@ -1,64 +1,65 @@
 /**
- * The sidecar as a run callback: after every solver step it measures the
+ * The sidecar's clocks along a run: after every solver step it takes the
  * whole-box mode's a-free rates (ωa² from the kinetic energy measured in the
  * drift, at the step's middle; χa from the potential energy; λ from the
  * mass-weighted density) and advances the clocks with the step's own
- * factors D = ∫dt/a² and K = ∫dt/a.
+ * factors D = ∫dt/a² and K = ∫dt/a. It works from sums over the grid alone,
+ * so it knows nothing of the integrator.
  */
-import type { SplitStepper } from "../integrators/split-step.js";
 import { ClockAccumulator, type ClockRates } from "./clocks.js";
 
-/** Whole-box rates of the current field, with ½∫|∇ψ|² given as `kineticTilde`. */
-function ratesOf(stepper: SplitStepper, particleMass: number, kineticTilde: number): { rates: ClockRates; mass: number } {
-  // sums over the grid in the step's own (threaded) pass; only |ψ|² enters, so an owed kick does not matter
-  const { rho: mass, rho2, rhoPhi: wTilde } = stepper.moments();
-  const dv = stepper.grid.cellVolume;
-  const a = stepper.background.scaleFactor(stepper.time);
-  const M = mass * dv;
+/** Grid sums of a field (code units, without the cell volume): Σ|ψ|², Σ|ψ|⁴, Σ|ψ|²φ. */
+export interface ModeSums {
+  readonly rho: number;
+  readonly rho2: number;
+  readonly rhoPhi: number;
+}
+
+/** Whole-box rates from the field's sums, with ½∫|∇ψ|² dV given as `kineticTilde`. */
+function ratesOf(sums: ModeSums, cellVolume: number, a: number, particleMass: number, kineticTilde: number): { rates: ClockRates; mass: number } {
+  const M = sums.rho * cellVolume;
   return {
     mass: M,
     rates: {
       omegaTilde: kineticTilde / M,
-      chiTilde: (2 * (0.5 * wTilde * dv) * particleMass) / (M * M),
-      lambda: Math.sqrt(rho2 / mass / (a * a * a)),
+      chiTilde: (2 * (0.5 * sums.rhoPhi * cellVolume) * particleMass) / (M * M),
+      lambda: Math.sqrt(sums.rho2 / sums.rho / (a * a * a)),
     },
   };
 }
 
-/** Runs the clocks alongside a stepper. */
+/** Runs the clocks alongside a run. */
 export class SidecarTracker {
   readonly clocks: ClockAccumulator;
   private readonly particleMass: number;
+  private readonly cellVolume: number;
   rates: ClockRates;
 
   /**
-   * Start at the stepper's current state (turns on its kinetic tracking).
+   * Start at the current field: its sums, its ½∫|∇ψ|² dV and the scale factor a.
    * @param particles N, fixed for the run (the run's initial mass over m)
    */
-  constructor(stepper: SplitStepper, particleMass: number, particles: number, squeezingDb: number, startTime: number) {
+  constructor(particleMass: number, particles: number, squeezingDb: number, startTime: number, cellVolume: number, start: { sums: ModeSums; kineticTilde: number; a: number }) {
     this.particleMass = particleMass;
-    stepper.trackKinetic = true;
-    this.rates = ratesOf(stepper, particleMass, stepper.kineticTilde()).rates;
+    this.cellVolume = cellVolume;
+    this.rates = ratesOf(start.sums, cellVolume, start.a, particleMass, start.kineticTilde).rates;
     this.clocks = new ClockAccumulator(particles, squeezingDb, startTime, this.rates);
   }
 
-  /** After a step: measure and advance. */
-  afterStep(stepper: SplitStepper): void {
-    const mid = stepper.midKineticTilde;
-    const { rates, mass } = ratesOf(stepper, this.particleMass, mid);
-    const midOmega = mid / mass;
+  /** After a step to time t (scale factor a) with factors D and K: measure and advance. */
+  afterStep(step: { t: number; a: number; drift: number; kick: number; sums: ModeSums; midKineticTilde: number }): void {
+    const { rates, mass } = ratesOf(step.sums, this.cellVolume, step.a, this.particleMass, step.midKineticTilde);
     this.rates = rates;
-    this.clocks.advance(stepper.time, stepper.lastDrift, stepper.lastKick, rates, midOmega);
+    this.clocks.advance(step.t, step.drift, step.kick, rates, step.midKineticTilde / mass);
   }
 
   /** JSON-safe state for a checkpoint. */
-  save(): string {
-    return JSON.stringify({ rates: this.rates, clocks: this.clocks.save() });
+  save(): { rates: ClockRates; clocks: string } {
+    return { rates: this.rates, clocks: this.clocks.save() };
   }
 
   /** Restore a saved state. */
-  restore(text: string): void {
-    const saved = JSON.parse(text) as { rates: ClockRates; clocks: string };
+  restore(saved: { rates: ClockRates; clocks: string }): void {
     this.rates = saved.rates;
     this.clocks.restore(saved.clocks);
   }

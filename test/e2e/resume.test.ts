@@ -1,4 +1,5 @@
-// Checkpoint and resume: a run killed with SIGKILL and resumed ends bit for bit where an uninterrupted run ends.
+// Checkpoint and resume: a run killed with SIGKILL and resumed ends bit for bit where an uninterrupted run ends,
+// with the quantum sidecar on (its state travels in the checkpoint).
 import { spawn, spawnSync } from "node:child_process";
 import fs from "node:fs";
 import os from "node:os";
@@ -67,8 +68,12 @@ describe("resume", () => {
     expect(b.meta.time).toBeCloseTo(250, 10);
     expect(Buffer.from(b.psi.buffer).equals(Buffer.from(a.psi.buffer))).toBe(true);
     expect(fs.readFileSync(path.join(work, "cut/timeseries.csv"), "utf8")).toBe(fs.readFileSync(path.join(work, "full/timeseries.csv"), "utf8"));
+    // the quantum sidecar (on by default) is a plug-in with state in the checkpoint: its clocks resume bit for bit too
+    expect(fs.readFileSync(path.join(work, "cut/clocks.json"), "utf8")).toBe(fs.readFileSync(path.join(work, "full/clocks.json"), "utf8"));
     const summary = JSON.parse(fs.readFileSync(summaryBefore, "utf8"));
     expect(summary.status).toBe("completed");
+    expect(summary.clocks).toEqual(JSON.parse(fs.readFileSync(path.join(work, "full/summary.json"), "utf8")).clocks);
+    expect(summary.clocks).toHaveLength(4);
     expect(summary.resumed_from_step).toBeGreaterThan(0);
     // snapshots land exactly on the requested times
     const times = [0, 1, 2, 3, 4, 5].map((i) => readSnapshot(path.join(work, `cut/snapshots/snap_0000${i}.h5`)).meta.time);

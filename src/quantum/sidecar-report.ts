@@ -3,8 +3,8 @@
  * clocks' verdicts (clocks.json), with each time compared to the run's span
  * and to the age of the universe.
  */
-import type { SidecarTracker } from "../quantum/tracker.js";
-import { formatDuration, type ClockResult } from "../quantum/clocks.js";
+import type { SidecarTracker } from "./tracker.js";
+import { formatDuration, type ClockResult } from "./clocks.js";
 import type { Background } from "../physics/cosmology/background.js";
 import { YEAR_S } from "../physics/constants.js";
 

@@ -1,0 +1,22 @@
+/**
+ * The application layer: a run assembled with its plug-ins. The plug-ins a
+ * config asks for (the quantum sidecar, `[sidecar] enabled`) come first, then
+ * the caller's own, in the order given. The CLI and the public API call this.
+ */
+import type { ResolvedRun } from "../config/resolve.js";
+import { simulate, type RunOptions, type RunSummary } from "../simulation/run.js";
+import type { RunPlugin } from "../simulation/plugin.js";
+import { sidecarPlugin } from "../quantum/sidecar-plugin.js";
+
+/** The built-in plug-ins a resolved config turns on. */
+export function configuredPlugins(run: ResolvedRun): RunPlugin[] {
+  return run.sidecar.enabled ? [sidecarPlugin(run.sidecar.squeezingDb)] : [];
+}
+
+/**
+ * Run a resolved config (the output folder must exist: see prepareOutputDir)
+ * with the config's plug-ins and then `options.plugins`, the caller's own.
+ */
+export async function runSimulation(run: ResolvedRun, options: RunOptions = {}): Promise<RunSummary> {
+  return simulate(run, { ...options, plugins: [...configuredPlugins(run), ...(options.plugins ?? [])] });
+}

@@ -1,0 +1,97 @@
+/**
+ * The run's plug-ins as one object the run loop calls: checks their names and
+ * columns, hands each its hooks in order, gathers the measured sums they
+ * declared, merges their parts of summary.json, and keeps their versioned
+ * states for checkpoints (JSON text per plug-in: {"version": n, "state": …}).
+ */
+import { InputError } from "../core/errors.js";
+import type { MeasuredSum, OutputFacts, RunContext, RunPlugin, StartFacts, StepFacts, StopFacts } from "./plugin.js";
+
+const NAME = /^[A-Za-z][A-Za-z0-9_-]*$/;
+
+/** The plug-ins of one run. */
+export class PluginSet {
+  readonly plugins: readonly RunPlugin[];
+  /** Every plug-in column, in order. */
+  readonly columns: readonly string[];
+
+  constructor(plugins: readonly RunPlugin[]) {
+    const names = new Set<string>();
+    for (const p of plugins) {
+      if (!NAME.test(p.name)) throw new InputError(`plug-in "${p.name}": a name is a letter followed by letters, digits, "-" or "_"`);
+      if (names.has(p.name)) throw new InputError(`plug-in "${p.name}" is given twice; each plug-in of a run needs its own name`);
+      const version = p.stateVersion;
+      if ((p.save || version !== undefined) && !(version !== undefined && Number.isInteger(version) && version >= 0)) {
+        throw new InputError(`plug-in "${p.name}": a plug-in that saves state needs a stateVersion, a whole number ≥ 0 (got ${version})`);
+      }
+      if (Boolean(p.save) !== Boolean(p.restore)) throw new InputError(`plug-in "${p.name}": give both save() and restore(), or neither`);
+      names.add(p.name);
+    }
+    this.plugins = plugins;
+    this.columns = plugins.flatMap((p) => p.columns ?? []);
+  }
+
+  /** Whether any plug-in asked for a sum. */
+  measures(sum: MeasuredSum): boolean {
+    return this.plugins.some((p) => p.measures?.includes(sum));
+  }
+
+  start(context: RunContext, facts: StartFacts): void {
+    for (const p of this.plugins) p.start?.(context, facts);
+  }
+
+  afterStep(facts: StepFacts): void {
+    for (const p of this.plugins) p.afterStep?.(facts);
+  }
+
+  /** The plug-ins' values for a time-series row. */
+  row(facts: Omit<OutputFacts, "kind" | "file">): (number | string)[] {
+    return this.plugins.flatMap((p) => {
+      const expected = p.columns?.length ?? 0;
+      const values = p.output?.({ kind: "row", ...facts }) ?? [];
+      if (values.length !== expected) {
+        throw new InputError(`plug-in "${p.name}": output() gave ${values.length} values for its ${expected} time-series columns`);
+      }
+      return [...values];
+    });
+  }
+
+  snapshot(facts: Omit<OutputFacts, "kind">): void {
+    for (const p of this.plugins) p.output?.({ kind: "snapshot", ...facts });
+  }
+
+  /** Stop every plug-in; their parts of summary.json, refusing keys the run itself writes (`taken`). */
+  stop(facts: StopFacts, taken: readonly string[]): Record<string, unknown> {
+    const parts: Record<string, unknown> = {};
+    for (const p of this.plugins) {
+      for (const [key, value] of Object.entries(p.stop?.(facts) ?? {})) {
+        if (taken.includes(key) || key in parts) throw new InputError(`plug-in "${p.name}": summary.json already has a key "${key}"`);
+        parts[key] = value;
+      }
+    }
+    return parts;
+  }
+
+  /** Each plug-in's state as JSON text, for a checkpoint. */
+  save(): Record<string, string> {
+    const out: Record<string, string> = {};
+    for (const p of this.plugins) if (p.save) out[p.name] = JSON.stringify({ version: p.stateVersion, state: p.save() });
+    return out;
+  }
+
+  /** Restore every plug-in that saves state from a checkpoint's states (`file` names the checkpoint in errors). */
+  restore(saved: Readonly<Record<string, string>>, file: string): void {
+    for (const p of this.plugins) {
+      if (!p.save) continue;
+      const text = saved[p.name];
+      if (text === undefined) {
+        throw new InputError(`${file}: has no state for the plug-in "${p.name}" (it was not on when the run started); resume without it or start the run afresh`);
+      }
+      const { version, state } = JSON.parse(text) as { version: number; state: unknown };
+      if (version !== p.stateVersion) {
+        throw new InputError(`${file}: the plug-in "${p.name}" saved state version ${version}, this one reads version ${p.stateVersion}; start the run afresh`);
+      }
+      p.restore?.(state);
+    }
+  }
+}

@@ -1,0 +1,115 @@
+/**
+ * Run plug-ins: objects the run loop calls at the start of a run, after
+ * every accepted step, at every output and at the stop, without the loop
+ * knowing what they compute. A plug-in sees neutral facts (step, t, Δt, a,
+ * the step's drift and kick factors) and the measured sums it declared in
+ * `measures`; it never touches the stepper. It declares its own time-series
+ * columns, returns its part of summary.json, and saves and restores its own
+ * versioned state in checkpoints, so that a resumed run with the plug-in on
+ * is bit for bit an uninterrupted one. The quantum sidecar is one
+ * (quantum/sidecar-plugin.ts); a researcher's own per-step quantity is
+ * another (see the README).
+ */
+import type { Grid } from "../grid/grid.js";
+import type { Background } from "../physics/cosmology/background.js";
+import type { FieldMoments } from "../integrators/split-step.js";
+import type { OutputScales } from "./scales.js";
+
+/**
+ * Sums a plug-in can ask the run loop to measure on the step's own passes:
+ * "kinetic" is ½∫|∇ψ|² dV (the a-free kinetic energy K·a², code units), of
+ * the current field at the start and measured inside each step's drift, at
+ * the step's middle, afterwards; "moments" are Σ|ψ|², Σ|ψ|⁴, Σ|ψ|²φ (without
+ * the cell volume) and max |ψ|² of the field after the step.
+ */
+export type MeasuredSum = "kinetic" | "moments";
+
+/** The sums a plug-in asked for (the others are absent). */
+export interface MeasuredSums {
+  readonly kinetic?: number;
+  readonly moments?: FieldMoments;
+}
+
+/** What a plug-in knows about the run it joins. All values in code units unless `scales` converts them. */
+export interface RunContext {
+  readonly grid: Grid;
+  readonly background: Background;
+  /** Code → physical units of the outputs. */
+  readonly scales: OutputScales;
+  /** The run's particle mass in code mass units. */
+  readonly particleMass: number;
+  readonly startTime: number;
+  readonly endTime: number;
+  /** The run folder (a plug-in may write its own files there, atomically). */
+  readonly outputDir: string;
+}
+
+/** The state at the start of the run (or at the step a resumed run continues from). */
+export interface StartFacts {
+  readonly step: number;
+  readonly t: number;
+  readonly a: number;
+  /** Mass at the very start of the run (code units; the same after a resume). */
+  readonly mass0: number;
+  /** The run continues from a checkpoint (restore() was called before start()). */
+  readonly resumed: boolean;
+  readonly sums: MeasuredSums;
+}
+
+/** Facts of one accepted step, neutral with respect to the integrator. */
+export interface StepFacts {
+  /** Steps taken so far (1 after the first). */
+  readonly step: number;
+  /** Time after the step. */
+  readonly t: number;
+  readonly dt: number;
+  /** Scale factor after the step. */
+  readonly a: number;
+  /** The step's drift factor D = ∫dt/a². */
+  readonly drift: number;
+  /** The step's kick factor K = ∫dt/a. */
+  readonly kick: number;
+  readonly sums: MeasuredSums;
+}
+
+/** An output moment: a time-series row, or a snapshot file just written. */
+export interface OutputFacts {
+  readonly kind: "row" | "snapshot";
+  readonly step: number;
+  readonly t: number;
+  readonly a: number;
+  /** The snapshot file (kind "snapshot"). */
+  readonly file?: string;
+}
+
+/** How the run ended. */
+export interface StopFacts {
+  readonly status: "completed" | "stopped";
+  readonly steps: number;
+  readonly t: number;
+  readonly a: number;
+}
+
+/** A plug-in of the run loop: a name and the hooks it needs. */
+export interface RunPlugin {
+  /** Unique among a run's plug-ins: letters, digits, "-" and "_"; names its checkpoint state. */
+  readonly name: string;
+  /** Version of the state save() returns (required with save); a checkpoint with another version is refused. */
+  readonly stateVersion?: number;
+  /** Sums it needs (see MeasuredSum). */
+  readonly measures?: readonly MeasuredSum[];
+  /** Its time-series columns (names with units), after the run's own. */
+  readonly columns?: readonly string[];
+  /** Called once, before the first step (after restore() on resume). */
+  start?(context: RunContext, facts: StartFacts): void;
+  /** Called after every accepted step, before any output of that step. */
+  afterStep?(facts: StepFacts): void;
+  /** Called at every output; for a row, returns the values of its columns (one per column). */
+  output?(facts: OutputFacts): readonly (number | string)[] | void;
+  /** Called once at the end; returns its part of summary.json (top-level keys), if any. */
+  stop?(facts: StopFacts): Readonly<Record<string, unknown>> | void;
+  /** Its state as JSON-safe data, for a checkpoint. */
+  save?(): unknown;
+  /** Restore what save() returned (of the same stateVersion). */
+  restore?(state: unknown): void;
+}

@@ -1,0 +1,135 @@
+/**
+ * The parts of one run that every phase of it shares (grid, background,
+ * gravity, stepper, writer, plug-ins), and the run's start: the initial
+ * field built in place, or the checkpoint it resumes from.
+ */
+import fs from "node:fs";
+import { Grid } from "../grid/grid.js";
+import { makePoissonSolver, type PoissonSolver } from "../fields/poisson.js";
+import { makeBackground, type Background } from "../physics/cosmology/background.js";
+import { SplitStepper } from "../integrators/split-step.js";
+import { ThreadedStepper } from "../integrators/threaded-step.js";
+import { buildInitialField } from "../initial-conditions/build.js";
+import { cleanStaleTemporaries, writeFileAtomic } from "../io/atomic.js";
+import { readSnapshot, type CheckpointState } from "../io/snapshot.js";
+import type { ResolvedRun } from "../config/resolve.js";
+import { resolvedConfigToml, sha256 } from "../config/serialize.js";
+import { OutputScales } from "./scales.js";
+import { RunWriter, runPaths } from "./outputs.js";
+import { PluginSet } from "./plugin-set.js";
+import type { RunContext, RunPlugin } from "./plugin.js";
+
+/** Where a run reports what it is doing. */
+export interface RunReporter {
+  /** A new phase of work begins ("relaxing the ground state", "evolving"). */
+  phase(text: string): void;
+  /** Progress within the phase, fraction in [0, 1], with a short status text. */
+  progress(fraction: number, status: string): void;
+  /** The phase ended. */
+  endPhase(): void;
+  /** Something the user should know, that does not stop the run. */
+  warn(text: string): void;
+}
+
+/** A reporter that says nothing. */
+export const silentReporter: RunReporter = { phase() {}, progress() {}, endPhase() {}, warn() {} };
+
+/** Options of a run. */
+export interface RunOptions {
+  readonly reporter?: RunReporter;
+  /** Checked before every step; return a reason to stop (e.g. "interrupted (SIGINT)"). */
+  readonly stopRequested?: () => string | undefined;
+  /** Continue from the run folder's checkpoint instead of starting afresh. */
+  readonly resume?: boolean;
+  /** Folder that relative paths in the written config are taken from. @default process.cwd() */
+  readonly cwd?: string;
+  /** Write the initial state (snapshot 0, and the spectrum table of a cosmological field) and stop. */
+  readonly initialOnly?: boolean;
+  /** Plug-ins of the run loop (see plugin.ts), called in this order. */
+  readonly plugins?: readonly RunPlugin[];
+}
+
+/** Everything a run's phases share. */
+export interface RunSession {
+  readonly run: ResolvedRun;
+  readonly options: RunOptions;
+  readonly reporter: RunReporter;
+  readonly scales: OutputScales;
+  readonly grid: Grid;
+  readonly background: Background;
+  readonly gravity: PoissonSolver;
+  readonly expanding: boolean;
+  readonly paths: ReturnType<typeof runPaths>;
+  readonly writer: RunWriter;
+  readonly stepper: SplitStepper;
+  readonly plugins: PluginSet;
+  readonly context: RunContext;
+  /** performance.now() when this process started the run. */
+  readonly wallStart: number;
+}
+
+/** Build a run's parts and write (or, on resume, read) its config.toml. Close `stepper` when done. */
+export function openSession(run: ResolvedRun, options: RunOptions): RunSession {
+  const wallStart = performance.now();
+  const plugins = new PluginSet(options.plugins ?? []);
+  const scales = new OutputScales(run);
+  const grid = new Grid(run.grid.cells, run.grid.lengths);
+  const background = makeBackground(run.background);
+  const gravity = makePoissonSolver(grid, run.grid.gravity, run.grid.poisson);
+  const paths = runPaths(run.outputDir);
+  cleanStaleTemporaries(run.outputDir);
+  cleanStaleTemporaries(paths.snapshots);
+  const configText = options.resume ? fs.readFileSync(paths.config, "utf8") : resolvedConfigToml(run, options.cwd ?? process.cwd());
+  if (!options.resume) writeFileAtomic(paths.config, configText);
+  const writer = new RunWriter(run, scales, configText, sha256(configText));
+  const { threads, fft } = run.integrator;
+  const stepper = threads > 1 ? new ThreadedStepper(grid, background, gravity, threads, fft) : new SplitStepper(grid, background, gravity, fft);
+  const { startTime, endTime } = run.span;
+  const context: RunContext = { grid, background, scales, particleMass: run.particleMassKg / scales.units.massKg, startTime, endTime, outputDir: run.outputDir };
+  const reporter = options.reporter ?? silentReporter;
+  const expanding = background.kind !== "static";
+  return { run, options, reporter, scales, grid, background, gravity, expanding, paths, writer, stepper, plugins, context, wallStart };
+}
+
+/** Where the run starts: a checkpoint's counters, or a fresh start's relaxation and warnings. */
+export interface RunStart {
+  readonly resumed?: CheckpointState;
+  readonly relaxation?: { readonly iterations: number; readonly converged: boolean };
+  readonly warnings: string[];
+  readonly mass0: number;
+  readonly steps: number;
+  readonly snapshotsWritten: number;
+  readonly wallBefore: number;
+}
+
+/** Load the stepper with the initial field, or with the checkpoint's exact state on resume. */
+export function startRun(session: RunSession): RunStart {
+  const { run, stepper, writer, scales, paths } = session;
+  if (session.options.resume) {
+    const resumed = readSnapshot(paths.checkpoint, true).state as CheckpointState;
+    stepper.restoreState(resumed.psiCode, resumed.phiCode, resumed.timeCode, resumed.massCode);
+    writer.log(`resumed from the checkpoint at step ${resumed.steps}, t = ${scales.formatTime(resumed.timeCode)}`);
+    session.plugins.restore(resumed.plugins ?? {}, paths.checkpoint);
+    const { mass0Code: mass0, steps, snapshotsWritten, wallTimeS: wallBefore } = resumed;
+    return { resumed, warnings: [], mass0, steps, snapshotsWritten, wallBefore };
+  }
+  writer.log(`started ${run.name}: ${run.grid.cells.join("×")} cells, ${run.initial.kind}`);
+  const reporter = session.reporter;
+  if (run.initial.kind === "ground-state") reporter.phase("relaxing the ground state");
+  const progress = (info: { iteration: number }) => reporter.progress(Math.min(1, info.iteration / 400), `iteration ${info.iteration}`);
+  const initial = buildInitialField(run.initial, session.grid, session.background, run.span.startTime, session.gravity, progress, stepper.rawPsi);
+  let relaxation: RunStart["relaxation"];
+  if (initial.relaxation) {
+    reporter.endPhase();
+    relaxation = { iterations: initial.relaxation.iterations, converged: initial.relaxation.converged };
+    writer.log(`ground state relaxed in ${relaxation.iterations} iterations (converged: ${relaxation.converged})`);
+  }
+  const warnings = [...(initial.warnings ?? [])];
+  for (const w of warnings) {
+    reporter.warn(w);
+    writer.log(`warning: ${w}`);
+  }
+  if (initial.powerTable) writeFileAtomic(paths.power, initial.powerTable);
+  stepper.setState(initial.psi, run.span.startTime);
+  return { ...(relaxation ? { relaxation } : {}), warnings, mass0: stepper.mass, steps: 0, snapshotsWritten: 0, wallBefore: 0 };
+}
