@@ -9,6 +9,7 @@
  */
 import FFT from "fft.js";
 import type { Triple } from "../grid/grid.js";
+import { BLOCK } from "./wasm/layout.js";
 
 /** How many independent units a pass along `axis` splits into (rows for the last axis, outer slabs otherwise). */
 export function outerCount(shape: Triple, axis: number): number {
@@ -17,9 +18,8 @@ export function outerCount(shape: Triple, axis: number): number {
   return axis === 2 ? n0 * n1 : (axis === 1 ? n0 : n1) * blocks;
 }
 
-/** Pencils transformed together along a strided axis (cache blocking); also the wasm kernels' block. */
-export const PENCIL_BLOCK = 16;
-const BLOCK = PENCIL_BLOCK;
+/** Pencils transformed together along a strided axis (cache blocking): the wasm kernels' block, so both backends count the same units. */
+export const PENCIL_BLOCK = BLOCK;
 
 /** One fft.js plan with pencil buffers for a block of pencils. */
 export class Plan1D {

@@ -59,14 +59,14 @@ export function gradientNormRows(psi: Float64Array, shape: Triple, kk0: Float64A
   return sum;
 }
 
-/** φ ← |ψ|² over rows [lo, hi); returns Σ|ψ|² over them. */
-export function densityRows(psi: Float64Array, phi: Float64Array, n2: number, lo: number, hi: number): number {
+/** φ ← |ψ|² (or φ += |ψ|² with `add`) over rows [lo, hi); returns Σ|ψ|² over them. */
+export function densityRows(psi: Float64Array, phi: Float64Array, add: boolean, n2: number, lo: number, hi: number): number {
   let sum = 0;
   for (let i = lo * n2; i < hi * n2; i++) {
     const re = psi[2 * i] as number;
     const im = psi[2 * i + 1] as number;
     const rho = re * re + im * im;
-    phi[i] = rho;
+    phi[i] = add ? (phi[i] as number) + rho : rho;
     sum += rho;
   }
   return sum;

@@ -5,6 +5,7 @@
  */
 import fs from "node:fs";
 import { fileURLToPath } from "node:url";
+import { BLOCK, CONSTANTS_ADDRESS, RESERVED_BYTES, TWIDDLE_STRIDE } from "./wasm/layout.js";
 
 /** The kernels' exports; addresses are byte offsets into the shared memory. */
 export interface WasmKernelExports {
@@ -13,6 +14,11 @@ export interface WasmKernelExports {
     phi: number, kickFactor: number, density: number,
   ): number;
   initConstants(): void;
+  /** The shared numbers of wasm/layout.ts as the module was built with them, and the constants table's size. */
+  readonly LAYOUT_BLOCK: { readonly value: number };
+  readonly LAYOUT_CONSTANTS_ADDRESS: { readonly value: number };
+  readonly LAYOUT_RESERVED_BYTES: { readonly value: number };
+  readonly LAYOUT_TWIDDLE_STRIDE: { readonly value: number };
   readonly CONSTANTS_BYTES: { readonly value: number };
   axisPass(data: number, n0: number, n1: number, n2: number, axis: number, lo: number, hi: number, buf: number, tw: number, rev: number, inverse: number, scale: number): void;
   driftOuter(
@@ -30,11 +36,11 @@ export interface WasmKernelExports {
   phaseTable(kk: number, factor: number, out: number, count: number): void;
 }
 
-/** Bytes at the start of the memory reserved for the kernels' constants table (address 64 on). */
-export const WASM_RESERVED_BYTES = 512;
+/** Bytes at the start of the memory reserved for the kernels' constants table. */
+export const WASM_RESERVED_BYTES = RESERVED_BYTES;
 
-/** Pencils a kernel pass holds in its scratch block at once (BLOCK in the kernel source). */
-export const WASM_BLOCK = 16;
+/** Pencils a kernel pass holds in its scratch block at once. */
+export const WASM_BLOCK = BLOCK;
 
 /** Where the compiled module is: next to this file when built, in dist/ when running from the sources (tests). */
 function modulePath(): string {
@@ -45,7 +51,11 @@ function modulePath(): string {
 
 let compiled: WebAssembly.Module | null | undefined;
 
-/** The compiled module, or null when it is missing or this runtime lacks SIMD or shared memory. */
+/**
+ * The compiled module, or null when it is missing or this runtime lacks SIMD
+ * or shared memory. A module whose shared numbers differ from wasm/layout.ts
+ * (a stale build) is an error.
+ */
 export function kernelModule(): WebAssembly.Module | null {
   if (compiled === undefined) {
     try {
@@ -53,8 +63,27 @@ export function kernelModule(): WebAssembly.Module | null {
     } catch {
       compiled = null;
     }
+    if (compiled) checkLayout(compiled);
   }
   return compiled;
+}
+
+/** Compare the module's exported layout numbers with this side's. */
+function checkLayout(module: WebAssembly.Module): void {
+  const k = instantiateKernels(module, new WebAssembly.Memory({ initial: 1, maximum: 1, shared: true }));
+  const expected: [string, number, number][] = [
+    ["BLOCK", k.LAYOUT_BLOCK?.value, BLOCK],
+    ["CONSTANTS_ADDRESS", k.LAYOUT_CONSTANTS_ADDRESS?.value, CONSTANTS_ADDRESS],
+    ["RESERVED_BYTES", k.LAYOUT_RESERVED_BYTES?.value, RESERVED_BYTES],
+    ["TWIDDLE_STRIDE", k.LAYOUT_TWIDDLE_STRIDE?.value, TWIDDLE_STRIDE],
+  ];
+  for (const [name, got, want] of expected) {
+    if (got !== want) {
+      compiled = null;
+      throw new Error(`the WebAssembly kernels were built with ${name} = ${got}, this psibox uses ${want}: rebuild them (npm run build)`);
+    }
+  }
+  if (CONSTANTS_ADDRESS + k.CONSTANTS_BYTES.value > RESERVED_BYTES) throw new Error("the WebAssembly kernels' constants table does not fit the reserved bytes");
 }
 
 /** Instantiate the kernels on a shared memory. */
@@ -63,11 +92,11 @@ export function instantiateKernels(module: WebAssembly.Module, memory: WebAssemb
   return instance.exports as unknown as WasmKernelExports;
 }
 
-/** Bytes of the twiddle table of an n-point transform (six v128 per butterfly index per radix-4 stage). */
+/** Bytes of the twiddle table of an n-point transform (TWIDDLE_STRIDE per butterfly index per radix-4 stage). */
 export function twiddleBytes(n: number): number {
   let count = 0;
   for (let h = Math.log2(n) % 2 === 1 ? 2 : 1; h < n; h *= 4) count += h;
-  return 96 * count;
+  return TWIDDLE_STRIDE * count;
 }
 
 /** Fill the twiddle table of an n-point transform (forward: e^{−2πi/4h}; inverse: e^{+2πi/4h}). */
@@ -78,6 +107,7 @@ export function fillTwiddles(out: Float64Array, n: number, inverse: boolean): vo
     for (let k = 0; k < h; k++) {
       for (let m = 1; m <= 3; m++) {
         const angle = (sign * 2 * Math.PI * m * k) / (4 * h);
+        // TWIDDLE_STRIDE bytes: (wr, wr), (−wi, wi) per power
         const wr = Math.cos(angle);
         const wi = Math.sin(angle);
         out[p++] = wr;

@@ -25,9 +25,11 @@ import type { Grid } from "../grid/grid.js";
 import type { Background } from "../physics/cosmology/background.js";
 import { IsolatedPoisson, PeriodicPoisson, type PoissonSolver } from "../fields/poisson.js";
 import { ComplexFft } from "../fields/fft.js";
-import { createEngine, outerCount, type StepEngine } from "../fields/step-engine.js";
-import { allocateStepMemory, type FftBackend, type GravityLayout, type StepMemory } from "../fields/step-memory.js";
+import { createEngine, type StepEngine } from "../fields/step-engine.js";
+import { stepGeometry, type FftBackend, type GravityKind } from "../fields/step-memory.js";
+import { allocateStepMemory, type StepMemory, type TableInputs } from "../fields/step-allocate.js";
 import { resolveFftBackend, type FftChoice } from "./fft-backend.js";
+import { StepPlan, type PlannedPass } from "./step-plan.js";
 import { RESULT_LENGTH, runTask, type StepTask } from "./step-task.js";
 
 /** Sums over the grid of |ψ|² = ρ and φ, without the cell volume. */
@@ -58,8 +60,9 @@ export class SplitStepper {
   lastKick = 0;
   /** The FFT implementation the step runs on. */
   readonly backend: FftBackend;
+  /** The passes of this grid's step. */
+  protected readonly plan: StepPlan;
   protected readonly memory: StepMemory;
-  protected readonly phase: readonly [Float64Array, Float64Array, Float64Array];
   private engineOnThisThread: StepEngine | undefined;
   private complexFft: ComplexFft | undefined;
   /** The closing kick's factor K₂ not yet applied to the stored ψ. */
@@ -70,6 +73,8 @@ export class SplitStepper {
   private phaseFactor = Number.NaN;
   /** A pass's result vector. */
   private readonly results = new Float64Array(RESULT_LENGTH);
+  /** The summed results of the last pass list, by meaning. */
+  private readonly sums = { kinetic: 0, mass: 0 };
   /** Time and owed kick of the state in the undo copy (undefined: none kept). */
   private undoState: { time: number; owedKick: number } | undefined;
 
@@ -81,27 +86,28 @@ export class SplitStepper {
     this.grid = grid;
     this.background = background;
     this.gravity = gravity;
-    const layout: GravityLayout =
-      gravity instanceof PeriodicPoisson
-        ? { kind: "periodic", kSquared: gravity.kSquared }
-        : gravity instanceof IsolatedPoisson
-          ? { kind: "isolated", padded: gravity.paddedShape, hat: gravity.kernelHat }
-          : { kind: "none" };
-    const kSquared = [0, 1, 2].map((ax) => grid.wavenumbers(ax as 0 | 1 | 2).map((k) => k * k));
-    let backend = resolveFftBackend(fft, grid.shape, layout.kind, slots);
+    const kind: GravityKind = gravity instanceof PeriodicPoisson ? "periodic" : gravity instanceof IsolatedPoisson ? "isolated" : "none";
+    const geometry = stepGeometry(grid.shape, kind, gravity instanceof IsolatedPoisson ? [...gravity.paddedShape] : undefined);
+    this.plan = new StepPlan(geometry);
+    const transforms = this.plan.transforms();
+    const tables: TableInputs = {
+      kSquared: [0, 1, 2].map((ax) => grid.wavenumbers(ax as 0 | 1 | 2).map((k) => k * k)),
+      kPoisson: gravity instanceof PeriodicPoisson ? gravity.kSquared : undefined,
+      isolatedHat: gravity instanceof IsolatedPoisson ? gravity.kernelHat : undefined,
+    };
+    let backend = resolveFftBackend(fft, this.plan, slots);
     let memory: StepMemory;
     try {
-      memory = allocateStepMemory(backend, grid.shape, kSquared, layout, slots);
+      memory = allocateStepMemory(backend, geometry, transforms, tables, slots);
     } catch (e) {
       // "auto" falls back to fft.js when the runtime refuses one memory of this size
       if (fft !== "auto" || backend !== "wasm" || !(e instanceof RangeError)) throw e;
       backend = "js";
-      memory = allocateStepMemory(backend, grid.shape, kSquared, layout, slots);
+      memory = allocateStepMemory(backend, geometry, transforms, tables, slots);
     }
     this.backend = backend;
     this.memory = memory;
     this.phi = this.memory.phi;
-    this.phase = this.memory.phase;
   }
 
   /** ψ, interleaved complex, √(mass density) in code units (applies an owed kick first). */
@@ -145,8 +151,14 @@ export class SplitStepper {
     return this.results[0]!;
   }
 
-  private get rows(): number {
-    return this.grid.shape[0] * this.grid.shape[1];
+  /** Run a list of passes in order; their kept results are summed into `sums` by meaning. */
+  private runPasses(passes: readonly PlannedPass[]): void {
+    this.sums.kinetic = 0;
+    this.sums.mass = 0;
+    for (const p of passes) {
+      const r = this.runPass(p.units, p.task);
+      if (p.result) this.sums[p.result] += r;
+    }
   }
 
   /** Release resources (worker threads in subclasses). */
@@ -184,50 +196,20 @@ export class SplitStepper {
   /** Recompute φ and the mass from ψ. */
   updatePotential(): void {
     this.momentsCache = undefined;
-    this.mass = this.runPass(this.rows, { op: "density" }) * this.grid.cellVolume;
+    this.mass = this.runPass(this.plan.rows, { op: "density", field: "psi", target: "phi", add: false }) * this.grid.cellVolume;
     this.solvePotential();
   }
 
   /** φ from the density φ holds. */
   private solvePotential(): void {
-    const setup = this.memory.setup;
-    if (setup.spectrum) {
-      const [n0, n1, n2] = this.grid.shape;
-      this.runPass(n0 * n1, { op: "real-rows", target: "periodic" });
-      const half = [n0, n1, n2 / 2 + 1] as const;
-      const outer = n0 > 1 ? 0 : n1 > 1 ? 1 : -1;
-      const middle = outer === 0 && n1 > 1;
-      if (middle) this.runPass(outerCount(half, 1), { op: "half-axis", target: "periodic", axis: 1, inverse: false });
-      if (outer >= 0) this.runPass(outerCount(half, outer), { op: "poisson-outer", axis: outer });
-      else this.runPass(n0 * n1, { op: "poisson" });
-      if (middle) this.runPass(outerCount(half, 1), { op: "half-axis", target: "periodic", axis: 1, inverse: true });
-      this.runPass(n0 * n1, { op: "real-rows-inverse", target: "periodic" });
-    } else if (setup.isolated) {
-      // free-space convolution on the zero-padded grid (as IsolatedPoisson.solveInPlace), transforming
-      // only what is not zero on the way in and only what is kept on the way out
-      const [n0, n1] = this.grid.shape;
-      const [p0, p1, p2] = setup.isolated.shape;
-      const half = [p0, p1, p2 / 2 + 1] as const;
-      this.runPass(n0 * n1, { op: "isolated-rows" });
-      this.runPass(p0 * p1, { op: "isolated-zero" });
-      // along axis 1, pencils with a ≥ n0 (the units from n0 · blocks on) are zero in and unused out
-      const middle = outerCount([n0, p1, half[2]], 1);
-      if (p1 > 1 && p0 > 1) this.runPass(middle, { op: "half-axis", target: "isolated", axis: 1, inverse: false });
-      const outer = p0 > 1 ? 0 : p1 > 1 ? 1 : -1;
-      if (outer >= 0) this.runPass(outerCount(half, outer), { op: "half-axis", target: "isolated", axis: outer, inverse: false });
-      this.runPass(p0 * p1, { op: "convolve" });
-      if (outer >= 0) this.runPass(outerCount(half, outer), { op: "half-axis", target: "isolated", axis: outer, inverse: true });
-      if (p1 > 1 && p0 > 1) this.runPass(middle, { op: "half-axis", target: "isolated", axis: 1, inverse: true });
-      this.runPass(n0 * n1, { op: "isolated-rows-inverse" });
-    } else {
-      this.gravity.solveInPlace(this.phi);
-    }
+    if (this.gravity.kind === "none") this.gravity.solveInPlace(this.phi);
+    else this.runPasses(this.plan.potential("phi"));
   }
 
   /** ψ ← e^{−iφK} ψ. */
   kick(factor: number): void {
     if (factor === 0 || this.gravity.kind === "none") return;
-    this.runPass(this.rows, { op: "kick", factor });
+    this.runPass(this.plan.rows, { op: "kick", field: "psi", potential: "phi", factor });
   }
 
   /**
@@ -247,24 +229,11 @@ export class SplitStepper {
    * Returns Σ|ψ|² when `density`.
    */
   private driftPasses(factor: number, kick: number, density: boolean): number {
-    const shape = this.grid.shape;
     this.fillPhaseTables(factor);
-    const outer = shape[0] > 1 ? 0 : shape[1] > 1 ? 1 : -1;
-    // the last axis has at least 4 cells, so it always comes first
-    const middle = outer === 0 && shape[1] > 1;
-    this.runPass(this.rows, { op: "rows", field: "psi", inverse: false, kick, density: false });
-    if (middle) this.runPass(outerCount(shape, 1), { op: "axis", field: "psi", axis: 1, inverse: false });
-    let sum: number;
-    if (outer >= 0) {
-      sum = this.runPass(outerCount(shape, outer), { op: "drift-outer", axis: outer, gradient: this.trackKinetic });
-    } else {
-      sum = this.trackKinetic ? this.runPass(this.rows, { op: "gradient", field: "psi" }) : 0;
-      this.runPass(this.rows, { op: "drift" });
-    }
+    this.runPasses(this.plan.drift("psi", 0, { kick, potential: "phi", density, gradient: this.trackKinetic }));
     // Parseval: ½∫|∇ψ|² dV = ½ Σ_k k²|ψ_k|² ΔV/N
-    this.midKineticTilde = this.trackKinetic ? (0.5 * sum * this.grid.cellVolume) / this.grid.size : Number.NaN;
-    if (middle) this.runPass(outerCount(shape, 1), { op: "axis", field: "psi", axis: 1, inverse: true });
-    return this.runPass(this.rows, { op: "rows", field: "psi", inverse: true, kick: 0, density });
+    this.midKineticTilde = this.trackKinetic ? (0.5 * this.sums.kinetic * this.grid.cellVolume) / this.grid.size : Number.NaN;
+    return this.sums.mass;
   }
 
   /** cos and sin of −k²D/2 per axis (the drift's phase factors). */
@@ -273,7 +242,7 @@ export class SplitStepper {
     if (factor === this.phaseFactor) return;
     this.phaseFactor = factor;
     this.engineOnThisThread ??= createEngine(this.memory.setup, 0);
-    this.engineOnThisThread.fillPhases(factor);
+    this.engineOnThisThread.fillPhases(0, factor);
   }
 
   /** Advance by Δt (code time) with one kick–drift–kick step (the closing kick stays owed, see above). */
@@ -298,7 +267,7 @@ export class SplitStepper {
 
   /** Keep a copy of the current state (in the undo buffer) for undo(). */
   saveUndo(): void {
-    this.runPass(this.rows, { op: "copy", toUndo: true });
+    this.runPass(this.plan.rows, this.plan.copy("psi", "undo").task);
     this.undoState = { time: this.time, owedKick: this.owedKick };
   }
 
@@ -306,7 +275,7 @@ export class SplitStepper {
   undo(): boolean {
     const kept = this.undoState;
     if (!kept) return false;
-    this.runPass(this.rows, { op: "copy", toUndo: false });
+    this.runPass(this.plan.rows, this.plan.copy("undo", "psi").task);
     this.owedKick = kept.owedKick;
     this.time = kept.time;
     this.updatePotential();
@@ -320,18 +289,14 @@ export class SplitStepper {
   kineticTilde(): number {
     this.synchronize();
     this.undoState = undefined;
-    const shape = this.grid.shape;
-    this.runPass(this.rows, { op: "copy", toUndo: true });
-    this.runPass(this.rows, { op: "rows", field: "undo", inverse: false, kick: 0, density: false });
-    for (const axis of [1, 0]) if (shape[axis]! > 1) this.runPass(outerCount(shape, axis), { op: "axis", field: "undo", axis, inverse: false });
-    const sum = this.runPass(this.rows, { op: "gradient", field: "undo" });
-    return (0.5 * sum * this.grid.cellVolume) / this.grid.size;
+    this.runPasses(this.plan.kinetic("psi", "undo"));
+    return (0.5 * this.sums.kinetic * this.grid.cellVolume) / this.grid.size;
   }
 
   /** Sums over the grid of the current field: Σ|ψ|², Σ|ψ|⁴, Σ|ψ|²φ (no ΔV) and max |ψ|². */
   moments(): FieldMoments {
     if (!this.momentsCache) {
-      this.runPass(this.rows, { op: "moments" });
+      this.runPass(this.plan.rows, { op: "moments" });
       const r = this.results;
       this.momentsCache = { rho: r[0]!, rho2: r[1]!, rhoPhi: r[2]!, maxRho: r[3]! };
     }

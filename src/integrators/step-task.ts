@@ -1,22 +1,35 @@
 /**
  * One pass of the split-step as plain data, so that the main thread or a
- * worker thread runs it on its own engine over a range of units.
+ * worker thread runs it on its own engine over a range of units; and what
+ * transform each pass needs, from which the step's twiddle tables and
+ * scratch blocks follow (integrators/step-plan.ts).
  */
-import type { ComplexField, PoissonTarget, StepEngine } from "../fields/step-engine.js";
+import type { ComplexGrid, PoissonTarget, RealGrid, StepEngine } from "../fields/step-engine.js";
+import type { StepGeometry, Transform } from "../fields/step-memory.js";
 
 /** One pass of the step, without its unit range. */
 export type StepTask =
-  | { readonly op: "kick"; readonly factor: number }
-  | { readonly op: "axis"; readonly field: ComplexField; readonly axis: number; readonly inverse: boolean }
-  | { readonly op: "gradient"; readonly field: ComplexField }
-  | { readonly op: "copy"; readonly toUndo: boolean }
+  | { readonly op: "kick"; readonly field: ComplexGrid; readonly potential: RealGrid; readonly factor: number }
+  | { readonly op: "axis"; readonly field: ComplexGrid; readonly axis: number; readonly inverse: boolean }
+  | { readonly op: "gradient"; readonly field: ComplexGrid }
+  | { readonly op: "copy"; readonly from: ComplexGrid; readonly to: ComplexGrid }
   | { readonly op: "half-axis"; readonly target: PoissonTarget; readonly axis: number; readonly inverse: boolean }
-  | { readonly op: "real-rows" | "real-rows-inverse"; readonly target: PoissonTarget }
-  | { readonly op: "rows"; readonly field: ComplexField; readonly inverse: boolean; readonly kick: number; readonly density: boolean }
-  | { readonly op: "drift-outer"; readonly axis: number; readonly gradient: boolean }
+  | { readonly op: "real-rows" | "real-rows-inverse"; readonly target: PoissonTarget; readonly real: RealGrid }
+  | {
+      readonly op: "rows";
+      readonly field: ComplexGrid;
+      readonly inverse: boolean;
+      readonly kick: number;
+      readonly potential: RealGrid;
+      readonly density: boolean;
+    }
+  | { readonly op: "drift"; readonly field: ComplexGrid; readonly phases: number }
+  | { readonly op: "drift-outer"; readonly field: ComplexGrid; readonly phases: number; readonly axis: number; readonly gradient: boolean }
+  | { readonly op: "density"; readonly field: ComplexGrid; readonly target: RealGrid; readonly add: boolean }
+  | { readonly op: "isolated-rows" | "isolated-rows-inverse"; readonly real: RealGrid }
   | { readonly op: "poisson-outer"; readonly axis: number }
   | { readonly op: "moments" }
-  | { readonly op: "drift" | "density" | "poisson" | "isolated-rows" | "isolated-zero" | "isolated-rows-inverse" | "convolve" };
+  | { readonly op: "poisson" | "isolated-zero" | "convolve" };
 
 /** Length of a task's result vector: sums in entries 0–2, a maximum in entry 3. */
 export const RESULT_LENGTH = 4;
@@ -40,45 +53,45 @@ export function runTask(engine: StepEngine, t: StepTask, lo: number, hi: number,
 function runScalar(engine: StepEngine, t: Exclude<StepTask, { op: "moments" }>, lo: number, hi: number): number {
   switch (t.op) {
     case "kick":
-      engine.kick(t.factor, lo, hi);
+      engine.kick(t.field, t.potential, t.factor, lo, hi);
       return 0;
     case "axis":
       engine.axis(t.field, t.axis, t.inverse, lo, hi);
       return 0;
     case "copy":
-      engine.copy(t.toUndo, lo, hi);
+      engine.copy(t.from, t.to, lo, hi);
       return 0;
     case "rows":
-      return engine.rows(t.field, t.inverse, t.kick, t.density, lo, hi);
+      return engine.rows(t.field, t.inverse, t.kick, t.potential, t.density, lo, hi);
     case "half-axis":
       engine.halfAxis(t.target, t.axis, t.inverse, lo, hi);
       return 0;
     case "drift-outer":
-      return engine.driftOuter(t.axis, lo, hi, t.gradient);
+      return engine.driftOuter(t.field, t.phases, t.axis, lo, hi, t.gradient);
     case "poisson-outer":
       engine.poissonOuter(t.axis, lo, hi);
       return 0;
     case "drift":
-      engine.drift(lo, hi);
+      engine.drift(t.field, t.phases, lo, hi);
       return 0;
     case "gradient":
       return engine.gradient(t.field, lo, hi);
     case "density":
-      return engine.density(lo, hi);
+      return engine.density(t.field, t.target, t.add, lo, hi);
     case "real-rows":
-      engine.realRows(t.target, lo, hi);
+      engine.realRows(t.target, t.real, lo, hi);
       return 0;
     case "real-rows-inverse":
-      engine.realRowsInverse(t.target, lo, hi);
+      engine.realRowsInverse(t.target, t.real, lo, hi);
       return 0;
     case "isolated-rows":
-      engine.isolatedRows(lo, hi);
+      engine.isolatedRows(t.real, lo, hi);
       return 0;
     case "isolated-zero":
       engine.isolatedZero(lo, hi);
       return 0;
     case "isolated-rows-inverse":
-      engine.isolatedRowsInverse(lo, hi);
+      engine.isolatedRowsInverse(t.real, lo, hi);
       return 0;
     case "convolve":
       engine.convolve(lo, hi);
@@ -87,4 +100,56 @@ function runScalar(engine: StepEngine, t: Exclude<StepTask, { op: "moments" }>, 
       engine.poisson(lo, hi);
       return 0;
   }
+}
+
+/** Cells of a shape. */
+function cells(shape: readonly number[]): number {
+  return shape[0]! * shape[1]! * shape[2]!;
+}
+
+/** A complex transform along `axis` of a grid of `shape` (its pencils are the grid's cells over n). */
+function along(shape: readonly number[], axis: number, realRow = 0): Transform {
+  const n = shape[axis]!;
+  return { n, pencils: cells(shape) / n, realRow };
+}
+
+/**
+ * The transform a task runs, if any: its complex length, its number of
+ * pencils, and for real-row transforms the real row length (whose
+ * untangling twiddles it also needs).
+ */
+export function transformOf(t: StepTask, g: StepGeometry): Transform | undefined {
+  switch (t.op) {
+    case "rows":
+      return along(g.shape, 2);
+    case "axis":
+    case "drift-outer":
+      return along(g.shape, t.axis);
+    case "half-axis":
+      return along(t.target === "periodic" ? g.half : g.paddedHalf!, t.axis);
+    case "poisson-outer":
+      return along(g.half, t.axis);
+    case "real-rows":
+    case "real-rows-inverse":
+      return t.target === "periodic" ? realRows(g.shape) : realRows(g.padded!);
+    case "isolated-rows":
+    case "isolated-rows-inverse":
+      return realRows(g.padded!);
+    case "kick":
+    case "gradient":
+    case "copy":
+    case "drift":
+    case "density":
+    case "moments":
+    case "poisson":
+    case "isolated-zero":
+    case "convolve":
+      return undefined;
+  }
+}
+
+/** Real rows of length n2 of a shape, transformed as complex rows of n2/2. */
+function realRows(shape: readonly number[]): Transform {
+  const n2 = shape[2]!;
+  return { n: n2 / 2, pencils: cells(shape) / n2, realRow: n2 };
 }

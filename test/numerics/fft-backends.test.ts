@@ -8,6 +8,11 @@ import { LcdmBackground, StaticBackground } from "../../src/physics/cosmology/ba
 import { SplitStepper } from "../../src/integrators/split-step.js";
 import { ThreadedStepper } from "../../src/integrators/threaded-step.js";
 import { resolveFftBackend } from "../../src/integrators/fft-backend.js";
+import { StepPlan } from "../../src/integrators/step-plan.js";
+import { stepGeometry, type GravityKind } from "../../src/fields/step-memory.js";
+import type { Triple } from "../../src/grid/grid.js";
+
+const plan = (shape: Triple, gravity: GravityKind) => new StepPlan(stepGeometry(shape, gravity));
 import { evolve } from "../../src/simulation/evolve.js";
 import { ConfigError } from "../../src/core/errors.js";
 import { lumpy, maxAbs, maxAbsDiff } from "../helpers/fields.js";
@@ -80,12 +85,12 @@ describe("FFT backends", () => {
   }
 
   it("auto picks wasm where it fits and fft.js where a grid needs more than a 4 GiB WebAssembly memory", () => {
-    expect(resolveFftBackend("auto", [64, 64, 64], "periodic", 2)).toBe("wasm");
-    expect(resolveFftBackend("auto", [512, 512, 512], "periodic", 2)).toBe("js");
-    expect(() => resolveFftBackend("wasm", [512, 512, 512], "periodic", 2)).toThrow(ConfigError);
-    expect(resolveFftBackend("js", [64, 64, 64], "periodic", 2)).toBe("js");
+    expect(resolveFftBackend("auto", plan([64, 64, 64], "periodic"), 2)).toBe("wasm");
+    expect(resolveFftBackend("auto", plan([512, 512, 512], "periodic"), 2)).toBe("js");
+    expect(() => resolveFftBackend("wasm", plan([512, 512, 512], "periodic"), 2)).toThrow(ConfigError);
+    expect(resolveFftBackend("js", plan([64, 64, 64], "periodic"), 2)).toBe("js");
     // isolated gravity pads to twice the cells per axis: a 1024×512×512 padded grid needs over 4 GiB
-    expect(resolveFftBackend("auto", [256, 256, 256], "isolated", 2)).toBe("wasm");
-    expect(resolveFftBackend("auto", [512, 256, 256], "isolated", 2)).toBe("js");
+    expect(resolveFftBackend("auto", plan([256, 256, 256], "isolated"), 2)).toBe("wasm");
+    expect(resolveFftBackend("auto", plan([512, 256, 256], "isolated"), 2)).toBe("js");
   });
 });

@@ -2,7 +2,9 @@
 import { describe, expect, it } from "vitest";
 import { ComplexFft, outerCount, PENCIL_BLOCK, RealFft } from "../../src/fields/fft.js";
 import { WasmStepEngine } from "../../src/fields/step-engine.js";
-import { allocateStepMemory } from "../../src/fields/step-memory.js";
+import { allocateStepMemory } from "../../src/fields/step-allocate.js";
+import { stepGeometry } from "../../src/fields/step-memory.js";
+import { StepPlan } from "../../src/integrators/step-plan.js";
 import { WASM_BLOCK } from "../../src/fields/wasm-kernels.js";
 import type { Triple } from "../../src/grid/grid.js";
 import { maxAbs, maxAbsDiff, seededRandom } from "../helpers/fields.js";
@@ -91,7 +93,8 @@ describe("real FFT", () => {
 function wasmEngine(shape: Triple) {
   const zeros = shape.map((n) => new Float64Array(n));
   const half = [shape[0], shape[1], shape[2] / 2 + 1] as const;
-  const memory = allocateStepMemory("wasm", shape, zeros, { kind: "periodic", kSquared: half.map((n) => new Float64Array(n)) }, 1);
+  const plan = new StepPlan(stepGeometry(shape, "periodic"));
+  const memory = allocateStepMemory("wasm", plan.geometry, plan.transforms(), { kSquared: zeros, kPoisson: half.map((n) => new Float64Array(n)) }, 1);
   return { memory, engine: new WasmStepEngine(memory.setup, 0) };
 }
 
@@ -125,7 +128,7 @@ describe("WebAssembly SIMD transforms", () => {
       const half = [shape[0], shape[1], shape[2] / 2 + 1] as const;
       const rows = shape[0] * shape[1];
       memory.phi.set(real);
-      engine.realRows("periodic", 0, rows);
+      engine.realRows("periodic", "phi", 0, rows);
       for (const axis of [1, 0]) if (half[axis]! > 1) engine.halfAxis("periodic", axis, false, 0, outerCount(half, axis));
       const spec = memory.spectrum!;
       const h2 = half[2];
@@ -141,7 +144,7 @@ describe("WebAssembly SIMD transforms", () => {
       expect(worst).toBeLessThan(1e-12 * n);
       for (const axis of [0, 1]) if (half[axis]! > 1) engine.halfAxis("periodic", axis, true, 0, outerCount(half, axis));
       memory.phi.fill(0);
-      engine.realRowsInverse("periodic", 0, rows);
+      engine.realRowsInverse("periodic", "phi", 0, rows);
       expect(maxAbsDiff(memory.phi, real)).toBeLessThan(1e-14 * n * maxAbs(real));
     });
   }

@@ -8,7 +8,9 @@ import { ThreadError } from "../../src/core/errors.js";
 import { Grid } from "../../src/grid/grid.js";
 import { makePoissonSolver } from "../../src/fields/poisson.js";
 import { StaticBackground } from "../../src/physics/cosmology/background.js";
-import { allocateStepMemory } from "../../src/fields/step-memory.js";
+import { allocateStepMemory } from "../../src/fields/step-allocate.js";
+import { stepGeometry } from "../../src/fields/step-memory.js";
+import { StepPlan } from "../../src/integrators/step-plan.js";
 import { ThreadPool } from "../../src/integrators/thread-pool.js";
 import { ThreadedStepper } from "../../src/integrators/threaded-step.js";
 import type { StepTask } from "../../src/integrators/step-task.js";
@@ -21,12 +23,13 @@ afterAll(() => fs.rmSync(work, { recursive: true, force: true }));
 
 const grid = new Grid([8, 8, 8], [1, 1, 1]);
 const kSquared = [0, 1, 2].map((ax) => grid.wavenumbers(ax as 0 | 1 | 2).map((k) => k * k));
-const setup = () => allocateStepMemory("wasm", grid.shape, kSquared, { kind: "none" }, 2).setup;
+const plan = new StepPlan(stepGeometry(grid.shape, "none"));
+const setup = () => allocateStepMemory("wasm", plan.geometry, plan.transforms(), { kSquared }, 2).setup;
 const out = new Float64Array(4);
 // a pass along an axis the grid does not have: the engine throws. With one unit and two threads
 // the main thread's range is empty, so only the worker runs it.
 const BAD: StepTask = { op: "axis", field: "psi", axis: 5, inverse: false };
-const GOOD: StepTask = { op: "copy", toUndo: true };
+const GOOD: StepTask = { op: "copy", from: "psi", to: "undo" };
 
 /** Milliseconds `f` takes to throw, and what it threw. */
 function timeThrow(f: () => unknown): { ms: number; error: unknown } {

@@ -59,4 +59,36 @@ describe("WebAssembly kernels", () => {
       expect(worst, `angles up to ${scale}`).toBeLessThan(2.3e-16);
     }
   });
+
+  // Reference: Math.sin and Math.cos, fdlibm's algorithms in V8, within 1 ulp of the exact value (from memory).
+  // The kernel follows fdlibm's reduction and polynomials, so it stays within 2 ulp of them, relative to each
+  // value (not an absolute bound, which is loose for small angles), and sin is odd and cos even, bit for bit.
+  it("are within 2 ulp of Math.sin and Math.cos on negative angles, relative to each value, and exactly odd and even", () => {
+    const count = 20000;
+    const memory = new WebAssembly.Memory({ initial: 8, maximum: 8, shared: true });
+    const k = instantiateKernels(kernelModule()!, memory);
+    k.initConstants();
+    const anglesAt = WASM_RESERVED_BYTES;
+    const outAt = anglesAt + 8 * count;
+    const angles = new Float64Array(memory.buffer, anglesAt, count);
+    const out = new Float64Array(memory.buffer, outAt, 2 * count);
+    const ulp = (x: number) => 2 ** (Math.max(Math.floor(Math.log2(Math.abs(x))), -1022) - 52);
+    const rnd = seededRandom(11);
+    for (const scale of [1e-300, 1e-9, 1e-3, 0.5, Math.PI, 30, 1e4, 1e5, 3e5, 1e9]) {
+      for (let i = 0; i < count; i++) angles[i] = -scale * (0.5 + 0.5 * Math.abs(rnd()));
+      k.sinCos(anglesAt, outAt, count);
+      const negative = Float64Array.from(out);
+      let worst = 0;
+      for (let i = 0; i < count; i++) {
+        const x = angles[i]!;
+        worst = Math.max(worst, Math.abs(negative[2 * i]! - Math.cos(x)) / ulp(Math.cos(x)), Math.abs(negative[2 * i + 1]! - Math.sin(x)) / ulp(Math.sin(x)));
+      }
+      expect(worst, `angles down to −${scale}`).toBeLessThanOrEqual(2);
+      for (let i = 0; i < count; i++) angles[i] = -angles[i]!;
+      k.sinCos(anglesAt, outAt, count);
+      let asymmetric = 0;
+      for (let i = 0; i < count; i++) if (out[2 * i] !== negative[2 * i] || out[2 * i + 1] !== -negative[2 * i + 1]!) asymmetric++;
+      expect(asymmetric, `angles of ±${scale}`).toBe(0);
+    }
+  });
 });

@@ -2,7 +2,7 @@
 // in AssemblyScript and compiled by `npm run build` to dist/fields/wasm/kernels.wasm.
 //
 // Every field lives in one shared linear memory that JavaScript allocates
-// (fields/wasm-arena.ts); functions take byte addresses and sizes. A v128
+// (fields/step-memory.ts lays it out); functions take byte addresses and sizes. A v128
 // holds one complex double (re, im). Along every axis a pass gathers up to
 // BLOCK pencils into a scratch block, point-major ([point][pencil]), in
 // bit-reversed point order; runs radix-4 decimation-in-time butterflies
@@ -19,7 +19,14 @@
 // Conventions as fields/fft.ts: forward F_k = Σ f_x e^{−ikx}; the inverse is
 // scaled by the `scale` its caller passes (1/n for a normalised inverse).
 
-const BLOCK: i32 = 16;
+import { BLOCK, CONSTANTS_ADDRESS, RESERVED_BYTES, TWIDDLE_STRIDE } from "./layout";
+
+// The shared numbers as this module was built with them: fields/wasm-kernels.ts
+// compares them with its own on load.
+export const LAYOUT_BLOCK: i32 = BLOCK;
+export const LAYOUT_CONSTANTS_ADDRESS: i32 = CONSTANTS_ADDRESS;
+export const LAYOUT_RESERVED_BYTES: i32 = RESERVED_BYTES;
+export const LAYOUT_TWIDDLE_STRIDE: i32 = TWIDDLE_STRIDE;
 
 @inline function cmul(x: v128, wr: v128, wi: v128): v128 {
   return f64x2.add(f64x2.mul(x, wr), f64x2.mul(v128.shuffle<f64>(x, x, 1, 0), wi));
@@ -43,7 +50,7 @@ const BLOCK: i32 = 16;
 
 /** Address of the twiddles of the first twiddled stage (an even log2 n skips the h = 1 stage's entry). */
 @inline function firstTwiddles(n: i32, tw: usize): usize {
-  return ctz<i32>(n) & 1 ? tw : tw + 96;
+  return ctz<i32>(n) & 1 ? tw : tw + <usize>TWIDDLE_STRIDE;
 }
 
 /** The twiddle-free radix-4 butterfly of four rows (natural residues 0, 2, 1, 3 in x0…x3), results to q0…q3. */
@@ -165,7 +172,7 @@ function firstStage(buf: usize, n: i32, pitch: i32, count: i32, rot: v128): void
         }
         continue;
       }
-      const tk = t + <usize>(k * 96);
+      const tk = t + <usize>(k * TWIDDLE_STRIDE);
       const w1r = v128.load(tk);
       const w1i = v128.load(tk, 16);
       const w2r = v128.load(tk, 32);
@@ -197,7 +204,7 @@ function stagesInBuf(buf: usize, n: i32, pitch: i32, count: i32, tw: usize, inve
   let t = firstTwiddles(n, tw);
   for (let h = firstTwiddledH(n); h < n; h <<= 2) {
     stage(buf, n, pitch, count, t, h, rot, 0, 0, 0, 1.0);
-    t += <usize>(h * 96);
+    t += <usize>(h * TWIDDLE_STRIDE);
   }
 }
 
@@ -213,7 +220,7 @@ function stagesToMemory(buf: usize, n: i32, pitch: i32, count: i32, tw: usize, i
   let h = firstTwiddledH(n);
   for (; 4 * h < n; h <<= 2) {
     stage(buf, n, pitch, count, t, h, rot, 0, 0, 0, 1.0);
-    t += <usize>(h * 96);
+    t += <usize>(h * TWIDDLE_STRIDE);
   }
   stage(buf, n, pitch, count, t, h, rot, dst, pointStride, pencilStride, scale);
 }
@@ -511,7 +518,7 @@ const LARGE_ANGLE: f64 = 1.0e5;
 // The polynomial's constants as (c, c) vectors at a fixed address, written
 // once by initConstants(): loading them is cheaper than rebuilding each
 // 128-bit constant from immediates inside the loop.
-const CONSTANTS: usize = 64;
+const CONSTANTS: usize = <usize>CONSTANTS_ADDRESS;
 /** Bytes at CONSTANTS the layout must leave free. */
 export const CONSTANTS_BYTES: i32 = 22 * 16;
 const K_INV_PIO2: usize = 0;

@@ -1,0 +1,98 @@
+/**
+ * Allocating the step's memory from its table of regions (fields/step-memory.ts)
+ * and filling its tables: k² per axis, the Poisson kernel, the isolated
+ * solve's Green's function, and for the wasm backend the kernels' constants,
+ * twiddles, bit-reversal permutations and real-row twiddles.
+ */
+import {
+  ELEMENT_BYTES,
+  regionInts,
+  regionName,
+  regionView,
+  scratchBytes,
+  stepRegions,
+  WASM_MAX_BYTES,
+  WASM_PAGE,
+  wasmLayout,
+  type FftBackend,
+  type Region,
+  type StepGeometry,
+  type StepSetup,
+  type Transform,
+} from "./step-memory.js";
+import { fillBitReversal, fillTwiddles, instantiateKernels, kernelModule } from "./wasm-kernels.js";
+
+/** What the tables are filled from. */
+export interface TableInputs {
+  /** k² per index along axes 0, 1, 2. */
+  readonly kSquared: readonly Float64Array[];
+  /** The periodic Poisson kernel's k² along axes 0, 1 and the half axis 2. */
+  readonly kPoisson?: readonly Float64Array[];
+  /** The isolated solve's Green's function transform on the padded half spectrum. */
+  readonly isolatedHat?: Float64Array;
+}
+
+/** What the stepper is given back: the layout and views of the regions it reads on this thread. */
+export interface StepMemory {
+  readonly setup: StepSetup;
+  readonly psi: Float64Array;
+  readonly phi: Float64Array;
+  readonly undo: Float64Array;
+  readonly spectrum: Float64Array | undefined;
+}
+
+/**
+ * Lay out and allocate the step's memory, and fill its tables.
+ * @param transforms every transform the step's plan runs (they set the wasm tables and scratch)
+ * @param slots threads that will run kernels (the wasm backend gives each a scratch block)
+ */
+export function allocateStepMemory(backend: FftBackend, g: StepGeometry, transforms: readonly Transform[], tables: TableInputs, slots: number): StepMemory {
+  const specs = stepRegions(g, transforms, slots).filter((s) => backend === "wasm" || !s.wasmOnly);
+  const regions: Record<string, Region> = {};
+  let memory: WebAssembly.Memory | undefined;
+  if (backend === "js") {
+    for (const s of specs) regions[s.name] = { offset: 0, type: s.type, length: s.length, buffer: new SharedArrayBuffer(ELEMENT_BYTES[s.type] * s.length) };
+  } else {
+    if (!kernelModule()) throw new Error("the wasm FFT backend is not available");
+    const { offsets, total } = wasmLayout(specs);
+    if (total > WASM_MAX_BYTES) throw new RangeError(`the wasm FFT backend needs ${total} bytes, more than a 4 GiB WebAssembly memory`);
+    const pages = Math.ceil(total / WASM_PAGE);
+    memory = new WebAssembly.Memory({ initial: pages, maximum: pages, shared: true });
+    specs.forEach((s, i) => (regions[s.name] = { offset: offsets[i]!, type: s.type, length: s.length }));
+  }
+  const setup: StepSetup = { backend, geometry: g, regions, memory, scratchBytes: backend === "wasm" ? scratchBytes(transforms) : 0 };
+  fillTables(setup, tables);
+  if (backend === "wasm") fillKernelTables(setup, transforms);
+  return {
+    setup,
+    psi: regionView(setup, "psi"),
+    phi: regionView(setup, "phi"),
+    undo: regionView(setup, "undo"),
+    spectrum: regions.spectrum ? regionView(setup, "spectrum") : undefined,
+  };
+}
+
+function fillTables(setup: StepSetup, tables: TableInputs): void {
+  for (let axis = 0; axis < 3; axis++) {
+    regionView(setup, regionName.kSquared(axis)).set(tables.kSquared[axis]!);
+    if (setup.geometry.gravity === "periodic") regionView(setup, regionName.kPoisson(axis)).set(tables.kPoisson![axis]!);
+  }
+  if (setup.geometry.gravity === "isolated") regionView(setup, "iso.hat").set(tables.isolatedHat!);
+}
+
+function fillKernelTables(setup: StepSetup, transforms: readonly Transform[]): void {
+  instantiateKernels(kernelModule()!, setup.memory!).initConstants();
+  for (const n of new Set(transforms.map((t) => t.n))) {
+    if (n < 2) continue;
+    fillTwiddles(regionView(setup, regionName.twiddles(n, false)), n, false);
+    fillTwiddles(regionView(setup, regionName.twiddles(n, true)), n, true);
+    fillBitReversal(regionInts(setup, regionName.reversal(n)), n);
+  }
+  for (const n of new Set(transforms.map((t) => t.realRow).filter((n) => n > 0))) {
+    const ctw = regionView(setup, regionName.realTwiddles(n));
+    for (let k = 0; k <= n / 2; k++) {
+      ctw[2 * k] = Math.cos((2 * Math.PI * k) / n);
+      ctw[2 * k + 1] = Math.sin((2 * Math.PI * k) / n);
+    }
+  }
+}
