@@ -5,7 +5,7 @@
  * subclasses' (fields/js-step-engine.ts, fields/wasm-step-engine.ts).
  */
 import type { Triple } from "../grid/grid.js";
-import { densityRows, driftRows, gradientNormRows, kickRows, poissonRows } from "./step-kernels.js";
+import { densityRows, driftRows, gradientNormRows, kickRows, normRows, poissonRows } from "./step-kernels.js";
 import { regionName, regionView, type StepSetup } from "./step-memory.js";
 import type { ComplexGrid, PoissonTarget, RealGrid, StepEngine } from "./step-engine.js";
 
@@ -164,6 +164,10 @@ export abstract class EngineBase implements StepEngine {
     out[1] = rho2;
     out[2] = rhoPhi;
     out[3] = max;
+  }
+
+  norm(field: ComplexGrid, lo: number, hi: number): number {
+    return normRows(this.view(field), this.shape[2], lo, hi);
   }
 
   density(field: ComplexGrid, target: RealGrid, add: boolean, lo: number, hi: number): number {

@@ -17,11 +17,19 @@ import type { StepSetup } from "./step-memory.js";
 import { JsStepEngine } from "./js-step-engine.js";
 import { WasmStepEngine } from "./wasm-step-engine.js";
 
-/** A complex grid of the step, by region name: the field ψ, or its undo copy (also scratch for measurements). */
-export type ComplexGrid = "psi" | "undo";
+/**
+ * A complex grid of the step, by region name: the reference field ψ and its
+ * undo copy (also scratch for measurements), and extra field i (1 … K)
+ * advanced in lockstep with it, and its undo copy.
+ */
+export type ComplexGrid = "psi" | "undo" | `field.${number}` | `undo.${number}`;
 
-/** A real grid that holds a density and then, after the Poisson passes, its potential: φ. */
-export type RealGrid = "phi";
+/**
+ * A real grid that holds a density and then, after the Poisson passes, its
+ * potential: φ (the reference's, shared by species), or "aux", scratch for
+ * an extra field's own potential.
+ */
+export type RealGrid = "phi" | "aux";
 
 /** Which Poisson grid a real-transform pass works on: the periodic half spectrum or the isolated solve's padded grid. */
 export type PoissonTarget = "periodic" | "isolated";
@@ -49,6 +57,8 @@ export interface StepEngine {
   gradient(field: ComplexGrid, lo: number, hi: number): number;
   /** Forward along outer `axis`, the drift phase of set `phases`, inverse; returns Σ k²|ψ_k|² when `gradient`. */
   driftOuter(field: ComplexGrid, phases: number, axis: number, lo: number, hi: number, gradient: boolean): number;
+  /** Σ|field|² over rows (nothing written). */
+  norm(field: ComplexGrid, lo: number, hi: number): number;
   /** target ← |field|² (or += with `add`) over rows; returns Σ|field|² over them. */
   density(field: ComplexGrid, target: RealGrid, add: boolean, lo: number, hi: number): number;
   /** Real transforms of rows (of a real grid, or of the padded work array) into the half spectrum. */

@@ -72,6 +72,17 @@ export function densityRows(psi: Float64Array, phi: Float64Array, add: boolean, 
   return sum;
 }
 
+/** Σ|ψ|² over rows [lo, hi). */
+export function normRows(psi: Float64Array, n2: number, lo: number, hi: number): number {
+  let sum = 0;
+  for (let i = lo * n2; i < hi * n2; i++) {
+    const re = psi[2 * i] as number;
+    const im = psi[2 * i + 1] as number;
+    sum += re * re + im * im;
+  }
+  return sum;
+}
+
 /** spec ← −spec/k² (0 at k = 0) over half-spectrum rows [lo, hi), with k² tabulated per axis. */
 export function poissonRows(spec: Float64Array, halfShape: Triple, k0: Float64Array, k1: Float64Array, k2: Float64Array, lo: number, hi: number): void {
   const [, h1, h2] = halfShape;

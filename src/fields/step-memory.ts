@@ -30,7 +30,22 @@ export interface StepGeometry {
   /** The isolated solve's zero-padded grid (isolated gravity only). */
   readonly padded: Triple | undefined;
   readonly paddedHalf: Triple | undefined;
+  /** The fields beside the reference ψ. */
+  readonly extra: ExtraLayout;
 }
+
+/** What the fields advanced beside the reference ψ need laid out. */
+export interface ExtraLayout {
+  /** How many (fields 1 … K, each a complex grid and its undo copy). */
+  readonly fields: number;
+  /** Phase sets of their own (a field whose drift factor differs from the reference's uses the set of its index). */
+  readonly phaseSets: readonly number[];
+  /** Whether one needs a potential of its own (a real grid "aux", shared by all such fields one after another). */
+  readonly aux: boolean;
+}
+
+/** No extra fields. */
+export const NO_EXTRA: ExtraLayout = { fields: 0, phaseSets: [], aux: false };
 
 /** The zero-padded shape of the isolated solve: twice the cells along every simulated axis. */
 export function defaultPadding(shape: Triple): Triple {
@@ -38,10 +53,10 @@ export function defaultPadding(shape: Triple): Triple {
 }
 
 /** The geometry of a step on `shape`. */
-export function stepGeometry(shape: Triple, gravity: GravityKind, padded: Triple = defaultPadding(shape)): StepGeometry {
+export function stepGeometry(shape: Triple, gravity: GravityKind, padded: Triple = defaultPadding(shape), extra: ExtraLayout = NO_EXTRA): StepGeometry {
   const halfOf = (s: Triple): Triple => [s[0], s[1], s[2] / 2 + 1];
   const isolated = gravity === "isolated";
-  return { shape, half: halfOf(shape), gravity, padded: isolated ? padded : undefined, paddedHalf: isolated ? halfOf(padded) : undefined };
+  return { shape, half: halfOf(shape), gravity, padded: isolated ? padded : undefined, paddedHalf: isolated ? halfOf(padded) : undefined, extra };
 }
 
 /** A complex transform the step runs: length, pencils in all, and for real rows their real length (else 0). */
@@ -119,8 +134,13 @@ export function stepRegions(g: StepGeometry, transforms: readonly Transform[], s
   add("phi", "f64", size);
   // a copy of ψ to undo a failed step, and afterwards scratch for measuring the kinetic energy
   add("undo", "complex", size);
+  for (let i = 1; i <= g.extra.fields; i++) {
+    add(`field.${i}`, "complex", size);
+    add(`undo.${i}`, "complex", size);
+  }
+  if (g.extra.aux) add("aux", "f64", size);
   for (let axis = 0; axis < 3; axis++) {
-    add(regionName.phase(0, axis), "complex", even(g.shape[axis]!));
+    for (const set of [0, ...g.extra.phaseSets]) add(regionName.phase(set, axis), "complex", even(g.shape[axis]!));
     add(regionName.kSquared(axis), "f64", even(g.shape[axis]!));
   }
   if (g.gravity === "periodic") {

@@ -26,9 +26,10 @@ import type { Background } from "../physics/cosmology/background.js";
 import { IsolatedPoisson, PeriodicPoisson, type PoissonSolver } from "../fields/poisson.js";
 import { ComplexFft } from "../fields/fft.js";
 import { createEngine, type StepEngine } from "../fields/step-engine.js";
-import { stepGeometry, type FftBackend, type GravityKind } from "../fields/step-memory.js";
+import { regionView, stepGeometry, type FftBackend, type GravityKind } from "../fields/step-memory.js";
 import { allocateStepMemory, type StepMemory, type TableInputs } from "../fields/step-allocate.js";
 import { resolveFftBackend, type FftChoice } from "./fft-backend.js";
+import { ExtraFields, type FieldKind, type PassRunner } from "./extra-fields.js";
 import { StepPlan, type PlannedPass } from "./step-plan.js";
 import { RESULT_LENGTH, runTask, type StepTask } from "./step-task.js";
 
@@ -40,7 +41,10 @@ export interface FieldMoments {
   readonly maxRho: number;
 }
 
-/** The evolving field and the machinery to advance it. */
+/**
+ * The evolving field and the machinery to advance it, with any extra fields
+ * advanced in lockstep (integrators/extra-fields.ts).
+ */
 export class SplitStepper {
   readonly grid: Grid;
   readonly background: Background;
@@ -61,7 +65,11 @@ export class SplitStepper {
   /** The FFT implementation the step runs on. */
   readonly backend: FftBackend;
   /** The passes of this grid's step. */
-  protected readonly plan: StepPlan;
+  readonly plan: StepPlan;
+  /** Fields advanced with ψ (numbered 1 … count). */
+  private readonly extras: ExtraFields;
+  /** What the extra fields run their passes through. */
+  private readonly runner: PassRunner;
   protected readonly memory: StepMemory;
   private engineOnThisThread: StepEngine | undefined;
   private complexFft: ComplexFft | undefined;
@@ -69,8 +77,8 @@ export class SplitStepper {
   private owedKick = 0;
   /** moments() of the current |ψ| and φ (kicks change neither), until they change. */
   private momentsCache: FieldMoments | undefined;
-  /** The drift factor the phase tables hold. */
-  private phaseFactor = Number.NaN;
+  /** The drift factor each phase set holds. */
+  private readonly phaseFactors = new Map<number, number>();
   /** A pass's result vector. */
   private readonly results = new Float64Array(RESULT_LENGTH);
   /** The summed results of the last pass list, by meaning. */
@@ -81,13 +89,16 @@ export class SplitStepper {
   /**
    * @param fft the FFT backend ("auto": WebAssembly when the grid fits its 4 GiB memory)
    * @param slots threads that will run the step's passes (subclasses with worker threads)
+   * @param fields kinds of the extra fields advanced with ψ (none by default)
    */
-  constructor(grid: Grid, background: Background, gravity: PoissonSolver, fft: FftChoice = "auto", slots = 1) {
+  constructor(grid: Grid, background: Background, gravity: PoissonSolver, fft: FftChoice = "auto", slots = 1, fields: readonly FieldKind[] = []) {
     this.grid = grid;
     this.background = background;
     this.gravity = gravity;
+    this.extras = new ExtraFields(fields);
     const kind: GravityKind = gravity instanceof PeriodicPoisson ? "periodic" : gravity instanceof IsolatedPoisson ? "isolated" : "none";
-    const geometry = stepGeometry(grid.shape, kind, gravity instanceof IsolatedPoisson ? [...gravity.paddedShape] : undefined);
+    const padded = gravity instanceof IsolatedPoisson ? [...gravity.paddedShape] as const : undefined;
+    const geometry = stepGeometry(grid.shape, kind, padded, this.extras.layout);
     this.plan = new StepPlan(geometry);
     const transforms = this.plan.transforms();
     const tables: TableInputs = {
@@ -108,6 +119,43 @@ export class SplitStepper {
     this.backend = backend;
     this.memory = memory;
     this.phi = this.memory.phi;
+    this.runner = {
+      plan: this.plan,
+      gravity: gravity.kind !== "none",
+      runPass: (units, task) => this.runPass(units, task),
+      runPasses: (passes) => this.runPasses(passes),
+      fillPhases: (set, factor) => this.fillPhaseTables(factor, set),
+    };
+  }
+
+  /** How many extra fields advance with ψ. */
+  get extraFields(): number {
+    return this.extras.count;
+  }
+
+  /** Extra field i (1 … extraFields), interleaved complex, with its owed kick applied. */
+  field(i: number): Float64Array {
+    this.extras.synchronize(this.runner, i);
+    return this.rawField(i);
+  }
+
+  /** Extra field i as stored (it may owe its closing kick, so only its modulus is current). */
+  rawField(i: number): Float64Array {
+    return regionView(this.memory.setup, this.extras.grid(i));
+  }
+
+  /** Load extra field i (copied); do it before setState, which computes the shared potential. */
+  setField(i: number, psi: Float64Array): void {
+    const view = this.rawField(i);
+    if (psi.length !== view.length) throw new RangeError(`field has ${psi.length / 2} cells, grid has ${this.grid.size}`);
+    view.set(psi);
+    this.extras.reset(i);
+    this.undoState = undefined;
+  }
+
+  /** Mass Σ|ψ_i|² ΔV of extra field i. */
+  fieldMass(i: number): number {
+    return this.runPass(this.plan.rows, { op: "norm", field: this.extras.grid(i) }) * this.grid.cellVolume;
   }
 
   /** ψ, interleaved complex, √(mass density) in code units (applies an owed kick first). */
@@ -197,6 +245,7 @@ export class SplitStepper {
   updatePotential(): void {
     this.momentsCache = undefined;
     this.mass = this.runPass(this.plan.rows, { op: "density", field: "psi", target: "phi", add: false }) * this.grid.cellVolume;
+    this.extras.addSources(this.runner);
     this.solvePotential();
   }
 
@@ -236,13 +285,13 @@ export class SplitStepper {
     return this.sums.mass;
   }
 
-  /** cos and sin of −k²D/2 per axis (the drift's phase factors). */
-  protected fillPhaseTables(factor: number): void {
+  /** cos and sin of −k²D/2 per axis (the drift's phase factors) in phase set `set` (0: ψ's). */
+  protected fillPhaseTables(factor: number, set = 0): void {
     // recomputed only when the drift factor changes (a fixed step in a static box keeps it)
-    if (factor === this.phaseFactor) return;
-    this.phaseFactor = factor;
+    if (factor === this.phaseFactors.get(set)) return;
+    this.phaseFactors.set(set, factor);
     this.engineOnThisThread ??= createEngine(this.memory.setup, 0);
-    this.engineOnThisThread.fillPhases(0, factor);
+    this.engineOnThisThread.fillPhases(set, factor);
   }
 
   /** Advance by Δt (code time) with one kick–drift–kick step (the closing kick stays owed, see above). */
@@ -257,17 +306,22 @@ export class SplitStepper {
     this.lastKick = k1 + k2;
     const gravity = this.gravity.kind !== "none";
     this.momentsCache = undefined;
+    // the extra fields first: their kicks need the potentials before the step, and ψ's drift overwrites φ
+    this.extras.drift(this.runner, this.lastDrift, k1);
     const opening = gravity ? this.owedKick + k1 : 0;
     this.owedKick = 0;
     this.mass = this.driftPasses(this.lastDrift, opening, true) * this.grid.cellVolume;
+    this.extras.addSources(this.runner);
     this.solvePotential();
     this.owedKick = gravity ? k2 : 0;
+    this.extras.owe(this.runner, k2);
     this.time = t1;
   }
 
-  /** Keep a copy of the current state (in the undo buffer) for undo(). */
+  /** Keep a copy of the current state (in the undo buffers, the extra fields' too) for undo(). */
   saveUndo(): void {
     this.runPass(this.plan.rows, this.plan.copy("psi", "undo").task);
+    this.extras.copyUndo(this.runner, true);
     this.undoState = { time: this.time, owedKick: this.owedKick };
   }
 
@@ -276,6 +330,7 @@ export class SplitStepper {
     const kept = this.undoState;
     if (!kept) return false;
     this.runPass(this.plan.rows, this.plan.copy("undo", "psi").task);
+    this.extras.copyUndo(this.runner, false);
     this.owedKick = kept.owedKick;
     this.time = kept.time;
     this.updatePotential();

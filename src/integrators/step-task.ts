@@ -26,6 +26,7 @@ export type StepTask =
   | { readonly op: "drift"; readonly field: ComplexGrid; readonly phases: number }
   | { readonly op: "drift-outer"; readonly field: ComplexGrid; readonly phases: number; readonly axis: number; readonly gradient: boolean }
   | { readonly op: "density"; readonly field: ComplexGrid; readonly target: RealGrid; readonly add: boolean }
+  | { readonly op: "norm"; readonly field: ComplexGrid }
   | { readonly op: "isolated-rows" | "isolated-rows-inverse"; readonly real: RealGrid }
   | { readonly op: "poisson-outer"; readonly axis: number }
   | { readonly op: "moments" }
@@ -78,6 +79,8 @@ function runScalar(engine: StepEngine, t: Exclude<StepTask, { op: "moments" }>, 
       return engine.gradient(t.field, lo, hi);
     case "density":
       return engine.density(t.field, t.target, t.add, lo, hi);
+    case "norm":
+      return engine.norm(t.field, lo, hi);
     case "real-rows":
       engine.realRows(t.target, t.real, lo, hi);
       return 0;
@@ -140,6 +143,7 @@ export function transformOf(t: StepTask, g: StepGeometry): Transform | undefined
     case "copy":
     case "drift":
     case "density":
+    case "norm":
     case "moments":
     case "poisson":
     case "isolated-zero":

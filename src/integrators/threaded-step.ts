@@ -11,6 +11,7 @@ import type { Grid } from "../grid/grid.js";
 import type { Background } from "../physics/cosmology/background.js";
 import type { PoissonSolver } from "../fields/poisson.js";
 import type { FftChoice } from "./fft-backend.js";
+import type { FieldKind } from "./extra-fields.js";
 import { SplitStepper } from "./split-step.js";
 import type { StepTask } from "./step-task.js";
 import { ThreadPool, type ThreadPoolOptions } from "./thread-pool.js";
@@ -20,9 +21,20 @@ export class ThreadedStepper extends SplitStepper {
   readonly threads: number;
   private readonly pool: ThreadPool;
 
-  /** @param pool where the worker script is and how long the pool waits for its workers (defaults suit runs) */
-  constructor(grid: Grid, background: Background, gravity: PoissonSolver, threads: number, fft: FftChoice = "auto", pool: ThreadPoolOptions = {}) {
-    super(grid, background, gravity, fft, threads);
+  /**
+   * @param pool where the worker script is and how long the pool waits for its workers (defaults suit runs)
+   * @param fields kinds of the extra fields advanced with ψ (see SplitStepper)
+   */
+  constructor(
+    grid: Grid,
+    background: Background,
+    gravity: PoissonSolver,
+    threads: number,
+    fft: FftChoice = "auto",
+    pool: ThreadPoolOptions = {},
+    fields: readonly FieldKind[] = [],
+  ) {
+    super(grid, background, gravity, fft, threads, fields);
     this.threads = threads;
     this.pool = new ThreadPool(threads, this.memory.setup, pool);
   }

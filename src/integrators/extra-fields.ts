@@ -1,0 +1,171 @@
+/**
+ * Fields advanced in lockstep with the stepper's reference field ψ: K more
+ * complex fields on the same grid, sharing its tables, its plan of passes
+ * and its threads, each with a kick of its own kind.
+ *
+ * - "own-gravity": a field with gravity of its own, kicked by the potential
+ *   of its own density exactly as the reference is by its own (two such
+ *   fields evolve bit for bit as each does alone).
+ * - "species": a second species of particle mass m_i = μ m in mass units:
+ *   i ∂ψ_i/∂t = −∇²ψ_i/(2μa²) + μ(φ/a)ψ_i (code units, ħ/m = 1), so its drift
+ *   factor is D/μ and its kick factor μK; all species share the one
+ *   potential φ sourced by the summed density, ∇²φ = Σ_j |ψ_j|² − ρ̄.
+ *
+ * The rules of each kind are one entry of `ruleOf`; a tangent-linear field
+ * (dψ ← e^{−iκΦ}(dψ − iκ dΦ ψ), dΦ from 2 Re(ψ̄ dψ) through the same Poisson
+ * passes into "aux") is meant to be another entry, with a linearised kick
+ * pass of its own.
+ *
+ * Like the reference, each field owes its closing kick, folded into the next
+ * step's first pass. A field with its own potential recomputes it from its
+ * stored |ψ_i|² (kicks do not change it) just before each kick, so all such
+ * fields share one scratch grid. Memory per field: one complex grid and its
+ * undo copy (the guard rails undo a whole step, every field with it), plus
+ * the one "aux" real grid if any field has its own potential.
+ */
+import type { ComplexGrid, RealGrid } from "../fields/step-engine.js";
+import type { ExtraLayout } from "../fields/step-memory.js";
+import type { StepPlan, PlannedPass } from "./step-plan.js";
+import type { StepTask } from "./step-task.js";
+
+/** The kind of an extra field's kick. */
+export type FieldKind = { readonly kind: "own-gravity" } | { readonly kind: "species"; readonly massRatio: number };
+
+/** How a kind takes part in the step. */
+interface KindRule {
+  /** The real grid its kicks multiply by. */
+  readonly potential: RealGrid;
+  /** Its potential is its own: solved from its own density into `potential` before each kick. */
+  readonly ownPotential: boolean;
+  /** Its density adds to the shared source φ. */
+  readonly sources: boolean;
+  /** Its drift factor over the reference's (m/m_i). */
+  readonly driftScale: number;
+  /** Its kick factor over the reference's (m_i/m). */
+  readonly kickScale: number;
+}
+
+function ruleOf(kind: FieldKind): KindRule {
+  switch (kind.kind) {
+    case "own-gravity":
+      return { potential: "aux", ownPotential: true, sources: false, driftScale: 1, kickScale: 1 };
+    case "species":
+      if (!(kind.massRatio > 0) || !Number.isFinite(kind.massRatio)) throw new RangeError(`a species' mass ratio must be positive, got ${kind.massRatio}`);
+      return { potential: "phi", ownPotential: false, sources: true, driftScale: 1 / kind.massRatio, kickScale: kind.massRatio };
+  }
+}
+
+/** What the extra fields ask of their stepper. */
+export interface PassRunner {
+  readonly plan: StepPlan;
+  /** Whether the step has gravity (no kicks without). */
+  readonly gravity: boolean;
+  runPass(units: number, task: StepTask): number;
+  runPasses(passes: readonly PlannedPass[]): void;
+  /** Fill phase set `set` for drift factor D (skipped when it already holds it). */
+  fillPhases(set: number, factor: number): void;
+}
+
+/** The extra fields of one stepper: their kinds, owed kicks and undo state. */
+export class ExtraFields {
+  readonly count: number;
+  private readonly rules: readonly KindRule[];
+  /** Each field's owed closing kick factor (already scaled by its kickScale). */
+  private readonly owed: Float64Array;
+  private readonly undoOwed: Float64Array;
+
+  constructor(kinds: readonly FieldKind[]) {
+    this.count = kinds.length;
+    this.rules = kinds.map(ruleOf);
+    this.owed = new Float64Array(this.count + 1);
+    this.undoOwed = new Float64Array(this.count + 1);
+  }
+
+  /** What the step's memory must hold for them. */
+  get layout(): ExtraLayout {
+    const phaseSets = this.rules.flatMap((r, i) => (r.driftScale !== 1 ? [i + 1] : []));
+    return { fields: this.count, phaseSets, aux: this.rules.some((r) => r.potential === "aux") };
+  }
+
+  /** The region of field i (1 … K). */
+  grid(i: number): ComplexGrid {
+    this.check(i);
+    return `field.${i}`;
+  }
+
+  private check(i: number): void {
+    if (!Number.isInteger(i) || i < 1 || i > this.count) throw new RangeError(`extra field ${i} does not exist (1 … ${this.count})`);
+  }
+
+  private rule(i: number): KindRule {
+    return this.rules[i - 1]!;
+  }
+
+  /** Forget owed kicks (after a field was loaded). */
+  reset(i: number): void {
+    this.check(i);
+    this.owed[i] = 0;
+  }
+
+  /** The owed kick factor of field i. */
+  owedKick(i: number): number {
+    return this.owed[i]!;
+  }
+
+  /** Solve field i's own potential from its stored density, if it has one. */
+  private preparePotential(r: PassRunner, i: number): void {
+    const rule = this.rule(i);
+    if (!rule.ownPotential || !r.gravity) return;
+    r.runPass(r.plan.rows, { op: "density", field: this.grid(i), target: rule.potential, add: false });
+    r.runPasses(r.plan.potential(rule.potential));
+  }
+
+  /** Apply field i's owed kick. */
+  synchronize(r: PassRunner, i: number): void {
+    const k = this.owed[i]!;
+    this.owed[i] = 0;
+    if (k === 0 || !r.gravity) return;
+    this.preparePotential(r, i);
+    r.runPass(r.plan.rows, { op: "kick", field: this.grid(i), potential: this.rule(i).potential, factor: k });
+  }
+
+  /**
+   * The first part of a step, before the reference's drift overwrites φ:
+   * each field's opening kick (K₁ scaled, plus its owed kick) folded into
+   * its drift by D scaled, all on the potentials of the state before the step.
+   */
+  drift(r: PassRunner, drift: number, k1: number): void {
+    for (let i = 1; i <= this.count; i++) {
+      const rule = this.rule(i);
+      const kick = r.gravity ? this.owed[i]! + k1 * rule.kickScale : 0;
+      this.owed[i] = 0;
+      if (kick !== 0) this.preparePotential(r, i);
+      const set = rule.driftScale !== 1 ? i : 0;
+      r.fillPhases(set, drift * rule.driftScale);
+      r.runPasses(r.plan.drift(this.grid(i), set, { kick, potential: rule.potential, density: false, gradient: false }));
+    }
+  }
+
+  /** After the reference wrote |ψ|² into φ: add the densities of the fields that source it. */
+  addSources(r: PassRunner): void {
+    for (let i = 1; i <= this.count; i++) {
+      if (this.rule(i).sources) r.runPass(r.plan.rows, { op: "density", field: this.grid(i), target: "phi", add: true });
+    }
+  }
+
+  /** The closing kick K₂ of the step, owed by every field. */
+  owe(r: PassRunner, k2: number): void {
+    for (let i = 1; i <= this.count; i++) this.owed[i] = r.gravity ? k2 * this.rule(i).kickScale : 0;
+  }
+
+  /** Copy every field to its undo copy (`save`) or back, with its owed kick. */
+  copyUndo(r: PassRunner, save: boolean): void {
+    for (let i = 1; i <= this.count; i++) {
+      const field = this.grid(i);
+      const undo: ComplexGrid = `undo.${i}`;
+      r.runPasses([save ? r.plan.copy(field, undo) : r.plan.copy(undo, field)]);
+      if (save) this.undoOwed[i] = this.owed[i]!;
+      else this.owed[i] = this.undoOwed[i]!;
+    }
+  }
+}
