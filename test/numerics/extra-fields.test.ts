@@ -147,7 +147,7 @@ describe("species fields on the two FFT backends", () => {
       { kind: "species", massRatio: 0.5 },
     ];
     const second = fillComplex(grid, (x, y, z) => [Math.sqrt(100 * (1 + 0.5 * Math.sin(2 * Math.PI * (x + z)))), 0.05 * Math.cos(2 * Math.PI * y)]);
-    const third = fillComplex(grid, (x, y) => [Math.sqrt(50 * (1 + 0.3 * Math.cos(4 * Math.PI * y))), 0]);
+    const third = fillComplex(grid, (_x, y) => [Math.sqrt(50 * (1 + 0.3 * Math.cos(4 * Math.PI * y))), 0]);
     const run = (fft: Backend) => {
       const s = stepper(grid, "periodic", fft, 1, fields);
       s.setField(1, second);
