@@ -16,6 +16,10 @@ import { KG_PER_EV, M_SUN_KG, PC_M } from "../physics/constants.js";
 import { fieldFigure, type Plane } from "./field-image.js";
 import { clocksPlot, powerPlot, seriesPlot } from "./plots.js";
 import type { Figure } from "./render.js";
+import { csvTable as csv } from "./csv-table.js";
+import { checkDiagnostics, type DiagnosticRequest } from "./diagnostic-options.js";
+import { fieldDiagnostics, physicalScales } from "./field-diagnostics.js";
+import { diagnosticFigures } from "./diagnostic-plots.js";
 
 const KPC = 1e3 * PC_M;
 
@@ -25,10 +29,6 @@ export interface SnapshotAnalysis {
   readonly dir: string;
   readonly summary: Record<string, unknown>;
   readonly figures: Record<string, Figure>;
-}
-
-function csv(header: string[], rows: (number | string)[][]): string {
-  return [header.join(","), ...rows.map((r) => r.map((v) => (typeof v === "number" ? (Number.isInteger(v) ? String(v) : v.toPrecision(8)) : v)).join(","))].join("\n") + "\n";
 }
 
 function caption(snap: Snapshot): string {
@@ -65,9 +65,10 @@ function planes(field: LoadedField, kpcPerCode: number, densityUnit: number): { 
   return out;
 }
 
-/** Analyse one snapshot into `outDir` (created). */
-export async function analyzeSnapshot(file: string, outDir: string, withPictures = true): Promise<SnapshotAnalysis> {
+/** Analyse one snapshot into `outDir` (created), with the field diagnostics of `request`. */
+export async function analyzeSnapshot(file: string, outDir: string, withPictures = true, request: DiagnosticRequest = {}): Promise<SnapshotAnalysis> {
   const snap = readSnapshot(file);
+  const chosen = checkDiagnostics(request, snap.meta.cells.length, snap.meta.boxSizeKpc, snap.meta.cells, file);
   const field = loadField(snap);
   const { grid, units, psi } = field;
   const a = field.scaleFactor;
@@ -78,10 +79,7 @@ export async function analyzeSnapshot(file: string, outDir: string, withPictures
   fs.mkdirSync(outDir, { recursive: true });
 
   const power = densityPowerSpectrum(grid, psi);
-  writeFileAtomic(
-    path.join(outDir, "power.csv"),
-    csv(["k_per_kpc", "P_kpc3", "modes"], power.map((b) => [b.k / kpcPerCode, b.power * kpcPerCode ** 3, b.modes])),
-  );
+  writeFileAtomic(path.join(outDir, "power.csv"), powerTable(power, kpcPerCode, grid.dims, snap.meta.background.kind === "lcdm" ? snap.meta.background.hubbleKmSMpc / 100 : undefined));
   const pdf = densityPdf(psi);
   writeFileAtomic(path.join(outDir, "pdf.csv"), csv(["log10_density_contrast", "volume_fraction", "mass_fraction"], pdf.map((p) => [p.log10Contrast, p.volumeFraction, p.massFraction])));
 
@@ -135,6 +133,8 @@ export async function analyzeSnapshot(file: string, outDir: string, withPictures
     densest_points: peakRows.length,
     core_fit: grid.dims === 3 && peakRows[0] ? { rho_c_Msun_kpc3: peakRows[0][5], r_c_kpc: peakRows[0][6], relation_rho_c_Msun_kpc3: peakRows[0][7] } : null,
   };
+  const diagnostics = fieldDiagnostics(field, chosen, outDir, request.husimiWindowKpc, request.husimiPointsKpc);
+  Object.assign(summary, diagnostics.summary);
   writeFileAtomic(path.join(outDir, "summary.json"), JSON.stringify(summary, null, 2) + "\n");
 
   const figures: Record<string, Figure> = {};
@@ -151,15 +151,38 @@ export async function analyzeSnapshot(file: string, outDir: string, withPictures
     // bins at round-off level (a field with a few modes) would only stretch the log axis
     const maxP = Math.max(...power.map((b) => b.power));
     figures["power"] = await powerPlot(
-      power.filter((b) => b.power > 1e-12 * maxP).map((b) => ({ k: b.k / kpcPerCode, P: b.power * kpcPerCode ** 3 })),
+      power.filter((b) => b.power > 1e-12 * maxP).map((b) => ({ k: b.k / kpcPerCode, P: b.power * kpcPerCode ** grid.dims })),
       linear,
       "k [1/kpc]",
-      "P(k) [kpc³]",
+      `P(k) [kpc${["", "", "²", "³"][grid.dims]}]`,
       `density power spectrum, ${caption(snap)}`,
     );
+    Object.assign(figures, await diagnosticFigures(field, diagnostics, physicalScales(field), caption(snap)));
     for (const [name, fig] of Object.entries(figures)) writeFileAtomic(path.join(outDir, `${name}.png`), fig.png);
   }
   return { file, dir: outDir, summary, figures };
+}
+
+/**
+ * power.csv: k [1/kpc], P [kpc^d], modes, and the dimensionless power per ln k,
+ * Δ²(k) = k³P/(2π²) in 3D (k²P/(2π) in 2D, kP/π in 1D); for comoving runs also
+ * k [h/Mpc] and P [(Mpc/h)^d] (comoving).
+ */
+function powerTable(power: readonly { k: number; power: number; modes: number }[], kpcPerCode: number, dims: number, littleH: number | undefined): string {
+  const delta2 = (k: number, p: number) => (dims === 3 ? (k ** 3 * p) / (2 * Math.PI ** 2) : dims === 2 ? (k ** 2 * p) / (2 * Math.PI) : (k * p) / Math.PI);
+  const u = dims === 1 ? "" : String(dims);
+  const header = ["k_per_kpc", `P_kpc${u}`, "modes", "Delta2"];
+  if (littleH !== undefined) header.push("k_h_per_Mpc", `P_Mpc${u}_per_h${u}`);
+  return csv(
+    header,
+    power.map((b) => {
+      const k = b.k / kpcPerCode;
+      const p = b.power * kpcPerCode ** dims;
+      const row = [k, p, b.modes, delta2(b.k, b.power)];
+      if (littleH !== undefined) row.push((k * 1e3) / littleH, p * 1e-3 ** dims * littleH ** dims);
+      return row;
+    }),
+  );
 }
 
 /** The linear prediction for a cosmological run: its initial-power.csv (beside snapshots/) scaled by D(a)²/D(1)². */
@@ -178,11 +201,11 @@ function linearPrediction(file: string, field: LoadedField): { k: number; P: num
 }
 
 /** Analyse a run folder (or a list of snapshots): every snapshot, plus run-level figures. */
-export async function analyzeRun(runDir: string, outDir: string, options: { frames?: boolean; pictures?: boolean } = {}): Promise<{ snapshots: SnapshotAnalysis[]; figures: Record<string, Figure> }> {
+export async function analyzeRun(runDir: string, outDir: string, options: { frames?: boolean; pictures?: boolean; diagnostics?: DiagnosticRequest } = {}): Promise<{ snapshots: SnapshotAnalysis[]; figures: Record<string, Figure> }> {
   const snapDir = path.join(runDir, "snapshots");
   const files = fs.readdirSync(snapDir).filter((f) => /^snap_\d{5}\.h5$/.test(f)).sort().map((f) => path.join(snapDir, f));
   const snapshots: SnapshotAnalysis[] = [];
-  for (const f of files) snapshots.push(await analyzeSnapshot(f, path.join(outDir, path.basename(f, ".h5")), options.pictures !== false));
+  for (const f of files) snapshots.push(await analyzeSnapshot(f, path.join(outDir, path.basename(f, ".h5")), options.pictures !== false, options.diagnostics));
   const figures: Record<string, Figure> = {};
   const seriesFile = path.join(runDir, "timeseries.csv");
   if (options.pictures !== false && fs.existsSync(seriesFile)) {
@@ -215,6 +238,9 @@ export async function analyzeRun(runDir: string, outDir: string, options: { fram
     snapshots.forEach((s, i) => {
       const slice = s.figures["slice"];
       if (slice) writeFileAtomic(path.join(frameDir, `frame_${String(i).padStart(5, "0")}.png`), slice.png);
+      // 1D runs: the Husimi x–v image over the snapshots as a second movie
+      const husimi = s.figures["husimi"];
+      if (husimi) writeFileAtomic(path.join(frameDir, `husimi_${String(i).padStart(5, "0")}.png`), husimi.png);
     });
   }
   if (options.pictures !== false && files.length > 1) {

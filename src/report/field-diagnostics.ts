@@ -1,0 +1,183 @@
+/**
+ * The field diagnostics of one snapshot in physical units: the kinetic
+ * energy split and its spectra, vortices, granules and the Husimi
+ * distribution, each written as a CSV table and returned for the pictures
+ * and summary.json. Lengths are comoving kpc in comoving runs.
+ */
+import path from "node:path";
+import { writeFileAtomic } from "../io/atomic.js";
+import type { LoadedField } from "../simulation/from-snapshot.js";
+import { energySplit } from "../diagnostics/energy-split.js";
+import { findVortices, type VortexCensus } from "../diagnostics/vortices.js";
+import { granuleStats, type GranuleStats } from "../diagnostics/granules.js";
+import { defaultHusimiWindow, husimiAt, husimiImage1D, wehrlEntropy } from "../diagnostics/husimi.js";
+import { densestPoints } from "../diagnostics/analysis.js";
+import { M_SUN_KG, PC_M } from "../physics/constants.js";
+import type { FieldDiagnostic } from "./diagnostic-options.js";
+import { csvTable } from "./csv-table.js";
+
+const KPC = 1e3 * PC_M;
+
+/** Code → physical factors of a loaded field. */
+export interface PhysicalScales {
+  readonly kpc: number; // kpc per code length
+  readonly kms: number; // km/s per code velocity
+  readonly energy: number; // Msun (km/s)² per code energy
+  readonly mass: number; // Msun per code mass
+}
+
+export function physicalScales(field: LoadedField): PhysicalScales {
+  const u = field.units;
+  return { kpc: u.lengthM / KPC, kms: u.lengthM / u.timeS / 1e3, energy: u.energyJ / (M_SUN_KG * 1e6), mass: u.massKg / M_SUN_KG };
+}
+
+/** What the field diagnostics produced, for the summary and the pictures. */
+export interface FieldDiagnosticsResult {
+  readonly summary: Record<string, unknown>;
+  readonly split?: ReturnType<typeof energySplit>;
+  readonly vortices?: VortexCensus;
+  readonly granules?: GranuleStats;
+  /** 1D: the x–v image (log₁₀ f over x and v); 2D/3D: speed distributions at the points. */
+  readonly husimiImage?: { x: Float64Array; v: Float64Array; log10f: Float64Array; vMax: number };
+  readonly husimiPoints?: { point: number[]; speed: { v: number; F: number }[] }[];
+  readonly eta?: number;
+}
+
+/** Compute the chosen diagnostics of `field` and write their tables into `outDir`. */
+export function fieldDiagnostics(field: LoadedField, chosen: Set<FieldDiagnostic>, outDir: string, windowKpc?: number, pointsKpc?: readonly (readonly number[])[]): FieldDiagnosticsResult {
+  const s = physicalScales(field);
+  const summary: Record<string, unknown> = {};
+  const out: { -readonly [K in keyof FieldDiagnosticsResult]: FieldDiagnosticsResult[K] } = { summary };
+  if (chosen.has("energy-split")) out.split = writeEnergySplit(field, s, outDir, summary);
+  if (chosen.has("vortices")) out.vortices = writeVortices(field, s, outDir, summary);
+  if (chosen.has("granules")) out.granules = writeGranules(field, s, outDir, summary);
+  if (chosen.has("husimi")) Object.assign(out, writeHusimi(field, s, outDir, summary, windowKpc, pointsKpc));
+  return out;
+}
+
+function writeEnergySplit(field: LoadedField, s: PhysicalScales, outDir: string, summary: Record<string, unknown>) {
+  const split = energySplit(field.grid, field.psi, field.scaleFactor);
+  const d = field.grid.dims;
+  writeFileAtomic(
+    path.join(outDir, "energy-spectra.csv"),
+    csvTable(
+      ["k_per_kpc", "quantum_Msun_km2_s2", "incompressible_Msun_km2_s2", "compressible_Msun_km2_s2", `velocity_power_km2_s2_kpc${d}`, "modes"],
+      split.spectra.map((b) => [b.k / s.kpc, b.quantum * s.energy, b.incompressible * s.energy, b.compressible * s.energy, b.velocityPower * s.kms * s.kms * s.kpc ** d, b.modes]),
+    ),
+  );
+  summary["energy_split_Msun_km2_s2"] = {
+    kinetic: split.kinetic * s.energy,
+    quantum: split.quantum * s.energy,
+    incompressible: split.incompressible * s.energy,
+    compressible: split.compressible * s.energy,
+    unresolved_nyquist: split.unresolved * s.energy,
+    uniform_flow: split.uniformFlow * s.energy,
+  };
+  return split;
+}
+
+function writeVortices(field: LoadedField, s: PhysicalScales, outDir: string, summary: Record<string, unknown>): VortexCensus {
+  const census = findVortices(field.grid, field.psi);
+  const three = field.grid.dims === 3;
+  const header = three ? ["x_kpc", "y_kpc", "z_kpc", "normal_axis", "charge", "length_kpc"] : ["x_kpc", "y_kpc", "charge"];
+  const rows = census.points.map((p) => [...p.position.map((x) => x * s.kpc), ...(three ? [p.normal + 1, p.charge, p.length * s.kpc] : [p.charge])]);
+  writeFileAtomic(path.join(outDir, "vortices.csv"), csvTable(header, rows));
+  summary["vortices"] = three
+    ? { piercings: census.points.length, net_charge: census.netCharge, line_length_kpc: census.lineLength * s.kpc, line_length_per_volume_per_kpc2: census.density / s.kpc ** 2 }
+    : { count: census.positive + census.negative, positive: census.positive, negative: census.negative, net_charge: census.netCharge, per_area_per_kpc2: census.density / s.kpc ** 2 };
+  return census;
+}
+
+function writeGranules(field: LoadedField, s: PhysicalScales, outDir: string, summary: Record<string, unknown>): GranuleStats {
+  const g = granuleStats(field.grid, field.psi, field.scaleFactor);
+  writeFileAtomic(path.join(outDir, "granule-pdf.csv"), csvTable(["density_contrast", "pdf", "exponential", "gamma"], g.pdf.map((b) => [b.x, b.pdf, b.exponential, b.gamma])));
+  writeFileAtomic(path.join(outDir, "granule-correlation.csv"), csvTable(["r_kpc", "xi", "random_phase_xi", "cells"], g.correlation.map((c) => [c.r * s.kpc, c.xi, c.predicted, c.cells])));
+  summary["granules"] = {
+    density_variance: g.variance,
+    gamma_shape: g.gammaShape,
+    velocity_dispersion_1d_km_s: g.velocityDispersion * s.kms,
+    correlation_length_kpc: g.correlationLength * s.kpc,
+    random_phase_length_kpc: g.predictedLength * s.kpc,
+    quasi_particle_mass_Msun: g.quasiParticleMass * s.mass,
+    random_phase_quasi_particle_mass_Msun: g.predictedQuasiParticleMass * s.mass,
+  };
+  return g;
+}
+
+/** f [code] → Msun/(kpc · km/s)^d, with v = k/a. */
+function husimiUnit(field: LoadedField, s: PhysicalScales): number {
+  const d = field.grid.dims;
+  return (s.mass * Math.pow(field.scaleFactor / s.kms, d)) / Math.pow(s.kpc, d);
+}
+
+function writeHusimi(field: LoadedField, s: PhysicalScales, outDir: string, summary: Record<string, unknown>, windowKpc?: number, pointsKpc?: readonly (readonly number[])[]) {
+  const { grid, psi } = field;
+  const a = field.scaleFactor;
+  const eta = windowKpc !== undefined ? windowKpc / s.kpc : defaultHusimiWindow(grid);
+  const unit = husimiUnit(field, s);
+  const vPerK = s.kms / a;
+  if (grid.dims === 1) {
+    const img = husimiImage1D(grid, psi, eta);
+    const m = img.k.length;
+    // the velocity range that holds the distribution: where the marginal exceeds 1e-6 of its peak
+    const marginal = new Float64Array(m);
+    for (let i = 0; i < img.x.length; i++) for (let q = 0; q < m; q++) marginal[q] = marginal[q]! + img.f[i * m + q]!;
+    const peak = Math.max(...marginal);
+    let kMax = 0;
+    for (let q = 0; q < m; q++) if (marginal[q]! > 1e-6 * peak) kMax = Math.max(kMax, Math.abs(img.k[q]!));
+    const order = Array.from({ length: m }, (_, j) => (j + m / 2) % m).filter((q) => Math.abs(img.k[q]!) <= kMax);
+    const v = Float64Array.from(order, (q) => img.k[q]! * vPerK);
+    const log10f = new Float64Array(img.x.length * order.length);
+    const rows: number[][] = [];
+    for (let i = 0; i < img.x.length; i++) {
+      order.forEach((q, j) => {
+        const f = img.f[i * m + q]! * unit;
+        log10f[j * img.x.length + i] = Math.log10(Math.max(f, 1e-300));
+        rows.push([img.x[i]! * s.kpc, img.k[q]! * vPerK, f]);
+      });
+    }
+    writeFileAtomic(path.join(outDir, "husimi.csv"), csvTable(["x_kpc", "v_km_s", "f_Msun_per_kpc_km_s"], rows));
+    summary["husimi"] = { window_kpc: eta * s.kpc, wehrl_entropy: wehrlEntropy(grid, psi, eta) };
+    return { eta, husimiImage: { x: Float64Array.from(img.x, (x) => x * s.kpc), v, log10f, vMax: kMax * vPerK } };
+  }
+  const points = pointsKpc?.map((p) => p.map((x) => x / s.kpc)) ?? [densestPoints(grid, psi, 1, 1)[0]!.coords];
+  const rows: number[][] = [];
+  const husimiPoints = points.map((point, index) => {
+    const h = husimiAt(grid, psi, point, eta);
+    const speed = speedDistribution(h.cells, h.dk, h.f);
+    for (const b of speed) rows.push([index + 1, ...point.map((x) => x * s.kpc), b.v * vPerK, (b.F * unit * Math.pow(vPerK, grid.dims)) / vPerK]);
+    return { point: point.map((x) => x * s.kpc), speed: speed.map((b) => ({ v: b.v * vPerK, F: (b.F * unit * Math.pow(vPerK, grid.dims)) / vPerK })) };
+  });
+  const axes = ["x_kpc", "y_kpc", "z_kpc"].slice(0, grid.dims);
+  writeFileAtomic(path.join(outDir, "husimi-points.csv"), csvTable(["point", ...axes, "speed_km_s", `F_Msun_per_kpc${grid.dims}_km_s`], rows));
+  const wehrl = grid.dims === 2 ? wehrlEntropy(grid, psi, eta, Math.max(1, Math.floor(eta / Math.max(grid.spacing[1], grid.spacing[2])))) : null;
+  summary["husimi"] = { window_kpc: eta * s.kpc, points: husimiPoints.map((p) => p.point), wehrl_entropy: wehrl };
+  return { eta, husimiPoints };
+}
+
+/** ∫ over directions of f(x, k) at fixed |k|: shells of width Δk, as Σ f Δᵈk / Δk per shell. */
+function speedDistribution(cells: number[], dk: number[], f: Float64Array): { v: number; F: number }[] {
+  const width = Math.min(...dk);
+  const cell = dk.reduce((p, v) => p * v, 1);
+  const sums = new Map<number, { k: number; f: number; n: number }>();
+  const d = cells.length;
+  for (let i = 0; i < f.length; i++) {
+    let rest = i;
+    let k2 = 0;
+    for (let ax = d - 1; ax >= 0; ax--) {
+      const m = cells[ax]!;
+      const q = rest % m;
+      rest = Math.floor(rest / m);
+      const kk = (q < m / 2 ? q : q - m) * dk[ax]!;
+      k2 += kk * kk;
+    }
+    const k = Math.sqrt(k2);
+    const b = Math.round(k / width);
+    const e = sums.get(b) ?? { k: 0, f: 0, n: 0 };
+    e.k += k;
+    e.f += f[i]! * cell;
+    e.n += 1;
+    sums.set(b, e);
+  }
+  return [...sums.entries()].sort((x, y) => x[0] - y[0]).map(([, e]) => ({ v: e.k / e.n, F: e.f / width }));
+}
