@@ -9,6 +9,7 @@ import { InputError } from "../core/errors.js";
 import { writeFileAtomic } from "../io/atomic.js";
 import { analyzeRun } from "./analyze.js";
 import type { Figure } from "./render.js";
+import { diagnosticsSection } from "./diagnostics-section.js";
 
 function esc(s: string): string {
   return s.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;");
@@ -69,6 +70,7 @@ ${img(first?.figures["slice"], "density at the start")}${img(last?.figures["slic
 ${table(peakRows)}
 <h2 id="power">Power spectrum</h2>
 ${img(first?.figures["power"], "at the start")}${img(last?.figures["power"], "at the end")}
+${diagnosticsSection(first, last, { img, esc })}
 <h2 id="parameters">Parameters</h2>
 <pre>${esc(config)}</pre>
 </body></html>

@@ -96,7 +96,7 @@ describe.runIf(chromium !== undefined || process.env["CI"] === "true")("psibox r
       });
       page.on("pageerror", (e) => errors.push(e.message));
       await page.goto(`file://${file}`);
-      for (const id of ["clocks", "energies", "field", "power", "parameters"]) expect(await page.locator(`#${id}`).count(), id).toBe(1);
+      for (const id of ["clocks", "energies", "field", "power", "diagnostics", "parameters"]) expect(await page.locator(`#${id}`).count(), id).toBe(1);
       const images = await page.locator("img").evaluateAll((els) => els.map((e) => (e as unknown as { naturalWidth: number }).naturalWidth));
       expect(images.length).toBeGreaterThanOrEqual(5);
       expect(images.every((w) => w > 100)).toBe(true);
