@@ -1,6 +1,7 @@
 /** The report's field-diagnostics section: the energy split, vortices, granules and the Husimi distribution of the last snapshot. */
 import type { SnapshotAnalysis } from "./analyze.js";
 import type { Figure } from "./render.js";
+import { formatNumber } from "../core/format.js";
 
 /** The report's own picture and escaping helpers, so the section looks like the rest of the page. */
 export interface HtmlParts {
@@ -8,7 +9,7 @@ export interface HtmlParts {
   esc(s: string): string;
 }
 
-const num = (v: unknown) => (typeof v === "number" && Number.isFinite(v) ? v.toPrecision(4) : "—");
+const num = (v: unknown) => (typeof v === "number" ? formatNumber(v) : "—");
 
 /** One sentence per diagnostic from a snapshot's summary.json. */
 function sentences(summary: Record<string, unknown>): string[] {
