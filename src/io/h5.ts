@@ -7,7 +7,7 @@
 import fs from "node:fs";
 import path from "node:path";
 import { fsyncFolder, fsyncPath, temporaryPathFor } from "./atomic.js";
-import h5wasm, { Dataset, Group, type File as H5File } from "h5wasm/node";
+import h5wasm, { Dataset, Group, type File as H5File, type FileOptions } from "h5wasm/node";
 import { InputError } from "../core/errors.js";
 
 export type { H5File };
@@ -37,13 +37,13 @@ export function hdf5Reason(e: unknown): string {
 /**
  * Write an HDF5 file atomically: build it as a hidden temporary file in the
  * target folder, close, fsync, rename over the target, fsync the folder.
- * Call loadHdf5() first.
+ * `options.track_order` keeps objects and attributes in creation order. Call loadHdf5() first.
  */
-export function writeHdf5Atomic(finalPath: string, fill: (file: H5File) => void): void {
+export function writeHdf5Atomic(finalPath: string, fill: (file: H5File) => void, options: FileOptions = {}): void {
   const tmp = temporaryPathFor(finalPath);
   let file: H5File | undefined;
   try {
-    file = new h5wasm.File(tmp, "w");
+    file = new h5wasm.File(tmp, "w", options);
     fill(file);
     const status = file.close();
     file = undefined;

@@ -1,32 +1,32 @@
 /**
- * psibox's snapshot file (HDF5), self-describing: everything needed to
- * rebuild the grid and the field, in physical units, with the resolved
- * config that made it.
- *
- * Layout (format "psibox snapshot", version 1):
- *   /                 attributes: format, format_version, software, kind ("snapshot" | "checkpoint"),
- *                     step, time + time_units, scale_factor, redshift (expanding runs),
- *                     background, hubble [km/s/Mpc], omega_matter, omega_radiation,
- *                     particle_mass + particle_mass_units ("eV"), gravity, mass + mass_units ("Msun"),
- *                     config (TOML text of the resolved config), config_sha256
- *   /grid             attributes: dims, cells, box_size + box_size_units ("kpc", comoving)
- *   /field/psi        float64 or float32, shape [cells..., 2]: real and imaginary parts of ψ with
- *                     |ψ|² the comoving mass density; attributes units ("(Msun/kpc^3)^(1/2)"),
- *                     components ("re,im"); dimensions labelled x, y, z (as many as the grid), part
- *   /state            checkpoints only: psi_code, phi_code (float64, code units, bit-exact state),
- *                     attributes time_code, mass_code, mass0_code, steps, wall_time_s, snapshots_written
- *   /state/plugins    checkpoints of runs with plug-ins that keep state: one attribute per plug-in, named
- *                     by it, holding JSON text {"version": n, "state": …} (the quantum sidecar's is "sidecar";
- *                     checkpoints written before plug-ins held the sidecar's state, unversioned, in an
- *                     attribute "sidecar" of /state, which is read as version 1)
+ * psibox's snapshot file: HDF5 that is also a netCDF-4 file following the
+ * CF conventions, self-describing (units, coordinates, constants, the
+ * resolved config), so xarray, ncdump and h5py open it without psibox. The
+ * layout is declared in snapshot-layout.ts; this module writes the current
+ * version and snapshot-read.ts reads every version.
  */
 import { InputError } from "../core/errors.js";
-import { Dataset, Group, hdf5Reason, openHdf5, writeHdf5Atomic, type H5File } from "./h5.js";
+import { unitInSI } from "../physics/units.js";
+import { writeHdf5Atomic, type Dataset, type Group, type H5File } from "./h5.js";
+import { intAttr, intsAttr, numberAttr, numbersAttr, textAttr } from "./h5-attrs.js";
+import {
+  AXIS_NAMES,
+  CF_CONVENTIONS,
+  EQUATIONS,
+  LAYOUT_COMMENT,
+  LENGTH_UNITS,
+  PSI_IM,
+  PSI_RE,
+  PSI_UNITS,
+  SNAPSHOT_FORMAT,
+  SNAPSHOT_VERSION,
+  STATE,
+  UNIT_SYSTEM,
+  snapshotConstants,
+} from "./snapshot-layout.js";
 
-export const SNAPSHOT_FORMAT = "psibox snapshot";
-export const SNAPSHOT_VERSION = 1;
-/** Units of ψ in a snapshot. */
-export const PSI_UNITS = "(Msun/kpc^3)^(1/2)";
+export { SNAPSHOT_FORMAT, SNAPSHOT_VERSION, PSI_UNITS } from "./snapshot-layout.js";
+export { readSnapshot } from "./snapshot-read.js";
 
 /** Background as written in a snapshot. */
 export type SnapshotBackground =
@@ -62,6 +62,8 @@ export interface CheckpointState {
   readonly steps: number;
   readonly wallTimeS: number;
   readonly snapshotsWritten: number;
+  /** The closing kick ψ still owes (psiCode is then ψ before it; 0 when ψ is current). */
+  readonly owedKickCode?: number;
   /** Each run plug-in's saved state by plug-in name: JSON text {"version": n, "state": …}. */
   readonly plugins?: Readonly<Record<string, string>>;
 }
@@ -75,214 +77,166 @@ export interface Snapshot {
   readonly state?: CheckpointState;
 }
 
-function numberAttr(node: Group | H5File, name: string, value: number): void {
-  node.create_attribute(name, value, [], "<d");
-}
-
-function intAttr(node: Group | H5File, name: string, value: number): void {
-  node.create_attribute(name, new BigInt64Array([BigInt(value)]), [], "<q");
-}
 
 /** Rows along the first axis per chunk, aiming at about 2 MiB per chunk. */
 function rowsPerChunk(cells: readonly number[], bytesPerValue: number): number {
-  const rowValues = (cells.slice(1).reduce((p, n) => p * n, 1)) * 2;
+  const rowValues = cells.slice(1).reduce((p, n) => p * n, 1);
   return Math.max(1, Math.min(cells[0] as number, Math.floor((2 << 20) / (rowValues * bytesPerValue))));
 }
 
-function writePsi(group: Group, name: string, cells: readonly number[], psi: Float64Array, precision: "float64" | "float32", scale = 1): Dataset {
-  const shape = [...cells, 2];
-  const bytes = precision === "float64" ? 8 : 4;
-  const rows = rowsPerChunk(cells, bytes);
-  const ds = group.create_dataset({
+/** A chunked, empty dataset of the grid's shape, attached to the coordinate variables. */
+function gridVariable(f: H5File, name: string, cells: readonly number[], precision: "float64" | "float32"): Dataset {
+  const rows = rowsPerChunk(cells, precision === "float64" ? 8 : 4);
+  const ds = f.create_dataset({
     name,
     data: precision === "float64" ? new Float64Array(0) : new Float32Array(0),
-    shape: [0, ...shape.slice(1)],
-    maxshape: shape,
-    chunks: [rows, ...shape.slice(1)],
+    shape: [0, ...cells.slice(1)],
+    maxshape: [...cells],
+    chunks: [rows, ...cells.slice(1)],
     dtype: precision === "float64" ? "<d" : "<f",
   });
-  ds.resize(shape);
-  const rowLength = psi.length / (cells[0] as number);
-  for (let r0 = 0; r0 < (cells[0] as number); r0 += rows) {
-    const r1 = Math.min(cells[0] as number, r0 + rows);
-    const part = psi.subarray(r0 * rowLength, r1 * rowLength);
-    const slab = scale === 1 ? part : part.map((v) => v * scale);
-    ds.write_slice([[r0, r1], ...shape.slice(1).map(() => [] as [])], precision === "float64" ? slab : Float32Array.from(slab));
-  }
+  ds.resize([...cells]);
+  cells.forEach((_, axis) => ds.attach_scale(axis, AXIS_NAMES[axis] as string));
   return ds;
 }
 
-/** Write a snapshot (or checkpoint) atomically. Call loadHdf5() first. */
-export function writeSnapshot(file: string, snap: Snapshot, precision: "float64" | "float32" = "float64"): void {
-  const m = snap.meta;
-  writeHdf5Atomic(file, (f) => {
-    f.create_attribute("format", SNAPSHOT_FORMAT);
-    intAttr(f, "format_version", SNAPSHOT_VERSION);
-    f.create_attribute("software", m.software);
-    f.create_attribute("kind", m.kind);
-    intAttr(f, "step", m.step);
-    numberAttr(f, "time", m.time);
-    f.create_attribute("time_units", m.timeUnit);
-    numberAttr(f, "scale_factor", m.scaleFactor);
-    if (m.redshift !== null) numberAttr(f, "redshift", m.redshift);
-    f.create_attribute("background", m.background.kind);
-    if (m.background.kind === "lcdm") {
-      numberAttr(f, "hubble", m.background.hubbleKmSMpc);
-      f.create_attribute("hubble_units", "km/s/Mpc");
-      numberAttr(f, "omega_matter", m.background.omegaMatter);
-      numberAttr(f, "omega_radiation", m.background.omegaRadiation);
+/** Write ψ (interleaved, times `scale`) as the two real variables, slab by slab along the first axis. */
+function writePsi(f: H5File, cells: readonly number[], psi: Float64Array, precision: "float64" | "float32", scale: number): void {
+  const re = gridVariable(f, PSI_RE, cells, precision);
+  const im = gridVariable(f, PSI_IM, cells, precision);
+  for (const [ds, part] of [[re, "real"], [im, "imaginary"]] as const) {
+    textAttr(ds, "long_name", `${part} part of the wave function psi (|psi|^2 is the comoving mass density)`);
+    textAttr(ds, "units", PSI_UNITS);
+  }
+  const n0 = cells[0] as number;
+  const rowCells = psi.length / 2 / n0;
+  const rows = rowsPerChunk(cells, precision === "float64" ? 8 : 4);
+  const Slab = precision === "float64" ? Float64Array : Float32Array;
+  const a = new Slab(rows * rowCells);
+  const b = new Slab(rows * rowCells);
+  for (let r0 = 0; r0 < n0; r0 += rows) {
+    const r1 = Math.min(n0, r0 + rows);
+    const n = (r1 - r0) * rowCells;
+    const base = 2 * r0 * rowCells;
+    for (let i = 0; i < n; i++) {
+      a[i] = psi[base + 2 * i]! * scale;
+      b[i] = psi[base + 2 * i + 1]! * scale;
     }
-    numberAttr(f, "particle_mass", m.particleMassEv);
-    f.create_attribute("particle_mass_units", "eV");
-    f.create_attribute("gravity", m.gravity);
-    numberAttr(f, "mass", m.massMsun);
-    f.create_attribute("mass_units", "Msun");
-    f.create_attribute("config", m.config);
-    f.create_attribute("config_sha256", m.configSha256);
-
-    const grid = f.create_group("grid");
-    intAttr(grid, "dims", m.cells.length);
-    grid.create_attribute("cells", new BigInt64Array(m.cells.map((n) => BigInt(n))), [m.cells.length], "<q");
-    grid.create_attribute("box_size", Float64Array.from(m.boxSizeKpc), [m.boxSizeKpc.length], "<d");
-    grid.create_attribute("box_size_units", "kpc");
-
-    const field = f.create_group("field");
-    const ds = writePsi(field, "psi", m.cells, snap.psi, precision, snap.psiScale);
-    ds.create_attribute("units", PSI_UNITS);
-    ds.create_attribute("components", "re,im");
-    const labels = ["x", "y", "z"].slice(0, m.cells.length);
-    labels.forEach((l, i) => ds.set_dimension_label(i, l));
-    ds.set_dimension_label(m.cells.length, "part");
-
-    if (snap.state) {
-      const st = snap.state;
-      const g = f.create_group("state");
-      g.create_dataset({ name: "psi_code", data: st.psiCode, shape: [st.psiCode.length], dtype: "<d" });
-      g.create_dataset({ name: "phi_code", data: st.phiCode, shape: [st.phiCode.length], dtype: "<d" });
-      numberAttr(g, "time_code", st.timeCode);
-      numberAttr(g, "mass_code", st.massCode);
-      numberAttr(g, "mass0_code", st.mass0Code);
-      intAttr(g, "steps", st.steps);
-      numberAttr(g, "wall_time_s", st.wallTimeS);
-      intAttr(g, "snapshots_written", st.snapshotsWritten);
-      if (st.plugins && Object.keys(st.plugins).length) {
-        const states = g.create_group("plugins");
-        for (const [name, text] of Object.entries(st.plugins)) states.create_attribute(name, text);
-      }
-    }
-  });
-}
-
-function attr(node: Group | H5File, name: string, file: string): unknown {
-  const a = node.attrs[name];
-  if (!a) throw new InputError(`${file}: not a psibox snapshot (attribute "${name}" is missing)`);
-  const v = a.value;
-  return typeof v === "bigint" ? Number(v) : v;
-}
-
-function numberOf(node: Group | H5File, name: string, file: string): number {
-  const v = attr(node, name, file);
-  const n = typeof v === "number" ? v : ArrayBuffer.isView(v) ? Number((v as unknown as ArrayLike<number | bigint>)[0]) : NaN;
-  if (!Number.isFinite(n)) throw new InputError(`${file}: attribute "${name}" is not a number`);
-  return n;
-}
-
-function stringOf(node: Group | H5File, name: string, file: string): string {
-  const v = attr(node, name, file);
-  if (typeof v !== "string") throw new InputError(`${file}: attribute "${name}" is not text`);
-  return v;
-}
-
-function numbersOf(node: Group | H5File, name: string, file: string): number[] {
-  const v = attr(node, name, file);
-  if (typeof v === "number") return [v];
-  if (ArrayBuffer.isView(v)) return Array.from(v as unknown as ArrayLike<number | bigint>, (x) => Number(x));
-  throw new InputError(`${file}: attribute "${name}" is not a list of numbers`);
-}
-
-function readFloat64(ds: Dataset): Float64Array {
-  const v = ds.value;
-  if (v instanceof Float64Array) return v;
-  if (v instanceof Float32Array) return Float64Array.from(v);
-  throw new InputError(`dataset ${ds.path} is not floating point`);
-}
-
-/** Read a psibox snapshot or checkpoint; `withState` also reads a checkpoint's exact state. */
-export function readSnapshot(file: string, withState = false): Snapshot {
-  const f = openHdf5(file);
-  try {
-    const format = f.attrs["format"]?.value;
-    if (format !== SNAPSHOT_FORMAT) throw new InputError(`${file}: not a psibox snapshot (no "format" attribute "${SNAPSHOT_FORMAT}")`);
-    const version = numberOf(f, "format_version", file);
-    if (version > SNAPSHOT_VERSION) throw new InputError(`${file}: snapshot format version ${version} is newer than this psibox reads (${SNAPSHOT_VERSION})`);
-    const grid = f.get("grid");
-    if (!(grid instanceof Group)) throw new InputError(`${file}: not a psibox snapshot (no /grid group)`);
-    const cells = numbersOf(grid, "cells", file);
-    const boxSizeKpc = numbersOf(grid, "box_size", file);
-    const bgKind = stringOf(f, "background", file);
-    const background: SnapshotBackground =
-      bgKind === "lcdm"
-        ? { kind: "lcdm", hubbleKmSMpc: numberOf(f, "hubble", file), omegaMatter: numberOf(f, "omega_matter", file), omegaRadiation: numberOf(f, "omega_radiation", file) }
-        : { kind: "static" };
-    const kind = stringOf(f, "kind", file);
-    const meta: SnapshotMeta = {
-      kind: kind === "checkpoint" ? "checkpoint" : "snapshot",
-      software: stringOf(f, "software", file),
-      step: numberOf(f, "step", file),
-      time: numberOf(f, "time", file),
-      timeUnit: stringOf(f, "time_units", file),
-      scaleFactor: numberOf(f, "scale_factor", file),
-      redshift: f.attrs["redshift"] ? numberOf(f, "redshift", file) : null,
-      cells,
-      boxSizeKpc,
-      particleMassEv: numberOf(f, "particle_mass", file),
-      gravity: stringOf(f, "gravity", file),
-      background,
-      massMsun: numberOf(f, "mass", file),
-      config: stringOf(f, "config", file),
-      configSha256: stringOf(f, "config_sha256", file),
-    };
-    const ds = f.get("field/psi");
-    if (!(ds instanceof Dataset)) throw new InputError(`${file}: the snapshot has no /field/psi dataset`);
-    const expected = [...cells, 2].join("×");
-    if ((ds.shape ?? []).join("×") !== expected) {
-      throw new InputError(`${file}: /field/psi has shape ${(ds.shape ?? []).join("×")}, expected ${expected}`);
-    }
-    const psi = readFloat64(ds);
-    let state: CheckpointState | undefined;
-    if (withState) {
-      const g = f.get("state");
-      const psiCode = f.get("state/psi_code");
-      const phiCode = f.get("state/phi_code");
-      if (!(g instanceof Group) || !(psiCode instanceof Dataset) || !(phiCode instanceof Dataset)) {
-        throw new InputError(`${file}: not a checkpoint (no /state group with psi_code and phi_code)`);
-      }
-      state = {
-        psiCode: readFloat64(psiCode),
-        phiCode: readFloat64(phiCode),
-        timeCode: numberOf(g, "time_code", file),
-        massCode: numberOf(g, "mass_code", file),
-        mass0Code: numberOf(g, "mass0_code", file),
-        steps: numberOf(g, "steps", file),
-        wallTimeS: numberOf(g, "wall_time_s", file),
-        snapshotsWritten: numberOf(g, "snapshots_written", file),
-        ...pluginStates(f, g, file),
-      };
-    }
-    return state ? { meta, psi, state } : { meta, psi };
-  } catch (e) {
-    if (e instanceof InputError) throw e;
-    throw new InputError(`${file}: cannot read the snapshot (${hdf5Reason(e)})`);
-  } finally {
-    f.close();
+    const ranges = [[r0, r1] as [number, number], ...cells.slice(1).map(() => [] as [])];
+    re.write_slice(ranges, a.subarray(0, n));
+    im.write_slice(ranges, b.subarray(0, n));
   }
 }
 
-/** The plug-in states of a checkpoint's /state group (see the layout above). */
-function pluginStates(f: H5File, g: Group, file: string): { plugins?: Record<string, string> } {
-  const plugins: Record<string, string> = {};
-  const group = f.get("state/plugins");
-  if (group instanceof Group) for (const name of Object.keys(group.attrs)) plugins[name] = stringOf(group, name, file);
-  else if (g.attrs["sidecar"]) plugins["sidecar"] = `{"version":1,"state":${stringOf(g, "sidecar", file)}}`;
-  return Object.keys(plugins).length ? { plugins } : {};
+/** The coordinate variables: comoving cell centres i·dx in kpc. */
+function writeCoordinates(f: H5File, cells: readonly number[], boxKpc: readonly number[]): void {
+  cells.forEach((n, axis) => {
+    const name = AXIS_NAMES[axis] as string;
+    const dx = (boxKpc[axis] as number) / n;
+    const ds = f.create_dataset({ name, data: Float64Array.from({ length: n }, (_, i) => i * dx), shape: [n], dtype: "<d" });
+    ds.make_scale(name);
+    textAttr(ds, "long_name", `comoving ${name} (cell centres)`);
+    textAttr(ds, "units", LENGTH_UNITS);
+    textAttr(ds, "axis", name.toUpperCase());
+    textAttr(ds, "comment", `periodic: the box spans [-dx/2, ${n} dx - dx/2) with dx = ${dx} kpc`);
+  });
+}
+
+/** A netCDF dimension without a coordinate variable (netCDF-4's own form), in a group. */
+function bareDimension(g: Group, name: string, length: number): void {
+  const ds = g.create_dataset({ name, data: new Float32Array(0), shape: [0], maxshape: [length], chunks: [Math.min(length, 1024)], dtype: "<f" });
+  ds.resize([length]);
+  ds.make_scale(`This is a netCDF dimension but not a netCDF variable.${String(length).padStart(10)}`);
+}
+
+function writeState(f: H5File, st: CheckpointState): void {
+  const g = f.create_group(STATE.group);
+  bareDimension(g, STATE.psiDim, st.psiCode.length);
+  bareDimension(g, STATE.phiDim, st.phiCode.length);
+  const psi = g.create_dataset({ name: STATE.psi, data: st.psiCode, shape: [st.psiCode.length], dtype: "<d" });
+  psi.attach_scale(0, `${STATE.group}/${STATE.psiDim}`);
+  textAttr(psi, "long_name", "exact state: psi in code units, interleaved (re, im)");
+  const phi = g.create_dataset({ name: STATE.phi, data: st.phiCode, shape: [st.phiCode.length], dtype: "<d" });
+  phi.attach_scale(0, `${STATE.group}/${STATE.phiDim}`);
+  textAttr(phi, "long_name", "exact state: the potential phi in code units");
+  numberAttr(g, "time_code", st.timeCode);
+  numberAttr(g, "mass_code", st.massCode);
+  numberAttr(g, "mass0_code", st.mass0Code);
+  numberAttr(g, "owed_kick_code", st.owedKickCode ?? 0);
+  intAttr(g, "steps", st.steps);
+  numberAttr(g, "wall_time_s", st.wallTimeS);
+  intAttr(g, "snapshots_written", st.snapshotsWritten);
+  if (st.plugins && Object.keys(st.plugins).length) {
+    const states = g.create_group(STATE.plugins);
+    for (const [name, text] of Object.entries(st.plugins)) textAttr(states, name, text);
+  }
+}
+
+/** The global attributes: what, when, in which units, with which constants. */
+function writeGlobals(f: H5File, m: SnapshotMeta): void {
+  textAttr(f, "Conventions", CF_CONVENTIONS);
+  textAttr(f, "title", `psibox ${m.kind} at step ${m.step}`);
+  textAttr(f, "source", m.software);
+  textAttr(f, "format", SNAPSHOT_FORMAT);
+  intAttr(f, "format_version", SNAPSHOT_VERSION);
+  textAttr(f, "software", m.software);
+  textAttr(f, "kind", m.kind);
+  intAttr(f, "step", m.step);
+  numberAttr(f, "time", m.time);
+  textAttr(f, "time_units", m.timeUnit);
+  textAttr(f, "time_origin", m.background.kind === "lcdm" ? "the big bang (cosmic time)" : "the start of the run");
+  numberAttr(f, "scale_factor", m.scaleFactor);
+  if (m.redshift !== null) numberAttr(f, "redshift", m.redshift);
+  textAttr(f, "background", m.background.kind);
+  if (m.background.kind === "lcdm") {
+    const bg = m.background;
+    textAttr(f, "cosmology", "flat LCDM (comoving box)");
+    numberAttr(f, "hubble", bg.hubbleKmSMpc);
+    textAttr(f, "hubble_units", "km/s/Mpc");
+    numberAttr(f, "omega_matter", bg.omegaMatter);
+    numberAttr(f, "omega_radiation", bg.omegaRadiation);
+    numberAttr(f, "omega_lambda", 1 - bg.omegaMatter - bg.omegaRadiation);
+  } else {
+    textAttr(f, "cosmology", "static (no expansion, scale factor 1)");
+  }
+  numberAttr(f, "particle_mass", m.particleMassEv);
+  textAttr(f, "particle_mass_units", "eV");
+  textAttr(f, "gravity", m.gravity);
+  numberAttr(f, "mass", m.massMsun);
+  textAttr(f, "mass_units", "Msun");
+  intsAttr(f, "cells", m.cells);
+  numbersAttr(f, "box_size", m.boxSizeKpc);
+  textAttr(f, "box_size_units", LENGTH_UNITS);
+  textAttr(f, "unit_system", UNIT_SYSTEM);
+  for (const c of snapshotConstants(m.timeUnit, timeUnitSeconds(m.timeUnit))) {
+    numberAttr(f, c.name, c.value);
+    textAttr(f, `${c.name}_units`, c.units);
+  }
+  textAttr(f, "equations", EQUATIONS);
+  textAttr(f, "comment", LAYOUT_COMMENT);
+  textAttr(f, "config", m.config);
+  textAttr(f, "config_sha256", m.configSha256);
+}
+
+function timeUnitSeconds(unit: string): number {
+  try {
+    return unitInSI(unit);
+  } catch {
+    throw new InputError(`snapshot time unit "${unit}" is not a time unit psibox knows (e.g. Myr, Gyr, s)`);
+  }
+}
+
+/** Write a snapshot (or checkpoint) atomically in the current layout. Call loadHdf5() first. */
+export function writeSnapshot(file: string, snap: Snapshot, precision: "float64" | "float32" = "float64"): void {
+  const m = snap.meta;
+  writeHdf5Atomic(
+    file,
+    (f) => {
+      writeGlobals(f, m);
+      writeCoordinates(f, m.cells, m.boxSizeKpc);
+      writePsi(f, m.cells, snap.psi, precision, snap.psiScale ?? 1);
+      if (snap.state) writeState(f, snap.state);
+    },
+    { track_order: true },
+  );
 }

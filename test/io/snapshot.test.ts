@@ -1,8 +1,10 @@
-// Snapshot files: a round trip through psibox's reader and a read by an independent HDF5 tool (h5dump).
+// Snapshot files: a round trip through psibox's reader, a read by an independent HDF5 tool (h5dump), and files of the earlier layout.
 import { spawnSync } from "node:child_process";
+import { createHash } from "node:crypto";
 import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
+import { fileURLToPath } from "node:url";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { loadHdf5 } from "../../src/io/h5.js";
 import { readSnapshot, writeSnapshot, type Snapshot, type SnapshotMeta } from "../../src/io/snapshot.js";
@@ -93,13 +95,54 @@ describe.runIf(h5dump || process.env["CI"] === "true")("snapshot read by h5dump"
     expect(attrs.stdout).toMatch(/ATTRIBUTE "time" \{[\s\S]*?DATA \{\s*\(0\): 123\.457/);
     expect(attrs.stdout).toMatch(/ATTRIBUTE "time_units" \{[\s\S]*?"Myr"/);
     expect(attrs.stdout).toMatch(/ATTRIBUTE "cells" \{[\s\S]*?\(0\): 4, 8/);
-    expect(attrs.stdout).toMatch(/DATASET "psi" \{\s*DATATYPE\s+H5T_IEEE_F64LE\s*DATASPACE\s+SIMPLE \{ \( 4, 8, 2 \)/);
+    expect(attrs.stdout).toMatch(/DATASET "psi_re" \{\s*DATATYPE\s+H5T_IEEE_F64LE\s*DATASPACE\s+SIMPLE \{ \( 4, 8 \)/);
+    // the dimension scales that make the file a netCDF-4 file
+    expect(attrs.stdout).toMatch(/DATASET "x" \{[\s\S]*?ATTRIBUTE "CLASS" \{[\s\S]*?"DIMENSION_SCALE"/);
+    expect(attrs.stdout).toMatch(/DATASET "psi_im" \{[\s\S]*?ATTRIBUTE "DIMENSION_LIST"[\s\S]*?DATASET \d+ "\/x"[\s\S]*?DATASET \d+ "\/y"/);
     // the raw values, exported by h5dump as little-endian binary
-    const raw = path.join(dir, "dump.bin");
-    const data = spawnSync("h5dump", ["-d", "/field/psi", "-b", "LE", "-o", raw, file], { encoding: "utf8" });
-    expect(data.status).toBe(0);
-    const bytes = fs.readFileSync(raw);
-    const dumped = new Float64Array(bytes.buffer, bytes.byteOffset, bytes.byteLength / 8);
-    expect(Array.from(dumped)).toEqual(Array.from(snap.psi));
+    const parts = ["psi_re", "psi_im"].map((name) => {
+      const raw = path.join(dir, `${name}.bin`);
+      const data = spawnSync("h5dump", ["-d", `/${name}`, "-b", "LE", "-o", raw, file], { encoding: "utf8" });
+      expect(data.status).toBe(0);
+      const bytes = fs.readFileSync(raw);
+      return new Float64Array(bytes.buffer, bytes.byteOffset, bytes.byteLength / 8);
+    });
+    expect(Array.from(parts[0]!)).toEqual(Array.from(snap.psi.filter((_, i) => i % 2 === 0)));
+    expect(Array.from(parts[1]!)).toEqual(Array.from(snap.psi.filter((_, i) => i % 2 === 1)));
+  });
+});
+
+// Files in the version-1 layout, written by psibox before the netCDF layout, with what that version's reader returned.
+describe("snapshots in the earlier layout (version 1)", () => {
+  const fixtures = path.join(path.dirname(fileURLToPath(import.meta.url)), "..", "fixtures", "layout-v1");
+  const expected = JSON.parse(fs.readFileSync(path.join(fixtures, "expected.json"), "utf8")) as Record<string, Record<string, unknown>>;
+  const hash = (a: Float64Array) => createHash("sha256").update(Buffer.from(a.buffer, a.byteOffset, a.byteLength)).digest("hex");
+  for (const [name, want] of Object.entries(expected)) {
+    it(`${name}: the same metadata, field and exact state as before`, () => {
+      const snap = readSnapshot(path.join(fixtures, name), name.includes("checkpoint"));
+      expect(snap.meta).toEqual(want["meta"]);
+      expect(hash(snap.psi)).toBe(want["psi_sha256"]);
+      if (snap.state) {
+        const st = want["state"] as Record<string, unknown>;
+        expect(hash(snap.state.psiCode)).toBe(st["psiCode"]);
+        expect(hash(snap.state.phiCode)).toBe(st["phiCode"]);
+        // the sidecar's state of that layout is read as the sidecar plug-in's state, version 1
+        const { sidecar, ...rest } = st;
+        const plugins = sidecar === undefined ? {} : { plugins: { sidecar: `{"version":1,"state":${String(sidecar)}}` } };
+        expect({ ...snap.state, psiCode: st["psiCode"], phiCode: st["phiCode"] }).toEqual({ ...rest, ...plugins });
+      }
+    });
+  }
+
+  it("a version-1 checkpoint rewritten in the current layout keeps its exact state bit for bit", () => {
+    const old = readSnapshot(path.join(fixtures, "static-2d-checkpoint.h5"), true);
+    const file = path.join(dir, "rewritten.h5");
+    writeSnapshot(file, old);
+    const back = readSnapshot(file, true);
+    expect(back.meta).toEqual(old.meta);
+    expect(hash(back.psi)).toBe(hash(old.psi));
+    expect(hash(back.state!.psiCode)).toBe(hash(old.state!.psiCode));
+    expect(hash(back.state!.phiCode)).toBe(hash(old.state!.phiCode));
+    expect(back.state!.timeCode).toBe(old.state!.timeCode);
   });
 });

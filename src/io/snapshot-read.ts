@@ -1,0 +1,135 @@
+/**
+ * Reading psibox snapshots of every layout version (see snapshot-layout.ts):
+ * version 1 (/grid and an interleaved /field/psi) and version 2 (netCDF-4/CF:
+ * root attributes and the variables psi_re, psi_im). Both give the same
+ * in-memory Snapshot; a checkpoint's exact state is read as stored.
+ */
+import { InputError } from "../core/errors.js";
+import { Dataset, Group, hdf5Reason, openHdf5, type H5File } from "./h5.js";
+import { hasAttr, numberOf, numbersOf, stringOf } from "./h5-attrs.js";
+import { PSI_IM, PSI_RE, SNAPSHOT_FORMAT, SNAPSHOT_VERSION, STATE, V1 } from "./snapshot-layout.js";
+import type { CheckpointState, Snapshot, SnapshotBackground, SnapshotMeta } from "./snapshot.js";
+
+function readFloat64(ds: Dataset, file: string): Float64Array {
+  const v = ds.value;
+  if (v instanceof Float64Array) return v;
+  if (v instanceof Float32Array) return Float64Array.from(v);
+  throw new InputError(`${file}: dataset ${ds.path} is not floating point`);
+}
+
+function dataset(f: H5File, name: string, file: string, what: string): Dataset {
+  const ds = f.get(name);
+  if (!(ds instanceof Dataset)) throw new InputError(`${file}: ${what} (no /${name} dataset)`);
+  return ds;
+}
+
+function checkShape(ds: Dataset, expected: readonly number[], file: string): void {
+  const shape = (ds.shape ?? []).join("×");
+  if (shape !== expected.join("×")) throw new InputError(`${file}: ${ds.path} has shape ${shape}, expected ${expected.join("×")}`);
+}
+
+/** Version 1: ψ interleaved in /field/psi [cells..., 2]. */
+function readPsiV1(f: H5File, cells: readonly number[], file: string): Float64Array {
+  const ds = dataset(f, V1.psi, file, "the snapshot has no field");
+  checkShape(ds, [...cells, 2], file);
+  return readFloat64(ds, file);
+}
+
+/** Version 2: ψ as psi_re and psi_im over the grid's dimensions. */
+function readPsiV2(f: H5File, cells: readonly number[], file: string): Float64Array {
+  const re = dataset(f, PSI_RE, file, "the snapshot has no field");
+  const im = dataset(f, PSI_IM, file, "the snapshot has no field");
+  checkShape(re, cells, file);
+  checkShape(im, cells, file);
+  const a = readFloat64(re, file);
+  const b = readFloat64(im, file);
+  const psi = new Float64Array(2 * a.length);
+  for (let i = 0; i < a.length; i++) {
+    psi[2 * i] = a[i]!;
+    psi[2 * i + 1] = b[i]!;
+  }
+  return psi;
+}
+
+function readMeta(f: H5File, version: number, file: string): SnapshotMeta {
+  const gridNode = version === 1 ? f.get(V1.grid) : f;
+  if (!(gridNode instanceof Group)) throw new InputError(`${file}: not a psibox snapshot (no /${V1.grid} group)`);
+  const bgKind = stringOf(f, "background", file);
+  const background: SnapshotBackground =
+    bgKind === "lcdm"
+      ? { kind: "lcdm", hubbleKmSMpc: numberOf(f, "hubble", file), omegaMatter: numberOf(f, "omega_matter", file), omegaRadiation: numberOf(f, "omega_radiation", file) }
+      : { kind: "static" };
+  return {
+    kind: stringOf(f, "kind", file) === "checkpoint" ? "checkpoint" : "snapshot",
+    software: stringOf(f, "software", file),
+    step: numberOf(f, "step", file),
+    time: numberOf(f, "time", file),
+    timeUnit: stringOf(f, "time_units", file),
+    scaleFactor: numberOf(f, "scale_factor", file),
+    redshift: hasAttr(f, "redshift") ? numberOf(f, "redshift", file) : null,
+    cells: numbersOf(gridNode, "cells", file),
+    boxSizeKpc: numbersOf(gridNode, "box_size", file),
+    particleMassEv: numberOf(f, "particle_mass", file),
+    gravity: stringOf(f, "gravity", file),
+    background,
+    massMsun: numberOf(f, "mass", file),
+    config: stringOf(f, "config", file),
+    configSha256: stringOf(f, "config_sha256", file),
+  };
+}
+
+function readState(f: H5File, file: string): CheckpointState {
+  const g = f.get(STATE.group);
+  const psiCode = f.get(`${STATE.group}/${STATE.psi}`);
+  const phiCode = f.get(`${STATE.group}/${STATE.phi}`);
+  if (!(g instanceof Group) || !(psiCode instanceof Dataset) || !(phiCode instanceof Dataset)) {
+    throw new InputError(`${file}: not a checkpoint (no /${STATE.group} group with ${STATE.psi} and ${STATE.phi})`);
+  }
+  const owed = hasAttr(g, "owed_kick_code") ? numberOf(g, "owed_kick_code", file) : 0;
+  return {
+    psiCode: readFloat64(psiCode, file),
+    phiCode: readFloat64(phiCode, file),
+    timeCode: numberOf(g, "time_code", file),
+    massCode: numberOf(g, "mass_code", file),
+    mass0Code: numberOf(g, "mass0_code", file),
+    steps: numberOf(g, "steps", file),
+    wallTimeS: numberOf(g, "wall_time_s", file),
+    snapshotsWritten: numberOf(g, "snapshots_written", file),
+    ...(owed !== 0 ? { owedKickCode: owed } : {}),
+    ...pluginStates(f, g, file),
+  };
+}
+
+/** The plug-in states of a checkpoint's /state group (see the layout). */
+function pluginStates(f: H5File, g: Group, file: string): { plugins?: Record<string, string> } {
+  const plugins: Record<string, string> = {};
+  const group = f.get(`${STATE.group}/${STATE.plugins}`);
+  if (group instanceof Group) for (const name of Object.keys(group.attrs)) plugins[name] = stringOf(group, name, file);
+  else if (hasAttr(g, "sidecar")) plugins["sidecar"] = `{"version":1,"state":${stringOf(g, "sidecar", file)}}`;
+  return Object.keys(plugins).length ? { plugins } : {};
+}
+
+/** The layout version of an open file; an InputError when it is not a psibox snapshot psibox can read. */
+function layoutVersion(f: H5File, file: string): number {
+  const format = f.attrs["format"]?.value;
+  if (format !== SNAPSHOT_FORMAT) throw new InputError(`${file}: not a psibox snapshot (no "format" attribute "${SNAPSHOT_FORMAT}")`);
+  const version = numberOf(f, "format_version", file);
+  if (version > SNAPSHOT_VERSION) throw new InputError(`${file}: snapshot format version ${version} is newer than this psibox reads (${SNAPSHOT_VERSION})`);
+  return version;
+}
+
+/** Read a psibox snapshot or checkpoint of any layout; `withState` also reads a checkpoint's exact state. */
+export function readSnapshot(file: string, withState = false): Snapshot {
+  const f = openHdf5(file);
+  try {
+    const version = layoutVersion(f, file);
+    const meta = readMeta(f, version, file);
+    const psi = version === 1 ? readPsiV1(f, meta.cells, file) : readPsiV2(f, meta.cells, file);
+    return withState ? { meta, psi, state: readState(f, file) } : { meta, psi };
+  } catch (e) {
+    if (e instanceof InputError) throw e;
+    throw new InputError(`${file}: cannot read the snapshot (${hdf5Reason(e)})`);
+  } finally {
+    f.close();
+  }
+}
