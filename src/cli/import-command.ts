@@ -10,8 +10,9 @@ import { Dataset, hdf5Reason, loadHdf5, openHdf5 } from "../io/h5.js";
 import { readNpyComplex, type ComplexArray } from "../io/npy.js";
 import { writeSnapshot, type SnapshotBackground } from "../io/snapshot.js";
 import { sha256 } from "../config/serialize.js";
-import { parseAs, unitInSI, UnitSyntaxError, type QuantityKind } from "../physics/units.js";
-import { KG_PER_EV, M_SUN_KG, MPC_M, PC_M } from "../physics/constants.js";
+import { parseAs, parseUnit, QUANTITY_KINDS, UnitSyntaxError, type QuantityKind } from "../physics/units.js";
+import { makeBackground } from "../physics/cosmology/background.js";
+import { KG_PER_EV, M_SUN_KG, MPC_M, PC_M, YEAR_S } from "../physics/constants.js";
 import { Grid } from "../grid/grid.js";
 import { VERSION } from "../version.js";
 
@@ -88,6 +89,22 @@ function readHdf5Complex(file: string, flags: ImportFlags): ComplexArray {
   }
 }
 
+/** SI value of the density unit of |ψ|² in the source; a unit of another dimension is an error. */
+function densityUnitSI(text: string, littleH: number | undefined): number {
+  try {
+    const q = parseUnit(text, { littleH });
+    const want = QUANTITY_KINDS.density.dim;
+    if (q.dim.L !== want.L || q.dim.M !== want.M || q.dim.T !== want.T) {
+      throw new InputError(`--density-unit: "${text}" is not a density (mass per volume); use e.g. ${QUANTITY_KINDS.density.examples}`);
+    }
+    if (!(q.si > 0)) throw new InputError(`--density-unit: "${text}" must be positive`);
+    return q.si;
+  } catch (e) {
+    if (e instanceof UnitSyntaxError) throw new InputError(`--density-unit: ${e.message}`);
+    throw e;
+  }
+}
+
 /** Convert a field into a psibox snapshot; returns the exit code. */
 export async function importCommand(source: string, flags: ImportFlags): Promise<number> {
   await loadHdf5();
@@ -100,6 +117,7 @@ export async function importCommand(source: string, flags: ImportFlags): Promise
   let scaleFactor = 1;
   let redshift: number | null = null;
   if (flags.redshift !== undefined) {
+    if (flags.time !== undefined) throw new InputError("give --time (static fields) or --redshift (comoving fields: the time is the cosmic time at that redshift), not both");
     const z = Number(flags.redshift);
     if (!(z > -1)) throw new InputError(`--redshift: must be a number above −1, got ${flags.redshift}`);
     const hubble = option("hubble", flags.hubble, "rate");
@@ -125,19 +143,21 @@ export async function importCommand(source: string, flags: ImportFlags): Promise
     throw e;
   }
   if (!["periodic", "isolated", "none"].includes(flags.gravity)) throw new InputError(`--gravity: must be periodic, isolated or none, got "${flags.gravity}"`);
-  let densitySI: number;
-  try {
-    densitySI = unitInSI(flags.densityUnit, { littleH });
-  } catch (e) {
-    throw new InputError(`--density-unit: ${(e as Error).message}`);
-  }
+  const densitySI = densityUnitSI(flags.densityUnit, littleH);
   const scale = Math.sqrt(densitySI / (M_SUN_KG / kpc ** 3));
   const psi = Float64Array.from(field.data, (v) => v * scale);
   let mass = 0;
   for (let i = 0; i < psi.length; i += 2) mass += psi[i]! ** 2 + psi[i + 1]! ** 2;
   const cellKpc3 = boxKpc.reduce((p, b) => p * b, 1) / (psi.length / 2);
   const depth = Math.pow(boxKpc[0] as number, 3 - dims);
-  const timeValue = flags.time === undefined ? 0 : option("time", flags.time, "time") / (1e9 * 365.25 * 86400);
+  const gyr = 1e9 * YEAR_S;
+  // a comoving field's time is the cosmic time at its redshift (flat ΛCDM with the given H0 and Ω_m)
+  const timeValue =
+    background.kind === "lcdm"
+      ? makeBackground({ kind: "lcdm", hubble0: ((background.hubbleKmSMpc * 1e3) / MPC_M) * gyr, omegaMatter: background.omegaMatter, omegaRadiation: 0, littleH: littleH as number }).time(scaleFactor)
+      : flags.time === undefined
+        ? 0
+        : option("time", flags.time, "time") / gyr;
   const config =
     `# imported by psibox ${VERSION} from ${path.basename(source)}${flags.dataset ? ` (dataset ${flags.dataset})` : ""}\n` +
     `[grid]\ncells = [${field.shape.join(", ")}]\nbox = [${boxes.map((b) => JSON.stringify(b)).join(", ")}]\ngravity = "${flags.gravity}"\n\n` +
@@ -147,6 +167,10 @@ export async function importCommand(source: string, flags: ImportFlags): Promise
       : `\n[background]\nkind = "static"\n`);
   const out = path.resolve(flags.out);
   if (!flags.force && fs.existsSync(out)) throw new InputError(`${flags.out} exists; pass --force to overwrite it`);
+  const folder = path.dirname(out);
+  if (!fs.existsSync(folder) || !fs.statSync(folder).isDirectory()) {
+    throw new InputError(`--out: the folder of ${flags.out} does not exist; create it first or give a path in an existing folder`);
+  }
   writeSnapshot(out, {
     meta: {
       kind: "snapshot",

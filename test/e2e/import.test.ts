@@ -46,6 +46,13 @@ describe("psibox import", () => {
     const snap = readSnapshot(path.join(work, "f.h5"));
     expect(snap.meta.cells).toEqual(shape);
     expect(snap.meta.redshift).toBe(3);
+    // a comoving field's time is the cosmic time at z = 3: for flat matter + Λ,
+    // t(a) = 2/(3 H0 √Ω_Λ) asinh(√(Ω_Λ/Ω_m) a^{3/2}) (closed form, computed independently)
+    const H0 = (67.36 * 1e3) / 3.0856775814913673e22; // 1/s, with the IAU parsec
+    const tGyr = ((2 / (3 * H0 * Math.sqrt(1 - 0.3153))) * Math.asinh(Math.sqrt((1 - 0.3153) / 0.3153) * 0.25 ** 1.5)) / (1e9 * 365.25 * 86400);
+    expect(snap.meta.timeUnit).toBe("Gyr");
+    expect(Math.abs(snap.meta.time / tGyr - 1)).toBeLessThan(1e-8);
+    expect(snap.meta.scaleFactor).toBe(0.25);
     expect(snap.meta.particleMassEv).toBeCloseTo(2e-22, 30);
     expect(snap.meta.boxSizeKpc[0]).toBeCloseTo(1000 / 0.6736, 9);
     // |ψ|² in Msun/pc³ → Msun/kpc³ multiplies ψ by √1e9
@@ -85,6 +92,9 @@ describe("psibox import", () => {
       [["import", "f.npy", "--out", "x.h5", "--box", "1 kpc", "--particle-mass", "1e-22"], /--particle-mass: "1e-22" is not a mass/],
       [["import", "other.h5", "--dataset", "nope", "--out", "x.h5", "--box", "1 kpc", "--particle-mass", "1e-22 eV"], /other\.h5: no dataset "nope"/],
       [["import", "f.npy", "--out", "f.h5", "--box", "1 kpc", "--particle-mass", "1e-22 eV"], /f\.h5 exists; pass --force/],
+      [["import", "f.npy", "--out", "x.h5", "--box", "1 kpc", "--particle-mass", "1e-22 eV", "--density-unit", "kpc"], /--density-unit: "kpc" is not a density \(mass per volume\)/],
+      [["import", "f.npy", "--out", "no-such-folder/x.h5", "--box", "1 kpc", "--particle-mass", "1e-22 eV"], /--out: the folder of no-such-folder\/x\.h5 does not exist/],
+      [["import", "f.npy", "--out", "x.h5", "--box", "1 kpc", "--particle-mass", "1e-22 eV", "--redshift", "3", "--time", "1 Gyr"], /give --time .* or --redshift .*, not both/],
     ];
     for (const [args, message] of cases) {
       const r = psibox(args);
