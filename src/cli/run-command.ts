@@ -32,14 +32,19 @@ function resumeTarget(dir: string): ResolvedRun {
 }
 
 /** Run or resume; returns the exit code. */
-export async function runCommand(configFile: string | undefined, flags: RunFlags & { readonly initialOnly?: boolean }): Promise<number> {
+export async function runCommand(
+  configFile: string | undefined,
+  flags: RunFlags & { readonly initialOnly?: boolean; /** with resume: the later end of psibox extend */ readonly extend?: string },
+): Promise<number> {
   if (flags.threads !== undefined) {
     const t = Number(flags.threads);
     if (!(Number.isInteger(t) && t >= 1 && t <= 64)) throw new InputError(`--threads: must be a whole number from 1 to 64, got ${flags.threads}`);
     process.env["PSIBOX_THREADS"] = String(t);
   }
   let run: ResolvedRun;
-  if (flags.resume !== undefined) {
+  if (flags.resume !== undefined && flags.extend !== undefined) {
+    run = (await import("./extend.js")).extendRun(flags.resume, flags.extend);
+  } else if (flags.resume !== undefined) {
     if (configFile !== undefined) throw new InputError("give either a config file or --resume DIR, not both");
     if (flags.set.length > 0) throw new InputError("--set cannot change a resumed run; edit its config.toml instead");
     run = resumeTarget(flags.resume);

@@ -8,11 +8,14 @@ import path from "node:path";
 import { stringify } from "smol-toml";
 import type { ResolvedRun } from "./resolve.js";
 
-/** TOML text of a run's config with defaults and the output folder (relative to `cwd`). */
-export function resolvedConfigToml(run: ResolvedRun, cwd: string): string {
+/**
+ * TOML text of a run's config with defaults and the output folder as a full
+ * path, so that running it again from any working folder writes to the same
+ * place.
+ */
+export function resolvedConfigToml(run: ResolvedRun): string {
   const plain = JSON.parse(JSON.stringify(run.config)) as Record<string, Record<string, unknown>>;
-  const rel = path.relative(cwd, run.outputDir);
-  plain["output"] = { ...plain["output"], dir: rel === "" ? "." : rel.split(path.sep).join("/") };
+  plain["output"] = { ...plain["output"], dir: path.resolve(run.outputDir).split(path.sep).join("/") };
   return `# psibox resolved config (every default filled in)\n${stringify(plain)}\n`;
 }
 

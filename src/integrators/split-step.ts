@@ -225,15 +225,15 @@ export class SplitStepper {
   }
 
   /**
-   * Restore a saved state exactly (ψ, φ and mass as they were), without
-   * recomputing φ, so that a resumed run continues bit for bit.
+   * Restore a saved state exactly (ψ as stored, φ, mass and the kick ψ still
+   * owes), without recomputing φ, so that a resumed run continues bit for bit.
    */
-  restoreState(psi: Float64Array, phi: Float64Array, time: number, mass: number): void {
+  restoreState(psi: Float64Array, phi: Float64Array, time: number, mass: number, owedKick = 0): void {
     if (psi.length !== this.memory.psi.length || phi.length !== this.phi.length) {
       throw new RangeError(`saved state has ${phi.length} cells, grid has ${this.grid.size}`);
     }
     this.memory.psi.set(psi);
-    this.owedKick = 0;
+    this.owedKick = owedKick;
     this.undoState = undefined;
     this.momentsCache = undefined;
     this.phi.set(phi);

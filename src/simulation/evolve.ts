@@ -51,6 +51,12 @@ export interface EvolveResult {
 
 /** Callbacks of the run loop. */
 export interface EvolveHooks {
+  /**
+   * Before a step whose length the end time shortened (the last step, or the
+   * first of two halves before it): the state then is still on the path of
+   * any run of the same config with a later end.
+   */
+  readonly beforeEndStep?: (stepper: SplitStepper, stepsTaken: number) => void;
   /** After each accepted step. */
   readonly onStep?: (stepper: SplitStepper, info: StepInfo) => void;
   /** Checked before each step; return a reason to stop early (e.g. an interrupt). */
@@ -124,14 +130,18 @@ function* evolveSteps(
       };
     }
     let landed = false;
+    let shortened = false;
     if (stepper.time + dt >= target - tolerance) {
       dt = target - stepper.time;
       landed = true;
+      shortened = true;
       if (target === tEnd) limiter = "end";
     } else if (stepper.time + 1.5 * dt > target) {
       // split the remainder evenly rather than leave a sliver of a step
       dt = 0.5 * (target - stepper.time);
+      shortened = true;
     }
+    if (shortened && target === tEnd) hooks.beforeEndStep?.(stepper, steps);
     // a copy of the state as stored (ψ may owe its closing kick) in the stepper's undo buffer
     stepper.saveUndo();
     const t0 = stepper.time;

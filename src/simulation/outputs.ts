@@ -94,14 +94,28 @@ export class RunWriter {
     return file;
   }
 
-  /** Write the checkpoint (replacing the previous one atomically). */
-  writeCheckpoint(stepper: SplitStepper, state: Omit<CheckpointState, "psiCode" | "phiCode" | "timeCode" | "massCode">): void {
-    writeSnapshot(this.paths.checkpoint, {
-      meta: this.meta(stepper, state.steps, "checkpoint"),
-      psi: stepper.psi,
-      psiScale: this.psiScale,
-      state: { ...state, psiCode: stepper.psi, phiCode: stepper.phi, timeCode: stepper.time, massCode: stepper.mass },
-    });
-    this.log(`checkpoint at step ${state.steps}, t = ${this.scales.formatTime(stepper.time)}`);
+  /**
+   * Write the checkpoint (replacing the previous one atomically) without
+   * touching the trajectory: the exact state is ψ as stored with the kick it
+   * still owes, and the stepper is put back exactly as it was after the
+   * kicked field is written for readers. So where checkpoints fall never
+   * changes a run, and a run resumed or extended from any checkpoint repeats
+   * the uninterrupted one bit for bit.
+   */
+  writeCheckpoint(stepper: SplitStepper, state: Omit<CheckpointState, "psiCode" | "phiCode" | "timeCode" | "massCode" | "owedKickCode">): void {
+    const raw = Float64Array.from(stepper.rawPsi);
+    const phi = Float64Array.from(stepper.phi);
+    const { time, mass, owedKickFactor } = stepper;
+    try {
+      writeSnapshot(this.paths.checkpoint, {
+        meta: this.meta(stepper, state.steps, "checkpoint"),
+        psi: stepper.psi,
+        psiScale: this.psiScale,
+        state: { ...state, psiCode: raw, phiCode: phi, timeCode: time, massCode: mass, ...(owedKickFactor !== 0 ? { owedKickCode: owedKickFactor } : {}) },
+      });
+    } finally {
+      stepper.restoreState(raw, phi, time, mass, owedKickFactor);
+    }
+    this.log(`checkpoint at step ${state.steps}, t = ${this.scales.formatTime(time)}`);
   }
 }

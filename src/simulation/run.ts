@@ -107,15 +107,23 @@ async function loop(session: RunSession, start: RunStart, recorder: RunRecorder)
     }
     const byCount = run.output.snapshotEvery !== undefined && info.step % run.output.snapshotEvery === 0;
     if (byCount || (info.landed && snapshotTimes.has(t)) || atEnd) recorder.snapshot(info.step);
-    if (info.step % run.output.checkpointEvery === 0 && !atEnd) recorder.checkpoint(info.step);
+    if (info.step % run.output.checkpointEvery === 0 && !atEnd && !extensionPoint) recorder.checkpoint(info.step);
     progress(info, atEnd);
+  };
+  // The checkpoint before the steps the end time shortened stays the run's last one: a later end
+  // (psibox extend) continues from it exactly as a run that had that end from the start.
+  let extensionPoint = false;
+  const beforeEndStep = (_: SplitStepper, steps: number): void => {
+    if (extensionPoint) return;
+    recorder.checkpoint(steps);
+    extensionPoint = true;
   };
   const { integrator } = run;
   const result = await evolveAsync(
     stepper,
     { safety: integrator.safety, maxDlnA: integrator.maxDlnA, fixedStep: integrator.fixedStep },
     { endTime: run.span.endTime, stops: run.output.snapshotTimes, massTolerance: integrator.massTolerance, maxSteps: integrator.maxSteps },
-    { onStep, formatTime: (t) => session.scales.formatTime(t), ...(session.options.stopRequested ? { stopRequested: session.options.stopRequested } : {}) },
+    { onStep, beforeEndStep, formatTime: (t) => session.scales.formatTime(t), ...(session.options.stopRequested ? { stopRequested: session.options.stopRequested } : {}) },
     { steps: start.steps, mass0: start.mass0 },
   );
   if (result.status === "stopped") {

@@ -41,8 +41,6 @@ export interface RunOptions {
   readonly stopRequested?: () => string | undefined;
   /** Continue from the run folder's checkpoint instead of starting afresh. */
   readonly resume?: boolean;
-  /** Folder that relative paths in the written config are taken from. @default process.cwd() */
-  readonly cwd?: string;
   /** Write the initial state (snapshot 0, and the spectrum table of a cosmological field) and stop. */
   readonly initialOnly?: boolean;
   /** Plug-ins of the run loop (see plugin.ts), called in this order. */
@@ -79,7 +77,7 @@ export function openSession(run: ResolvedRun, options: RunOptions): RunSession {
   const paths = runPaths(run.outputDir);
   cleanStaleTemporaries(run.outputDir);
   cleanStaleTemporaries(paths.snapshots);
-  const configText = options.resume ? fs.readFileSync(paths.config, "utf8") : resolvedConfigToml(run, options.cwd ?? process.cwd());
+  const configText = options.resume ? fs.readFileSync(paths.config, "utf8") : resolvedConfigToml(run);
   if (!options.resume) writeFileAtomic(paths.config, configText);
   const writer = new RunWriter(run, scales, configText, sha256(configText));
   const { threads, fft } = run.integrator;
@@ -107,7 +105,7 @@ export function startRun(session: RunSession): RunStart {
   const { run, stepper, writer, scales, paths } = session;
   if (session.options.resume) {
     const resumed = readSnapshot(paths.checkpoint, true).state as CheckpointState;
-    stepper.restoreState(resumed.psiCode, resumed.phiCode, resumed.timeCode, resumed.massCode);
+    stepper.restoreState(resumed.psiCode, resumed.phiCode, resumed.timeCode, resumed.massCode, resumed.owedKickCode ?? 0);
     writer.log(`resumed from the checkpoint at step ${resumed.steps}, t = ${scales.formatTime(resumed.timeCode)}`);
     session.plugins.restore(resumed.plugins ?? {}, paths.checkpoint);
     const { mass0Code: mass0, steps, snapshotsWritten, wallTimeS: wallBefore } = resumed;

@@ -2,6 +2,7 @@
 import type { AnyCommandSpec } from "../options.js";
 import { runSpec } from "./run.js";
 import { icSpec } from "./ic.js";
+import { extendSpec } from "./extend.js";
 import { initSpec } from "./init.js";
 import { inspectSpec } from "./inspect.js";
 import { importSpec } from "./import.js";
@@ -9,4 +10,4 @@ import { sweepSpec } from "./sweep.js";
 import { analyzeSpec, reportSpec } from "./analyze.js";
 import { clocksSpec, estimateSpec } from "./clocks.js";
 
-export const COMMANDS: readonly AnyCommandSpec[] = [runSpec, icSpec, initSpec, inspectSpec, importSpec, sweepSpec, analyzeSpec, reportSpec, clocksSpec, estimateSpec];
+export const COMMANDS: readonly AnyCommandSpec[] = [runSpec, extendSpec, icSpec, initSpec, inspectSpec, importSpec, sweepSpec, analyzeSpec, reportSpec, clocksSpec, estimateSpec];
