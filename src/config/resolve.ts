@@ -53,6 +53,8 @@ export interface ResolvedRun {
   };
   readonly output: {
     readonly timeseriesEvery: number;
+    /** Vortex counts (2D) or line length (3D) in the time series. */
+    readonly vortexCensus: boolean;
     readonly timeUnit: string;
     readonly timeUnitS: number;
     /** Steps between snapshots (undefined: none by count). */
@@ -184,6 +186,7 @@ export function resolveRun(config: CheckedConfig, name: string, cwd: string): Re
       snapshotTimes,
       snapshotPrecision: out.snapshot_precision,
       checkpointEvery: out.checkpoint_every,
+      vortexCensus: resolveVortexCensus(out.vortex_census, dims),
     },
   };
 }
@@ -232,4 +235,10 @@ function resolveSnapshotTimes(
 
 function unitText(quantity: string): string {
   return quantity.trim().replace(/^[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?\s*/, "");
+}
+
+/** output.vortex_census: only for 2D and 3D grids. */
+function resolveVortexCensus(on: boolean, dims: number): boolean {
+  if (on && dims < 2) throw new ConfigError("output.vortex_census", "vortices need a 2D or 3D grid; this grid is 1D (set it to false)");
+  return on;
 }

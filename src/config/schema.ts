@@ -194,6 +194,8 @@ export const outputSchema = z.strictObject({
   analyze: z.boolean().default(false),
   /** Write a checkpoint (for --resume) every this many steps. @default 1000 */
   checkpoint_every: z.number().int().default(1000),
+  /** 2D/3D runs: count the vortices (2D) or measure the vortex line length (3D) at every time-series row. @default false */
+  vortex_census: z.boolean().default(false),
 });
 
 export const sidecarSchema = z.strictObject({

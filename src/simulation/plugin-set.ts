@@ -44,11 +44,12 @@ export class PluginSet {
     for (const p of this.plugins) p.afterStep?.(facts);
   }
 
-  /** The plug-ins' values for a time-series row. */
-  row(facts: Omit<OutputFacts, "kind" | "file">): (number | string)[] {
+  /** The plug-ins' values for a time-series row; `field` gives ψ to those that measure "field". */
+  row(facts: Omit<OutputFacts, "kind" | "file" | "psi">, field?: () => Float64Array): (number | string)[] {
     return this.plugins.flatMap((p) => {
       const expected = p.columns?.length ?? 0;
-      const values = p.output?.({ kind: "row", ...facts }) ?? [];
+      const psi = field && p.measures?.includes("field") ? { psi: field() } : {};
+      const values = p.output?.({ kind: "row", ...facts, ...psi }) ?? [];
       if (values.length !== expected) {
         throw new InputError(`plug-in "${p.name}": output() gave ${values.length} values for its ${expected} time-series columns`);
       }

@@ -20,9 +20,10 @@ import type { OutputScales } from "./scales.js";
  * "kinetic" is ½∫|∇ψ|² dV (the a-free kinetic energy K·a², code units), of
  * the current field at the start and measured inside each step's drift, at
  * the step's middle, afterwards; "moments" are Σ|ψ|², Σ|ψ|⁴, Σ|ψ|²φ (without
- * the cell volume) and max |ψ|² of the field after the step.
+ * the cell volume) and max |ψ|² of the field after the step; "field" hands
+ * the field itself to output() at every time-series row (OutputFacts.psi).
  */
-export type MeasuredSum = "kinetic" | "moments";
+export type MeasuredSum = "kinetic" | "moments" | "field";
 
 /** The sums a plug-in asked for (the others are absent). */
 export interface MeasuredSums {
@@ -80,6 +81,13 @@ export interface OutputFacts {
   readonly a: number;
   /** The snapshot file (kind "snapshot"). */
   readonly file?: string;
+  /**
+   * Rows, for a plug-in that measures "field": ψ in code units, interleaved
+   * (re, im), read-only and valid during the call. It is the stepper's raw
+   * field: exact in |ψ| and in its zeros, its phase short of the smooth factor
+   * the folded closing kick still owes (reading it never changes the run).
+   */
+  readonly psi?: Float64Array;
 }
 
 /** How the run ended. */

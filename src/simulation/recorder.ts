@@ -57,7 +57,7 @@ export class RunRecorder {
     const moments = stepper.moments();
     const W = (0.5 / a) * moments.rhoPhi * grid.cellVolume;
     const own = [scales.time(dt), limiter, scales.massMsun(stepper.mass), scales.energy(K), scales.energy(W), scales.energy(K + W), scales.density(moments.maxRho)];
-    this.series.row([step, scales.time(t), ...(expanding ? [a, 1 / a - 1] : []), ...own, ...plugins.row({ step, t, a })]);
+    this.series.row([step, scales.time(t), ...(expanding ? [a, 1 / a - 1] : []), ...own, ...plugins.row({ step, t, a }, () => stepper.rawPsi)]);
   }
 
   /** Write the next snapshot of the current state. */

@@ -103,6 +103,34 @@ describe("psibox analyze: field diagnostics", () => {
   });
 });
 
+describe("vortex census in the time series (output.vortex_census)", () => {
+  const NOISE = (cells: string) =>
+    `[grid]\ncells = ${cells}\nbox = "20 kpc"\n[particle]\nmass = "1e-22 eV"\n[span]\nduration = "200 Myr"\n[initial]\nkind = "white-noise"\n` +
+    `mean_density = "1e7 Msun/kpc^3"\namplitude = 0.5\n[output]\ntime_unit = "Myr"\nsnapshot_interval = "200 Myr"\ntimeseries_every = 50\nvortex_census = true\n`;
+
+  it("counts the vortices at every row; the last row equals psibox analyze's count on the final snapshot (the raw field and the kicked field have the same zeros)", () => {
+    fs.writeFileSync(path.join(work, "noise.toml"), NOISE("[32, 32]"));
+    const r = psibox(["run", "noise.toml", "-q"]);
+    expect(r.code, r.stderr).toBe(0);
+    const rows = readCsv(path.join(work, "output/noise/timeseries.csv"));
+    expect(rows[0]!["vortices"]).toBe(0); // a real positive field has no zeros
+    const last = rows.at(-1)!["vortices"]!;
+    expect(last).toBeGreaterThan(10);
+    expect(last % 2).toBe(0); // net charge zero in a periodic box
+    const a = psibox(["analyze", "output/noise/snapshots/snap_00001.h5", "--diagnostics", "vortices", "--no-pictures", "--out", "census"]);
+    expect(a.code, a.stderr).toBe(0);
+    expect(JSON.parse(fs.readFileSync(path.join(work, "census/summary.json"), "utf8")).vortices.count).toBe(last);
+    expect(JSON.parse(fs.readFileSync(path.join(work, "output/noise/summary.json"), "utf8")).final_vortices).toBe(last);
+  });
+
+  it("refuses the census for a 1D run with a one-line error naming the key, exit code 2", () => {
+    fs.writeFileSync(path.join(work, "noise1.toml"), NOISE("[32]"));
+    const r = psibox(["run", "noise1.toml", "-q"]);
+    expect(r.code).toBe(2);
+    expect(r.stderr.trim()).toBe("psibox: output.vortex_census: vortices need a 2D or 3D grid; this grid is 1D (set it to false)");
+  });
+});
+
 describe("cosmological conventions", () => {
   it("Δ²(k) = k³P/(2π²) of a cosmological initial field in h/Mpc follows the linear spectrum it was drawn from, within cosmic variance", () => {
     fs.writeFileSync(
