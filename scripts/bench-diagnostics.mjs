@@ -61,10 +61,11 @@ time("energy split and spectra", () => energySplit(grid, field.psi, 1));
 const v = time("vortex lines", () => findVortices(grid, field.psi));
 console.log(`  ${v.points.length} piercings, line length ${(v.lineLength * box).toPrecision(4)} kpc, net charge ${v.netCharge}`);
 time("granules (PDF, ξ(r), σ)", () => granuleStats(grid, field.psi, 1));
-time("Husimi at 3 points (η = 4 cells)", () => [0.2, 0.5, 0.8].map((x) => husimiAt(grid, field.psi, [x, x, x], 4 / n)));
+const eta = Math.min(4 / n, 1 / 16); // 4 cells, or the widest window the box allows
+time("Husimi at 3 points (η = 4 cells)", () => [0.2, 0.5, 0.8].map((x) => husimiAt(grid, field.psi, [x, x, x], eta)));
 const points = [[20, 20, 20], [50, 50, 50], [80, 80, 80]];
 const t0 = performance.now();
-await analyzeSnapshot(file, path.join(dir, "analysis"), true, { husimiPointsKpc: points, husimiWindowKpc: (4 * box) / n });
+await analyzeSnapshot(file, path.join(dir, "analysis"), true, { husimiPointsKpc: points, husimiWindowKpc: eta * box });
 console.log(`${"whole analysis with pictures".padEnd(34)} ${((performance.now() - t0) / 1000).toFixed(2)} s`);
 console.log(`peak resident memory: ${(process.resourceUsage().maxRSS / 1024).toFixed(0)} MB`);
 if (!process.env["KEEP"]) fs.rmSync(dir, { recursive: true, force: true });
