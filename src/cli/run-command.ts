@@ -3,7 +3,9 @@ import { formatNumber } from "../core/format.js";
 import fs from "node:fs";
 import path from "node:path";
 import { InputError } from "../core/errors.js";
-import { checkConfig, loadConfig, readTomlFile } from "../config/load.js";
+import { applyOverrides, checkConfig, readTomlFile } from "../config/load.js";
+import { loadHdf5 } from "../io/h5.js";
+import { fillFromSnapshot } from "../simulation/snapshot-start.js";
 import { resolveRun, type ResolvedRun } from "../config/resolve.js";
 import { prepareOutputDir, silentReporter } from "../simulation/run.js";
 import { runSimulation } from "../app/run.js";
@@ -55,7 +57,8 @@ export async function runCommand(
     }
   } else {
     if (configFile === undefined) throw new InputError("give a config file (psibox run CONFIG) or --resume DIR");
-    const config = loadConfig(configFile, flags.set);
+    await loadHdf5();
+    const config = checkConfig(fillFromSnapshot(applyOverrides(readTomlFile(configFile), flags.set)));
     if (config.sweep) throw new InputError(`${configFile} describes a sweep ([sweep] section): run it with psibox sweep ${configFile}`);
     run = resolveRun(config, path.basename(configFile).replace(/\.[^.]*$/, ""), process.cwd());
     prepareOutputDir(run.outputDir, flags.force);

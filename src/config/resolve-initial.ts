@@ -43,7 +43,9 @@ export type ResolvedInitial =
       /** The code length unit in Mpc. */
       readonly lengthUnitMpc: number;
     }
-  | { readonly kind: "white-noise"; readonly meanDensity: number; readonly amplitude: number; readonly seed: number };
+  | { readonly kind: "white-noise"; readonly meanDensity: number; readonly amplitude: number; readonly seed: number }
+  /** A field read from a file (loaded and resampled by the run, which may read files). */
+  | { readonly kind: "snapshot"; readonly file: string };
 
 /** M r_c = 2.67941 ħ²/(G m²) for the exact 3D ground state (PHYSICS §5.1); in code units ħ²/(Gm²) = 4π. */
 export const SOLITON_MASS_CORE = 2.67941 * 4 * Math.PI;
@@ -90,6 +92,8 @@ export function resolveInitial(
     }
   };
   switch (ic.kind) {
+    case "snapshot":
+      return { kind: "snapshot", file: ic.file };
     case "plane-wave": {
       const mode = ic.mode ?? [1, ...Array<number>(dims - 1).fill(0)];
       if (mode.length !== dims) throw new ConfigError("initial.mode", `give ${dims} integers (one per axis), got ${mode.length}`);

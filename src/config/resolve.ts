@@ -115,6 +115,9 @@ export function resolveRun(config: CheckedConfig, name: string, cwd: string): Re
     if (!(span.start_redshift > zEnd)) {
       throw new ConfigError("span.start_redshift", `must be larger than span.end_redshift (${zEnd}), got ${span.start_redshift}`);
     }
+    if (config.initial.kind === "snapshot" && config.initial.time !== undefined) {
+      throw new ConfigError("initial.time", "is for static runs; an expanding run starts at span.start_redshift (by default the snapshot's redshift)");
+    }
     background = { kind: "lcdm", hubble0: hubbleSI * units.timeS, omegaMatter: om, omegaRadiation: or, littleH: littleH as number };
     const bg = makeBackground(background);
     startTime = bg.time(1 / (1 + span.start_redshift));
@@ -125,7 +128,10 @@ export function resolveRun(config: CheckedConfig, name: string, cwd: string): Re
       throw new ConfigError(key, 'needs background.kind = "lcdm"; static runs use span.duration');
     }
     if (span.duration === undefined) throw new ConfigError("span.duration", 'missing; static runs need a duration, e.g. "1 Gyr"');
-    endTime = positive("span.duration", read("span.duration", span.duration, "time", ctx)) / units.timeS;
+    // a field read from a snapshot starts at its own time
+    const ic = config.initial;
+    if (ic.kind === "snapshot" && ic.time !== undefined) startTime = read("initial.time", ic.time, "time", ctx) / units.timeS;
+    endTime = startTime + positive("span.duration", read("span.duration", span.duration, "time", ctx)) / units.timeS;
   }
 
   const initial = resolveInitial(config, dims, lengths, units, ctx, background);

@@ -148,6 +148,14 @@ export const solitonsSchema = z.strictObject({
   soliton: z.array(solitonSchema).min(1),
 });
 
+export const snapshotFieldSchema = z.strictObject({
+  kind: z.literal("snapshot"),
+  /** A psibox snapshot or checkpoint, or an imported field (psibox import), relative to the working folder. */
+  file: z.string().min(1),
+  /** Static runs: the time of the field, where the run starts. @default the snapshot's time */
+  time: quantity.optional(),
+});
+
 export const initialSchema = z.discriminatedUnion("kind", [
   planeWaveSchema,
   packetSchema,
@@ -156,6 +164,7 @@ export const initialSchema = z.discriminatedUnion("kind", [
   randomSolitonsSchema,
   cosmologicalSchema,
   noiseSchema,
+  snapshotFieldSchema,
 ]);
 
 export const integratorSchema = z.strictObject({

@@ -38,7 +38,7 @@ export interface InitialField {
  * @param into where to build grid-filling fields (plane wave, white noise, cosmological), e.g. the stepper's own ψ, to save a copy
  */
 export function buildInitialField(
-  ic: ResolvedInitial,
+  ic: Exclude<ResolvedInitial, { kind: "snapshot" }>,
   grid: Grid,
   background: Background,
   startTime: number,

@@ -133,3 +133,16 @@ export function readSnapshot(file: string, withState = false): Snapshot {
     f.close();
   }
 }
+
+/** Only the metadata of a psibox snapshot (the field is not read). */
+export function readSnapshotMeta(file: string): SnapshotMeta {
+  const f = openHdf5(file);
+  try {
+    return readMeta(f, layoutVersion(f, file), file);
+  } catch (e) {
+    if (e instanceof InputError) throw e;
+    throw new InputError(`${file}: cannot read the snapshot (${hdf5Reason(e)})`);
+  } finally {
+    f.close();
+  }
+}

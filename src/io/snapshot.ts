@@ -26,7 +26,7 @@ import {
 } from "./snapshot-layout.js";
 
 export { SNAPSHOT_FORMAT, SNAPSHOT_VERSION, PSI_UNITS } from "./snapshot-layout.js";
-export { readSnapshot } from "./snapshot-read.js";
+export { readSnapshot, readSnapshotMeta } from "./snapshot-read.js";
 
 /** Background as written in a snapshot. */
 export type SnapshotBackground =

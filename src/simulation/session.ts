@@ -10,6 +10,7 @@ import { makeBackground, type Background } from "../physics/cosmology/background
 import { SplitStepper } from "../integrators/split-step.js";
 import { ThreadedStepper } from "../integrators/threaded-step.js";
 import { buildInitialField } from "../initial-conditions/build.js";
+import { snapshotInitialField } from "./snapshot-start.js";
 import { cleanStaleTemporaries, writeFileAtomic } from "../io/atomic.js";
 import { readSnapshot, type CheckpointState } from "../io/snapshot.js";
 import type { ResolvedRun } from "../config/resolve.js";
@@ -115,7 +116,10 @@ export function startRun(session: RunSession): RunStart {
   const reporter = session.reporter;
   if (run.initial.kind === "ground-state") reporter.phase("relaxing the ground state");
   const progress = (info: { iteration: number }) => reporter.progress(Math.min(1, info.iteration / 400), `iteration ${info.iteration}`);
-  const initial = buildInitialField(run.initial, session.grid, session.background, run.span.startTime, session.gravity, progress, stepper.rawPsi);
+  const initial =
+    run.initial.kind === "snapshot"
+      ? snapshotInitialField(run, session.grid, stepper.rawPsi)
+      : buildInitialField(run.initial, session.grid, session.background, run.span.startTime, session.gravity, progress, stepper.rawPsi);
   let relaxation: RunStart["relaxation"];
   if (initial.relaxation) {
     reporter.endPhase();
