@@ -11,6 +11,7 @@ import fs from "node:fs";
 import path from "node:path";
 import { stringify } from "smol-toml";
 import { writeFileAtomic } from "../io/atomic.js";
+import { escapeControls } from "../core/sanitize.js";
 import type { SweepPlan } from "./plan.js";
 import { entryStatus, writeSummary, type SweepManifest } from "./summary.js";
 
@@ -27,7 +28,7 @@ export function writeSweepFiles(plan: SweepPlan): void {
   for (const e of plan.entries) {
     const dir = path.join(plan.dir, e.name);
     fs.mkdirSync(dir, { recursive: true });
-    writeFileAtomic(path.join(dir, "entry.toml"), `# psibox sweep "${plan.name}", entry ${e.name}\n${stringify(e.config)}\n`);
+    writeFileAtomic(path.join(dir, "entry.toml"), `# psibox sweep "${escapeControls(plan.name)}", entry ${e.name}\n${stringify(e.config)}\n`);
   }
 }
 

@@ -3,6 +3,7 @@ import os from "node:os";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
 import { InputError } from "../core/errors.js";
+import { escapeControls, shellWord } from "../core/sanitize.js";
 import { applyOverrides, readTomlFile } from "../config/load.js";
 import { planSweep } from "../batch/plan.js";
 import { runSweep } from "../batch/runner.js";
@@ -33,19 +34,19 @@ export async function sweepCommand(configFile: string | undefined, flags: SweepF
   if (configFile === undefined) throw new InputError("give a sweep config (psibox sweep CONFIG) or --summary DIR");
   const raw = applyOverrides(readTomlFile(configFile), flags.set);
   const plan = planSweep(raw, path.basename(configFile).replace(/\.[^.]*$/, ""), process.cwd());
-  const where = path.relative(process.cwd(), plan.dir) || ".";
+  const where = escapeControls(path.relative(process.cwd(), plan.dir) || ".");
   if (flags.emit !== undefined) {
     if (flags.emit !== "slurm") throw new InputError(`--emit: the only target is "slurm", got "${flags.emit}"`);
     const files = emitSlurm(plan, binPath());
     process.stdout.write(
-      `wrote a Slurm array of ${plan.entries.length} tasks: ${path.relative(process.cwd(), files.script)}\n` +
-        `submit:  jobid=$(sbatch --parsable ${path.relative(process.cwd(), files.script)}) && sbatch --dependency=afterany:$jobid ${path.relative(process.cwd(), files.collect)}\n`,
+      `wrote a Slurm array of ${plan.entries.length} tasks: ${escapeControls(path.relative(process.cwd(), files.script))}\n` +
+        `submit:  jobid=$(sbatch --parsable ${shellWord(path.relative(process.cwd(), files.script))}) && sbatch --dependency=afterany:$jobid ${shellWord(path.relative(process.cwd(), files.collect))}\n`,
     );
     return 0;
   }
   const workers = flags.workers === undefined ? os.availableParallelism() : Number(flags.workers);
   if (!(Number.isInteger(workers) && workers >= 1)) throw new InputError(`--workers: must be a whole number ≥ 1, got ${flags.workers}`);
-  process.stderr.write(`psibox sweep "${plan.name}": ${plan.entries.length} entries (${plan.combine} of ${plan.keys.join(", ")}), ${workers} workers, in ${where}\n`);
+  process.stderr.write(`psibox sweep "${escapeControls(plan.name)}": ${plan.entries.length} entries (${plan.combine} of ${plan.keys.join(", ")}), ${workers} workers, in ${where}\n`);
   const result = await runSweep(plan, binPath(), workers, { line: (t) => process.stderr.write(`  ${t}\n`) });
   process.stdout.write(
     `sweep done: ${result.completed} completed, ${result.skipped} already done, ${result.failed} failed; summary in ${where}/sweep-summary.csv\n`,

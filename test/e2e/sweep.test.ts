@@ -106,7 +106,7 @@ describe("psibox sweep", () => {
     expect(text).toMatch(/^#SBATCH --array=0-3%3$/m);
     expect(text).toMatch(/^#SBATCH --partition=debug$/m);
     expect(text).toMatch(/^#SBATCH --cpus-per-task=2$/m);
-    const listed = [...text.matchAll(/^ {2}'(.*)'$/gm)].map((m) => path.basename(m[1]!));
+    const listed = [...text.matchAll(/^ {2}'(.*)'$/gm)].map((m) => m[1]!);
     const manifest = JSON.parse(fs.readFileSync(path.join(work, "output/c/sweep.json"), "utf8")).entries.map((e: { name: string }) => e.name);
     expect(listed).toEqual(manifest);
     expect(new Set(listed).size).toBe(4);
