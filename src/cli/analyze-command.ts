@@ -3,16 +3,19 @@ import fs from "node:fs";
 import path from "node:path";
 import { InputError } from "../core/errors.js";
 import { loadHdf5 } from "../io/h5.js";
-import { analyzeRun, analyzeSnapshot } from "../report/analyze.js";
+import { analyzeRun, analyzeSnapshot, runSnapshots } from "../report/analyze.js";
 import { writeReport } from "../report/html.js";
+import { pictureOptions, type PictureFlags } from "../report/picture-options.js";
 import { formatDuration } from "../core/format.js";
+import { TextReporter } from "./progress.js";
 import { parseDiagnosticList, parseHusimiPoints, type DiagnosticRequest } from "../report/diagnostic-options.js";
 import { parseAs } from "../physics/units.js";
 import { PC_M } from "../physics/constants.js";
 
-export interface AnalyzeFlags {
+export interface AnalyzeFlags extends PictureFlags {
   out?: string;
   frames: boolean;
+  movie: boolean;
   pictures: boolean;
   /** Comma-separated field diagnostics (energy-split, vortices, granules, husimi) or "none". */
   diagnostics?: string;
@@ -41,21 +44,37 @@ export function diagnosticRequest(flags: AnalyzeFlags): DiagnosticRequest {
 
 const what = (flags: AnalyzeFlags): string => (flags.pictures ? "tables and pictures" : "tables (no pictures)");
 
+function runFolder(p: string): string[] {
+  if (!fs.existsSync(path.join(p, "snapshots"))) throw new InputError(`${p}: not a psibox run folder (no snapshots/)`);
+  return runSnapshots(p);
+}
+
 /** Analyse run folders and snapshot files; returns the exit code. */
 export async function analyzeCommand(paths: readonly string[], flags: AnalyzeFlags): Promise<number> {
-  await loadHdf5();
+  const pictures = pictureOptions(flags);
   const diagnostics = diagnosticRequest(flags);
+  if ((flags.movie || flags.frames) && !flags.pictures) throw new InputError(`--${flags.movie ? "movie" : "frames"}: cannot be combined with --no-pictures`);
   for (const p of paths) {
     if (!fs.existsSync(p)) throw new InputError(`${p}: no such file or folder`);
+    const dir = fs.statSync(p).isDirectory();
+    if (flags.movie && !dir) throw new InputError(`--movie: needs a run folder with at least two snapshots; ${p} is a file`);
+    if (flags.movie && runFolder(p).length < 2) throw new InputError(`--movie: needs at least two snapshots; ${p} has ${runFolder(p).length}`);
+  }
+  await loadHdf5();
+  const reporter = new TextReporter();
+  for (const p of paths) {
     const started = performance.now();
     if (fs.statSync(p).isDirectory()) {
-      if (!fs.existsSync(path.join(p, "snapshots"))) throw new InputError(`${p}: not a psibox run folder (no snapshots/)`);
+      runFolder(p);
       const out = flags.out ?? path.join(p, "analysis");
-      const r = await analyzeRun(p, out, { frames: flags.frames, pictures: flags.pictures, diagnostics });
+      reporter.phase(`analysing ${p}`);
+      const r = await analyzeRun(p, out, { frames: flags.frames, movie: flags.movie, pictures: flags.pictures, pictureOptions: pictures, diagnostics, onSnapshot: (done, total) => reporter.progress(done / total, `snapshot ${done} of ${total}`) });
+      reporter.endPhase();
       process.stdout.write(`${p}: ${r.snapshots.length} snapshots analysed in ${formatDuration((performance.now() - started) / 1000)}; ${what(flags)} in ${out}\n`);
+      if (r.movieNote) process.stdout.write(`${r.movie ? `wrote ${r.movie}: ` : ""}${r.movieNote}\n`);
     } else {
       const out = flags.out ?? path.join(path.dirname(p), "..", "analysis", path.basename(p, ".h5"));
-      await analyzeSnapshot(p, out, flags.pictures, diagnostics);
+      await analyzeSnapshot(p, out, flags.pictures, diagnostics, pictures);
       process.stdout.write(`${p}: analysed in ${formatDuration((performance.now() - started) / 1000)}; ${what(flags)} in ${out}\n`);
     }
   }
@@ -63,9 +82,14 @@ export async function analyzeCommand(paths: readonly string[], flags: AnalyzeFla
 }
 
 /** Write a run's HTML report; returns the exit code. */
-export async function reportCommand(runDir: string, out?: string): Promise<number> {
+export async function reportCommand(runDir: string, flags: PictureFlags & { out?: string }): Promise<number> {
+  const pictures = pictureOptions(flags);
+  if (!fs.existsSync(runDir)) throw new InputError(`${runDir}: no such folder`);
   await loadHdf5();
-  const file = await writeReport(runDir, out);
+  const reporter = new TextReporter();
+  reporter.phase(`analysing ${runDir}`);
+  const file = await writeReport(runDir, flags.out, { pictureOptions: pictures, onSnapshot: (done, total) => reporter.progress(done / total, `snapshot ${done} of ${total}`) });
+  reporter.endPhase();
   process.stdout.write(`wrote ${file}\n`);
   return 0;
 }

@@ -1,7 +1,7 @@
 /** Pictures of the field diagnostics: energy spectra, vortices, granules and the Husimi distribution. */
 import type { TopLevelSpec } from "vega-lite";
 import { renderVegaLite, type Figure } from "./render.js";
-import { fieldFigure } from "./field-image.js";
+import { colourRange, fieldFigure } from "./field-image.js";
 import { powerPlot } from "./plots.js";
 import { rangedFigure } from "./phase-space-figure.js";
 import type { FieldDiagnosticsResult, PhysicalScales } from "./field-diagnostics.js";
@@ -135,8 +135,8 @@ export async function diagnosticFigures(field: LoadedField, r: FieldDiagnosticsR
     const area = field.grid.spacing[1] * field.grid.spacing[2] * s.kpc * s.kpc;
     const values = Float64Array.from(r.vortices.projection, (v) => (v * s.kpc) / area);
     figures["vortices"] = await fieldFigure(
-      { nx: n2, ny: n1, values, width: box[2]!, height: box[1]! },
-      { xTitle: "z [kpc]", yTitle: "y [kpc]", legend: "line length / area [1/kpc]", caption: `vortex lines projected along x, ${caption}` },
+      { nx: n2, ny: n1, values, x0: 0, y0: 0, width: box[2]!, height: box[1]! },
+      { xTitle: "z [kpc]", yTitle: "y [kpc]", legend: "line length / area [1/kpc]", title: "Vortex lines projected along x", subtitle: caption, range: colourRange(values, Infinity), colourMap: "viridis" },
     );
   }
   if (r.granules) figures["granules"] = await granulePlot(r.granules, s, `granules, ${caption}`);

@@ -1,93 +1,122 @@
 /**
- * Pictures of a field: a slice or projection of log₁₀ density as a PNG raster
- * (viridis), framed by a Vega figure with axes in physical units, a
- * labelled colour bar and a caption with time and redshift.
+ * Pictures of a plane of values (log₁₀ density, column density, or a
+ * space–time diagram): the raster in a Vega frame with axes in physical
+ * units, a colour bar with its own titled axis beside it, and a title.
+ * Values outside the colour range are clipped to its ends; NaN cells (no
+ * data) are drawn light grey.
  */
-import * as vega from "vega";
+import type * as vega from "vega";
 import { PNG } from "pngjs";
-import { Resvg } from "@resvg/resvg-js";
-import { viridis, type Figure } from "./render.js";
+import { colourTable, type ColourMap } from "./colormaps.js";
+import { renderVega, STYLE, PNG_SCALE, type Figure } from "./render.js";
+import type { Plane } from "./planes.js";
 
-/** A 2D image of values, row 0 at the bottom (smallest y). */
-export interface Plane {
-  readonly nx: number;
-  readonly ny: number;
-  /** nx·ny values, x fastest. */
-  readonly values: Float64Array;
-  /** Extent in the axis unit. */
-  readonly width: number;
-  readonly height: number;
+const GAP = [225, 225, 225];
+
+/** The colour range of a picture: `fixed` if given, else [max − decades, max] (or the data's own range if narrower). */
+export function colourRange(values: Float64Array, decades: number, fixed?: readonly [number, number]): [number, number] {
+  if (fixed) return [fixed[0], fixed[1]];
+  let lo = Infinity;
+  let hi = -Infinity;
+  for (const v of values) {
+    if (!Number.isFinite(v)) continue;
+    if (v < lo) lo = v;
+    if (v > hi) hi = v;
+  }
+  if (!Number.isFinite(hi)) return [0, 1];
+  lo = Math.max(lo, hi - decades);
+  return hi > lo ? [lo, hi] : [lo - 0.5, hi + 0.5];
 }
 
-/** Encode a plane as a PNG (top row = largest y) with the colour map over [lo, hi]. */
-export function planePng(plane: Plane, lo: number, hi: number): Buffer {
-  const lut = viridis();
-  const png = new PNG({ width: plane.nx, height: plane.ny });
-  for (let row = 0; row < plane.ny; row++) {
-    const y = plane.ny - 1 - row;
-    for (let x = 0; x < plane.nx; x++) {
-      const v = plane.values[y * plane.nx + x]!;
-      const t = hi > lo ? Math.min(1, Math.max(0, (v - lo) / (hi - lo))) : 0.5;
-      const c = Math.round(t * 255);
-      const o = 4 * (row * plane.nx + x);
-      png.data[o] = lut[3 * c]!;
-      png.data[o + 1] = lut[3 * c + 1]!;
-      png.data[o + 2] = lut[3 * c + 2]!;
-      png.data[o + 3] = 255;
+/** The raster: each cell a block of `zoom` × `zoom` pixels (nearest neighbour), top row = largest vertical coordinate. */
+export function planePng(plane: Plane, lo: number, hi: number, map: ColourMap, zoom = 1): Buffer {
+  const lut = colourTable(map);
+  const W = plane.nx * zoom;
+  const H = plane.ny * zoom;
+  const png = new PNG({ width: W, height: H });
+  for (let row = 0; row < H; row++) {
+    const y = plane.ny - 1 - Math.floor(row / zoom);
+    for (let col = 0; col < W; col++) {
+      const v = plane.values[y * plane.nx + Math.floor(col / zoom)]!;
+      const o = 4 * (row * W + col);
+      if (Number.isNaN(v)) png.data.set([...GAP, 255], o);
+      else {
+        const c = Math.round(255 * Math.min(1, Math.max(0, (v - lo) / (hi - lo))));
+        png.data.set([lut[3 * c]!, lut[3 * c + 1]!, lut[3 * c + 2]!, 255], o);
+      }
     }
   }
   return PNG.sync.write(png);
 }
 
-/** Render a framed density image: axes [unit], a colour bar titled `legend`, and a caption. */
-export async function fieldFigure(plane: Plane, opts: { xTitle: string; yTitle: string; legend: string; caption: string }): Promise<Figure> {
-  let lo = Infinity;
-  let hi = -Infinity;
-  for (const v of plane.values) {
-    if (!Number.isFinite(v)) continue;
-    lo = Math.min(lo, v);
-    hi = Math.max(hi, v);
-  }
-  const raster = planePng(plane, lo, hi);
-  const side = 360;
-  const w = plane.width >= plane.height ? side : Math.max(60, Math.round((side * plane.width) / plane.height));
-  const h = plane.height >= plane.width ? side : Math.max(60, Math.round((side * plane.height) / plane.width));
+/** A vertical colour-bar raster (bottom: lowest value). */
+function colourBarPng(map: ColourMap): Buffer {
+  const lut = colourTable(map);
+  const png = new PNG({ width: 1, height: 256 });
+  for (let row = 0; row < 256; row++) png.data.set([lut[3 * (255 - row)]!, lut[3 * (255 - row) + 1]!, lut[3 * (255 - row) + 2]!, 255], 4 * row);
+  return PNG.sync.write(png);
+}
+
+export interface FieldFigureOptions {
+  readonly xTitle: string;
+  readonly yTitle: string;
+  /** Colour-bar title (what the colours show, with its unit). */
+  readonly legend: string;
+  readonly title: string;
+  readonly subtitle?: string;
+  readonly range: readonly [number, number];
+  readonly colourMap: ColourMap;
+  /** Longer side of the image in SVG units (default 250). */
+  readonly size?: number;
+  /** Aspect of the drawn image; default: the plane's own. */
+  readonly aspect?: number;
+}
+
+/** Vega axes: about five ticks, labelled by psibox's formatter, overlapping labels dropped. */
+const TICKS = { tickCount: 5, labelOverlap: true, encode: { labels: { update: { text: { signal: "psiboxTick(datum.value)" } } } } } as const;
+
+const dataUri = (png: Buffer) => `data:image/png;base64,${png.toString("base64")}`;
+
+/** Render a framed picture of a plane. */
+export async function fieldFigure(plane: Plane, opts: FieldFigureOptions): Promise<Figure> {
+  const [lo, hi] = opts.range;
+  const side = opts.size ?? 250;
+  const aspect = opts.aspect ?? plane.height / plane.width;
+  const w = aspect <= 1 ? side : Math.max(80, Math.round(side / aspect));
+  const h = aspect >= 1 ? side : Math.max(80, Math.round(side * aspect));
+  const zoom = Math.max(1, Math.ceil((w * PNG_SCALE) / plane.nx), Math.ceil((h * PNG_SCALE) / plane.ny));
+  const raster = planePng(plane, lo, hi, opts.colourMap, Math.min(zoom, 64));
+  const image = (url: string, width: vega.SignalRef | number, height: number): vega.Mark => ({
+    type: "image",
+    encode: { enter: { x: { value: 0 }, y: { value: 0 }, width: typeof width === "number" ? { value: width } : width, height: { value: height }, url: { value: url }, aspect: { value: false }, smooth: { value: false } } },
+  });
   const spec: vega.Spec = {
     width: w,
     height: h,
-    padding: 8,
+    padding: 6,
     autosize: "pad",
-    title: { text: opts.caption, fontSize: 12 },
+    background: "white",
+    config: { ...STYLE, axis: { ...STYLE.axis }, title: { ...STYLE.title } } as vega.Config,
+    title: { text: opts.title, ...(opts.subtitle ? { subtitle: opts.subtitle } : {}) },
     scales: [
-      { name: "x", type: "linear", domain: [0, plane.width], range: "width", zero: false, nice: false },
-      { name: "y", type: "linear", domain: [0, plane.height], range: "height", zero: false, nice: false },
-      { name: "color", type: "linear", domain: [lo, hi], range: { scheme: "viridis" }, zero: false, nice: false },
+      { name: "x", type: "linear", domain: [plane.x0, plane.x0 + plane.width], range: "width", zero: false, nice: false },
+      { name: "y", type: "linear", domain: [plane.y0, plane.y0 + plane.height], range: "height", zero: false, nice: false },
     ],
     axes: [
-      { orient: "bottom", scale: "x", title: opts.xTitle },
-      { orient: "left", scale: "y", title: opts.yTitle },
+      { orient: "bottom", scale: "x", title: opts.xTitle, ...TICKS },
+      { orient: "left", scale: "y", title: opts.yTitle, ...TICKS },
     ],
-    legends: [{ fill: "color", type: "gradient", title: opts.legend, gradientLength: h - 30 }],
     marks: [
+      image(dataUri(raster), w, h),
+      { type: "rect", encode: { enter: { x: { value: 0 }, y: { value: 0 }, width: { value: w }, height: { value: h }, fill: { value: "transparent" }, stroke: { value: "#333" } } } },
       {
-        type: "image",
-        encode: {
-          enter: {
-            x: { value: 0 },
-            y: { value: 0 },
-            width: { signal: "width" },
-            height: { signal: "height" },
-            url: { value: `data:image/png;base64,${raster.toString("base64")}` },
-            aspect: { value: false },
-            smooth: { value: false },
-          },
-        },
+        type: "group",
+        encode: { enter: { x: { value: w + 14 }, y: { value: 0 }, width: { value: 12 }, height: { value: h } } },
+        scales: [{ name: "bar", type: "linear", domain: [lo, hi], range: [h, 0], zero: false, nice: false }],
+        axes: [{ orient: "right", scale: "bar", title: opts.legend, titleAngle: 90, titleBaseline: "bottom", titlePadding: 8, ...TICKS }],
+        marks: [image(dataUri(colourBarPng(opts.colourMap)), 12, h)],
       },
     ],
   };
-  const view = new vega.View(vega.parse(spec), { renderer: "none" });
-  const svg = await view.toSVG();
-  view.finalize();
-  const image = new Resvg(svg, { fitTo: { mode: "zoom", value: 2 }, font: { loadSystemFonts: true, defaultFontFamily: "DejaVu Sans" }, background: "white" }).render();
-  return { svg, png: image.asPng(), width: image.width, height: image.height };
+  return renderVega(spec);
 }

@@ -1,81 +1,133 @@
 /**
  * psibox report: one self-contained HTML page for a run (no network needed):
- * its parameters, the clocks' verdicts in a sentence each, the pictures
- * (inlined as data URIs) and the tables.
+ * what was run, the clocks' verdicts in a sentence each, the plots and
+ * density pictures (inlined PNGs at their design size), and tables with
+ * human headers and units.
  */
 import fs from "node:fs";
 import path from "node:path";
 import { InputError } from "../core/errors.js";
+import { formatNumber, formatQuantity } from "../core/format.js";
 import { writeFileAtomic } from "../io/atomic.js";
-import { analyzeRun } from "./analyze.js";
-import type { Figure } from "./render.js";
+import { readSnapshot } from "../io/snapshot.js";
+import { analyzeRun, type RunAnalysisOptions } from "./analyze.js";
 import { diagnosticsSection } from "./diagnostics-section.js";
+import { clockSentence, esc, figure, STYLESHEET, table, type ClockEntry } from "./report-parts.js";
 
-function esc(s: string): string {
-  return s.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;");
+interface RunSummary {
+  name?: string;
+  status?: string;
+  reason?: string;
+  steps?: number;
+  wall_time_s?: number;
+  time_unit?: string;
+  start?: { t: number; z: number | null };
+  end?: { t: number; z: number | null };
+  mass_drift?: number;
+  snapshots?: number;
 }
 
-function img(fig: Figure | undefined, alt: string): string {
-  return fig ? `<figure><img alt="${esc(alt)}" src="data:image/png;base64,${fig.png.toString("base64")}" width="${Math.round(fig.width / 2)}"><figcaption>${esc(alt)}</figcaption></figure>` : "";
+function readJson<T>(file: string): T | undefined {
+  return fs.existsSync(file) ? (JSON.parse(fs.readFileSync(file, "utf8")) as T) : undefined;
 }
 
-function table(rows: Record<string, unknown>[]): string {
-  if (rows.length === 0) return "<p>none</p>";
-  const cols = Object.keys(rows[0]!);
-  const cell = (v: unknown) =>
-    typeof v === "number" ? (Number.isNaN(v) ? "—" : Number.isInteger(v) ? String(v) : v.toPrecision(4)) : v === null || v === undefined ? "—" : esc(String(v));
-  return `<table><thead><tr>${cols.map((c) => `<th>${esc(c)}</th>`).join("")}</tr></thead><tbody>${rows.map((r) => `<tr>${cols.map((c) => `<td>${cell(r[c])}</td>`).join("")}</tr>`).join("")}</tbody></table>`;
+/** The opening paragraph: what ran, how it ended. */
+function overview(s: RunSummary, runDir: string, firstFile: string | undefined): string {
+  const u = s.time_unit ?? "";
+  const span = s.start && s.end ? (s.start.z !== null && s.end.z !== null ? `from z = ${formatNumber(s.start.z, 4)} to z = ${formatNumber(s.end.z, 4)} (t = ${formatQuantity(s.start.t, u)} to ${formatQuantity(s.end.t, u)})` : `from t = ${formatQuantity(s.start.t, u)} to ${formatQuantity(s.end.t, u)}`) : "";
+  const status = s.status === "completed" ? "completed" : `stopped (${s.reason ?? "no reason recorded"})`;
+  let setup = "";
+  if (firstFile) {
+    const m = readSnapshot(firstFile).meta;
+    const bg = m.background.kind === "lcdm" ? `flat ΛCDM (H₀ = ${formatNumber(m.background.hubbleKmSMpc, 4)} km/s/Mpc, Ω_m = ${formatNumber(m.background.omegaMatter, 4)}), comoving box` : "static box";
+    setup = `<p>${m.cells.length}D grid of ${m.cells.join(" × ")} cells, box ${m.boxSizeKpc.map((b) => formatNumber(b, 4)).join(" × ")} kpc, ${m.gravity} gravity, ${bg}; particle mass ${formatQuantity(m.particleMassEv, "eV")}.</p>`;
+  }
+  return `${setup}<p>The run ${status} after ${s.steps ?? "?"} steps in ${formatQuantity(s.wall_time_s ?? NaN, "s")} of wall time, ${span}; ${s.snapshots ?? "?"} snapshots; relative mass drift ${formatNumber(s.mass_drift ?? NaN)}. Folder: <code>${esc(runDir)}</code>.</p>`;
 }
 
-const CLOCK_SENTENCE: Record<string, (time: string, reached: boolean) => string> = {
-  "squeezing-onset": (t, r) => `The condensate mode starts to squeeze (N|∫χ dt| = 1) ${r ? "after" : "only after a projected"} ${t}.`,
-  "squeezing-level": (t, r) => (t === "never" ? "The chosen squeezing level is beyond the best single-mode squeezing for this N." : `It reaches the chosen squeezing level ${r ? "after" : "after a projected"} ${t}.`),
-  "phase-diffusion": (t, r) => `Its mean field dephases (|⟨b⟩|²/N = 1/e) ${r ? "after" : "after a projected"} ${t}.`,
-  "classical-breakdown": (t, r) => `The classical-field description is expected to fail (∫λ dt = ln N) ${r ? "after" : "after a projected"} ${t}.`,
-};
+/** The densest points at the end, with the core fit in 3D. */
+function peaksTable(dir: string | undefined, dims: number): string {
+  const file = dir ? path.join(dir, "peaks.csv") : "";
+  if (!file || !fs.existsSync(file)) return "<p>none</p>";
+  const [header, ...lines] = fs.readFileSync(file, "utf8").trim().split("\n");
+  const cols = header!.split(",");
+  const get = (row: number[], c: string) => row[cols.indexOf(c)]!;
+  const rows = lines.map((l) => l.split(",").map(Number));
+  const axes = ["x", "y", "z"].slice(0, dims);
+  const headers = ["#", ...axes.map((a) => `${a} [kpc]`), "ρ [Msun/kpc³]", ...(dims === 3 ? ["core fit ρ_c [Msun/kpc³]", "core fit r_c [kpc]", "ρ_c from the core relation [Msun/kpc³]", "fit rms (ln ρ)"] : [])];
+  const body = rows.map((r) => [
+    get(r, "peak"),
+    ...axes.map((a) => get(r, `${a}_kpc`)),
+    get(r, "density_Msun_kpc3"),
+    ...(dims === 3 ? [get(r, "core_fit_rho_c_Msun_kpc3"), get(r, "core_fit_r_c_kpc"), get(r, "core_relation_rho_c_Msun_kpc3"), get(r, "core_fit_rms_ln")] : []),
+  ]);
+  const note = dims === 3 ? `<p class="note">Core fit: ρ_c/(1 + 0.091 (r/r_c)²)⁸ (Schive, Chiueh &amp; Broadhurst 2014); the core relation ρ_c = 1.9 (m/10⁻²³ eV)⁻² (r_c/kpc)⁻⁴ Msun/pc³ for the fitted r_c.</p>` : "";
+  return table(headers, body) + note;
+}
+
+/** The energies at the end as a two-column table. */
+function energyTable(summary: Record<string, unknown>): string {
+  const e = (summary["energies_Msun_km2_s2"] ?? {}) as Record<string, number>;
+  const unit = "Msun (km/s)²";
+  return table(
+    ["quantity", "value"],
+    [
+      [`kinetic energy K [${unit}]`, e["kinetic"]],
+      [`  bulk flow ½∫ρv² [${unit}]`, e["kinetic_bulk_flow"]],
+      [`  quantum gradient [${unit}]`, e["kinetic_quantum_gradient"]],
+      [`potential energy W [${unit}]`, e["potential"]],
+      [`total K + W [${unit}]`, e["total"]],
+      ["virial ratio 2K/|W|", summary["virial_ratio"]],
+      ["velocity dispersion [km/s]", summary["velocity_dispersion_km_s"]],
+    ],
+  );
+}
 
 /** Write <run>/report.html (and the analysis it shows under <run>/analysis); returns the report's path. */
-export async function writeReport(runDir: string, outFile?: string): Promise<string> {
-  const summaryFile = path.join(runDir, "summary.json");
-  if (!fs.existsSync(summaryFile)) throw new InputError(`${runDir}: not a finished psibox run folder (no summary.json)`);
-  const summary = JSON.parse(fs.readFileSync(summaryFile, "utf8")) as Record<string, unknown>;
+export async function writeReport(runDir: string, outFile?: string, options: RunAnalysisOptions = {}): Promise<string> {
+  const summary = readJson<RunSummary>(path.join(runDir, "summary.json"));
+  if (!summary) throw new InputError(`${runDir}: not a finished psibox run folder (no summary.json)`);
   const config = fs.existsSync(path.join(runDir, "config.toml")) ? fs.readFileSync(path.join(runDir, "config.toml"), "utf8") : "";
-  const clocks = fs.existsSync(path.join(runDir, "clocks.json")) ? (JSON.parse(fs.readFileSync(path.join(runDir, "clocks.json"), "utf8")) as { clocks: { name: string; time: string; reached: boolean; method: string; ratio_to_span: number | null; ratio_to_age_of_universe: number | null }[]; particles_N: number }) : undefined;
-  const analysis = await analyzeRun(runDir, path.join(runDir, "analysis"), {});
-  const last = analysis.snapshots.at(-1);
+  const clocks = readJson<{ clocks: ClockEntry[]; particles_N: number; squeezing_db_target?: number }>(path.join(runDir, "clocks.json"));
+  const analysis = await analyzeRun(runDir, path.join(runDir, "analysis"), { ...options, pictures: true });
   const first = analysis.snapshots[0];
-  const lastSummary = (last?.summary ?? {}) as Record<string, unknown>;
-  const energies = (lastSummary["energies_Msun_km2_s2"] ?? {}) as Record<string, number>;
-  const peaks = last && fs.existsSync(path.join(last.dir, "peaks.csv")) ? fs.readFileSync(path.join(last.dir, "peaks.csv"), "utf8").trim().split("\n") : [];
-  const peakRows = peaks.slice(1).map((l) => Object.fromEntries(l.split(",").map((v, i) => [peaks[0]!.split(",")[i]!, Number(v)])));
+  const last = analysis.snapshots.at(-1);
+  const dims = first ? readSnapshot(first.file).meta.cells.length : 0;
+  const target = clocks?.squeezing_db_target ?? -10;
+  const clockSection = clocks
+    ? `<p>For the whole-box condensate mode of N = ${formatNumber(clocks.particles_N)} particles, counted from the start of the run (squeezing target ${formatNumber(target)} dB):</p>
+<ul class="verdict">${clocks.clocks.map((c) => `<li>${esc(clockSentence(c, target))}</li>`).join("")}</ul>
+<div class="figs">${figure(analysis.figures["clocks"], "Squeezing, mean-field decay and the breakdown integral, with their thresholds (dashed) and the times the clocks rang (dotted).")}</div>`
+    : "<p>The quantum sidecar was off for this run.</p>";
+  const fieldFigs = [
+    figure(first?.figures["slice"], "Density at the start."),
+    figure(last?.figures["slice"], "Density at the end."),
+    figure(last?.figures["projection"], "Column density at the end (mass per area along the line of sight)."),
+    figure(analysis.figures["spacetime"], "Density against position and time, one band per snapshot."),
+  ].join("");
   const html = `<!doctype html>
-<html lang="en"><head><meta charset="utf-8"><title>psibox report: ${esc(String(summary["name"]))}</title>
-<style>
-body{font-family:system-ui,sans-serif;max-width:1000px;margin:2em auto;padding:0 1em;color:#222}
-h1{font-size:1.6em}h2{border-bottom:1px solid #ccc;padding-bottom:.2em;margin-top:2em}
-table{border-collapse:collapse;font-size:.85em}td,th{border:1px solid #ddd;padding:.2em .5em;text-align:right}th{background:#f4f4f4}
-pre{background:#f7f7f7;padding:1em;overflow-x:auto;font-size:.8em}figure{display:inline-block;margin:.5em}figcaption{font-size:.8em;color:#555}
-.verdict{font-size:1.05em}
-</style></head><body>
-<h1>psibox run “${esc(String(summary["name"]))}”</h1>
-<p>Status: <b>${esc(String(summary["status"]))}</b>${summary["reason"] ? ` (${esc(String(summary["reason"]))})` : ""}, ${esc(String(summary["steps"]))} steps in ${Number(summary["wall_time_s"]).toFixed(1)} s of wall time.</p>
+<html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1"><title>psibox report: ${esc(String(summary.name))}</title>
+<style>${STYLESHEET}</style></head><body>
+<h1>psibox run “${esc(String(summary.name))}”</h1>
+${overview(summary, runDir, first?.file)}
 <h2 id="clocks">Quantum clocks</h2>
-${clocks ? `<p>For the whole-box condensate mode of N = ${clocks.particles_N.toPrecision(4)} particles:</p><ul class="verdict">${clocks.clocks.map((c) => `<li>${esc(CLOCK_SENTENCE[c.name]?.(c.time, c.reached) ?? c.name)}${c.ratio_to_span !== null ? ` (${c.ratio_to_span.toPrecision(3)} × the run, ${c.ratio_to_age_of_universe!.toPrecision(3)} × the age of the universe)` : ""}</li>`).join("")}</ul>${img(analysis.figures["clocks"], "squeezing, mean-field fraction and the breakdown integral")}` : "<p>The sidecar was off for this run.</p>"}
+${clockSection}
 <h2 id="energies">Energies</h2>
-${img(analysis.figures["energies"], "kinetic, potential and total energy")}
-${table([{ kinetic: energies["kinetic"], bulk_flow: energies["kinetic_bulk_flow"], quantum_gradient: energies["kinetic_quantum_gradient"], potential: energies["potential"], total: energies["total"], virial_ratio: lastSummary["virial_ratio"], velocity_dispersion_km_s: lastSummary["velocity_dispersion_km_s"] }])}
+<div class="figs">${figure(analysis.figures["energies"], "Energies, and the checks of energy and mass conservation.")}</div>
+<h3>At the end: ${esc(last?.caption ?? "")}</h3>
+${last ? energyTable(last.summary) : "<p>none</p>"}
 <h2 id="field">Field</h2>
-${img(first?.figures["slice"], "density at the start")}${img(last?.figures["slice"], "density at the end")}${img(last?.figures["projection"], "projected density at the end")}${img(analysis.figures["spacetime"], "space–time density")}
+<div class="figs">${fieldFigs}</div>
 <h3>Densest points at the end</h3>
-${table(peakRows)}
+${peaksTable(last?.dir, dims)}
 <h2 id="power">Power spectrum</h2>
-${img(first?.figures["power"], "at the start")}${img(last?.figures["power"], "at the end")}
-${diagnosticsSection(first, last, { img, esc })}
+<div class="figs">${figure(first?.figures["power"], "At the start.")}${figure(last?.figures["power"], "At the end.")}</div>
+${diagnosticsSection(first, last, { img: figure, esc })}
 <h2 id="parameters">Parameters</h2>
 <pre>${esc(config)}</pre>
 </body></html>
 `;
-  const target = outFile ?? path.join(runDir, "report.html");
-  writeFileAtomic(target, html);
-  return target;
+  const target_ = outFile ?? path.join(runDir, "report.html");
+  writeFileAtomic(target_, html);
+  return target_;
 }

@@ -1,70 +1,91 @@
-/** Line and point plots of a run's tables, as Vega-Lite figures. */
+/**
+ * Line and point plots as Vega-Lite figures: the power spectrum, a 1D
+ * density profile, and the helpers the run-level plots share (log-axis
+ * ticks, scaled linear axes).
+ */
 import type { TopLevelSpec } from "vega-lite";
+import { axisExponent, scaledUnit } from "../core/format.js";
 import { renderVegaLite, type Figure } from "./render.js";
 
-type Row = Record<string, number | string>;
+export type Row = Record<string, number | string>;
+export const SCHEMA = "https://vega.github.io/schema/vega-lite/v5.json";
+/** Plot area of a single panel, SVG units. */
+export const PANEL = { width: 300, height: 190 } as const;
 
-/** P(k) measured (points) and, when given, the linear prediction (line), log–log. */
-export function powerPlot(measured: Row[], linear: Row[] | undefined, kTitle: string, pTitle: string, caption: string): Promise<Figure> {
-  const layers: object[] = [
-    {
-      data: { values: measured },
-      mark: { type: "point", filled: true, size: 30 },
-      encoding: {
-        x: { field: "k", type: "quantitative", scale: { type: "log" }, title: kTitle },
-        y: { field: "P", type: "quantitative", scale: { type: "log" }, title: pTitle },
-        color: { datum: "measured", type: "nominal", title: null },
-      },
-    },
-  ];
-  if (linear) {
-    layers.push({
-      data: { values: linear },
-      mark: { type: "line", strokeDash: [6, 3] },
-      encoding: { x: { field: "k", type: "quantitative" }, y: { field: "P", type: "quantitative" }, color: { datum: "linear theory", type: "nominal" } },
-    });
+/** Tick values for a log axis over [lo, hi]: whole decades (every few when there are many), or 1-2-5 steps inside one or two decades. */
+export function logTicks(lo: number, hi: number): number[] {
+  const a = Math.floor(Math.log10(lo));
+  const b = Math.ceil(Math.log10(hi));
+  if (b - a <= 2) {
+    const out: number[] = [];
+    for (let e = a; e <= b; e++) for (const m of [1, 2, 5]) if (m * 10 ** e >= lo * (1 - 1e-9) && m * 10 ** e <= hi * (1 + 1e-9)) out.push(Number(`${m}e${e}`));
+    return out;
   }
-  return renderVegaLite({ $schema: "https://vega.github.io/schema/vega-lite/v5.json", title: caption, width: 420, height: 280, layer: layers } as TopLevelSpec);
+  const step = [1, 2, 5, 10, 20, 25, 50, 100].find((k) => (b - a) / k <= 6) ?? Math.ceil((b - a) / 6);
+  const out: number[] = [];
+  for (let e = Math.ceil(a / step) * step; e <= b; e += step) out.push(Number(`1e${e}`));
+  return out;
 }
 
-/** Several series against time, one colour each. */
-export function seriesPlot(rows: Row[], x: string, xTitle: string, series: { field: string; label: string }[], yTitle: string, caption: string, logY = false): Promise<Figure> {
-  const long = rows.flatMap((r) => series.map((s) => ({ x: r[x], y: r[s.field], series: s.label }))).filter((r) => Number.isFinite(Number(r.y)));
+/** A log axis over the positive values: its domain (whole decades) and its tick values. */
+export function logAxis(values: number[]): { domain: [number, number]; values: number[] } {
+  const pos = values.filter((v) => v > 0 && Number.isFinite(v));
+  const lo = 10 ** Math.floor(Math.log10(Math.min(...pos)));
+  const hi = 10 ** Math.ceil(Math.log10(Math.max(...pos)));
+  const domain: [number, number] = hi > lo ? [lo, hi] : [lo / 10, hi * 10];
+  return { domain, values: logTicks(domain[0], domain[1]) };
+}
+
+/** Scale a column by a power of ten for a readable linear axis; returns the factor's exponent and the axis title with it. */
+export function scaleColumn(rows: Row[], fields: string[], as: (f: string) => string, quantity: string, unit: string): { title: string; rows: Row[] } {
+  const e = axisExponent(rows.flatMap((r) => fields.map((f) => Number(r[f]))));
+  const k = 10 ** -e;
+  const scaled = rows.map((r) => ({ ...r, ...Object.fromEntries(fields.map((f) => [as(f), Number(r[f]) * k])) }));
+  const u = scaledUnit(e, unit);
+  return { title: u ? `${quantity} [${u}]` : quantity, rows: scaled };
+}
+
+/**
+ * The linear prediction cut at the first zero of the wave suppression
+ * T_FDM = cos(x³)/(1 + x⁸): past its turnover P(k) falls monotonically
+ * until cos(x³) first vanishes; the oscillating tail beyond (below 10⁻⁴ of
+ * the turnover's power) would look like spikes on a log axis.
+ */
+export function cutAtFirstZero(rows: { k: number; P: number }[]): { k: number; P: number }[] {
+  let peak = 0;
+  for (let i = 1; i < rows.length; i++) if (rows[i]!.P > rows[peak]!.P) peak = i;
+  for (let i = peak + 1; i < rows.length - 1; i++) if (rows[i + 1]!.P > rows[i]!.P) return rows.slice(0, i + 1);
+  return rows;
+}
+
+/** P(k) measured (points) and, when given, the linear prediction (dashed line), log–log. */
+export function powerPlot(measured: { k: number; P: number }[], linear: { k: number; P: number }[] | undefined, kTitle: string, pTitle: string, title: string, subtitle = ""): Promise<Figure> {
+  const lin = linear ? cutAtFirstZero(linear) : [];
+  const ks = [...measured.map((r) => r.k), ...lin.map((r) => r.k)];
+  const Ps = [...measured.map((r) => r.P), ...lin.map((r) => r.P)];
+  const xa = logAxis(ks);
+  const ya = logAxis(Ps);
+  const x = { field: "k", type: "quantitative", scale: { type: "log", domain: xa.domain, nice: false }, axis: { values: xa.values }, title: kTitle };
+  const y = { field: "P", type: "quantitative", scale: { type: "log", domain: ya.domain, nice: false }, axis: { values: ya.values }, title: pTitle };
+  const names = lin.length ? ["measured", "linear theory"] : ["measured"];
+  const colour = { type: "nominal", title: null, scale: { domain: names, range: ["#1f5fa8", "#d1495b"].slice(0, names.length) }, legend: { orient: "top", direction: "horizontal" } };
+  const layers: object[] = [{ data: { values: measured }, mark: { type: "point", filled: true, size: 22 }, encoding: { x, y, color: { datum: "measured", ...colour } } }];
+  if (lin.length) layers.push({ data: { values: lin }, mark: { type: "line", strokeDash: [6, 3], strokeWidth: 1.5 }, encoding: { x, y, color: { datum: "linear theory", ...colour } } });
+  return renderVegaLite({ $schema: SCHEMA, title: subtitle ? { text: title, subtitle } : title, ...PANEL, layer: layers } as TopLevelSpec);
+}
+
+/** A 1D density profile on a log axis (its decades cover `domainValues`, default the profile's own). */
+export function densityLinePlot(rows: { x: number; rho: number }[], xTitle: string, yTitle: string, title: string, subtitle: string, domainValues?: number[]): Promise<Figure> {
+  const ya = logAxis(domainValues ?? rows.map((r) => r.rho));
   return renderVegaLite({
-    $schema: "https://vega.github.io/schema/vega-lite/v5.json",
-    title: caption,
-    width: 420,
-    height: 240,
-    data: { values: long },
-    mark: { type: "line" },
+    $schema: SCHEMA,
+    title: { text: title, subtitle },
+    ...PANEL,
+    data: { values: rows.filter((r) => r.rho > 0) },
+    mark: { type: "line", strokeWidth: 1.5, color: "#1f5fa8" },
     encoding: {
-      x: { field: "x", type: "quantitative", title: xTitle },
-      y: { field: "y", type: "quantitative", title: yTitle, ...(logY ? { scale: { type: "symlog" } } : {}) },
-      color: { field: "series", type: "nominal", title: null },
+      x: { field: "x", type: "quantitative", title: xTitle, scale: { nice: false, zero: false } },
+      y: { field: "rho", type: "quantitative", title: yTitle, scale: { type: "log", domain: ya.domain, nice: false }, axis: { values: ya.values } },
     },
-  } as TopLevelSpec);
-}
-
-/** The sidecar's clocks: squeezing, mean-field fraction and the breakdown integral against ln N. */
-export function clocksPlot(rows: Row[], x: string, xTitle: string, lnN: number, caption: string): Promise<Figure> {
-  const panel = (field: string, title: string, rule?: number, log = false) => ({
-    width: 420,
-    height: 150,
-    ...(log ? { transform: [{ filter: `datum["${field}"] > 0` }] } : {}),
-    layer: [
-      { mark: { type: "line" }, encoding: { x: { field: x, type: "quantitative", title: xTitle }, y: { field, type: "quantitative", title, ...(log ? { scale: { type: "log" } } : {}) } } },
-      ...(rule !== undefined ? [{ mark: { type: "rule", strokeDash: [4, 3], color: "firebrick" }, encoding: { y: { datum: rule } } }] : []),
-    ],
-  });
-  return renderVegaLite({
-    $schema: "https://vega.github.io/schema/vega-lite/v5.json",
-    title: caption,
-    data: { values: rows },
-    transform: [{ calculate: "-datum.log10_meanfield_fraction * 2.302585092994046", as: "dephasing" }],
-    vconcat: [
-      panel("squeezing_dB", "squeezing [dB]"),
-      panel("dephasing", "−ln(|⟨b⟩|²/N) (1: phase diffusion)", undefined, true),
-      panel("breakdown_integral", "∫λ dt (dashed: ln N)", lnN),
-    ],
   } as TopLevelSpec);
 }

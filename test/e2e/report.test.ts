@@ -1,88 +1,151 @@
-// psibox analyze and psibox report: tables, pictures and an HTML page checked in a real headless browser.
+// psibox analyze and psibox report from real (small) runs: every picture type is made and
+// checked for size and content, the movie is encoded (or its fallback said), bad picture
+// options are refused, and the HTML page is checked in headless Chromium for images that
+// load and text that is neither clipped nor overflowing (bounding boxes through the DOM).
 import { spawnSync } from "node:child_process";
 import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { PNG } from "pngjs";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { fieldFigure } from "../../src/report/field-image.js";
+import { findEncoder } from "../../src/report/movie.js";
+import { conservationDrifts, energyRows } from "../../src/report/energy-series.js";
 
 const BIN = path.resolve("dist/cli/bin.js");
 let work: string;
-beforeAll(() => {
-  work = fs.mkdtempSync(path.join(os.tmpdir(), "psibox-report-"));
-  fs.writeFileSync(
-    path.join(work, "jeans.toml"),
-    `[grid]\ncells = [32, 32]\nbox = "20 kpc"\n[particle]\nmass = "1e-22 eV"\n[span]\nduration = "200 Myr"\n` +
-      `[initial]\nkind = "plane-wave"\nmean_density = "1e7 Msun/kpc^3"\ncontrast = 0.3\nmode = [1, 1]\n[output]\ntime_unit = "Myr"\nsnapshot_interval = "100 Myr"\n`,
-  );
-  const r = spawnSync(process.execPath, [BIN, "run", "jeans.toml", "-q"], { cwd: work, encoding: "utf8" });
-  expect(r.status, r.stderr).toBe(0);
-});
-afterAll(() => fs.rmSync(work, { recursive: true, force: true }));
 
-function psibox(args: string[]) {
-  const r = spawnSync(process.execPath, [BIN, ...args], { cwd: work, encoding: "utf8" });
+function psibox(args: string[], env: Record<string, string> = {}) {
+  const r = spawnSync(process.execPath, [BIN, ...args], { cwd: work, encoding: "utf8", env: { ...process.env, ...env } });
   return { code: r.status, stdout: r.stdout, stderr: r.stderr };
 }
 
-function readCsv(file: string): Record<string, number>[] {
-  const [header, ...rows] = fs.readFileSync(file, "utf8").trim().split("\n");
-  const cols = header!.split(",");
-  return rows.map((r) => Object.fromEntries(r.split(",").map((v, i) => [cols[i]!, Number(v)])));
+const RUNS: Record<string, string> = {
+  jeans:
+    `[grid]\ncells = [32, 32]\nbox = "20 kpc"\n[particle]\nmass = "1e-22 eV"\n[span]\nduration = "200 Myr"\n` +
+    `[initial]\nkind = "plane-wave"\nmean_density = "1e7 Msun/kpc^3"\ncontrast = 0.3\nmode = [1, 1]\n[output]\ntime_unit = "Myr"\nsnapshot_interval = "100 Myr"\n`,
+  line:
+    `[grid]\ncells = 64\nbox = "100 kpc"\n[particle]\nmass = "1e-22 eV"\n[span]\nduration = "600 Myr"\n` +
+    `[initial]\nkind = "plane-wave"\nmean_density = "1e6 Msun/kpc^3"\ncontrast = 0.2\nmode = [1]\n[output]\ntime_unit = "Myr"\nsnapshot_interval = "200 Myr"\n`,
+  cosmo:
+    `[grid]\ncells = [16, 16, 16]\nbox = "2 Mpc/h"\n[particle]\nmass = "1e-22 eV"\n[background]\nkind = "lcdm"\n[span]\nstart_redshift = 50\nend_redshift = 10\n` +
+    `[initial]\nkind = "cosmological"\nseed = 3\n[output]\nsnapshot_redshifts = [20]\n`,
+};
+
+beforeAll(() => {
+  work = fs.mkdtempSync(path.join(os.tmpdir(), "psibox-report-"));
+  for (const [name, toml] of Object.entries(RUNS)) {
+    fs.writeFileSync(path.join(work, `${name}.toml`), toml);
+    const r = psibox(["run", `${name}.toml`, "-q"]);
+    expect(r.code, r.stderr).toBe(0);
+  }
+});
+afterAll(() => fs.rmSync(work, { recursive: true, force: true }));
+
+/** A picture worth looking at: at least `minWidth` pixels wide, many colours, a fair share of ink. */
+function checkPicture(file: string, minWidth = 900, withSvg = true): void {
+  expect(fs.existsSync(file), file).toBe(true);
+  const png = PNG.sync.read(fs.readFileSync(file));
+  expect(png.width, file).toBeGreaterThanOrEqual(minWidth);
+  expect(png.height, file).toBeGreaterThanOrEqual(450);
+  const colours = new Set<number>();
+  let ink = 0;
+  const pixels = png.width * png.height;
+  for (let i = 0; i < png.data.length; i += 4) {
+    const [r, g, b] = [png.data[i]!, png.data[i + 1]!, png.data[i + 2]!];
+    if (r + g + b < 740) ink++;
+    if (i % 28 === 0) colours.add((r << 16) | (g << 8) | b);
+  }
+  expect(colours.size, file).toBeGreaterThan(8);
+  expect(ink / pixels, file).toBeGreaterThan(0.015);
+  if (!withSvg) return;
+  const svg = fs.readFileSync(file.replace(/\.png$/, ".svg"), "utf8");
+  expect(svg.startsWith("<svg"), file).toBe(true);
+  // what is drawn (not the embedded raster, nor the screen-reader labels) has no raw numbers
+  expect(svg.replace(/data:[^"]+|aria-label="[^"]*"/g, "")).not.toMatch(/NaN|undefined|e[+-]\d\d/);
 }
 
-describe("pictures", () => {
-  it("a density image has its size, a non-constant colour range and axis labels and a colour bar title in the SVG", async () => {
-    const nx = 48;
-    const ny = 24;
-    const values = Float64Array.from({ length: nx * ny }, (_, i) => Math.sin(i / 7));
-    const fig = await fieldFigure({ nx, ny, values, width: 20, height: 10 }, { xTitle: "x [kpc]", yTitle: "y [kpc]", legend: "log₁₀ ρ [Msun/kpc³]", caption: "t = 1 Myr" });
-    expect(fig.svg).toContain(">x [kpc]<");
-    expect(fig.svg).toContain(">y [kpc]<");
-    expect(fig.svg).toContain("log₁₀ ρ [Msun/kpc³]");
-    expect(fig.svg).toContain("t = 1 Myr");
-    const png = PNG.sync.read(fig.png);
-    expect(png.width).toBe(fig.width);
-    expect(png.height).toBe(fig.height);
-    const colours = new Set<number>();
-    for (let i = 0; i < png.data.length; i += 4 * 97) colours.add((png.data[i]! << 16) | (png.data[i + 1]! << 8) | png.data[i + 2]!);
-    expect(colours.size).toBeGreaterThan(20);
-  });
-});
-
-describe("psibox analyze", () => {
-  it("writes the tables and pictures, with energies that equal the run's own time series (two code paths)", () => {
-    const r = psibox(["analyze", "output/jeans"]);
+describe("psibox analyze: every picture type from real runs", () => {
+  it("2D: density, P(k), energies, clocks, frames on one colour range and a movie (PNG and SVG)", () => {
+    const r = psibox(["analyze", "output/jeans", "--movie", "--colormap", "cividis"]);
     expect(r.code, r.stderr).toBe(0);
-    const dir = path.join(work, "output/jeans/analysis/snap_00002");
-    for (const f of ["power.csv", "pdf.csv", "peaks.csv", "profiles.csv", "summary.json", "slice.png", "power.png"]) expect(fs.existsSync(path.join(dir, f)), f).toBe(true);
-    expect(fs.existsSync(path.join(work, "output/jeans/analysis/energies.png"))).toBe(true);
-    expect(fs.existsSync(path.join(work, "output/jeans/analysis/clocks.png"))).toBe(true);
-    const summary = JSON.parse(fs.readFileSync(path.join(dir, "summary.json"), "utf8"));
-    const series = readCsv(path.join(work, "output/jeans/timeseries.csv"));
-    const row = series.find((x) => x["step"] === summary.step)!;
-    expect(summary.energies_Msun_km2_s2.kinetic / row["kinetic_Msun_km2_s2"]!).toBeCloseTo(1, 9);
-    expect(summary.energies_Msun_km2_s2.potential / row["potential_Msun_km2_s2"]!).toBeCloseTo(1, 9);
-    expect(summary.energies_Msun_km2_s2.kinetic_bulk_flow + summary.energies_Msun_km2_s2.kinetic_quantum_gradient).toBeCloseTo(summary.energies_Msun_km2_s2.kinetic, -3);
-    const power = readCsv(path.join(dir, "power.csv"));
-    // the first shell (width k_F = 2π/20 kpc⁻¹) holds the modes at k_F and √2 k_F
-    expect(power[0]!["k_per_kpc"]).toBeGreaterThanOrEqual((2 * Math.PI) / 20);
-    expect(power[0]!["k_per_kpc"]).toBeLessThanOrEqual((Math.SQRT2 * 2 * Math.PI) / 20);
-    const frames = psibox(["analyze", "output/jeans", "--frames", "--out", "frames-out"]);
-    expect(frames.code).toBe(0);
-    expect(fs.readdirSync(path.join(work, "frames-out/frames"))).toEqual(["frame_00000.png", "frame_00001.png", "frame_00002.png"]);
+    const a = path.join(work, "output/jeans/analysis");
+    for (const f of ["slice", "power"]) checkPicture(path.join(a, "snap_00002", `${f}.png`));
+    for (const f of ["energies", "clocks"]) checkPicture(path.join(a, `${f}.png`));
+    expect(fs.readdirSync(path.join(a, "frames"))).toEqual(["frame_00000.png", "frame_00001.png", "frame_00002.png"]);
+    checkPicture(path.join(a, "frames/frame_00001.png"), 600, false); // frames are PNG only
+  });
+
+  it("1D: the density on a log axis and the space–time diagram", () => {
+    const r = psibox(["analyze", "output/line"]);
+    expect(r.code, r.stderr).toBe(0);
+    checkPicture(path.join(work, "output/line/analysis/snap_00003/slice.png"));
+    checkPicture(path.join(work, "output/line/analysis/spacetime.png"), 1100);
+    expect(fs.readFileSync(path.join(work, "output/line/analysis/snap_00003/slice.svg"), "utf8")).toContain("ρ [Msun/kpc³]");
+  });
+
+  it("3D expanding: slice, column density, P(k) with linear theory, and a Layzer–Irvine residual below 1e-3 of |W| (Layzer 1963)", () => {
+    const r = psibox(["analyze", "output/cosmo", "--slice-axis", "y", "--column-range", "7,8.5"]);
+    expect(r.code, r.stderr).toBe(0);
+    const a = path.join(work, "output/cosmo/analysis");
+    for (const f of ["slice", "projection", "power"]) checkPicture(path.join(a, "snap_00002", `${f}.png`));
+    checkPicture(path.join(a, "energies.png"));
+    const projection = fs.readFileSync(path.join(a, "snap_00002/projection.svg"), "utf8");
+    expect(projection).toContain("log₁₀ Σ [Msun/kpc²]");
+    expect(projection).toContain("column density, along y");
+    expect(projection).toContain("colours fixed");
+    expect(fs.readFileSync(path.join(a, "snap_00002/power.svg"), "utf8")).toContain("linear theory");
+    expect(fs.readFileSync(path.join(a, "energies.svg"), "utf8")).toContain("Layzer–Irvine");
+    const [header, ...lines] = fs.readFileSync(path.join(work, "output/cosmo/timeseries.csv"), "utf8").trim().split("\n");
+    const cols = header!.split(",");
+    const rows = lines.map((l) => Object.fromEntries(l.split(",").map((v, i) => [cols[i]!, cols[i] === "limiter" ? v : Number(v)])));
+    const drifts = conservationDrifts(energyRows(rows, "t_Gyr"));
+    expect(Math.max(...drifts.map((d) => Math.abs(d.energy)))).toBeLessThan(1e-3);
+  });
+
+  it("encodes the movie with ffmpeg when it is there, and says when only frames could be made", () => {
+    const encoder = findEncoder();
+    const a = path.join(work, "output/jeans/analysis");
+    if (encoder) {
+      const movie = fs.readFileSync(path.join(a, `movie.${encoder.extension}`));
+      expect(movie.length).toBeGreaterThan(2000);
+      // MP4 files open with an ftyp box, WebM with the EBML magic number
+      expect(encoder.extension === "mp4" ? movie.subarray(4, 8).toString("latin1") : movie.subarray(0, 4).toString("hex")).toBe(encoder.extension === "mp4" ? "ftyp" : "1a45dfa3");
+    }
+    const r = psibox(["analyze", "output/jeans", "--movie", "--out", "no-encoder"], { PSIBOX_FFMPEG: path.join(work, "no-such-ffmpeg") });
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stdout).toMatch(/no video encoder found \(ffmpeg with libx264 or libvpx on the PATH\); the movie is the 3 frames in /);
+    expect(fs.readdirSync(path.join(work, "no-encoder/frames"))).toHaveLength(3);
+  });
+
+  it("refuses bad picture options and a movie of one snapshot with one line and exit code 2", () => {
+    expect(psibox(["ic", "cosmo.toml", "--set", 'output.dir="single"', "-q"]).code).toBe(0);
+    const cases: [string[], RegExp][] = [
+      [["analyze", "output/jeans", "--range", "8,3"], /^psibox: --range: LO must be below HI, got 8 ≥ 3\n$/],
+      [["analyze", "output/jeans", "--colormap", "jet"], /^psibox: --colormap: unknown colour map "jet"; choose a perceptually uniform one: viridis, magma, inferno, plasma, cividis\n$/],
+      [["analyze", "output/cosmo/snapshots/snap_00001.h5", "--slice-index", "16", "--out", "x"], /^psibox: --slice-index: 16 is outside the grid of .*snap_00001\.h5 \(z has cells 0 … 15\)\n$/],
+      [["analyze", "single", "--movie"], /^psibox: --movie: needs at least two snapshots; single has 1\n$/],
+      [["report", "output/jeans", "--slice-axis", "w"], /^psibox: --slice-axis: must be x, y or z, got "w"\n$/],
+    ];
+    for (const [args, message] of cases) {
+      const r = psibox(args);
+      expect(r.code, args.join(" ")).toBe(2);
+      expect(r.stderr).toMatch(message);
+    }
+    const tables = psibox(["analyze", "output/line", "--no-pictures", "--out", "tables-only"]);
+    expect(tables.stdout).toMatch(/tables \(no pictures\) in tables-only/);
   });
 });
 
 const chromium = ["/usr/bin/chromium", "/usr/bin/chromium-browser"].find((p) => fs.existsSync(p));
-describe.runIf(chromium !== undefined || process.env["CI"] === "true")("psibox report", () => {
-  it("writes one self-contained page that renders in headless Chromium without console errors", async () => {
-    const r = psibox(["report", "output/jeans"]);
+describe.runIf(chromium !== undefined || process.env["CI"] === "true")("psibox report in headless Chromium", () => {
+  it("loads every image, and no text of the page or of any figure is clipped or overflows (DOM bounding boxes)", async () => {
+    const r = psibox(["report", "output/cosmo"]);
     expect(r.code, r.stderr).toBe(0);
-    const file = path.join(work, "output/jeans/report.html");
+    const file = path.join(work, "output/cosmo/report.html");
     const html = fs.readFileSync(file, "utf8");
     expect(html).not.toMatch(/src="(?!data:)/); // every picture is inlined
+    const text = html.replace(/data:[^"]+/g, "").replace(/<pre>[^]*<\/pre>/, ""); // pictures and the config as written
+    expect(text).not.toMatch(/_Msun|_km_s|e[+-]\d\d|\. \(/); // human headers, formatted numbers, sentences that read
     const { chromium: browserType } = await import("playwright-core");
     const browser = await browserType.launch({
       executablePath: chromium ?? "/usr/bin/chromium",
@@ -97,18 +160,43 @@ describe.runIf(chromium !== undefined || process.env["CI"] === "true")("psibox r
       page.on("pageerror", (e) => errors.push(e.message));
       await page.goto(`file://${file}`);
       for (const id of ["clocks", "energies", "field", "power", "diagnostics", "parameters"]) expect(await page.locator(`#${id}`).count(), id).toBe(1);
-      const images = await page.locator("img").evaluateAll((els) => els.map((e) => (e as unknown as { naturalWidth: number }).naturalWidth));
-      expect(images.length).toBeGreaterThanOrEqual(5);
-      expect(images.every((w) => w > 100)).toBe(true);
+      const images = (await page.evaluate(`Array.from(document.images).map((e) => ({ ok: e.complete && e.naturalWidth > 0, w: e.naturalWidth }))`)) as { ok: boolean; w: number }[];
+      expect(images.length).toBeGreaterThanOrEqual(7);
+      expect(images.every((i) => i.ok && i.w > 600)).toBe(true);
       expect(await page.locator(".verdict li").count()).toBe(4);
-      await page.screenshot({ path: path.join(work, "output/jeans/report-screenshot.png"), fullPage: true });
-      // and one in the project's own (git-ignored) output/ folder, to look at
+      // text that overflows its box, or boxes that stick out of the page's column
+      const overflow = (await page.evaluate(`(() => {
+        const bad = [];
+        const column = document.body.getBoundingClientRect();
+        for (const e of document.querySelectorAll("h1,h2,h3,p,li,th,td,figcaption,figure,img,.table,table,pre")) {
+          const box = e.getBoundingClientRect();
+          if (e.scrollWidth > e.clientWidth + 1 && e.tagName !== "IMG") bad.push(e.tagName + " overflows: " + e.textContent.slice(0, 40));
+          if (box.right > column.right + 1 || box.left < column.left - 1) bad.push(e.tagName + " sticks out: " + e.textContent.slice(0, 40));
+        }
+        return bad;
+      })()`)) as string[];
+      expect(overflow).toEqual([]);
+      await page.screenshot({ path: path.join(work, "report-screenshot.png"), fullPage: true });
+      // kept in the project's own (git-ignored) output/ folder for a person to look at
       fs.mkdirSync(path.resolve("output"), { recursive: true });
-      fs.copyFileSync(path.join(work, "output/jeans/report-screenshot.png"), path.resolve("output/report-screenshot.png"));
+      fs.copyFileSync(path.join(work, "report-screenshot.png"), path.resolve("output/report-screenshot.png"));
       expect(errors).toEqual([]);
+      // every figure's text lies inside its own picture
+      const svgs = [...fs.readdirSync(path.join(work, "output/cosmo/analysis")).filter((f) => f.endsWith(".svg")).map((f) => path.join("output/cosmo/analysis", f)), "output/cosmo/analysis/snap_00002/slice.svg", "output/cosmo/analysis/snap_00002/projection.svg", "output/cosmo/analysis/snap_00002/power.svg"];
+      for (const svg of svgs) {
+        await page.setContent(`<body style="margin:0">${fs.readFileSync(path.join(work, svg), "utf8")}</body>`);
+        const outside = (await page.evaluate(`(() => {
+          const root = document.querySelector("svg").getBoundingClientRect();
+          return Array.from(document.querySelectorAll("svg text"))
+            .filter((t) => t.getAttribute("opacity") !== "0" && t.textContent.length > 0)
+            .filter((t) => { const b = t.getBoundingClientRect(); return b.left < root.left - 0.5 || b.right > root.right + 0.5 || b.top < root.top - 0.5 || b.bottom > root.bottom + 0.5; })
+            .map((t) => t.textContent);
+        })()`)) as string[];
+        expect(outside, svg).toEqual([]);
+      }
     } finally {
       await browser.close();
     }
-    expect(fs.statSync(path.join(work, "output/jeans/report-screenshot.png")).size).toBeGreaterThan(10_000);
+    expect(fs.statSync(path.join(work, "report-screenshot.png")).size).toBeGreaterThan(10_000);
   });
 });

@@ -1,0 +1,70 @@
+/**
+ * Pieces of the HTML report: escaping, figures, tables with human headers
+ * and units, and the clocks' verdicts as sentences. Every number goes
+ * through psibox's formatter.
+ */
+import { formatNumber } from "../core/format.js";
+import type { Figure } from "./render.js";
+import { PNG_SCALE } from "./render.js";
+
+export function esc(s: string): string {
+  return s.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;");
+}
+
+/** A figure at its design size (PNG pixels / PNG_SCALE), scaled down to the column if narrower. */
+export function figure(fig: Figure | undefined, caption: string): string {
+  if (!fig) return "";
+  const w = Math.round(fig.width / PNG_SCALE);
+  const h = Math.round(fig.height / PNG_SCALE);
+  return `<figure><img alt="${esc(caption)}" src="data:image/png;base64,${fig.png.toString("base64")}" width="${w}" height="${h}"><figcaption>${esc(caption)}</figcaption></figure>`;
+}
+
+/** A table cell: numbers formatted, missing values as a dash. */
+export function cell(v: unknown, digits = 3): string {
+  if (typeof v === "number") return formatNumber(v, digits);
+  if (v === null || v === undefined || v === "") return "—";
+  return esc(String(v));
+}
+
+/** A table with the given column headers (already human, with units) and rows of cells. */
+export function table(headers: readonly string[], rows: readonly (readonly unknown[])[], className = ""): string {
+  if (rows.length === 0) return "<p>none</p>";
+  return `<div class="table"><table${className ? ` class="${className}"` : ""}><thead><tr>${headers.map((h) => `<th>${esc(h)}</th>`).join("")}</tr></thead><tbody>${rows
+    .map((r) => `<tr>${r.map((v) => `<td>${cell(v)}</td>`).join("")}</tr>`)
+    .join("")}</tbody></table></div>`;
+}
+
+export interface ClockEntry {
+  readonly name: string;
+  readonly time: string;
+  readonly time_s: number | null;
+  readonly reached: boolean;
+  readonly ratio_to_span: number | null;
+  readonly ratio_to_age_of_universe: number | null;
+}
+
+/** One sentence per clock: what happens, when (from the start of the run), and how that compares. */
+export function clockSentence(c: ClockEntry, targetDb: number): string {
+  const when = c.time_s === null ? "" : c.reached ? `after ${c.time}` : `only after a projected ${c.time} (extrapolated with the last rates)`;
+  const what: Record<string, string> = {
+    "squeezing-onset": "The condensate mode starts to squeeze (N|∫χ dt| = 1)",
+    "squeezing-level": `Its squeezing reaches ${formatNumber(targetDb)} dB`,
+    "phase-diffusion": "Its mean field dephases (|⟨b⟩|²/N = 1/e)",
+    "classical-breakdown": "The classical-field description is expected to fail (∫λ dt = ln N)",
+  };
+  if (c.time_s === null) return c.name === "squeezing-level" ? `Squeezing to ${formatNumber(targetDb)} dB is beyond the best single-mode squeezing for this N: it never happens.` : `${what[c.name] ?? c.name}: never.`;
+  const ratios = c.ratio_to_span === null ? "" : `, ${formatNumber(c.ratio_to_span)} × the run's span and ${formatNumber(c.ratio_to_age_of_universe!)} × the age of the universe`;
+  return `${what[c.name] ?? c.name} ${when}${ratios}.`;
+}
+
+export const STYLESHEET = `
+body{font-family:"DejaVu Sans",system-ui,sans-serif;max-width:1060px;margin:2em auto;padding:0 1em;color:#222;line-height:1.45}
+h1{font-size:1.5em;margin-bottom:.2em}h2{font-size:1.2em;border-bottom:1px solid #ccc;padding-bottom:.2em;margin-top:1.8em}h3{font-size:1em}
+.figs{display:flex;flex-wrap:wrap;gap:1em;align-items:flex-start}
+figure{margin:0;max-width:100%}figure img{max-width:100%;height:auto;display:block}figcaption{font-size:.8em;color:#555;margin-top:.2em}
+.table{max-width:100%;overflow-x:auto}
+table{border-collapse:collapse;font-size:.85em;margin:.4em 0}td,th{border:1px solid #ddd;padding:.2em .6em;text-align:right;white-space:nowrap}th{background:#f4f4f4;font-weight:600;white-space:normal;max-width:8.5em;vertical-align:bottom}
+td:first-child,th:first-child{text-align:left}
+pre{background:#f7f7f7;padding:1em;overflow-x:auto;font-size:.8em;white-space:pre-wrap}
+.verdict li{margin:.2em 0}.note{color:#555;font-size:.9em}
+`;

@@ -1,0 +1,132 @@
+/**
+ * A run's own figures, after its snapshots are analysed: energies and
+ * clocks from the time series, the space–time diagram of a 1D run, and the
+ * movie frames (2D: the density; 3D: the column density along the chosen
+ * axis; 1D: the density profile) on one colour range for the whole run,
+ * encoded into a movie when asked and an encoder is found.
+ */
+import fs from "node:fs";
+import path from "node:path";
+import type { Snapshot } from "../io/snapshot.js";
+import { readSnapshot } from "../io/snapshot.js";
+import { writeFileAtomic } from "../io/atomic.js";
+import { unitInSI } from "../physics/units.js";
+import { formatNumber } from "../core/format.js";
+import { energiesPlot, clocksPlot, type Ring } from "./run-plots.js";
+import { spacetimeFigure } from "./spacetime.js";
+import { colourRange, fieldFigure } from "./field-image.js";
+import { densityLinePlot, type Row } from "./plots.js";
+import { AXIS_NAMES, type DensityPlane } from "./planes.js";
+import { axisUnit } from "./snapshot-pictures.js";
+import { encodeMovie, findEncoder } from "./movie.js";
+import type { PictureOptions } from "./picture-options.js";
+import type { Figure } from "./render.js";
+
+export interface RunOutputs {
+  readonly figures: Record<string, Figure>;
+  readonly frames?: number;
+  /** The movie file, when one was encoded. */
+  readonly movie?: string;
+  /** What happened to the movie, in a sentence (encoder used, or why there are only frames). */
+  readonly movieNote?: string;
+}
+
+interface SnapshotLike {
+  readonly planes: { slice?: DensityPlane; projection?: DensityPlane };
+  readonly time: number;
+  readonly caption: string;
+}
+
+function readSeries(file: string): { rows: Row[]; tCol: string; unit: string } | undefined {
+  if (!fs.existsSync(file)) return undefined;
+  const [header, ...lines] = fs.readFileSync(file, "utf8").trim().split("\n");
+  const cols = header!.split(",");
+  const rows = lines.map((l) => Object.fromEntries(l.split(",").map((v, i) => [cols[i]!, cols[i] === "limiter" ? v : Number(v)])));
+  const tCol = cols.find((c) => c.startsWith("t_"))!;
+  return rows.length ? { rows, tCol, unit: tCol.slice(2) } : undefined;
+}
+
+const CLOCK_LABELS: Record<string, string> = { "squeezing-onset": "onset", "squeezing-level": "target", "phase-diffusion": "dephased", "classical-breakdown": "breakdown" };
+
+function clockInfo(runDir: string, t0: number, unit: string): { targetDb: number; rings: Ring[] } {
+  const file = path.join(runDir, "clocks.json");
+  if (!fs.existsSync(file)) return { targetDb: -10, rings: [] };
+  const c = JSON.parse(fs.readFileSync(file, "utf8")) as { squeezing_db_target?: number; clocks: { name: string; reached: boolean; time_s: number | null }[] };
+  const perUnit = unitInSI(unit);
+  const rings = c.clocks.filter((k) => k.reached && k.time_s !== null).map((k) => ({ t: t0 + k.time_s! / perUnit, label: CLOCK_LABELS[k.name] ?? k.name }));
+  return { targetDb: c.squeezing_db_target ?? -10, rings };
+}
+
+/** Frames of the whole run on one colour range; returns how many were written. */
+async function writeFrames(snapshots: readonly SnapshotLike[], files: readonly string[], frameDir: string, first: Snapshot, opts: PictureOptions): Promise<number> {
+  fs.mkdirSync(frameDir, { recursive: true });
+  for (const f of fs.readdirSync(frameDir)) if (/^frame_\d{5}\.png$/.test(f)) fs.rmSync(path.join(frameDir, f));
+  const dims = first.meta.cells.length;
+  const frame = (i: number) => path.join(frameDir, `frame_${String(i).padStart(5, "0")}.png`);
+  if (dims === 1) {
+    const profiles = files.map((f) => {
+      const s = readSnapshot(f);
+      const n = s.meta.cells[0]!;
+      const unit = s.meta.boxSizeKpc[0]! / n;
+      return Array.from({ length: n }, (_, i) => ({ x: i * unit, rho: s.psi[2 * i]! ** 2 + s.psi[2 * i + 1]! ** 2 }));
+    });
+    const all = profiles.flat().map((p) => p.rho);
+    for (const [i, rows] of profiles.entries()) writeFileAtomic(frame(i), (await densityLinePlot(rows, "x [kpc]", "ρ [Msun/kpc³]", "Density", snapshots[i]!.caption, all)).png);
+    return profiles.length;
+  }
+  const pick = (s: SnapshotLike) => (dims === 3 ? s.planes.projection : s.planes.slice)!;
+  const logs = snapshots.map((s) => pick(s).values.map((v) => (v > 0 ? Math.log10(v) : -Infinity)));
+  let hi = -Infinity;
+  for (const l of logs) for (const v of l) if (v > hi) hi = v;
+  const fixed = dims === 3 ? opts.columnRange : opts.densityRange;
+  const range = fixed ? ([fixed[0], fixed[1]] as const) : colourRange(Float64Array.of(hi - opts.decades, hi), opts.decades);
+  const p0 = pick(snapshots[0]!);
+  const unit = axisUnit(Math.max(...first.meta.boxSizeKpc)).name;
+  for (const [i, s] of snapshots.entries()) {
+    const plane = pick(s);
+    const fig = await fieldFigure(
+      { ...plane, values: logs[i]! },
+      {
+        xTitle: `${AXIS_NAMES[p0.across]} [${unit}]`,
+        yTitle: `${AXIS_NAMES[p0.up]} [${unit}]`,
+        legend: dims === 3 ? "log₁₀ Σ [Msun/kpc²]" : "log₁₀ ρ [Msun/kpc³]",
+        title: dims === 3 ? `Column density along ${AXIS_NAMES[p0.normal!]}` : "Density",
+        subtitle: s.caption,
+        range,
+        colourMap: opts.colourMap,
+      },
+    );
+    writeFileAtomic(frame(i), fig.png);
+  }
+  return snapshots.length;
+}
+
+/** Make the run's figures (and frames and movie when asked). */
+export async function runFigures(runDir: string, outDir: string, snapshots: readonly SnapshotLike[], files: readonly string[], first: Snapshot | undefined, opts: { frames: boolean; movie: boolean; pictures: PictureOptions }): Promise<RunOutputs> {
+  const figures: Record<string, Figure> = {};
+  const series = readSeries(path.join(runDir, "timeseries.csv"));
+  if (series) {
+    const tTitle = `t [${series.unit}]`;
+    figures["energies"] = await energiesPlot(series.rows, series.tCol, tTitle);
+    if ("squeezing_dB" in series.rows[0]!) {
+      const lnN = Math.log(Number(series.rows[0]!["particles_N"]));
+      const clocks = clockInfo(runDir, Number(series.rows[0]![series.tCol]), series.unit);
+      figures["clocks"] = await clocksPlot(series.rows, series.tCol, tTitle, { lnN, ...clocks });
+    }
+  }
+  if (first && first.meta.cells.length === 1 && files.length > 1) {
+    const rows = files.map((f) => {
+      const s = readSnapshot(f);
+      return { t: s.meta.time, logRho: Float64Array.from({ length: s.meta.cells[0]! }, (_, i) => Math.log10(Math.max(s.psi[2 * i]! ** 2 + s.psi[2 * i + 1]! ** 2, 1e-300))) };
+    });
+    figures["spacetime"] = await spacetimeFigure(rows, first.meta.boxSizeKpc[0]!, first.meta.timeUnit, { colourMap: opts.pictures.colourMap, decades: opts.pictures.decades, ...(opts.pictures.densityRange ? { range: opts.pictures.densityRange } : {}) });
+  }
+  if (!(opts.frames || opts.movie) || !first) return { figures };
+  const frameDir = path.join(outDir, "frames");
+  const frames = await writeFrames(snapshots, files, frameDir, first, opts.pictures);
+  if (!opts.movie) return { figures, frames };
+  const encoder = findEncoder();
+  if (!encoder) return { figures, frames, movieNote: `no video encoder found (ffmpeg with libx264 or libvpx on the PATH); the movie is the ${frames} frames in ${frameDir}` };
+  const movie = encodeMovie(encoder, frameDir, path.join(outDir, "movie"));
+  return { figures, frames, movie, movieNote: `movie of ${frames} frames (${formatNumber(4)} per second) encoded by ${encoder.program} with ${encoder.codec}` };
+}

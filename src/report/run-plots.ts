@@ -1,0 +1,118 @@
+/**
+ * The run-level plots from the time series: energies with their
+ * conservation checks (relative energy drift or Layzer–Irvine residual,
+ * mass drift), and the quantum sidecar's clocks with their targets and the
+ * times they rang.
+ */
+import type { TopLevelSpec } from "vega-lite";
+import { formatNumber } from "../core/format.js";
+import { conservationDrifts, energyRows } from "./energy-series.js";
+import { logAxis, PANEL, scaleColumn, SCHEMA, type Row } from "./plots.js";
+import { renderVegaLite, type Figure } from "./render.js";
+
+const COLOURS = { K: "#d1495b", W: "#1f5fa8", E: "#222222", mark: "#b5651d" };
+
+function xEnc(title: string, showTitle = true, domain?: [number, number]): object {
+  return { field: "t", type: "quantitative", title: showTitle ? title : null, scale: { nice: false, zero: false, ...(domain ? { domain } : {}) } };
+}
+
+/** Energies (top), the energy check and the mass drift (below), against time. */
+export function energiesPlot(series: Row[], tCol: string, tTitle: string): Promise<Figure> {
+  const rows = energyRows(series, tCol);
+  const expanding = rows[0]?.a !== undefined;
+  const drifts = conservationDrifts(rows);
+  const long = rows.flatMap((r) => [
+    { t: r.t, series: "kinetic K", v: r.kinetic },
+    { t: r.t, series: "potential W", v: r.potential },
+    { t: r.t, series: "K + W", v: r.kinetic + r.potential },
+  ]);
+  const energy = scaleColumn(long, ["v"], () => "v", "energy", "Msun (km/s)²");
+  const eDrift = scaleColumn(drifts as unknown as Row[], ["energy"], () => "energy", expanding ? "Layzer–Irvine R/|W|" : "(E − E₀)/|E₀|", "");
+  const mDrift = scaleColumn(drifts as unknown as Row[], ["mass"], () => "mass", "(M − M₀)/M₀", "");
+  const small = { width: PANEL.width, height: 95 };
+  return renderVegaLite({
+    $schema: SCHEMA,
+    title: { text: "Energies and conservation", subtitle: expanding ? "expanding box: R = Δ(K + W) + ∫(2K + W) d ln a stays ≈ 0 (Layzer–Irvine)" : "static box: K + W and M are conserved" },
+    spacing: 10,
+    vconcat: [
+      {
+        ...PANEL,
+        data: { values: energy.rows },
+        mark: { type: "line", strokeWidth: 1.5 },
+        encoding: {
+          x: xEnc(tTitle, false),
+          y: { field: "v", type: "quantitative", title: energy.title },
+          color: { field: "series", type: "nominal", title: null, scale: { domain: ["kinetic K", "potential W", "K + W"], range: [COLOURS.K, COLOURS.W, COLOURS.E] }, legend: { orient: "right" } },
+        },
+      },
+      { ...small, data: { values: eDrift.rows }, mark: { type: "line", color: COLOURS.E }, encoding: { x: xEnc(tTitle, false), y: { field: "energy", type: "quantitative", title: eDrift.title } } },
+      {
+        ...small,
+        layer: [
+          { data: { values: mDrift.rows }, mark: { type: "line", color: COLOURS.E }, encoding: { x: xEnc(tTitle), y: { field: "mass", type: "quantitative", title: mDrift.title } } },
+          // the time series keeps 12 significant digits: a drift below that reads as zero
+          ...(drifts.every((d) => d.mass === 0) ? [{ data: { values: [{}] }, mark: { type: "text", align: "left", baseline: "top", fontSize: 9, color: "#555" }, encoding: { x: { value: 4 }, y: { value: 4 }, text: { value: "no change within the 12 digits of timeseries.csv" } } }] : []),
+        ],
+      },
+    ],
+  } as unknown as TopLevelSpec);
+}
+
+/** A clock that rang during the run, at time t in the series' unit. */
+export interface Ring {
+  readonly t: number;
+  readonly label: string;
+}
+
+function ringLayers(rings: readonly Ring[], withText: boolean): object[] {
+  if (rings.length === 0) return [];
+  // labels stacked downwards so that clocks ringing close together stay readable
+  const labelled = rings.map((r, i) => ({ ...r, y: 3 + 11 * i }));
+  return [
+    { data: { values: rings }, mark: { type: "rule", strokeDash: [2, 2], color: COLOURS.mark }, encoding: { x: { field: "t", type: "quantitative" } } },
+    ...(withText
+      ? [{ data: { values: labelled }, mark: { type: "text", align: "left", baseline: "top", dx: 3, fontSize: 9, color: COLOURS.mark }, encoding: { x: { field: "t", type: "quantitative" }, y: { field: "y", type: "quantitative", scale: null }, text: { field: "label" } } }]
+      : []),
+  ];
+}
+
+function threshold(value: number, label: string): object[] {
+  const one = { values: [{}] };
+  return [
+    { data: one, mark: { type: "rule", strokeDash: [5, 3], color: COLOURS.K }, encoding: { y: { datum: value } } },
+    { data: one, mark: { type: "text", align: "right", baseline: "top", dy: 3, fontSize: 9, color: COLOURS.K }, encoding: { x: { value: PANEL.width - 2 }, y: { datum: value }, text: { value: label } } },
+  ];
+}
+
+/** Squeezing (with its target), the mean-field decay on a log axis that reaches its threshold, and ∫λ dt up to ln N. */
+export function clocksPlot(series: Row[], tCol: string, tTitle: string, opts: { lnN: number; targetDb: number; rings: readonly Ring[] }): Promise<Figure> {
+  const rows = series.map((r) => ({
+    t: Number(r[tCol]),
+    squeezing: Number(r["squeezing_dB"]),
+    dephasing: -Number(r["log10_meanfield_fraction"]) * Math.LN10,
+    breakdown: Number(r["breakdown_integral"]),
+  }));
+  const positive = rows.filter((r) => r.dephasing > 0);
+  const deph = logAxis([...positive.map((r) => r.dephasing), 1, 2]);
+  const panel = { width: PANEL.width, height: 110 };
+  const tRange: [number, number] = [rows[0]!.t, rows.at(-1)!.t];
+  const line = (field: string, y: object) => ({ data: { values: field === "dephasing" ? positive : rows }, mark: { type: "line", strokeWidth: 1.5, color: COLOURS.W }, encoding: { x: xEnc(tTitle, field === "breakdown", tRange), y: { field, type: "quantitative", ...y } } });
+  const minDb = Math.min(opts.targetDb * 1.2, ...rows.map((r) => r.squeezing).filter(Number.isFinite));
+  return renderVegaLite({
+    $schema: SCHEMA,
+    title: { text: "Quantum clocks of the whole-box mode", subtitle: `dotted: when a clock rang; dashed: its threshold (squeezing target ${formatNumber(opts.targetDb)} dB)` },
+    spacing: 10,
+    vconcat: [
+      { ...panel, layer: [line("squeezing", { title: "squeezing [dB]", scale: { domain: [minDb, 0], nice: false } }), ...threshold(opts.targetDb, `target ${formatNumber(opts.targetDb)} dB`), ...ringLayers(opts.rings, true)] },
+      {
+        ...panel,
+        layer: [
+          line("dephasing", { title: "−ln(|⟨b⟩|²/N)", scale: { type: "log", domain: deph.domain, nice: false }, axis: { values: deph.values } }),
+          ...threshold(1, "phase diffusion at 1"),
+          ...ringLayers(opts.rings, false),
+        ],
+      },
+      { ...panel, layer: [line("breakdown", { title: "∫λ dt", scale: { domain: [0, Math.max(opts.lnN * 1.08, ...rows.map((r) => r.breakdown))], nice: false } }), ...threshold(opts.lnN, `breakdown at ln N = ${formatNumber(opts.lnN)}`), ...ringLayers(opts.rings, false)] },
+    ],
+  } as unknown as TopLevelSpec);
+}

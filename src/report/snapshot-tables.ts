@@ -1,0 +1,105 @@
+/**
+ * The tables of one snapshot, in physical units: power.csv, pdf.csv,
+ * peaks.csv (with the soliton core fit and the core relation's
+ * prediction), profiles.csv and summary.json.
+ */
+import fs from "node:fs";
+import path from "node:path";
+import type { Snapshot } from "../io/snapshot.js";
+import { writeFileAtomic } from "../io/atomic.js";
+import { fieldStats, type LoadedField } from "../simulation/from-snapshot.js";
+import { densestPoints, densityPdf, densityPowerSpectrum, fitCoreProfile, kineticSplit, radialProfile } from "../diagnostics/analysis.js";
+import { KG_PER_EV, M_SUN_KG, PC_M } from "../physics/constants.js";
+import { csvTable as csv } from "./csv-table.js";
+
+const KPC = 1e3 * PC_M;
+
+/**
+ * power.csv: k [1/kpc], P [kpc^d], modes, and the dimensionless power per ln k,
+ * Δ²(k) = k³P/(2π²) in 3D (k²P/(2π) in 2D, kP/π in 1D); for comoving runs also
+ * k [h/Mpc] and P [(Mpc/h)^d] (comoving).
+ */
+function powerTable(power: readonly { k: number; power: number; modes: number }[], kpcPerCode: number, dims: number, littleH: number | undefined): string {
+  const delta2 = (k: number, p: number) => (dims === 3 ? (k ** 3 * p) / (2 * Math.PI ** 2) : dims === 2 ? (k ** 2 * p) / (2 * Math.PI) : (k * p) / Math.PI);
+  const u = dims === 1 ? "" : String(dims);
+  const header = ["k_per_kpc", `P_kpc${u}`, "modes", "Delta2"];
+  if (littleH !== undefined) header.push("k_h_per_Mpc", `P_Mpc${u}_per_h${u}`);
+  return csv(
+    header,
+    power.map((b) => {
+      const k = b.k / kpcPerCode;
+      const p = b.power * kpcPerCode ** dims;
+      const row = [k, p, b.modes, delta2(b.k, b.power)];
+      if (littleH !== undefined) row.push((k * 1e3) / littleH, p * 1e-3 ** dims * littleH ** dims);
+      return row;
+    }),
+  );
+}
+
+/** Write one snapshot's tables into `outDir` (created); returns its summary (for summary.json, written by the caller) and P(k) in kpc^d. */
+export function snapshotTables(file: string, snap: Snapshot, field: LoadedField, outDir: string): { summary: Record<string, unknown>; power: { k: number; P: number }[] } {
+  const { grid, units, psi } = field;
+  const a = field.scaleFactor;
+  const kpcPerCode = units.lengthM / KPC;
+  const densityUnit = (units.massKg / units.lengthM ** 3) / (M_SUN_KG / KPC ** 3);
+  const energyUnit = units.energyJ / (M_SUN_KG * 1e6);
+  const kms = units.lengthM / units.timeS / 1e3;
+  fs.mkdirSync(outDir, { recursive: true });
+
+  const power = densityPowerSpectrum(grid, psi);
+  writeFileAtomic(path.join(outDir, "power.csv"), powerTable(power, kpcPerCode, grid.dims, snap.meta.background.kind === "lcdm" ? snap.meta.background.hubbleKmSMpc / 100 : undefined));
+  const pdf = densityPdf(psi);
+  writeFileAtomic(path.join(outDir, "pdf.csv"), csv(["log10_density_contrast", "volume_fraction", "mass_fraction"], pdf.map((p) => [p.log10Contrast, p.volumeFraction, p.massFraction])));
+
+  const stats = fieldStats(field);
+  const split = kineticSplit(grid, psi, a);
+  const m22over10 = units.particleMassKg / KG_PER_EV / 1e-23; // m / 1e-23 eV
+  const peaks = densestPoints(grid, psi, 5, Math.max(4, grid.cells[0]! / 16));
+  const profileRows: (number | string)[][] = [];
+  const peakRows = peaks.map((p, i) => {
+    const rMax = Math.min(...grid.lengths) / 4;
+    const profile = radialProfile(grid, psi, p.coords, rMax);
+    for (const q of profile) profileRows.push([i + 1, q.r * kpcPerCode, q.density * densityUnit, q.cells]);
+    let fit: { rhoC: number; rC: number; rms: number } | undefined;
+    if (grid.dims === 3) {
+      try {
+        const half = profile.find((q) => q.density < p.density / 2)?.r ?? rMax;
+        fit = fitCoreProfile(profile, 2 * half);
+      } catch {
+        fit = undefined;
+      }
+    }
+    const rcKpc = fit ? fit.rC * kpcPerCode : NaN;
+    // Schive, Chiueh & Broadhurst 2014: ρ_c = 1.9 (m/1e-23 eV)^-2 (r_c/kpc)^-4 Msun/pc³
+    const predicted = fit ? 1.9e9 * Math.pow(m22over10, -2) * Math.pow(rcKpc, -4) : NaN;
+    return [i + 1, ...[0, 1, 2].map((ax) => (p.coords[ax] ?? NaN) * kpcPerCode), p.density * densityUnit, fit ? fit.rhoC * densityUnit : NaN, rcKpc, predicted, fit ? fit.rms : NaN];
+  });
+  writeFileAtomic(
+    path.join(outDir, "peaks.csv"),
+    csv(["peak", "x_kpc", "y_kpc", "z_kpc", "density_Msun_kpc3", "core_fit_rho_c_Msun_kpc3", "core_fit_r_c_kpc", "core_relation_rho_c_Msun_kpc3", "core_fit_rms_ln"], peakRows),
+  );
+  writeFileAtomic(path.join(outDir, "profiles.csv"), csv(["peak", "r_kpc", "density_Msun_kpc3", "cells"], profileRows));
+  const summary = {
+    file,
+    step: snap.meta.step,
+    time: snap.meta.time,
+    time_unit: snap.meta.timeUnit,
+    scale_factor: a,
+    redshift: snap.meta.redshift,
+    mass_Msun: stats.massMsun,
+    density_Msun_kpc3: { min: stats.minDensityMsunKpc3, mean: stats.meanDensityMsunKpc3, max: stats.maxDensityMsunKpc3 },
+    energies_Msun_km2_s2: {
+      kinetic: split.kinetic * energyUnit,
+      kinetic_bulk_flow: split.bulk * energyUnit,
+      kinetic_quantum_gradient: split.quantum * energyUnit,
+      potential: stats.potentialMsunKm2S2,
+      total: split.kinetic * energyUnit + stats.potentialMsunKm2S2,
+    },
+    virial_ratio: stats.virialRatio,
+    velocity_dispersion_km_s: split.velocityDispersion * kms,
+    mean_velocity_km_s: split.meanVelocity.map((v) => v * kms),
+    densest_points: peakRows.length,
+    core_fit: grid.dims === 3 && peakRows[0] ? { rho_c_Msun_kpc3: peakRows[0][5], r_c_kpc: peakRows[0][6], relation_rho_c_Msun_kpc3: peakRows[0][7] } : null,
+  };
+  return { summary, power: power.map((b) => ({ k: b.k / kpcPerCode, P: b.power * kpcPerCode ** grid.dims })) };
+}
