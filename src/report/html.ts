@@ -12,6 +12,7 @@ import { writeFileAtomic } from "../io/atomic.js";
 import { readSnapshot } from "../io/snapshot.js";
 import { analyzeRun, type RunAnalysisOptions } from "./analyze.js";
 import { diagnosticsSection } from "./diagnostics-section.js";
+import { axisUnit } from "./snapshot-pictures.js";
 import { clockSentence, esc, figure, STYLESHEET, table, type ClockEntry } from "./report-parts.js";
 
 interface RunSummary {
@@ -40,7 +41,8 @@ function overview(s: RunSummary, runDir: string, firstFile: string | undefined):
   if (firstFile) {
     const m = readSnapshot(firstFile).meta;
     const bg = m.background.kind === "lcdm" ? `flat ΛCDM (H₀ = ${formatNumber(m.background.hubbleKmSMpc, 4)} km/s/Mpc, Ω_m = ${formatNumber(m.background.omegaMatter, 4)}), comoving box` : "static box";
-    setup = `<p>${m.cells.length}D grid of ${m.cells.join(" × ")} cells, box ${m.boxSizeKpc.map((b) => formatNumber(b, 4)).join(" × ")} kpc, ${m.gravity} gravity, ${bg}; particle mass ${formatQuantity(m.particleMassEv, "eV")}.</p>`;
+    const unit = axisUnit(Math.max(...m.boxSizeKpc));
+    setup = `<p>${m.cells.length}D grid of ${m.cells.join(" × ")} cells, box ${m.boxSizeKpc.map((b) => formatNumber(b * unit.perKpc, 4)).join(" × ")} ${unit.name}, ${m.gravity} gravity, ${bg}; particle mass ${formatQuantity(m.particleMassEv, "eV")}.</p>`;
   }
   return `${setup}<p>The run ${status} after ${s.steps ?? "?"} steps in ${formatQuantity(s.wall_time_s ?? NaN, "s")} of wall time, ${span}; ${s.snapshots ?? "?"} snapshots; relative mass drift ${formatNumber(s.mass_drift ?? NaN)}. Folder: <code>${esc(runDir)}</code>.</p>`;
 }

@@ -60,8 +60,8 @@ export function clockSentence(c: ClockEntry, targetDb: number): string {
 export const STYLESHEET = `
 body{font-family:"DejaVu Sans",system-ui,sans-serif;max-width:1060px;margin:2em auto;padding:0 1em;color:#222;line-height:1.45}
 h1{font-size:1.5em;margin-bottom:.2em}h2{font-size:1.2em;border-bottom:1px solid #ccc;padding-bottom:.2em;margin-top:1.8em}h3{font-size:1em}
-.figs{display:flex;flex-wrap:wrap;gap:1em;align-items:flex-start}
-figure{margin:0;max-width:100%}figure img{max-width:100%;height:auto;display:block}figcaption{font-size:.8em;color:#555;margin-top:.2em}
+.figs{display:grid;grid-template-columns:repeat(auto-fill,minmax(min(100%,470px),1fr));gap:1.2em 1em;align-items:start}
+figure{margin:0;min-width:0}figure img{max-width:100%;height:auto;display:block}figcaption{font-size:.8em;color:#555;margin-top:.2em}
 .table{max-width:100%;overflow-x:auto}
 table{border-collapse:collapse;font-size:.85em;margin:.4em 0}td,th{border:1px solid #ddd;padding:.2em .6em;text-align:right;white-space:nowrap}th{background:#f4f4f4;font-weight:600;white-space:normal;max-width:8.5em;vertical-align:bottom}
 td:first-child,th:first-child{text-align:left}

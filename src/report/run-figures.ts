@@ -91,7 +91,7 @@ async function writeFrames(snapshots: readonly SnapshotLike[], files: readonly s
         yTitle: `${AXIS_NAMES[p0.up]} [${unit}]`,
         legend: dims === 3 ? "log₁₀ Σ [Msun/kpc²]" : "log₁₀ ρ [Msun/kpc³]",
         title: dims === 3 ? `Column density along ${AXIS_NAMES[p0.normal!]}` : "Density",
-        subtitle: s.caption,
+        subtitle: `${s.caption}; ${fixed ? "fixed colours" : `colours: the run's maximum and ${formatNumber(opts.decades)} decades below`}`,
         range,
         colourMap: opts.colourMap,
       },

@@ -44,7 +44,7 @@ describe("CLI option tables", () => {
     expect(imp.flags).toMatchObject({ out: "f.h5", box: "1 kpc", particleMass: "1e-22 eV", densityUnit: "Msun/kpc^3", gravity: "periodic" });
     const analyze = await parsed(analyzeSpec, ["analyze", "r1", "r2", "--no-pictures"]);
     expect(analyze.args).toEqual([["r1", "r2"]]);
-    expect(analyze.flags).toEqual({ frames: false, pictures: false });
+    expect(analyze.flags).toEqual({ frames: false, movie: false, pictures: false });
   });
 
   it("a required option that is missing is a commander error, not a call", async () => {
