@@ -67,7 +67,6 @@ export async function analyzeCommand(paths: readonly string[], flags: AnalyzeFla
     if (fs.statSync(p).isDirectory()) {
       runFolder(p);
       const out = flags.out ?? path.join(p, "analysis");
-      reporter.phase(`analysing ${p}`);
       const r = await analyzeRun(p, out, { frames: flags.frames, movie: flags.movie, pictures: flags.pictures, pictureOptions: pictures, diagnostics, onSnapshot: (done, total) => reporter.progress(done / total, `snapshot ${done} of ${total}`) });
       reporter.endPhase();
       process.stdout.write(`${p}: ${r.snapshots.length} snapshots analysed in ${formatDuration((performance.now() - started) / 1000)}; ${what(flags)} in ${out}\n`);
@@ -87,7 +86,6 @@ export async function reportCommand(runDir: string, flags: PictureFlags & { out?
   if (!fs.existsSync(runDir)) throw new InputError(`${runDir}: no such folder`);
   await loadHdf5();
   const reporter = new TextReporter();
-  reporter.phase(`analysing ${runDir}`);
   const file = await writeReport(runDir, flags.out, { pictureOptions: pictures, onSnapshot: (done, total) => reporter.progress(done / total, `snapshot ${done} of ${total}`) });
   reporter.endPhase();
   process.stdout.write(`wrote ${file}\n`);
