@@ -1,0 +1,122 @@
+/** Resolution of [output] and [integrator]: cadences, the output time unit, snapshot times, step rules, threads. */
+import os from "node:os";
+import path from "node:path";
+import { ConfigError } from "../core/errors.js";
+import { parseUnit, UnitSyntaxError, type CodeUnits, type UnitContext } from "../physics/units.js";
+import { makeBackground, type BackgroundSpec } from "../physics/cosmology/background.js";
+import type { CheckedConfig } from "./schema.js";
+import { positive, read } from "./values.js";
+import type { ResolvedRun } from "./resolve.js";
+
+/** The [integrator] section in code units. */
+export function resolveIntegrator(config: CheckedConfig, cells: number, units: CodeUnits, ctx: UnitContext): ResolvedRun["integrator"] {
+  const integ = config.integrator;
+  if (!(integ.safety > 0 && integ.safety <= 1)) throw new ConfigError("integrator.safety", `must be in (0, 1], got ${integ.safety}`);
+  positive("integrator.max_dln_a", integ.max_dln_a);
+  positive("integrator.mass_tolerance", integ.mass_tolerance);
+  positive("integrator.max_steps", integ.max_steps);
+  const fixed = integ.fixed_step;
+  return {
+    safety: integ.safety,
+    fixedStep: fixed === undefined ? undefined : positive("integrator.fixed_step", read("integrator.fixed_step", fixed, "time", ctx)) / units.timeS,
+    maxDlnA: integ.max_dln_a,
+    massTolerance: integ.mass_tolerance,
+    maxSteps: integ.max_steps,
+    threads: resolveThreads(integ.threads, cells),
+    fft: integ.fft,
+  };
+}
+
+/** Threads: as configured, else PSIBOX_THREADS, else the cores (one thread below 32³ cells, where threads do not pay). */
+function resolveThreads(configured: number | undefined, cells: number): number {
+  if (configured !== undefined) {
+    if (!(configured >= 1 && configured <= 64)) throw new ConfigError("integrator.threads", `must be from 1 to 64, got ${configured}`);
+    return configured;
+  }
+  const env = Number(process.env["PSIBOX_THREADS"] ?? NaN);
+  if (Number.isInteger(env) && env >= 1) return Math.min(env, 64);
+  return cells < 32 ** 3 ? 1 : os.availableParallelism();
+}
+
+/** The [output] section; `span` in code time. */
+export function resolveOutput(
+  config: CheckedConfig,
+  name: string,
+  cwd: string,
+  background: BackgroundSpec,
+  span: { startTime: number; endTime: number },
+  units: CodeUnits,
+  ctx: UnitContext,
+): { outputDir: string; output: ResolvedRun["output"] } {
+  const out = config.output;
+  positive("output.timeseries_every", out.timeseries_every);
+  const timeUnit = out.time_unit ?? (config.span.duration !== undefined ? unitText(config.span.duration) : "Gyr");
+  const timeUnitS = timeUnitSeconds(timeUnit, ctx);
+  const outputDir = path.resolve(cwd, out.dir ?? path.join("output", name));
+  const snapshotTimes = resolveSnapshotTimes(config, background, span.startTime, span.endTime, units, ctx);
+  if (out.snapshot_every !== undefined) positive("output.snapshot_every", out.snapshot_every);
+  positive("output.checkpoint_every", out.checkpoint_every);
+  const output = {
+    timeseriesEvery: out.timeseries_every,
+    timeUnit,
+    timeUnitS,
+    snapshotEvery: out.snapshot_every,
+    snapshotTimes,
+    snapshotPrecision: out.snapshot_precision,
+    checkpointEvery: out.checkpoint_every,
+    vortexCensus: resolveVortexCensus(out.vortex_census, config.grid.cells),
+  };
+  return { outputDir, output };
+}
+
+function timeUnitSeconds(timeUnit: string, ctx: UnitContext): number {
+  try {
+    const u = parseUnit(timeUnit, ctx);
+    if (u.dim.L !== 0 || u.dim.M !== 0 || u.dim.T !== 1) throw new UnitSyntaxError("");
+    return u.si;
+  } catch {
+    throw new ConfigError("output.time_unit", `"${timeUnit}" is not a time unit; use s, yr, kyr, Myr or Gyr`);
+  }
+}
+
+function resolveSnapshotTimes(
+  config: CheckedConfig,
+  background: BackgroundSpec,
+  startTime: number,
+  endTime: number,
+  units: CodeUnits,
+  ctx: UnitContext,
+): number[] {
+  const out = config.output;
+  const times: number[] = [];
+  if (out.snapshot_interval !== undefined) {
+    const dt = positive("output.snapshot_interval", read("output.snapshot_interval", out.snapshot_interval, "time", ctx)) / units.timeS;
+    const count = Math.floor((endTime - startTime) / dt + 1e-9);
+    if (count > 100_000) throw new ConfigError("output.snapshot_interval", `would write ${count} snapshots; choose a longer interval`);
+    for (let k = 1; k <= count; k++) times.push(startTime + k * dt);
+  }
+  if (out.snapshot_redshifts !== undefined) {
+    if (background.kind !== "lcdm") throw new ConfigError("output.snapshot_redshifts", 'needs background.kind = "lcdm"; static runs use output.snapshot_interval');
+    const bg = makeBackground(background);
+    const zStart = config.span.start_redshift as number;
+    const zEnd = config.span.end_redshift ?? 0;
+    for (const z of out.snapshot_redshifts) {
+      if (!(z < zStart && z >= zEnd)) {
+        throw new ConfigError("output.snapshot_redshifts", `${z} is outside the run's redshift range (${zStart} → ${zEnd})`);
+      }
+      times.push(bg.time(1 / (1 + z)));
+    }
+  }
+  return [...new Set(times)].filter((t) => t > startTime && t <= endTime).sort((a, b) => a - b);
+}
+
+function unitText(quantity: string): string {
+  return quantity.trim().replace(/^[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?\s*/, "");
+}
+
+/** output.vortex_census: only for 2D and 3D grids. */
+function resolveVortexCensus(on: boolean, cells: number | readonly number[]): boolean {
+  const dims = typeof cells === "number" ? 1 : cells.length;
+  if (on && dims < 2) throw new ConfigError("output.vortex_census", "vortices need a 2D or 3D grid; this grid is 1D (set it to false)");
+  return on;
+}
