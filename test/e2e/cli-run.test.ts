@@ -66,7 +66,7 @@ describe("psibox run", () => {
     expect(Number(last["t_Myr"])).toBeCloseTo(10, 9);
     expect(Number(last["mass_Msun"]) / 1e8).toBeCloseTo(1, 10);
     // Kinetic energy of a moving Gaussian packet (textbook): K = M (v²/2 + (ħ/m)²/(8σ²)),
-    // with ħ/m = 19.1715 kpc km/s for 1e-22 eV (PHYSICS §5.6): 1e8 × (450 + 183.75) Msun (km/s)²
+    // with ħ/m = 19.1715 kpc km/s for 1e-22 eV (computed independently): 1e8 × (450 + 183.75) Msun (km/s)²
     const expected = 1e8 * (0.5 * 30 ** 2 + 19.1715 ** 2 / (8 * 0.5 ** 2));
     expect(Math.abs(Number(last["kinetic_Msun_km2_s2"]) / expected - 1)).toBeLessThan(1e-4);
     const summary = JSON.parse(fs.readFileSync(path.join(work, "output/packet/summary.json"), "utf8"));

@@ -51,7 +51,7 @@ describe("soliton core fit", () => {
     expect(fit.rC / 0.41).toBeCloseTo(1, 9);
   });
 
-  it("fits the imaginary-time soliton within 2% of its exact ρ_c and r_c (M r_c = 2.67941 ħ²/(Gm²), PHYSICS §5.1)", () => {
+  it("fits the imaginary-time soliton within 2% of its exact ρ_c and r_c (M r_c = 2.67941 ħ²/(Gm²), computed independently from the ground-state equation)", () => {
     const grid = new Grid([64, 64, 64], [1, 1, 1]);
     const mass = (9.94583 * 4 * Math.PI) / 0.3;
     const gs = buildSolitons({ kind: "solitons", profile: "relaxed", solitons: [{ mass, center: [0.5, 0.5, 0.5], velocity: [0, 0, 0], phase: 0 }] }, grid, 1);

@@ -24,7 +24,7 @@ const params: PowerParameters = {
 };
 
 describe("transfer functions", () => {
-  it("match the check table of PHYSICS §5.3 (Eisenstein & Hu 1998 no-wiggle; BBKS 1986), computed independently, to 1e-6", () => {
+  it("match a check table of the published formulas (Eisenstein & Hu 1998 no-wiggle; BBKS 1986), computed independently, to 1e-6", () => {
     const table: [number, number, number][] = [
       [0.001, 9.818639e-1, 9.846786e-1],
       [0.01, 7.21328e-1, 6.873142e-1],
@@ -38,7 +38,7 @@ describe("transfer functions", () => {
     }
   });
 
-  it("the wave-dark-matter suppression halves T at k = 5.078 m22^{4/9}/Mpc and T² at 4.584 (PHYSICS §5.3); Hu, Barkana & Gruzinov 2000 quote about 4.5 for T² (from memory): within 5%", () => {
+  it("the wave-dark-matter suppression halves T at k = 5.078 m22^{4/9}/Mpc and T² at 4.584 (computed independently); Hu, Barkana & Gruzinov 2000 quote about 4.5 for T² (from memory): within 5%", () => {
     for (const m22 of [0.1, 1, 10]) {
       const half = (target: number, square: boolean) => {
         let lo = 0.1;

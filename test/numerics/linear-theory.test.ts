@@ -76,7 +76,7 @@ describe("static box (Khlopov, Malomed & Zeldovich 1985, MNRAS 215, 575)", () =>
 // Exact Einstein–de Sitter growing mode of wave dark matter with x = ħk²/(m H0 a^{1/2}):
 //   δ₊ ∝ ((3 − x²) cos x + 3x sin x) / x²   (→ ∝ a for x → 0)
 // (the Bessel-function solution of the comoving linear equation; see e.g. Hu, Barkana & Gruzinov 2000,
-// PRL 85, 1158, and PHYSICS §5.2, where the team checked it against ODE shooting).
+// PRL 85, 1158; checked independently against ODE shooting).
 const deltaPlus = (x: number) => ((3 - x * x) * Math.cos(x) + 3 * x * Math.sin(x)) / (x * x);
 
 function edsRun(hubble0: number, aStart: number, checkpoints: number[]): { a: number; measured: number; exact: number }[] {

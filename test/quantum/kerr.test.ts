@@ -1,5 +1,5 @@
 // The exact Kerr evolution of a coherent state against arbitrary precision, Fock-space sums,
-// published limits and the team's check table (PHYSICS §5.5, computed independently).
+// published limits and a check table computed independently.
 import { Decimal } from "decimal.js";
 import { describe, expect, it } from "vitest";
 import { bestSqueezing, kerrState, xForPhaseDiffusion, xForSqueezing } from "../../src/quantum/kerr.js";
@@ -143,7 +143,7 @@ describe("Kerr coherent state: stable double-precision closed forms", () => {
 });
 
 describe("Kerr squeezing: published limits and check values", () => {
-  it("reproduces the check table of PHYSICS §5.5 to 1e-9 (computed independently by the team)", () => {
+  it("reproduces a check table to 1e-9 (computed independently)", () => {
     const table: [number, number, number, number, number][] = [
       [10, 0.01, 3.144907136, -0.315537932, 0.8194932318],
       [10, 0.1, 1.629539348, -2.528582509, 0.5919338692],
@@ -172,7 +172,7 @@ describe("Kerr squeezing: published limits and check values", () => {
     expect(checked).toBeGreaterThanOrEqual(14);
   });
 
-  it("best squeezing: the exact optima of PHYSICS §5.5 to 1e-5, and S_min → (3/2)(4N)^{-1/3} at X_opt → 2^{-2/3} N^{-5/6} (shear plus crescent curvature; Kitagawa & Yamamoto 1986)", () => {
+  it("best squeezing: the exact optima (computed independently) to 1e-5, and S_min → (3/2)(4N)^{-1/3} at X_opt → 2^{-2/3} N^{-5/6} (shear plus crescent curvature; Kitagawa & Yamamoto 1986)", () => {
     const optima: [number, number, number][] = [
       [10, 6.3231e-2, 0.415449],
       [100, 1.13696e-2, 0.210838],
@@ -211,11 +211,20 @@ describe("Kerr squeezing: published limits and check values", () => {
     expect(kerrState(N, Math.PI).meanFieldFraction).toBeCloseTo(Math.exp(-4 * N), 12);
   });
 
-  it("mean-field collapse |⟨b⟩|²/N = exp(−2N(1 − cos X)) reaches 1/e at X = arccos(1 − 1/(2N))", () => {
-    for (const N of [1, 10, 1e6, 1e50]) {
+  it("mean-field collapse |⟨b⟩|²/N = exp(−2N(1 − cos X)) reaches 1/e at X = arccos(1 − 1/(2N)), against 420 digits up to N = 1e120", () => {
+    // in double precision 1 − 1/(2N) rounds to 1 beyond N ≈ 1e16, so the reference is evaluated with decimal.js
+    // (computed independently) at the exact binary value of N
+    for (const N of [1, 10, 1e6, 1e20, 1e50, 1e120]) {
+      const n = new D(N.toPrecision(100));
+      const xRef = D.acos(new D(1).minus(new D(1).div(n.times(2))));
       const X = xForPhaseDiffusion(N);
-      expect(X).toBeCloseTo(Math.acos(1 - 1 / (2 * N)), N > 1e7 ? 20 : 12);
-      expect(kerrState(N, X).meanFieldFraction).toBeCloseTo(Math.exp(-1), 12);
+      expect(X).toBeGreaterThan(0);
+      expect(Math.abs(X / xRef.toNumber() - 1), `X at N = ${N}`).toBeLessThan(1e-13);
+      // the fraction at the X found, also evaluated in 420 digits at that exact double
+      const x = new D(X.toPrecision(100));
+      const fraction = D.exp(n.times(-2).times(new D(1).minus(D.cos(x)))).toNumber();
+      expect(Math.abs(fraction * Math.E - 1), `reference fraction at N = ${N}`).toBeLessThan(1e-12);
+      expect(Math.abs(kerrState(N, X).meanFieldFraction / fraction - 1), `fraction at N = ${N}`).toBeLessThan(1e-12);
     }
   });
 

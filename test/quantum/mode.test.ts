@@ -40,7 +40,7 @@ describe("mode coefficients", () => {
     expect(coeffs.chi).toBeLessThan(0); // gravity is attractive
   });
 
-  it("soliton: Nħχ = −0.217026 and ħω = 0.0542564 per particle in G²M²m³/ħ², summing to the eigenvalue (PHYSICS §5.1; Membrado et al. 1989 total energy)", () => {
+  it("soliton: Nħχ = −0.217026 and ħω = 0.0542564 per particle in G²M²m³/ħ², summing to the eigenvalue (computed independently from the ground-state equation; the total energy as in Membrado, Pacheco & Sañudo 1989, Phys. Rev. A 39, 4207)", () => {
     const nChi = (coeffs.particles * coeffs.chi * particleMass) / perParticleUnit; // ħ = m in code units
     const omega = (coeffs.omega * particleMass) / perParticleUnit;
     expect(Math.abs(nChi / -0.217026 - 1)).toBeLessThan(2e-3);
@@ -104,7 +104,7 @@ describe("estimate", () => {
     expect(onset / (6.582119569e-16 / 2e-11)).toBeCloseTo(1, 9);
   });
 
-  it("the worked example of PHYSICS §5.5 from the simulation-free formulas, with the soliton's exact virial numbers", () => {
+  it("a worked example (computed independently) from the simulation-free formulas, with the soliton's exact virial numbers", () => {
     // a 1e9 Msun soliton of m22 = 1: N = 1.1154e97, 1/(N|χ|) = 1.716 Myr, 1/(|χ|√N) = 5.73e54 yr (computed independently)
     // N|χ| = 2|W|/(Nħ) = 4|E|/(Nħ) with |E| = 0.0542564 G²M³m²/ħ² ⇒ ⟨v²⟩ = 2|E|/M = 0.1085128 G²M²m²/ħ²
     const m = 1e-22 * KG_PER_EV;

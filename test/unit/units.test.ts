@@ -1,4 +1,4 @@
-// Unit parsing and code units against CODATA 2018 / IAU 2015 values (PHYSICS §5.6 lists them).
+// Unit parsing and code units against CODATA 2018 / IAU 2015 values.
 import { describe, expect, it } from "vitest";
 import { CodeUnits, parseAs, parseQuantity, UnitSyntaxError } from "../../src/physics/units.js";
 import { G_SI, HBAR_J_S, KG_PER_EV, M_SUN_KG, PC_M, YEAR_S } from "../../src/physics/constants.js";
@@ -13,7 +13,7 @@ describe("constants", () => {
     expect((G_SI * M_SUN_KG) / (1e3 * PC_M) / 1e6).toBeCloseTo(4.300917e-6, 11);
   });
 
-  it("ħ/m = 19.1715 kpc km/s for m = 1e-22 eV (PHYSICS §5.6, computed independently)", () => {
+  it("ħ/m = 19.1715 kpc km/s for m = 1e-22 eV (computed independently)", () => {
     const m = parseAs("1e-22 eV", "mass");
     expect(HBAR_J_S / m / (1e3 * PC_M * 1e3)).toBeCloseTo(19.1715, 3);
   });
