@@ -1,17 +1,12 @@
 // The psibox CLI run end to end, as a user runs it: the built binary in a temporary folder.
-import { spawnSync } from "node:child_process";
 import fs from "node:fs";
-import os from "node:os";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { BIN, makeWork, removeWork, runPsibox } from "../helpers/cli.js";
 
-const BIN = path.resolve("dist/cli/bin.js");
 let work: string;
 
-function psibox(args: string[]) {
-  const r = spawnSync(process.execPath, [BIN, ...args], { cwd: work, encoding: "utf8" });
-  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
-}
+const psibox = (args: string[]) => runPsibox(work, args);
 
 function writeConfig(name: string, text: string): string {
   const file = path.join(work, name);
@@ -47,9 +42,9 @@ velocity = ["30 km/s"]
 
 beforeAll(() => {
   expect(fs.existsSync(BIN)).toBe(true);
-  work = fs.mkdtempSync(path.join(os.tmpdir(), "psibox-e2e-"));
+  work = makeWork("e2e");
 });
-afterAll(() => fs.rmSync(work, { recursive: true, force: true }));
+afterAll(() => removeWork(work));
 
 describe("psibox run", () => {
   it("runs a config and writes a time series in physical units", () => {

@@ -1,18 +1,18 @@
 // 200+ randomly corrupted configs: each must end in a one-line error naming a key or the file,
 // exit code 2, no stack trace, and nothing written anywhere.
 import fs from "node:fs";
-import os from "node:os";
 import path from "node:path";
 import { stringify } from "smol-toml";
 import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import { main } from "../../src/cli/main.js";
 import { seededRandom } from "../helpers/fields.js";
+import { makeWork, removeWork } from "../helpers/cli.js";
 
 let work: string;
 beforeAll(() => {
-  work = fs.mkdtempSync(path.join(os.tmpdir(), "psibox-fuzz-"));
+  work = makeWork("fuzz");
 });
-afterAll(() => fs.rmSync(work, { recursive: true, force: true }));
+afterAll(() => removeWork(work));
 
 type Config = Record<string, Record<string, unknown>>;
 const base = (): Config => ({

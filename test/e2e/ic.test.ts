@@ -1,24 +1,19 @@
 // psibox ic and the initial-condition kinds from the CLI.
-import { spawnSync } from "node:child_process";
 import fs from "node:fs";
-import os from "node:os";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { loadHdf5 } from "../../src/io/h5.js";
 import { readSnapshot } from "../../src/io/snapshot.js";
+import { makeWork, removeWork, runPsibox } from "../helpers/cli.js";
 
-const BIN = path.resolve("dist/cli/bin.js");
 let work: string;
 beforeAll(async () => {
   await loadHdf5();
-  work = fs.mkdtempSync(path.join(os.tmpdir(), "psibox-ic-"));
+  work = makeWork("ic");
 });
-afterAll(() => fs.rmSync(work, { recursive: true, force: true }));
+afterAll(() => removeWork(work));
 
-function psibox(args: string[]) {
-  const r = spawnSync(process.execPath, [BIN, ...args], { cwd: work, encoding: "utf8" });
-  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
-}
+const psibox = (args: string[]) => runPsibox(work, args);
 
 const COSMO = `[grid]
 cells = [16, 16, 16]

@@ -1,25 +1,21 @@
 // psibox import: fields written by other programs become psibox snapshots with the same values.
 import { spawnSync } from "node:child_process";
 import fs from "node:fs";
-import os from "node:os";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import h5wasm from "h5wasm/node";
 import { loadHdf5 } from "../../src/io/h5.js";
 import { readSnapshot } from "../../src/io/snapshot.js";
+import { makeWork, removeWork, runPsibox } from "../helpers/cli.js";
 
-const BIN = path.resolve("dist/cli/bin.js");
 let work: string;
 beforeAll(async () => {
   await loadHdf5();
-  work = fs.mkdtempSync(path.join(os.tmpdir(), "psibox-import-"));
+  work = makeWork("import");
 });
-afterAll(() => fs.rmSync(work, { recursive: true, force: true }));
+afterAll(() => removeWork(work));
 
-function psibox(args: string[]) {
-  const r = spawnSync(process.execPath, [BIN, ...args], { cwd: work, encoding: "utf8" });
-  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
-}
+const psibox = (args: string[]) => runPsibox(work, args);
 
 /** A .npy file built byte by byte from the format's specification (NumPy NEP 1), complex128, C order. */
 function writeNpy(file: string, shape: number[], data: Float64Array): void {

@@ -2,13 +2,12 @@
 // with the quantum sidecar on (its state travels in the checkpoint).
 import { spawn, spawnSync } from "node:child_process";
 import fs from "node:fs";
-import os from "node:os";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { loadHdf5 } from "../../src/io/h5.js";
 import { readSnapshot } from "../../src/io/snapshot.js";
+import { BIN, makeWork, removeWork } from "../helpers/cli.js";
 
-const BIN = path.resolve("dist/cli/bin.js");
 let work: string;
 
 const CONFIG = `
@@ -32,10 +31,10 @@ checkpoint_every = 100
 
 beforeAll(async () => {
   await loadHdf5();
-  work = fs.mkdtempSync(path.join(os.tmpdir(), "psibox-resume-"));
+  work = makeWork("resume");
   fs.writeFileSync(path.join(work, "r.toml"), CONFIG);
 });
-afterAll(() => fs.rmSync(work, { recursive: true, force: true }));
+afterAll(() => removeWork(work));
 
 function psibox(args: string[]) {
   return spawnSync(process.execPath, [BIN, ...args], { cwd: work, encoding: "utf8" });

@@ -1,21 +1,16 @@
 // The quantum sidecar from the CLI: in-line clocks, the same clocks from dense snapshots, and estimate.
-import { spawnSync } from "node:child_process";
 import fs from "node:fs";
-import os from "node:os";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { makeWork, removeWork, runPsibox } from "../helpers/cli.js";
 
-const BIN = path.resolve("dist/cli/bin.js");
 let work: string;
 beforeAll(() => {
-  work = fs.mkdtempSync(path.join(os.tmpdir(), "psibox-sidecar-"));
+  work = makeWork("sidecar");
 });
-afterAll(() => fs.rmSync(work, { recursive: true, force: true }));
+afterAll(() => removeWork(work));
 
-function psibox(args: string[]) {
-  const r = spawnSync(process.execPath, [BIN, ...args], { cwd: work, encoding: "utf8" });
-  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
-}
+const psibox = (args: string[]) => runPsibox(work, args);
 
 function lastRow(file: string): Record<string, number> {
   const [header, ...rows] = fs.readFileSync(file, "utf8").trim().split("\n");

@@ -1,21 +1,17 @@
 // psibox sweep: a local pool of real child processes, resume after SIGKILL, failures, Slurm scripts, bad input.
 import { spawn, spawnSync } from "node:child_process";
 import fs from "node:fs";
-import os from "node:os";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { BIN, makeWork, removeWork, runPsibox } from "../helpers/cli.js";
 
-const BIN = path.resolve("dist/cli/bin.js");
 let work: string;
 beforeAll(() => {
-  work = fs.mkdtempSync(path.join(os.tmpdir(), "psibox-sweep-"));
+  work = makeWork("sweep");
 });
-afterAll(() => fs.rmSync(work, { recursive: true, force: true }));
+afterAll(() => removeWork(work));
 
-function psibox(args: string[], env: Record<string, string> = {}) {
-  const r = spawnSync(process.execPath, [BIN, ...args], { cwd: work, encoding: "utf8", env: { ...process.env, ...env } });
-  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
-}
+const psibox = (args: string[], env: Record<string, string> = {}) => runPsibox(work, args, { ...process.env, ...env });
 
 const BASE = `[grid]
 cells = [64, 64]

@@ -2,20 +2,19 @@
 // and a run whose worker threads cannot start stops with exit code 1 and a one-line reason.
 import { spawn, spawnSync } from "node:child_process";
 import fs from "node:fs";
-import os from "node:os";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { BIN, makeWork, removeWork } from "../helpers/cli.js";
 
-const BIN = path.resolve("dist/cli/bin.js");
 let work: string;
 const CONFIG = (duration: string, extra = "") =>
   `[grid]\ncells = [32, 32, 32]\nbox = "20 kpc"\n[particle]\nmass = "1e-22 eV"\n[span]\nduration = "${duration}"\n` +
   `[initial]\nkind = "plane-wave"\nmean_density = "1e7 Msun/kpc^3"\ncontrast = 0.2\nmode = [1, 1, 0]\n[integrator]\nthreads = 2\n${extra}`;
 
 beforeAll(() => {
-  work = fs.mkdtempSync(path.join(os.tmpdir(), "psibox-threads-"));
+  work = makeWork("threads");
 });
-afterAll(() => fs.rmSync(work, { recursive: true, force: true }));
+afterAll(() => removeWork(work));
 
 describe("worker threads shut down", () => {
   it("after a normal end and after a guard-rail stop, the process exits by itself", () => {

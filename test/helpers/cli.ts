@@ -24,7 +24,7 @@ export function removeWork(work: string | undefined): void {
 }
 
 /** Run `psibox ARGS...` in `cwd` and wait for it. */
-export function psibox(cwd: string, args: readonly string[], env: NodeJS.ProcessEnv = process.env): Ran {
+export function runPsibox(cwd: string, args: readonly string[], env: NodeJS.ProcessEnv = process.env): Ran {
   const r = spawnSync(process.execPath, [BIN, ...args], { cwd, encoding: "utf8", env });
   return { code: r.status, stdout: r.stdout, stderr: r.stderr };
 }

@@ -1,12 +1,11 @@
 // Imaginary-time ground state (the soliton) against published Schrödinger–Poisson constants.
 // Units of the comparison: M r in ħ²/(G m²), energies per particle in G²M²m³/ħ², total energy in G²M³m²/ħ².
 // In code units (ħ/m = 1, 4πG = 1) G = 1/(4π), so lengths scale as 4π/M and energies per mass as (M/4π)².
-import { describe, expect, it } from "vitest";
-import { Grid } from "../../src/grid/grid.js";
-import { IsolatedPoisson } from "../../src/fields/poisson.js";
-import { relaxGroundState, type GroundState } from "../../src/ground-state/imaginary-time.js";
-import { fillComplex } from "../helpers/fields.js";
+import { beforeAll, describe, expect, it } from "vitest";
+import type { Grid } from "../../src/grid/grid.js";
+import type { GroundState } from "../../src/ground-state/imaginary-time.js";
 import { massRadius, radialDensity } from "../helpers/radial.js";
+import { relaxedSoliton } from "../helpers/soliton.js";
 
 const PUBLISHED = {
   eigenvalue: -0.16277, // −0.163: Moroz, Penrose & Tod 1998, CQG 15, 2733 (team value −0.162770)
@@ -14,16 +13,6 @@ const PUBLISHED = {
   halfMassRadius: 3.9251, // 3.925: Hui, Ostriker, Tremaine & Witten 2017, PRD 95, 043541
   r99: 9.94583, // 9.946: Chavanis 2011, PRD 84, 043531
 };
-
-function soliton(n: number): { gs: GroundState; grid: Grid; mass: number } {
-  const grid = new Grid([n, n, n], [1, 1, 1]);
-  const mass = (PUBLISHED.r99 * 4 * Math.PI) / 0.3; // r_99 = 0.3 box lengths
-  const s = 0.08;
-  const amp = Math.sqrt(mass / Math.pow(2 * Math.PI * s * s, 1.5));
-  const r2 = (x: number, y: number, z: number) => (x - 0.5) ** 2 + (y - 0.5) ** 2 + (z - 0.5) ** 2;
-  const psi0 = fillComplex(grid, (x, y, z) => [amp * Math.exp(-r2(x, y, z) / (4 * s * s)), 0]);
-  return { gs: relaxGroundState(grid, new IsolatedPoisson(grid), psi0), grid, mass };
-}
 
 function constants(grid: Grid, gs: GroundState, mass: number) {
   const energyPerMass = (mass / (4 * Math.PI)) ** 2;
@@ -39,8 +28,16 @@ function constants(grid: Grid, gs: GroundState, mass: number) {
 }
 
 describe("imaginary-time soliton with isolated gravity", () => {
+  // the soliton of mass M with r₉₉ = 0.3 box lengths, relaxed from a Gaussian (the tests' shared fixture)
+  let coarse: Awaited<ReturnType<typeof relaxedSoliton>>;
+  let fine: Awaited<ReturnType<typeof relaxedSoliton>>;
+  beforeAll(async () => {
+    coarse = await relaxedSoliton(32);
+    fine = await relaxedSoliton(64);
+  }, 900_000);
+
   it("matches the published constants to 1% at 32³ (soliton core ≈ 2.6 cells)", () => {
-    const { gs, grid, mass } = soliton(32);
+    const { gs, grid, mass } = coarse;
     expect(gs.converged).toBe(true);
     const c = constants(grid, gs, mass);
     for (const key of ["eigenvalue", "totalEnergy", "halfMassRadius", "r99"] as const) {
@@ -50,7 +47,7 @@ describe("imaginary-time soliton with isolated gravity", () => {
   });
 
   it("matches them to 1e-3 when converged at 64³, and the virial theorem holds to 1e-3", () => {
-    const { gs, grid, mass } = soliton(64);
+    const { gs, grid, mass } = fine;
     expect(gs.converged).toBe(true);
     const c = constants(grid, gs, mass);
     for (const key of ["eigenvalue", "totalEnergy", "halfMassRadius", "r99"] as const) {

@@ -1,15 +1,16 @@
 // Condensate-mode coefficients against the soliton's published constants, the virial theorem
 // and a second code path; the clock accumulator against a constant-rate closed form.
-import { describe, expect, it } from "vitest";
+import { beforeAll, describe, expect, it } from "vitest";
 import { Grid } from "../../src/grid/grid.js";
 import { IsolatedPoisson, PeriodicPoisson } from "../../src/fields/poisson.js";
-import { relaxGroundState } from "../../src/ground-state/imaginary-time.js";
+import type { GroundState } from "../../src/ground-state/imaginary-time.js";
 import { modeCoefficients } from "../../src/quantum/mode.js";
 import { ClockAccumulator } from "../../src/quantum/clocks.js";
 import { estimateClocks } from "../../src/quantum/estimate.js";
 import { kerrState, xForPhaseDiffusion } from "../../src/quantum/kerr.js";
 import { C_M_PER_S, KG_PER_EV, M_SUN_KG } from "../../src/physics/constants.js";
 import { fillComplex, seededRandom } from "../helpers/fields.js";
+import { SOLITON_MASS, relaxedSoliton } from "../helpers/soliton.js";
 
 describe("mode coefficients", () => {
   it("χ of a uniform field is zero (no density contrast, no self-gravity energy)", () => {
@@ -22,17 +23,18 @@ describe("mode coefficients", () => {
     expect(m.particles).toBeCloseTo(9e6, 3);
   });
 
-  // The soliton (3D, isolated gravity, code units ħ/m = 1, 4πG = 1 so G = 1/4π).
+  // The soliton (3D, isolated gravity, code units ħ/m = 1, 4πG = 1 so G = 1/4π): the tests' shared 32³ fixture.
   const grid = new Grid([32, 32, 32], [1, 1, 1]);
-  const mass = (9.94583 * 4 * Math.PI) / 0.3;
-  const s = 0.08;
-  const amp = Math.sqrt(mass / Math.pow(2 * Math.PI * s * s, 1.5));
-  const guess = fillComplex(grid, (x, y, z) => [amp * Math.exp(-((x - 0.5) ** 2 + (y - 0.5) ** 2 + (z - 0.5) ** 2) / (4 * s * s)), 0]);
   const gravity = new IsolatedPoisson(grid);
-  const gs = relaxGroundState(grid, gravity, guess);
+  const mass = SOLITON_MASS;
+  let gs: GroundState;
+  let coeffs: ReturnType<typeof modeCoefficients>;
   const particleMass = mass / 1e12; // N = 1e12
-  const coeffs = modeCoefficients({ grid, psi: gs.psi, scaleFactor: 1, particleMass, gravity });
   const perParticleUnit = (mass / (4 * Math.PI)) ** 2 * particleMass; // G²M²m³/ħ² in code units
+  beforeAll(async () => {
+    gs = (await relaxedSoliton(32)).gs;
+    coeffs = modeCoefficients({ grid, psi: gs.psi, scaleFactor: 1, particleMass, gravity });
+  }, 900_000);
 
   it("soliton: χ from the mode's own potential equals 2W/N² from the relaxation's potential energy (two code paths)", () => {
     const chiFromW = (2 * gs.potential) / (coeffs.particles ** 2 * particleMass); // ħχ = 2W/N², ħ = m in code units
