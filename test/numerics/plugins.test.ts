@@ -31,6 +31,27 @@ checkpoint_every = 7
 enabled = false
 `;
 
+const PACKET = `
+[grid]
+cells = 256
+box = "20 kpc"
+gravity = "none"
+[particle]
+mass = "1e-22 eV"
+[span]
+duration = "10 Myr"
+[initial]
+kind = "gaussian-packet"
+mass = "1e8 Msun"
+width = "0.5 kpc"
+center = ["6 kpc"]
+velocity = ["30 km/s"]
+[output]
+dir = "packet"
+[sidecar]
+enabled = false
+`;
+
 /** A plug-in that keeps running sums of the step facts as its state. */
 function summing(version = 1): RunPlugin & { sums: { steps: number; dt: number; drift: number; kick: number; kinetic: number } } {
   const sums = { steps: 0, dt: 0, drift: 0, kick: 0, kinetic: 0 };
@@ -81,6 +102,30 @@ describe("run plug-ins", () => {
     expect(p.sums.kick).toBe(p.sums.dt);
     const rows = readCsv(path.join(work, "facts/timeseries.csv"));
     expect(Object.keys(rows[0]!).slice(-2)).toEqual(["sum_dt_code", "sum_kinetic_code"]);
+  });
+
+  it("get the kinetic sum they ask for: ½∫|∇ψ|² of a free packet is M(1/(8σ²) + v²/2) at the start (analytic) and the same at every step (free evolution conserves it)", async () => {
+    const packet = resolveRun(loadConfig(writeIn(work, "p.toml", PACKET)), "p", work);
+    if (packet.initial.kind !== "gaussian-packet") throw new Error("not a packet");
+    const { width: sigma, velocity } = packet.initial;
+    let start = NaN;
+    let mass = NaN;
+    let worst = 0;
+    let steps = 0;
+    const kinetic: RunPlugin = {
+      name: "kinetic",
+      measures: ["kinetic"],
+      start: (_c, f) => ((start = f.sums.kinetic!), (mass = f.mass0)),
+      afterStep: (f) => {
+        worst = Math.max(worst, Math.abs(f.sums.kinetic! / start - 1));
+        steps++;
+      },
+    };
+    prepareOutputDir(packet.outputDir, true);
+    await simulate(packet, { plugins: [kinetic] });
+    expect(steps).toBeGreaterThan(10);
+    expect(Math.abs(start / (mass * (1 / (8 * sigma * sigma) + velocity[0]! ** 2 / 2)) - 1)).toBeLessThan(1e-10);
+    expect(worst).toBeLessThan(1e-12);
   });
 
   it("a stopped run resumed with its plug-in's saved state ends bit for bit like an uninterrupted one", async () => {
