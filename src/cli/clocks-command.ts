@@ -29,6 +29,24 @@ export interface ClocksFlags {
   json: boolean;
 }
 
+/** The --region, --center and --radius options in a field's code units. */
+function regionOf(flags: ClocksFlags, field: ReturnType<typeof loadField>): ModeRegion {
+  const { units, grid } = field;
+  if (flags.region === "box") return { kind: "box" };
+  if (flags.radius === undefined) throw new InputError(`--radius: needed with --region ${flags.region}`);
+  const r = length("radius", flags.radius) / units.lengthM;
+  if (!(r > 0)) throw new InputError("--radius: must be positive");
+  if (flags.region === "densest") return { kind: "densest", radius: r };
+  if (flags.center === undefined) throw new InputError(`--center: needed with --region ${flags.region}, one length per axis separated by commas`);
+  const c = flags.center.split(",").map((t) => length("center", t.trim()) / units.lengthM);
+  if (c.length !== grid.dims) throw new InputError(`--center: give ${grid.dims} lengths, got ${c.length}`);
+  const kpcCode = (1e3 * PC_M) / units.lengthM;
+  c.forEach((v, i) => {
+    if (!(v >= 0 && v <= (grid.lengths[i] as number))) throw new InputError(`--center: lies outside the box on axis ${i + 1} (0 … ${((grid.lengths[i] as number) / kpcCode).toPrecision(4)} kpc)`);
+  });
+  return flags.region === "sphere" ? { kind: "sphere", center: c, radius: r } : { kind: "cube", center: c, halfWidth: r };
+}
+
 /** The snapshot files a list of paths names (run folders expand to their snapshots, in order). */
 export function snapshotFiles(paths: readonly string[]): string[] {
   const files: string[] = [];
@@ -69,23 +87,7 @@ export async function clocksCommand(paths: readonly string[], flags: ClocksFlags
     const snap = readSnapshot(file);
     const field = loadField(snap);
     const { units, grid } = field;
-    const kpcCode = (1e3 * PC_M) / units.lengthM;
-    let region: ModeRegion = { kind: "box" };
-    if (flags.region !== "box") {
-      if (flags.radius === undefined) throw new InputError(`--radius: needed with --region ${flags.region}`);
-      const r = length("radius", flags.radius) / units.lengthM;
-      if (!(r > 0)) throw new InputError("--radius: must be positive");
-      if (flags.region === "densest") region = { kind: "densest", radius: r };
-      else {
-        if (flags.center === undefined) throw new InputError(`--center: needed with --region ${flags.region}, one length per axis separated by commas`);
-        const c = flags.center.split(",").map((t) => length("center", t.trim()) / units.lengthM);
-        if (c.length !== grid.dims) throw new InputError(`--center: give ${grid.dims} lengths, got ${c.length}`);
-        c.forEach((v, i) => {
-          if (!(v >= 0 && v <= (grid.lengths[i] as number))) throw new InputError(`--center: lies outside the box on axis ${i + 1} (0 … ${((grid.lengths[i] as number) / kpcCode).toPrecision(4)} kpc)`);
-        });
-        region = flags.region === "sphere" ? { kind: "sphere", center: c, radius: r } : { kind: "cube", center: c, halfWidth: r };
-      }
-    }
+    const region = regionOf(flags, field);
     const m = modeCoefficients({ grid, psi: field.psi, scaleFactor: field.scaleFactor, particleMass: units.particleMassKg / units.massKg, gravity: field.gravity, region });
     if (!(m.particles >= 1)) throw new InputError(`${file}: the mode holds N = ${m.particles.toPrecision(3)} particles (< 1); choose a larger region`);
     const tS = snap.meta.time * unitInSI(snap.meta.timeUnit);

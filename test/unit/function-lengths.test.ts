@@ -10,7 +10,6 @@ const LIMIT = 80;
 
 /** Functions over the limit today: "file (relative to src/) name" → its length now, the most it may have. */
 const OVER: Readonly<Record<string, number>> = {
-  "fields/step-memory.ts allocateStepMemory": 86,
   "cli/import-command.ts importCommand": 81,
 };
 
