@@ -105,6 +105,19 @@ function densityUnitSI(text: string, littleH: number | undefined): number {
   }
 }
 
+/** --redshift, --hubble, --omega-matter: the background of a comoving field (static without --redshift). */
+function comoving(flags: ImportFlags): { background: SnapshotBackground; littleH: number | undefined; scaleFactor: number; redshift: number | null } {
+  if (flags.redshift === undefined) return { background: { kind: "static" }, littleH: undefined, scaleFactor: 1, redshift: null };
+  if (flags.time !== undefined) throw new InputError("give --time (static fields) or --redshift (comoving fields: the time is the cosmic time at that redshift), not both");
+  const z = Number(flags.redshift);
+  if (!(z > -1)) throw new InputError(`--redshift: must be a number above −1, got ${flags.redshift}`);
+  const hubble = option("hubble", flags.hubble, "rate");
+  const littleH = hubble / (1e5 / MPC_M);
+  const om = Number(flags.omegaMatter);
+  if (!(om > 0 && om <= 1)) throw new InputError(`--omega-matter: must be in (0, 1], got ${flags.omegaMatter}`);
+  return { background: { kind: "lcdm", hubbleKmSMpc: littleH * 100, omegaMatter: om, omegaRadiation: 0 }, littleH, scaleFactor: 1 / (1 + z), redshift: z };
+}
+
 /** Convert a field into a psibox snapshot; returns the exit code. */
 export async function importCommand(source: string, flags: ImportFlags): Promise<number> {
   await loadHdf5();
@@ -112,22 +125,7 @@ export async function importCommand(source: string, flags: ImportFlags): Promise
   const field = isNpy ? readNpyComplex(source) : readHdf5Complex(source, flags);
   const dims = field.shape.length;
   if (dims < 1 || dims > 3) throw new InputError(`${source}: the field has ${dims} axes; psibox takes 1, 2 or 3`);
-  let background: SnapshotBackground = { kind: "static" };
-  let littleH: number | undefined;
-  let scaleFactor = 1;
-  let redshift: number | null = null;
-  if (flags.redshift !== undefined) {
-    if (flags.time !== undefined) throw new InputError("give --time (static fields) or --redshift (comoving fields: the time is the cosmic time at that redshift), not both");
-    const z = Number(flags.redshift);
-    if (!(z > -1)) throw new InputError(`--redshift: must be a number above −1, got ${flags.redshift}`);
-    const hubble = option("hubble", flags.hubble, "rate");
-    littleH = hubble / (1e5 / MPC_M);
-    const om = Number(flags.omegaMatter);
-    if (!(om > 0 && om <= 1)) throw new InputError(`--omega-matter: must be in (0, 1], got ${flags.omegaMatter}`);
-    background = { kind: "lcdm", hubbleKmSMpc: littleH * 100, omegaMatter: om, omegaRadiation: 0 };
-    scaleFactor = 1 / (1 + z);
-    redshift = z;
-  }
+  const { background, littleH, scaleFactor, redshift } = comoving(flags);
   const boxTexts = flags.box.split(",").map((s) => s.trim());
   const boxes = boxTexts.length === 1 ? Array<string>(dims).fill(boxTexts[0] as string) : boxTexts;
   if (boxes.length !== dims) throw new InputError(`--box: give one length or ${dims} separated by commas`);

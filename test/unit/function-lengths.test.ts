@@ -9,9 +9,7 @@ import { functionLengths } from "../helpers/function-lengths.js";
 const LIMIT = 80;
 
 /** Functions over the limit today: "file (relative to src/) name" → its length now, the most it may have. */
-const OVER: Readonly<Record<string, number>> = {
-  "cli/import-command.ts importCommand": 81,
-};
+const OVER: Readonly<Record<string, number>> = {};
 
 function sources(dir: string): string[] {
   return fs.readdirSync(dir, { withFileTypes: true }).flatMap((e) => {
