@@ -3,6 +3,7 @@ import { ConfigError } from "../core/errors.js";
 import { parseUnit } from "../physics/units.js";
 import { KG_PER_EV } from "../physics/constants.js";
 import { positive } from "./values.js";
+import { resolveSpectrumTable } from "./resolve-spectrum-table.js";
 import type { InitialScope, InitialSection, ResolvedInitial } from "./resolve-initial.js";
 
 export function resolvePlaneWave(ic: InitialSection<"plane-wave">, scope: InitialScope): ResolvedInitial {
@@ -53,6 +54,7 @@ export function resolveCosmological(ic: InitialSection<"cosmological">, scope: I
       spectralIndex: ic.spectral_index,
       sigma8: ic.sigma_8,
       transfer: ic.transfer,
+      ...resolveSpectrumTable(ic, scope, background.littleH),
       m22: ic.wave_suppression ? units.particleMassKg / KG_PER_EV / 1e-22 : undefined,
     },
     fixedAmplitude: ic.fixed_amplitude,

@@ -3,6 +3,7 @@
  * (complete, in code units, with an absolute output folder). Every value is
  * range-checked here, with errors that name the key.
  */
+import path from "node:path";
 import { ConfigError } from "../core/errors.js";
 import { CodeUnits, type UnitContext } from "../physics/units.js";
 import { Grid } from "../grid/grid.js";
@@ -72,6 +73,7 @@ export interface ResolvedRun {
  * @param cwd folder that relative output paths are taken from
  */
 export function resolveRun(config: CheckedConfig, name: string, cwd: string): ResolvedRun {
+  config = withTablePath(config, cwd);
   const cells = typeof config.grid.cells === "number" ? [config.grid.cells] : [...config.grid.cells];
   const dims = cells.length;
   const { hubbleSI, littleH } = resolveHubble(config);
@@ -102,4 +104,12 @@ export function resolveRun(config: CheckedConfig, name: string, cwd: string): Re
     integrator,
     output,
   };
+}
+
+/** A spectrum table's path taken from cwd and recorded in full, so that the resolved config reads the same file from anywhere. */
+function withTablePath(config: CheckedConfig, cwd: string): CheckedConfig {
+  const ic = config.initial;
+  if (ic.kind !== "cosmological" || ic.spectrum_table === undefined) return config;
+  const full = path.resolve(cwd, ic.spectrum_table).split(path.sep).join("/");
+  return { ...config, initial: { ...ic, spectrum_table: full } };
 }

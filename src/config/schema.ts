@@ -95,8 +95,16 @@ export const cosmologicalSchema = z.strictObject({
   omega_baryon: z.number().default(0.0493),
   /** CMB temperature, e.g. "2.7255 K". @default "2.7255 K" */
   cmb_temperature: z.string().default("2.7255 K"),
-  /** CDM transfer function. @default "eisenstein-hu" */
-  transfer: z.enum(["eisenstein-hu", "bbks"]).default("eisenstein-hu"),
+  /** CDM transfer function, or "table" for a user's table (spectrum_table). @default "eisenstein-hu" */
+  transfer: z.enum(["eisenstein-hu", "bbks", "table"]).default("eisenstein-hu"),
+  /** transfer = "table": a text file of k and P(k) or T(k) per line, relative to the working folder. */
+  spectrum_table: z.string().min(1).optional(),
+  /** What the table's second column holds: "power" (P(k) of cold matter at z = 0, used as given) or "transfer" (T(k), normalised to sigma_8). @default "power" */
+  table_quantity: z.enum(["power", "transfer"]).optional(),
+  /** Unit of the table's k, an inverse length. @default "h/Mpc" */
+  table_k_unit: z.string().optional(),
+  /** Unit of the table's P(k), a volume. @default "Mpc^3/h^3" */
+  table_power_unit: z.string().optional(),
   /** Apply the wave-dark-matter suppression of Hu, Barkana & Gruzinov 2000. @default true */
   wave_suppression: z.boolean().default(true),
   /** Set every mode's amplitude to its mean ("fixed" fields). @default false */

@@ -83,8 +83,10 @@ export function gaussianRandomField(grid: Grid, power: LinearPower, opts: Random
 /** A table of the spectrum used: k, P at z = 0 and at the start, in h and plain units (CSV text). */
 export function powerTable(power: LinearPower, grid: Grid, lengthUnitMpc: number, growthRatio: number): string {
   const h = power.params.littleH;
-  const kMin = (2 * Math.PI) / (Math.max(...grid.lengths) * lengthUnitMpc) / 2;
-  const kMax = Math.sqrt(grid.kSquaredMax) / lengthUnitMpc * 2;
+  const table = power.params.table;
+  // a user's table is listed only over its own range (psibox does not extrapolate it)
+  const kMin = Math.max((2 * Math.PI) / (Math.max(...grid.lengths) * lengthUnitMpc) / 2, table ? table.k[0]! : 0);
+  const kMax = Math.min((Math.sqrt(grid.kSquaredMax) / lengthUnitMpc) * 2, table ? table.k[table.k.length - 1]! : Infinity);
   const rows = ["k_h_per_Mpc,k_per_Mpc,P_z0_Mpc3_per_h3,P_start_Mpc3_per_h3,P_z0_Mpc3,P_start_Mpc3,transfer"];
   const count = 200;
   for (let i = 0; i < count; i++) {

@@ -11,6 +11,7 @@
  *   T_FDM = cos(x³)/(1 + x⁸),  x = 1.61 m₂₂^{1/18} k/k_Jeq,  k_Jeq = 9 m₂₂^{1/2} Mpc⁻¹.
  */
 import { integrate } from "../../math/quadrature.js";
+import { interpolateTable, type TabulatedSpectrum } from "./tabulated.js";
 
 /** Parameters of the spectrum. */
 export interface PowerParameters {
@@ -23,7 +24,9 @@ export interface PowerParameters {
   readonly cmbTemperature: number;
   readonly spectralIndex: number;
   readonly sigma8: number;
-  readonly transfer: "eisenstein-hu" | "bbks";
+  readonly transfer: "eisenstein-hu" | "bbks" | "table";
+  /** transfer = "table": the user's P(k) [Mpc³] (used as given) or T(k) (normalised to sigma8), k in 1/Mpc. */
+  readonly table?: TabulatedSpectrum;
   /** m c² / 1e-22 eV; undefined switches the wave suppression off. */
   readonly m22: number | undefined;
 }
@@ -73,32 +76,47 @@ export class LinearPower {
 
   constructor(params: PowerParameters) {
     this.params = params;
-    const unnormalised = this.sigmaSquared(8 / params.littleH, 1);
-    this.amplitude = (params.sigma8 * params.sigma8) / unnormalised;
+    // a tabulated P(k) is used as given; formulas and tabulated T(k) are normalised to σ₈
+    this.amplitude = params.table?.quantity === "power" ? 1 : (params.sigma8 * params.sigma8) / this.sigmaSquared(8 / params.littleH, 1);
   }
 
   /** T_CDM(k) T_FDM(k). */
   transfer(k: number): number {
     const p = this.params;
-    const t = p.transfer === "bbks" ? transferBbks(k, p) : transferEisensteinHu(k, p);
-    return p.m22 === undefined ? t : t * transferFdm(k, p.m22);
+    const fdm = p.m22 === undefined ? 1 : transferFdm(k, p.m22);
+    const t = p.table;
+    if (t?.quantity === "transfer") return interpolateTable(t, k) * fdm;
+    // a tabulated P(k): the transfer function it implies, 1 at the table's first k
+    if (t) return Math.sqrt((interpolateTable(t, k) / t.values[0]!) * Math.pow(t.k[0]! / k, p.spectralIndex)) * fdm;
+    return (p.transfer === "bbks" ? transferBbks(k, p) : transferEisensteinHu(k, p)) * fdm;
+  }
+
+  /** P(k) with a given amplitude (a tabulated P(k) is used as given). */
+  private powerWith(k: number, amp: number): number {
+    const p = this.params;
+    if (p.table?.quantity === "power") {
+      const fdm = p.m22 === undefined ? 1 : transferFdm(k, p.m22);
+      return interpolateTable(p.table, k) * fdm * fdm;
+    }
+    const t = this.transfer(k);
+    return amp * Math.pow(k, p.spectralIndex) * t * t;
   }
 
   /** P(k) at z = 0 [Mpc³], k in 1/Mpc. */
   at(k: number): number {
     if (k <= 0) return 0;
-    const t = this.transfer(k);
-    return this.amplitude * Math.pow(k, this.params.spectralIndex) * t * t;
+    return this.powerWith(k, this.amplitude);
   }
 
   /** σ²(R) = ∫ k² P(k) W²(kR) dk / (2π²) for amplitude `amp`, R in Mpc. */
   sigmaSquared(radius: number, amp = this.amplitude): number {
     const f = (lnk: number) => {
       const k = Math.exp(lnk);
-      const t = this.transfer(k);
       const w = topHat(k * radius);
-      return (k * k * k * amp * Math.pow(k, this.params.spectralIndex) * t * t * w * w) / (2 * Math.PI * Math.PI);
+      return (k * k * k * this.powerWith(k, amp) * w * w) / (2 * Math.PI * Math.PI);
     };
-    return integrate(f, Math.log(1e-5), Math.log(1e3), 1e-10);
+    // a table is integrated over its own range (resolution checks that it covers the σ₈ integrand)
+    const t = this.params.table;
+    return integrate(f, Math.log(t ? t.k[0]! : 1e-5), Math.log(t ? t.k[t.k.length - 1]! : 1e3), 1e-10);
   }
 }
