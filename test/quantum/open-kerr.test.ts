@@ -138,7 +138,7 @@ describe("loss and dephasing against the master equation", () => {
       return [((a[0] as number) * (b[0] as number) + (a[1] as number) * (b[1] as number)) / d, ((a[1] as number) * (b[0] as number) - (a[0] as number) * (b[1] as number)) / d];
     };
     const [er, ei] = cexp(-g * T, -chi * T);
-    const [qr, qi] = cdiv([0, chi], [g, chi]); // iχ/(γ + iχ)
+    const [qr, qi] = cdiv([0, chi], [g, chi]) as [number, number]; // iχ/(γ + iχ)
     const ex = [N * (qr * (er - 1) - qi * ei), N * (qr * ei + qi * (er - 1))];
     const [br, bi] = cexp(-(g + kap) * T / 2 + (ex[0] as number), -0.7 * T + (ex[1] as number));
     const a = Math.sqrt(N);
