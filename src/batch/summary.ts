@@ -20,7 +20,7 @@ export interface SweepManifest {
 /** One row of the summary. */
 export type SummaryRow = Record<string, string | number | boolean | null>;
 
-const CLOCKS = ["squeezing-onset", "squeezing-level", "phase-diffusion", "classical-breakdown"];
+const CLOCKS = ["squeezing-onset", "squeezing-level", "phase-diffusion", "phase-diffusion-adiabatic", "classical-breakdown"];
 
 function readJson(file: string): Record<string, unknown> | undefined {
   try {

@@ -5,9 +5,12 @@ import { estimateClocks } from "../quantum/estimate.js";
 import { formatDuration } from "../quantum/clocks.js";
 import { PLANCK_AGE_S } from "../quantum/sidecar-report.js";
 import { C_M_PER_S } from "../physics/constants.js";
+import { readModeState, type ModeStateFlags } from "./mode-state-options.js";
+import { describeStart } from "../quantum/gaussian-start.js";
 
-export interface EstimateFlags {
+export interface EstimateFlags extends ModeStateFlags {
   particleMass: string;
+  solitonMass?: string;
   velocity?: string;
   haloMass?: string;
   radius?: string;
@@ -39,28 +42,45 @@ export function estimateCommand(flags: EstimateFlags): number {
   const haloMass = read("halo-mass", flags.haloMass, "mass");
   const radius = read("radius", flags.radius, "length");
   const density = read("density", flags.density, "density");
-  const modeMass = read("mode-mass", flags.modeMass, "mass") ?? haloMass;
-  if (modeMass === undefined) throw new InputError("--mode-mass: give the mass in the mode (or --halo-mass, which it defaults to)");
-  if (velocity === undefined && (haloMass === undefined || radius === undefined)) {
-    throw new InputError("--velocity: give a velocity dispersion (e.g. \"200 km/s\" or \"1e-3 c\"), or both --halo-mass and --radius");
+  const solitonMass = read("soliton-mass", flags.solitonMass, "mass");
+  const modeMass = read("mode-mass", flags.modeMass, "mass") ?? solitonMass ?? haloMass;
+  if (modeMass === undefined) throw new InputError("--mode-mass: give the mass in the mode (or --halo-mass or --soliton-mass, which it defaults to)");
+  if (velocity === undefined && solitonMass === undefined && (haloMass === undefined || radius === undefined)) {
+    throw new InputError("--velocity: give a velocity dispersion (e.g. \"200 km/s\" or \"1e-3 c\"), a --soliton-mass, or both --halo-mass and --radius");
   }
+  const state = readModeState(flags, modeMass / m);
   const db = Number(flags.squeezingDb);
   if (!(db < 0)) throw new InputError(`--squeezing-db: must be a negative number of dB, got ${flags.squeezingDb}`);
   let est;
   try {
-    est = estimateClocks({ particleMassKg: m, modeMassKg: modeMass, velocity, haloMassKg: haloMass, radiusM: radius, densityKgM3: density, squeezingDb: db });
+    est = estimateClocks({
+      particleMassKg: m,
+      modeMassKg: modeMass,
+      velocity,
+      haloMassKg: haloMass,
+      radiusM: radius,
+      solitonMassKg: solitonMass,
+      densityKgM3: density,
+      squeezingDb: db,
+      start: state.start,
+      lossRatePerS: state.lossRatePerS,
+      dephasingRatePerS: state.dephasingRatePerS,
+    });
   } catch (e) {
     if (e instanceof RangeError) throw new InputError(e.message);
     throw e;
   }
   if (flags.json) {
-    process.stdout.write(JSON.stringify(est, null, 2) + "\n");
+    // every number, times in seconds (null when a clock never rings); χ and χ_ad negative like everywhere else
+    const json = { ...est, start: state.start, squeezingDb: db, clocks: est.clocks.map((c) => ({ ...c, timeS: c.timeS ?? null, ageRatio: c.timeS === undefined ? null : c.timeS / PLANCK_AGE_S })) };
+    process.stdout.write(JSON.stringify(json, null, 2) + "\n");
     return 0;
   }
   const lines = [
     `particles in the mode   N = ${est.particles.toPrecision(4)}   (ln N = ${Math.log(est.particles).toFixed(1)})`,
+    `initial state           ${describeStart(state.start)}, ΔN = ${est.numberSpread.toPrecision(4)}${state.lossRatePerS > 0 || state.dephasingRatePerS > 0 ? `; loss γ = ${state.lossRatePerS.toPrecision(3)} /s, dephasing κ = ${state.dephasingRatePerS.toPrecision(3)} /s` : ""}`,
     `velocity dispersion     ${(est.velocityMS / 1e3).toPrecision(4)} km/s = ${(est.velocityMS / C_M_PER_S).toPrecision(3)} c`,
-    `self-gravity rate       N|χ| = 2 m⟨v²⟩/ħ = ${est.rateNChiPerS.toPrecision(4)} /s   (|χ| = ${est.chiPerS.toPrecision(4)} /s)`,
+    `self-gravity rate       N|χ| = 2 m⟨v²⟩/ħ = ${est.rateNChiPerS.toPrecision(4)} /s   (χ = ${est.chiPerS.toPrecision(4)} /s frozen mode, χ_ad = ${est.chiAdiabaticPerS.toPrecision(4)} /s adiabatic)`,
     ...(est.lambdaPerS !== undefined ? [`dynamical rate          λ = √(4πGρ) = ${est.lambdaPerS.toPrecision(4)} /s`] : []),
     "",
   ];

@@ -111,7 +111,8 @@ const clockTitle = (name: ClockReport["name"], squeezingDb: number): string =>
   ({
     "squeezing-onset": "squeezing onset (N|X| = 1)",
     "squeezing-level": `squeezing to ${formatNumber(squeezingDb)} dB`,
-    "phase-diffusion": "phase diffusion (1/e)",
+    "phase-diffusion": "phase diffusion, frozen mode (1/e)",
+    "phase-diffusion-adiabatic": "phase diffusion, adiabatic (1/e)",
     "classical-breakdown": "classical breakdown",
   })[name];
 

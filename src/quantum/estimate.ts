@@ -1,17 +1,29 @@
 /**
  * Order-of-magnitude clocks from physical inputs alone (no simulation), for
- * a virialised, roughly uniform object:
+ * a virialised object or an exact soliton:
  *   N = M_mode / m
- *   N|χ| = 2|W|/(Nħ) = 2 m ⟨v²⟩/ħ        (virial: |W| = 2K = M⟨v²⟩)
+ *   N|χ| = 2|W|/(Nħ) = 2 m ⟨v²⟩/ħ        (virial: |W| = 2K = M⟨v²⟩), χ < 0
  *   ⟨v²⟩ = (3/5) G M / R                  (uniform sphere, if no velocity is given)
- *   squeezing onset     t = 1/(N|χ|) = ħ / (2 m ⟨v²⟩)
- *   squeezing level     t = X_level / |χ|, X_level from the exact Kerr variance
- *   phase diffusion     t = 2 asin(1/(2√N)) / |χ| ≈ √N / (N|χ|)
- *   classical breakdown t = ln N / √(4πG ρ),  ρ = 3M/(4πR³) or given
- * All inputs and outputs in SI.
+ *   ⟨v²⟩ = 2|E|/M = 0.1085128 G²M²m²/ħ²   (soliton of mass M: E = −0.0542564 G²M³m²/ħ²,
+ *                                          Membrado, Pacheco & Sañudo 1989)
+ *   χ_ad = dμ/dN/ħ = (3/2) χ               (stationary self-gravitating state: μ ∝ N² by the
+ *                                          scaling symmetry, N dμ/dN = 2μ = 3W/N against Nħχ = 2W/N)
+ *   squeezing onset       t = 1/(N|χ|)
+ *   squeezing level       the first t at which the exact variance reaches the level
+ *   phase diffusion       |⟨b⟩|² down by 1/e, with χ (frozen mode) and with χ_ad (adiabatic)
+ *   classical breakdown   t = ln N / √(4πG ρ),  ρ = 3M/(4πR³) or given
+ * The start may be squeezed or thermal, and the mode may lose quanta (γ)
+ * and dephase (κ) at constant rates. All inputs and outputs in SI.
  */
 import { G_SI, HBAR_J_S } from "../physics/constants.js";
-import { xForPhaseDiffusion, xForSqueezing } from "./kerr.js";
+import { xForSqueezing } from "./kerr.js";
+import { COHERENT, isCoherent, numberSpread, validateStart, type GaussianStart } from "./gaussian-start.js";
+import { meanFieldCollapseX, xForSqueezingOf } from "./state-clocks.js";
+import { closedIntegrals } from "./open-kerr.js";
+import { meanFieldCollapsed, projectCrossing, squeezingReached, type ConstantRates } from "./open-clocks.js";
+
+/** |E| M^{-3} G^{-2} m^{-2} ħ² of the ground state (Membrado, Pacheco & Sañudo 1989, PRA 39, 4207). */
+export const SOLITON_ENERGY = 0.0542564;
 
 /** What the estimate starts from (SI). */
 export interface EstimateInputs {
@@ -23,9 +35,16 @@ export interface EstimateInputs {
   /** Object mass [kg] and radius [m] for the virial velocity and the density. */
   readonly haloMassKg?: number | undefined;
   readonly radiusM?: number | undefined;
+  /** An exact soliton of this mass [kg] (its own ⟨v²⟩). */
+  readonly solitonMassKg?: number | undefined;
   /** Density [kg/m³] for the breakdown rate. */
   readonly densityKgM3?: number | undefined;
   readonly squeezingDb: number;
+  /** The mode's initial state (default coherent). */
+  readonly start?: GaussianStart | undefined;
+  /** Loss rate γ and dephasing rate κ [1/s] (default 0). */
+  readonly lossRatePerS?: number | undefined;
+  readonly dephasingRatePerS?: number | undefined;
 }
 
 /** One estimated clock. */
@@ -36,49 +55,88 @@ export interface EstimatedClock {
   readonly note?: string;
 }
 
-/** The estimate: N, the rates and the four clocks. */
+/** The estimate: N, the rates and the clocks. */
 export interface Estimate {
   readonly particles: number;
+  readonly numberSpread: number;
   readonly velocityMS: number;
+  /** N|χ| [1/s] (positive). */
   readonly rateNChiPerS: number;
+  /** χ [1/s] (negative: gravity attracts). */
   readonly chiPerS: number;
+  /** χ_ad = (1/ħ) dμ/dN [1/s] (negative). */
+  readonly chiAdiabaticPerS: number;
+  readonly lossRatePerS: number;
+  readonly dephasingRatePerS: number;
   readonly lambdaPerS: number | undefined;
   readonly clocks: readonly EstimatedClock[];
 }
 
-/** Compute the estimate; throws RangeError naming the missing input. */
+function velocitySquared(inp: EstimateInputs): { v2: number; note?: string } {
+  if (inp.velocity !== undefined) return { v2: inp.velocity * inp.velocity };
+  if (inp.solitonMassKg !== undefined) {
+    const g = (G_SI * inp.solitonMassKg * inp.particleMassKg) / HBAR_J_S;
+    return { v2: 2 * SOLITON_ENERGY * g * g, note: "⟨v²⟩ = 2|E|/M of the exact soliton (Membrado et al. 1989)" };
+  }
+  if (inp.haloMassKg !== undefined && inp.radiusM !== undefined) {
+    return { v2: (0.6 * G_SI * inp.haloMassKg) / inp.radiusM, note: "⟨v²⟩ = (3/5) G M / R (virialised uniform sphere)" };
+  }
+  throw new RangeError("give a velocity dispersion, a soliton mass, or a halo mass and radius");
+}
+
+/** Compute the estimate; throws RangeError naming the missing or bad input. */
 export function estimateClocks(inp: EstimateInputs): Estimate {
   const m = inp.particleMassKg;
   const N = inp.modeMassKg / m;
   if (!(N >= 1)) throw new RangeError(`the mode holds N = ${N.toPrecision(3)} particles (< 1): give a larger mode mass`);
-  let v2: number;
-  let vNote: string | undefined;
-  if (inp.velocity !== undefined) v2 = inp.velocity * inp.velocity;
-  else if (inp.haloMassKg !== undefined && inp.radiusM !== undefined) {
-    v2 = (0.6 * G_SI * inp.haloMassKg) / inp.radiusM;
-    vNote = "⟨v²⟩ = (3/5) G M / R (virialised uniform sphere)";
-  } else throw new RangeError("give a velocity dispersion, or a halo mass and radius");
+  const start = inp.start ?? COHERENT;
+  validateStart(N, start);
+  const gamma = inp.lossRatePerS ?? 0;
+  const kappa = inp.dephasingRatePerS ?? 0;
+  const { v2, note: vNote } = velocitySquared(inp);
   const rate = (2 * m * v2) / HBAR_J_S;
-  const chi = rate / N;
+  const chi = -rate / N;
+  const chiAd = 1.5 * chi;
   let rho = inp.densityKgM3;
   if (rho === undefined && inp.haloMassKg !== undefined && inp.radiusM !== undefined) rho = (3 * inp.haloMassKg) / (4 * Math.PI * inp.radiusM ** 3);
   const lambda = rho === undefined ? undefined : Math.sqrt(4 * Math.PI * G_SI * rho);
-  const xLevel = xForSqueezing(N, inp.squeezingDb);
+  const open = gamma > 0 || kappa > 0;
+  const stateNote = `${isCoherent(start) ? "coherent start" : "the chosen start"}${open ? `, loss γ = ${gamma.toPrecision(3)} /s and dephasing κ = ${kappa.toPrecision(3)} /s` : ""}`;
+  // the squeezing level
+  const xClosed = isCoherent(start) ? xForSqueezing(N, inp.squeezingDb) : xForSqueezingOf(N, start, inp.squeezingDb, -1);
+  let tLevel = xClosed === undefined ? undefined : xClosed / Math.abs(chi);
+  if (open) {
+    const guess = (xClosed ?? 1 / N) / Math.abs(chi);
+    tLevel = tLevel === 0 ? 0 : projectCrossing(closedIntegrals(0), { omega: 0, chi, gamma, kappa }, squeezingReached(N, start, inp.squeezingDb), guess, (2 * Math.PI) / Math.abs(chi));
+  }
+  const diffusion = (c: number): number | undefined => {
+    const xc = meanFieldCollapseX(N, start, -1);
+    if (!open) return xc / Math.abs(c);
+    const r: ConstantRates = { omega: 0, chi: c, gamma, kappa };
+    const horizon = Math.max((2 * Math.PI) / Math.abs(c), gamma > 0 ? 60 / gamma : 0, kappa > 0 ? 60 / kappa : 0);
+    return projectCrossing(closedIntegrals(0), r, meanFieldCollapsed(N, start), xc / Math.abs(c), horizon);
+  };
+  const dN = numberSpread(N, start);
   return {
     particles: N,
+    numberSpread: dN,
     velocityMS: Math.sqrt(v2),
     rateNChiPerS: rate,
     chiPerS: chi,
+    chiAdiabaticPerS: chiAd,
+    lossRatePerS: gamma,
+    dephasingRatePerS: kappa,
     lambdaPerS: lambda,
     clocks: [
       { name: "squeezing onset", timeS: 1 / rate, formula: "1/(N|χ|) = ħ/(2 m ⟨v²⟩)", ...(vNote ? { note: vNote } : {}) },
       {
         name: `squeezing to ${inp.squeezingDb} dB`,
-        timeS: xLevel === undefined ? undefined : xLevel / chi,
-        formula: "X_level/|χ|, X_level from the exact Kerr variance",
-        ...(xLevel === undefined ? { note: `the best single-mode squeezing for this N does not reach ${inp.squeezingDb} dB` } : {}),
+        timeS: tLevel,
+        formula: `first time the exact variance reaches the level (${stateNote})`,
+        ...(tLevel === undefined ? { note: `the squeezing of this state never reaches ${inp.squeezingDb} dB` } : tLevel === 0 ? { note: "the start is already squeezed to this level" } : {}),
       },
-      { name: "phase diffusion (1/e)", timeS: xForPhaseDiffusion(N) / chi, formula: "2 asin(1/(2√N))/|χ| ≈ √N/(N|χ|)" },
+      { name: "phase diffusion, frozen mode", timeS: diffusion(chi), formula: `|⟨b⟩|² down by 1/e with χ: X_c ≈ 1/ΔN, ΔN = ${dN.toPrecision(4)} (${stateNote})` },
+      { name: "phase diffusion, adiabatic", timeS: diffusion(chiAd), formula: "the same with χ_ad = (1/ħ) dμ/dN = (3/2) χ (stationary state)" },
       {
         name: "classical breakdown",
         timeS: lambda === undefined ? undefined : Math.log(N) / lambda,

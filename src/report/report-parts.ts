@@ -49,7 +49,8 @@ export function clockSentence(c: ClockEntry, targetDb: number): string {
   const what: Record<string, string> = {
     "squeezing-onset": "The condensate mode starts to squeeze (N|∫χ dt| = 1)",
     "squeezing-level": `Its squeezing reaches ${formatNumber(targetDb)} dB`,
-    "phase-diffusion": "Its mean field dephases (|⟨b⟩|²/N = 1/e)",
+    "phase-diffusion": "Its mean field dephases (|⟨b⟩|²/N = 1/e, frozen-mode χ)",
+    "phase-diffusion-adiabatic": "With the adiabatic coefficient dμ/dN its mean field dephases",
     "classical-breakdown": "The classical-field description is expected to fail (∫λ dt = ln N)",
   };
   if (c.time_s === null) return c.name === "squeezing-level" ? `Squeezing to ${formatNumber(targetDb)} dB is beyond the best single-mode squeezing for this N: it never happens.` : `${what[c.name] ?? c.name}: never.`;

@@ -2,6 +2,7 @@
 import type { ClocksFlags } from "../clocks-command.js";
 import type { EstimateFlags } from "../estimate-command.js";
 import type { CommandSpec } from "../options.js";
+import { MODE_STATE_OPTIONS } from "../mode-state-options.js";
 
 const SQUEEZING_DB = { flags: "--squeezing-db <dB>", help: "squeezing level to time", default: "-10" };
 
@@ -14,8 +15,9 @@ export const clocksSpec: CommandSpec<ClocksFlags, [string[]]> = {
     center: { flags: "--center <lengths>", help: 'region centre, one length per axis, e.g. "10 kpc, 10 kpc"' },
     radius: { flags: "--radius <length>", help: "sphere radius or cube half-width" },
     squeezingDb: SQUEEZING_DB,
+    ...MODE_STATE_OPTIONS,
     out: { flags: "--out <dir>", help: "where to write snapshot-clocks.csv and .json (default: the run folder, or .)" },
-    json: { flags: "--json", help: "print the summary as JSON", default: false },
+    json: { flags: "--json", help: "print the summary, the final state and every snapshot's numbers as JSON", default: false },
   },
   run: async ([paths], flags) => (await import("../clocks-command.js")).clocksCommand(paths, flags),
 };
@@ -30,9 +32,11 @@ export const estimateSpec: CommandSpec<EstimateFlags, []> = {
     haloMass: { flags: "--halo-mass <mass>", help: 'object mass, e.g. "1e12 Msun"' },
     radius: { flags: "--radius <length>", help: 'object radius, e.g. "100 kpc"' },
     density: { flags: "--density <density>", help: 'density for the breakdown rate, e.g. "0.3 GeV/cm^3" or "1e7 Msun/kpc^3"' },
-    modeMass: { flags: "--mode-mass <mass>", help: "mass in the condensate mode (default: the halo mass)" },
+    solitonMass: { flags: "--soliton-mass <mass>", help: 'an exact soliton of this mass, e.g. "1e9 Msun" (its own ⟨v²⟩; the mode mass defaults to it)' },
+    modeMass: { flags: "--mode-mass <mass>", help: "mass in the condensate mode (default: the soliton or halo mass)" },
     squeezingDb: SQUEEZING_DB,
-    json: { flags: "--json", help: "print JSON", default: false },
+    ...MODE_STATE_OPTIONS,
+    json: { flags: "--json", help: "print JSON: every number, χ < 0 like everywhere else, clock times in seconds", default: false },
   },
   run: async (_args, flags) => (await import("../estimate-command.js")).estimateCommand(flags),
 };
