@@ -19,8 +19,10 @@ import { formatClocks } from "./run-command.js";
 import { formatNumber, formatQuantity } from "../core/format.js";
 import type { ClockReport } from "../quantum/sidecar-report.js";
 import { PC_M } from "../physics/constants.js";
+import { readModeState, type ModeState, type ModeStateFlags } from "./mode-state-options.js";
+import { describeStart, numberSpread } from "../quantum/gaussian-start.js";
 
-export interface ClocksFlags {
+export interface ClocksFlags extends ModeStateFlags {
   region: string;
   center?: string;
   radius?: string;
@@ -83,6 +85,7 @@ export async function clocksCommand(paths: readonly string[], flags: ClocksFlags
   let t0S = 0;
   let lastS = 0;
   let ageS = PLANCK_AGE_S;
+  let state: ModeState | undefined;
   for (const file of files) {
     const snap = readSnapshot(file);
     const field = loadField(snap);
@@ -92,9 +95,12 @@ export async function clocksCommand(paths: readonly string[], flags: ClocksFlags
     if (!(m.particles >= 1)) throw new InputError(`${file}: the mode holds N = ${m.particles.toPrecision(3)} particles (< 1); choose a larger region`);
     const tS = snap.meta.time * unitInSI(snap.meta.timeUnit);
     const toS = 1 / units.timeS;
-    const rates = { omegaTilde: m.omega * toS, chiTilde: m.chi * toS, lambda: m.lambda * toS };
+    // χ_ad = (1/ħ) dμ/dN = 2μ/(ħN) for a stationary state (μ ∝ N² by the scaling symmetry), μ/ħ = (K + 2W)/M = ω + Nχ
+    const chiAd = ((2 * m.omega) / m.particles + 2 * m.chi) * toS;
+    const rates = { omegaTilde: m.omega * toS, chiTilde: m.chi * toS, lambda: m.lambda * toS, chiAdiabatic: chiAd };
     if (!acc) {
-      acc = new ClockAccumulator(m.particles, db, tS, rates);
+      state = readModeState(flags, m.particles);
+      acc = new ClockAccumulator(m.particles, db, tS, rates, { start: state.start, lossRate: state.lossRatePerS, dephasingRate: state.dephasingRatePerS });
       t0S = tS;
       if (snap.meta.background.kind === "lcdm") ageS = field.background.time(1) * units.timeS;
     } else {
@@ -103,7 +109,7 @@ export async function clocksCommand(paths: readonly string[], flags: ClocksFlags
     }
     lastS = tS;
     const st = acc.state();
-    rows.push([path.basename(file), tS, field.scaleFactor, m.particles, rates.omegaTilde, rates.chiTilde, m.particles * Math.abs(rates.chiTilde), rates.lambda, m.virialRatio, acc.theta, acc.chiIntegral, st.squeezingDb, st.logMeanFieldFraction / Math.LN10, acc.breakdown]);
+    rows.push([path.basename(file), tS, field.scaleFactor, m.particles, rates.omegaTilde, rates.chiTilde, m.particles * Math.abs(rates.chiTilde), rates.lambda, m.virialRatio, acc.theta, acc.chiIntegral, st.squeezingDb, st.logMeanFieldFraction / Math.LN10, acc.breakdown, chiAd, acc.chiAdiabaticIntegral, st.squeezingParameter]);
   }
   const a = acc as ClockAccumulator;
   const spanS = lastS - t0S;
@@ -121,10 +127,37 @@ export async function clocksCommand(paths: readonly string[], flags: ClocksFlags
   });
   const outDir = path.resolve(flags.out ?? (paths.length === 1 && fs.statSync(paths[0] as string).isDirectory() ? (paths[0] as string) : "."));
   fs.mkdirSync(outDir, { recursive: true });
-  const header = "snapshot,t_s,a,particles_N,omega_per_s,chi_per_s,rate_Nchi_per_s,lambda_per_s,virial_ratio,theta_rad,chi_integral_rad,squeezing_dB,log10_meanfield_fraction,breakdown_integral";
+  const header =
+    "snapshot,t_s,a,particles_N,omega_per_s,chi_per_s,rate_Nchi_per_s,lambda_per_s,virial_ratio,theta_rad,chi_integral_rad,squeezing_dB,log10_meanfield_fraction,breakdown_integral,chi_adiabatic_per_s,chi_adiabatic_integral_rad,squeezing_parameter";
   const csv = [header, ...rows.map((r) => r.map((v) => (typeof v === "number" ? v.toPrecision(12) : v)).join(","))].join("\n") + "\n";
   writeFileAtomic(path.join(outDir, "snapshot-clocks.csv"), csv);
-  const summary = { snapshots: files.length, region: flags.region, particles_N: a.particles, squeezing_db_target: db, clocks };
+  const cols = header.split(",");
+  const st = state as ModeState;
+  const final = a.state();
+  const summary = {
+    snapshots: files.length,
+    region: flags.region,
+    particles_N: a.particles,
+    squeezing_db_target: db,
+    start: { ...st.start, description: describeStart(st.start), number_spread: numberSpread(a.particles, st.start) },
+    loss_rate_per_s: st.lossRatePerS,
+    dephasing_rate_per_s: st.dephasingRatePerS,
+    clocks,
+    final: {
+      theta_rad: a.theta,
+      chi_integral_rad: a.chiIntegral,
+      chi_adiabatic_integral_rad: a.chiAdiabaticIntegral,
+      squeezing_db: final.squeezingDb,
+      squeezing_parameter: final.squeezingParameter,
+      squeezing_angle_rad: final.squeezingAngle,
+      meanfield_fraction: final.meanFieldFraction,
+      ln_meanfield_fraction: final.logMeanFieldFraction,
+      breakdown_integral: a.breakdown,
+      ln_N: Math.log(a.particles),
+    },
+    // the numbers of every snapshot (the CSV's rows)
+    rows: rows.map((r) => Object.fromEntries(r.map((v, i) => [cols[i] as string, v]))),
+  };
   writeFileAtomic(path.join(outDir, "snapshot-clocks.json"), JSON.stringify(summary, null, 2) + "\n");
   if (flags.json) {
     process.stdout.write(JSON.stringify(summary, null, 2) + "\n");

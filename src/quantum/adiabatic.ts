@@ -1,0 +1,129 @@
+/**
+ * The adiabatic phase-diffusion coefficient χ_ad = (1/ħ) dμ/dN of a
+ * self-gravitating condensate (Lewenstein & You 1996, PRL 77, 3489; Castin &
+ * Dalibard 1997, PRA 55, 4330): a spread ΔN in the number of quanta spreads
+ * the phase at the rate ΔN dμ/dN/ħ, with μ the chemical potential of the
+ * stationary state of N quanta, which relaxes as N changes. The frozen-mode χ
+ * keeps the mode function fixed instead.
+ *
+ * Stationary states. Schrödinger–Poisson without a box or expansion has the
+ * scaling symmetry ψ(x) → λ² ψ(λx) (N → λN, energies per particle → λ² ×), so
+ * a stationary state has μ ∝ N² and N dμ/dN = 2μ, with μ = (K + 2W)/N. In
+ * code units (ħ/m = 1) μ/ħ = ω + Nχ, ω = K/M, χ = 2Wm/M², hence
+ *   χ_ad = 2μ/(ħN) = 2ω/N + 2χ,
+ * and with the virial theorem (2K + W = 0) χ_ad = (3/2)χ exactly.
+ *
+ * Any field (measured). A twin field ψ₂(0) = (1 + e/2) ψ₁(0) holds (1 + e)N
+ * quanta to first order; both evolve with the same equations, and the phase
+ * of their overlap advances at −(μ₂ − μ₁)/ħ ≈ −e N χ_ad, so
+ *   χ_ad ≈ −(d/dt) arg ∫ conj(ψ₁) ψ₂ dV / (e N).
+ */
+import type { ModeCoefficients } from "./mode.js";
+
+/** χ_ad from the coefficients of a stationary state (code units, 1/code time). */
+export function stationaryAdiabaticChi(c: Pick<ModeCoefficients, "omega" | "chi" | "particles">): number {
+  return (2 * c.omega) / c.particles + 2 * c.chi;
+}
+
+/** arg ∫ conj(ψ₁) ψ₂ over interleaved complex arrays (radians in (−π, π]). */
+export function overlapPhase(psi1: Float64Array, psi2: Float64Array): number {
+  let re = 0;
+  let im = 0;
+  for (let i = 0; i < psi1.length; i += 2) {
+    const ar = psi1[i] as number;
+    const ai = psi1[i + 1] as number;
+    const br = psi2[i] as number;
+    const bi = psi2[i + 1] as number;
+    re += ar * br + ai * bi;
+    im += ar * bi - ai * br;
+  }
+  return Math.atan2(im, re);
+}
+
+/** Follows the overlap phase continuously (unwrapped) and fits χ_ad by least squares over the samples. */
+export class TwinPhaseTracker {
+  private readonly t: number[] = [];
+  private readonly phase: number[] = [];
+  /**
+   * @param e the twin's relative extra mass (ψ₂ = (1 + e/2) ψ₁ at the start)
+   * @param particles N of the first field
+   */
+  constructor(
+    readonly e: number,
+    readonly particles: number,
+  ) {}
+
+  /** Add a sample; consecutive samples must differ in phase by less than π. */
+  add(t: number, phase: number): void {
+    const last = this.phase.at(-1);
+    let p = phase;
+    if (last !== undefined) p = last + Math.atan2(Math.sin(phase - last), Math.cos(phase - last));
+    this.t.push(t);
+    this.phase.push(p);
+  }
+
+  /**
+   * χ_ad = −b/(eN) from a least-squares fit of the phase by a + b t + c sin Ωt + d cos Ωt, with Ω
+   * chosen to minimise the residual (undefined with fewer than 8 samples). The twin starts with the
+   * frozen-mode rate (its mode function has not relaxed) and oscillates about the adiabatic one at
+   * the breathing frequency Ω, so the line alone would be biased unless the run spans many periods;
+   * the fit needs the run to span about one period or more.
+   */
+  chi(): number | undefined {
+    const n = this.t.length;
+    if (n < 8) return undefined;
+    const T = (this.t.at(-1) as number) - (this.t[0] as number);
+    let best = { res: Infinity, b: 0 };
+    for (let j = 0; j <= 240; j++) {
+      const omega = ((2 * Math.PI) / T) * Math.pow(40, j / 240) * 0.5; // periods from 2T down to T/20
+      const fit = leastSquares(this.t, this.phase, (t) => [1, t, Math.sin(omega * t), Math.cos(omega * t)]);
+      if (fit && fit.residual < best.res) best = { res: fit.residual, b: fit.coef[1] as number };
+    }
+    return -best.b / (this.e * this.particles);
+  }
+
+  /** Plain state for a checkpoint. */
+  save(): { t: number[]; phase: number[] } {
+    return { t: [...this.t], phase: [...this.phase] };
+  }
+
+  restore(s: { t: number[]; phase: number[] }): void {
+    this.t.splice(0, this.t.length, ...s.t);
+    this.phase.splice(0, this.phase.length, ...s.phase);
+  }
+}
+
+/** Least squares y ≈ Σ c_k f_k(t) by the normal equations (4 unknowns), with the residual sum of squares. */
+function leastSquares(ts: readonly number[], ys: readonly number[], basis: (t: number) => number[]): { coef: number[]; residual: number } | undefined {
+  const t0 = ts[0] as number;
+  const k = basis(0).length;
+  const A = Array.from({ length: k }, () => new Array<number>(k + 1).fill(0));
+  for (let i = 0; i < ts.length; i++) {
+    const f = basis((ts[i] as number) - t0);
+    for (let r = 0; r < k; r++) {
+      for (let c = 0; c < k; c++) (A[r] as number[])[c] = ((A[r] as number[])[c] as number) + (f[r] as number) * (f[c] as number);
+      (A[r] as number[])[k] = ((A[r] as number[])[k] as number) + (f[r] as number) * (ys[i] as number);
+    }
+  }
+  // Gaussian elimination with partial pivoting
+  for (let c = 0; c < k; c++) {
+    let p = c;
+    for (let r = c + 1; r < k; r++) if (Math.abs((A[r] as number[])[c] as number) > Math.abs((A[p] as number[])[c] as number)) p = r;
+    [A[c], A[p]] = [A[p] as number[], A[c] as number[]];
+    const pivot = (A[c] as number[])[c] as number;
+    if (!(Math.abs(pivot) > 1e-300)) return undefined;
+    for (let r = 0; r < k; r++) {
+      if (r === c) continue;
+      const f = ((A[r] as number[])[c] as number) / pivot;
+      for (let q = c; q <= k; q++) (A[r] as number[])[q] = ((A[r] as number[])[q] as number) - f * ((A[c] as number[])[q] as number);
+    }
+  }
+  const coef = A.map((row, r) => (row[k] as number) / (row[r] as number));
+  let residual = 0;
+  for (let i = 0; i < ts.length; i++) {
+    const f = basis((ts[i] as number) - t0);
+    const y = f.reduce((sum, v, q) => sum + v * (coef[q] as number), 0);
+    residual += (y - (ys[i] as number)) ** 2;
+  }
+  return { coef, residual };
+}
