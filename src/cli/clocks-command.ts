@@ -21,6 +21,7 @@ import type { ClockReport } from "../quantum/sidecar-report.js";
 import { PC_M } from "../physics/constants.js";
 import { readModeState, type ModeState, type ModeStateFlags } from "./mode-state-options.js";
 import { describeStart, numberSpread } from "../quantum/gaussian-start.js";
+import { stationaryAdiabaticChi } from "../quantum/adiabatic.js";
 
 export interface ClocksFlags extends ModeStateFlags {
   region: string;
@@ -96,7 +97,7 @@ export async function clocksCommand(paths: readonly string[], flags: ClocksFlags
     const tS = snap.meta.time * unitInSI(snap.meta.timeUnit);
     const toS = 1 / units.timeS;
     // χ_ad = (1/ħ) dμ/dN = 2μ/(ħN) for a stationary state (μ ∝ N² by the scaling symmetry), μ/ħ = (K + 2W)/M = ω + Nχ
-    const chiAd = ((2 * m.omega) / m.particles + 2 * m.chi) * toS;
+    const chiAd = stationaryAdiabaticChi(m) * toS;
     const rates = { omegaTilde: m.omega * toS, chiTilde: m.chi * toS, lambda: m.lambda * toS, chiAdiabatic: chiAd };
     if (!acc) {
       state = readModeState(flags, m.particles);

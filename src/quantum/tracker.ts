@@ -7,6 +7,7 @@
  * so it knows nothing of the integrator.
  */
 import { ClockAccumulator, type ClockRates } from "./clocks.js";
+import { stationaryAdiabaticChi } from "./adiabatic.js";
 
 /** Grid sums of a field (code units, without the cell volume): Σ|ψ|², Σ|ψ|⁴, Σ|ψ|²φ. */
 export interface ModeSums {
@@ -18,12 +19,16 @@ export interface ModeSums {
 /** Whole-box rates from the field's sums, with ½∫|∇ψ|² dV given as `kineticTilde`. */
 function ratesOf(sums: ModeSums, cellVolume: number, a: number, particleMass: number, kineticTilde: number): { rates: ClockRates; mass: number } {
   const M = sums.rho * cellVolume;
+  const omegaTilde = kineticTilde / M;
+  const chiTilde = (2 * (0.5 * sums.rhoPhi * cellVolume) * particleMass) / (M * M);
   return {
     mass: M,
     rates: {
-      omegaTilde: kineticTilde / M,
-      chiTilde: (2 * (0.5 * sums.rhoPhi * cellVolume) * particleMass) / (M * M),
+      omegaTilde,
+      chiTilde,
       lambda: Math.sqrt(sums.rho2 / sums.rho / (a * a * a)),
+      // χ_ad = 2ω/N + 2χ, the stationary-state dμ/dN (adiabatic.ts), at the current a
+      chiAdiabatic: stationaryAdiabaticChi({ omega: omegaTilde / (a * a), chi: chiTilde / a, particles: M / particleMass }),
     },
   };
 }

@@ -45,10 +45,11 @@ describe("sidecar clocks", () => {
       expect(Math.abs(fromSnaps[b]! / inline.final[a] - 1), a).toBeLessThan(1e-3);
     }
     const snapSummary = JSON.parse(fs.readFileSync(path.join(work, "output/dense/snapshot-clocks.json"), "utf8"));
-    for (let i = 0; i < 4; i++) {
+    for (let i = 0; i < 5; i++) {
       const a = inline.clocks[i].time_s;
       const b = snapSummary.clocks[i].time_s;
-      expect(Math.abs(b / a - 1), inline.clocks[i].name).toBeLessThan(2e-3);
+      // χ_ad carries ω, which swings with the wave's kinetic energy: the trapezoid over every 4th step is coarser there
+      expect(Math.abs(b / a - 1), inline.clocks[i].name).toBeLessThan(inline.clocks[i].name === "phase-diffusion-adiabatic" ? 5e-3 : 2e-3);
     }
     // a region around the densest point, with its own (isolated) potential, also runs
     const region = psibox(["clocks", "output/dense/snapshots/snap_00048.h5", "--region", "densest", "--radius", "3 kpc", "--out", "region", "--json"]);
@@ -83,7 +84,7 @@ describe("psibox estimate", () => {
     expect(r.stdout).toMatch(/^classical breakdown +[\d.]+ Gyr +ln N \/ √\(4πG ρ\)/m);
     const json = JSON.parse(psibox(["estimate", "--particle-mass", "1e-22 eV", "--halo-mass", "1e9 Msun", "--radius", "1 kpc", "--json"]).stdout);
     expect(json.particles).toBeCloseTo(1.1154e97, -93);
-    expect(json.clocks).toHaveLength(4);
+    expect(json.clocks).toHaveLength(5);
   });
 
   it("names the missing or bad input", () => {
