@@ -163,7 +163,7 @@ describe.runIf(chromium !== undefined || process.env["CI"] === "true")("psibox r
       const images = (await page.evaluate(`Array.from(document.images).map((e) => ({ ok: e.complete && e.naturalWidth > 0, w: e.naturalWidth }))`)) as { ok: boolean; w: number }[];
       expect(images.length).toBeGreaterThanOrEqual(7);
       expect(images.every((i) => i.ok && i.w > 600)).toBe(true);
-      expect(await page.locator(".verdict li").count()).toBe(4);
+      expect(await page.locator(".verdict li").count()).toBe(5); // five clocks: onset, level, phase diffusion frozen and adiabatic, breakdown
       // text that overflows its box, or boxes that stick out of the page's column
       const overflow = (await page.evaluate(`(() => {
         const bad = [];
