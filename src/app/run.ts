@@ -13,7 +13,7 @@ import { vortexCensusPlugin } from "./vortex-census-plugin.js";
 /** The built-in plug-ins a resolved config turns on. */
 export function configuredPlugins(run: ResolvedRun): RunPlugin[] {
   return [
-    ...(run.sidecar.enabled ? [sidecarPlugin(run.sidecar.squeezingDb)] : []),
+    ...(run.sidecar.enabled ? [sidecarPlugin(run.sidecar)] : []),
     ...(run.output.vortexCensus ? [vortexCensusPlugin(run.grid.cells.length)] : []),
   ];
 }

@@ -15,6 +15,7 @@ import { resolveInitial, type ResolvedInitial } from "./resolve-initial.js";
 import { perAxis, positive, read } from "./values.js";
 import { resolveBackgroundAndSpan, resolveHubble } from "./resolve-span.js";
 import { resolveIntegrator, resolveOutput } from "./resolve-output.js";
+import { resolveSidecar, type ResolvedSidecar } from "./resolve-sidecar.js";
 
 /** Background in code units. */
 export type { BackgroundSpec as ResolvedBackground } from "../physics/cosmology/background.js";
@@ -63,7 +64,7 @@ export interface ResolvedRun {
     readonly snapshotPrecision: "float64" | "float32";
     readonly checkpointEvery: number;
   };
-  readonly sidecar: { readonly enabled: boolean; readonly squeezingDb: number };
+  readonly sidecar: ResolvedSidecar;
 }
 
 /**
@@ -90,11 +91,12 @@ export function resolveRun(config: CheckedConfig, name: string, cwd: string): Re
   if (!(config.sidecar.squeezing_db < 0)) {
     throw new ConfigError("sidecar.squeezing_db", `must be negative (a variance below the coherent state's), got ${config.sidecar.squeezing_db}`);
   }
+  const sidecar = resolveSidecar(config, units.timeS, ctx);
   return {
     name,
     outputDir,
     config,
-    sidecar: { enabled: config.sidecar.enabled, squeezingDb: config.sidecar.squeezing_db },
+    sidecar,
     particleMassKg: m,
     lengthUnitM: units.lengthM,
     grid: { cells, lengths, gravity: config.grid.gravity, poisson: config.grid.poisson },

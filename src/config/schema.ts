@@ -220,6 +220,16 @@ export const sidecarSchema = z.strictObject({
   enabled: z.boolean().default(true),
   /** The squeezing level the squeezing clock times, in dB (negative). @default -10 */
   squeezing_db: z.number().default(-10),
+  /** The mode starts squeezed with this parameter r ≥ 0 (0: coherent). @default 0 */
+  squeeze: z.number().default(0),
+  /** Angle of the squeezing from the mean field's direction [rad]: 0 squeezes the number, π the phase. @default 0 */
+  squeeze_angle: z.number().default(0),
+  /** Mean thermal quanta in the mode's start. @default 0 */
+  thermal_quanta: z.number().default(0),
+  /** Rate at which the mode loses quanta, a rate with its unit, e.g. "1/Gyr". @default "0/s" */
+  loss_rate: z.string().default("0/s"),
+  /** Dephasing rate of the mode, e.g. "0.1/Myr". @default "0/s" */
+  dephasing_rate: z.string().default("0/s"),
 });
 
 const sweepRange = z.strictObject({

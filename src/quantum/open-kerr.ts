@@ -153,13 +153,15 @@ export function openKerrState(N: number, start: GaussianStart, k: KerrIntegrals)
   let digits = 16;
   // error of the double evaluation: the logs ℓ and D carry absolute errors ~ ε × (size of their terms),
   // which reach V through q = |⟨b⟩|²/⟨n⟩ and p = |⟨b²⟩|/⟨n⟩ (a dephased mean field cannot cancel anything)
-  const weight = Na > 0 ? Math.exp(raw.ell) + Math.exp(raw.ell + raw.d.re) : Math.exp(raw.d.re);
+  const weight = Math.min(1e300, Na > 0 ? Math.exp(raw.ell) + Math.exp(raw.ell + raw.d.re) : Math.exp(raw.d.re));
   const err = (d: number) => Math.pow(10, -d) * nt * 4 * (1 + weight * (1 + raw.size));
   // arbitrary precision when double precision cannot resolve V to 1e-11; repeat while the estimate grows
   for (let i = 0; i < 6 && !(err(digits) <= 1e-11 * Math.abs(v)); i++) {
     const floor = 1 / (2 + 8 * nt); // V ≥ 1/(4 λ_max) ≥ 1/(2 + 8⟨n⟩) for any state
-    const need = Math.ceil(14 + Math.log10(err(0) / Math.max(floor, Math.min(Math.abs(v), 1e300))));
-    if (need <= digits) digits += 20;
+    const guess = Math.ceil(14 + Math.log10(err(0) / Math.max(floor, Math.min(Math.abs(v), 1e300))));
+    // a non-finite estimate (|⟨b²⟩|/⟨n⟩ overflowing in doubles) falls back to the bound 3 log₁₀⟨n⟩ + 30, capped
+    const need = Math.min(2000, Number.isFinite(guess) ? guess : Math.ceil(30 + 3 * Math.log10(1 + nt + n)));
+    if (need <= digits) digits = Math.min(2000, digits + 20);
     else digits = need;
     const R = decimalReal(digits);
     v = R.num(R.add(R.of(0.5), R.mul(R.of(nt), excess(R, moments(R, N, start, k), Na > 0))));

@@ -9,10 +9,37 @@ import { writeFileAtomic } from "../io/atomic.js";
 import type { RunContext, RunPlugin, StartFacts, StepFacts } from "../simulation/plugin.js";
 import { runPaths } from "../simulation/outputs.js";
 import { SidecarTracker } from "./tracker.js";
+import { ConfigError } from "../core/errors.js";
+import { COHERENT, validateStart, type GaussianStart } from "./gaussian-start.js";
+import type { ModeModel } from "./clocks.js";
 import { SIDECAR_COLUMNS, clocksRecord, sidecarRow } from "./sidecar-report.js";
 
-/** The sidecar plug-in; `squeezingDb` is the squeezing level to time (sidecar.squeezing_db). */
-export function sidecarPlugin(squeezingDb: number): RunPlugin {
+/** The settings the plug-in takes (the resolved [sidecar] section; rates per code time). */
+export interface SidecarSettings {
+  readonly squeezingDb: number;
+  readonly start?: GaussianStart;
+  readonly lossRate?: number;
+  readonly dephasingRate?: number;
+}
+
+const START_KEYS: Record<string, string> = { squeeze: "sidecar.squeeze", "squeeze-angle": "sidecar.squeeze_angle", thermal: "sidecar.thermal_quanta" };
+
+/** The mode model of the settings, checked against the run's N (a ConfigError naming the key otherwise). */
+function modelOf(settings: SidecarSettings, N: number): ModeModel {
+  const start = settings.start ?? COHERENT;
+  try {
+    validateStart(N, start);
+  } catch (e) {
+    if (!(e instanceof RangeError)) throw e;
+    const [name, ...rest] = e.message.split(": ");
+    throw new ConfigError(START_KEYS[name as string] ?? "sidecar", rest.join(": "));
+  }
+  return { start, lossRate: settings.lossRate ?? 0, dephasingRate: settings.dephasingRate ?? 0 };
+}
+
+/** The sidecar plug-in, with the squeezing level to time (sidecar.squeezing_db), the start and the rates. */
+export function sidecarPlugin(settings: SidecarSettings): RunPlugin {
+  const { squeezingDb } = settings;
   let context: RunContext | undefined;
   let tracker: SidecarTracker | undefined;
   let saved: Parameters<SidecarTracker["restore"]>[0] | undefined;
@@ -28,7 +55,8 @@ export function sidecarPlugin(squeezingDb: number): RunPlugin {
     start(ctx: RunContext, facts: StartFacts) {
       context = ctx;
       const start = { sums: facts.sums.moments!, kineticTilde: facts.sums.kinetic!, a: facts.a };
-      tracker = new SidecarTracker(ctx.particleMass, facts.mass0 / ctx.particleMass, squeezingDb, ctx.startTime, ctx.grid.cellVolume, start);
+      const N = facts.mass0 / ctx.particleMass;
+      tracker = new SidecarTracker(ctx.particleMass, N, squeezingDb, ctx.startTime, ctx.grid.cellVolume, start, modelOf(settings, N));
       if (saved) tracker.restore(saved);
     },
     afterStep(facts: StepFacts) {

@@ -7,6 +7,7 @@ import type { SidecarTracker } from "./tracker.js";
 import { formatDuration, type ClockResult } from "./clocks.js";
 import type { Background } from "../physics/cosmology/background.js";
 import { YEAR_S } from "../physics/constants.js";
+import { describeStart, numberSpread } from "./gaussian-start.js";
 
 /** Age of the universe used for comparisons when the run has no cosmology: 13.797 Gyr (Planck 2018, A&A 641, A6). */
 export const PLANCK_AGE_S = 13.797e9 * YEAR_S;
@@ -23,6 +24,8 @@ export const SIDECAR_COLUMNS = [
   "squeezing_dB",
   "log10_meanfield_fraction",
   "breakdown_integral",
+  "chi_adiabatic_per_s",
+  "chi_adiabatic_integral_rad",
 ];
 
 /** The sidecar's time-series values now. */
@@ -41,6 +44,8 @@ export function sidecarRow(tracker: SidecarTracker, a: number, timeS: number): n
     st.squeezingDb,
     st.logMeanFieldFraction / Math.LN10,
     c.breakdown,
+    (r.chiAdiabatic ?? Number.NaN) / timeS,
+    c.chiAdiabaticIntegral,
   ];
 }
 
@@ -78,12 +83,16 @@ export function clocksRecord(tracker: SidecarTracker, background: Background, ti
   return {
     particles_N: tracker.clocks.particles,
     squeezing_db_target: tracker.clocks.squeezingDb,
+    start: { ...tracker.clocks.model.start, description: describeStart(tracker.clocks.model.start), number_spread: numberSpread(tracker.clocks.particles, tracker.clocks.model.start) },
+    loss_rate_per_s: tracker.clocks.model.lossRate / timeS,
+    dephasing_rate_per_s: tracker.clocks.model.dephasingRate / timeS,
     age_of_universe_s: age,
     age_of_universe_source: background.kind === "lcdm" ? "the run's own cosmology, t(a = 1)" : "Planck 2018 (13.797 Gyr)",
     clocks: clockReports(tracker, timeS, spanS, age),
     final: {
       theta_rad: tracker.clocks.theta,
       chi_integral_rad: tracker.clocks.chiIntegral,
+      chi_adiabatic_integral_rad: tracker.clocks.chiAdiabaticIntegral,
       squeezing_db: st.squeezingDb,
       squeezing_parameter: st.squeezingParameter,
       squeezing_angle_rad: st.squeezingAngle,

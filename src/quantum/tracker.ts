@@ -6,7 +6,7 @@
  * factors D = ∫dt/a² and K = ∫dt/a. It works from sums over the grid alone,
  * so it knows nothing of the integrator.
  */
-import { ClockAccumulator, type ClockRates } from "./clocks.js";
+import { ClockAccumulator, CLOSED_COHERENT, type ClockRates, type ModeModel } from "./clocks.js";
 import { stationaryAdiabaticChi } from "./adiabatic.js";
 
 /** Grid sums of a field (code units, without the cell volume): Σ|ψ|², Σ|ψ|⁴, Σ|ψ|²φ. */
@@ -43,12 +43,21 @@ export class SidecarTracker {
   /**
    * Start at the current field: its sums, its ½∫|∇ψ|² dV and the scale factor a.
    * @param particles N, fixed for the run (the run's initial mass over m)
+   * @param model the start and the loss and dephasing rates per code time (default: coherent, closed)
    */
-  constructor(particleMass: number, particles: number, squeezingDb: number, startTime: number, cellVolume: number, start: { sums: ModeSums; kineticTilde: number; a: number }) {
+  constructor(
+    particleMass: number,
+    particles: number,
+    squeezingDb: number,
+    startTime: number,
+    cellVolume: number,
+    start: { sums: ModeSums; kineticTilde: number; a: number },
+    model: ModeModel = CLOSED_COHERENT,
+  ) {
     this.particleMass = particleMass;
     this.cellVolume = cellVolume;
     this.rates = ratesOf(start.sums, cellVolume, start.a, particleMass, start.kineticTilde).rates;
-    this.clocks = new ClockAccumulator(particles, squeezingDb, startTime, this.rates);
+    this.clocks = new ClockAccumulator(particles, squeezingDb, startTime, this.rates, model);
   }
 
   /** After a step to time t (scale factor a) with factors D and K: measure and advance. */

@@ -97,3 +97,42 @@ describe("psibox clocks --json", () => {
     expect(bad.stderr).toMatch(/^psibox: --loss-rate: "2 kpc" is not a rate/);
   });
 });
+
+describe("runs with a squeezed, lossy mode ([sidecar] keys)", () => {
+  const config = (extra: string) =>
+    `[grid]\ncells = [32, 32]\nbox = "20 kpc"\n[particle]\nmass = "1e-22 eV"\n[span]\nduration = "20 Myr"\n` +
+    `[initial]\nkind = "plane-wave"\nmean_density = "1e7 Msun/kpc^3"\ncontrast = 0.3\nmode = [1, 1]\n` +
+    `[output]\ntime_unit = "Myr"\n[sidecar]\n${extra}`;
+
+  it("records the start, the rates and the adiabatic columns; the squeezed start begins 4.34 dB below the vacuum", () => {
+    fs.writeFileSync(path.join(work, "sq.toml"), config(`squeeze = 0.5\nsqueeze_angle = 0\nloss_rate = "1/Gyr"\ndephasing_rate = "0.01/Gyr"\n`));
+    const r = psibox(["run", "sq.toml", "-q"]);
+    expect(r.stderr).toBe("");
+    expect(r.code).toBe(0);
+    const clocks = JSON.parse(fs.readFileSync(path.join(work, "output/sq/clocks.json"), "utf8"));
+    expect(clocks.start).toMatchObject({ squeeze: 0.5, squeezeAngle: 0, thermal: 0 });
+    expect(clocks.loss_rate_per_s * 1e9 * YEAR_S).toBeCloseTo(1, 10);
+    expect(clocks.dephasing_rate_per_s * 1e9 * YEAR_S).toBeCloseTo(0.01, 12);
+    expect(clocks.clocks.map((c: { name: string }) => c.name)).toContain("phase-diffusion-adiabatic");
+    const [header, first] = fs.readFileSync(path.join(work, "output/sq/timeseries.csv"), "utf8").split("\n");
+    const row = Object.fromEntries(header!.split(",").map((c, i) => [c, Number(first!.split(",")[i])]));
+    expect(row["squeezing_dB"]).toBeCloseTo(-10 * Math.log10(Math.E), 6);
+    expect(row["chi_adiabatic_per_s"]).toBeLessThan(0);
+  });
+
+  it("bad [sidecar] values are one-line errors naming the key, exit 2", () => {
+    const cases: [string, RegExp][] = [
+      ["squeeze = -1\n", /^psibox: sidecar\.squeeze: must be a finite squeeze parameter r ≥ 0/],
+      ['loss_rate = "3 km"\n', /^psibox: sidecar\.loss_rate: "3 km" is not a rate/],
+      ['dephasing_rate = "-2/Gyr"\n', /^psibox: sidecar\.dephasing_rate: must be a rate ≥ 0/],
+      ["thermal_quanta = 1e200\n", /^psibox: sidecar\.thermal_quanta: the state's fluctuation holds .* more than the mode's N/],
+    ];
+    cases.forEach(([extra, msg], i) => {
+      fs.writeFileSync(path.join(work, `bad${i}.toml`), config(extra));
+      const r = psibox(["run", `bad${i}.toml`, "-q"]);
+      expect(r.code, extra).toBe(2);
+      expect(r.stderr, extra).toMatch(msg);
+      expect(r.stderr.trim().split("\n"), extra).toHaveLength(1);
+    });
+  });
+});

@@ -62,6 +62,6 @@ describe("a user plug-in through runSimulation (the README's example)", () => {
     expect(final).toBeLessThan(1 / (1 + (EPS * EPS) / 2)); // the overdensity has grown
     const summary = readJson(path.join(work, "out/summary.json"));
     expect(summary["participation_ratio_final"]).toBeCloseTo(final, 9);
-    expect(summary["clocks"]).toHaveLength(4); // the config's own plug-in (the sidecar) ran too
+    expect(summary["clocks"]).toHaveLength(5); // the config's own plug-in (the sidecar) ran too
   });
 });

@@ -72,7 +72,7 @@ describe("resume", () => {
     const summary = JSON.parse(fs.readFileSync(summaryBefore, "utf8"));
     expect(summary.status).toBe("completed");
     expect(summary.clocks).toEqual(JSON.parse(fs.readFileSync(path.join(work, "full/summary.json"), "utf8")).clocks);
-    expect(summary.clocks).toHaveLength(4);
+    expect(summary.clocks).toHaveLength(5);
     expect(summary.resumed_from_step).toBeGreaterThan(0);
     // snapshots land exactly on the requested times
     const times = [0, 1, 2, 3, 4, 5].map((i) => readSnapshot(path.join(work, `cut/snapshots/snap_0000${i}.h5`)).meta.time);

@@ -1,0 +1,47 @@
+/**
+ * The [sidecar] section in code units: whether it runs, the squeezing level,
+ * the mode's start (squeeze, squeeze_angle, thermal_quanta) and its loss and
+ * dephasing rates (per code time). That the start fits the mode's N is
+ * checked when the run starts and N is known.
+ */
+import { ConfigError } from "../core/errors.js";
+import type { UnitContext } from "../physics/units.js";
+import type { CheckedConfig } from "./schema.js";
+import { read } from "./values.js";
+
+export interface ResolvedSidecar {
+  readonly enabled: boolean;
+  readonly squeezingDb: number;
+  /** The Gaussian start: squeeze parameter, its angle [rad], thermal quanta. */
+  readonly start: { readonly squeeze: number; readonly squeezeAngle: number; readonly thermal: number };
+  /** Loss rate γ and dephasing rate κ [1/code time]. */
+  readonly lossRate: number;
+  readonly dephasingRate: number;
+}
+
+function nonNegative(key: string, v: number, what: string): number {
+  if (!(Number.isFinite(v) && v >= 0)) throw new ConfigError(key, `must be ${what}, got ${v}`);
+  return v;
+}
+
+function rate(key: string, text: string, timeS: number, ctx: UnitContext): number {
+  const v = /^\s*0(\.0*)?\s*(\/\s*[a-zA-Z]+)?\s*$/.test(text) ? 0 : read(key, text, "rate", ctx);
+  return nonNegative(key, v, 'a rate ≥ 0 with its unit, e.g. "1/Gyr"') * timeS;
+}
+
+/** Resolve the [sidecar] section; `timeS` is the code time unit in seconds. */
+export function resolveSidecar(config: CheckedConfig, timeS: number, ctx: UnitContext): ResolvedSidecar {
+  const s = config.sidecar;
+  if (!Number.isFinite(s.squeeze_angle)) throw new ConfigError("sidecar.squeeze_angle", `must be a finite angle in radians, got ${s.squeeze_angle}`);
+  return {
+    enabled: s.enabled,
+    squeezingDb: s.squeezing_db,
+    start: {
+      squeeze: nonNegative("sidecar.squeeze", s.squeeze, "a finite squeeze parameter r ≥ 0"),
+      squeezeAngle: s.squeeze_angle,
+      thermal: nonNegative("sidecar.thermal_quanta", s.thermal_quanta, "a finite number of thermal quanta ≥ 0"),
+    },
+    lossRate: rate("sidecar.loss_rate", s.loss_rate, timeS, ctx),
+    dephasingRate: rate("sidecar.dephasing_rate", s.dephasing_rate, timeS, ctx),
+  };
+}
