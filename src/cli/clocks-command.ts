@@ -126,17 +126,44 @@ export async function clocksCommand(paths: readonly string[], flags: ClocksFlags
       ratio_to_age_of_universe: t === undefined ? null : t / ageS,
     };
   });
-  const outDir = path.resolve(flags.out ?? (paths.length === 1 && fs.statSync(paths[0] as string).isDirectory() ? (paths[0] as string) : "."));
+  const outDir = clocksOutDir(paths, flags);
+  const summary = writeClockFiles(paths, flags, files.length, rows, clocks, a, state as ModeState, db);
+  if (flags.json) {
+    process.stdout.write(JSON.stringify(summary, null, 2) + "\n");
+    return 0;
+  }
+  const table = rows.map(
+    (r) =>
+      `  ${String(r[0]).padEnd(16)} t − t₀ = ${formatDuration((r[1] as number) - t0S).padEnd(11)} N|χ| = ${formatQuantity(r[6] as number, "/s").padEnd(17)} λ = ${formatQuantity(r[7] as number, "/s").padEnd(17)} squeezing ${formatQuantity(r[11] as number, "dB")}`,
+  );
+  const clockText = formatClocks(clocks, db).replace("(whole-box mode):", `(${flags.region} mode, from snapshots; times counted from the first snapshot, t₀):`);
+  process.stdout.write(`${files.length} snapshots, mode: ${flags.region}, N = ${formatNumber(a.particles, 5)}\n${table.join("\n")}\n${clockText}`);
+  process.stdout.write(`wrote ${path.relative(process.cwd(), path.join(outDir, "snapshot-clocks.csv")) || "snapshot-clocks.csv"} and snapshot-clocks.json\n`);
+  return 0;
+}
+
+/** Write snapshot-clocks.csv and snapshot-clocks.json; returns the JSON record. */
+function writeClockFiles(
+  paths: readonly string[],
+  flags: ClocksFlags,
+  snapshots: number,
+  rows: (string | number)[][],
+  clocks: ClockReport[],
+  a: ClockAccumulator,
+  state: ModeState,
+  db: number,
+): Record<string, unknown> {
+  const outDir = clocksOutDir(paths, flags);
   fs.mkdirSync(outDir, { recursive: true });
   const header =
     "snapshot,t_s,a,particles_N,omega_per_s,chi_per_s,rate_Nchi_per_s,lambda_per_s,virial_ratio,theta_rad,chi_integral_rad,squeezing_dB,log10_meanfield_fraction,breakdown_integral,chi_adiabatic_per_s,chi_adiabatic_integral_rad,squeezing_parameter";
   const csv = [header, ...rows.map((r) => r.map((v) => (typeof v === "number" ? v.toPrecision(12) : v)).join(","))].join("\n") + "\n";
   writeFileAtomic(path.join(outDir, "snapshot-clocks.csv"), csv);
   const cols = header.split(",");
-  const st = state as ModeState;
+  const st = state;
   const final = a.state();
   const summary = {
-    snapshots: files.length,
+    snapshots,
     region: flags.region,
     particles_N: a.particles,
     squeezing_db_target: db,
@@ -160,16 +187,10 @@ export async function clocksCommand(paths: readonly string[], flags: ClocksFlags
     rows: rows.map((r) => Object.fromEntries(r.map((v, i) => [cols[i] as string, v]))),
   };
   writeFileAtomic(path.join(outDir, "snapshot-clocks.json"), JSON.stringify(summary, null, 2) + "\n");
-  if (flags.json) {
-    process.stdout.write(JSON.stringify(summary, null, 2) + "\n");
-    return 0;
-  }
-  const table = rows.map(
-    (r) =>
-      `  ${String(r[0]).padEnd(16)} t − t₀ = ${formatDuration((r[1] as number) - t0S).padEnd(11)} N|χ| = ${formatQuantity(r[6] as number, "/s").padEnd(17)} λ = ${formatQuantity(r[7] as number, "/s").padEnd(17)} squeezing ${formatQuantity(r[11] as number, "dB")}`,
-  );
-  const clockText = formatClocks(clocks, db).replace("(whole-box mode):", `(${flags.region} mode, from snapshots; times counted from the first snapshot, t₀):`);
-  process.stdout.write(`${files.length} snapshots, mode: ${flags.region}, N = ${formatNumber(a.particles, 5)}\n${table.join("\n")}\n${clockText}`);
-  process.stdout.write(`wrote ${path.relative(process.cwd(), path.join(outDir, "snapshot-clocks.csv")) || "snapshot-clocks.csv"} and snapshot-clocks.json\n`);
-  return 0;
+  return summary;
+}
+
+/** Where the clock files go: --out, else the one folder given, else the working folder. */
+function clocksOutDir(paths: readonly string[], flags: ClocksFlags): string {
+  return path.resolve(flags.out ?? (paths.length === 1 && fs.statSync(paths[0] as string).isDirectory() ? (paths[0] as string) : "."));
 }
