@@ -213,6 +213,9 @@ export class ThreadPool {
         }
       }
     }
+    // a worker that failed and counted itself done before this thread first looked at PENDING
+    // leaves the loop without one check: look once more, so that no failure is lost
+    this.checkAlive();
   }
 
   /** Whether close() was called. */
