@@ -2,7 +2,8 @@
 import fs from "node:fs";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { BIN, makeWork, removeWork, runPsibox } from "../helpers/cli.js";
+import { BIN, makeWork, readCsv, removeWork, runPsibox } from "../helpers/cli.js";
+import { FREE_PACKET_1D } from "../helpers/configs.js";
 
 let work: string;
 
@@ -14,31 +15,7 @@ function writeConfig(name: string, text: string): string {
   return file;
 }
 
-function readCsv(file: string): Record<string, string>[] {
-  const [header, ...rows] = fs.readFileSync(file, "utf8").trim().split("\n");
-  const cols = header!.split(",");
-  return rows.map((r) => Object.fromEntries(r.split(",").map((v, i) => [cols[i]!, v])));
-}
-
-const PACKET = `
-[grid]
-cells = 256
-box = "20 kpc"
-gravity = "none"
-
-[particle]
-mass = "1e-22 eV"
-
-[span]
-duration = "10 Myr"
-
-[initial]
-kind = "gaussian-packet"
-mass = "1e8 Msun"
-width = "0.5 kpc"
-center = ["6 kpc"]
-velocity = ["30 km/s"]
-`;
+const PACKET = FREE_PACKET_1D;
 
 beforeAll(() => {
   expect(fs.existsSync(BIN)).toBe(true);

@@ -1,4 +1,4 @@
-// The README's plug-in example (examples/participation-ratio.mjs), run as a researcher runs it: it adds
+// The README's plug-in example (scripts/plugin-participation-ratio.mjs), run as a researcher runs it: it adds
 // its own column to the time series and its own key to summary.json, through the public API.
 import fs from "node:fs";
 import path from "node:path";
@@ -7,7 +7,7 @@ import { loadHdf5 } from "../../src/io/h5.js";
 import { readSnapshot } from "../../src/io/snapshot.js";
 import { makeWork, node, readCsv, readJson, removeWork, writeIn } from "../helpers/cli.js";
 
-const SCRIPT = path.resolve("examples/participation-ratio.mjs");
+const SCRIPT = path.resolve("scripts/plugin-participation-ratio.mjs");
 const EPS = 0.2;
 const CONFIG = `
 [grid]

@@ -1,42 +1,28 @@
 // Runs that start from a snapshot: the keys taken from the file, the field carried over (also from the
 // earlier snapshot layout), Fourier resampling of a relaxed soliton, and bad input.
-import { spawnSync } from "node:child_process";
 import fs from "node:fs";
-import os from "node:os";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { loadHdf5 } from "../../src/io/h5.js";
 import { readSnapshot } from "../../src/io/snapshot.js";
+import { makeWork, removeWork, runPsibox } from "../helpers/cli.js";
+import { maxRelative } from "../helpers/fields.js";
 
-const BIN = path.resolve("dist/cli/bin.js");
 const FIXTURES = path.join(path.dirname(fileURLToPath(import.meta.url)), "..", "fixtures", "layout-v1");
 let work: string;
 
 beforeAll(async () => {
   await loadHdf5();
-  work = fs.mkdtempSync(path.join(os.tmpdir(), "psibox-from-"));
+  work = makeWork("from");
 });
-afterAll(() => fs.rmSync(work, { recursive: true, force: true }));
+afterAll(() => removeWork(work));
 
-function psibox(args: string[]) {
-  const r = spawnSync(process.execPath, [BIN, ...args], { cwd: work, encoding: "utf8" });
-  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
-}
+const psibox = (args: string[]) => runPsibox(work, args);
 
 function write(name: string, text: string): string {
   fs.writeFileSync(path.join(work, name), text);
   return name;
-}
-
-function maxRelative(a: Float64Array, b: Float64Array): number {
-  let num = 0;
-  let den = 0;
-  for (let i = 0; i < a.length; i++) {
-    num = Math.max(num, Math.abs(a[i]! - b[i]!));
-    den = Math.max(den, Math.abs(b[i]!));
-  }
-  return num / den;
 }
 
 function lastRow(dir: string, first = false): Record<string, number> {

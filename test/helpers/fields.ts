@@ -66,3 +66,14 @@ export function lumpy(grid: Grid): Float64Array {
     return [amp * Math.cos(s), amp * Math.sin(s)];
   });
 }
+
+/** The largest difference relative to the largest magnitude of the reference `b`. */
+export function maxRelative(a: Float64Array, b: Float64Array): number {
+  let num = 0;
+  let den = 0;
+  for (let i = 0; i < a.length; i++) {
+    num = Math.max(num, Math.abs(a[i]! - b[i]!));
+    den = Math.max(den, Math.abs(b[i]!));
+  }
+  return num / den;
+}

@@ -10,6 +10,7 @@ import { prepareOutputDir, simulate, type RunSummary } from "../../src/simulatio
 import type { RunPlugin, StepFacts } from "../../src/simulation/plugin.js";
 import { InputError } from "../../src/core/errors.js";
 import { makeWork, readCsv, removeWork, writeIn } from "../helpers/cli.js";
+import { FREE_PACKET_1D } from "../helpers/configs.js";
 
 const CONFIG = `
 [grid]
@@ -31,21 +32,7 @@ checkpoint_every = 7
 enabled = false
 `;
 
-const PACKET = `
-[grid]
-cells = 256
-box = "20 kpc"
-gravity = "none"
-[particle]
-mass = "1e-22 eV"
-[span]
-duration = "10 Myr"
-[initial]
-kind = "gaussian-packet"
-mass = "1e8 Msun"
-width = "0.5 kpc"
-center = ["6 kpc"]
-velocity = ["30 km/s"]
+const PACKET = `${FREE_PACKET_1D}
 [output]
 dir = "packet"
 [sidecar]

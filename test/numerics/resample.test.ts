@@ -5,7 +5,7 @@ import { Grid } from "../../src/grid/grid.js";
 import { ComplexFft } from "../../src/fields/fft.js";
 import { fieldMass, kineticEnergy } from "../../src/diagnostics/energies.js";
 import { resampleField } from "../../src/initial-conditions/resample.js";
-import { fillComplex, seededRandom } from "../helpers/fields.js";
+import { fillComplex, maxRelative, seededRandom } from "../helpers/fields.js";
 
 /** A random field with Fourier modes only below `limit` of each axis' Nyquist frequency (band-limited). */
 function bandLimited(grid: Grid, limit: number, seed: number): Float64Array {
@@ -24,16 +24,6 @@ function bandLimited(grid: Grid, limit: number, seed: number): Float64Array {
       }
   new ComplexFft(grid.shape).inverse(spec);
   return spec;
-}
-
-function maxRelative(a: Float64Array, b: Float64Array): number {
-  let num = 0;
-  let den = 0;
-  for (let i = 0; i < a.length; i++) {
-    num = Math.max(num, Math.abs(a[i]! - b[i]!));
-    den = Math.max(den, Math.abs(b[i]!));
-  }
-  return num / den;
 }
 
 describe("Fourier resampling", () => {
