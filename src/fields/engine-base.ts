@@ -6,6 +6,7 @@
  */
 import type { Triple } from "../grid/grid.js";
 import { densityRows, driftRows, gradientNormRows, kickRows, normRows, poissonRows } from "./step-kernels.js";
+import { combineRows, crossDensityRows, overlapRows, tangentSourceRows } from "./tangent-kernels.js";
 import { regionName, regionView, type StepSetup } from "./step-memory.js";
 import type { ComplexGrid, PoissonTarget, RealGrid, StepEngine } from "./step-engine.js";
 
@@ -177,6 +178,22 @@ export abstract class EngineBase implements StepEngine {
   poisson(lo: number, hi: number): void {
     const kp = this.kp!;
     poissonRows(this.view("spectrum"), this.half, kp[0], kp[1], kp[2], lo, hi);
+  }
+
+  crossDensity(field: ComplexGrid, target: RealGrid, lo: number, hi: number): void {
+    crossDensityRows(this.view("psi"), this.view(field), this.view(target), this.shape[2], lo, hi);
+  }
+
+  tangentSource(field: ComplexGrid, potential: RealGrid, factor: number, lo: number, hi: number): void {
+    tangentSourceRows(this.view("psi"), this.view(field), this.view(potential), factor, this.shape[2], lo, hi);
+  }
+
+  overlap(field: ComplexGrid, lo: number, hi: number, out: Float64Array): void {
+    overlapRows(this.view("psi"), this.view(field), this.shape[2], lo, hi, out);
+  }
+
+  combine(field: ComplexGrid, scale: number, re: number, im: number, lo: number, hi: number): void {
+    combineRows(this.view("psi"), this.view(field), scale, re, im, this.shape[2], lo, hi);
   }
 
   abstract axis(field: ComplexGrid, axis: number, inverse: boolean, lo: number, hi: number): void;

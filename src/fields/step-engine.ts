@@ -79,6 +79,14 @@ export interface StepEngine {
   poisson(lo: number, hi: number): void;
   /** Forward along outer `axis` of the half spectrum, −1/k², inverse. */
   poissonOuter(axis: number, lo: number, hi: number): void;
+  /** Tangent fields: target ← 2 Re(ψ̄ field) over rows (the source of the linearised potential). */
+  crossDensity(field: ComplexGrid, target: RealGrid, lo: number, hi: number): void;
+  /** Tangent fields: field ← field − i·factor·potential·ψ over rows (the linear term of the kick). */
+  tangentSource(field: ComplexGrid, potential: RealGrid, factor: number, lo: number, hi: number): void;
+  /** Over rows: Σ Re(ψ̄ field), Σ Im(ψ̄ field), Σ|field|² into out[0…2]. */
+  overlap(field: ComplexGrid, lo: number, hi: number, out: Float64Array): void;
+  /** field ← scale·(field − (re + i·im)ψ) over rows. */
+  combine(field: ComplexGrid, scale: number, re: number, im: number, lo: number, hi: number): void;
 }
 
 /** The engine for a layout on this thread (`slot` picks the wasm scratch block). */

@@ -11,10 +11,20 @@
  *   factor is D/μ and its kick factor μK; all species share the one
  *   potential φ sourced by the summed density, ∇²φ = Σ_j |ψ_j|² − ρ̄.
  *
- * The rules of each kind are one entry of `ruleOf`; a tangent-linear field
- * (dψ ← e^{−iκΦ}(dψ − iκ dΦ ψ), dΦ from 2 Re(ψ̄ dψ) through the same Poisson
- * passes into "aux") is meant to be another entry, with a linearised kick
- * pass of its own.
+ * - "tangent": a tangent-linear field dψ, the exact derivative of the
+ *   split-step map at the reference: the drift is linear and unchanged, and
+ *   each kick e^{−iKφ} becomes dψ ← e^{−iKφ}(dψ − iK dφ ψ), with dφ the
+ *   potential of 2 Re(ψ̄ dψ) through the same Poisson passes (into "aux"),
+ *   ψ and φ the reference's at the same stage. It neither sources φ nor
+ *   has a potential of its own to kick with; it is not allowed beside
+ *   species (whose densities would enter φ). A tangent field owes the same
+ *   closing kick as ψ and is kicked only together with it (the stepper
+ *   applies the tangents' owed kicks first, while ψ is still the field they
+ *   were owed at), so its kick always sees the stored ψ.
+ *
+ * Folding the closing kick of one step into the opening kick of the next is
+ * exact for tangents too: the kick leaves |ψ|² and Re(ψ̄ dψ) unchanged, so two
+ * linearised kicks by K₂ and K₁ on the same φ and dφ are one by K₂ + K₁.
  *
  * Like the reference, each field owes its closing kick, folded into the next
  * step's first pass. A field with its own potential recomputes it from its
@@ -29,7 +39,7 @@ import type { StepPlan, PlannedPass } from "./step-plan.js";
 import type { StepTask } from "./step-task.js";
 
 /** The kind of an extra field's kick. */
-export type FieldKind = { readonly kind: "own-gravity" } | { readonly kind: "species"; readonly massRatio: number };
+export type FieldKind = { readonly kind: "own-gravity" } | { readonly kind: "species"; readonly massRatio: number } | { readonly kind: "tangent" };
 
 /** How a kind takes part in the step. */
 interface KindRule {
@@ -43,15 +53,19 @@ interface KindRule {
   readonly driftScale: number;
   /** Its kick factor over the reference's (m_i/m). */
   readonly kickScale: number;
+  /** Its kicks are the reference's, linearised: dφ of 2 Re(ψ̄ dψ) solved into "aux" before each. */
+  readonly linearised: boolean;
 }
 
 function ruleOf(kind: FieldKind): KindRule {
   switch (kind.kind) {
     case "own-gravity":
-      return { potential: "aux", ownPotential: true, sources: false, driftScale: 1, kickScale: 1 };
+      return { potential: "aux", ownPotential: true, sources: false, driftScale: 1, kickScale: 1, linearised: false };
     case "species":
       if (!(kind.massRatio > 0) || !Number.isFinite(kind.massRatio)) throw new RangeError(`a species' mass ratio must be positive, got ${kind.massRatio}`);
-      return { potential: "phi", ownPotential: false, sources: true, driftScale: 1 / kind.massRatio, kickScale: kind.massRatio };
+      return { potential: "phi", ownPotential: false, sources: true, driftScale: 1 / kind.massRatio, kickScale: kind.massRatio, linearised: false };
+    case "tangent":
+      return { potential: "phi", ownPotential: false, sources: false, driftScale: 1, kickScale: 1, linearised: true };
   }
 }
 
@@ -77,6 +91,9 @@ export class ExtraFields {
   constructor(kinds: readonly FieldKind[]) {
     this.count = kinds.length;
     this.rules = kinds.map(ruleOf);
+    if (this.rules.some((r) => r.linearised) && this.rules.some((r) => r.sources)) {
+      throw new RangeError("tangent fields cannot be advanced beside species: the tangents of the species' densities would enter the potential");
+    }
     this.owed = new Float64Array(this.count + 1);
     this.undoOwed = new Float64Array(this.count + 1);
   }
@@ -84,7 +101,7 @@ export class ExtraFields {
   /** What the step's memory must hold for them. */
   get layout(): ExtraLayout {
     const phaseSets = this.rules.flatMap((r, i) => (r.driftScale !== 1 ? [i + 1] : []));
-    return { fields: this.count, phaseSets, aux: this.rules.some((r) => r.potential === "aux") };
+    return { fields: this.count, phaseSets, aux: this.rules.some((r) => r.potential === "aux" || r.linearised) };
   }
 
   /** The region of field i (1 … K). */
@@ -101,10 +118,16 @@ export class ExtraFields {
     return this.rules[i - 1]!;
   }
 
-  /** Forget owed kicks (after a field was loaded). */
-  reset(i: number): void {
+  /** Whether field i is a tangent field (kicked only together with ψ). */
+  isTangent(i: number): boolean {
     this.check(i);
-    this.owed[i] = 0;
+    return this.rule(i).linearised;
+  }
+
+  /** Set the owed kick of field i (0 after a field was loaded; a checkpoint's on restore). */
+  reset(i: number, owed = 0): void {
+    this.check(i);
+    this.owed[i] = owed;
   }
 
   /** The owed kick factor of field i. */
@@ -112,21 +135,36 @@ export class ExtraFields {
     return this.owed[i]!;
   }
 
-  /** Solve field i's own potential from its stored density, if it has one. */
-  private preparePotential(r: PassRunner, i: number): void {
+  /**
+   * What comes before field i's kick by `kick`: its own potential solved from
+   * its stored density, or for a tangent dφ of 2 Re(ψ̄ dψ) and the linear
+   * term dψ ← dψ − i·kick·dφ·ψ (the phase e^{−iKφ} is then the ordinary kick).
+   */
+  private prepareKick(r: PassRunner, i: number, kick: number): void {
     const rule = this.rule(i);
-    if (!rule.ownPotential || !r.gravity) return;
-    r.runPass(r.plan.rows, { op: "density", field: this.grid(i), target: rule.potential, add: false });
-    r.runPasses(r.plan.potential(rule.potential));
+    const field = this.grid(i);
+    if (rule.ownPotential) {
+      r.runPass(r.plan.rows, { op: "density", field, target: rule.potential, add: false });
+      r.runPasses(r.plan.potential(rule.potential));
+    } else if (rule.linearised) {
+      r.runPass(r.plan.rows, { op: "cross-density", field, target: "aux" });
+      r.runPasses(r.plan.potential("aux"));
+      r.runPass(r.plan.rows, { op: "tangent-source", field, potential: "aux", factor: kick });
+    }
   }
 
-  /** Apply field i's owed kick. */
+  /** Apply field i's owed kick (a tangent's only while ψ still owes the same kick: see the stepper). */
   synchronize(r: PassRunner, i: number): void {
     const k = this.owed[i]!;
     this.owed[i] = 0;
     if (k === 0 || !r.gravity) return;
-    this.preparePotential(r, i);
+    this.prepareKick(r, i, k);
     r.runPass(r.plan.rows, { op: "kick", field: this.grid(i), potential: this.rule(i).potential, factor: k });
+  }
+
+  /** Apply the owed kicks of every tangent field (before ψ applies its own). */
+  synchronizeTangents(r: PassRunner): void {
+    for (let i = 1; i <= this.count; i++) if (this.rule(i).linearised) this.synchronize(r, i);
   }
 
   /**
@@ -139,7 +177,7 @@ export class ExtraFields {
       const rule = this.rule(i);
       const kick = r.gravity ? this.owed[i]! + k1 * rule.kickScale : 0;
       this.owed[i] = 0;
-      if (kick !== 0) this.preparePotential(r, i);
+      if (kick !== 0) this.prepareKick(r, i, kick);
       const set = rule.driftScale !== 1 ? i : 0;
       r.fillPhases(set, drift * rule.driftScale);
       r.runPasses(r.plan.drift(this.grid(i), set, { kick, potential: rule.potential, density: false, gradient: false }));

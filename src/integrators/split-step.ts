@@ -133,9 +133,10 @@ export class SplitStepper {
     return this.extras.count;
   }
 
-  /** Extra field i (1 … extraFields), interleaved complex, with its owed kick applied. */
+  /** Extra field i (1 … extraFields), interleaved complex, with its owed kick applied (a tangent's with ψ's). */
   field(i: number): Float64Array {
-    this.extras.synchronize(this.runner, i);
+    if (this.extras.isTangent(i)) this.synchronize();
+    else this.extras.synchronize(this.runner, i);
     return this.rawField(i);
   }
 
@@ -144,12 +145,34 @@ export class SplitStepper {
     return regionView(this.memory.setup, this.extras.grid(i));
   }
 
-  /** Load extra field i (copied); do it before setState, which computes the shared potential. */
-  setField(i: number, psi: Float64Array): void {
+  /**
+   * Load extra field i (copied), owing `owed` (a checkpoint's; 0 for a current field). Do it
+   * before setState, which computes the shared potential. A current tangent field is loaded
+   * beside the current ψ (an owed kick is applied first); a tangent's owed kick must be ψ's.
+   */
+  setField(i: number, psi: Float64Array, owed = 0): void {
     const view = this.rawField(i);
     if (psi.length !== view.length) throw new RangeError(`field has ${psi.length / 2} cells, grid has ${this.grid.size}`);
+    if (this.extras.isTangent(i) && owed === 0) this.synchronize();
     view.set(psi);
-    this.extras.reset(i);
+    this.extras.reset(i, owed);
+    this.undoState = undefined;
+  }
+
+  /** Of tangent (or any extra) field i and the current ψ: ⟨ψ|dψ⟩ = Σψ̄ dψ ΔV (re, im) and ‖dψ‖² = Σ|dψ|² ΔV. */
+  fieldOverlap(i: number): { re: number; im: number; norm2: number } {
+    this.field(i);
+    this.synchronize();
+    this.runPassInto(this.plan.rows, { op: "overlap", field: this.extras.grid(i) }, this.results);
+    const dv = this.grid.cellVolume;
+    return { re: this.results[0]! * dv, im: this.results[1]! * dv, norm2: this.results[2]! * dv };
+  }
+
+  /** Field i ← scale·(field i − (re + i·im)ψ), with the current ψ. */
+  combineField(i: number, scale: number, re: number, im: number): void {
+    this.field(i);
+    this.synchronize();
+    this.runPass(this.plan.rows, { op: "combine", field: this.extras.grid(i), scale, re, im });
     this.undoState = undefined;
   }
 
@@ -174,8 +197,9 @@ export class SplitStepper {
     return this.owedKick;
   }
 
-  /** Apply an owed kick, so that the stored ψ is the current field. */
+  /** Apply an owed kick, so that the stored ψ is the current field (the tangent fields' first, which need ψ before it). */
   synchronize(): void {
+    this.extras.synchronizeTangents(this.runner);
     const k = this.owedKick;
     this.owedKick = 0;
     this.kick(k);

@@ -30,6 +30,10 @@ export type StepTask =
   | { readonly op: "isolated-rows" | "isolated-rows-inverse"; readonly real: RealGrid }
   | { readonly op: "poisson-outer"; readonly axis: number }
   | { readonly op: "moments" }
+  | { readonly op: "cross-density"; readonly field: ComplexGrid; readonly target: RealGrid }
+  | { readonly op: "tangent-source"; readonly field: ComplexGrid; readonly potential: RealGrid; readonly factor: number }
+  | { readonly op: "overlap"; readonly field: ComplexGrid }
+  | { readonly op: "combine"; readonly field: ComplexGrid; readonly scale: number; readonly re: number; readonly im: number }
   | { readonly op: "poisson" | "isolated-zero" | "convolve" };
 
 /** Length of a task's result vector: sums in entries 0–2, a maximum in entry 3. */
@@ -48,11 +52,21 @@ export function combineResults(parts: Float64Array, threads: number, out: Float6
 export function runTask(engine: StepEngine, t: StepTask, lo: number, hi: number, out: Float64Array): void {
   out.fill(0);
   if (t.op === "moments") engine.moments(lo, hi, out);
+  else if (t.op === "overlap") engine.overlap(t.field, lo, hi, out);
   else out[0] = runScalar(engine, t, lo, hi);
 }
 
-function runScalar(engine: StepEngine, t: Exclude<StepTask, { op: "moments" }>, lo: number, hi: number): number {
+function runScalar(engine: StepEngine, t: Exclude<StepTask, { op: "moments" | "overlap" }>, lo: number, hi: number): number {
   switch (t.op) {
+    case "cross-density":
+      engine.crossDensity(t.field, t.target, lo, hi);
+      return 0;
+    case "tangent-source":
+      engine.tangentSource(t.field, t.potential, t.factor, lo, hi);
+      return 0;
+    case "combine":
+      engine.combine(t.field, t.scale, t.re, t.im, lo, hi);
+      return 0;
     case "kick":
       engine.kick(t.field, t.potential, t.factor, lo, hi);
       return 0;
@@ -145,6 +159,10 @@ export function transformOf(t: StepTask, g: StepGeometry): Transform | undefined
     case "density":
     case "norm":
     case "moments":
+    case "cross-density":
+    case "tangent-source":
+    case "overlap":
+    case "combine":
     case "poisson":
     case "isolated-zero":
     case "convolve":
