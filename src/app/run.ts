@@ -1,7 +1,7 @@
 /**
  * The application layer: a run assembled with its plug-ins. The plug-ins a
  * config asks for (the quantum sidecar, `[sidecar] enabled`; the vortex
- * census, `output.vortex_census`) come first, then
+ * census, `output.vortex_census`; the flow-resolution check, always) come first, then
  * the caller's own, in the order given. The CLI and the public API call this.
  */
 import type { ResolvedRun } from "../config/resolve.js";
@@ -9,12 +9,14 @@ import { simulate, type RunOptions, type RunSummary } from "../simulation/run.js
 import type { RunPlugin } from "../simulation/plugin.js";
 import { sidecarPlugin } from "../quantum/sidecar-plugin.js";
 import { vortexCensusPlugin } from "./vortex-census-plugin.js";
+import { flowResolutionPlugin } from "./flow-resolution-plugin.js";
 
 /** The built-in plug-ins a resolved config turns on. */
 export function configuredPlugins(run: ResolvedRun): RunPlugin[] {
   return [
     ...(run.sidecar.enabled ? [sidecarPlugin(run.sidecar)] : []),
     ...(run.output.vortexCensus ? [vortexCensusPlugin(run.grid.cells.length)] : []),
+    flowResolutionPlugin(),
   ];
 }
 

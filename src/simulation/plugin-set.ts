@@ -57,8 +57,12 @@ export class PluginSet {
     });
   }
 
-  snapshot(facts: Omit<OutputFacts, "kind">): void {
-    for (const p of this.plugins) p.output?.({ kind: "snapshot", ...facts });
+  /** Tell the plug-ins a snapshot was written; `field` gives ψ to those that measure "field". */
+  snapshot(facts: Omit<OutputFacts, "kind" | "psi">, field?: () => Float64Array): void {
+    for (const p of this.plugins) {
+      const psi = field && p.measures?.includes("field") ? { psi: field() } : {};
+      p.output?.({ kind: "snapshot", ...facts, ...psi });
+    }
   }
 
   /** Stop every plug-in; their parts of summary.json, refusing keys the run itself writes (`taken`). */

@@ -43,6 +43,8 @@ export interface RunContext {
   readonly endTime: number;
   /** The run folder (a plug-in may write its own files there, atomically). */
   readonly outputDir: string;
+  /** Tell the user something that does not stop the run: printed as a warning and written to run.log. */
+  warn(text: string): void;
 }
 
 /** The state at the start of the run (or at the step a resumed run continues from). */
@@ -82,7 +84,7 @@ export interface OutputFacts {
   /** The snapshot file (kind "snapshot"). */
   readonly file?: string;
   /**
-   * Rows, for a plug-in that measures "field": ψ in code units, interleaved
+   * Rows and snapshots, for a plug-in that measures "field": ψ in code units, interleaved
    * (re, im), read-only and valid during the call. It is the stepper's raw
    * field: exact in |ψ| and in its zeros, its phase short of the smooth factor
    * the folded closing kick still owes (reading it never changes the run).

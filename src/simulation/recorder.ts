@@ -64,7 +64,7 @@ export class RunRecorder {
   snapshot(step: number): void {
     const { stepper, background, writer, plugins } = this.session;
     const file = writer.writeSnapshot(stepper, step, this.snapshotsWritten++);
-    plugins.snapshot({ step, t: stepper.time, a: background.scaleFactor(stepper.time), file });
+    plugins.snapshot({ step, t: stepper.time, a: background.scaleFactor(stepper.time), file }, () => stepper.rawPsi);
   }
 
   /** Flush the time series and write the checkpoint of the current state. */

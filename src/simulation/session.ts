@@ -84,8 +84,12 @@ export function openSession(run: ResolvedRun, options: RunOptions): RunSession {
   const { threads, fft } = run.integrator;
   const stepper = threads > 1 ? new ThreadedStepper(grid, background, gravity, threads, fft) : new SplitStepper(grid, background, gravity, fft);
   const { startTime, endTime } = run.span;
-  const context: RunContext = { grid, background, scales, particleMass: run.particleMassKg / scales.units.massKg, startTime, endTime, outputDir: run.outputDir };
   const reporter = options.reporter ?? silentReporter;
+  const warn = (text: string): void => {
+    reporter.warn(text);
+    writer.log(`warning: ${text}`);
+  };
+  const context: RunContext = { grid, background, scales, particleMass: run.particleMassKg / scales.units.massKg, startTime, endTime, outputDir: run.outputDir, warn };
   const expanding = background.kind !== "static";
   return { run, options, reporter, scales, grid, background, gravity, expanding, paths, writer, stepper, plugins, context, wallStart };
 }
