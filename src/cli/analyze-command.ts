@@ -11,6 +11,7 @@ import { TextReporter } from "./progress.js";
 import { parseDiagnosticList, parseHusimiPoints, type DiagnosticRequest } from "../report/diagnostic-options.js";
 import { parseAs } from "../physics/units.js";
 import { PC_M } from "../physics/constants.js";
+import { recordIfInside } from "../simulation/run-manifest.js";
 
 export interface AnalyzeFlags extends PictureFlags {
   out?: string;
@@ -67,12 +68,14 @@ export async function analyzeCommand(paths: readonly string[], flags: AnalyzeFla
     if (fs.statSync(p).isDirectory()) {
       runFolder(p);
       const out = flags.out ?? path.join(p, "analysis");
+      recordIfInside(p, out, true);
       const r = await analyzeRun(p, out, { frames: flags.frames, movie: flags.movie, pictures: flags.pictures, pictureOptions: pictures, diagnostics, onSnapshot: (done, total) => reporter.progress(done / total, `snapshot ${done} of ${total}`) });
       reporter.endPhase();
       process.stdout.write(`${p}: ${r.snapshots.length} snapshots analysed in ${formatDuration((performance.now() - started) / 1000)}; ${what(flags)} in ${out}\n`);
       if (r.movieNote) process.stdout.write(`${r.movie ? `wrote ${r.movie}: ` : ""}${r.movieNote}\n`);
     } else {
       const out = flags.out ?? path.join(path.dirname(p), "..", "analysis", path.basename(p, ".h5"));
+      recordIfInside(path.join(path.dirname(p), ".."), out, true);
       await analyzeSnapshot(p, out, flags.pictures, diagnostics, pictures);
       process.stdout.write(`${p}: analysed in ${formatDuration((performance.now() - started) / 1000)}; ${what(flags)} in ${out}\n`);
     }
@@ -85,6 +88,8 @@ export async function reportCommand(runDir: string, flags: PictureFlags & { out?
   const pictures = pictureOptions(flags);
   if (!fs.existsSync(runDir)) throw new InputError(`${runDir}: no such folder`);
   await loadHdf5();
+  recordIfInside(runDir, path.join(runDir, "analysis"), true);
+  recordIfInside(runDir, flags.out ?? path.join(runDir, "report.html"));
   const reporter = new TextReporter();
   const file = await writeReport(runDir, flags.out, { pictureOptions: pictures, onSnapshot: (done, total) => reporter.progress(done / total, `snapshot ${done} of ${total}`) });
   reporter.endPhase();

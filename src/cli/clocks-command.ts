@@ -10,6 +10,7 @@ import { InputError } from "../core/errors.js";
 import { loadHdf5 } from "../io/h5.js";
 import { readSnapshot } from "../io/snapshot.js";
 import { writeFileAtomic } from "../io/atomic.js";
+import { recordIfInside } from "../simulation/run-manifest.js";
 import { loadField } from "../simulation/from-snapshot.js";
 import { modeCoefficients, type ModeRegion } from "../quantum/mode.js";
 import { ClockAccumulator, formatDuration } from "../quantum/clocks.js";
@@ -155,6 +156,8 @@ function writeClockFiles(
 ): Record<string, unknown> {
   const outDir = clocksOutDir(paths, flags);
   fs.mkdirSync(outDir, { recursive: true });
+  recordIfInside(outDir, path.join(outDir, "snapshot-clocks.csv"));
+  recordIfInside(outDir, path.join(outDir, "snapshot-clocks.json"));
   const header =
     "snapshot,t_s,a,particles_N,omega_per_s,chi_per_s,rate_Nchi_per_s,lambda_per_s,virial_ratio,theta_rad,chi_integral_rad,squeezing_dB,log10_meanfield_fraction,breakdown_integral,chi_adiabatic_per_s,chi_adiabatic_integral_rad,squeezing_parameter";
   const csv = [header, ...rows.map((r) => r.map((v) => (typeof v === "number" ? v.toPrecision(12) : v)).join(","))].join("\n") + "\n";

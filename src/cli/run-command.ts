@@ -7,8 +7,11 @@ import { applyOverrides, checkConfig, readTomlFile } from "../config/load.js";
 import { loadHdf5 } from "../io/h5.js";
 import { fillFromSnapshot } from "../simulation/snapshot-start.js";
 import { resolveRun, type ResolvedRun } from "../config/resolve.js";
-import { prepareOutputDir, silentReporter } from "../simulation/run.js";
+import { silentReporter } from "../simulation/run.js";
 import { runSimulation } from "../app/run.js";
+import { takeRunFolder, type OwnedFolder } from "../simulation/run-folder.js";
+import { recordOwned } from "../simulation/run-manifest.js";
+import { fileName } from "../core/sanitize.js";
 import { runPaths } from "../simulation/outputs.js";
 import { TextReporter } from "./progress.js";
 import { describeRun } from "./describe.js";
@@ -27,8 +30,8 @@ export type IcFlags = Pick<RunFlags, "set" | "force" | "quiet">;
 
 function resumeTarget(dir: string): ResolvedRun {
   const p = runPaths(path.resolve(dir));
-  if (!fs.existsSync(p.config)) throw new InputError(`${dir}: not a psibox run folder (no config.toml)`);
-  if (!fs.existsSync(p.checkpoint)) throw new InputError(`${dir}: has no checkpoint.h5 to resume from`);
+  if (!fs.existsSync(p.config)) throw new InputError(`${fileName(dir)}: not a psibox run folder (no config.toml)`);
+  if (!fs.existsSync(p.checkpoint)) throw new InputError(`${fileName(dir)}: has no checkpoint.h5 to resume from`);
   const run = resolveRun(checkConfig(readTomlFile(p.config)), path.basename(path.resolve(dir)), process.cwd());
   return { ...run, outputDir: path.resolve(dir) };
 }
@@ -44,25 +47,47 @@ export async function runCommand(
     process.env["PSIBOX_THREADS"] = String(t);
   }
   let run: ResolvedRun;
+  let owned: OwnedFolder;
   if (flags.resume !== undefined && flags.extend !== undefined) {
     run = (await import("./extend.js")).extendRun(flags.resume, flags.extend);
+    owned = takeRunFolder(run.outputDir, { force: false, resume: true });
   } else if (flags.resume !== undefined) {
     if (configFile !== undefined) throw new InputError("give either a config file or --resume DIR, not both");
     if (flags.set.length > 0) throw new InputError("--set cannot change a resumed run; edit its config.toml instead");
     run = resumeTarget(flags.resume);
-    const summary = runPaths(run.outputDir).summary;
-    if (fs.existsSync(summary) && JSON.parse(fs.readFileSync(summary, "utf8")).status === "completed") {
-      process.stdout.write(`${flags.resume}: the run has already completed; nothing to resume\n`);
+    if (completedBefore(runPaths(run.outputDir).summary)) {
+      process.stdout.write(`${fileName(flags.resume)}: the run has already completed; nothing to resume\n`);
       return 0;
     }
+    owned = takeRunFolder(run.outputDir, { force: false, resume: true });
   } else {
     if (configFile === undefined) throw new InputError("give a config file (psibox run CONFIG) or --resume DIR");
     await loadHdf5();
     const config = checkConfig(fillFromSnapshot(applyOverrides(readTomlFile(configFile), flags.set)));
-    if (config.sweep) throw new InputError(`${configFile} describes a sweep ([sweep] section): run it with psibox sweep ${configFile}`);
+    if (config.sweep) throw new InputError(`${fileName(configFile)} describes a sweep ([sweep] section): run it with psibox sweep ${fileName(configFile)}`);
     run = resolveRun(config, path.basename(configFile).replace(/\.[^.]*$/, ""), process.cwd());
-    prepareOutputDir(run.outputDir, flags.force);
+    owned = takeRunFolder(run.outputDir, { force: flags.force });
   }
+  run = { ...run, outputDir: owned.dir };
+  for (const note of owned.notes) process.stderr.write(`psibox: ${note}\n`);
+  try {
+    return await runOwned(run, flags);
+  } finally {
+    owned.lock.release();
+  }
+}
+
+/** Did the run whose summary is `file` complete? (A missing or unreadable summary means no.) */
+function completedBefore(file: string): boolean {
+  try {
+    return (JSON.parse(fs.readFileSync(file, "utf8")) as { status?: unknown }).status === "completed";
+  } catch {
+    return false;
+  }
+}
+
+/** Run (or resume) in a folder this process holds; returns the exit code. */
+async function runOwned(run: ResolvedRun, flags: RunFlags & { readonly initialOnly?: boolean }): Promise<number> {
   const reporter = flags.quiet ? silentReporter : new TextReporter();
   if (!flags.quiet) process.stderr.write(describeRun(run) + "\n");
   let interrupted: string | undefined;
@@ -83,13 +108,14 @@ export async function runCommand(
       resume: flags.resume !== undefined,
       initialOnly: flags.initialOnly === true,
     });
-    const where = path.relative(process.cwd(), run.outputDir) || ".";
+    const where = fileName(path.relative(process.cwd(), run.outputDir) || ".");
     if (flags.initialOnly) {
       process.stdout.write(`wrote the initial conditions to ${where}/snapshots/snap_00000.h5\n`);
       return 0;
     }
     if (run.config.output.analyze) {
       const { analyzeRun } = await import("../report/analyze.js");
+      recordOwned(run.outputDir, ["analysis/"]);
       const analysis = await analyzeRun(run.outputDir, path.join(run.outputDir, "analysis"));
       process.stderr.write(`analysed ${analysis.snapshots.length} snapshots into ${path.join(where, "analysis")}\n`);
     }

@@ -52,6 +52,7 @@ export function resolveOutput(
   positive("output.timeseries_every", out.timeseries_every);
   const timeUnit = out.time_unit ?? (config.span.duration !== undefined ? unitText(config.span.duration) : "Gyr");
   const timeUnitS = timeUnitSeconds(timeUnit, ctx);
+  if (out.dir !== undefined && out.dir.trim() === "") throw new ConfigError("output.dir", 'is empty; give a folder of its own, e.g. "output/run1", or leave the key out for output/<config name>');
   const outputDir = path.resolve(cwd, out.dir ?? path.join("output", name));
   const snapshotTimes = resolveSnapshotTimes(config, background, span.startTime, span.endTime, units, ctx);
   if (out.snapshot_every !== undefined) positive("output.snapshot_every", out.snapshot_every);

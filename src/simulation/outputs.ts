@@ -16,6 +16,7 @@ import { writeSnapshot, type CheckpointState, type SnapshotMeta } from "../io/sn
 import { KG_PER_EV, MPC_M } from "../physics/constants.js";
 import { VERSION } from "../version.js";
 import type { OutputScales } from "./scales.js";
+import { recordOwned } from "./run-manifest.js";
 
 /** Paths of a run folder. */
 export function runPaths(dir: string) {
@@ -89,6 +90,7 @@ export class RunWriter {
   /** Write snapshot number `index` of the current state. */
   writeSnapshot(stepper: SplitStepper, step: number, index: number): string {
     const file = this.paths.snapshot(index);
+    recordOwned(this.run.outputDir, [`snapshots/${path.basename(file)}`]);
     writeSnapshot(file, { meta: this.meta(stepper, step, "snapshot"), psi: stepper.psi, psiScale: this.psiScale }, this.run.output.snapshotPrecision);
     this.log(`snapshot ${path.basename(file)} at step ${step}, t = ${this.scales.formatTime(stepper.time)}`);
     return file;

@@ -6,16 +6,13 @@
  * the ones given: the application layer (app/run.ts) adds the built-in ones
  * a config asks for.
  */
-import fs from "node:fs";
-import path from "node:path";
 import { formatNumber } from "../core/format.js";
 import { writeFileAtomic } from "../io/atomic.js";
 import { loadHdf5 } from "../io/h5.js";
 import type { ResolvedRun } from "../config/resolve.js";
-import { InputError } from "../core/errors.js";
+import { takeRunFolder } from "./run-folder.js";
 import type { SplitStepper } from "../integrators/split-step.js";
 import { evolveAsync, type EvolveResult, type StepInfo } from "./evolve.js";
-import { runPaths } from "./outputs.js";
 import { RunRecorder } from "./recorder.js";
 import { openSession, startRun, type RunOptions, type RunSession, type RunStart } from "./session.js";
 import type { MeasuredSums } from "./plugin.js";
@@ -182,20 +179,5 @@ function summaryOf(session: RunSession, start: RunStart, result: EvolveResult, s
 
 /** Create a run's output folder; refuse to reuse a folder that holds a run unless `force`. */
 export function prepareOutputDir(dir: string, force: boolean): void {
-  if (fs.existsSync(dir)) {
-    if (!fs.statSync(dir).isDirectory()) throw new InputError(`output path ${dir} exists and is not a folder`);
-    const p = runPaths(dir);
-    const taken = [p.summary, p.timeseries, p.config, p.checkpoint].some((f) => fs.existsSync(f));
-    if (taken && !force) {
-      throw new InputError(`output folder ${dir} already holds a run; pass --force to overwrite its files, or set output.dir`);
-    }
-    if (force) {
-      // remove only what psibox itself writes, never other files
-      for (const f of [p.summary, p.timeseries, p.checkpoint, p.log, p.clocks, p.power]) fs.rmSync(f, { force: true });
-      if (fs.existsSync(p.snapshots)) {
-        for (const name of fs.readdirSync(p.snapshots)) if (/^snap_\d{5}\.h5$/.test(name)) fs.rmSync(path.join(p.snapshots, name));
-      }
-    }
-  }
-  fs.mkdirSync(dir, { recursive: true });
+  takeRunFolder(dir, { force }).lock.release();
 }
