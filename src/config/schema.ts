@@ -180,6 +180,8 @@ export const integratorSchema = z.strictObject({
   safety: z.number().default(0.25),
   /** A fixed step instead of the phase rules, e.g. "0.1 Myr". */
   fixed_step: quantity.optional(),
+  /** Run a fixed step even when its phase per step is more than 10 times the phase rules' limit (a warning instead of a refusal). @default false */
+  allow_large_fixed_step: z.boolean().default(false),
   /** Largest step in ln a (expanding runs). @default 0.01 */
   max_dln_a: z.number().default(0.01),
   /** Largest relative mass drift before the run stops. @default 1e-8 */

@@ -73,8 +73,29 @@ export function sidecarPlugin(settings: SidecarSettings): RunPlugin {
       return { clocks: record.clocks };
     },
     save: () => running().save(),
+    checkState: (state) => (isSidecarState(state) ? undefined : "is not a sidecar state psibox wrote (rates and clocks with finite values)"),
     restore(state) {
       saved = state as Parameters<SidecarTracker["restore"]>[0];
     },
   };
+}
+
+const CLOCK_NAMES = new Set(["squeezing-onset", "squeezing-level", "phase-diffusion", "classical-breakdown"]);
+
+function finiteFields(v: unknown, keys: readonly string[]): boolean {
+  return typeof v === "object" && v !== null && keys.every((k) => Number.isFinite((v as Record<string, unknown>)[k]));
+}
+
+/** Is `saved` a state as the tracker saves it (rates and the clocks' running state, all finite)? */
+export function isSidecarState(saved: unknown): boolean {
+  try {
+    const s = saved as { rates?: unknown; clocks?: unknown };
+    const rateKeys = ["omegaTilde", "chiTilde", "lambda"];
+    if (!finiteFields(s?.rates, rateKeys) || typeof s.clocks !== "string") return false;
+    const c = JSON.parse(s.clocks) as { rates?: unknown; rung?: unknown };
+    if (!finiteFields(c, ["t", "theta", "chi", "b"]) || !finiteFields(c.rates, rateKeys) || !Array.isArray(c.rung)) return false;
+    return c.rung.every((r) => Array.isArray(r) && r.length === 2 && CLOCK_NAMES.has(r[0] as string) && Number.isFinite(r[1]));
+  } catch {
+    return false;
+  }
 }

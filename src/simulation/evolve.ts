@@ -61,6 +61,8 @@ export interface EvolveHooks {
   readonly onStep?: (stepper: SplitStepper, info: StepInfo) => void;
   /** Checked before each step; return a reason to stop early (e.g. an interrupt). */
   readonly stopRequested?: () => string | undefined;
+  /** Checked at the start and after each step, before onStep: a reason the field cannot be trusted stops the run (the step is undone). */
+  readonly guard?: (stepper: SplitStepper) => string | undefined;
   /** Formats a code time for messages (default: the bare number). */
   readonly formatTime?: (t: number) => string;
 }
@@ -114,6 +116,8 @@ function* evolveSteps(
   let steps = start?.steps ?? 0;
   const tolerance = 1e-12 * Math.max(1, Math.abs(tEnd));
   const stops = [...(limits.stops ?? []), tEnd].filter((t) => t <= tEnd).sort((a, b) => a - b);
+  const atStart = hooks.guard?.(stepper);
+  if (atStart) return { status: "stopped", reason: `at the start (step ${steps}, t = ${fmt(stepper.time)}): ${atStart}`, steps };
   while (stepper.time < tEnd - tolerance) {
     const target = stops.find((t) => t > stepper.time + tolerance) ?? tEnd;
     const requested = hooks.stopRequested?.();
@@ -125,7 +129,7 @@ function* evolveSteps(
     if (!(dt > 0) || !Number.isFinite(dt)) {
       return {
         status: "stopped",
-        reason: `step ${steps + 1} at t = ${fmt(stepper.time)}: the time-step rules gave Δt = ${dt} (${limiter} limit); the potential is probably non-finite`,
+        reason: `step ${steps + 1} at t = ${fmt(stepper.time)}: the time-step rules gave no usable step (${limiter} limit); the potential is probably non-finite`,
         steps,
       };
     }
@@ -162,6 +166,11 @@ function* evolveSteps(
           "or a grid too coarse for the structures that formed (more grid.cells); the last good state is kept",
         steps: steps - 1,
       };
+    }
+    const broken = hooks.guard?.(stepper);
+    if (broken) {
+      stepper.undo();
+      return { status: "stopped", reason: `step ${steps} at t = ${fmt(t0)} (Δt = ${fmt(dt)}, ${limiter} limit): ${broken}; the last good state is kept`, steps: steps - 1 };
     }
     hooks.onStep?.(stepper, { step: steps, dt, limiter, massDrift: drift, landed });
     yield;

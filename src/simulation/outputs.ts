@@ -37,7 +37,8 @@ export function runPaths(dir: string) {
 export class RunWriter {
   private readonly run: ResolvedRun;
   private readonly scales: OutputScales;
-  private readonly configText: string;
+  /** The resolved config's text, as config.toml holds it. */
+  readonly configText: string;
   private readonly configHash: string;
   readonly paths: ReturnType<typeof runPaths>;
 

@@ -4,6 +4,7 @@
  * declared, merges their parts of summary.json, and keeps their versioned
  * states for checkpoints (JSON text per plug-in: {"version": n, "state": …}).
  */
+import { fileName } from "../core/sanitize.js";
 import { InputError } from "../core/errors.js";
 import type { MeasuredSum, OutputFacts, RunContext, RunPlugin, StartFacts, StepFacts, StopFacts } from "./plugin.js";
 
@@ -85,6 +86,23 @@ export class PluginSet {
   }
 
   /** Restore every plug-in that saves state from a checkpoint's states (`file` names the checkpoint in errors). */
+  /** Check the plug-ins' saved states of a checkpoint before anything is restored or written; throws an InputError naming the file and the state. */
+  check(saved: Readonly<Record<string, string>>, file: string): void {
+    for (const p of this.plugins) {
+      const text = saved[p.name];
+      if (!p.save || text === undefined) continue;
+      let parsed: { version?: unknown; state?: unknown };
+      try {
+        parsed = JSON.parse(text) as { version?: unknown; state?: unknown };
+      } catch {
+        throw new InputError(`${fileName(file)}: state/plugins/${p.name} is not readable JSON; the checkpoint cannot be resumed`);
+      }
+      if (typeof parsed !== "object" || parsed === null || parsed.version !== p.stateVersion) continue; // restore() says which version
+      const reason = p.checkState?.(parsed.state);
+      if (reason) throw new InputError(`${fileName(file)}: state/plugins/${p.name} ${reason}; the checkpoint cannot be resumed`);
+    }
+  }
+
   restore(saved: Readonly<Record<string, string>>, file: string): void {
     for (const p of this.plugins) {
       if (!p.save) continue;

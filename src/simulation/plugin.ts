@@ -122,4 +122,6 @@ export interface RunPlugin {
   save?(): unknown;
   /** Restore what save() returned (of the same stateVersion). */
   restore?(state: unknown): void;
+  /** Why a saved state (of this stateVersion, read from a checkpoint) cannot be restored, or undefined when it can; checked before a resume writes anything. */
+  checkState?(state: unknown): string | undefined;
 }

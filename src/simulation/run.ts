@@ -11,6 +11,9 @@ import { writeFileAtomic } from "../io/atomic.js";
 import { loadHdf5 } from "../io/h5.js";
 import type { ResolvedRun } from "../config/resolve.js";
 import { takeRunFolder } from "./run-folder.js";
+import { ConfigError } from "../core/errors.js";
+import { FIXED_STEP_FACTOR, checkFixedStep, fieldProblem } from "./guards.js";
+import { PluginSet } from "./plugin-set.js";
 import type { SplitStepper } from "../integrators/split-step.js";
 import { evolveAsync, type EvolveResult, type StepInfo } from "./evolve.js";
 import { RunRecorder } from "./recorder.js";
@@ -43,10 +46,14 @@ const SUMMARY_KEYS = ["name", "status", "reason", "steps", "wall_time_s", "time_
 /** Run a resolved config with the given plug-ins; the output folder must exist (see prepareOutputDir). */
 export async function simulate(run: ResolvedRun, options: RunOptions = {}): Promise<RunSummary> {
   await loadHdf5();
-  const session = openSession(run, options);
+  let session = openSession(run, options);
   try {
-    const start = startRun(session);
-    startPlugins(session, start);
+    const first = startRun(session);
+    // a field that is not finite at the start stops the run before its first step, with no plug-in measuring it
+    const startProblem = fieldProblem(session.stepper, session.scales);
+    const start = startProblem ? first : checkStep(session, first);
+    if (startProblem) session = { ...session, plugins: new PluginSet([]) };
+    else startPlugins(session, start);
     const recorder = new RunRecorder(session, start);
     if (!start.resumed) {
       recorder.row(0, 0, "start");
@@ -68,6 +75,21 @@ export async function simulate(run: ResolvedRun, options: RunOptions = {}): Prom
   } finally {
     session.stepper.close();
   }
+}
+
+/** Refuse (or, when insisted on, warn about) a fixed step far beyond the phase rules; returns the start with any warning. */
+function checkStep(session: RunSession, start: RunStart): RunStart {
+  const { run, stepper, scales, reporter, writer } = session;
+  if (start.resumed) return start;
+  const { integrator } = run;
+  const fixed = checkFixedStep(stepper, { safety: integrator.safety, maxDlnA: integrator.maxDlnA, fixedStep: integrator.fixedStep }, scales);
+  if (!fixed || fixed.ratio <= FIXED_STEP_FACTOR) return start;
+  if (!run.config.integrator.allow_large_fixed_step) {
+    throw new ConfigError("integrator.fixed_step", `${fixed.text.replace(/^integrator\.fixed_step = /, "")}; lower it, or set integrator.allow_large_fixed_step = true to run it anyway`);
+  }
+  reporter.warn(fixed.text);
+  writer.log(`warning: ${fixed.text}`);
+  return { ...start, warnings: [...start.warnings, fixed.text] };
 }
 
 /** The sums the plug-ins asked for, of the stepper's current state (`kinetic`: measured in the last drift, or now). */
@@ -120,14 +142,14 @@ async function loop(session: RunSession, start: RunStart, recorder: RunRecorder)
     stepper,
     { safety: integrator.safety, maxDlnA: integrator.maxDlnA, fixedStep: integrator.fixedStep },
     { endTime: run.span.endTime, stops: run.output.snapshotTimes, massTolerance: integrator.massTolerance, maxSteps: integrator.maxSteps },
-    { onStep, beforeEndStep, formatTime: (t) => session.scales.formatTime(t), ...(session.options.stopRequested ? { stopRequested: session.options.stopRequested } : {}) },
+    { onStep, beforeEndStep, guard: (s) => fieldProblem(s, session.scales), formatTime: (t) => session.scales.formatTime(t), ...(session.options.stopRequested ? { stopRequested: session.options.stopRequested } : {}) },
     { steps: start.steps, mass0: start.mass0 },
   );
   if (result.status === "stopped") {
     if (result.steps > lastRecorded) recorder.row(result.steps, 0, "stop");
     writer.log(`stopped: ${result.reason}`);
     recorder.checkpoint(result.steps);
-    recorder.snapshot(result.steps);
+    if (start.resumed || result.steps > 0) recorder.snapshot(result.steps);
   } else {
     writer.log(`completed after ${result.steps} steps`);
   }

@@ -18,6 +18,7 @@ import { resolvedConfigToml, sha256 } from "../config/serialize.js";
 import { OutputScales } from "./scales.js";
 import { RunWriter, runPaths } from "./outputs.js";
 import { PluginSet } from "./plugin-set.js";
+import { verifyCheckpoint } from "./resume-check.js";
 import type { RunContext, RunPlugin } from "./plugin.js";
 
 /** Where a run reports what it is doing. */
@@ -109,7 +110,10 @@ export interface RunStart {
 export function startRun(session: RunSession): RunStart {
   const { run, stepper, writer, scales, paths } = session;
   if (session.options.resume) {
-    const resumed = readSnapshot(paths.checkpoint, true).state as CheckpointState;
+    const saved = readSnapshot(paths.checkpoint, true);
+    const resumed = saved.state as CheckpointState;
+    verifyCheckpoint(paths.checkpoint, saved.meta, resumed, { configText: writer.configText, cells: run.grid.cells, startTime: run.span.startTime, endTime: run.span.endTime, scales });
+    session.plugins.check(resumed.plugins ?? {}, paths.checkpoint);
     stepper.restoreState(resumed.psiCode, resumed.phiCode, resumed.timeCode, resumed.massCode, resumed.owedKickCode ?? 0);
     writer.log(`resumed from the checkpoint at step ${resumed.steps}, t = ${scales.formatTime(resumed.timeCode)}`);
     session.plugins.restore(resumed.plugins ?? {}, paths.checkpoint);
