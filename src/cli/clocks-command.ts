@@ -11,10 +11,11 @@ import { loadHdf5 } from "../io/h5.js";
 import { readSnapshot } from "../io/snapshot.js";
 import { writeFileAtomic } from "../io/atomic.js";
 import { recordIfInside } from "../simulation/run-manifest.js";
+import { fileName, quoteValue } from "../core/sanitize.js";
 import { loadField } from "../simulation/from-snapshot.js";
 import { modeCoefficients, type ModeRegion } from "../quantum/mode.js";
 import { ClockAccumulator, formatDuration } from "../quantum/clocks.js";
-import { parseAs, unitInSI, UnitSyntaxError } from "../physics/units.js";
+import { parseAs, parseUnit, UnitSyntaxError } from "../physics/units.js";
 import { PLANCK_AGE_S } from "../quantum/sidecar-report.js";
 import { formatClocks } from "./run-command.js";
 import { formatNumber, formatQuantity } from "../core/format.js";
@@ -95,7 +96,7 @@ export async function clocksCommand(paths: readonly string[], flags: ClocksFlags
     const region = regionOf(flags, field);
     const m = modeCoefficients({ grid, psi: field.psi, scaleFactor: field.scaleFactor, particleMass: units.particleMassKg / units.massKg, gravity: field.gravity, region });
     if (!(m.particles >= 1)) throw new InputError(`${file}: the mode holds N = ${m.particles.toPrecision(3)} particles (< 1); choose a larger region`);
-    const tS = snap.meta.time * unitInSI(snap.meta.timeUnit);
+    const tS = snap.meta.time * snapshotTimeUnit(file, snap.meta.timeUnit);
     const toS = 1 / units.timeS;
     // χ_ad = (1/ħ) dμ/dN = 2μ/(ħN) for a stationary state (μ ∝ N² by the scaling symmetry), μ/ħ = (K + 2W)/M = ω + Nχ
     const chiAd = stationaryAdiabaticChi(m) * toS;
@@ -196,4 +197,17 @@ function writeClockFiles(
 /** Where the clock files go: --out, else the one folder given, else the working folder. */
 function clocksOutDir(paths: readonly string[], flags: ClocksFlags): string {
   return path.resolve(flags.out ?? (paths.length === 1 && fs.statSync(paths[0] as string).isDirectory() ? (paths[0] as string) : "."));
+}
+
+/** Seconds per unit of a snapshot's time_units attribute; an unknown unit is an InputError naming the file. */
+function snapshotTimeUnit(file: string, unit: string): number {
+  let seconds: number;
+  try {
+    const q = parseUnit(unit);
+    seconds = q.dim.T === 1 && q.dim.L === 0 && q.dim.M === 0 ? q.si : NaN;
+  } catch {
+    seconds = NaN;
+  }
+  if (!(seconds > 0) || !Number.isFinite(seconds)) throw new InputError(`${fileName(file)}: attribute "time_units" is ${quoteValue(unit)}, not a time unit psibox knows (s, yr, kyr, Myr, Gyr, ...)`);
+  return seconds;
 }

@@ -8,6 +8,7 @@ import path from "node:path";
 import { InputError, ConfigError } from "../core/errors.js";
 import { Dataset, hdf5Reason, loadHdf5, openHdf5 } from "../io/h5.js";
 import { readNpyComplex, type ComplexArray } from "../io/npy.js";
+import { fileName } from "../core/sanitize.js";
 import { writeSnapshot, type SnapshotBackground } from "../io/snapshot.js";
 import { sha256 } from "../config/serialize.js";
 import { parseAs, parseUnit, QUANTITY_KINDS, UnitSyntaxError, type QuantityKind } from "../physics/units.js";
@@ -164,10 +165,10 @@ export async function importCommand(source: string, flags: ImportFlags): Promise
       ? `\n[background]\nkind = "lcdm"\nhubble = ${JSON.stringify(flags.hubble)}\nomega_matter = ${background.omegaMatter}\n`
       : `\n[background]\nkind = "static"\n`);
   const out = path.resolve(flags.out);
-  if (!flags.force && fs.existsSync(out)) throw new InputError(`${flags.out} exists; pass --force to overwrite it`);
+  if (!flags.force && fs.existsSync(out)) throw new InputError(`${fileName(flags.out)} exists; pass --force to overwrite it`);
   const folder = path.dirname(out);
   if (!fs.existsSync(folder) || !fs.statSync(folder).isDirectory()) {
-    throw new InputError(`--out: the folder of ${flags.out} does not exist; create it first or give a path in an existing folder`);
+    throw new InputError(`--out: the folder of ${fileName(flags.out)} does not exist; create it first or give a path in an existing folder`);
   }
   writeSnapshot(out, {
     meta: {

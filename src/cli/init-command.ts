@@ -3,6 +3,7 @@ import fs from "node:fs";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
 import { InputError } from "../core/errors.js";
+import { fileName } from "../core/sanitize.js";
 
 /** The folder of shipped templates (configs/ in the package). */
 export function templateDir(): string {
@@ -26,6 +27,7 @@ export function initTemplate(name: string, dir: string, force: boolean): string 
   const templates = listTemplates();
   const t = templates.find((x) => x.name === name);
   if (!t) throw new InputError(`unknown template "${name}"; choose one of: ${templates.map((x) => x.name).join(", ")}`);
+  if (fs.existsSync(dir) && !fs.statSync(dir).isDirectory()) throw new InputError(`${fileName(dir)} exists and is not a folder; psibox init TEMPLATE [DIR] writes DIR/TEMPLATE.toml`);
   fs.mkdirSync(dir, { recursive: true });
   const target = path.join(dir, `${name}.toml`);
   if (fs.existsSync(target) && !force) throw new InputError(`${target} exists; pass --force to overwrite it`);

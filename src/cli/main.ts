@@ -7,6 +7,8 @@
  */
 import { Command, CommanderError } from "commander";
 import { PsiboxError } from "../core/errors.js";
+import { oneLine } from "../core/sanitize.js";
+import { systemErrorMessage } from "../core/system-errors.js";
 import { VERSION } from "../version.js";
 import { addCommand } from "./options.js";
 import { COMMANDS } from "./commands/index.js";
@@ -38,12 +40,18 @@ export async function main(argv: readonly string[]): Promise<number> {
 
 function reportError(e: unknown, debug: boolean): number {
   if (e instanceof PsiboxError) {
-    process.stderr.write(`psibox: ${e.message}\n`);
+    process.stderr.write(`psibox: ${oneLine(e.message)}\n`);
     if (debug && e.stack) process.stderr.write(e.stack + "\n");
     return e.exitCode;
   }
+  const system = systemErrorMessage(e);
+  if (system) {
+    process.stderr.write(`psibox: ${oneLine(system)}\n`);
+    if (debug && (e as Error).stack) process.stderr.write((e as Error).stack + "\n");
+    return 2;
+  }
   const err = e as Error;
-  process.stderr.write(`psibox: unexpected error: ${(err?.message ?? String(e)).split("\n")[0]}\n`);
+  process.stderr.write(`psibox: unexpected error: ${oneLine((err?.message ?? String(e)).split("\n")[0] ?? "")}\n`);
   if (debug && err?.stack) process.stderr.write(err.stack + "\n");
   else process.stderr.write("(run again with --debug for the stack trace)\n");
   return 1;

@@ -8,6 +8,23 @@ import { parse as parseToml } from "smol-toml";
 import type { z } from "zod";
 import { ConfigError, InputError } from "../core/errors.js";
 import { userConfigSchema, type CheckedConfig } from "./schema.js";
+import { fileName, quoteValue, shorten } from "../core/sanitize.js";
+
+/** Deepest nesting of tables and lists a config may have (psibox's own configs use at most 4). */
+export const MAX_DEPTH = 16;
+
+/** Refuse values nested deeper than MAX_DEPTH (checked without recursion, so any depth is safe to check). */
+export function checkDepth(value: unknown, origin: string): void {
+  const stack: [unknown, number, string][] = [[value, 0, ""]];
+  while (stack.length > 0) {
+    const [node, depth, key] = stack.pop()!;
+    if (typeof node !== "object" || node === null) continue;
+    if (depth > MAX_DEPTH) {
+      throw new ConfigError(shorten(key), `${origin} nests tables or lists more than ${MAX_DEPTH} levels deep; a psibox config needs at most 4`);
+    }
+    for (const [k, v] of Object.entries(node)) stack.push([v, depth + 1, key === "" ? k : `${key}.${k}`]);
+  }
+}
 
 type Table = Record<string, unknown>;
 
@@ -18,9 +35,11 @@ export function readTomlFile(file: string): Table {
     text = fs.readFileSync(file, "utf8");
   } catch (e) {
     const code = (e as NodeJS.ErrnoException).code;
-    throw new InputError(`cannot read config file ${file}${code === "ENOENT" ? ": no such file" : `: ${code ?? (e as Error).message}`}`);
+    throw new InputError(`cannot read config file ${fileName(file)}${code === "ENOENT" ? ": no such file" : `: ${code ?? (e as Error).message}`}`);
   }
-  return parseTomlText(text, file);
+  const table = parseTomlText(text, fileName(file));
+  checkDepth(table, fileName(file));
+  return table;
 }
 
 /** Parse TOML text; `origin` names the source in messages. */
@@ -29,7 +48,7 @@ export function parseTomlText(text: string, origin: string): Table {
     return parseToml(text) as Table;
   } catch (e) {
     const err = e as Error & { line?: number; column?: number };
-    const firstLine = err.message.split("\n")[0] ?? "invalid TOML";
+    const firstLine = shorten(err.message.split("\n")[0] ?? "invalid TOML", 120);
     const where = err.line !== undefined ? ` at line ${err.line}, column ${err.column ?? 0}` : "";
     throw new ConfigError("", `${origin}: not valid TOML${where} (${firstLine.replace(/^Invalid TOML document: /, "")})`);
   }
@@ -44,29 +63,32 @@ export function applyOverrides(config: Table, overrides: readonly string[]): Tab
   const out = structuredClone(config);
   for (const item of overrides) {
     const eq = item.indexOf("=");
-    if (eq <= 0) throw new ConfigError("--set", `"${item}" is not of the form section.key=value`);
+    if (eq <= 0) throw new ConfigError("--set", `"${shorten(item)}" is not of the form section.key=value`);
     const path = item.slice(0, eq).trim().split(".");
     if (path.some((p) => !/^[A-Za-z_][A-Za-z0-9_]*$/.test(p))) {
-      throw new ConfigError("--set", `"${item.slice(0, eq)}" is not a dotted key such as grid.cells`);
+      throw new ConfigError("--set", `"${shorten(item.slice(0, eq))}" is not a dotted key such as grid.cells`);
     }
     const raw = item.slice(eq + 1).trim();
     let value: unknown;
     try {
       value = (parseToml(`v = ${raw}`) as Table)["v"];
     } catch {
-      value = raw;
+      // not a TOML value: the text itself (without the quotes of a string TOML could not read)
+      value = raw.length >= 2 && raw.startsWith('"') && raw.endsWith('"') ? raw.slice(1, -1) : raw;
     }
+    checkDepth(value, `--set ${shorten(path.join("."))}`);
     let node: Table = out;
     for (const part of path.slice(0, -1)) {
       const next = node[part];
       if (next === undefined) node[part] = {};
       else if (typeof next !== "object" || next === null || Array.isArray(next)) {
-        throw new ConfigError(path.join("."), `cannot set a key inside "${part}", which is not a section`);
+        throw new ConfigError(shorten(path.join(".")), `cannot set a key inside "${shorten(part)}", which is not a section`);
       }
       node = node[part] as Table;
     }
     node[path.at(-1) as string] = value;
   }
+  checkDepth(out, "--set");
   return out;
 }
 
@@ -79,13 +101,13 @@ export function checkConfig(raw: unknown): CheckedConfig {
 
 function issueToError(issue: z.core.$ZodIssue, raw: unknown): ConfigError {
   const path = issue.path.map(String);
-  const key = issue.path.map((p, i) => (typeof p === "number" ? `[${p}]` : `${i > 0 ? "." : ""}${String(p)}`)).join("");
+  const key = shorten(issue.path.map((p, i) => (typeof p === "number" ? `[${p}]` : `${i > 0 ? "." : ""}${String(p)}`)).join(""));
   switch (issue.code) {
     case "unrecognized_keys": {
       const section = key === "" ? "" : `${key}.`;
       const valid = validKeys(path, raw);
       return new ConfigError(
-        `${section}${issue.keys[0]}`,
+        shorten(`${section}${issue.keys[0]}`),
         `unknown key${valid ? `; valid keys here: ${valid}` : ""}`,
       );
     }
@@ -98,10 +120,10 @@ function issueToError(issue: z.core.$ZodIssue, raw: unknown): ConfigError {
     case "invalid_type": {
       const got = lookup(raw, path);
       if (got === undefined) return new ConfigError(key, `missing; expected ${describeExpected(issue.expected)}`);
-      return new ConfigError(key, `expected ${describeExpected(issue.expected)}, got ${JSON.stringify(got)}`);
+      return new ConfigError(key, `expected ${describeExpected(issue.expected)}, got ${quoteValue(got)}`);
     }
     case "invalid_value":
-      return new ConfigError(key, `must be one of ${issue.values.map((v) => JSON.stringify(v)).join(", ")}`);
+      return new ConfigError(key, `must be one of ${issue.values.map((v) => quoteValue(v)).join(", ")}`);
     case "too_small":
     case "too_big": {
       const bound = Number((issue as unknown as { minimum?: number; maximum?: number }).minimum ?? (issue as unknown as { maximum?: number }).maximum);

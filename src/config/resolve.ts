@@ -6,7 +6,7 @@
 import path from "node:path";
 import { ConfigError } from "../core/errors.js";
 import { CodeUnits, type UnitContext } from "../physics/units.js";
-import { Grid } from "../grid/grid.js";
+import { Grid, checkIsolatedGrid } from "../grid/grid.js";
 import type { GravityKind, PoissonKernel } from "../fields/poisson.js";
 import type { CheckedConfig } from "./schema.js";
 
@@ -84,6 +84,7 @@ export function resolveRun(config: CheckedConfig, name: string, cwd: string): Re
   const units = new CodeUnits(m, boxSI[0] as number);
   const lengths = boxSI.map((l) => l / units.lengthM);
   new Grid(cells, lengths); // validates the cell counts (powers of two) with errors naming grid.cells
+  if (config.grid.gravity === "isolated") checkIsolatedGrid(cells);
   const { background, startTime, endTime } = resolveBackgroundAndSpan(config, units, ctx, hubbleSI);
   const initial = resolveInitial(config, dims, lengths, units, ctx, background);
   const integrator = resolveIntegrator(config, cells.reduce((p, n) => p * n, 1), units, ctx);

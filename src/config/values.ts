@@ -14,7 +14,8 @@ export function read(key: string, text: string, kind: QuantityKind, ctx: UnitCon
 
 /** Check that a value is positive and finite. */
 export function positive(key: string, value: number, what = "positive"): number {
-  if (!(value > 0) || !Number.isFinite(value)) throw new ConfigError(key, `must be ${what}, got ${value}`);
+  // the value may be in code units: say what is wrong with it, never the number itself
+  if (!(value > 0) || !Number.isFinite(value)) throw new ConfigError(key, `must be ${what}, got ${value < 0 ? "a negative value" : value === 0 ? "zero" : "a value that is not a finite number"}`);
   return value;
 }
 

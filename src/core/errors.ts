@@ -58,3 +58,13 @@ export class ThreadError extends PsiboxError {
     this.name = "ThreadError";
   }
 }
+
+/** A file could not be written (full disk, quota, size limit, permissions). Exit code 2; a run turns it into a stop (exit 3). */
+export class WriteError extends PsiboxError {
+  readonly file: string;
+  constructor(file: string, message: string) {
+    super("io", message, 2);
+    this.name = "WriteError";
+    this.file = file;
+  }
+}

@@ -66,7 +66,7 @@ export class Grid {
       throw new ConfigError("grid.cells", `${cells.join("×")} is ${total} cells, more than the ${MAX_TOTAL_CELLS} (512³) psibox holds in memory`);
     }
     for (const l of lengths) {
-      if (!(l > 0) || !Number.isFinite(l)) throw new ConfigError("grid.box", `side lengths must be positive, got ${l}`);
+      if (!(l > 0) || !Number.isFinite(l)) throw new ConfigError("grid.box", "side lengths must be positive and finite");
     }
     this.dims = cells.length;
     this.cells = [...cells];
@@ -131,4 +131,22 @@ function angularWavenumbers(n: number, length: number): Float64Array {
     k[j] = (2 * Math.PI * m) / length;
   }
   return k;
+}
+
+/**
+ * Isolated gravity solves on a grid doubled along every axis (zero padding):
+ * refuse, in the user's own numbers, a grid whose doubled solve exceeds the limits.
+ */
+export function checkIsolatedGrid(cells: readonly number[]): void {
+  const axisMax = MAX_CELLS / 2;
+  const totalMax = MAX_TOTAL_CELLS / 2 ** cells.length;
+  const total = cells.reduce((p, n) => p * n, 1);
+  if (cells.some((n) => n > axisMax) || total > totalMax) {
+    const side = Math.min(axisMax, 2 ** Math.floor(Math.log2(totalMax) / cells.length));
+    const example = Array<number>(cells.length).fill(side).join("×");
+    throw new ConfigError(
+      "grid.cells",
+      `${cells.join("×")} is too large for isolated gravity, whose zero-padded solve doubles every axis: use at most ${axisMax} cells per axis and ${totalMax} in all (e.g. ${example}), or periodic gravity`,
+    );
+  }
 }

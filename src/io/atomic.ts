@@ -5,6 +5,7 @@
  */
 import fs from "node:fs";
 import path from "node:path";
+import { writeFailure } from "./write-failure.js";
 
 /** fsync a file or folder by path. */
 export function fsyncPath(p: string): void {
@@ -58,7 +59,7 @@ export function writeFileAtomic(file: string, data: string | Uint8Array): void {
     } catch {
       /* nothing left to clean */
     }
-    throw e;
+    throw writeFailure(file, e);
   }
   fsyncFolder(dir);
 }

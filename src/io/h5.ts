@@ -9,6 +9,7 @@ import path from "node:path";
 import { fsyncFolder, fsyncPath, temporaryPathFor } from "./atomic.js";
 import h5wasm, { Dataset, Group, type File as H5File, type FileOptions } from "h5wasm/node";
 import { InputError } from "../core/errors.js";
+import { writeFailure } from "./write-failure.js";
 
 export type { H5File };
 export { Dataset, Group };
@@ -64,7 +65,7 @@ export function writeHdf5Atomic(finalPath: string, fill: (file: H5File) => void,
     } catch {
       /* nothing to clean */
     }
-    throw e;
+    throw writeFailure(finalPath, e, hdf5Reason(e));
   }
 }
 

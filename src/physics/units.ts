@@ -8,6 +8,7 @@
  * mass units (eV, meV, ...) mean eV/c². The symbol `h` is the dimensionless
  * Hubble parameter H0 / (100 km/s/Mpc) and needs a cosmology.
  */
+import { shorten } from "../core/sanitize.js";
 import { AU_M, KG_PER_EV, M_SUN_KG, MPC_M, PC_M, YEAR_S, G_SI, HBAR_J_S } from "./constants.js";
 
 /** Powers of length, mass and time. */
@@ -104,40 +105,40 @@ export function parseUnit(expr: string, ctx: UnitContext = {}): Quantity {
   let divide = false;
   for (const token of tokens) {
     if (token === "/") {
-      if (divide) throw new UnitSyntaxError(`"${expr}" has two '/' in a row`);
+      if (divide) throw new UnitSyntaxError(`"${shorten(expr)}" has two '/' in a row`);
       divide = true;
       continue;
     }
     const m = /^([A-Za-zµ]+|1)(?:\^(-?\d+))?$/.exec(token);
-    if (!m) throw new UnitSyntaxError(`cannot read unit "${token}" in "${expr}"`);
+    if (!m) throw new UnitSyntaxError(`cannot read unit "${shorten(token)}" in "${shorten(expr)}"`);
     const symbol = m[1] as string;
     const power = (m[2] === undefined ? 1 : Number(m[2])) * (divide ? -1 : 1);
     divide = false;
     if (symbol === "1") continue;
     if (symbol === "h") {
       if (ctx.littleH === undefined) {
-        throw new UnitSyntaxError(`unit "h" in "${expr}" needs a cosmology (background.kind = "lcdm")`);
+        throw new UnitSyntaxError(`unit "h" in "${shorten(expr)}" needs a cosmology (background.kind = "lcdm")`);
       }
       si *= Math.pow(ctx.littleH, power);
       continue;
     }
     const def = UNITS[symbol];
-    if (!def) throw new UnitSyntaxError(`unknown unit "${symbol}" in "${expr}"`);
+    if (!def) throw new UnitSyntaxError(`unknown unit "${shorten(symbol)}" in "${shorten(expr)}"`);
     si *= Math.pow(def.si, power);
     L += def.dim.L * power;
     M += def.dim.M * power;
     T += def.dim.T * power;
   }
-  if (divide) throw new UnitSyntaxError(`"${expr}" ends with '/'`);
+  if (divide) throw new UnitSyntaxError(`"${shorten(expr)}" ends with '/'`);
   return { si, dim: { L, M, T } };
 }
 
 /** Parse "number unit" text into a quantity (the unit may be empty only for a dimensionless number). */
 export function parseQuantity(text: string, ctx: UnitContext = {}): Quantity {
-  const m = /^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*)$/.exec(text);
-  if (!m) throw new UnitSyntaxError(`"${text}" does not start with a number`);
+  const m = /^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*)$/s.exec(text);
+  if (!m) throw new UnitSyntaxError(`"${shorten(text)}" does not start with a number`);
   const value = Number(m[1]);
-  if (!Number.isFinite(value)) throw new UnitSyntaxError(`"${text}" is not a finite number`);
+  if (!Number.isFinite(value)) throw new UnitSyntaxError(`"${shorten(text)}" is not a finite number`);
   const unit = parseUnit(m[2] ?? "", ctx);
   return { si: value * unit.si, dim: unit.dim };
 }
@@ -155,7 +156,7 @@ export function parseAs(text: string, kind: QuantityKind, ctx: UnitContext = {})
     throw new UnitSyntaxError(`${(e as Error).message}; expected a ${kind} such as ${spec.examples}`);
   }
   if (!sameDim(q.dim, spec.dim)) {
-    throw new UnitSyntaxError(`"${text}" is not a ${kind}; use ${spec.examples}`);
+    throw new UnitSyntaxError(`"${shorten(text)}" is not a ${kind}; use ${spec.examples}`);
   }
   return q.si;
 }

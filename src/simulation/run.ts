@@ -6,6 +6,7 @@
  * the ones given: the application layer (app/run.ts) adds the built-in ones
  * a config asks for.
  */
+import fs from "node:fs";
 import { formatNumber } from "../core/format.js";
 import { writeFileAtomic } from "../io/atomic.js";
 import { loadHdf5 } from "../io/h5.js";
@@ -14,6 +15,7 @@ import { takeRunFolder } from "./run-folder.js";
 import { ConfigError } from "../core/errors.js";
 import { FIXED_STEP_FACTOR, checkFixedStep, fieldProblem } from "./guards.js";
 import { PluginSet } from "./plugin-set.js";
+import { writeFailureReason } from "../io/write-failure.js";
 import type { SplitStepper } from "../integrators/split-step.js";
 import { evolveAsync, type EvolveResult, type StepInfo } from "./evolve.js";
 import { RunRecorder } from "./recorder.js";
@@ -64,13 +66,15 @@ export async function simulate(run: ResolvedRun, options: RunOptions = {}): Prom
       session.writer.log("initial conditions written");
       return summaryOf(session, start, { status: "completed", steps: 0 }, 1, {});
     }
-    const result = await loop(session, start, recorder);
-    recorder.close();
+    const { result, failedWrite } = await loop(session, start, recorder);
+    // after a failed write (a full disk) each further write is attempted, and what cannot be written is left out
+    const write = <T>(what: () => T, otherwise: T): T => (failedWrite ? attemptWrite(what, otherwise) : what());
+    write(() => recorder.close(), undefined);
     session.reporter.endPhase();
     const a = session.background.scaleFactor(session.stepper.time);
-    const parts = session.plugins.stop({ status: result.status, steps: result.steps, t: session.stepper.time, a }, SUMMARY_KEYS);
+    const parts = write(() => session.plugins.stop({ status: result.status, steps: result.steps, t: session.stepper.time, a }, SUMMARY_KEYS), {});
     const summary = summaryOf(session, start, result, recorder.snapshotsWritten, parts);
-    writeFileAtomic(session.paths.summary, JSON.stringify(summary, null, 2) + "\n");
+    write(() => writeFileAtomic(session.paths.summary, JSON.stringify(summary, null, 2) + "\n"), undefined);
     return summary;
   } finally {
     session.stepper.close();
@@ -109,13 +113,25 @@ function startPlugins(session: RunSession, start: RunStart): void {
 }
 
 /** Advance to the end: plug-ins, rows, snapshots, checkpoints and progress after every step. */
-async function loop(session: RunSession, start: RunStart, recorder: RunRecorder): Promise<EvolveResult> {
+/** `what()`, or `otherwise` when it fails to write a file. */
+function attemptWrite<T>(what: () => T, otherwise: T): T {
+  try {
+    return what();
+  } catch (e) {
+    if (!writeFailureReason(e)) throw e;
+    return otherwise;
+  }
+}
+
+async function loop(session: RunSession, start: RunStart, recorder: RunRecorder): Promise<{ result: EvolveResult; failedWrite: boolean }> {
   const { run, stepper, writer, reporter } = session;
   const snapshotTimes = new Set(run.output.snapshotTimes);
   let lastRecorded = start.steps;
   const progress = progressReporter(session);
   reporter.phase(start.resumed ? `evolving (resumed at step ${start.steps})` : "evolving");
+  let current = start.steps;
   const onStep = (s: SplitStepper, info: StepInfo): void => {
+    current = info.step;
     const t = s.time;
     const facts = { step: info.step, t, dt: info.dt, a: session.background.scaleFactor(t), drift: s.lastDrift, kick: s.lastKick };
     session.plugins.afterStep({ ...facts, sums: measuredSums(session, false) });
@@ -138,13 +154,24 @@ async function loop(session: RunSession, start: RunStart, recorder: RunRecorder)
     extensionPoint = true;
   };
   const { integrator } = run;
-  const result = await evolveAsync(
-    stepper,
-    { safety: integrator.safety, maxDlnA: integrator.maxDlnA, fixedStep: integrator.fixedStep },
-    { endTime: run.span.endTime, stops: run.output.snapshotTimes, massTolerance: integrator.massTolerance, maxSteps: integrator.maxSteps },
-    { onStep, beforeEndStep, guard: (s) => fieldProblem(s, session.scales), formatTime: (t) => session.scales.formatTime(t), ...(session.options.stopRequested ? { stopRequested: session.options.stopRequested } : {}) },
-    { steps: start.steps, mass0: start.mass0 },
-  );
+  let result: EvolveResult;
+  try {
+    result = await evolveAsync(
+      stepper,
+      { safety: integrator.safety, maxDlnA: integrator.maxDlnA, fixedStep: integrator.fixedStep },
+      { endTime: run.span.endTime, stops: run.output.snapshotTimes, massTolerance: integrator.massTolerance, maxSteps: integrator.maxSteps },
+      { onStep, beforeEndStep, guard: (s) => fieldProblem(s, session.scales), formatTime: (t) => session.scales.formatTime(t), ...(session.options.stopRequested ? { stopRequested: session.options.stopRequested } : {}) },
+      { steps: start.steps, mass0: start.mass0 },
+    );
+  } catch (e) {
+    // a full disk (or another write failure) stops the run; the last checkpoint, written atomically, stays intact
+    const why = writeFailureReason(e);
+    if (!why) throw e;
+    const next = fs.existsSync(session.paths.checkpoint) ? "the last checkpoint is intact: free space, then continue with psibox run --resume" : "no checkpoint was written yet: free space and run again";
+    const reason = `after step ${current}: ${why}; ${next}`;
+    attemptWrite(() => writer.log(`stopped: ${reason}`), undefined);
+    return { result: { status: "stopped", reason, steps: current }, failedWrite: true };
+  }
   if (result.status === "stopped") {
     if (result.steps > lastRecorded) recorder.row(result.steps, 0, "stop");
     writer.log(`stopped: ${result.reason}`);
@@ -153,7 +180,7 @@ async function loop(session: RunSession, start: RunStart, recorder: RunRecorder)
   } else {
     writer.log(`completed after ${result.steps} steps`);
   }
-  return result;
+  return { result, failedWrite: false };
 }
 
 /** Progress at most every 200 ms (and at the end): the fraction of the span in t, or in ln a. */

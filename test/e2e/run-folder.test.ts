@@ -14,6 +14,7 @@ beforeAll(() => {
   work = fs.mkdtempSync(path.join(os.tmpdir(), "psibox-folder-"));
   fs.writeFileSync(path.join(work, "p.toml"), CONFIG("20 Myr"));
   fs.writeFileSync(path.join(work, "long.toml"), CONFIG("400 Myr").replace("snapshot_every = 200", "checkpoint_every = 100000"));
+  fs.writeFileSync(path.join(work, "endless.toml"), CONFIG("1000 Gyr").replace("snapshot_every = 200", "checkpoint_every = 100000"));
 });
 afterAll(() => fs.rmSync(work, { recursive: true, force: true }));
 
@@ -117,16 +118,19 @@ describe("run folders", () => {
     expect(fs.existsSync(path.join(work, "race/.psibox-lock"))).toBe(false);
   });
 
-  it("refuses run --force while another run writes the folder; the writer completes", async () => {
-    const a = start(["run", "long.toml", "-q", "--set", "output.dir=busy"]);
+  it("refuses run --force while another run writes the folder; the writer goes on undisturbed", async () => {
+    // the writer runs until it is told to stop (SIGTERM: it ends after its current step with a checkpoint)
+    const a = start(["run", "endless.toml", "-q", "--set", "output.dir=busy"]);
     const lock = path.join(work, "busy/.psibox-lock");
     while (!fs.existsSync(lock)) await new Promise((r) => setTimeout(r, 20));
-    const b = psibox(["run", "long.toml", "-q", "--set", "output.dir=busy", "--force"]);
+    const b = psibox(["run", "endless.toml", "-q", "--set", "output.dir=busy", "--force"]);
     expect(b.code).toBe(2);
     expect(b.stderr).toMatch(new RegExp(`^psibox: run folder .*busy is in use by psibox process ${a.child.pid} `));
+    a.child.kill("SIGTERM");
     const ra = await a.done;
-    expect(ra.code, ra.stderr).toBe(0);
-    expect(JSON.parse(read("busy/summary.json")).status).toBe("completed");
+    expect(ra.code, ra.stderr).toBe(130);
+    expect(JSON.parse(read("busy/summary.json"))).toMatchObject({ status: "stopped", reason: "interrupted (SIGTERM)" });
+    expect(fs.existsSync(path.join(work, "busy/checkpoint.h5"))).toBe(true);
   });
 
   it("cleans a stale lock of a dead process with a message; reports a lock of another host", () => {
