@@ -3,6 +3,7 @@
  * config (the base with the swept keys set) with a stable, readable name and
  * its own folder. Every entry is validated before anything runs.
  */
+import { shorten } from "../core/sanitize.js";
 import path from "node:path";
 import { ConfigError } from "../core/errors.js";
 import { checkConfig } from "../config/load.js";
@@ -41,12 +42,12 @@ function expandRange(key: string, r: { from: number | string; to: number | strin
   const split = (v: number | string, which: string): [number, string] => {
     if (typeof v === "number") return [v, ""];
     const m = NUMBER_UNIT.exec(v);
-    if (!m) throw new ConfigError(`sweep.values."${key}".${which}`, `"${v}" does not start with a number`);
+    if (!m) throw new ConfigError(`sweep.values."${key}".${which}`, `"${shorten(v)}" does not start with a number`);
     return [Number(m[1]), (m[2] ?? "").trim()];
   };
   const [a, ua] = split(r.from, "from");
   const [b, ub] = split(r.to, "to");
-  if (ua !== ub) throw new ConfigError(`sweep.values."${key}".to`, `must use the unit of "from" ("${ua}"), got "${ub}"`);
+  if (ua !== ub) throw new ConfigError(`sweep.values."${key}".to`, `must use the unit of "from" ("${shorten(ua)}"), got "${shorten(ub)}"`);
   if (r.scale === "log" && !(a > 0 && b > 0)) throw new ConfigError(`sweep.values."${key}".from`, "log ranges need positive ends");
   const out: Value[] = [];
   for (let i = 0; i < r.count; i++) {
@@ -64,7 +65,7 @@ function setKey(config: Table, key: string, value: Value): void {
   for (const p of parts.slice(0, -1)) {
     const next = node[p];
     if (next === undefined) node[p] = {};
-    else if (typeof next !== "object" || Array.isArray(next)) throw new ConfigError(`sweep.values."${key}"`, `"${p}" is not a section`);
+    else if (typeof next !== "object" || Array.isArray(next)) throw new ConfigError(`sweep.values."${key}"`, `"${shorten(p)}" is not a section`);
     node = node[p] as Table;
   }
   node[parts.at(-1) as string] = value;

@@ -82,7 +82,7 @@ export async function clocksCommand(paths: readonly string[], flags: ClocksFlags
   const files = snapshotFiles(paths);
   const db = Number(flags.squeezingDb);
   if (!(db < 0)) throw new InputError(`--squeezing-db: must be a negative number of dB, got ${flags.squeezingDb}`);
-  if (!["box", "sphere", "cube", "densest"].includes(flags.region)) throw new InputError(`--region: must be box, sphere, cube or densest, got "${flags.region}"`);
+  if (!["box", "sphere", "cube", "densest"].includes(flags.region)) throw new InputError(`--region: must be box, sphere, cube or densest, got ${quoteValue(flags.region)}`);
   const rows: (string | number)[][] = [];
   let acc: ClockAccumulator | undefined;
   let t0S = 0;

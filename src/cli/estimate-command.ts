@@ -1,4 +1,5 @@
 /** `psibox estimate`: the sidecar's clocks from a few physical numbers, no simulation. */
+import { shorten } from "../core/sanitize.js";
 import { InputError } from "../core/errors.js";
 import { parseAs, UnitSyntaxError, type QuantityKind } from "../physics/units.js";
 import { estimateClocks } from "../quantum/estimate.js";
@@ -24,7 +25,7 @@ function read(flag: string, text: string | undefined, kind: QuantityKind): numbe
   if (text === undefined) return undefined;
   try {
     const v = parseAs(text, kind);
-    if (!(v > 0)) throw new InputError(`--${flag}: must be positive, got "${text}"`);
+    if (!(v > 0)) throw new InputError(`--${flag}: must be positive, got "${shorten(text)}"`);
     return v;
   } catch (e) {
     if (e instanceof UnitSyntaxError) throw new InputError(`--${flag}: ${e.message}`);

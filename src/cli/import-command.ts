@@ -3,6 +3,7 @@
  * (a NumPy .npy file or an HDF5 dataset) into a psibox snapshot, so the
  * diagnostics and the sidecar can read it.
  */
+import { quoteValue } from "../core/sanitize.js";
 import fs from "node:fs";
 import path from "node:path";
 import { InputError, ConfigError } from "../core/errors.js";
@@ -141,7 +142,7 @@ export async function importCommand(source: string, flags: ImportFlags): Promise
     if (e instanceof ConfigError) throw new InputError(`${source}: field shape ${field.shape.join("×")}: ${e.message.replace(/^grid\.\w+: /, "")}`);
     throw e;
   }
-  if (!["periodic", "isolated", "none"].includes(flags.gravity)) throw new InputError(`--gravity: must be periodic, isolated or none, got "${flags.gravity}"`);
+  if (!["periodic", "isolated", "none"].includes(flags.gravity)) throw new InputError(`--gravity: must be periodic, isolated or none, got ${quoteValue(flags.gravity)}`);
   const densitySI = densityUnitSI(flags.densityUnit, littleH);
   const scale = Math.sqrt(densitySI / (M_SUN_KG / kpc ** 3));
   const psi = Float64Array.from(field.data, (v) => v * scale);

@@ -1,4 +1,5 @@
 /** `psibox init TEMPLATE [DIR]` and `psibox init --list`: starter configs from the shipped templates. */
+import { shorten } from "../core/sanitize.js";
 import fs from "node:fs";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
@@ -26,7 +27,7 @@ export function listTemplates(): { name: string; description: string }[] {
 export function initTemplate(name: string, dir: string, force: boolean): string {
   const templates = listTemplates();
   const t = templates.find((x) => x.name === name);
-  if (!t) throw new InputError(`unknown template "${name}"; choose one of: ${templates.map((x) => x.name).join(", ")}`);
+  if (!t) throw new InputError(`unknown template "${shorten(name)}"; choose one of: ${templates.map((x) => x.name).join(", ")}`);
   if (fs.existsSync(dir) && !fs.statSync(dir).isDirectory()) throw new InputError(`${fileName(dir)} exists and is not a folder; psibox init TEMPLATE [DIR] writes DIR/TEMPLATE.toml`);
   fs.mkdirSync(dir, { recursive: true });
   const target = path.join(dir, `${name}.toml`);

@@ -3,7 +3,7 @@ import os from "node:os";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
 import { InputError } from "../core/errors.js";
-import { escapeControls, shellWord } from "../core/sanitize.js";
+import { escapeControls, shellWord, shorten } from "../core/sanitize.js";
 import { applyOverrides, readTomlFile } from "../config/load.js";
 import { planSweep } from "../batch/plan.js";
 import { runSweep } from "../batch/runner.js";
@@ -36,7 +36,7 @@ export async function sweepCommand(configFile: string | undefined, flags: SweepF
   const plan = planSweep(raw, path.basename(configFile).replace(/\.[^.]*$/, ""), process.cwd());
   const where = escapeControls(path.relative(process.cwd(), plan.dir) || ".");
   if (flags.emit !== undefined) {
-    if (flags.emit !== "slurm") throw new InputError(`--emit: the only target is "slurm", got "${flags.emit}"`);
+    if (flags.emit !== "slurm") throw new InputError(`--emit: the only target is "slurm", got "${shorten(flags.emit)}"`);
     const files = emitSlurm(plan, binPath());
     process.stdout.write(
       `wrote a Slurm array of ${plan.entries.length} tasks: ${escapeControls(path.relative(process.cwd(), files.script))}\n` +

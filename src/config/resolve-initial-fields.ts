@@ -1,4 +1,5 @@
 /** Resolvers of the initial conditions that are fields rather than objects: plane wave, white noise, packet, cosmological. */
+import { shorten } from "../core/sanitize.js";
 import { ConfigError } from "../core/errors.js";
 import { parseUnit } from "../physics/units.js";
 import { KG_PER_EV } from "../physics/constants.js";
@@ -39,7 +40,7 @@ export function resolveCosmological(ic: InitialSection<"cosmological">, scope: I
   }
   if (!(Math.abs(ic.spectral_index - 1) < 0.5)) throw new ConfigError("initial.spectral_index", `must be within 0.5 of 1, got ${ic.spectral_index}`);
   const t = /^\s*([-+]?\d*\.?\d+(?:[eE][-+]?\d+)?)\s*K\s*$/.exec(ic.cmb_temperature);
-  if (!t || !(Number(t[1]) > 0)) throw new ConfigError("initial.cmb_temperature", `"${ic.cmb_temperature}" is not a temperature in kelvin, e.g. "2.7255 K"`);
+  if (!t || !(Number(t[1]) > 0)) throw new ConfigError("initial.cmb_temperature", `"${shorten(ic.cmb_temperature)}" is not a temperature in kelvin, e.g. "2.7255 K"`);
   if (ic.seed < 0) throw new ConfigError("initial.seed", `must be a whole number ≥ 0, got ${ic.seed}`);
   const units = scope.units;
   return {

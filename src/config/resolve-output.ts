@@ -1,6 +1,7 @@
 /** Resolution of [output] and [integrator]: cadences, the output time unit, snapshot times, step rules, threads. */
 import os from "node:os";
 import path from "node:path";
+import { shorten } from "../core/sanitize.js";
 import { ConfigError } from "../core/errors.js";
 import { parseUnit, UnitSyntaxError, type CodeUnits, type UnitContext } from "../physics/units.js";
 import { makeBackground, type BackgroundSpec } from "../physics/cosmology/background.js";
@@ -76,7 +77,7 @@ function timeUnitSeconds(timeUnit: string, ctx: UnitContext): number {
     if (u.dim.L !== 0 || u.dim.M !== 0 || u.dim.T !== 1) throw new UnitSyntaxError("");
     return u.si;
   } catch {
-    throw new ConfigError("output.time_unit", `"${timeUnit}" is not a time unit; use s, yr, kyr, Myr or Gyr`);
+    throw new ConfigError("output.time_unit", `"${shorten(timeUnit)}" is not a time unit; use s, yr, kyr, Myr or Gyr`);
   }
 }
 
