@@ -1,4 +1,5 @@
 #!/usr/bin/env node
-import { main } from "./main.js";
+import { needsReexec, reexec } from "./address-space.js";
 
-process.exitCode = await main(process.argv.slice(2));
+// under an address-space limit, run again with V8's WebAssembly reservations off (see address-space.ts)
+process.exitCode = needsReexec() ? await reexec() : await (await import("./main.js")).main(process.argv.slice(2));
