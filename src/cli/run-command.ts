@@ -48,9 +48,9 @@ export async function runCommand(
   }
   let run: ResolvedRun;
   let owned: OwnedFolder;
+  let extendedConfig: string | undefined;
   if (flags.resume !== undefined && flags.extend !== undefined) {
-    run = (await import("./extend.js")).extendRun(flags.resume, flags.extend);
-    owned = takeRunFolder(run.outputDir, { force: false, resume: true });
+    ({ run, owned, configText: extendedConfig } = (await import("./extend.js")).extendRun(flags.resume, flags.extend));
   } else if (flags.resume !== undefined) {
     if (configFile !== undefined) throw new InputError("give either a config file or --resume DIR, not both");
     if (flags.set.length > 0) throw new InputError("--set cannot change a resumed run; edit its config.toml instead");
@@ -71,7 +71,7 @@ export async function runCommand(
   run = { ...run, outputDir: owned.dir };
   for (const note of owned.notes) process.stderr.write(`psibox: ${note}\n`);
   try {
-    return await runOwned(run, flags);
+    return await runOwned(run, { ...flags, extendedConfig });
   } finally {
     owned.lock.release();
   }
@@ -87,7 +87,7 @@ function completedBefore(file: string): boolean {
 }
 
 /** Run (or resume) in a folder this process holds; returns the exit code. */
-async function runOwned(run: ResolvedRun, flags: RunFlags & { readonly initialOnly?: boolean }): Promise<number> {
+async function runOwned(run: ResolvedRun, flags: RunFlags & { readonly initialOnly?: boolean; readonly extendedConfig?: string | undefined }): Promise<number> {
   const reporter = flags.quiet ? silentReporter : new TextReporter();
   if (!flags.quiet) process.stderr.write(describeRun(run) + "\n");
   let interrupted: string | undefined;
@@ -107,6 +107,7 @@ async function runOwned(run: ResolvedRun, flags: RunFlags & { readonly initialOn
       stopRequested: () => interrupted ?? orphaned(),
       resume: flags.resume !== undefined,
       initialOnly: flags.initialOnly === true,
+      ...(flags.extendedConfig !== undefined ? { extendedConfig: flags.extendedConfig } : {}),
     });
     const where = fileName(path.relative(process.cwd(), run.outputDir) || ".");
     if (flags.initialOnly) {

@@ -15,7 +15,9 @@ import type { ResolvedRun } from "./resolve.js";
  */
 export function resolvedConfigToml(run: ResolvedRun): string {
   const plain = JSON.parse(JSON.stringify(run.config)) as Record<string, Record<string, unknown>>;
-  plain["output"] = { ...plain["output"], dir: path.resolve(run.outputDir).split(path.sep).join("/") };
+  // the time unit too, so a later end in another unit (psibox extend) keeps the run's unit
+  const { time_unit: _given, ...output } = plain["output"] ?? {};
+  plain["output"] = { ...output, time_unit: run.output.timeUnit, dir: path.resolve(run.outputDir).split(path.sep).join("/") };
   return `# psibox resolved config (every default filled in)\n${stringify(plain)}\n`;
 }
 

@@ -27,15 +27,23 @@ function firstNonFinite(a: Float64Array): number {
   return -1;
 }
 
-/** Are two resolved configs the same run but for their [span] (as psibox extend rewrites it)? */
+/**
+ * Are two resolved configs the same run but for their [span] (as psibox extend rewrites it)?
+ * An output.time_unit that only one of them states is left out: configs of earlier versions
+ * left it implicit, and psibox extend pins it to the unit the run was written in.
+ */
 function sameRunButSpan(a: string, b: string): boolean {
   try {
-    const strip = (text: string) => {
-      const t = parseToml(text) as Record<string, unknown>;
+    const [ta, tb] = [a, b].map((text) => parseToml(text) as Record<string, Record<string, unknown> | undefined>);
+    const implicit = [ta, tb].some((t) => t?.["output"]?.["time_unit"] === undefined);
+    const strip = (t: Record<string, Record<string, unknown> | undefined> | undefined) => {
+      if (!t) return "";
       delete t["span"];
-      return JSON.stringify(t);
+      if (implicit) delete t["output"]?.["time_unit"];
+      // sections and keys in one order, so the comparison is of values only
+      return JSON.stringify(Object.keys(t).sort().map((k) => [k, Object.entries(t[k] ?? {}).sort(([x], [y]) => (x < y ? -1 : 1))]));
     };
-    return strip(a) === strip(b);
+    return strip(ta) === strip(tb);
   } catch {
     return false;
   }

@@ -47,6 +47,12 @@ export interface RunOptions {
   readonly initialOnly?: boolean;
   /** Plug-ins of the run loop (see plugin.ts), called in this order. */
   readonly plugins?: readonly RunPlugin[];
+  /**
+   * With `resume`: the folder's config.toml with a later end (psibox extend). It replaces
+   * config.toml only once the checkpoint is verified against it, so a refused extension
+   * leaves the folder as it was.
+   */
+  readonly extendedConfig?: string;
 }
 
 /** Everything a run's phases share. */
@@ -79,7 +85,7 @@ export function openSession(run: ResolvedRun, options: RunOptions): RunSession {
   const paths = runPaths(run.outputDir);
   cleanStaleTemporaries(run.outputDir);
   cleanStaleTemporaries(paths.snapshots);
-  const configText = options.resume ? fs.readFileSync(paths.config, "utf8") : resolvedConfigToml(run);
+  const configText = options.extendedConfig ?? (options.resume ? fs.readFileSync(paths.config, "utf8") : resolvedConfigToml(run));
   if (!options.resume) writeFileAtomic(paths.config, configText);
   const writer = new RunWriter(run, scales, configText, sha256(configText));
   const { threads, fft } = run.integrator;
@@ -114,6 +120,7 @@ export function startRun(session: RunSession): RunStart {
     const resumed = saved.state as CheckpointState;
     verifyCheckpoint(paths.checkpoint, saved.meta, resumed, { configText: writer.configText, cells: run.grid.cells, startTime: run.span.startTime, endTime: run.span.endTime, scales });
     session.plugins.check(resumed.plugins ?? {}, paths.checkpoint);
+    if (session.options.extendedConfig !== undefined) adoptLaterEnd(session, resumed);
     stepper.restoreState(resumed.psiCode, resumed.phiCode, resumed.timeCode, resumed.massCode, resumed.owedKickCode ?? 0);
     writer.log(`resumed from the checkpoint at step ${resumed.steps}, t = ${scales.formatTime(resumed.timeCode)}`);
     session.plugins.restore(resumed.plugins ?? {}, paths.checkpoint);
@@ -142,4 +149,22 @@ export function startRun(session: RunSession): RunStart {
   if (initial.powerTable) writeFileAtomic(paths.power, initial.powerTable);
   stepper.setState(initial.psi, run.span.startTime);
   return { ...(relaxation ? { relaxation } : {}), warnings, mass0: stepper.mass, steps: 0, snapshotsWritten: 0, wallBefore: 0 };
+}
+
+/**
+ * An extension verified: summary.json no longer says "completed" (so an
+ * extension that stops can be resumed), then config.toml gets the later end.
+ */
+function adoptLaterEnd(session: RunSession, resumed: CheckpointState): void {
+  const { paths, writer, scales, run } = session;
+  let summary: Record<string, unknown> = {};
+  try {
+    summary = JSON.parse(fs.readFileSync(paths.summary, "utf8")) as Record<string, unknown>;
+  } catch {
+    // no readable summary: the one written below says why the run is not complete
+  }
+  const reason = `being extended to t = ${scales.formatTime(run.span.endTime)} (psibox extend); continue with psibox run --resume`;
+  writeFileAtomic(paths.summary, JSON.stringify({ ...summary, status: "stopped", reason }, null, 2) + "\n");
+  writeFileAtomic(paths.config, writer.configText);
+  writer.log(`extended to t = ${scales.formatTime(run.span.endTime)} from the checkpoint at step ${resumed.steps}`);
 }

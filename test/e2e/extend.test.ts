@@ -124,6 +124,35 @@ describe("psibox extend", () => {
   });
 });
 
+describe("psibox extend leaves a folder it cannot extend as it was", () => {
+  const files = (dir: string) => ["config.toml", "summary.json", "checkpoint.h5"].map((f) => fs.readFileSync(path.join(work, dir, f)).toString("base64"));
+
+  it("takes the folder's lock first: a folder another live run holds is refused and nothing changes", () => {
+    const before = files("short");
+    const lock = path.join(work, "short", ".psibox-lock");
+    fs.writeFileSync(lock, JSON.stringify({ pid: process.pid, host: os.hostname(), started: null, since: "2026-01-01T00:00:00Z" }));
+    try {
+      const r = psibox(["extend", "short", "--to", "400 Myr"]);
+      expect(r.code, r.stderr).toBe(2);
+      expect(r.stderr).toMatch(/short is in use by psibox process \d+/);
+    } finally {
+      fs.rmSync(lock, { force: true });
+    }
+    expect(files("short")).toEqual(before);
+  });
+
+  it("verifies the checkpoint against the later end before rewriting config.toml: another run's checkpoint is refused and nothing changes", () => {
+    fs.cpSync(path.join(work, "long"), path.join(work, "foreign"), { recursive: true });
+    fs.copyFileSync(path.join(work, "e-long", "checkpoint.h5"), path.join(work, "foreign", "checkpoint.h5"));
+    const before = files("foreign");
+    const r = psibox(["extend", "foreign", "--to", "400 Myr"]);
+    expect(r.code, r.stderr).toBe(2);
+    expect(r.stderr).toMatch(/checkpoint\.h5: config_sha256 does not match/);
+    expect(files("foreign")).toEqual(before);
+    expect(fs.existsSync(path.join(work, "foreign", ".psibox-lock"))).toBe(false);
+  });
+});
+
 describe("a run folder's config.toml", () => {
   it("records the output folder, so running it again from another folder writes to the same place", () => {
     fs.mkdirSync(path.join(work, "a"));
