@@ -1,7 +1,7 @@
 /**
  * The sweep's table, rebuilt from the entry folders alone: one row per entry
- * with the swept values, status, wall time, final time and redshift, the
- * final energies and density from the time series, and every clock's time
+ * with the swept values, status, wall time, final time and redshift, whether
+ * the grid resolved the flows, the final energies and density from the time series, and every clock's time
  * and method. Written as sweep-summary.csv and sweep-summary.json.
  */
 import fs from "node:fs";
@@ -39,6 +39,12 @@ function lastRow(file: string): Record<string, string> | undefined {
   return Object.fromEntries(cols.map((c, i) => [c, cells[i] ?? ""]));
 }
 
+/** Whether the entry's cells carried its flows (summary.json's flow_resolution), as two columns. */
+function flowColumns(summary: Record<string, unknown> | undefined): SummaryRow {
+  const flow = summary?.["flow_resolution"] as { resolved?: boolean; worst_unresolved_mass_fraction?: number } | undefined;
+  return { flow_resolved: flow?.resolved ?? null, unresolved_mass_fraction: flow?.worst_unresolved_mass_fraction ?? null };
+}
+
 /** The status of one entry folder: "completed", "stopped", "failed", "interrupted" or "pending". */
 export function entryStatus(dir: string): { status: string; reason: string | null } {
   const summary = readJson(path.join(dir, "summary.json"));
@@ -72,6 +78,7 @@ export function buildSummary(sweepDir: string): { manifest: SweepManifest; rows:
       time_unit: (summary?.["time_unit"] as string | undefined) ?? null,
       end_redshift: end?.z ?? null,
       mass_drift: (summary?.["mass_drift"] as number | undefined) ?? null,
+      ...flowColumns(summary),
     });
     for (const col of ["kinetic_Msun_km2_s2", "potential_Msun_km2_s2", "total_Msun_km2_s2", "max_density_Msun_kpc3", "squeezing_dB"]) {
       row[`final_${col}`] = last?.[col] !== undefined ? Number(last[col]) : null;

@@ -3,7 +3,7 @@ import { spawn, spawnSync } from "node:child_process";
 import fs from "node:fs";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { BIN, makeWork, removeWork, runPsibox } from "../helpers/cli.js";
+import { BIN, makeWork, readJson, removeWork, runPsibox } from "../helpers/cli.js";
 
 let work: string;
 beforeAll(() => {
@@ -56,6 +56,10 @@ describe("psibox sweep", () => {
       "mass=2e-22eV_contrast=0.2",
     ]);
     expect(rows.every((r: { status: string }) => r.status === "completed")).toBe(true);
+    for (const r of rows as { entry: string; flow_resolved: boolean; unresolved_mass_fraction: number }[]) {
+      const flow = readJson<{ flow_resolution: { resolved: boolean; worst_unresolved_mass_fraction: number } }>(path.join(work, "full", r.entry, "summary.json")).flow_resolution;
+      expect([r.flow_resolved, r.unresolved_mass_fraction]).toEqual([flow.resolved, flow.worst_unresolved_mass_fraction]);
+    }
     expect(fs.readFileSync(path.join(work, "full/sweep-summary.csv"), "utf8").split("\n")[0]).toMatch(/^entry,particle\.mass,initial\.contrast,status,reason,steps,wall_time_s,/);
 
     // the same sweep, its parent killed with SIGKILL once the first checkpoints exist
