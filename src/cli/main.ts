@@ -22,9 +22,8 @@ export async function main(argv: readonly string[]): Promise<number> {
     .name("psibox")
     .description("Schrödinger–Poisson simulations of wave (fuzzy) dark matter, in physical units, on a CPU.")
     .version(VERSION, "-V, --version")
-    .showHelpAfterError("(psibox --help lists the commands)")
     .exitOverride()
-    .configureOutput({ writeErr: (s) => process.stderr.write(s) });
+    .configureOutput({ writeErr: (s) => process.stderr.write(s), outputError: (s, write) => write(usageError(s, args)) });
   for (const spec of COMMANDS) addCommand(program, spec, (code) => (exitCode = code));
   try {
     await program.parseAsync(args, { from: "user" });
@@ -36,6 +35,13 @@ export async function main(argv: readonly string[]): Promise<number> {
     }
     return reportError(e, debug);
   }
+}
+
+/** Commander's usage errors ("error: unknown option '--x'") as psibox's one line, pointing to the right help. */
+function usageError(text: string, args: readonly string[]): string {
+  const command = COMMANDS.find((c) => c.name === args[0]);
+  const help = command ? `psibox ${command.name} --help` : "psibox --help";
+  return `psibox: ${oneLine(text.trim().replace(/^error: /, ""))} (${help} lists the ${command ? "options" : "commands"})\n`;
 }
 
 function reportError(e: unknown, debug: boolean): number {

@@ -92,6 +92,19 @@ describe("psibox run", () => {
     });
   }
 
+  it("usage errors (unknown command or option, a missing required option) are one psibox line, exit code 2", () => {
+    const cases: [string[], RegExp][] = [
+      [["frobnicate"], /^psibox: unknown command 'frobnicate' \(psibox --help lists the commands\)$/],
+      [["analyze", "--bogus", "x"], /^psibox: unknown option '--bogus' \(psibox analyze --help lists the options\)$/],
+      [["estimate"], /^psibox: required option '--particle-mass <mass>' not specified \(psibox estimate --help lists the options\)$/],
+    ];
+    for (const [args, message] of cases) {
+      const r = psibox(args);
+      expect(r.code).toBe(2);
+      expect(r.stderr.trim()).toMatch(message);
+    }
+  });
+
   it("rejects a missing config file", () => {
     const r = psibox(["run", "nowhere.toml"]);
     expect(r.code).toBe(2);
