@@ -10,6 +10,7 @@ import type { RunPlugin } from "../simulation/plugin.js";
 import { sidecarPlugin } from "../quantum/sidecar-plugin.js";
 import { vortexCensusPlugin } from "./vortex-census-plugin.js";
 import { flowResolutionPlugin } from "./flow-resolution-plugin.js";
+import { lyapunovPlugin } from "./lyapunov-plugin.js";
 
 /** The built-in plug-ins a resolved config turns on. */
 export function configuredPlugins(run: ResolvedRun): RunPlugin[] {
@@ -17,6 +18,7 @@ export function configuredPlugins(run: ResolvedRun): RunPlugin[] {
     ...(run.sidecar.enabled ? [sidecarPlugin(run.sidecar)] : []),
     ...(run.output.vortexCensus ? [vortexCensusPlugin(run.grid.cells.length)] : []),
     flowResolutionPlugin(),
+    ...(run.breakdown.tangent ? [lyapunovPlugin({ interval: run.breakdown.interval, seed: run.breakdown.seed })] : []),
   ];
 }
 

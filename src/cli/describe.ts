@@ -1,6 +1,20 @@
 /** A readable tree of a resolved run, printed when a run starts. */
 import type { ResolvedRun } from "../config/resolve.js";
 import { OutputScales } from "../simulation/scales.js";
+import { formatNumber } from "../core/format.js";
+
+/** Bytes per cell of one tangent-linear companion: its complex grid and undo copy, and the real grid of dφ. */
+export const TANGENT_BYTES_PER_CELL = 16 + 16 + 8;
+
+/** The header line of the [breakdown] companion: what it costs. */
+function breakdownLine(run: ResolvedRun, scales: OutputScales): string | undefined {
+  const b = run.breakdown;
+  if (!b.tangent) return undefined;
+  const cells = run.grid.cells.reduce((p, n) => p * n, 1);
+  const mb = (cells * TANGENT_BYTES_PER_CELL) / 1e6;
+  const every = b.interval === undefined ? "one dynamical time at the start" : scales.formatTime(b.interval);
+  return `├─ breakdown    Lyapunov rate by a tangent-linear companion: 1 extra field, +${formatNumber(mb)} MB, about twice the work per step; renormalised every ${every}, seed ${b.seed}`;
+}
 
 /** Describe a run in physical units. */
 export function describeRun(run: ResolvedRun): string {
@@ -22,7 +36,8 @@ export function describeRun(run: ResolvedRun): string {
     `├─ span         ${span}`,
     `├─ initial      ${c.initial.kind}`,
     `├─ integrator   safety ${run.integrator.safety}${c.integrator.fixed_step ? `, fixed step ${c.integrator.fixed_step}` : ""}, mass tolerance ${run.integrator.massTolerance}`,
+    breakdownLine(run, scales),
     `└─ output       ${run.outputDir}`,
   ];
-  return lines.join("\n");
+  return lines.filter((l) => l !== undefined).join("\n");
 }

@@ -16,6 +16,7 @@ import { perAxis, positive, read } from "./values.js";
 import { resolveBackgroundAndSpan, resolveHubble } from "./resolve-span.js";
 import { resolveIntegrator, resolveOutput } from "./resolve-output.js";
 import { resolveSidecar, type ResolvedSidecar } from "./resolve-sidecar.js";
+import { resolveBreakdown, type ResolvedBreakdown } from "./resolve-breakdown.js";
 
 /** Background in code units. */
 export type { BackgroundSpec as ResolvedBackground } from "../physics/cosmology/background.js";
@@ -65,6 +66,7 @@ export interface ResolvedRun {
     readonly checkpointEvery: number;
   };
   readonly sidecar: ResolvedSidecar;
+  readonly breakdown: ResolvedBreakdown;
 }
 
 /**
@@ -93,11 +95,13 @@ export function resolveRun(config: CheckedConfig, name: string, cwd: string): Re
     throw new ConfigError("sidecar.squeezing_db", `must be negative (a variance below the coherent state's), got ${config.sidecar.squeezing_db}`);
   }
   const sidecar = resolveSidecar(config, units.timeS, ctx);
+  const breakdown = resolveBreakdown(config, units, ctx, endTime - startTime);
   return {
     name,
     outputDir,
     config,
     sidecar,
+    breakdown,
     particleMassKg: m,
     lengthUnitM: units.lengthM,
     grid: { cells, lengths, gravity: config.grid.gravity, poisson: config.grid.poisson },

@@ -234,6 +234,15 @@ export const sidecarSchema = z.strictObject({
   dephasing_rate: z.string().default("0/s"),
 });
 
+export const breakdownSchema = z.strictObject({
+  /** Advance a tangent-linear companion field and measure the run's Lyapunov rate (columns lyapunov_*). @default false */
+  tangent: z.boolean().default(false),
+  /** Benettin renormalisation interval, a time, e.g. "50 Myr". @default one dynamical time 1/√(4πGρ_eff) at the start */
+  interval: quantity.optional(),
+  /** Seed of the companion's band-limited start. @default 1 */
+  seed: z.number().default(1),
+});
+
 const sweepRange = z.strictObject({
   /** First value: a number, or a quantity with its unit. */
   from: z.union([z.number(), z.string()]),
@@ -274,6 +283,7 @@ export const userConfigSchema = z.strictObject({
   integrator: integratorSchema.default(integratorSchema.parse({})),
   output: outputSchema.default(outputSchema.parse({})),
   sidecar: sidecarSchema.default(sidecarSchema.parse({})),
+  breakdown: breakdownSchema.default(breakdownSchema.parse({})),
   /** A parameter sweep (psibox sweep). */
   sweep: sweepSchema.optional(),
   /** Cluster resources for psibox sweep --emit slurm. */

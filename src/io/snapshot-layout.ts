@@ -17,7 +17,9 @@
  *   /state                 checkpoints only: psi_code, phi_code (float64, code units, the exact
  *                          state) over the dimensions n_psi_code and n_phi_code, attributes
  *                          time_code, mass_code, mass0_code, owed_kick_code, steps, wall_time_s,
- *                          snapshots_written; /state/plugins: one text attribute per run plug-in that
+ *                          snapshots_written; field_1_code, field_2_code, …: the companion fields a run
+ *                          advances beside ψ (tangent-linear fields), as stored, owing ψ's kick, over
+ *                          n_psi_code; /state/plugins: one text attribute per run plug-in that
  *                          keeps state, JSON {"version": n, "state": …} (the quantum sidecar's is "sidecar")
  * Version 1 (read only): the same root attributes up to config_sha256, /grid (dims, cells,
  * box_size), /field/psi of shape [cells..., 2] (re, im), and /state as above (checkpoints written before
@@ -47,6 +49,8 @@ export const STATE = {
   psiDim: "n_psi_code",
   phiDim: "n_phi_code",
   plugins: "plugins",
+  /** Companion field i (1, 2, …). */
+  field: (i: number) => `field_${i}_code`,
 } as const;
 
 /** Version-1 names (read only). */

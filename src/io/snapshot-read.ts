@@ -78,6 +78,17 @@ function readMeta(f: H5File, version: number, file: string): SnapshotMeta {
   };
 }
 
+/** The companion fields of a checkpoint's /state group, in order. */
+function companionFields(f: H5File, file: string): { fieldsCode?: Float64Array[] } {
+  const fields: Float64Array[] = [];
+  for (let i = 1; ; i++) {
+    const ds = f.get(`${STATE.group}/${STATE.field(i)}`);
+    if (!(ds instanceof Dataset)) break;
+    fields.push(readFloat64(ds, file));
+  }
+  return fields.length ? { fieldsCode: fields } : {};
+}
+
 function readState(f: H5File, file: string): CheckpointState {
   const g = f.get(STATE.group);
   const psiCode = f.get(`${STATE.group}/${STATE.psi}`);
@@ -96,6 +107,7 @@ function readState(f: H5File, file: string): CheckpointState {
     wallTimeS: numberOf(g, "wall_time_s", file),
     snapshotsWritten: numberOf(g, "snapshots_written", file),
     ...(owed !== 0 ? { owedKickCode: owed } : {}),
+    ...companionFields(f, file),
     ...pluginStates(f, g, file),
   };
 }

@@ -64,6 +64,8 @@ export interface CheckpointState {
   readonly snapshotsWritten: number;
   /** The closing kick ψ still owes (psiCode is then ψ before it; 0 when ψ is current). */
   readonly owedKickCode?: number;
+  /** The companion fields advanced beside ψ (code units, as stored, owing ψ's kick). */
+  readonly fieldsCode?: readonly Float64Array[];
   /** Each run plug-in's saved state by plug-in name: JSON text {"version": n, "state": …}. */
   readonly plugins?: Readonly<Record<string, string>>;
 }
@@ -159,6 +161,11 @@ function writeState(f: H5File, st: CheckpointState): void {
   const phi = g.create_dataset({ name: STATE.phi, data: st.phiCode, shape: [st.phiCode.length], dtype: "<d" });
   phi.attach_scale(0, `${STATE.group}/${STATE.phiDim}`);
   textAttr(phi, "long_name", "exact state: the potential phi in code units");
+  (st.fieldsCode ?? []).forEach((field, i) => {
+    const ds = g.create_dataset({ name: STATE.field(i + 1), data: field, shape: [field.length], dtype: "<d" });
+    ds.attach_scale(0, `${STATE.group}/${STATE.psiDim}`);
+    textAttr(ds, "long_name", `exact state: companion field ${i + 1} in code units, interleaved (re, im)`);
+  });
   numberAttr(g, "time_code", st.timeCode);
   numberAttr(g, "mass_code", st.massCode);
   numberAttr(g, "mass0_code", st.mass0Code);

@@ -105,19 +105,29 @@ export class RunWriter {
    * changes a run, and a run resumed or extended from any checkpoint repeats
    * the uninterrupted one bit for bit.
    */
-  writeCheckpoint(stepper: SplitStepper, state: Omit<CheckpointState, "psiCode" | "phiCode" | "timeCode" | "massCode" | "owedKickCode">): void {
+  writeCheckpoint(stepper: SplitStepper, state: Omit<CheckpointState, "psiCode" | "phiCode" | "timeCode" | "massCode" | "owedKickCode" | "fieldsCode">): void {
     const raw = Float64Array.from(stepper.rawPsi);
     const phi = Float64Array.from(stepper.phi);
+    const fields = Array.from({ length: stepper.extraFields }, (_, i) => Float64Array.from(stepper.rawField(i + 1)));
     const { time, mass, owedKickFactor } = stepper;
     try {
       writeSnapshot(this.paths.checkpoint, {
         meta: this.meta(stepper, state.steps, "checkpoint"),
         psi: stepper.psi,
         psiScale: this.psiScale,
-        state: { ...state, psiCode: raw, phiCode: phi, timeCode: time, massCode: mass, ...(owedKickFactor !== 0 ? { owedKickCode: owedKickFactor } : {}) },
+        state: {
+          ...state,
+          psiCode: raw,
+          phiCode: phi,
+          timeCode: time,
+          massCode: mass,
+          ...(owedKickFactor !== 0 ? { owedKickCode: owedKickFactor } : {}),
+          ...(fields.length ? { fieldsCode: fields } : {}),
+        },
       });
     } finally {
       stepper.restoreState(raw, phi, time, mass, owedKickFactor);
+      fields.forEach((f, i) => stepper.setField(i + 1, f, owedKickFactor));
     }
     this.log(`checkpoint at step ${state.steps}, t = ${this.scales.formatTime(time)}`);
   }

@@ -6,7 +6,7 @@
  */
 import { fileName } from "../core/sanitize.js";
 import { InputError } from "../core/errors.js";
-import type { MeasuredSum, OutputFacts, RunContext, RunPlugin, StartFacts, StepFacts, StopFacts } from "./plugin.js";
+import type { MeasuredSum, OutputFacts, RunContext, RunPlugin, StartFacts, StepFacts, StopFacts, TangentFields } from "./plugin.js";
 
 const NAME = /^[A-Za-z][A-Za-z0-9_-]*$/;
 
@@ -25,11 +25,29 @@ export class PluginSet {
       if ((p.save || version !== undefined) && !(version !== undefined && Number.isInteger(version) && version >= 0)) {
         throw new InputError(`plug-in "${p.name}": a plug-in that saves state needs a stateVersion, a whole number ≥ 0 (got ${version})`);
       }
+      const t = p.tangents ?? 0;
+      if (!(Number.isInteger(t) && t >= 0 && t <= 64)) throw new InputError(`plug-in "${p.name}": tangents is a whole number from 0 to 64, got ${t}`);
       if (Boolean(p.save) !== Boolean(p.restore)) throw new InputError(`plug-in "${p.name}": give both save() and restore(), or neither`);
       names.add(p.name);
     }
     this.plugins = plugins;
     this.columns = plugins.flatMap((p) => p.columns ?? []);
+  }
+
+  /** Tangent fields of all plug-ins together. */
+  get tangents(): number {
+    return this.plugins.reduce((n, p) => n + (p.tangents ?? 0), 0);
+  }
+
+  /** Give each plug-in with tangents its own: `make(first, count)` for the stepper's fields first … first + count − 1. */
+  attach(make: (first: number, count: number) => TangentFields): void {
+    let first = 1;
+    for (const p of this.plugins) {
+      const n = p.tangents ?? 0;
+      if (n === 0) continue;
+      p.attach?.(make(first, n));
+      first += n;
+    }
   }
 
   /** Whether any plug-in asked for a sum. */

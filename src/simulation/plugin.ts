@@ -3,7 +3,8 @@
  * every accepted step, at every output and at the stop, without the loop
  * knowing what they compute. A plug-in sees neutral facts (step, t, Δt, a,
  * the step's drift and kick factors) and the measured sums it declared in
- * `measures`; it never touches the stepper. It declares its own time-series
+ * `measures`; it never touches the stepper, except through the tangent-linear
+ * fields it asked for (`tangents`, handed to `attach`). It declares its own time-series
  * columns, returns its part of summary.json, and saves and restores its own
  * versioned state in checkpoints, so that a resumed run with the plug-in on
  * is bit for bit an uninterrupted one. The quantum sidecar is one
@@ -100,6 +101,28 @@ export interface StopFacts {
   readonly a: number;
 }
 
+/**
+ * The tangent-linear fields a plug-in asked for (`tangents`), advanced by the
+ * stepper beside ψ as the exact derivative of its step
+ * (integrators/extra-fields.ts), numbered 1 … count for the plug-in, in code
+ * units. The run loop keeps them in checkpoints. Each call applies the kick ψ
+ * and the fields owe (an exact split of the folded kick: ψ's trajectory
+ * changes by round-off only).
+ */
+export interface TangentFields {
+  readonly count: number;
+  /** The current ψ, interleaved (re, im); read-only, valid during the call. */
+  reference(): Float64Array;
+  /** Mass ∫|ψ|² dV of the current field. */
+  mass(): number;
+  /** Load field j (a perturbation of the current ψ). */
+  set(j: number, field: Float64Array): void;
+  /** ⟨ψ|dψ_j⟩ = ∫ψ̄ dψ_j dV (re, im) and ‖dψ_j‖² = ∫|dψ_j|² dV. */
+  overlap(j: number): { re: number; im: number; norm2: number };
+  /** dψ_j ← scale·(dψ_j − (re + i·im)ψ). */
+  combine(j: number, scale: number, re: number, im: number): void;
+}
+
 /** A plug-in of the run loop: a name and the hooks it needs. */
 export interface RunPlugin {
   /** Unique among a run's plug-ins: letters, digits, "-" and "_"; names its checkpoint state. */
@@ -108,6 +131,10 @@ export interface RunPlugin {
   readonly stateVersion?: number;
   /** Sums it needs (see MeasuredSum). */
   readonly measures?: readonly MeasuredSum[];
+  /** Tangent-linear fields it needs advanced with ψ (handed to attach() before start()). */
+  readonly tangents?: number;
+  /** Called once, before start() (and before restore() on resume), with its tangent fields. */
+  attach?(fields: TangentFields): void;
   /** Its time-series columns (names with units), after the run's own. */
   readonly columns?: readonly string[];
   /** Called once, before the first step (after restore() on resume). */

@@ -19,7 +19,8 @@ import { OutputScales } from "./scales.js";
 import { RunWriter, runPaths } from "./outputs.js";
 import { PluginSet } from "./plugin-set.js";
 import { verifyCheckpoint } from "./resume-check.js";
-import type { RunContext, RunPlugin } from "./plugin.js";
+import type { RunContext, RunPlugin, TangentFields } from "./plugin.js";
+import { InputError } from "../core/errors.js";
 
 /** Where a run reports what it is doing. */
 export interface RunReporter {
@@ -89,7 +90,9 @@ export function openSession(run: ResolvedRun, options: RunOptions): RunSession {
   if (!options.resume) writeFileAtomic(paths.config, configText);
   const writer = new RunWriter(run, scales, configText, sha256(configText));
   const { threads, fft } = run.integrator;
-  const stepper = threads > 1 ? new ThreadedStepper(grid, background, gravity, threads, fft) : new SplitStepper(grid, background, gravity, fft);
+  const fields = Array.from({ length: plugins.tangents }, () => ({ kind: "tangent" }) as const);
+  const stepper = threads > 1 ? new ThreadedStepper(grid, background, gravity, threads, fft, {}, fields) : new SplitStepper(grid, background, gravity, fft, 1, fields);
+  plugins.attach((first, count) => tangentHandle(stepper, first, count));
   const { startTime, endTime } = run.span;
   const reporter = options.reporter ?? silentReporter;
   const warn = (text: string): void => {
@@ -99,6 +102,31 @@ export function openSession(run: ResolvedRun, options: RunOptions): RunSession {
   const context: RunContext = { grid, background, scales, particleMass: run.particleMassKg / scales.units.massKg, startTime, endTime, outputDir: run.outputDir, warn };
   const expanding = background.kind !== "static";
   return { run, options, reporter, scales, grid, background, gravity, expanding, paths, writer, stepper, plugins, context, wallStart };
+}
+
+/** A plug-in's view of the stepper's tangent fields first … first + count − 1. */
+function tangentHandle(stepper: SplitStepper, first: number, count: number): TangentFields {
+  const at = (j: number): number => {
+    if (!(Number.isInteger(j) && j >= 1 && j <= count)) throw new RangeError(`tangent field ${j} does not exist (1 … ${count})`);
+    return first + j - 1;
+  };
+  return {
+    count,
+    reference: () => stepper.psi,
+    mass: () => stepper.mass,
+    set: (j, field) => stepper.setField(at(j), field),
+    overlap: (j) => stepper.fieldOverlap(at(j)),
+    combine: (j, scale, re, im) => stepper.combineField(at(j), scale, re, im),
+  };
+}
+
+/** Load a checkpoint's companion fields (they owe ψ's kick); a checkpoint with other fields than the run's is refused. */
+function restoreFields(stepper: SplitStepper, state: CheckpointState, file: string): void {
+  const fields = state.fieldsCode ?? [];
+  if (fields.length !== stepper.extraFields) {
+    throw new InputError(`${file}: holds ${fields.length} companion field(s), this run advances ${stepper.extraFields}; resume with the [breakdown] settings the run started with, or start it afresh`);
+  }
+  fields.forEach((f, i) => stepper.setField(i + 1, f, state.owedKickCode ?? 0));
 }
 
 /** Where the run starts: a checkpoint's counters, or a fresh start's relaxation and warnings. */
@@ -122,6 +150,7 @@ export function startRun(session: RunSession): RunStart {
     session.plugins.check(resumed.plugins ?? {}, paths.checkpoint);
     if (session.options.extendedConfig !== undefined) adoptLaterEnd(session, resumed);
     stepper.restoreState(resumed.psiCode, resumed.phiCode, resumed.timeCode, resumed.massCode, resumed.owedKickCode ?? 0);
+    restoreFields(stepper, resumed, paths.checkpoint);
     writer.log(`resumed from the checkpoint at step ${resumed.steps}, t = ${scales.formatTime(resumed.timeCode)}`);
     session.plugins.restore(resumed.plugins ?? {}, paths.checkpoint);
     const { mass0Code: mass0, steps, snapshotsWritten, wallTimeS: wallBefore } = resumed;
