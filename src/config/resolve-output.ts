@@ -34,6 +34,11 @@ function resolveThreads(configured: number | undefined, cells: number): number {
     if (!(configured >= 1 && configured <= 64)) throw new ConfigError("integrator.threads", `must be from 1 to 64, got ${configured}`);
     return configured;
   }
+  return defaultThreads(cells);
+}
+
+/** Threads when none are configured: PSIBOX_THREADS, else the cores (one thread below 32³ cells, where threads do not pay). */
+export function defaultThreads(cells: number): number {
   const env = Number(process.env["PSIBOX_THREADS"] ?? NaN);
   if (Number.isInteger(env) && env >= 1) return Math.min(env, 64);
   return cells < 32 ** 3 ? 1 : os.availableParallelism();

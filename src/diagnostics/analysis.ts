@@ -11,7 +11,10 @@
  * spectral first derivatives with the Nyquist mode's derivative set to zero.
  */
 import type { Grid } from "../grid/grid.js";
-import { ComplexFft } from "../fields/fft.js";
+import { SimpleTransforms, type FieldTransforms } from "../fields/field-transforms.js";
+import { Shells, simulatedAxes, spectralDerivative } from "./shells.js";
+
+export { densestPoints, radialProfile } from "./peaks.js";
 
 /** One bin of a power spectrum (code units: k in 1/ℓ, P in ℓ^d). */
 export interface PowerBin {
@@ -24,32 +27,33 @@ export interface PowerBin {
  * P(k) of δ = ρ/ρ̄ − 1 in shells of width k_F (the fundamental of the
  * longest side) out to the grid's corner: P = V ⟨|δ_k|²⟩/N², with the mode
  * count of each shell. By Parseval, Σ_bins P·modes/V is the variance of δ.
+ * Uses work grid 0 of `fft`.
  */
-export function densityPowerSpectrum(grid: Grid, psi: Float64Array): PowerBin[] {
+export function densityPowerSpectrum(grid: Grid, psi: Float64Array, fft: FieldTransforms = new SimpleTransforms(grid.shape)): PowerBin[] {
   const n = grid.size;
-  const data = new Float64Array(2 * n);
+  const data = fft.work(0);
   let mean = 0;
   for (let i = 0; i < n; i++) mean += psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2;
   mean /= n;
-  for (let i = 0; i < n; i++) data[2 * i] = (psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2) / mean - 1;
-  new ComplexFft(grid.shape).forward(data);
-  const simulated = [0, 1, 2].filter((ax) => grid.shape[ax]! > 1);
-  const kF = Math.min(...simulated.map((ax) => (2 * Math.PI) / grid.extent[ax]!));
-  const bins = Math.max(1, Math.round(Math.sqrt(grid.kSquaredMax) / kF));
-  const sum = new Float64Array(bins);
-  const ksum = new Float64Array(bins);
-  const count = new Float64Array(bins);
-  grid.forEachMode((p, kx, ky, kz) => {
-    const k = Math.sqrt(kx * kx + ky * ky + kz * kz);
-    if (k === 0) return;
-    const bin = Math.min(bins - 1, Math.max(0, Math.round(k / kF) - 1));
-    sum[bin] = sum[bin]! + (grid.volume * (data[p]! ** 2 + data[p + 1]! ** 2)) / (n * n);
-    ksum[bin] = ksum[bin]! + k;
-    count[bin] = count[bin]! + 1;
-  });
-  const out: PowerBin[] = [];
-  for (let i = 0; i < bins; i++) if (count[i]! > 0) out.push({ k: ksum[i]! / count[i]!, power: sum[i]! / count[i]!, modes: count[i]! });
-  return out;
+  for (let i = 0; i < n; i++) {
+    data[2 * i] = (psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2) / mean - 1;
+    data[2 * i + 1] = 0;
+  }
+  fft.forward(data);
+  const shells = new Shells(grid, 1);
+  const [n0, n1, n2] = grid.shape;
+  const [k0, k1, k2] = [grid.wavenumbers(0), grid.wavenumbers(1), grid.wavenumbers(2)];
+  const perMode = grid.volume / (n * n);
+  let p = 0;
+  for (let a = 0; a < n0; a++)
+    for (let b = 0; b < n1; b++) {
+      const kab = k0[a]! * k0[a]! + k1[b]! * k1[b]!;
+      for (let c = 0; c < n2; c++, p += 2) {
+        const bin = shells.addMode(Math.sqrt(kab + k2[c]! * k2[c]!));
+        shells.add(bin, 0, perMode * (data[p]! ** 2 + data[p + 1]! ** 2));
+      }
+    }
+  return shells.rows().map((r) => ({ k: r.k, power: r.sums[0]! / r.modes, modes: r.modes }));
 }
 
 /** Variance of δ = ρ/ρ̄ − 1 over the cells. */
@@ -69,24 +73,25 @@ export function densityPdf(psi: Float64Array, bins = 40): { log10Contrast: numbe
   let mean = 0;
   for (let i = 0; i < n; i++) mean += psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2;
   mean /= n;
-  const logs = new Float64Array(n);
-  let lo = Infinity;
-  let hi = -Infinity;
+  // log₁₀ is monotonic: the range from the extreme contrasts (empty cells count as 1e-30 but do not set the lower end)
+  let minPositive = Infinity;
+  let max = 1e-30;
   for (let i = 0; i < n; i++) {
     const r = (psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2) / mean;
-    const l = Math.log10(Math.max(r, 1e-30));
-    logs[i] = l;
-    if (r > 0) lo = Math.min(lo, l);
-    hi = Math.max(hi, l);
+    if (r > 0 && r < minPositive) minPositive = r;
+    if (r > max) max = r;
   }
+  const lo = Math.log10(minPositive);
+  const hi = Math.log10(max);
   if (!(hi > lo)) return [{ log10Contrast: hi, volumeFraction: 1, massFraction: 1 }];
   const width = (hi - lo) / bins;
   const vol = new Float64Array(bins);
   const mass = new Float64Array(bins);
   for (let i = 0; i < n; i++) {
-    const b = Math.min(bins - 1, Math.max(0, Math.floor((logs[i]! - lo) / width)));
+    const r = Math.max((psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2) / mean, 1e-30);
+    const b = Math.min(bins - 1, Math.max(0, Math.floor((Math.log10(r) - lo) / width)));
     vol[b] = vol[b]! + 1 / n;
-    mass[b] = mass[b]! + Math.pow(10, logs[i]!) / n;
+    mass[b] = mass[b]! + r / n;
   }
   return Array.from({ length: bins }, (_, b) => ({ log10Contrast: lo + (b + 0.5) * width, volumeFraction: vol[b]!, massFraction: mass[b]! }));
 }
@@ -102,140 +107,65 @@ export interface KineticSplit {
   readonly velocityDispersion: number;
 }
 
-/** K, K_v, K_q and the bulk-flow velocity dispersion, with spectral gradients. */
-export function kineticSplit(grid: Grid, psi: Float64Array, a: number): KineticSplit {
+/** K, K_v, K_q and the bulk-flow velocity dispersion, with spectral gradients (work grids 0 and 1 of `fft`). */
+export function kineticSplit(grid: Grid, psi: Float64Array, a: number, fft: FieldTransforms = new SimpleTransforms(grid.shape)): KineticSplit {
   const n = grid.size;
-  const fft = new ComplexFft(grid.shape);
-  const spectrum = Float64Array.from(psi);
+  const spectrum = fft.work(0);
+  spectrum.set(psi);
   fft.forward(spectrum);
-  const grad = new Float64Array(2 * n);
-  const jj = new Float64Array(n); // Σ_axes j²
-  const simulated = [0, 1, 2].filter((ax) => grid.shape[ax]! > 1);
+  const grad = fft.work(1);
   const jSum: number[] = [];
-  let gradSquared = 0;
-  const [n0, n1, n2] = grid.shape;
-  for (const ax of simulated) {
-    const k = grid.wavenumbers(ax as 0 | 1 | 2);
-    let p = 0;
-    for (let i0 = 0; i0 < n0; i0++)
-      for (let i1 = 0; i1 < n1; i1++)
-        for (let i2 = 0; i2 < n2; i2++, p += 2) {
-          const idx = ax === 0 ? i0 : ax === 1 ? i1 : i2;
-          const kk = idx === grid.shape[ax]! / 2 ? 0 : k[idx]!; // the Nyquist mode has no derivative
-          grad[p] = -kk * spectrum[p + 1]!;
-          grad[p + 1] = kk * spectrum[p]!;
-        }
-    fft.inverse(grad);
+  // Σ_axes Σ_cells j²/ρ, j = Im(ψ* ∂ψ)
+  let bulk2 = 0;
+  for (const ax of simulatedAxes(grid)) {
+    spectralDerivative(grid, fft, spectrum, ax, grad);
     let js = 0;
     for (let i = 0; i < n; i++) {
       const re = psi[2 * i]!;
       const im = psi[2 * i + 1]!;
-      const gr = grad[2 * i]!;
-      const gi = grad[2 * i + 1]!;
-      const j = re * gi - im * gr; // Im(ψ* ∂ψ)
-      jj[i] = jj[i]! + j * j;
+      const j = re * grad[2 * i + 1]! - im * grad[2 * i]!;
+      const rho = re * re + im * im;
+      if (rho > 0) bulk2 += (j * j) / rho;
       js += j;
     }
     jSum.push(js);
   }
   let mass = 0;
-  let bulk2 = 0;
-  for (let i = 0; i < n; i++) {
-    const rho = psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2;
-    mass += rho;
-    if (rho > 0) bulk2 += jj[i]! / rho;
-  }
+  for (let i = 0; i < n; i++) mass += psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2;
+  return kineticFromSums(grid, a, { gradient: parsevalGradient(grid, spectrum), bulk2, jSum, mass });
+}
+
+/** The sums behind a KineticSplit: Σ k²|ψ_k|², Σ j²/ρ over axes and cells, Σ j per axis, Σ ρ. */
+export interface KineticSums {
+  readonly gradient: number;
+  readonly bulk2: number;
+  readonly jSum: readonly number[];
+  readonly mass: number;
+}
+
+/** The kinetic split from its sums (K from Parseval with the full k², Nyquist included, as the solver's kinetic operator has it). */
+export function kineticFromSums(grid: Grid, a: number, s: KineticSums): KineticSplit {
   const dv = grid.cellVolume;
-  // K from Parseval with the full k² (Nyquist included), as the solver's kinetic operator has it
-  grid.forEachMode((p, kx, ky, kz) => {
-    gradSquared += (kx * kx + ky * ky + kz * kz) * (spectrum[p]! ** 2 + spectrum[p + 1]! ** 2);
-  });
-  gradSquared /= n;
-  const kinetic = (0.5 / (a * a)) * gradSquared * dv;
-  const bulk = (0.5 / (a * a)) * bulk2 * dv;
-  const meanVelocity = jSum.map((s) => s / (a * mass));
-  const v2 = bulk2 / (a * a * mass);
-  const vbar2 = meanVelocity.reduce((s, v) => s + v * v, 0);
+  const kinetic = (0.5 / (a * a)) * (s.gradient / grid.size) * dv;
+  const bulk = (0.5 / (a * a)) * s.bulk2 * dv;
+  const meanVelocity = s.jSum.map((j) => j / (a * s.mass));
+  const v2 = s.bulk2 / (a * a * s.mass);
+  const vbar2 = meanVelocity.reduce((sum, v) => sum + v * v, 0);
   return { kinetic, bulk, quantum: kinetic - bulk, meanVelocity, velocityDispersion: Math.sqrt(Math.max(0, v2 - vbar2)) };
 }
 
-/** The `count` densest local maxima at least `minSeparation` cells apart (indices and densities). */
-export function densestPoints(grid: Grid, psi: Float64Array, count: number, minSeparation: number): { index: number; coords: number[]; density: number }[] {
-  const n = grid.size;
-  const rho = new Float64Array(n);
-  for (let i = 0; i < n; i++) rho[i] = psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2;
+/** Σ k²|ψ_k|² over a spectrum, with the full k². */
+export function parsevalGradient(grid: Grid, spectrum: Float64Array): number {
   const [n0, n1, n2] = grid.shape;
-  // candidates: cells at least as dense as their neighbours along every simulated axis (periodic)
-  const strides = [n1 * n2, n2, 1];
-  const order: number[] = [];
-  for (let i = 0; i < n; i++) {
-    const idx = [Math.floor(i / (n1 * n2)), Math.floor(i / n2) % n1, i % n2];
-    let peak = true;
-    for (let ax = 0; ax < 3 && peak; ax++) {
-      const m = [n0, n1, n2][ax]!;
-      if (m === 1) continue;
-      const up = idx[ax] === m - 1 ? i - (m - 1) * strides[ax]! : i + strides[ax]!;
-      const down = idx[ax] === 0 ? i + (m - 1) * strides[ax]! : i - strides[ax]!;
-      if (rho[up]! > rho[i]! || rho[down]! > rho[i]!) peak = false;
-    }
-    if (peak) order.push(i);
-  }
-  order.sort((x, y) => rho[y]! - rho[x]!);
-  const cell = (i: number) => [Math.floor(i / (n1 * n2)), Math.floor(i / n2) % n1, i % n2];
-  const chosen: { index: number; coords: number[]; density: number }[] = [];
-  for (const i of order) {
-    if (chosen.length >= count) break;
-    const ci = cell(i);
-    const far = chosen.every((c) => {
-      const cj = cell(c.index);
-      let d2 = 0;
-      for (let ax = 0; ax < 3; ax++) {
-        const m = grid.shape[ax]!;
-        let d = Math.abs(ci[ax]! - cj[ax]!);
-        d = Math.min(d, m - d);
-        d2 += d * d;
-      }
-      return d2 >= minSeparation * minSeparation;
-    });
-    if (far) {
-      const coords = [grid.coordinate(0, ci[0]!), grid.coordinate(1, ci[1]!), grid.coordinate(2, ci[2]!)].slice(3 - grid.dims);
-      chosen.push({ index: i, coords, density: rho[i]! });
-    }
-  }
-  return chosen;
-}
-
-/** Spherical (circular in 2D) shell averages of ρ around a centre, minimum-image distances, shells of one cell. */
-export function radialProfile(grid: Grid, psi: Float64Array, center: readonly number[], rMax: number): { r: number; density: number; cells: number }[] {
-  const h = Math.min(...grid.spacing.slice(3 - grid.dims));
-  const bins = Math.max(1, Math.ceil(rMax / h));
-  const sum = new Float64Array(bins);
-  const rs = new Float64Array(bins);
-  const cnt = new Float64Array(bins);
-  const [n0, n1, n2] = grid.shape;
-  const pad = 3 - grid.dims;
+  const [k0, k1, k2] = [grid.wavenumbers(0), grid.wavenumbers(1), grid.wavenumbers(2)];
+  let sum = 0;
   let p = 0;
   for (let a = 0; a < n0; a++)
-    for (let b = 0; b < n1; b++)
-      for (let c = 0; c < n2; c++, p++) {
-        const x = [grid.coordinate(0, a), grid.coordinate(1, b), grid.coordinate(2, c)];
-        let r2 = 0;
-        for (let i = 0; i < grid.dims; i++) {
-          const L = grid.lengths[i]!;
-          let d = x[pad + i]! - center[i]!;
-          d -= L * Math.round(d / L);
-          r2 += d * d;
-        }
-        const r = Math.sqrt(r2);
-        const bin = Math.floor(r / h + 0.5);
-        if (bin >= bins) continue;
-        sum[bin] = sum[bin]! + psi[2 * p]! ** 2 + psi[2 * p + 1]! ** 2;
-        rs[bin] = rs[bin]! + r;
-        cnt[bin] = cnt[bin]! + 1;
-      }
-  const out: { r: number; density: number; cells: number }[] = [];
-  for (let i = 0; i < bins; i++) if (cnt[i]! > 0) out.push({ r: rs[i]! / cnt[i]!, density: sum[i]! / cnt[i]!, cells: cnt[i]! });
-  return out;
+    for (let b = 0; b < n1; b++) {
+      const kab = k0[a]! * k0[a]! + k1[b]! * k1[b]!;
+      for (let c = 0; c < n2; c++, p += 2) sum += (kab + k2[c]! * k2[c]!) * (spectrum[p]! ** 2 + spectrum[p + 1]! ** 2);
+    }
+  return sum;
 }
 
 /** The soliton core profile ρ_c / (1 + 0.091 (r/r_c)²)⁸ (Schive, Chiueh & Broadhurst 2014). */

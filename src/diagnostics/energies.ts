@@ -8,7 +8,7 @@
  * K is evaluated spectrally (Parseval): ∫|∇ψ|² dV = ΔV/N Σ_k k² |ψ_k|².
  */
 import type { Grid } from "../grid/grid.js";
-import type { ComplexFft } from "../fields/fft.js";
+import type { FieldTransforms } from "../fields/field-transforms.js";
 
 /** M = Σ |ψ|² ΔV. */
 export function fieldMass(grid: Grid, psi: Float64Array): number {
@@ -37,7 +37,7 @@ export function maxDensity(psi: Float64Array): number {
  * K = (1/(2a²)) ∫ |∇ψ|² dV. `scratch` (length 2N) receives a copy of ψ and is
  * transformed in place; ψ itself is not changed.
  */
-export function kineticEnergy(grid: Grid, psi: Float64Array, a: number, fft: ComplexFft, scratch: Float64Array): number {
+export function kineticEnergy(grid: Grid, psi: Float64Array, a: number, fft: Pick<FieldTransforms, "forward">, scratch: Float64Array): number {
   scratch.set(psi);
   fft.forward(scratch);
   const [k0, k1, k2] = [grid.wavenumbers(0), grid.wavenumbers(1), grid.wavenumbers(2)];
@@ -68,4 +68,31 @@ export function potentialEnergy(grid: Grid, psi: Float64Array, phi: Float64Array
     sum += (re * re + im * im) * (phi[i] as number);
   }
   return (0.5 / a) * sum * grid.cellVolume;
+}
+
+/**
+ * W of periodic gravity from the spectrum of ρ (work grid 0 of `fft`): by
+ * Parseval Σ ρφ = −(1/N) Σ_{k≠0} |ρ_k|²/k², φ being the periodic solver's
+ * (spectral kernel, zero mean), so W = (1/(2a)) ΔV Σ ρφ.
+ */
+export function periodicPotentialEnergy(grid: Grid, psi: Float64Array, a: number, fft: FieldTransforms): number {
+  const data = fft.work(0);
+  for (let i = 0; i < grid.size; i++) {
+    data[2 * i] = psi[2 * i]! * psi[2 * i]! + psi[2 * i + 1]! * psi[2 * i + 1]!;
+    data[2 * i + 1] = 0;
+  }
+  fft.forward(data);
+  const [k0, k1, k2] = [grid.wavenumbers(0), grid.wavenumbers(1), grid.wavenumbers(2)];
+  const [n0, n1, n2] = grid.shape;
+  let sum = 0;
+  let p = 0;
+  for (let i = 0; i < n0; i++)
+    for (let j = 0; j < n1; j++) {
+      const kab = k0[i]! * k0[i]! + k1[j]! * k1[j]!;
+      for (let l = 0; l < n2; l++, p += 2) {
+        const kk = kab + k2[l]! * k2[l]!;
+        if (kk > 0) sum -= (data[p]! * data[p]! + data[p + 1]! * data[p + 1]!) / kk;
+      }
+    }
+  return (0.5 / a) * (sum / grid.size) * grid.cellVolume;
 }

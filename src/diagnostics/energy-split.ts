@@ -20,8 +20,9 @@
  * exactly, all of |∇ψ|² is counted as quantum.
  */
 import type { Grid } from "../grid/grid.js";
-import { ComplexFft } from "../fields/fft.js";
-import { mirrorIndex, Shells, simulatedAxes, spectralDerivative } from "./shells.js";
+import { SimpleTransforms, type FieldTransforms } from "../fields/field-transforms.js";
+import { Shells, simulatedAxes, spectralDerivative } from "./shells.js";
+import { kineticFromSums, parsevalGradient, type KineticSplit } from "./analysis.js";
 
 /** One shell of the energy spectra (code units). */
 export interface EnergyShell {
@@ -52,101 +53,174 @@ export interface EnergySplit {
 
 const TINY = 1e-300;
 
-/** u and w of one axis packed as u + i w, transformed in place in `out`. */
-function packedComponents(grid: Grid, fft: ComplexFft, psi: Float64Array, spec: Float64Array, axis: 0 | 1 | 2, out: Float64Array): void {
-  spectralDerivative(grid, fft, spec, axis, out);
-  for (let i = 0; i < grid.size; i++) {
-    const re = psi[2 * i]!;
-    const im = psi[2 * i + 1]!;
-    const gr = out[2 * i]!;
-    const gi = out[2 * i + 1]!;
-    const rho = re * re + im * im;
-    if (rho > TINY) {
-      const s = Math.sqrt(rho);
-      out[2 * i] = (re * gr + im * gi) / s;
-      out[2 * i + 1] = (re * gi - im * gr) / s;
-    } else {
-      out[2 * i] = Math.sqrt(gr * gr + gi * gi);
-      out[2 * i + 1] = 0;
-    }
-  }
-  fft.forward(out);
+/** Sums of the current j = Im(ψ*∂ψ) along the axes done so far: Σ j²/ρ (over ρ > 0) and Σ j per axis. */
+interface FlowSums {
+  bulk2: number;
+  readonly jSum: number[];
 }
 
-/** Quantum, incompressible and compressible kinetic energy and their shell spectra, at scale factor a. */
-export function energySplit(grid: Grid, psi: Float64Array, a: number): EnergySplit {
+/** z ← u + i w of one axis from ψ and its derivative along the axis (in z), then transformed in place; adds the axis's current to `flow`. */
+function packComponents(fft: FieldTransforms, psi: Float64Array, z: Float64Array, flow: FlowSums): void {
+  const n = psi.length / 2;
+  let js = 0;
+  for (let i = 0; i < n; i++) {
+    const re = psi[2 * i]!;
+    const im = psi[2 * i + 1]!;
+    const gr = z[2 * i]!;
+    const gi = z[2 * i + 1]!;
+    const rho = re * re + im * im;
+    const j = re * gi - im * gr;
+    if (rho > 0) flow.bulk2 += (j * j) / rho;
+    js += j;
+    if (rho > TINY) {
+      const s = Math.sqrt(rho);
+      z[2 * i] = (re * gr + im * gi) / s;
+      z[2 * i + 1] = (re * gi - im * gr) / s;
+    } else {
+      z[2 * i] = Math.sqrt(gr * gr + gi * gi);
+      z[2 * i + 1] = 0;
+    }
+  }
+  flow.jSum.push(js);
+  fft.forward(z);
+}
+
+/** Running totals of the split (code energies). */
+interface Totals {
+  quantum: number;
+  /** Σ|W|² energy (incompressible + compressible) until the compressible part is taken out. */
+  incompressible: number;
+  compressible: number;
+  uniformFlow: number;
+  zeroMode: number;
+}
+
+/** The energy of the Nyquist planes' derivative, Σ over the modes with k_i = π/Δx of k_i²|ψ_k|² (summed per axis), times `perMode`. */
+function nyquistEnergy(grid: Grid, spec: Float64Array, perMode: number): number {
+  const [n0, n1, n2] = grid.shape;
+  let sum = 0;
+  for (const ax of simulatedAxes(grid)) {
+    const lo = [0, 0, 0];
+    const hi = [n0, n1, n2];
+    lo[ax] = grid.shape[ax] / 2;
+    hi[ax] = lo[ax]! + 1;
+    const k = grid.wavenumbers(ax)[lo[ax]!]!;
+    for (let a = lo[0]!; a < hi[0]!; a++)
+      for (let b = lo[1]!; b < hi[1]!; b++)
+        for (let c = lo[2]!; c < hi[2]!; c++) {
+          const p = 2 * ((a * n1 + b) * n2 + c);
+          sum += k * k * (spec[p]! ** 2 + spec[p + 1]! ** 2) * perMode;
+        }
+  }
+  return sum;
+}
+
+/**
+ * One axis's packed transform Z = U + iW into the shells and totals: U and
+ * W from Z_k and Z_−k, |U|² (quantum) and |W|² (flow) energies per mode,
+ * |W|² for the velocity power, and k_axis W added into `div` (k·W over the axes).
+ */
+function addAxis(grid: Grid, z: Float64Array, axis: number, div: Float64Array, shells: Shells, t: Totals, perMode: number, velocityPerMode: number): void {
+  const [n0, n1, n2] = grid.shape;
+  const [k0, k1, k2] = [grid.wavenumbers(0), grid.wavenumbers(1), grid.wavenumbers(2)];
+  let p = 0;
+  for (let a = 0; a < n0; a++) {
+    const ma = (n0 - a) % n0;
+    for (let b = 0; b < n1; b++) {
+      const mb = (n1 - b) % n1;
+      const mirrorRow = (ma * n1 + mb) * n2;
+      const kab = k0[a]! * k0[a]! + k1[b]! * k1[b]!;
+      for (let c = 0; c < n2; c++, p += 2) {
+        const m = 2 * (mirrorRow + ((n2 - c) % n2));
+        // U = (Z_k + conj Z_−k)/2, W = (Z_k − conj Z_−k)/(2i)
+        const ur = 0.5 * (z[p]! + z[m]!);
+        const ui = 0.5 * (z[p + 1]! - z[m + 1]!);
+        const wr = 0.5 * (z[p + 1]! + z[m + 1]!);
+        const wi = -0.5 * (z[p]! - z[m]!);
+        const kj = axis === 0 ? k0[a]! : axis === 1 ? k1[b]! : k2[c]!;
+        div[p] = div[p]! + kj * wr;
+        div[p + 1] = div[p + 1]! + kj * wi;
+        const eq = (ur * ur + ui * ui) * perMode;
+        const ww = wr * wr + wi * wi;
+        t.quantum += eq;
+        t.incompressible += ww * perMode;
+        const kk = kab + k2[c]! * k2[c]!;
+        if (kk === 0) {
+          t.uniformFlow += ww * perMode;
+          t.zeroMode += eq + ww * perMode;
+        }
+        const bin = shells.bin(Math.sqrt(kk));
+        shells.add(bin, 0, eq);
+        shells.add(bin, 1, ww * perMode);
+        shells.add(bin, 3, ww * velocityPerMode);
+      }
+    }
+  }
+}
+
+/** The compressible part |k̂·W|² from `div` = k·W: counted in the shells (with each mode), and moved out of the incompressible part. */
+function takeCompressible(grid: Grid, div: Float64Array, shells: Shells, t: Totals, perMode: number): void {
+  const [n0, n1, n2] = grid.shape;
+  const [k0, k1, k2] = [grid.wavenumbers(0), grid.wavenumbers(1), grid.wavenumbers(2)];
+  let p = 0;
+  for (let a = 0; a < n0; a++)
+    for (let b = 0; b < n1; b++) {
+      const kab = k0[a]! * k0[a]! + k1[b]! * k1[b]!;
+      for (let c = 0; c < n2; c++, p += 2) {
+        const kk = kab + k2[c]! * k2[c]!;
+        const bin = shells.addMode(Math.sqrt(kk));
+        if (kk === 0) continue;
+        const ec = ((div[p]! * div[p]! + div[p + 1]! * div[p + 1]!) / kk) * perMode;
+        t.compressible += ec;
+        t.incompressible -= ec;
+        shells.add(bin, 2, ec);
+        shells.add(bin, 1, -ec);
+      }
+    }
+}
+
+/**
+ * Quantum, incompressible and compressible kinetic energy and their shell
+ * spectra, at scale factor a. Uses work grids 0–2 of `fft`.
+ */
+export function energySplit(grid: Grid, psi: Float64Array, a: number, fft: FieldTransforms = new SimpleTransforms(grid.shape)): EnergySplit {
+  return energyAndKineticSplit(grid, psi, a, fft).split;
+}
+
+/**
+ * The energy split and, from the same transforms, the bulk-flow / quantum
+ * split of `kineticSplit` (analysis.ts; the same numbers). Work grids 0–2 of `fft`.
+ */
+export function energyAndKineticSplit(grid: Grid, psi: Float64Array, a: number, fft: FieldTransforms): { split: EnergySplit; kinetic: KineticSplit } {
   const n = grid.size;
-  const fft = new ComplexFft(grid.shape);
   const axes = simulatedAxes(grid);
-  const spec = Float64Array.from(psi);
+  const spec = fft.work(0);
+  spec.set(psi);
   fft.forward(spec);
   let mass = 0;
   for (let i = 0; i < n; i++) mass += psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2;
   const rhoBar = mass / n;
-  const energyPerMode = (0.5 / (a * a)) * (grid.cellVolume / n);
-  let unresolved = 0;
-  grid.forEachMode((p, kx, ky, kz, i0, i1, i2) => {
-    const idx = [i0, i1, i2];
-    const kv = [kx, ky, kz];
-    for (const ax of axes) if (2 * idx[ax]! === grid.shape[ax]) unresolved += kv[ax]! * kv[ax]! * (spec[p]! ** 2 + spec[p + 1]! ** 2) * energyPerMode;
-  });
-  // the last axis reuses the spectrum's array once its derivative is taken
-  const packed = axes.map((ax, j) => {
-    const out = j === axes.length - 1 ? spec : new Float64Array(2 * n);
-    packedComponents(grid, fft, psi, spec, ax, out);
-    return out;
-  });
+  const perMode = (0.5 / (a * a)) * (grid.cellVolume / n);
+  const unresolved = nyquistEnergy(grid, spec, perMode);
+  const gradient = parsevalGradient(grid, spec);
+  const flow: FlowSums = { bulk2: 0, jSum: [] };
   const velocityPerMode = grid.volume / (n * n) / (a * a * rhoBar);
   const shells = new Shells(grid, 4);
-  let quantum = 0;
-  let incompressible = 0;
-  let compressible = 0;
-  let uniformFlow = 0;
-  let zeroMode = 0;
-  const wr = [0, 0, 0];
-  const wi = [0, 0, 0];
-  grid.forEachMode((p, kx, ky, kz) => {
-    const i = p / 2;
-    const m = 2 * mirrorIndex(grid, i);
-    const kv = [kx, ky, kz];
-    let uu = 0;
-    let ww = 0;
-    let kwr = 0;
-    let kwi = 0;
-    for (let j = 0; j < axes.length; j++) {
-      const z = packed[j]!;
-      const zr = z[p]!;
-      const zi = z[p + 1]!;
-      const mr = z[m]!;
-      const mi = z[m + 1]!;
-      // U = (Z_k + conj Z_−k)/2, W = (Z_k − conj Z_−k)/(2i)
-      const ur = 0.5 * (zr + mr);
-      const ui = 0.5 * (zi - mi);
-      wr[j] = 0.5 * (zi + mi);
-      wi[j] = -0.5 * (zr - mr);
-      uu += ur * ur + ui * ui;
-      ww += wr[j]! * wr[j]! + wi[j]! * wi[j]!;
-      kwr += kv[axes[j]!]! * wr[j]!;
-      kwi += kv[axes[j]!]! * wi[j]!;
-    }
-    const k2 = kx * kx + ky * ky + kz * kz;
-    const cc = k2 > 0 ? (kwr * kwr + kwi * kwi) / k2 : 0;
-    const eq = uu * energyPerMode;
-    const ec = cc * energyPerMode;
-    const ei = (ww - cc) * energyPerMode;
-    quantum += eq;
-    compressible += ec;
-    incompressible += ei;
-    if (k2 === 0) {
-      uniformFlow += ei;
-      zeroMode += eq + ei + ec;
-    }
-    const b = shells.addMode(Math.sqrt(k2));
-    shells.add(b, 0, eq);
-    shells.add(b, 1, ei);
-    shells.add(b, 2, ec);
-    shells.add(b, 3, ww * velocityPerMode);
+  const totals: Totals = { quantum: 0, incompressible: 0, compressible: 0, uniformFlow: 0, zeroMode: 0 };
+  const div = fft.work(2);
+  div.fill(0);
+  axes.forEach((ax, j) => {
+    // the last axis reuses the spectrum's grid once its derivative is taken
+    const z = j === axes.length - 1 ? spec : fft.work(1);
+    spectralDerivative(grid, fft, spec, ax, z);
+    packComponents(fft, psi, z, flow);
+    addAxis(grid, z, ax, div, shells, totals, perMode, velocityPerMode);
   });
+  takeCompressible(grid, div, shells, totals, perMode);
+  const { quantum, incompressible, compressible, uniformFlow, zeroMode } = totals;
   const spectra = shells.rows().map((r) => ({ k: r.k, quantum: r.sums[0]!, incompressible: r.sums[1]!, compressible: r.sums[2]!, velocityPower: r.sums[3]! / r.modes, modes: r.modes }));
-  return { kinetic: quantum + incompressible + compressible + unresolved, quantum, incompressible, compressible, unresolved, uniformFlow, zeroMode, spectra };
+  return {
+    split: { kinetic: quantum + incompressible + compressible + unresolved, quantum, incompressible, compressible, unresolved, uniformFlow, zeroMode, spectra },
+    kinetic: kineticFromSums(grid, a, { gradient, bulk2: flow.bulk2, jSum: flow.jSum, mass }),
+  };
 }

@@ -16,7 +16,7 @@
  * comoving correlation length predicted is ħ/(m a σ).
  */
 import type { Grid } from "../grid/grid.js";
-import { ComplexFft } from "../fields/fft.js";
+import { SimpleTransforms, type FieldTransforms } from "../fields/field-transforms.js";
 import { lnGamma } from "../math/special.js";
 import { simulatedAxes } from "./shells.js";
 
@@ -46,11 +46,10 @@ function gammaPdf(x: number, k: number): number {
   return Math.exp(k * Math.log(k) + (k - 1) * Math.log(x) - k * x - lnGamma(k));
 }
 
-/** PDF, correlation function, correlation length and quasi-particle mass of the granules, at scale factor a. */
-export function granuleStats(grid: Grid, psi: Float64Array, a: number, pdfMax = 8, pdfBins = 40): GranuleStats {
+/** PDF, correlation function, correlation length and quasi-particle mass of the granules, at scale factor a (work grids 0 and 1 of `fft`). */
+export function granuleStats(grid: Grid, psi: Float64Array, a: number, fft: FieldTransforms = new SimpleTransforms(grid.shape), pdfMax = 8, pdfBins = 40): GranuleStats {
   const n = grid.size;
-  const fft = new ComplexFft(grid.shape);
-  const data = new Float64Array(2 * n);
+  const data = fft.work(0);
   let mean = 0;
   for (let i = 0; i < n; i++) mean += psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2;
   mean /= n;
@@ -60,6 +59,7 @@ export function granuleStats(grid: Grid, psi: Float64Array, a: number, pdfMax = 
   for (let i = 0; i < n; i++) {
     const x = (psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2) / mean;
     data[2 * i] = x - 1;
+    data[2 * i + 1] = 0;
     variance += (x - 1) ** 2 / n;
     const b = Math.floor(x / width);
     if (b < pdfBins) counts[b] = counts[b]! + 1;
@@ -117,21 +117,29 @@ export function granuleStats(grid: Grid, psi: Float64Array, a: number, pdfMax = 
 }
 
 /** 1D velocity dispersion σ = √((⟨k²⟩ − |⟨k⟩|²)/d)/a over |ψ_k|². */
-function velocityDispersion(grid: Grid, psi: Float64Array, fft: ComplexFft, a: number): number {
-  const spec = Float64Array.from(psi);
+function velocityDispersion(grid: Grid, psi: Float64Array, fft: FieldTransforms, a: number): number {
+  const spec = fft.work(1);
+  spec.set(psi);
   fft.forward(spec);
   let w = 0;
   let k2 = 0;
-  const k1 = [0, 0, 0];
-  grid.forEachMode((p, kx, ky, kz) => {
-    const m = spec[p]! ** 2 + spec[p + 1]! ** 2;
-    w += m;
-    k2 += (kx * kx + ky * ky + kz * kz) * m;
-    k1[0] = k1[0]! + kx * m;
-    k1[1] = k1[1]! + ky * m;
-    k1[2] = k1[2]! + kz * m;
-  });
-  const mean2 = (k1[0]! ** 2 + k1[1]! ** 2 + k1[2]! ** 2) / (w * w);
+  let kx1 = 0;
+  let ky1 = 0;
+  let kz1 = 0;
+  const [n0, n1, n2] = grid.shape;
+  const [kx, ky, kz] = [grid.wavenumbers(0), grid.wavenumbers(1), grid.wavenumbers(2)];
+  let p = 0;
+  for (let i = 0; i < n0; i++)
+    for (let j = 0; j < n1; j++)
+      for (let l = 0; l < n2; l++, p += 2) {
+        const m = spec[p]! ** 2 + spec[p + 1]! ** 2;
+        w += m;
+        k2 += (kx[i]! * kx[i]! + ky[j]! * ky[j]! + kz[l]! * kz[l]!) * m;
+        kx1 += kx[i]! * m;
+        ky1 += ky[j]! * m;
+        kz1 += kz[l]! * m;
+      }
+  const mean2 = (kx1 ** 2 + ky1 ** 2 + kz1 ** 2) / (w * w);
   return Math.sqrt(Math.max(0, k2 / w - mean2) / grid.dims) / a;
 }
 

@@ -2,12 +2,10 @@
  * Shells of Fourier space shared by the spectra: width k_F (the fundamental
  * of the longest simulated side), bin i holding round(|k|/k_F) = i + 1, out
  * to the grid's corner, as the density power spectrum bins them; k = 0 is
- * in no shell. Also the spectral derivative along one axis and the index of
- * the mode −k, which the spectra of two real fields packed into one complex
- * transform need.
+ * in no shell. Also the spectral derivative along one axis.
  */
 import type { Grid } from "../grid/grid.js";
-import type { ComplexFft } from "../fields/fft.js";
+import type { FieldTransforms } from "../fields/field-transforms.js";
 
 /** Accumulates per-mode values into shells; `rows()` gives the mean k, the sums and the mode count per shell. */
 export class Shells {
@@ -58,33 +56,33 @@ export class Shells {
   }
 }
 
-/**
- * `out` ← ∂ψ/∂x_axis by the spectral derivative of the spectrum `spec`
- * (i k ψ_k), with the Nyquist plane's derivative set to zero so that the
- * derivative of a real field stays real (`out` may be `spec`).
- */
-export function spectralDerivative(grid: Grid, fft: ComplexFft, spec: Float64Array, axis: 0 | 1 | 2, out: Float64Array): void {
-  const k = grid.wavenumbers(axis);
-  const [, n1, n2] = grid.shape;
-  const n = grid.size;
-  for (let i = 0; i < n; i++) {
-    const idx = axis === 0 ? Math.floor(i / (n1 * n2)) : axis === 1 ? Math.floor(i / n2) % n1 : i % n2;
-    const kk = 2 * idx === grid.shape[axis] ? 0 : k[idx]!;
-    const re = spec[2 * i]!;
-    const im = spec[2 * i + 1]!;
-    out[2 * i] = -kk * im;
-    out[2 * i + 1] = kk * re;
-  }
-  fft.inverse(out);
+/** The wavenumbers of the spectral derivative along `axis`: k, with the Nyquist index's set to zero. */
+export function derivativeWavenumbers(grid: Grid, axis: 0 | 1 | 2): Float64Array {
+  const k = Float64Array.from(grid.wavenumbers(axis));
+  if (grid.shape[axis] > 1) k[grid.shape[axis] / 2] = 0;
+  return k;
 }
 
-/** Cell index of the mode −k for the mode at cell index i (periodic). */
-export function mirrorIndex(grid: Grid, i: number): number {
+/**
+ * `out` ← ∂ψ/∂x_axis by the spectral derivative of the spectrum `spec`
+ * (i k ψ_k, then the inverse transform), with the Nyquist plane's
+ * derivative set to zero so that the derivative of a real field stays real
+ * (`out` may be `spec`; both are work grids of `fft`).
+ */
+export function spectralDerivative(grid: Grid, fft: FieldTransforms, spec: Float64Array, axis: 0 | 1 | 2, out: Float64Array): void {
+  const k = derivativeWavenumbers(grid, axis);
   const [n0, n1, n2] = grid.shape;
-  const a = Math.floor(i / (n1 * n2));
-  const b = Math.floor(i / n2) % n1;
-  const c = i % n2;
-  return (((n0 - a) % n0) * n1 + ((n1 - b) % n1)) * n2 + ((n2 - c) % n2);
+  let p = 0;
+  for (let a = 0; a < n0; a++)
+    for (let b = 0; b < n1; b++)
+      for (let c = 0; c < n2; c++, p += 2) {
+        const kk = k[axis === 0 ? a : axis === 1 ? b : c]!;
+        const re = spec[p]!;
+        const im = spec[p + 1]!;
+        out[p] = -kk * im;
+        out[p + 1] = kk * re;
+      }
+  fft.inverse(out);
 }
 
 /** The simulated internal axes (e.g. [1, 2] in 2D). */

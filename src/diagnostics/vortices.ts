@@ -93,39 +93,43 @@ export function findVortices(grid: Grid, psi: Float64Array): VortexCensus {
   };
   // plaquettes spanned by axes (p, q), normal r (3D) or none (2D)
   const orientations: [number, number, number][] = grid.dims === 2 ? [[1, 2, -1]] : [[1, 2, 0], [2, 0, 1], [0, 1, 2]];
-  const idx = [0, 0, 0];
+  const record = (i: number, ip: number, iq: number, ipq: number, charge: number, pa: number, qa: number, normal: number): void => {
+    if (charge > 0) positive += charge;
+    else negative -= charge;
+    const idx = [Math.floor(i / stride[0]!), Math.floor(i / n2) % n1, i % n2];
+    const corners = [i, ip, iq, ipq];
+    const [s, t] = grid.dims === 2 ? bilinearZero(corners.map((c) => psi[2 * c]!), corners.map((c) => psi[2 * c + 1]!)) : [0.5, 0.5];
+    const pos = [idx[0]! * grid.spacing[0], idx[1]! * grid.spacing[1], idx[2]! * grid.spacing[2]];
+    pos[pa] = pos[pa]! + s * grid.spacing[pa]!;
+    pos[qa] = pos[qa]! + t * grid.spacing[qa]!;
+    let length = 0;
+    if (normal >= 0) {
+      length = pierceLength(grid, psi, corners, idx, normal, pa, qa, step);
+      lineLength += length;
+      projection[idx[1]! * n2 + idx[2]!] = projection[idx[1]! * n2 + idx[2]!]! + length;
+    } else {
+      projection[idx[1]! * n2 + idx[2]!] = projection[idx[1]! * n2 + idx[2]!]! + 1;
+    }
+    points.push({ position: axes.map((ax) => pos[ax]!), charge, normal: normal >= 0 ? axes.indexOf(normal as 0 | 1 | 2) : -1, length });
+  };
   for (const [pa, qa, normal] of orientations) {
-    for (let i = 0; i < n; i++) {
-      idx[0] = Math.floor(i / stride[0]!);
-      idx[1] = Math.floor(i / n2) % n1;
-      idx[2] = i % n2;
-      const ip = step(i, pa, idx, 1);
-      const iq = step(i, qa, idx, 1);
-      idx[pa] = (idx[pa]! + 1) % grid.shape[pa]!;
-      const ipq = step(ip, qa, idx, 1);
-      idx[pa] = (idx[pa]! + grid.shape[pa]! - 1) % grid.shape[pa]!;
-      const w = wrap(phase[ip]! - phase[i]!) + wrap(phase[ipq]! - phase[ip]!) + wrap(phase[iq]! - phase[ipq]!) + wrap(phase[i]! - phase[iq]!);
-      const charge = Math.round(w / (2 * Math.PI));
-      if (charge === 0) continue;
-      if (charge > 0) positive += charge;
-      else negative -= charge;
-      const corners = [i, ip, iq, ipq];
-      const [s, t] = grid.dims === 2 ? bilinearZero(corners.map((c) => psi[2 * c]!), corners.map((c) => psi[2 * c + 1]!)) : [0.5, 0.5];
-      const pos = [idx[0]! * grid.spacing[0], idx[1]! * grid.spacing[1], idx[2]! * grid.spacing[2]];
-      pos[pa] = pos[pa]! + s * grid.spacing[pa]!;
-      pos[qa] = pos[qa]! + t * grid.spacing[qa]!;
-      let length = 0;
-      if (normal >= 0) {
-        length = pierceLength(grid, psi, corners, idx, normal, pa, qa, step);
-        lineLength += length;
-        projection[idx[1]! * n2 + idx[2]!] = projection[idx[1]! * n2 + idx[2]!]! + length;
-      } else {
-        projection[idx[1]! * n2 + idx[2]!] = projection[idx[1]! * n2 + idx[2]!]! + 1;
+    let i = 0;
+    for (let a = 0; a < n0; a++) {
+      const d0 = a === n0 - 1 ? -(n0 - 1) * stride[0]! : stride[0]!;
+      for (let b = 0; b < n1; b++) {
+        const d1 = b === n1 - 1 ? -(n1 - 1) * n2 : n2;
+        for (let c = 0; c < n2; c++, i++) {
+          const d2 = c === n2 - 1 ? -(n2 - 1) : 1;
+          const ip = i + (pa === 0 ? d0 : pa === 1 ? d1 : d2);
+          const iq = i + (qa === 0 ? d0 : qa === 1 ? d1 : d2);
+          const ipq = ip + iq - i;
+          const w = wrap(phase[ip]! - phase[i]!) + wrap(phase[ipq]! - phase[ip]!) + wrap(phase[iq]! - phase[ipq]!) + wrap(phase[i]! - phase[iq]!);
+          const charge = Math.round(w / (2 * Math.PI));
+          if (charge !== 0) record(i, ip, iq, ipq, charge, pa, qa, normal);
+        }
       }
-      points.push({ position: axes.map((ax) => pos[ax]!), charge, normal: normal >= 0 ? axes.indexOf(normal as 0 | 1 | 2) : -1, length });
     }
   }
-  void n0;
   const measure = grid.volume;
   return {
     dims: grid.dims as 2 | 3,

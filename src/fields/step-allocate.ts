@@ -16,6 +16,7 @@ import {
   wasmLayout,
   type FftBackend,
   type Region,
+  type RegionSpec,
   type StepGeometry,
   type StepSetup,
   type Transform,
@@ -47,7 +48,24 @@ export interface StepMemory {
  * @param slots threads that will run kernels (the wasm backend gives each a scratch block)
  */
 export function allocateStepMemory(backend: FftBackend, g: StepGeometry, transforms: readonly Transform[], tables: TableInputs, slots: number): StepMemory {
-  const specs = stepRegions(g, transforms, slots).filter((s) => backend === "wasm" || !s.wasmOnly);
+  const setup = allocateRegions(backend, g, stepRegions(g, transforms, slots), transforms, tables);
+  const regions = setup.regions;
+  return {
+    setup,
+    psi: regionView(setup, "psi"),
+    phi: regionView(setup, "phi"),
+    undo: regionView(setup, "undo"),
+    spectrum: regions.spectrum ? regionView(setup, "spectrum") : undefined,
+  };
+}
+
+/**
+ * Allocate the regions of a table (those marked wasm-only for the wasm
+ * backend only) and fill the tables; returns the layout every thread builds
+ * its engine from.
+ */
+export function allocateRegions(backend: FftBackend, g: StepGeometry, table: readonly RegionSpec[], transforms: readonly Transform[], tables: TableInputs): StepSetup {
+  const specs = table.filter((s) => backend === "wasm" || !s.wasmOnly);
   const regions: Record<string, Region> = {};
   let memory: WebAssembly.Memory | undefined;
   if (backend === "js") {
@@ -63,13 +81,7 @@ export function allocateStepMemory(backend: FftBackend, g: StepGeometry, transfo
   const setup: StepSetup = { backend, geometry: g, regions, memory, scratchBytes: backend === "wasm" ? scratchBytes(transforms) : 0 };
   fillTables(setup, tables);
   if (backend === "wasm") fillKernelTables(setup, transforms);
-  return {
-    setup,
-    psi: regionView(setup, "psi"),
-    phi: regionView(setup, "phi"),
-    undo: regionView(setup, "undo"),
-    spectrum: regions.spectrum ? regionView(setup, "spectrum") : undefined,
-  };
+  return setup;
 }
 
 function fillTables(setup: StepSetup, tables: TableInputs): void {

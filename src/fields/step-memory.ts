@@ -152,16 +152,37 @@ export function stepRegions(g: StepGeometry, transforms: readonly Transform[], s
     add("iso.spectrum", "complex", cells(g.paddedHalf!));
     add("iso.hat", "f64", cells(g.paddedHalf!));
   }
+  return [...out, ...kernelRegions(transforms, slots)];
+}
+
+/** The wasm kernels' regions for a list of transforms: twiddles, bit reversals, real-row twiddles, a scratch block per thread. */
+function kernelRegions(transforms: readonly Transform[], slots: number): RegionSpec[] {
+  const out: RegionSpec[] = [];
+  const add = (name: string, type: ElementType, length: number) => out.push({ name, type, length, wasmOnly: true });
   for (const n of new Set(transforms.map((t) => t.n))) {
     if (n < 2) continue;
-    add(regionName.twiddles(n, false), "complex", twiddleBytes(n) / 16, true);
-    add(regionName.twiddles(n, true), "complex", twiddleBytes(n) / 16, true);
-    add(regionName.reversal(n), "i32", n, true);
+    add(regionName.twiddles(n, false), "complex", twiddleBytes(n) / 16);
+    add(regionName.twiddles(n, true), "complex", twiddleBytes(n) / 16);
+    add(regionName.reversal(n), "i32", n);
   }
-  for (const n of new Set(transforms.map((t) => t.realRow).filter((n) => n > 0))) add(regionName.realTwiddles(n), "complex", n / 2 + 1, true);
+  for (const n of new Set(transforms.map((t) => t.realRow).filter((n) => n > 0))) add(regionName.realTwiddles(n), "complex", n / 2 + 1);
   const scratch = scratchBytes(transforms);
-  for (let slot = 0; slot < slots; slot++) add(regionName.scratch(slot), "complex", (2 * scratch) / 16, true);
+  for (let slot = 0; slot < slots; slot++) add(regionName.scratch(slot), "complex", (2 * scratch) / 16);
   return out;
+}
+
+/**
+ * The memory of whole-grid transforms without a step (the diagnostics'
+ * work grids, integrators/pooled-transforms.ts): `grids` complex grids
+ * named as extra fields ("field.1" …), the k² tables the engines read, and
+ * the kernels' regions for `transforms`.
+ */
+export function transformRegions(g: StepGeometry, grids: number, transforms: readonly Transform[], slots: number): RegionSpec[] {
+  const size = g.shape[0] * g.shape[1] * g.shape[2];
+  const out: RegionSpec[] = [];
+  for (let i = 1; i <= grids; i++) out.push({ name: `field.${i}`, type: "complex", length: size });
+  for (let axis = 0; axis < 3; axis++) out.push({ name: regionName.kSquared(axis), type: "f64", length: even(g.shape[axis]!) });
+  return [...out, ...kernelRegions(transforms, slots)];
 }
 
 /** Byte offsets of the regions in one wasm memory, and the memory's size. */

@@ -21,8 +21,33 @@ import type { Figure } from "./render.js";
 import { checkDiagnostics, type DiagnosticRequest } from "./diagnostic-options.js";
 import { fieldDiagnostics, physicalScales } from "./field-diagnostics.js";
 import { diagnosticFigures } from "./diagnostic-plots.js";
+import { PooledTransforms } from "../integrators/pooled-transforms.js";
+import { defaultThreads } from "../config/resolve-output.js";
+import type { Grid } from "../grid/grid.js";
+import { energyAndKineticSplit } from "../diagnostics/energy-split.js";
 
 const KPC = 1e3 * PC_M;
+
+/**
+ * The diagnostics' transforms of the snapshots being analysed: the step
+ * engine's kernels on the default threads, with the three work grids the
+ * energy split needs, made once per grid shape and reused.
+ */
+export class AnalysisTransforms {
+  private current: PooledTransforms | undefined;
+
+  of(grid: Grid): PooledTransforms {
+    if (this.current && this.current.shape.every((n, i) => n === grid.shape[i])) return this.current;
+    this.close();
+    this.current = new PooledTransforms(grid, 3, { threads: defaultThreads(grid.size) });
+    return this.current;
+  }
+
+  close(): void {
+    this.current?.close();
+    this.current = undefined;
+  }
+}
 
 /** What analysing one snapshot produced. */
 export interface SnapshotAnalysis {
@@ -48,14 +73,33 @@ function units(field: LoadedField): { kpcPerCode: number; densityUnit: number } 
 }
 
 /** Analyse one snapshot into `outDir` (created), with the field diagnostics of `request` and pictures drawn as `pictures` says. */
-export async function analyzeSnapshot(file: string, outDir: string, withPictures = true, request: DiagnosticRequest = {}, pictures: PictureOptions = DEFAULT_PICTURES): Promise<SnapshotAnalysis> {
+export async function analyzeSnapshot(
+  file: string,
+  outDir: string,
+  withPictures = true,
+  request: DiagnosticRequest = {},
+  pictures: PictureOptions = DEFAULT_PICTURES,
+  transforms?: AnalysisTransforms,
+): Promise<SnapshotAnalysis> {
   const snap = readSnapshot(file);
   const chosen = checkDiagnostics(request, snap.meta.cells.length, snap.meta.boxSizeKpc, snap.meta.cells, file);
   if (withPictures) checkSliceIndex(pictures, snap.meta.cells, file);
-  const field = loadField(snap);
+  // the pictures read only the snapshot's metadata: the field takes its ψ over (one grid less in memory)
+  const field = loadField(snap, true);
   fs.mkdirSync(outDir, { recursive: true });
-  const { summary, power } = snapshotTables(file, snap, field, outDir);
-  const diagnostics = fieldDiagnostics(field, chosen, outDir, request.husimiWindowKpc, request.husimiPointsKpc);
+  const own = transforms ?? new AnalysisTransforms();
+  let summary: Record<string, unknown>;
+  let power: { k: number; P: number }[];
+  let diagnostics: ReturnType<typeof fieldDiagnostics>;
+  try {
+    const fft = own.of(field.grid);
+    // the energy split's transforms give the tables' kinetic split too
+    const both = chosen.has("energy-split") ? energyAndKineticSplit(field.grid, field.psi, field.scaleFactor, fft) : undefined;
+    ({ summary, power } = snapshotTables(file, snap, field, outDir, fft, both?.kinetic));
+    diagnostics = fieldDiagnostics(field, chosen, outDir, fft, request.husimiWindowKpc, request.husimiPointsKpc, both?.split);
+  } finally {
+    if (!transforms) own.close();
+  }
   Object.assign(summary, diagnostics.summary);
   writeFileAtomic(path.join(outDir, "summary.json"), JSON.stringify(summary, null, 2) + "\n");
   const figures: Record<string, Figure> = {};
@@ -112,9 +156,14 @@ export async function analyzeRun(runDir: string, outDir: string, options: RunAna
   const pictures = options.pictures !== false;
   const pictureOptions = options.pictureOptions ?? DEFAULT_PICTURES;
   const snapshots: SnapshotAnalysis[] = [];
-  for (const f of files) {
-    snapshots.push(await analyzeSnapshot(f, path.join(outDir, path.basename(f, ".h5")), pictures, options.diagnostics, pictureOptions));
-    options.onSnapshot?.(snapshots.length, files.length);
+  const transforms = new AnalysisTransforms();
+  try {
+    for (const f of files) {
+      snapshots.push(await analyzeSnapshot(f, path.join(outDir, path.basename(f, ".h5")), pictures, options.diagnostics, pictureOptions, transforms));
+      options.onSnapshot?.(snapshots.length, files.length);
+    }
+  } finally {
+    transforms.close();
   }
   if (!pictures) return { snapshots, figures: {} };
   const firstSnap: Snapshot | undefined = files[0] ? readSnapshot(files[0]) : undefined;

@@ -7,7 +7,8 @@
 import path from "node:path";
 import { writeFileAtomic } from "../io/atomic.js";
 import type { LoadedField } from "../simulation/from-snapshot.js";
-import { energySplit } from "../diagnostics/energy-split.js";
+import type { FieldTransforms } from "../fields/field-transforms.js";
+import { energySplit, type EnergySplit } from "../diagnostics/energy-split.js";
 import { findVortices, type VortexCensus } from "../diagnostics/vortices.js";
 import { granuleStats, type GranuleStats } from "../diagnostics/granules.js";
 import { defaultHusimiWindow, husimiAt, husimiImage1D, wehrlEntropy } from "../diagnostics/husimi.js";
@@ -43,20 +44,27 @@ export interface FieldDiagnosticsResult {
   readonly eta?: number;
 }
 
-/** Compute the chosen diagnostics of `field` and write their tables into `outDir`. */
-export function fieldDiagnostics(field: LoadedField, chosen: Set<FieldDiagnostic>, outDir: string, windowKpc?: number, pointsKpc?: readonly (readonly number[])[]): FieldDiagnosticsResult {
+/** Compute the chosen diagnostics of `field` (the energy split given when measured already) and write their tables into `outDir`. */
+export function fieldDiagnostics(
+  field: LoadedField,
+  chosen: Set<FieldDiagnostic>,
+  outDir: string,
+  fft: FieldTransforms,
+  windowKpc?: number,
+  pointsKpc?: readonly (readonly number[])[],
+  measuredSplit?: EnergySplit,
+): FieldDiagnosticsResult {
   const s = physicalScales(field);
   const summary: Record<string, unknown> = {};
   const out: { -readonly [K in keyof FieldDiagnosticsResult]: FieldDiagnosticsResult[K] } = { summary };
-  if (chosen.has("energy-split")) out.split = writeEnergySplit(field, s, outDir, summary);
+  if (chosen.has("energy-split")) out.split = writeEnergySplit(field, s, outDir, summary, measuredSplit ?? energySplit(field.grid, field.psi, field.scaleFactor, fft));
   if (chosen.has("vortices")) out.vortices = writeVortices(field, s, outDir, summary);
-  if (chosen.has("granules")) out.granules = writeGranules(field, s, outDir, summary);
+  if (chosen.has("granules")) out.granules = writeGranules(field, s, outDir, summary, fft);
   if (chosen.has("husimi")) Object.assign(out, writeHusimi(field, s, outDir, summary, windowKpc, pointsKpc));
   return out;
 }
 
-function writeEnergySplit(field: LoadedField, s: PhysicalScales, outDir: string, summary: Record<string, unknown>) {
-  const split = energySplit(field.grid, field.psi, field.scaleFactor);
+function writeEnergySplit(field: LoadedField, s: PhysicalScales, outDir: string, summary: Record<string, unknown>, split: EnergySplit): EnergySplit {
   const d = field.grid.dims;
   writeFileAtomic(
     path.join(outDir, "energy-spectra.csv"),
@@ -88,8 +96,8 @@ function writeVortices(field: LoadedField, s: PhysicalScales, outDir: string, su
   return census;
 }
 
-function writeGranules(field: LoadedField, s: PhysicalScales, outDir: string, summary: Record<string, unknown>): GranuleStats {
-  const g = granuleStats(field.grid, field.psi, field.scaleFactor);
+function writeGranules(field: LoadedField, s: PhysicalScales, outDir: string, summary: Record<string, unknown>, fft: FieldTransforms): GranuleStats {
+  const g = granuleStats(field.grid, field.psi, field.scaleFactor, fft);
   writeFileAtomic(path.join(outDir, "granule-pdf.csv"), csvTable(["density_contrast", "pdf", "exponential", "gamma"], g.pdf.map((b) => [b.x, b.pdf, b.exponential, b.gamma])));
   writeFileAtomic(path.join(outDir, "granule-correlation.csv"), csvTable(["r_kpc", "xi", "random_phase_xi", "cells"], g.correlation.map((c) => [c.r * s.kpc, c.xi, c.predicted, c.cells])));
   summary["granules"] = {

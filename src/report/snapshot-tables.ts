@@ -6,9 +6,10 @@
 import fs from "node:fs";
 import path from "node:path";
 import type { Snapshot } from "../io/snapshot.js";
+import type { FieldTransforms } from "../fields/field-transforms.js";
 import { writeFileAtomic } from "../io/atomic.js";
 import { fieldStats, type LoadedField } from "../simulation/from-snapshot.js";
-import { densestPoints, densityPdf, densityPowerSpectrum, fitCoreProfile, kineticSplit, radialProfile } from "../diagnostics/analysis.js";
+import { densestPoints, densityPdf, densityPowerSpectrum, fitCoreProfile, kineticSplit, radialProfile, type KineticSplit } from "../diagnostics/analysis.js";
 import { KG_PER_EV, M_SUN_KG, PC_M } from "../physics/constants.js";
 import { csvTable as csv } from "./csv-table.js";
 
@@ -36,8 +37,15 @@ function powerTable(power: readonly { k: number; power: number; modes: number }[
   );
 }
 
-/** Write one snapshot's tables into `outDir` (created); returns its summary (for summary.json, written by the caller) and P(k) in kpc^d. */
-export function snapshotTables(file: string, snap: Snapshot, field: LoadedField, outDir: string): { summary: Record<string, unknown>; power: { k: number; P: number }[] } {
+/** Write one snapshot's tables into `outDir` (created), with the kinetic split when it was measured already; returns its summary (for summary.json, written by the caller) and P(k) in kpc^d. */
+export function snapshotTables(
+  file: string,
+  snap: Snapshot,
+  field: LoadedField,
+  outDir: string,
+  fft: FieldTransforms,
+  kinetic?: KineticSplit,
+): { summary: Record<string, unknown>; power: { k: number; P: number }[] } {
   const { grid, units, psi } = field;
   const a = field.scaleFactor;
   const kpcPerCode = units.lengthM / KPC;
@@ -46,13 +54,13 @@ export function snapshotTables(file: string, snap: Snapshot, field: LoadedField,
   const kms = units.lengthM / units.timeS / 1e3;
   fs.mkdirSync(outDir, { recursive: true });
 
-  const power = densityPowerSpectrum(grid, psi);
+  const power = densityPowerSpectrum(grid, psi, fft);
   writeFileAtomic(path.join(outDir, "power.csv"), powerTable(power, kpcPerCode, grid.dims, snap.meta.background.kind === "lcdm" ? snap.meta.background.hubbleKmSMpc / 100 : undefined));
   const pdf = densityPdf(psi);
   writeFileAtomic(path.join(outDir, "pdf.csv"), csv(["log10_density_contrast", "volume_fraction", "mass_fraction"], pdf.map((p) => [p.log10Contrast, p.volumeFraction, p.massFraction])));
 
-  const stats = fieldStats(field);
-  const split = kineticSplit(grid, psi, a);
+  const stats = fieldStats(field, fft);
+  const split = kinetic ?? kineticSplit(grid, psi, a, fft);
   const m22over10 = units.particleMassKg / KG_PER_EV / 1e-23; // m / 1e-23 eV
   const peaks = densestPoints(grid, psi, 5, Math.max(4, grid.cells[0]! / 16));
   const profileRows: (number | string)[][] = [];

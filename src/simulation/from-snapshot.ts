@@ -7,9 +7,10 @@ import { makePoissonSolver, type GravityKind, type PoissonSolver } from "../fiel
 import { makeBackground, type Background } from "../physics/cosmology/background.js";
 import { CodeUnits } from "../physics/units.js";
 import { KG_PER_EV, MPC_M, M_SUN_KG, PC_M } from "../physics/constants.js";
-import { fieldMass, kineticEnergy, maxDensity, potentialEnergy } from "../diagnostics/energies.js";
+import { fieldMass, kineticEnergy, maxDensity, periodicPotentialEnergy, potentialEnergy } from "../diagnostics/energies.js";
 import { SplitStepper } from "../integrators/split-step.js";
 import type { Snapshot } from "../io/snapshot.js";
+import type { FieldTransforms } from "../fields/field-transforms.js";
 
 /** A snapshot's field in code units with the machinery to evaluate it. */
 export interface LoadedField {
@@ -24,8 +25,8 @@ export interface LoadedField {
 
 const KPC_M = 1e3 * PC_M;
 
-/** Rebuild the field of a snapshot in code units. */
-export function loadField(snap: Snapshot): LoadedField {
+/** Rebuild the field of a snapshot in code units; with `takeOver`, ψ is converted in snap.psi itself (which then holds code units). */
+export function loadField(snap: Snapshot, takeOver = false): LoadedField {
   const m = snap.meta;
   const units = new CodeUnits(m.particleMassEv * KG_PER_EV, (m.boxSizeKpc[0] as number) * KPC_M);
   const grid = new Grid(m.cells, m.boxSizeKpc.map((l) => (l * KPC_M) / units.lengthM));
@@ -43,7 +44,8 @@ export function loadField(snap: Snapshot): LoadedField {
   const gravity = makePoissonSolver(grid, gravityKind);
   const densityUnit = (M_SUN_KG / KPC_M ** 3) / (units.massKg / units.lengthM ** 3); // Msun/kpc³ in code units
   const f = Math.sqrt(densityUnit);
-  const psi = Float64Array.from(snap.psi, (v) => v * f);
+  const psi = takeOver ? snap.psi : new Float64Array(snap.psi.length);
+  for (let i = 0; i < psi.length; i++) psi[i] = snap.psi[i]! * f;
   return { units, grid, background, gravity, psi, scaleFactor: m.scaleFactor };
 }
 
@@ -59,14 +61,25 @@ export interface FieldStats {
   readonly virialRatio: number;
 }
 
-/** Mass, density range and energies of a loaded field (the run's own diagnostics). */
-export function fieldStats(field: LoadedField): FieldStats {
+/**
+ * Mass, density range and energies of a loaded field (the run's own
+ * diagnostics). With `fft`, K is measured on its work grid 0, and so is W for
+ * periodic gravity (by Parseval, Σ ρφ = −(1/N) Σ_{k≠0} |ρ_k|²/k²: the
+ * periodic solver's φ); otherwise a stepper computes φ as a run does.
+ */
+export function fieldStats(field: LoadedField, fft?: FieldTransforms): FieldStats {
   const { grid, units, psi, scaleFactor: a } = field;
-  const stepper = new SplitStepper(grid, field.background, field.gravity);
-  stepper.setState(psi, 0);
-  const scratch = new Float64Array(psi.length);
-  const K = kineticEnergy(grid, stepper.psi, a, stepper.fft, scratch);
-  const W = potentialEnergy(grid, stepper.psi, stepper.phi, a);
+  let K: number;
+  let W: number;
+  if (fft && field.gravity.kind !== "isolated") {
+    K = kineticEnergy(grid, psi, a, fft, fft.work(0));
+    W = field.gravity.kind === "periodic" ? periodicPotentialEnergy(grid, psi, a, fft) : 0;
+  } else {
+    const stepper = new SplitStepper(grid, field.background, field.gravity);
+    stepper.setState(psi, 0);
+    K = kineticEnergy(grid, stepper.psi, a, stepper.fft, new Float64Array(psi.length));
+    W = potentialEnergy(grid, stepper.psi, stepper.phi, a);
+  }
   let min = Infinity;
   for (let i = 0; i < psi.length; i += 2) min = Math.min(min, psi[i]! ** 2 + psi[i + 1]! ** 2);
   const toDensity = (units.massKg / units.lengthM ** 3) / (M_SUN_KG / KPC_M ** 3);

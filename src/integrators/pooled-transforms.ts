@@ -1,0 +1,106 @@
+/**
+ * The diagnostics' whole-grid transforms (fields/field-transforms.ts) on the
+ * step engine: the WebAssembly SIMD kernels (or fft.js) over work grids laid
+ * out as the step's memory, with the passes split across worker threads as
+ * the step splits them. A transform is three axis passes (the last axis by
+ * rows, then the strided axes by blocks of pencils), each a `StepTask`, so
+ * a grid's transform is the same bit for bit whatever the thread count.
+ */
+import type { Triple } from "../grid/grid.js";
+import type { Grid } from "../grid/grid.js";
+import type { FieldTransforms } from "../fields/field-transforms.js";
+import { allocateRegions } from "../fields/step-allocate.js";
+import { createEngine, outerCount, type ComplexGrid, type StepEngine } from "../fields/step-engine.js";
+import { regionView, stepGeometry, transformRegions, WASM_MAX_BYTES, wasmLayout, type FftBackend, type StepSetup, type Transform } from "../fields/step-memory.js";
+import { kernelModule } from "../fields/wasm-kernels.js";
+import { RESULT_LENGTH, runTask, transformOf, type StepTask } from "./step-task.js";
+import { ThreadPool, type ThreadPoolOptions } from "./thread-pool.js";
+
+/** What a pooled transform set is built with. */
+export interface PooledOptions {
+  /** Threads in all (1: this thread only). */
+  readonly threads: number;
+  /** "auto": the kernels when they load and the grids fit a 4 GiB memory, else fft.js. */
+  readonly backend?: FftBackend | "auto";
+  readonly pool?: ThreadPoolOptions;
+}
+
+/** The transforms along each simulated axis of a shape. */
+function axisTransforms(shape: Triple): Transform[] {
+  const g = stepGeometry(shape, "none");
+  return [0, 1, 2].filter((ax) => shape[ax]! > 1).map((axis) => transformOf({ op: "axis", field: "psi", axis, inverse: false }, g)!);
+}
+
+/** The backend for `grids` work grids of `shape` on `threads` threads. */
+function chooseBackend(shape: Triple, grids: number, threads: number, choice: FftBackend | "auto"): FftBackend {
+  if (choice !== "auto") return choice;
+  const specs = transformRegions(stepGeometry(shape, "none"), grids, axisTransforms(shape), threads);
+  return kernelModule() !== null && wasmLayout(specs).total <= WASM_MAX_BYTES ? "wasm" : "js";
+}
+
+/** Work grids in the step's memory, transformed by the step engine's passes on a pool of threads. */
+export class PooledTransforms implements FieldTransforms {
+  readonly shape: Triple;
+  readonly backend: FftBackend;
+  readonly threads: number;
+  private readonly setup: StepSetup;
+  private readonly views: Float64Array[];
+  private readonly engine: StepEngine;
+  private readonly pool: ThreadPool | undefined;
+  private readonly result = new Float64Array(RESULT_LENGTH);
+
+  /** @param grids how many work grids (work(0) … work(grids − 1)) */
+  constructor(grid: Grid, grids: number, options: PooledOptions) {
+    const shape = grid.shape;
+    this.shape = shape;
+    this.threads = Math.max(1, options.threads);
+    this.backend = chooseBackend(shape, grids, this.threads, options.backend ?? "auto");
+    const g = stepGeometry(shape, "none");
+    const transforms = axisTransforms(shape);
+    const kSquared = ([0, 1, 2] as const).map((ax) => Float64Array.from(grid.wavenumbers(ax), (k) => k * k));
+    this.setup = allocateRegions(this.backend, g, transformRegions(g, grids, transforms, this.threads), transforms, { kSquared });
+    this.views = Array.from({ length: grids }, (_, i) => regionView(this.setup, this.name(i)));
+    this.engine = createEngine(this.setup, 0);
+    this.pool = this.threads > 1 ? new ThreadPool(this.threads, this.setup, options.pool) : undefined;
+  }
+
+  private name(i: number): ComplexGrid {
+    return `field.${i + 1}`;
+  }
+
+  work(i: number): Float64Array {
+    const v = this.views[i];
+    if (!v) throw new RangeError(`work grid ${i} of ${this.views.length}`);
+    return v;
+  }
+
+  /** The region name of a work grid (an array that is not one is a programming error). */
+  private nameOf(grid: Float64Array): ComplexGrid {
+    const i = this.views.findIndex((v) => v.buffer === grid.buffer && v.byteOffset === grid.byteOffset && v.length === grid.length);
+    if (i < 0) throw new Error("pooled transforms run on their own work grids only");
+    return this.name(i);
+  }
+
+  forward(grid: Float64Array): void {
+    const field = this.nameOf(grid);
+    for (let axis = 2; axis >= 0; axis--) this.axisPass(field, axis, false);
+  }
+
+  inverse(grid: Float64Array): void {
+    const field = this.nameOf(grid);
+    for (let axis = 0; axis < 3; axis++) this.axisPass(field, axis, true);
+  }
+
+  private axisPass(field: ComplexGrid, axis: number, inverse: boolean): void {
+    if (this.shape[axis]! < 2) return;
+    const task: StepTask = { op: "axis", field, axis, inverse };
+    const units = outerCount(this.shape, axis);
+    if (this.pool) this.pool.run(units, task, this.result);
+    else runTask(this.engine, task, 0, units, this.result);
+  }
+
+  /** Stop the worker threads (the work grids stay readable). */
+  close(): void {
+    this.pool?.close();
+  }
+}

@@ -1,0 +1,101 @@
+// The diagnostics on the step engine's kernels and threads (PooledTransforms) against the same diagnostics on
+// fft.js on this thread (SimpleTransforms; fft.js is a general-purpose library from the registry), on small grids,
+// for both backends and one or two threads: every number agrees to 1e-12 of its scale.
+import { afterAll, describe, expect, it } from "vitest";
+import { Grid } from "../../src/grid/grid.js";
+import { ComplexFft } from "../../src/fields/fft.js";
+import { SimpleTransforms } from "../../src/fields/field-transforms.js";
+import { PooledTransforms } from "../../src/integrators/pooled-transforms.js";
+import { densityPowerSpectrum, kineticSplit } from "../../src/diagnostics/analysis.js";
+import { energyAndKineticSplit, energySplit } from "../../src/diagnostics/energy-split.js";
+import { granuleStats } from "../../src/diagnostics/granules.js";
+import { fieldStats, loadField } from "../../src/simulation/from-snapshot.js";
+import { gaussianComplexField } from "../helpers/random-field.js";
+
+/** Largest |a − b| over every number in two results of the same shape, divided by `scale`. */
+function worst(a: unknown, b: unknown, scale: number): number {
+  if (typeof a === "number" && typeof b === "number") return a === b ? 0 : Math.abs(a - b) / scale;
+  if (Array.isArray(a) || ArrayBuffer.isView(a)) {
+    const x = a as ArrayLike<unknown>;
+    const y = b as ArrayLike<unknown>;
+    expect(x.length).toBe(y.length);
+    return Array.from({ length: x.length }, (_, i) => worst(x[i], y[i], scale)).reduce((m, v) => Math.max(m, v), 0);
+  }
+  const keys = Object.keys(b as object);
+  return keys.map((k) => worst((a as Record<string, unknown>)[k], (b as Record<string, unknown>)[k], scale)).reduce((m, v) => Math.max(m, v), 0);
+}
+
+const cases = [
+  { cells: [16, 16, 16], a: 0.7 },
+  { cells: [32, 16], a: 1 },
+  { cells: [64], a: 1 },
+] as const;
+const variants = [
+  { backend: "wasm", threads: 2 },
+  { backend: "wasm", threads: 1 },
+  { backend: "js", threads: 2 },
+] as const;
+const opened: PooledTransforms[] = [];
+afterAll(() => opened.forEach((t) => t.close()));
+
+describe.each(cases)("$cells.length-D grid $cells", ({ cells, a }) => {
+  const grid = new Grid([...cells], cells.map((_, i) => 1 + 0.25 * i));
+  // a random field full of vortices on a mean: every part of every split is present
+  const psi = gaussianComplexField(grid, (k2) => Math.exp(-k2 / 300), 3);
+  for (let i = 0; i < grid.size; i++) psi[2 * i] = psi[2 * i]! + 0.5;
+  const simple = () => new SimpleTransforms(grid.shape);
+
+  it.each(variants)("$backend backend, $threads thread(s): a whole-grid transform equals fft.js to 1e-12", ({ backend, threads }) => {
+    const fast = new PooledTransforms(grid, 3, { threads, backend });
+    opened.push(fast);
+    expect(fast.backend).toBe(backend);
+    const ref = Float64Array.from(psi);
+    new ComplexFft(grid.shape).forward(ref);
+    const w = fast.work(1);
+    w.set(psi);
+    fast.forward(w);
+    const scale = Math.max(...ref.map(Math.abs));
+    expect(worst(w, ref, scale)).toBeLessThan(1e-12);
+    fast.inverse(w);
+    expect(worst(w, psi, Math.max(...psi.map(Math.abs)))).toBeLessThan(1e-12);
+    expect(() => fast.forward(Float64Array.from(psi))).toThrow(/work grids/);
+  });
+
+  it.each(variants)("$backend backend, $threads thread(s): energy split, kinetic split, P(k), granules and field energies agree to 1e-12", ({ backend, threads }) => {
+    const fast = new PooledTransforms(grid, 3, { threads, backend });
+    opened.push(fast);
+    const split = energySplit(grid, psi, a, simple());
+    const both = energyAndKineticSplit(grid, psi, a, fast);
+    expect(worst(both.split, split, split.kinetic)).toBeLessThan(1e-12);
+    const kinetic = kineticSplit(grid, psi, a, simple());
+    expect(worst(both.kinetic, kinetic, kinetic.kinetic)).toBeLessThan(1e-12);
+    expect(worst(kineticSplit(grid, psi, a, fast), kinetic, kinetic.kinetic)).toBeLessThan(1e-12);
+    const power = densityPowerSpectrum(grid, psi, simple());
+    expect(worst(densityPowerSpectrum(grid, psi, fast), power, Math.max(...power.map((b) => b.power)))).toBeLessThan(1e-12);
+    const granules = granuleStats(grid, psi, a, simple());
+    const g = granuleStats(grid, psi, a, fast);
+    expect(worst(g.correlation, granules.correlation, granules.correlation[0]!.xi)).toBeLessThan(1e-12);
+    expect(worst(g.pdf, granules.pdf, 1)).toBeLessThan(1e-12);
+    for (const key of ["variance", "gammaShape", "correlationLength", "predictedLength", "velocityDispersion", "quasiParticleMass", "predictedQuasiParticleMass"] as const) {
+      expect(worst(g[key], granules[key], Math.abs(granules[key]))).toBeLessThan(1e-12);
+    }
+  });
+});
+
+describe("field energies of a snapshot", () => {
+  it("K and the periodic W from the transforms' spectra equal a stepper's (periodic Poisson solve, real-space Σ ρφ) to 1e-12", () => {
+    const cells = [16, 16, 16];
+    const grid = new Grid(cells, [1, 1, 1]);
+    const psi = gaussianComplexField(grid, (k2) => Math.exp(-k2 / 300), 9);
+    for (let i = 0; i < grid.size; i++) psi[2 * i] = psi[2 * i]! + 1;
+    const meta = { kind: "snapshot", software: "test", step: 0, time: 0, timeUnit: "Myr", scaleFactor: 0.5, redshift: 1, cells, boxSizeKpc: [50, 50, 50], particleMassEv: 1e-22, gravity: "periodic", background: { kind: "static" }, massMsun: 1e9, config: "", configSha256: "" } as const;
+    const field = loadField({ meta, psi } as unknown as Parameters<typeof loadField>[0]);
+    const reference = fieldStats(field);
+    const fast = new PooledTransforms(field.grid, 3, { threads: 2, backend: "wasm" });
+    opened.push(fast);
+    const stats = fieldStats(field, fast);
+    expect(Math.abs(stats.kineticMsunKm2S2 / reference.kineticMsunKm2S2 - 1)).toBeLessThan(1e-12);
+    expect(Math.abs(stats.potentialMsunKm2S2 / reference.potentialMsunKm2S2 - 1)).toBeLessThan(1e-12);
+    expect(reference.potentialMsunKm2S2).toBeLessThan(0);
+  });
+});
