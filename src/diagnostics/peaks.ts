@@ -74,14 +74,34 @@ function peakCandidates(grid: Grid, rho: Float64Array): Int32Array {
   return Int32Array.from(out);
 }
 
+/** The densest cell (the first of equals): the densest local maximum, without the candidates' pass. */
+function densestCell(psi: Float64Array): { cell: number; rho: number } {
+  let best = 0;
+  let max = -Infinity;
+  for (let i = 0; i < psi.length / 2; i++) {
+    const r = psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2;
+    if (r > max) {
+      max = r;
+      best = i;
+    }
+  }
+  return { cell: best, rho: max };
+}
+
 /** The `count` densest local maxima at least `minSeparation` cells apart (indices and densities). */
 export function densestPoints(grid: Grid, psi: Float64Array, count: number, minSeparation: number): { index: number; coords: number[]; density: number }[] {
+  const [, n1, n2] = grid.shape;
+  const cell = (i: number) => [Math.floor(i / (n1 * n2)), Math.floor(i / n2) % n1, i % n2];
+  const coordsOf = (ci: number[]) => [grid.coordinate(0, ci[0]!), grid.coordinate(1, ci[1]!), grid.coordinate(2, ci[2]!)].slice(3 - grid.dims);
+  if (count === 1) {
+    // the first local maximum taken is the densest cell, which no neighbour exceeds
+    const top = densestCell(psi);
+    return [{ index: top.cell, coords: coordsOf(cell(top.cell)), density: top.rho }];
+  }
   const n = grid.size;
   const rho = new Float64Array(n);
   for (let i = 0; i < n; i++) rho[i] = psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2;
-  const [, n1, n2] = grid.shape;
   const heap = new PeakHeap(rho, peakCandidates(grid, rho));
-  const cell = (i: number) => [Math.floor(i / (n1 * n2)), Math.floor(i / n2) % n1, i % n2];
   const chosen: { index: number; coords: number[]; density: number }[] = [];
   for (let i = heap.pop(); i >= 0 && chosen.length < count; i = heap.pop()) {
     const ci = cell(i);
@@ -96,10 +116,7 @@ export function densestPoints(grid: Grid, psi: Float64Array, count: number, minS
       }
       return d2 >= minSeparation * minSeparation;
     });
-    if (far) {
-      const coords = [grid.coordinate(0, ci[0]!), grid.coordinate(1, ci[1]!), grid.coordinate(2, ci[2]!)].slice(3 - grid.dims);
-      chosen.push({ index: i, coords, density: rho[i]! });
-    }
+    if (far) chosen.push({ index: i, coords: coordsOf(ci), density: rho[i]! });
   }
   return chosen;
 }
