@@ -9,24 +9,34 @@
  * stopping its child when its own parent (a sweep) is gone.
  */
 import { spawn } from "node:child_process";
-import fs from "node:fs";
+import v8 from "node:v8";
+import { addressSpaceLimit } from "../core/system-limits.js";
 
 /** The flag that turns off V8's trap-handler reservations. */
 export const NO_TRAP_HANDLER = "--disable-wasm-trap-handler";
 const MARK = "PSIBOX_ADDRESS_SPACE_REEXEC";
 
-/** The soft address-space limit of this process in bytes (from /proc/self/limits), or undefined when there is none or it cannot be read. */
-export function addressSpaceLimit(): number | undefined {
-  let text: string;
+export { addressSpaceLimit };
+
+/**
+ * HDF5's heap (a WebAssembly memory that can grow to 2 GiB) reserves its
+ * whole maximum even with the trap handler off; psibox reads and writes in
+ * slabs (io/slabs.ts), so 512 MiB is plenty. Under a limit the CLI caps
+ * WebAssembly memories at that size while HDF5 loads, then lifts the cap
+ * so that the step's own memory (sized exactly to the grid) can be up to
+ * 4 GiB again.
+ */
+export const HDF5_HEAP_PAGES = 8192;
+const WASM_MAX_PAGES = 65536;
+
+/** Load HDF5 with its heap capped at HDF5_HEAP_PAGES (64 KiB each), then lift the cap. */
+export async function loadHdf5Capped(): Promise<void> {
+  v8.setFlagsFromString(`--wasm-max-mem-pages=${HDF5_HEAP_PAGES}`);
   try {
-    text = fs.readFileSync("/proc/self/limits", "utf8");
-  } catch {
-    return undefined;
+    await (await import("../io/h5.js")).loadHdf5();
+  } finally {
+    v8.setFlagsFromString(`--wasm-max-mem-pages=${WASM_MAX_PAGES}`);
   }
-  const line = text.split("\n").find((l) => l.startsWith("Max address space"));
-  const soft = line?.slice("Max address space".length).trim().split(/\s+/)[0];
-  const bytes = Number(soft);
-  return soft === undefined || soft === "unlimited" || !Number.isFinite(bytes) ? undefined : bytes;
 }
 
 /** Whether this process should run itself again with the flag. */

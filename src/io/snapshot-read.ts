@@ -7,15 +7,9 @@
 import { InputError } from "../core/errors.js";
 import { Dataset, Group, hdf5Reason, openHdf5, type H5File } from "./h5.js";
 import { hasAttr, numberOf, numbersOf, stringOf } from "./h5-attrs.js";
+import { readFloat64, readSlabs } from "./slabs.js";
 import { PSI_IM, PSI_RE, SNAPSHOT_FORMAT, SNAPSHOT_VERSION, STATE, V1 } from "./snapshot-layout.js";
 import type { CheckpointState, Snapshot, SnapshotBackground, SnapshotMeta } from "./snapshot.js";
-
-function readFloat64(ds: Dataset, file: string): Float64Array {
-  const v = ds.value;
-  if (v instanceof Float64Array) return v;
-  if (v instanceof Float32Array) return Float64Array.from(v);
-  throw new InputError(`${file}: dataset ${ds.path} is not floating point`);
-}
 
 function dataset(f: H5File, name: string, file: string, what: string): Dataset {
   const ds = f.get(name);
@@ -35,18 +29,19 @@ function readPsiV1(f: H5File, cells: readonly number[], file: string): Float64Ar
   return readFloat64(ds, file);
 }
 
-/** Version 2: ψ as psi_re and psi_im over the grid's dimensions. */
+/** Version 2: ψ as psi_re and psi_im over the grid's dimensions, interleaved slab by slab. */
 function readPsiV2(f: H5File, cells: readonly number[], file: string): Float64Array {
   const re = dataset(f, PSI_RE, file, "the snapshot has no field");
   const im = dataset(f, PSI_IM, file, "the snapshot has no field");
   checkShape(re, cells, file);
   checkShape(im, cells, file);
-  const a = readFloat64(re, file);
-  const b = readFloat64(im, file);
-  const psi = new Float64Array(2 * a.length);
-  for (let i = 0; i < a.length; i++) {
-    psi[2 * i] = a[i]!;
-    psi[2 * i + 1] = b[i]!;
+  const rowCells = cells.slice(1).reduce((p, n) => p * n, 1);
+  const psi = new Float64Array(2 * rowCells * (cells[0] as number));
+  for (const [ds, offset] of [[re, 0], [im, 1]] as const) {
+    readSlabs(ds, file, (r0, _r1, slab) => {
+      const base = 2 * r0 * rowCells + offset;
+      for (let i = 0; i < slab.length; i++) psi[base + 2 * i] = slab[i]!;
+    });
   }
   return psi;
 }
@@ -130,14 +125,11 @@ function layoutVersion(f: H5File, file: string): number {
   return version;
 }
 
-/** Read a psibox snapshot or checkpoint of any layout; `withState` also reads a checkpoint's exact state. */
-export function readSnapshot(file: string, withState = false): Snapshot {
+/** Open `file`, read what `read` takes from it, close it; HDF5 failures become an InputError naming the file. */
+function withFile<T>(file: string, read: (f: H5File, version: number) => T): T {
   const f = openHdf5(file);
   try {
-    const version = layoutVersion(f, file);
-    const meta = readMeta(f, version, file);
-    const psi = version === 1 ? readPsiV1(f, meta.cells, file) : readPsiV2(f, meta.cells, file);
-    return withState ? { meta, psi, state: readState(f, file) } : { meta, psi };
+    return read(f, layoutVersion(f, file));
   } catch (e) {
     if (e instanceof InputError) throw e;
     throw new InputError(`${file}: cannot read the snapshot (${hdf5Reason(e)})`);
@@ -146,15 +138,21 @@ export function readSnapshot(file: string, withState = false): Snapshot {
   }
 }
 
+/** Read a psibox snapshot or checkpoint of any layout; `withState` also reads a checkpoint's exact state. */
+export function readSnapshot(file: string, withState = false): Snapshot {
+  return withFile(file, (f, version) => {
+    const meta = readMeta(f, version, file);
+    const psi = version === 1 ? readPsiV1(f, meta.cells, file) : readPsiV2(f, meta.cells, file);
+    return withState ? { meta, psi, state: readState(f, file) } : { meta, psi };
+  });
+}
+
+/** A checkpoint's metadata and exact state, without its field for readers (what a resume needs). */
+export function readCheckpoint(file: string): { readonly meta: SnapshotMeta; readonly state: CheckpointState } {
+  return withFile(file, (f, version) => ({ meta: readMeta(f, version, file), state: readState(f, file) }));
+}
+
 /** Only the metadata of a psibox snapshot (the field is not read). */
 export function readSnapshotMeta(file: string): SnapshotMeta {
-  const f = openHdf5(file);
-  try {
-    return readMeta(f, layoutVersion(f, file), file);
-  } catch (e) {
-    if (e instanceof InputError) throw e;
-    throw new InputError(`${file}: cannot read the snapshot (${hdf5Reason(e)})`);
-  } finally {
-    f.close();
-  }
+  return withFile(file, (f, version) => readMeta(f, version, file));
 }

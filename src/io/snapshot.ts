@@ -9,6 +9,7 @@ import { InputError } from "../core/errors.js";
 import { unitInSI } from "../physics/units.js";
 import { writeHdf5Atomic, type Dataset, type Group, type H5File } from "./h5.js";
 import { intAttr, intsAttr, numberAttr, numbersAttr, textAttr } from "./h5-attrs.js";
+import { chunkedDataset, writeSlabs, writeVector } from "./slabs.js";
 import {
   AXIS_NAMES,
   CF_CONVENTIONS,
@@ -26,7 +27,7 @@ import {
 } from "./snapshot-layout.js";
 
 export { SNAPSHOT_FORMAT, SNAPSHOT_VERSION, PSI_UNITS } from "./snapshot-layout.js";
-export { readSnapshot, readSnapshotMeta } from "./snapshot-read.js";
+export { readCheckpoint, readSnapshot, readSnapshotMeta } from "./snapshot-read.js";
 
 /** Background as written in a snapshot. */
 export type SnapshotBackground =
@@ -80,24 +81,9 @@ export interface Snapshot {
 }
 
 
-/** Rows along the first axis per chunk, aiming at about 2 MiB per chunk. */
-function rowsPerChunk(cells: readonly number[], bytesPerValue: number): number {
-  const rowValues = cells.slice(1).reduce((p, n) => p * n, 1);
-  return Math.max(1, Math.min(cells[0] as number, Math.floor((2 << 20) / (rowValues * bytesPerValue))));
-}
-
-/** A chunked, empty dataset of the grid's shape, attached to the coordinate variables. */
+/** An empty chunked variable of the grid's shape, attached to the coordinate variables. */
 function gridVariable(f: H5File, name: string, cells: readonly number[], precision: "float64" | "float32"): Dataset {
-  const rows = rowsPerChunk(cells, precision === "float64" ? 8 : 4);
-  const ds = f.create_dataset({
-    name,
-    data: precision === "float64" ? new Float64Array(0) : new Float32Array(0),
-    shape: [0, ...cells.slice(1)],
-    maxshape: [...cells],
-    chunks: [rows, ...cells.slice(1)],
-    dtype: precision === "float64" ? "<d" : "<f",
-  });
-  ds.resize([...cells]);
+  const ds = chunkedDataset(f, name, cells, precision);
   cells.forEach((_, axis) => ds.attach_scale(axis, AXIS_NAMES[axis] as string));
   return ds;
 }
@@ -109,24 +95,12 @@ function writePsi(f: H5File, cells: readonly number[], psi: Float64Array, precis
   for (const [ds, part] of [[re, "real"], [im, "imaginary"]] as const) {
     textAttr(ds, "long_name", `${part} part of the wave function psi (|psi|^2 is the comoving mass density)`);
     textAttr(ds, "units", PSI_UNITS);
-  }
-  const n0 = cells[0] as number;
-  const rowCells = psi.length / 2 / n0;
-  const rows = rowsPerChunk(cells, precision === "float64" ? 8 : 4);
-  const Slab = precision === "float64" ? Float64Array : Float32Array;
-  const a = new Slab(rows * rowCells);
-  const b = new Slab(rows * rowCells);
-  for (let r0 = 0; r0 < n0; r0 += rows) {
-    const r1 = Math.min(n0, r0 + rows);
-    const n = (r1 - r0) * rowCells;
-    const base = 2 * r0 * rowCells;
-    for (let i = 0; i < n; i++) {
-      a[i] = psi[base + 2 * i]! * scale;
-      b[i] = psi[base + 2 * i + 1]! * scale;
-    }
-    const ranges = [[r0, r1] as [number, number], ...cells.slice(1).map(() => [] as [])];
-    re.write_slice(ranges, a.subarray(0, n));
-    im.write_slice(ranges, b.subarray(0, n));
+    const offset = part === "real" ? 0 : 1;
+    const rowCells = psi.length / 2 / (cells[0] as number);
+    writeSlabs(ds, cells, precision, (r0, _r1, out) => {
+      const base = 2 * r0 * rowCells + offset;
+      for (let i = 0; i < out.length; i++) out[i] = psi[base + 2 * i]! * scale;
+    });
   }
 }
 
@@ -155,14 +129,14 @@ function writeState(f: H5File, st: CheckpointState): void {
   const g = f.create_group(STATE.group);
   bareDimension(g, STATE.psiDim, st.psiCode.length);
   bareDimension(g, STATE.phiDim, st.phiCode.length);
-  const psi = g.create_dataset({ name: STATE.psi, data: st.psiCode, shape: [st.psiCode.length], dtype: "<d" });
+  const psi = writeVector(g, STATE.psi, st.psiCode);
   psi.attach_scale(0, `${STATE.group}/${STATE.psiDim}`);
   textAttr(psi, "long_name", "exact state: psi in code units, interleaved (re, im)");
-  const phi = g.create_dataset({ name: STATE.phi, data: st.phiCode, shape: [st.phiCode.length], dtype: "<d" });
+  const phi = writeVector(g, STATE.phi, st.phiCode);
   phi.attach_scale(0, `${STATE.group}/${STATE.phiDim}`);
   textAttr(phi, "long_name", "exact state: the potential phi in code units");
   (st.fieldsCode ?? []).forEach((field, i) => {
-    const ds = g.create_dataset({ name: STATE.field(i + 1), data: field, shape: [field.length], dtype: "<d" });
+    const ds = writeVector(g, STATE.field(i + 1), field);
     ds.attach_scale(0, `${STATE.group}/${STATE.psiDim}`);
     textAttr(ds, "long_name", `exact state: companion field ${i + 1} in code units, interleaved (re, im)`);
   });

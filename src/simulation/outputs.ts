@@ -106,10 +106,11 @@ export class RunWriter {
    * the uninterrupted one bit for bit.
    */
   writeCheckpoint(stepper: SplitStepper, state: Omit<CheckpointState, "psiCode" | "phiCode" | "timeCode" | "massCode" | "owedKickCode" | "fieldsCode">): void {
-    const raw = Float64Array.from(stepper.rawPsi);
-    const phi = Float64Array.from(stepper.phi);
     const fields = Array.from({ length: stepper.extraFields }, (_, i) => Float64Array.from(stepper.rawField(i + 1)));
     const { time, mass, owedKickFactor } = stepper;
+    // ψ as stored is copied only when it owes a kick (the kick changes it in place); the kick leaves φ as it is
+    const raw = owedKickFactor !== 0 ? Float64Array.from(stepper.rawPsi) : stepper.rawPsi;
+    const phi = stepper.phi;
     try {
       writeSnapshot(this.paths.checkpoint, {
         meta: this.meta(stepper, state.steps, "checkpoint"),

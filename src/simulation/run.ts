@@ -39,11 +39,13 @@ export interface RunSummary {
   readonly resumed_from_step?: number;
   readonly relaxation?: { readonly iterations: number; readonly converged: boolean };
   readonly warnings?: readonly string[];
+  /** The estimate made before the run and the peak resident memory of the process (bytes). */
+  readonly memory: { readonly estimate_bytes: number; readonly address_space_estimate_bytes: number; readonly peak_rss_bytes: number };
   readonly [plugin: string]: unknown;
 }
 
 /** The keys of summary.json that belong to the run itself. */
-const SUMMARY_KEYS = ["name", "status", "reason", "steps", "wall_time_s", "time_unit", "start", "end", "mass_drift", "snapshots", "resumed_from_step", "relaxation", "warnings"];
+const SUMMARY_KEYS = ["name", "status", "reason", "steps", "wall_time_s", "time_unit", "start", "end", "mass_drift", "snapshots", "resumed_from_step", "relaxation", "warnings", "memory"];
 
 /** Run a resolved config with the given plug-ins; the output folder must exist (see prepareOutputDir). */
 export async function simulate(run: ResolvedRun, options: RunOptions = {}): Promise<RunSummary> {
@@ -223,6 +225,7 @@ function summaryOf(session: RunSession, start: RunStart, result: EvolveResult, s
     ...(!initialOnly && start.relaxation ? { relaxation: start.relaxation } : {}),
     ...parts,
     ...(start.warnings.length ? { warnings: start.warnings } : {}),
+    memory: { estimate_bytes: session.memory.total, address_space_estimate_bytes: session.memory.addressSpace, peak_rss_bytes: process.resourceUsage().maxRSS * 1024 },
   };
 }
 

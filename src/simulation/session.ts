@@ -12,7 +12,8 @@ import { ThreadedStepper } from "../integrators/threaded-step.js";
 import { buildInitialField } from "../initial-conditions/build.js";
 import { snapshotInitialField } from "./snapshot-start.js";
 import { cleanStaleTemporaries, writeFileAtomic } from "../io/atomic.js";
-import { readSnapshot, type CheckpointState } from "../io/snapshot.js";
+import { readCheckpoint, type CheckpointState } from "../io/snapshot.js";
+import { checkMemory, describeEstimate, formatBytes, type MemoryEstimate } from "./memory-estimate.js";
 import type { ResolvedRun } from "../config/resolve.js";
 import { resolvedConfigToml, sha256 } from "../config/serialize.js";
 import { OutputScales } from "./scales.js";
@@ -73,6 +74,8 @@ export interface RunSession {
   readonly context: RunContext;
   /** performance.now() when this process started the run. */
   readonly wallStart: number;
+  /** The memory the run was estimated to need. */
+  readonly memory: MemoryEstimate;
 }
 
 /** Build a run's parts and write (or, on resume, read) its config.toml. Close `stepper` when done. */
@@ -91,6 +94,8 @@ export function openSession(run: ResolvedRun, options: RunOptions): RunSession {
   const writer = new RunWriter(run, scales, configText, sha256(configText));
   const { threads, fft } = run.integrator;
   const fields = Array.from({ length: plugins.tangents }, () => ({ kind: "tangent" }) as const);
+  // refuse a grid that cannot fit before anything is allocated
+  const memory = checkMemory({ cells: run.grid.cells, gravity: run.grid.gravity, threads, fft, fields });
   const stepper = threads > 1 ? new ThreadedStepper(grid, background, gravity, threads, fft, {}, fields) : new SplitStepper(grid, background, gravity, fft, 1, fields);
   plugins.attach((first, count) => tangentHandle(stepper, first, count));
   const { startTime, endTime } = run.span;
@@ -101,7 +106,7 @@ export function openSession(run: ResolvedRun, options: RunOptions): RunSession {
   };
   const context: RunContext = { grid, background, scales, particleMass: run.particleMassKg / scales.units.massKg, startTime, endTime, outputDir: run.outputDir, warn };
   const expanding = background.kind !== "static";
-  return { run, options, reporter, scales, grid, background, gravity, expanding, paths, writer, stepper, plugins, context, wallStart };
+  return { run, options, reporter, scales, grid, background, gravity, expanding, paths, writer, stepper, plugins, context, wallStart, memory };
 }
 
 /** A plug-in's view of the stepper's tangent fields first … first + count − 1. */
@@ -144,19 +149,19 @@ export interface RunStart {
 export function startRun(session: RunSession): RunStart {
   const { run, stepper, writer, scales, paths } = session;
   if (session.options.resume) {
-    const saved = readSnapshot(paths.checkpoint, true);
-    const resumed = saved.state as CheckpointState;
+    const saved = readCheckpoint(paths.checkpoint);
+    const resumed = saved.state;
     verifyCheckpoint(paths.checkpoint, saved.meta, resumed, { configText: writer.configText, cells: run.grid.cells, startTime: run.span.startTime, endTime: run.span.endTime, scales });
     session.plugins.check(resumed.plugins ?? {}, paths.checkpoint);
     if (session.options.extendedConfig !== undefined) adoptLaterEnd(session, resumed);
     stepper.restoreState(resumed.psiCode, resumed.phiCode, resumed.timeCode, resumed.massCode, resumed.owedKickCode ?? 0);
     restoreFields(stepper, resumed, paths.checkpoint);
-    writer.log(`resumed from the checkpoint at step ${resumed.steps}, t = ${scales.formatTime(resumed.timeCode)}`);
+    writer.log(`resumed from the checkpoint at step ${resumed.steps}, t = ${scales.formatTime(resumed.timeCode)}; ${memoryLine(session)}`);
     session.plugins.restore(resumed.plugins ?? {}, paths.checkpoint);
     const { mass0Code: mass0, steps, snapshotsWritten, wallTimeS: wallBefore } = resumed;
     return { resumed, warnings: [], mass0, steps, snapshotsWritten, wallBefore };
   }
-  writer.log(`started ${run.name}: ${run.grid.cells.join("×")} cells, ${run.initial.kind}`);
+  writer.log(`started ${run.name}: ${run.grid.cells.join("×")} cells, ${run.initial.kind}; ${memoryLine(session)}`);
   const reporter = session.reporter;
   if (run.initial.kind === "ground-state") reporter.phase("relaxing the ground state");
   const progress = (info: { iteration: number }) => reporter.progress(Math.min(1, info.iteration / 400), `iteration ${info.iteration}`);
@@ -196,4 +201,9 @@ function adoptLaterEnd(session: RunSession, resumed: CheckpointState): void {
   writeFileAtomic(paths.summary, JSON.stringify({ ...summary, status: "stopped", reason }, null, 2) + "\n");
   writeFileAtomic(paths.config, writer.configText);
   writer.log(`extended to t = ${scales.formatTime(run.span.endTime)} from the checkpoint at step ${resumed.steps}`);
+}
+
+/** The memory estimate for run.log. */
+function memoryLine(session: RunSession): string {
+  return `memory: about ${formatBytes(session.memory.total)} (${describeEstimate(session.memory, session.run.integrator.threads)})`;
 }
