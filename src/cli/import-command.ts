@@ -8,6 +8,7 @@ import fs from "node:fs";
 import path from "node:path";
 import { InputError, ConfigError } from "../core/errors.js";
 import { Dataset, hdf5Reason, loadHdf5, openHdf5 } from "../io/h5.js";
+import { readFloat64 } from "../io/slabs.js";
 import { readNpyComplex, type ComplexArray } from "../io/npy.js";
 import { fileName } from "../core/sanitize.js";
 import { writeSnapshot, type SnapshotBackground } from "../io/snapshot.js";
@@ -50,12 +51,8 @@ function readHdf5Complex(file: string, flags: ImportFlags): ComplexArray {
     if (!(ds instanceof Dataset)) throw new InputError(`${file}: no dataset "${p}"`);
     return ds;
   };
-  const numbers = (ds: Dataset): Float64Array => {
-    const v = ds.value;
-    if (v instanceof Float64Array) return v;
-    if (v instanceof Float32Array) return Float64Array.from(v);
-    throw new InputError(`${file}: dataset "${ds.path}" is not floating point (dtype ${String(ds.dtype)})`);
-  };
+  // read in slabs: a large source never passes through HDF5's heap in one piece
+  const numbers = (ds: Dataset): Float64Array => readFloat64(ds, file);
   try {
     if (flags.re !== undefined || flags.im !== undefined) {
       if (flags.re === undefined || flags.im === undefined) throw new InputError("give both --re and --im, or --dataset");

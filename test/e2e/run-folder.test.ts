@@ -7,6 +7,7 @@ import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { FREE_PACKET_1D } from "../helpers/configs.js";
 
 const BIN = path.resolve("dist/cli/bin.js");
 let work: string;
@@ -18,21 +19,8 @@ beforeAll(() => {
 });
 afterAll(() => fs.rmSync(work, { recursive: true, force: true }));
 
-const CONFIG = (duration: string) => `[grid]
-cells = 256
-box = "20 kpc"
-gravity = "none"
-[particle]
-mass = "1e-22 eV"
-[span]
-duration = "${duration}"
-[initial]
-kind = "gaussian-packet"
-mass = "1e8 Msun"
-width = "1 kpc"
-[output]
-snapshot_every = 200
-`;
+// the shared free packet (no gravity, analytic), with the span given and few snapshots
+const CONFIG = (duration: string) => `${FREE_PACKET_1D.replace('duration = "10 Myr"', `duration = "${duration}"`)}\n[output]\nsnapshot_every = 200\n`;
 
 function psibox(args: string[]) {
   const r = spawnSync(process.execPath, [BIN, ...args], { cwd: work, encoding: "utf8" });
