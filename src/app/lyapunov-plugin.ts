@@ -13,7 +13,9 @@
  *   dψ ← dψ − ψ⟨ψ|dψ⟩/⟨ψ|ψ⟩, take d = ‖dψ‖, add ln(d/d₀) to the sum and
  *   rescale dψ to d₀ (‖dψ‖² = ∫|ψ|² dV, the reference's mass);
  * - the finite-time rate λ_T = Σ ln(dᵢ/d₀)/(t − t₀), the rate of the last
- *   interval, and ∫λ dt = Σ ln(dᵢ/d₀).
+ *   interval, and ∫λ dt = Σ ln(dᵢ/d₀);
+ * - at the end, the scrambling clock ∫λ dt = ln N (app/scrambling-clock.ts),
+ *   N = M/m the particles of the run.
  *
  * The renormalisation applies the closing kick owed by ψ and the tangent
  * (exactly, in separate passes), so ψ's trajectory differs from a run
@@ -25,6 +27,8 @@
 import type { RunContext, RunPlugin, StartFacts, StepFacts, TangentFields } from "../simulation/plugin.js";
 import { jeansWavenumber, tangentSeed } from "../initial-conditions/tangent-seed.js";
 import { PC_M } from "../physics/constants.js";
+import { formatDuration } from "../core/format.js";
+import { scramblingClock } from "./scrambling-clock.js";
 
 const KPC_M = 1e3 * PC_M;
 
@@ -48,6 +52,11 @@ interface LyapunovState {
   lastRate: number;
   intervals: number;
   kJeans: number;
+  /** ln N of the run (N = M₀/m). */
+  lnN: number;
+  /** Times and ∫λ dt at the start and at every renormalisation. */
+  times: number[];
+  integrals: number[];
 }
 
 /** Project dψ off ψ and iψ, and rescale it to ‖dψ‖² = mass; returns ‖dψ⊥‖² before the rescale. */
@@ -60,16 +69,41 @@ function renormalise(fields: TangentFields): { perp2: number; mass: number } {
   return { perp2, mass };
 }
 
+/** The plug-in's part of summary.json: the rates, the integral and the scrambling clock, in physical units. */
+function summaryOf(st: LyapunovState, u: { timeS: number; kpc: number; span: number; seed: number }) {
+  const clock = scramblingClock(st.times, st.integrals, st.lnN);
+  const finite = st.intervals > 0 ? st.lnSum / (st.tLast - st.t0) : Number.NaN;
+  return {
+    scrambling_clock: {
+      verdict: clock.verdict,
+      time_s: clock.time === null ? null : clock.time * u.timeS,
+      time: clock.time === null ? "never" : formatDuration(clock.time * u.timeS),
+      rate_per_s: clock.rate === null ? null : clock.rate / u.timeS,
+      ln_N: st.lnN,
+      method: clock.method,
+      ratio_to_span: clock.time === null ? null : clock.time / u.span,
+    },
+    rate_per_s: finite / u.timeS,
+    last_interval_rate_per_s: st.lastRate / u.timeS,
+    integral: st.lnSum,
+    intervals: st.intervals,
+    interval_s: st.tau * u.timeS,
+    seed: u.seed,
+    seed_k_max_per_kpc: st.kJeans / u.kpc,
+  };
+}
+
 /** The plug-in. */
 export function lyapunovPlugin(options: LyapunovOptions): RunPlugin {
   let fields: TangentFields | undefined;
   let timeS = 1;
   let kpc = 1;
+  let spanEnd = 1;
   let s: LyapunovState | undefined;
   const finiteTime = (st: LyapunovState) => (st.intervals > 0 ? st.lnSum / (st.tLast - st.t0) : Number.NaN);
   return {
     name: "lyapunov",
-    stateVersion: 1,
+    stateVersion: 2,
     tangents: 1,
     measures: ["moments"],
     columns: ["lyapunov_rate_per_s", "lyapunov_interval_rate_per_s", "lyapunov_integral"],
@@ -79,6 +113,7 @@ export function lyapunovPlugin(options: LyapunovOptions): RunPlugin {
     start(context: RunContext, facts: StartFacts) {
       timeS = context.scales.units.timeS;
       kpc = context.scales.units.lengthM / KPC_M;
+      spanEnd = context.endTime;
       if (facts.resumed) return;
       const m = facts.sums.moments!;
       const rhoEff = m.rho2 / m.rho;
@@ -86,7 +121,8 @@ export function lyapunovPlugin(options: LyapunovOptions): RunPlugin {
       const kJeans = jeansWavenumber(rhoEff, facts.a);
       fields!.set(1, tangentSeed(context.grid, fields!.reference(), kJeans, options.seed));
       const { mass } = renormalise(fields!);
-      s = { t0: facts.t, tau, tLast: facts.t, next: facts.t + tau, d0sq: mass, lnSum: 0, lastRate: Number.NaN, intervals: 0, kJeans };
+      const lnN = Math.log(facts.mass0 / context.particleMass);
+      s = { t0: facts.t, tau, tLast: facts.t, next: facts.t + tau, d0sq: mass, lnSum: 0, lastRate: Number.NaN, intervals: 0, kJeans, lnN, times: [facts.t], integrals: [0] };
     },
     afterStep(facts: StepFacts) {
       const st = s!;
@@ -98,6 +134,8 @@ export function lyapunovPlugin(options: LyapunovOptions): RunPlugin {
       st.tLast = facts.t;
       st.d0sq = mass;
       st.intervals++;
+      st.times.push(facts.t);
+      st.integrals.push(st.lnSum);
       st.next = st.t0 + (Math.floor((facts.t - st.t0) / st.tau + 1e-9) + 1) * st.tau;
     },
     output(facts) {
@@ -105,20 +143,7 @@ export function lyapunovPlugin(options: LyapunovOptions): RunPlugin {
       const st = s!;
       return [finiteTime(st) / timeS, st.lastRate / timeS, st.lnSum];
     },
-    stop() {
-      const st = s!;
-      return {
-        lyapunov: {
-          rate_per_s: finiteTime(st) / timeS,
-          last_interval_rate_per_s: st.lastRate / timeS,
-          integral: st.lnSum,
-          intervals: st.intervals,
-          interval_s: st.tau * timeS,
-          seed: options.seed,
-          seed_k_max_per_kpc: st.kJeans / kpc,
-        },
-      };
-    },
+    stop: () => ({ lyapunov: summaryOf(s!, { timeS, kpc, span: spanEnd - s!.t0, seed: options.seed }) }),
     // JSON has no NaN: the rate of no interval yet is saved as null
     save: () => ({ ...s!, lastRate: Number.isFinite(s!.lastRate) ? s!.lastRate : null }),
     restore(state) {

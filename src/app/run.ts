@@ -11,6 +11,7 @@ import { sidecarPlugin } from "../quantum/sidecar-plugin.js";
 import { vortexCensusPlugin } from "./vortex-census-plugin.js";
 import { flowResolutionPlugin } from "./flow-resolution-plugin.js";
 import { lyapunovPlugin } from "./lyapunov-plugin.js";
+import { depletionPlugin } from "./depletion-plugin.js";
 
 /** The built-in plug-ins a resolved config turns on. */
 export function configuredPlugins(run: ResolvedRun): RunPlugin[] {
@@ -19,6 +20,7 @@ export function configuredPlugins(run: ResolvedRun): RunPlugin[] {
     ...(run.output.vortexCensus ? [vortexCensusPlugin(run.grid.cells.length)] : []),
     flowResolutionPlugin(),
     ...(run.breakdown.tangent ? [lyapunovPlugin({ interval: run.breakdown.interval, seed: run.breakdown.seed })] : []),
+    ...(run.breakdown.probes > 0 ? [depletionPlugin({ probes: run.breakdown.probes, seed: run.breakdown.seed })] : []),
   ];
 }
 

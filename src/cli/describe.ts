@@ -2,18 +2,19 @@
 import type { ResolvedRun } from "../config/resolve.js";
 import { OutputScales } from "../simulation/scales.js";
 import { formatNumber } from "../core/format.js";
+import { TANGENT_BYTES_PER_CELL } from "../config/resolve-breakdown.js";
 
-/** Bytes per cell of one tangent-linear companion: its complex grid and undo copy, and the real grid of dφ. */
-export const TANGENT_BYTES_PER_CELL = 16 + 16 + 8;
 
 /** The header line of the [breakdown] companion: what it costs. */
 function breakdownLine(run: ResolvedRun, scales: OutputScales): string | undefined {
   const b = run.breakdown;
-  if (!b.tangent) return undefined;
+  const fields = (b.tangent ? 1 : 0) + 2 * b.probes;
+  if (fields === 0) return undefined;
   const cells = run.grid.cells.reduce((p, n) => p * n, 1);
-  const mb = (cells * TANGENT_BYTES_PER_CELL) / 1e6;
+  const mb = (fields * cells * TANGENT_BYTES_PER_CELL) / 1e6;
   const every = b.interval === undefined ? "one dynamical time at the start" : scales.formatTime(b.interval);
-  return `├─ breakdown    Lyapunov rate by a tangent-linear companion: 1 extra field, +${formatNumber(mb)} MB, about twice the work per step; renormalised every ${every}, seed ${b.seed}`;
+  const what = [...(b.tangent ? [`Lyapunov rate (renormalised every ${every})`] : []), ...(b.probes > 0 ? [`depletion (${b.probes} probes)`] : [])].join(" and ");
+  return `├─ breakdown    ${what} by tangent-linear fields: ${fields} extra field${fields > 1 ? "s" : ""}, +${formatNumber(mb)} MB, about ${fields + 1} times the work per step; seed ${b.seed}`;
 }
 
 /** Describe a run in physical units. */

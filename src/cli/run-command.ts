@@ -124,6 +124,8 @@ async function runOwned(run: ResolvedRun, flags: RunFlags & { readonly initialOn
       process.stdout.write(`completed ${summary.steps} steps in ${summary.wall_time_s.toFixed(1)} s; outputs in ${where}\n`);
       const clocks = summary["clocks"] as readonly ClockReport[] | undefined;
       if (clocks) process.stdout.write(formatClocks(clocks, run.sidecar.squeezingDb));
+      const measured = (summary["lyapunov"] as { scrambling_clock?: MeasuredClock } | undefined)?.scrambling_clock;
+      if (measured) process.stdout.write(formatMeasuredClock(measured));
       return 0;
     }
     const hint = interrupted ? `; continue with: psibox run --resume ${where}` : "";
@@ -140,8 +142,22 @@ const clockTitle = (name: ClockReport["name"], squeezingDb: number): string =>
     "squeezing-level": `squeezing to ${formatNumber(squeezingDb)} dB`,
     "phase-diffusion": "phase diffusion, frozen mode (1/e)",
     "phase-diffusion-adiabatic": "phase diffusion, adiabatic (1/e)",
-    "classical-breakdown": "classical breakdown",
+    "classical-breakdown": "classical breakdown, estimate (gravitational rate)",
   })[name];
+
+/** The scrambling clock of the measured Lyapunov rate, as in summary.json. */
+interface MeasuredClock {
+  readonly verdict: "rang" | "projected" | "never";
+  readonly time: string;
+  readonly method: string;
+  readonly ratio_to_span: number | null;
+}
+
+/** The measured clock's line: when it rang, or its projection, or never (with the reason). */
+export function formatMeasuredClock(c: MeasuredClock): string {
+  const when = c.verdict === "never" ? c.method : `${c.verdict === "rang" ? "at" : "projected at"} ${c.time} (${formatNumber(c.ratio_to_span!)} × the run)`;
+  return `measured classical breakdown (Lyapunov rate of the tangent-linear companion):\n  scrambling (∫λ dt = ln N)  ${when}\n`;
+}
 
 /** One line per clock: when it rang (or will), and how that compares with the run and the universe. */
 export function formatClocks(clocks: readonly ClockReport[], squeezingDb = -10): string {

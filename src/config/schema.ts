@@ -239,7 +239,9 @@ export const breakdownSchema = z.strictObject({
   tangent: z.boolean().default(false),
   /** Benettin renormalisation interval, a time, e.g. "50 Myr". @default one dynamical time 1/√(4πGρ_eff) at the start */
   interval: quantity.optional(),
-  /** Seed of the companion's band-limited start. @default 1 */
+  /** Depletion probes p (2p tangent-linear fields; 0: no depletion measured). @default 0 */
+  probes: z.number().default(0),
+  /** Seed of the companion's band-limited start and of the probes' noise. @default 1 */
   seed: z.number().default(1),
 });
 

@@ -215,7 +215,7 @@ export class ClockAccumulator {
     };
     const x = Math.abs(this.chiIntegral);
     const onset = project("squeezing-onset", this.xOnset, x, chiRate, "N|∫χ dt| = 1, i.e. t ≈ 1/(N|χ|)");
-    const breakdown = project("classical-breakdown", this.lnN, this.breakdown, this.rates.lambda, "∫λ dt = ln N with λ = √(4πG ρ_eff)");
+    const breakdown = project("classical-breakdown", this.lnN, this.breakdown, this.rates.lambda, "estimate: ∫λ dt = ln N with λ = √(4πG ρ_eff)");
     const adWhat = "|⟨b⟩|²/N = 1/e with the adiabatic coefficient χ_ad = (1/ħ) dμ/dN";
     if (this.simple) {
       return [

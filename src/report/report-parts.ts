@@ -51,7 +51,7 @@ export function clockSentence(c: ClockEntry, targetDb: number): string {
     "squeezing-level": `Its squeezing reaches ${formatNumber(targetDb)} dB`,
     "phase-diffusion": "Its mean field dephases (|⟨b⟩|²/N = 1/e, frozen-mode χ)",
     "phase-diffusion-adiabatic": "With the adiabatic coefficient dμ/dN its mean field dephases",
-    "classical-breakdown": "The classical-field description is expected to fail (∫λ dt = ln N)",
+    "classical-breakdown": "By the gravitational estimate λ = √(4πGρ_eff) (not a measured rate), the classical-field description fails (∫λ dt = ln N)",
   };
   if (c.time_s === null) return c.name === "squeezing-level" ? `Squeezing to ${formatNumber(targetDb)} dB is beyond the best single-mode squeezing for this N: it never happens.` : `${what[c.name] ?? c.name}: never.`;
   const ratios = c.ratio_to_span === null ? "" : `, ${formatNumber(c.ratio_to_span)} × the run's span and ${formatNumber(c.ratio_to_age_of_universe!)} × the age of the universe`;

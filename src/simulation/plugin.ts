@@ -115,6 +115,8 @@ export interface TangentFields {
   reference(): Float64Array;
   /** Mass ∫|ψ|² dV of the current field. */
   mass(): number;
+  /** Field j, current (its owed kick applied with ψ's); read-only, valid during the call. */
+  field(j: number): Float64Array;
   /** Load field j (a perturbation of the current ψ). */
   set(j: number, field: Float64Array): void;
   /** ⟨ψ|dψ_j⟩ = ∫ψ̄ dψ_j dV (re, im) and ‖dψ_j‖² = ∫|dψ_j|² dV. */

@@ -119,6 +119,7 @@ function tangentHandle(stepper: SplitStepper, first: number, count: number): Tan
     count,
     reference: () => stepper.psi,
     mass: () => stepper.mass,
+    field: (j) => stepper.field(at(j)),
     set: (j, field) => stepper.setField(at(j), field),
     overlap: (j) => stepper.fieldOverlap(at(j)),
     combine: (j, scale, re, im) => stepper.combineField(at(j), scale, re, im),

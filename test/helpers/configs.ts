@@ -20,3 +20,18 @@ width = "0.5 kpc"
 center = ["6 kpc"]
 velocity = ["30 km/s"]
 `;
+
+/** A 2D static periodic box of 32² cells with a 30% plane wave along the diagonal, for 60 Myr (nonlinear within the span). */
+export const PLANE_WAVE_2D = `[grid]
+cells = [32, 32]
+box = "20 kpc"
+[particle]
+mass = "1e-22 eV"
+[span]
+duration = "60 Myr"
+[initial]
+kind = "plane-wave"
+mean_density = "1e7 Msun/kpc^3"
+contrast = 0.3
+mode = [1, 1]
+`;

@@ -17,6 +17,13 @@ import { makeWork, readCsv, removeWork, writeIn } from "../helpers/cli.js";
 const KPC = 1e3 * PC_M;
 const MSUN_KPC3 = M_SUN_KG / KPC ** 3; // kg/m³ per Msun/kpc³
 
+/** The scrambling clock in summary.json. */
+interface Clock {
+  readonly verdict: string;
+  readonly time_s: number | null;
+  readonly ln_N: number;
+}
+
 let work: string;
 beforeAll(() => (work = makeWork("lyapunov")));
 afterAll(() => removeWork(work));
@@ -62,7 +69,12 @@ describe("Lyapunov rate of the split-step map", () => {
         `[sidecar]\nenabled = false\n[breakdown]\ntangent = true\n`,
     );
     const summary = await runIt(run);
-    const ly = summary["lyapunov"] as { rate_per_s: number; last_interval_rate_per_s: number; integral: number; intervals: number };
+    const ly = summary["lyapunov"] as { rate_per_s: number; last_interval_rate_per_s: number; integral: number; intervals: number; scrambling_clock: Clock };
+    // the scrambling clock: ln N ≈ 160 is beyond the run's 25 e-folds, projected at the rate of its second half
+    const clock = ly.scrambling_clock;
+    expect(clock.verdict).toBe("projected");
+    const spanS = duration * 3.15576e13;
+    expect(Math.abs(clock.time_s! / (spanS + (clock.ln_N - ly.integral) / top) - 1)).toBeLessThan(0.01);
     // (measured: last interval 2.7e-6 from the largest rate, the finite-time rate 0.96% below it after 25 e-folds)
     expect(ly.intervals).toBeGreaterThan(15);
     expect(Math.abs(ly.last_interval_rate_per_s / top - 1)).toBeLessThan(0.01);
@@ -84,8 +96,10 @@ describe("Lyapunov rate of the split-step map", () => {
         `[initial]\nkind = "ground-state"\nmass = "1e9 Msun"\nguess_width = "0.3 kpc"\n[integrator]\nsafety = 0.5\n` +
         `[output]\ntime_unit = "Myr"\ntimeseries_every = 20\n[sidecar]\nenabled = false\n[breakdown]\ntangent = true\n`,
     );
-    const ly = (await runIt(run))["lyapunov"] as { rate_per_s: number; intervals: number; interval_s: number };
+    const ly = (await runIt(run))["lyapunov"] as { rate_per_s: number; intervals: number; interval_s: number; scrambling_clock: Clock };
     expect(ly.intervals).toBeGreaterThan(40);
+    expect(ly.scrambling_clock.verdict).toBe("never");
+    expect(ly.scrambling_clock.time_s).toBeNull();
     const rates = readCsv(path.join(run.outputDir, "timeseries.csv")).map((r) => Number(r["lyapunov_rate_per_s"])).filter(Number.isFinite);
     // (measured: the finite-time rate peaks at 2.6e-16/s near 95 Myr, as the seed's share of the oscillating modes
     // passes, and is −1.3e-18/s at 400 Myr; one dynamical time is 2.5e14 s, where an unstable case gives λτ ≈ 1)
@@ -100,8 +114,9 @@ describe("Lyapunov rate of the split-step map", () => {
         `[initial]\nkind = "plane-wave"\nmean_density = "1e7 Msun/kpc^3"\ncontrast = 0.5\nmode = [1, 2]\n[output]\ntime_unit = "Myr"\n` +
         `[sidecar]\nenabled = false\n[breakdown]\ntangent = true\ninterval = "20 Myr"\n`,
     );
-    const ly = (await runIt(run))["lyapunov"] as { rate_per_s: number; integral: number; intervals: number };
+    const ly = (await runIt(run))["lyapunov"] as { rate_per_s: number; integral: number; intervals: number; scrambling_clock: Clock };
     expect(ly.intervals).toBe(10);
+    expect(ly.scrambling_clock.verdict).toBe("never");
     expect(Math.abs(ly.integral)).toBeLessThan(1e-10);
   });
 });

@@ -10,21 +10,9 @@ import { prepareOutputDir, simulate, type RunSummary } from "../../src/simulatio
 import type { RunPlugin, StepFacts } from "../../src/simulation/plugin.js";
 import { InputError } from "../../src/core/errors.js";
 import { makeWork, readCsv, removeWork, writeIn } from "../helpers/cli.js";
-import { FREE_PACKET_1D } from "../helpers/configs.js";
+import { FREE_PACKET_1D, PLANE_WAVE_2D } from "../helpers/configs.js";
 
-const CONFIG = `
-[grid]
-cells = [32, 32]
-box = "20 kpc"
-[particle]
-mass = "1e-22 eV"
-[span]
-duration = "60 Myr"
-[initial]
-kind = "plane-wave"
-mean_density = "1e7 Msun/kpc^3"
-contrast = 0.3
-mode = [1, 1]
+const CONFIG = `${PLANE_WAVE_2D}
 [output]
 time_unit = "Myr"
 checkpoint_every = 7
