@@ -10,7 +10,9 @@ import { formatDuration } from "../core/format.js";
 import { TextReporter } from "./progress.js";
 import { parseDiagnosticList, parseHusimiPoints, type DiagnosticRequest } from "../report/diagnostic-options.js";
 import { parseAs } from "../physics/units.js";
-import { PC_M } from "../physics/constants.js";
+import { M_SUN_KG, PC_M } from "../physics/constants.js";
+import { parseOverdensity } from "../physics/cosmology/overdensity.js";
+import type { HaloRequest } from "../report/halo-tables.js";
 import { recordIfInside } from "../simulation/run-manifest.js";
 
 export interface AnalyzeFlags extends PictureFlags {
@@ -24,19 +26,33 @@ export interface AnalyzeFlags extends PictureFlags {
   husimiWindow?: string;
   /** Points for the Husimi momentum distribution, "x,y[,z];…" in kpc. */
   husimiPoints?: string;
+  /** Halo definition: 200c, 200m or vir. */
+  overdensity?: string;
+  /** Smallest halo mass, e.g. "1e8 Msun". */
+  haloMinMass?: string;
+}
+
+/** A physical value of a flag, with the flag's name in the error. */
+function flagValue(flag: string, text: string, kind: "length" | "mass"): number {
+  try {
+    return parseAs(text, kind);
+  } catch (e) {
+    throw new InputError(`${flag}: ${(e as Error).message}`);
+  }
+}
+
+/** The halo catalogue's request of the flags. */
+function haloRequest(flags: AnalyzeFlags): HaloRequest {
+  const minMassMsun = flags.haloMinMass !== undefined ? flagValue("--halo-min-mass", flags.haloMinMass, "mass") / M_SUN_KG : undefined;
+  if (minMassMsun !== undefined && !(minMassMsun > 0)) throw new InputError(`--halo-min-mass: must be above zero, e.g. "1e8 Msun"`);
+  return { definition: parseOverdensity(flags.overdensity ?? "200m"), ...(minMassMsun !== undefined ? { minMassMsun } : {}) };
 }
 
 /** The field-diagnostics request of the flags (one-line errors naming the option). */
 export function diagnosticRequest(flags: AnalyzeFlags): DiagnosticRequest {
-  let husimiWindowKpc: number | undefined;
-  if (flags.husimiWindow !== undefined) {
-    try {
-      husimiWindowKpc = parseAs(flags.husimiWindow, "length") / (1e3 * PC_M);
-    } catch (e) {
-      throw new InputError(`--husimi-window: ${(e as Error).message}`);
-    }
-  }
+  const husimiWindowKpc = flags.husimiWindow !== undefined ? flagValue("--husimi-window", flags.husimiWindow, "length") / (1e3 * PC_M) : undefined;
   return {
+    halos: haloRequest(flags),
     ...(flags.diagnostics !== undefined ? { only: parseDiagnosticList(flags.diagnostics) } : {}),
     ...(husimiWindowKpc !== undefined ? { husimiWindowKpc } : {}),
     ...(flags.husimiPoints !== undefined ? { husimiPointsKpc: parseHusimiPoints(flags.husimiPoints) } : {}),

@@ -12,6 +12,7 @@ import { writeFileAtomic } from "../io/atomic.js";
 import { loadField, type LoadedField } from "../simulation/from-snapshot.js";
 import { M_SUN_KG, PC_M } from "../physics/constants.js";
 import { snapshotTables } from "./snapshot-tables.js";
+import { checkHaloRequest, haloTables } from "./halo-tables.js";
 import { snapshotPictures, timeCaption } from "./snapshot-pictures.js";
 import { powerPlot } from "./plots.js";
 import { runFigures, type RunOutputs } from "./run-figures.js";
@@ -84,6 +85,8 @@ export async function analyzeSnapshot(
   const snap = readSnapshot(file);
   const chosen = checkDiagnostics(request, snap.meta.cells.length, snap.meta.boxSizeKpc, snap.meta.cells, file);
   if (withPictures) checkSliceIndex(pictures, snap.meta.cells, file);
+  const halos = request.halos ?? { definition: "200m" };
+  checkHaloRequest(halos, snap, file);
   // the pictures read only the snapshot's metadata: the field takes its ψ over (one grid less in memory)
   const field = loadField(snap, true);
   fs.mkdirSync(outDir, { recursive: true });
@@ -96,6 +99,7 @@ export async function analyzeSnapshot(
     // the energy split's transforms give the tables' kinetic split too
     const both = chosen.has("energy-split") ? energyAndKineticSplit(field.grid, field.psi, field.scaleFactor, fft) : undefined;
     ({ summary, power } = snapshotTables(file, snap, field, outDir, fft, both?.kinetic));
+    summary["halos"] = haloTables(file, snap, field, outDir, halos);
     diagnostics = fieldDiagnostics(field, chosen, outDir, fft, request.husimiWindowKpc, request.husimiPointsKpc, both?.split);
   } finally {
     if (!transforms) own.close();

@@ -4,6 +4,7 @@
  * option and what is valid).
  */
 import { InputError } from "../core/errors.js";
+import type { HaloRequest } from "./halo-tables.js";
 
 /** The field diagnostics by name. */
 export const FIELD_DIAGNOSTICS = ["energy-split", "vortices", "granules", "husimi"] as const;
@@ -17,6 +18,8 @@ export interface DiagnosticRequest {
   readonly husimiWindowKpc?: number;
   /** Points for the momentum distribution [kpc], one coordinate per axis; undefined: the densest point. */
   readonly husimiPointsKpc?: readonly (readonly number[])[];
+  /** The halo catalogue's definition and smallest mass; undefined: 200m and halos of at least 2 cells' radius. */
+  readonly halos?: HaloRequest;
 }
 
 /** Parse `--diagnostics a,b` (or "none"). */

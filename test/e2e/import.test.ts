@@ -6,6 +6,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import h5wasm from "h5wasm/node";
 import { loadHdf5 } from "../../src/io/h5.js";
 import { readSnapshot } from "../../src/io/snapshot.js";
+import { writeNpy } from "../helpers/npy.js";
 import { makeWork, removeWork, runPsibox } from "../helpers/cli.js";
 
 let work: string;
@@ -16,19 +17,6 @@ beforeAll(async () => {
 afterAll(() => removeWork(work));
 
 const psibox = (args: string[]) => runPsibox(work, args);
-
-/** A .npy file built byte by byte from the format's specification (NumPy NEP 1), complex128, C order. */
-function writeNpy(file: string, shape: number[], data: Float64Array): void {
-  let header = `{'descr': '<c16', 'fortran_order': False, 'shape': (${shape.join(", ")}${shape.length === 1 ? "," : ""}), }`;
-  const total = 10 + header.length + 1;
-  header += " ".repeat((64 - (total % 64)) % 64) + "\n";
-  const head = Buffer.alloc(10);
-  head.write("\x93NUMPY", 0, "latin1");
-  head[6] = 1;
-  head[7] = 0;
-  head.writeUInt16LE(header.length, 8);
-  fs.writeFileSync(file, Buffer.concat([head, Buffer.from(header, "latin1"), Buffer.from(data.buffer)]));
-}
 
 const shape = [8, 16];
 const values = Float64Array.from({ length: 2 * 8 * 16 }, (_, i) => 100 + Math.sin(i));

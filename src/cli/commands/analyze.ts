@@ -25,6 +25,8 @@ export const analyzeSpec: CommandSpec<AnalyzeFlags, [string[]]> = {
     diagnostics: { flags: "--diagnostics <list>", help: "field diagnostics, comma-separated: energy-split, vortices, granules, husimi, or none (default: all that apply)" },
     husimiWindow: { flags: "--husimi-window <length>", help: 'Husimi window η, e.g. "0.5 kpc" (default: √(L Δx/4π))' },
     husimiPoints: { flags: "--husimi-points <points>", help: '2D/3D: points for the Husimi momentum distribution, "x,y[,z];…" in kpc (default: the densest point)' },
+    overdensity: { flags: "--overdensity <definition>", help: "halo definition: Δ times the critical density (e.g. 200c) or the mean matter density (e.g. 200m; in static boxes the box mean), or vir (Bryan & Norman 1998); default 200m" },
+    haloMinMass: { flags: "--halo-min-mass <mass>", help: 'smallest halo in the catalogue, e.g. "1e8 Msun" (default: a halo of 2 cells\' radius at the threshold)' },
     ...PICTURE_OPTIONS,
   },
   run: async ([paths], flags) => (await import("../analyze-command.js")).analyzeCommand(paths, flags),

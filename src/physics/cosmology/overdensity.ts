@@ -1,9 +1,10 @@
 /**
  * Spherical-overdensity halo definitions: the mean density inside a halo's
  * radius R_Δ equals Δ times a reference density.
- * - "200c": Δ = 200 times the critical density 3H(z)²/(8πG);
- * - "200m": Δ = 200 times the mean matter density Ω_m ρ_crit,0 (1+z)³; in a
- *   static box, 200 times the box's mean density (there is no cosmology);
+ * - "200c" (any Δ followed by c): Δ times the critical density 3H(z)²/(8πG);
+ * - "200m" (any Δ followed by m): Δ times the mean matter density
+ *   Ω_m ρ_crit,0 (1+z)³; in a static box, Δ times the box's mean density
+ *   (there is no cosmology);
  * - "vir": the virial overdensity of Bryan & Norman (1998, their eq. 6) for
  *   a flat universe with a cosmological constant, relative to the critical
  *   density: Δ_c = 18π² + 82x − 39x², x = Ω_m(z) − 1, with
@@ -11,9 +12,8 @@
  */
 import { InputError } from "../../core/errors.js";
 
-/** The overdensity definitions psibox knows. */
-export const OVERDENSITY_DEFINITIONS = ["200c", "200m", "vir"] as const;
-export type OverdensityDefinition = (typeof OVERDENSITY_DEFINITIONS)[number];
+/** A definition: Δ and its reference ("c" critical, "m" mean matter), or "vir" (Bryan & Norman). */
+export type OverdensityDefinition = `${number}c` | `${number}m` | "vir";
 
 /** A flat background's density parameters today. */
 export interface FlatDensities {
@@ -58,23 +58,27 @@ export function overdensityThreshold(
   cosmology: FlatDensities | undefined,
   file: string,
 ): OverdensityThreshold {
+  const given = Number(definition.slice(0, -1));
   if (!cosmology || critical === undefined) {
-    if (definition !== "200m") {
-      throw new InputError(`--overdensity: "${definition}" needs a cosmology, and ${file} is a static box; use 200m (200 times the box's mean density)`);
+    if (!definition.endsWith("m")) {
+      throw new InputError(`--overdensity: "${definition}" needs a cosmology, and ${file} is a static box; use e.g. 200m (200 times the box's mean density)`);
     }
-    return { definition, delta: 200, reference: "box mean", density: 200 * boxMean };
+    return { definition, delta: given, reference: "box mean", density: given * boxMean };
   }
-  if (definition === "200c") return { definition, delta: 200, reference: "critical", density: 200 * critical };
-  if (definition === "200m") return { definition, delta: 200, reference: "mean matter", density: 200 * omegaMatterAt(z, cosmology) * critical };
-  const delta = bryanNormanDelta(z, cosmology);
-  return { definition, delta, reference: "critical", density: delta * critical };
+  if (definition === "vir") {
+    const delta = bryanNormanDelta(z, cosmology);
+    return { definition, delta, reference: "critical", density: delta * critical };
+  }
+  if (definition.endsWith("c")) return { definition, delta: given, reference: "critical", density: given * critical };
+  return { definition, delta: given, reference: "mean matter", density: given * omegaMatterAt(z, cosmology) * critical };
 }
 
 /** Parse `--overdensity`. */
 export function parseOverdensity(text: string): OverdensityDefinition {
   const t = text.trim();
-  if (!(OVERDENSITY_DEFINITIONS as readonly string[]).includes(t)) {
-    throw new InputError(`--overdensity: "${t.slice(0, 60)}" is not a definition; valid: 200c, 200m (the default) or vir (Bryan & Norman 1998)`);
+  const m = /^(\d+(?:\.\d*)?)([cm])$/.exec(t);
+  if (t !== "vir" && !(m && Number(m[1]) >= 1)) {
+    throw new InputError(`--overdensity: "${t.slice(0, 60)}" is not a definition; valid: Δ ≥ 1 followed by c (critical density) or m (mean matter density), e.g. 200c or 200m (the default), or vir (Bryan & Norman 1998)`);
   }
   return t as OverdensityDefinition;
 }
