@@ -137,6 +137,6 @@ describe("overdensity definitions", () => {
     expect(overdensityThreshold("200m", 0, 2, 1, planck, "s.h5").density).toBeCloseTo(200 * 0.3153 * 2, 12);
     expect(overdensityThreshold("vir", 0, 2, 1, planck, "s.h5").density).toBeCloseTo(2 * bryanNormanDelta(0, planck), 12);
     expect(overdensityThreshold("200m", 0, undefined, 3, undefined, "s.h5")).toMatchObject({ density: 600, reference: "box mean" });
-    expect(() => overdensityThreshold("vir", 0, undefined, 3, undefined, "s.h5")).toThrow(/^--overdensity: "vir" needs a cosmology, and s\.h5 is a static box; use 200m/);
+    expect(() => overdensityThreshold("vir", 0, undefined, 3, undefined, "s.h5")).toThrow(/^--overdensity: "vir" needs a cosmology, and s\.h5 is a static box; use e\.g\. 200m/);
   });
 });
