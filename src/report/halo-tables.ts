@@ -12,6 +12,7 @@ import { writeFileAtomic } from "../io/atomic.js";
 import { writeHdf5Atomic } from "../io/h5.js";
 import { numberAttr, textAttr } from "../io/h5-attrs.js";
 import { ballVolume, findHalos, type Halo } from "../diagnostics/halo-catalogue.js";
+import { CORE_RESOLVED_CELLS, coreRelationDensity, haloCore, type HaloCore } from "../diagnostics/halo-core.js";
 import { overdensityThreshold, type OverdensityDefinition, type OverdensityThreshold } from "../physics/cosmology/overdensity.js";
 import { M_SUN_KG, PC_M } from "../physics/constants.js";
 import { csvTable } from "./csv-table.js";
@@ -38,15 +39,36 @@ interface Scales {
   readonly cell: number;
 }
 
+/** A halo with its core (3D runs). */
+type CatalogueHalo = Halo & { readonly core?: HaloCore };
+
 interface Column {
   readonly name: string;
   readonly units: string;
   readonly meaning: string;
-  readonly value: (h: Halo, i: number, s: Scales) => number | string;
+  readonly value: (h: CatalogueHalo, i: number, s: Scales) => number | string;
+}
+
+/** The core columns of 3D runs: NaN where they do not apply. */
+function coreColumns(particleMassEv: number): Column[] {
+  const fitted = (h: CatalogueHalo) => (h.core?.status === "fitted" ? h.core : undefined);
+  const properKpc = (r: number, s: Scales) => r * s.kpc * s.a;
+  return [
+    { name: "core_resolved", units: "1", meaning: `1 when the core's half-density radius spans at least ${CORE_RESOLVED_CELLS} cells and the core profile was fitted, else 0`, value: (h) => (fitted(h) ? 1 : 0) },
+    { name: "core_r_c_kpc", units: "kpc", meaning: "fitted core radius r_c (proper)", value: (h, _i, s) => (fitted(h) ? properKpc(fitted(h)!.rC, s) : NaN) },
+    { name: "core_r_c_upper_kpc", units: "kpc", meaning: "unresolved core: upper limit on r_c (proper)", value: (h, _i, s) => (h.core?.status === "unresolved" ? properKpc(h.core.rCUpper, s) : NaN) },
+    { name: "core_rho_c_Msun_kpc3", units: "Msun/kpc^3", meaning: "fitted central density (physical)", value: (h, _i, s) => (fitted(h) ? (fitted(h)!.rhoC * s.density) / s.a ** 3 : NaN) },
+    {
+      name: "core_relation_rho_c_Msun_kpc3",
+      units: "Msun/kpc^3",
+      meaning: "central density the core relation of Schive, Chiueh & Broadhurst (2014) gives for the fitted r_c (physical)",
+      value: (h, _i, s) => (fitted(h) ? coreRelationDensity(properKpc(fitted(h)!.rC, s), particleMassEv) : NaN),
+    },
+  ];
 }
 
 /** The catalogue's columns, for `dims` simulated axes (one declaration for the CSV and the HDF5 file). */
-function columns(dims: number): Column[] {
+function columns(dims: number, particleMassEv: number): Column[] {
   const axes = AXES.slice(0, dims);
   return [
     { name: "halo", units: "1", meaning: "halo number, densest peak first", value: (_h, i) => i + 1 },
@@ -58,6 +80,7 @@ function columns(dims: number): Column[] {
     ...axes.map((x, ax) => ({ name: `v${x}_km_s`, units: "km/s", meaning: `bulk peculiar velocity, ${x}`, value: (h: Halo, _i: number, s: Scales) => h.velocity[ax]! * s.kms })),
     { name: "sigma_km_s", units: "km/s", meaning: "one-dimensional velocity dispersion inside R (wave kinetic energy minus bulk flow)", value: (h, _i, s) => h.dispersion * s.kms },
     { name: "resolved", units: "1", meaning: `1 when R spans at least ${RESOLVED_HALO_CELLS} cells, else 0`, value: (h, _i, s) => (h.radius / s.cell >= RESOLVED_HALO_CELLS ? 1 : 0) },
+    ...(dims === 3 ? coreColumns(particleMassEv) : []),
   ];
 }
 
@@ -93,8 +116,10 @@ export function haloTables(file: string, snap: Snapshot, field: LoadedField, out
   };
   const { code, physical } = threshold(snap, field, request.definition, file);
   const minMass = request.minMassMsun !== undefined ? request.minMassMsun / s.msun : code * ballVolume(grid.dims, 2 * s.cell);
-  const halos = findHalos(grid, psi, { threshold: code, minMass, a });
-  const cols = columns(grid.dims);
+  const found = findHalos(grid, psi, { threshold: code, minMass, a });
+  const rMax = (h: Halo) => Math.min(Math.max(h.radius, 6 * s.cell), Math.min(...grid.lengths) / 4);
+  const halos: CatalogueHalo[] = grid.dims === 3 ? found.map((h) => ({ ...h, core: haloCore(grid, psi, h.centre, rMax(h)) })) : found;
+  const cols = columns(grid.dims, snap.meta.particleMassEv);
   const rows = halos.map((h, i) => cols.map((c) => c.value(h, i, s)));
   writeFileAtomic(path.join(outDir, "halos.csv"), csvTable(cols.map((c) => c.name), rows));
   const thresholdMsunKpc3 = physical.density * s.density;
@@ -119,6 +144,7 @@ export function haloTables(file: string, snap: Snapshot, field: LoadedField, out
     threshold_density_Msun_kpc3: thresholdMsunKpc3,
     min_mass_Msun: minMass * s.msun,
     count: halos.length,
-    resolved: rows.filter((r) => r.at(-1) === 1).length,
+    resolved: halos.filter((h) => h.radius / s.cell >= RESOLVED_HALO_CELLS).length,
+    ...(grid.dims === 3 ? { cores_fitted: halos.filter((h) => h.core?.status === "fitted").length } : {}),
   };
 }

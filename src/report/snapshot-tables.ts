@@ -12,6 +12,7 @@ import { fieldStats, type LoadedField } from "../simulation/from-snapshot.js";
 import { densestPoints, densityPdf, densityPowerSpectrum, fitCoreProfile, kineticSplit, radialProfile, type KineticSplit } from "../diagnostics/analysis.js";
 import { KG_PER_EV, M_SUN_KG, PC_M } from "../physics/constants.js";
 import { csvTable as csv } from "./csv-table.js";
+import { coreRelationDensity } from "../diagnostics/halo-core.js";
 
 const KPC = 1e3 * PC_M;
 
@@ -61,7 +62,6 @@ export function snapshotTables(
 
   const stats = fieldStats(field, fft);
   const split = kinetic ?? kineticSplit(grid, psi, a, fft);
-  const m22over10 = units.particleMassKg / KG_PER_EV / 1e-23; // m / 1e-23 eV
   const peaks = densestPoints(grid, psi, 5, Math.max(4, grid.cells[0]! / 16));
   const profileRows: (number | string)[][] = [];
   const peakRows = peaks.map((p, i) => {
@@ -78,8 +78,8 @@ export function snapshotTables(
       }
     }
     const rcKpc = fit ? fit.rC * kpcPerCode : NaN;
-    // Schive, Chiueh & Broadhurst 2014: ρ_c = 1.9 (m/1e-23 eV)^-2 (r_c/kpc)^-4 Msun/pc³
-    const predicted = fit ? 1.9e9 * Math.pow(m22over10, -2) * Math.pow(rcKpc, -4) : NaN;
+    // the core relation in this table's comoving units: ρ_c,comoving = a³ ρ_c(r_c proper = a r_c)
+    const predicted = fit ? a ** 3 * coreRelationDensity(a * rcKpc, units.particleMassKg / KG_PER_EV) : NaN;
     return [i + 1, ...[0, 1, 2].map((ax) => (p.coords[ax] ?? NaN) * kpcPerCode), p.density * densityUnit, fit ? fit.rhoC * densityUnit : NaN, rcKpc, predicted, fit ? fit.rms : NaN];
   });
   writeFileAtomic(

@@ -61,6 +61,14 @@ describe("the halo catalogue of psibox analyze", () => {
     const summary = readJson<{ halos: { definition: string; threshold_density_Msun_kpc3: number; count: number } }>(path.join(work, "an/summary.json")).halos;
     expect(summary.definition).toBe("200c");
     expect(Math.abs(summary.threshold_density_Msun_kpc3 / (200 * CRIT) - 1)).toBeLessThan(1e-6);
+    // peaks.csv is comoving: the core relation there is 1.9 a⁻¹ (m/1e-23 eV)⁻² (r_c/kpc)⁻⁴ Msun/pc³ of the
+    // comoving r_c (Schive, Chiueh & Broadhurst 2014), evaluated here independently
+    const peak = readCsv(path.join(work, "an/peaks.csv"))[0]!;
+    const rc = Number(peak["core_fit_r_c_kpc"]);
+    expect(Number(peak["core_relation_rho_c_Msun_kpc3"]) / ((1.9e9 / A) * 10 ** -2 * rc ** -4) - 1).toBeCloseTo(0, 6);
+    // the halo's core: this NFW cusp is one cell across, so it is not fitted and its upper limit is given
+    expect(rows[0]!["core_resolved"]).toBe("0");
+    expect(Number(rows[0]!["core_r_c_upper_kpc"])).toBeGreaterThan(0);
     const f = new h5wasm.File(path.join(work, "an/halos.h5"), "r");
     const dataset = (name: string) => f.get(name) as InstanceType<typeof h5wasm.Dataset>;
     expect(Math.abs((dataset("M_Msun").value as Float64Array)[0]! / Number(rows[0]!["M_Msun"]) - 1)).toBeLessThan(1e-7);
