@@ -5,42 +5,27 @@
 // the checkpoint, as a full disk would.
 import { spawnSync } from "node:child_process";
 import fs from "node:fs";
-import os from "node:os";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import h5wasm from "h5wasm/node";
 import { loadHdf5 } from "../../src/io/h5.js";
+import { BIN, makeWork, removeWork, runPsibox } from "../helpers/cli.js";
+import { PLANE_WAVE_2D } from "../helpers/configs.js";
 
-const BIN = path.resolve("dist/cli/bin.js");
 let work: string;
-const CONFIG = `[grid]
-cells = [64, 64]
-box = "20 kpc"
-[particle]
-mass = "1e-22 eV"
-[span]
-duration = "60 Myr"
-[initial]
-kind = "plane-wave"
-mean_density = "1e7 Msun/kpc^3"
-contrast = 0.2
-mode = [1, 1]
-[output]
+const CONFIG = `${PLANE_WAVE_2D.replace("cells = [32, 32]", "cells = [64, 64]").replace("contrast = 0.3", "contrast = 0.2")}[output]
 snapshot_every = 20
 snapshot_precision = "float32"
 checkpoint_every = 50
 `;
 beforeAll(async () => {
   await loadHdf5();
-  work = fs.mkdtempSync(path.join(os.tmpdir(), "psibox-messages-"));
+  work = makeWork("messages");
   fs.writeFileSync(path.join(work, "m.toml"), CONFIG);
 });
-afterAll(() => fs.rmSync(work, { recursive: true, force: true }));
+afterAll(() => removeWork(work));
 
-function psibox(args: string[]) {
-  const r = spawnSync(process.execPath, [BIN, ...args], { cwd: work, encoding: "utf8" });
-  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
-}
+const psibox = (args: string[]) => runPsibox(work, args);
 /** One line on stderr, starting with "psibox: ", no control characters, exit code `code`. */
 function oneLine(r: { code: number | null; stderr: string }, code: number): string {
   expect(r.code, r.stderr).toBe(code);
