@@ -24,6 +24,8 @@ import { PC_M } from "../physics/constants.js";
 import { readModeState, type ModeState, type ModeStateFlags } from "./mode-state-options.js";
 import { describeStart, numberSpread } from "../quantum/gaussian-start.js";
 import { stationaryAdiabaticChi } from "../quantum/adiabatic.js";
+import { outflowRates, type OutflowRates } from "../quantum/outflow.js";
+import { YEAR_S } from "../physics/constants.js";
 
 export interface ClocksFlags extends ModeStateFlags {
   region: string;
@@ -116,6 +118,8 @@ export async function clocksCommand(paths: readonly string[], flags: ClocksFlags
   }
   const a = acc as ClockAccumulator;
   const spanS = lastS - t0S;
+  const outflow = outflowRates(rows.map((r) => r[1] as number), rows.map((r) => r[3] as number));
+  rows.forEach((r, j) => r.push(outflow.perInterval[j] as number));
   const clocks: ClockReport[] = a.results().map((r) => {
     const t = r.time;
     return {
@@ -129,7 +133,7 @@ export async function clocksCommand(paths: readonly string[], flags: ClocksFlags
     };
   });
   const outDir = clocksOutDir(paths, flags);
-  const summary = writeClockFiles(paths, flags, files.length, rows, clocks, a, state as ModeState, db);
+  const summary = writeClockFiles(paths, flags, files.length, rows, clocks, a, state as ModeState, db, outflow);
   if (flags.json) {
     process.stdout.write(JSON.stringify(summary, null, 2) + "\n");
     return 0;
@@ -139,7 +143,7 @@ export async function clocksCommand(paths: readonly string[], flags: ClocksFlags
       `  ${String(r[0]).padEnd(16)} t − t₀ = ${formatDuration((r[1] as number) - t0S).padEnd(11)} N|χ| = ${formatQuantity(r[6] as number, "/s").padEnd(17)} λ = ${formatQuantity(r[7] as number, "/s").padEnd(17)} squeezing ${formatQuantity(r[11] as number, "dB")}`,
   );
   const clockText = formatClocks(clocks, db).replace("(whole-box mode):", `(${flags.region} mode, from snapshots; times counted from the first snapshot, t₀):`);
-  process.stdout.write(`${files.length} snapshots, mode: ${flags.region}, N = ${formatNumber(a.particles, 5)}\n${table.join("\n")}\n${clockText}`);
+  process.stdout.write(`${files.length} snapshots, mode: ${flags.region}, N = ${formatNumber(a.particles, 5)}\n${table.join("\n")}\n${clockText}${outflowLine(outflow)}`);
   process.stdout.write(`wrote ${path.relative(process.cwd(), path.join(outDir, "snapshot-clocks.csv")) || "snapshot-clocks.csv"} and snapshot-clocks.json\n`);
   return 0;
 }
@@ -154,13 +158,14 @@ function writeClockFiles(
   a: ClockAccumulator,
   state: ModeState,
   db: number,
+  outflow: OutflowRates,
 ): Record<string, unknown> {
   const outDir = clocksOutDir(paths, flags);
   fs.mkdirSync(outDir, { recursive: true });
   recordIfInside(outDir, path.join(outDir, "snapshot-clocks.csv"));
   recordIfInside(outDir, path.join(outDir, "snapshot-clocks.json"));
   const header =
-    "snapshot,t_s,a,particles_N,omega_per_s,chi_per_s,rate_Nchi_per_s,lambda_per_s,virial_ratio,theta_rad,chi_integral_rad,squeezing_dB,log10_meanfield_fraction,breakdown_integral,chi_adiabatic_per_s,chi_adiabatic_integral_rad,squeezing_parameter";
+    "snapshot,t_s,a,particles_N,omega_per_s,chi_per_s,rate_Nchi_per_s,lambda_per_s,virial_ratio,theta_rad,chi_integral_rad,squeezing_dB,log10_meanfield_fraction,breakdown_integral,chi_adiabatic_per_s,chi_adiabatic_integral_rad,squeezing_parameter,outflow_loss_rate_per_s";
   const csv = [header, ...rows.map((r) => r.map((v) => (typeof v === "number" ? v.toPrecision(12) : v)).join(","))].join("\n") + "\n";
   writeFileAtomic(path.join(outDir, "snapshot-clocks.csv"), csv);
   const cols = header.split(",");
@@ -174,6 +179,10 @@ function writeClockFiles(
     start: { ...st.start, description: describeStart(st.start), number_spread: numberSpread(a.particles, st.start) },
     loss_rate_per_s: st.lossRatePerS,
     dephasing_rate_per_s: st.dephasingRatePerS,
+    // the region's measured mass outflow as a loss rate, −ln(N_last/N_first)/(t_last − t_first); 0 for a closed box
+    outflow_loss_rate_per_s: nullIfNaN(outflow.mean),
+    outflow_loss_rate_per_yr: nullIfNaN(outflow.mean * YEAR_S),
+    outflow_loss_integral: outflow.lossIntegral,
     clocks,
     final: {
       theta_rad: a.theta,
@@ -192,6 +201,17 @@ function writeClockFiles(
   };
   writeFileAtomic(path.join(outDir, "snapshot-clocks.json"), JSON.stringify(summary, null, 2) + "\n");
   return summary;
+}
+
+const nullIfNaN = (v: number): number | null => (Number.isNaN(v) ? null : v);
+
+/** The screen line of the region's measured outflow, the loss rate to feed back. */
+function outflowLine(outflow: OutflowRates): string {
+  if (Number.isNaN(outflow.mean)) return "";
+  const g = outflow.mean;
+  const what = g >= 0 ? "mass outflow" : "mass inflow (a negative loss rate)";
+  const hint = g > 0 ? `; as a loss rate: --loss-rate "${g.toPrecision(4)}/s" or sidecar.loss_rate = "${g.toPrecision(4)}/s"` : "";
+  return `  ${what} of the region, mean over the snapshots: ${formatQuantity(g, "/s")} = ${formatQuantity(g * YEAR_S, "/yr")}${hint}\n`;
 }
 
 /** Where the clock files go: --out, else the one folder given, else the working folder. */
