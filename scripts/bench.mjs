@@ -3,7 +3,7 @@
 // Prints ms per step (median), ns per cell-step, nominal GFLOP/s and peak resident memory.
 // When python3 with NumPy is available it also runs scripts/numpy_step.py, NumPy's version of the
 // identical step, checks that both give the same field to 1e-10 and prints the time ratio.
-// Usage: node scripts/bench.mjs [--large] [--steps N] [--no-numpy] [--threads N] [--fft auto|wasm|js]
+// Usage: node scripts/bench.mjs [--large] [--steps N] [--no-numpy] [--threads N] [--fft auto|wasm|js] [--tangents-only]
 // (threads default to the number of cores; the fft backend to auto, and the 3D grids are also run on the other backend)
 import { Grid } from "../dist/grid/grid.js";
 import { makePoissonSolver } from "../dist/fields/poisson.js";
@@ -25,10 +25,12 @@ const threadsArg = args.indexOf("--threads");
 const threads = threadsArg >= 0 ? Number(args[threadsArg + 1]) : os.availableParallelism();
 const fftArg = args.indexOf("--fft");
 const fft = fftArg >= 0 ? args[fftArg + 1] : "auto";
-const makeStepper = (grid, gravity, t, backend = fft) =>
-  t > 1
-    ? new ThreadedStepper(grid, new StaticBackground(), makePoissonSolver(grid, gravity), t, backend)
-    : new SplitStepper(grid, new StaticBackground(), makePoissonSolver(grid, gravity), backend);
+const makeStepper = (grid, gravity, t, backend = fft, tangents = 0) => {
+  const fields = Array.from({ length: tangents }, () => ({ kind: "tangent" }));
+  return t > 1
+    ? new ThreadedStepper(grid, new StaticBackground(), makePoissonSolver(grid, gravity), t, backend, {}, fields)
+    : new SplitStepper(grid, new StaticBackground(), makePoissonSolver(grid, gravity), backend, 1, fields);
+};
 
 function field(grid) {
   const psi = new Float64Array(2 * grid.size);
@@ -41,10 +43,13 @@ function field(grid) {
   return psi;
 }
 
-function bench(cells, gravity = "periodic", t = 1, backend = fft) {
+function bench(cells, gravity = "periodic", t = 1, backend = fft, tangents = 0) {
   const grid = new Grid(cells, cells.map(() => 1));
-  const stepper = makeStepper(grid, gravity, t, backend);
-  stepper.setState(field(grid), 0);
+  const stepper = makeStepper(grid, gravity, t, backend, tangents);
+  const psi = field(grid);
+  // tangent fields (breakdown.tangent, breakdown.probes): perturbations of the same size as ψ
+  for (let i = 1; i <= tangents; i++) stepper.setField(i, psi.map((v, j) => (j % 2 === 0 ? 0.01 * i * v : 0)));
+  stepper.setState(psi, 0);
   // a step the phase rule would allow (highest mode turns by at most 2 rad): huge phases would time the
   // sin/cos library's large-argument path instead of the step
   const kMax = Math.PI * Math.max(...cells);
@@ -66,7 +71,8 @@ function bench(cells, gravity = "periodic", t = 1, backend = fft) {
   const n = grid.size;
   // nominal work: one complex FFT pair (2 × 5 N log2 N) plus one real FFT pair (about half that)
   const flops = 15 * n * Math.log2(n);
-  return { label: `${cells.length}D ${cells.join("×")} ${gravity}${t > 1 ? ` ${t}t` : ""} ${stepper.backend}`, ms, nsPerCell: (ms * 1e6) / n, gflops: flops / (ms * 1e6), heapGrowth };
+  const extra = tangents > 0 ? ` +${tangents} tangent` : "";
+  return { label: `${cells.length}D ${cells.join("×")} ${gravity}${t > 1 ? ` ${t}t` : ""} ${stepper.backend}${extra}`, ms, nsPerCell: (ms * 1e6) / n, gflops: flops / (ms * 1e6), heapGrowth };
 }
 
 const here = path.dirname(fileURLToPath(import.meta.url));
@@ -128,6 +134,25 @@ if (threads > 1) cases.push([[128, 128, 128], "periodic", threads, other]);
 cases.push([[32, 32, 32], "isolated"], [[64, 64, 64], "isolated"], [[512, 512]], [[1024, 1024]]);
 if (threads > 1) cases.push([[1024, 1024], "periodic", threads]);
 cases.push([[1 << 16]], [[1 << 20]]);
+// the step with tangent-linear fields ([breakdown]): the issue's targets are at most 2.2× the plain step with
+// one tangent field, and at most 1.1 (1 + 2p)× with p depletion probes (2p fields), at 128³
+function benchTangents() {
+  const tangentThreads = Math.max(1, Math.min(threads, 2));
+  console.log(`\nwith tangent-linear fields, 128³ periodic, ${tangentThreads} thread(s): time per step over the plain step's`);
+  const plain = bench([128, 128, 128], "periodic", tangentThreads);
+  for (const [fields, target] of [
+    [1, 2.2],
+    [2, 1.1 * 3], // one probe
+  ]) {
+    const r = bench([128, 128, 128], "periodic", tangentThreads, fft, fields);
+    console.log(`${r.label.padEnd(40)} ${r.ms.toFixed(1).padStart(8)} ms   ${(r.ms / plain.ms).toFixed(2)}× (target ≤ ${target.toFixed(1)}×)`);
+  }
+}
+if (args.includes("--tangents-only")) {
+  benchTangents();
+  process.exit(0);
+}
+
 console.log(`psibox split-step benchmark, node ${process.version}, ${steps} timed steps per grid (median)`);
 console.log("grid                              ms/step   ns/cell-step   GFLOP/s   heap growth during steps");
 for (const [cells, gravity, t, backend] of cases) {
@@ -137,6 +162,8 @@ for (const [cells, gravity, t, backend] of cases) {
   );
 }
 console.log(`peak resident memory: ${(process.resourceUsage().maxRSS / 1024).toFixed(0)} MB`);
+benchTangents();
+
 if (useNumpy) {
   console.log(`\nagainst NumPy (scripts/numpy_step.py, the identical step), same machine, same run; psibox on ${threads} thread(s):`);
   console.log("grid      psibox ms/step   NumPy ms/step   ratio   max |Δψ|/max|ψ| after " + steps + " steps");
