@@ -1,5 +1,5 @@
 /** `psibox run CONFIG` and `psibox run --resume DIR`. */
-import { formatNumber } from "../core/format.js";
+import { formatNumber, formatQuantity } from "../core/format.js";
 import fs from "node:fs";
 import path from "node:path";
 import { InputError } from "../core/errors.js";
@@ -15,7 +15,7 @@ import { fileName } from "../core/sanitize.js";
 import { runPaths } from "../simulation/outputs.js";
 import { TextReporter } from "./progress.js";
 import { describeRun } from "./describe.js";
-import type { ClockReport } from "../quantum/sidecar-report.js";
+import type { ClockReport, twinRecord } from "../quantum/sidecar-report.js";
 
 export interface RunFlags {
   set: string[];
@@ -126,6 +126,8 @@ async function runOwned(run: ResolvedRun, flags: RunFlags & { readonly initialOn
       if (clocks) process.stdout.write(formatClocks(clocks, run.sidecar.squeezingDb));
       const measured = (summary["lyapunov"] as { scrambling_clock?: MeasuredClock } | undefined)?.scrambling_clock;
       if (measured) process.stdout.write(formatMeasuredClock(measured));
+      const twin = summary["adiabatic_twin"] as TwinSummary | undefined;
+      if (twin) process.stdout.write(formatTwin(twin));
       return 0;
     }
     const hint = interrupted ? `; continue with: psibox run --resume ${where}` : "";
@@ -169,4 +171,16 @@ export function formatClocks(clocks: readonly ClockReport[], squeezingDb = -10):
     return `  ${titles[i]!.padEnd(width)}  ${when}${ratios}`;
   });
   return `quantum sidecar clocks (whole-box mode):\n${lines.join("\n")}\n`;
+}
+
+type TwinSummary = ReturnType<typeof twinRecord>;
+
+/** The twin field's measurement in a line: χ_ad against the stationary-state formula and the frozen χ. */
+export function formatTwin(twin: TwinSummary): string {
+  if (twin.chi_adiabatic_per_s === null) return "  adiabatic coefficient by the twin field: too few steps to fit (at least 8 are needed)\n";
+  const ratio = (v: number | null) => formatNumber(v ?? Number.NaN, 4);
+  return (
+    `  adiabatic coefficient by the twin field (e = ${formatNumber(twin.excess)}): χ_ad = ${formatQuantity(twin.chi_adiabatic_per_s, "/s", 4)}, ` +
+    `${ratio(twin.ratio_to_stationary)} × the stationary-state 2ω/N + 2χ, ${ratio(twin.ratio_to_frozen)} × the frozen-mode χ\n`
+  );
 }

@@ -17,6 +17,8 @@ export interface ResolvedSidecar {
   /** Loss rate γ and dephasing rate κ [1/code time]. */
   readonly lossRate: number;
   readonly dephasingRate: number;
+  /** The twin field's e (ψ₂(0) = (1 + e/2)ψ(0)); 0: no twin. */
+  readonly twinExcess: number;
 }
 
 function nonNegative(key: string, v: number, what: string): number {
@@ -43,5 +45,16 @@ export function resolveSidecar(config: CheckedConfig, timeS: number, ctx: UnitCo
     },
     lossRate: rate("sidecar.loss_rate", s.loss_rate, timeS, ctx),
     dephasingRate: rate("sidecar.dephasing_rate", s.dephasing_rate, timeS, ctx),
+    twinExcess: twinExcess(s.twin_excess, s.enabled),
   };
+}
+
+/** sidecar.twin_excess: 0 (no twin), or e from 1e-6 to 0.1 with the sidecar on. */
+function twinExcess(e: number, enabled: boolean): number {
+  if (e === 0) return 0;
+  if (!(Number.isFinite(e) && e >= 1e-6 && e <= 0.1)) {
+    throw new ConfigError("sidecar.twin_excess", `must be 0 (no twin) or from 1e-6 to 0.1 (the bias of the one-sided difference is about e/2; 1e-3 is a good choice), got ${e}`);
+  }
+  if (!enabled) throw new ConfigError("sidecar.twin_excess", "needs sidecar.enabled = true (the twin measures the sidecar's adiabatic coefficient)");
+  return e;
 }

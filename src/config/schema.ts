@@ -232,6 +232,11 @@ export const sidecarSchema = z.strictObject({
   loss_rate: z.string().default("0/s"),
   /** Dephasing rate of the mode, e.g. "0.1/Myr". @default "0/s" */
   dephasing_rate: z.string().default("0/s"),
+  /**
+   * Measure the adiabatic coefficient with a twin field ψ₂(0) = (1 + e/2)ψ(0) advanced with its own gravity:
+   * e, from 1e-6 to 0.1 (0: no twin). @default 0
+   */
+  twin_excess: z.number().default(0),
 });
 
 export const breakdownSchema = z.strictObject({

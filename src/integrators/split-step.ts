@@ -145,6 +145,11 @@ export class SplitStepper {
     return regionView(this.memory.setup, this.extras.grid(i));
   }
 
+  /** The closing kick extra field i owes (0 when it is current). */
+  fieldOwedKick(i: number): number {
+    return this.extras.owedKick(i);
+  }
+
   /**
    * Load extra field i (copied), owing `owed` (a checkpoint's; 0 for a current field). Do it
    * before setState, which computes the shared potential. A current tangent field is loaded

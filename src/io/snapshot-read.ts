@@ -74,14 +74,18 @@ function readMeta(f: H5File, version: number, file: string): SnapshotMeta {
 }
 
 /** The companion fields of a checkpoint's /state group, in order. */
-function companionFields(f: H5File, file: string): { fieldsCode?: Float64Array[] } {
+function companionFields(f: H5File, file: string): { fieldsCode?: Float64Array[]; fieldsOwedKickCode?: number[] } {
   const fields: Float64Array[] = [];
+  const owed: number[] = [];
+  let own = false; // fields with their own gravity carry the kick they owe (tangents owe ψ's)
   for (let i = 1; ; i++) {
     const ds = f.get(`${STATE.group}/${STATE.field(i)}`);
     if (!(ds instanceof Dataset)) break;
     fields.push(readFloat64(ds, file));
+    own ||= hasAttr(ds, "owed_kick_code");
+    owed.push(hasAttr(ds, "owed_kick_code") ? numberOf(ds, "owed_kick_code", file) : Number.NaN);
   }
-  return fields.length ? { fieldsCode: fields } : {};
+  return fields.length ? { fieldsCode: fields, ...(own ? { fieldsOwedKickCode: owed } : {}) } : {};
 }
 
 function readState(f: H5File, file: string): CheckpointState {

@@ -69,6 +69,8 @@ export interface CheckpointState {
   readonly fieldsCode?: readonly Float64Array[];
   /** Each run plug-in's saved state by plug-in name: JSON text {"version": n, "state": …}. */
   readonly plugins?: Readonly<Record<string, string>>;
+  /** The kick each companion field owes, when it is not ψ's (fields with their own gravity); absent: ψ's. */
+  readonly fieldsOwedKickCode?: readonly number[];
 }
 
 /** A snapshot in memory. `psi` is interleaved (re, im) in √(Msun/kpc³). */
@@ -139,6 +141,8 @@ function writeState(f: H5File, st: CheckpointState): void {
     const ds = writeVector(g, STATE.field(i + 1), field);
     ds.attach_scale(0, `${STATE.group}/${STATE.psiDim}`);
     textAttr(ds, "long_name", `exact state: companion field ${i + 1} in code units, interleaved (re, im)`);
+    const owed = st.fieldsOwedKickCode?.[i];
+    if (owed !== undefined) numberAttr(ds, "owed_kick_code", owed);
   });
   numberAttr(g, "time_code", st.timeCode);
   numberAttr(g, "mass_code", st.massCode);

@@ -14,9 +14,12 @@
  * and with the virial theorem (2K + W = 0) χ_ad = (3/2)χ exactly.
  *
  * Any field (measured). A twin field ψ₂(0) = (1 + e/2) ψ₁(0) holds (1 + e)N
- * quanta to first order; both evolve with the same equations, and the phase
- * of their overlap advances at −(μ₂ − μ₁)/ħ ≈ −e N χ_ad, so
- *   χ_ad ≈ −(d/dt) arg ∫ conj(ψ₁) ψ₂ dV / (e N).
+ * quanta to first order (ΔN = ((1 + e/2)² − 1) N exactly); both evolve with
+ * the same equations, and the phase of their overlap advances at
+ * −(μ₂ − μ₁)/ħ ≈ −ΔN χ_ad, so
+ *   χ_ad ≈ −(d/dt) arg ∫ conj(ψ₁) ψ₂ dV / ΔN ≈ −(d/dt) arg ∫ conj(ψ₁) ψ₂ dV / (e N).
+ * A one-sided difference: where μ ∝ N² it gives dμ/dN at N + ΔN/2, a bias of
+ * ΔN/(2N) ≈ e/2, so e is kept small (1e-3 by default in runs).
  */
 import type { ModeCoefficients } from "./mode.js";
 
@@ -25,45 +28,67 @@ export function stationaryAdiabaticChi(c: Pick<ModeCoefficients, "omega" | "chi"
   return (2 * c.omega) / c.particles + 2 * c.chi;
 }
 
-/** arg ∫ conj(ψ₁) ψ₂ over interleaved complex arrays (radians in (−π, π]). */
-export function overlapPhase(psi1: Float64Array, psi2: Float64Array): number {
-  let re = 0;
-  let im = 0;
-  for (let i = 0; i < psi1.length; i += 2) {
-    const ar = psi1[i] as number;
-    const ai = psi1[i + 1] as number;
-    const br = psi2[i] as number;
-    const bi = psi2[i + 1] as number;
-    re += ar * br + ai * bi;
-    im += ar * bi - ai * br;
-  }
-  return Math.atan2(im, re);
-}
+/** Samples the twin tracker keeps for its fit (thinned by halves beyond this, so checkpoints stay small). */
+const MAX_SAMPLES = 512;
 
-/** Follows the overlap phase continuously (unwrapped) and fits χ_ad by least squares over the samples. */
+/**
+ * Follows the overlap phase continuously (unwrapped), gives the adiabatic phase integral
+ * ∫χ_ad dt = −(arg − arg₀)/ΔN as it goes, and fits χ_ad by least squares over the samples.
+ * ΔN = ((1 + e/2)² − 1) N is the twin's extra quanta.
+ */
 export class TwinPhaseTracker {
-  private readonly t: number[] = [];
-  private readonly phase: number[] = [];
+  readonly deltaN: number;
+  private t: number[] = [];
+  private phase: number[] = [];
+  /** Every stride-th sample is kept for the fit. */
+  private stride = 1;
+  private count = 0;
+  private first: number | undefined;
+  private last: number | undefined;
   /**
-   * @param e the twin's relative extra mass (ψ₂ = (1 + e/2) ψ₁ at the start)
+   * @param e the twin's relative extra amplitude (ψ₂ = (1 + e/2) ψ₁ at the start)
    * @param particles N of the first field
    */
   constructor(
     readonly e: number,
     readonly particles: number,
-  ) {}
-
-  /** Add a sample; consecutive samples must differ in phase by less than π. */
-  add(t: number, phase: number): void {
-    const last = this.phase.at(-1);
-    let p = phase;
-    if (last !== undefined) p = last + Math.atan2(Math.sin(phase - last), Math.cos(phase - last));
-    this.t.push(t);
-    this.phase.push(p);
+  ) {
+    this.deltaN = (e + (e * e) / 4) * particles;
   }
 
   /**
-   * χ_ad = −b/(eN) from a least-squares fit of the phase by a + b t + c sin Ωt + d cos Ωt, with Ω
+   * Add a sample; consecutive samples must differ in phase by less than π. Returns the increment of
+   * ∫χ_ad dt since the previous sample, −Δarg/ΔN (0 for the first).
+   */
+  add(t: number, phase: number): number {
+    const last = this.last;
+    const p = last === undefined ? phase : last + Math.atan2(Math.sin(phase - last), Math.cos(phase - last));
+    this.first ??= p;
+    this.last = p;
+    if (this.count++ % this.stride === 0) {
+      this.t.push(t);
+      this.phase.push(p);
+      if (this.t.length >= MAX_SAMPLES) {
+        this.t = this.t.filter((_, i) => i % 2 === 0);
+        this.phase = this.phase.filter((_, i) => i % 2 === 0);
+        this.stride *= 2;
+      }
+    }
+    return last === undefined ? 0 : -(p - last) / this.deltaN;
+  }
+
+  /** ∫χ_ad dt since the first sample, −(arg − arg₀)/ΔN. */
+  get integral(): number {
+    return this.first === undefined ? 0 : -((this.last as number) - this.first) / this.deltaN;
+  }
+
+  /** The samples kept for the fit (times and unwrapped phases). */
+  get samples(): { readonly t: readonly number[]; readonly phase: readonly number[] } {
+    return { t: this.t, phase: this.phase };
+  }
+
+  /**
+   * χ_ad = −b/ΔN from a least-squares fit of the phase by a + b t + c sin Ωt + d cos Ωt, with Ω
    * chosen to minimise the residual (undefined with fewer than 8 samples). The twin starts with the
    * frozen-mode rate (its mode function has not relaxed) and oscillates about the adiabatic one at
    * the breathing frequency Ω, so the line alone would be biased unless the run spans many periods;
@@ -79,18 +104,32 @@ export class TwinPhaseTracker {
       const fit = leastSquares(this.t, this.phase, (t) => [1, t, Math.sin(omega * t), Math.cos(omega * t)]);
       if (fit && fit.residual < best.res) best = { res: fit.residual, b: fit.coef[1] as number };
     }
-    return -best.b / (this.e * this.particles);
+    return -best.b / this.deltaN;
   }
 
-  /** Plain state for a checkpoint. */
-  save(): { t: number[]; phase: number[] } {
-    return { t: [...this.t], phase: [...this.phase] };
+  /** Plain state for a checkpoint (exact: JSON round-trips doubles). */
+  save(): TwinState {
+    return { t: [...this.t], phase: [...this.phase], stride: this.stride, count: this.count, first: this.first ?? null, last: this.last ?? null };
   }
 
-  restore(s: { t: number[]; phase: number[] }): void {
-    this.t.splice(0, this.t.length, ...s.t);
-    this.phase.splice(0, this.phase.length, ...s.phase);
+  restore(s: TwinState): void {
+    this.t = [...s.t];
+    this.phase = [...s.phase];
+    this.stride = s.stride;
+    this.count = s.count;
+    this.first = s.first ?? undefined;
+    this.last = s.last ?? undefined;
   }
+}
+
+/** What a twin tracker keeps in a checkpoint. */
+export interface TwinState {
+  t: number[];
+  phase: number[];
+  stride: number;
+  count: number;
+  first: number | null;
+  last: number | null;
 }
 
 /** Least squares y ≈ Σ c_k f_k(t) by the normal equations (4 unknowns), with the residual sum of squares. */

@@ -107,16 +107,17 @@ export class ClockAccumulator {
   /**
    * Advance over one step to t1 with the step factors D = ∫dt/a², K = ∫dt/a and
    * the rates at t1; `midOmegaTilde`, when given, is ωa² at the step's middle
-   * (midpoint rule instead of the trapezoid).
+   * (midpoint rule instead of the trapezoid); `adiabaticIncrement`, when given, is the step's
+   * ∫χ_ad dt as measured (a twin field's overlap phase) instead of the trapezoid of the rates.
    */
-  advance(t1: number, drift: number, kick: number, rates: ClockRates, midOmegaTilde?: number): void {
+  advance(t1: number, drift: number, kick: number, rates: ClockRates, midOmegaTilde?: number, adiabaticIncrement?: number): void {
     const t0 = this.t;
     const x0 = Math.abs(this.chiIntegral);
     const xa0 = Math.abs(this.chiAdiabaticIntegral);
     const b0 = this.breakdown;
     const dTheta = (midOmegaTilde ?? 0.5 * (this.rates.omegaTilde + rates.omegaTilde)) * drift;
     const dX = 0.5 * (this.rates.chiTilde + rates.chiTilde) * kick;
-    const dXa = 0.5 * ((this.rates.chiAdiabatic ?? 0) + (rates.chiAdiabatic ?? 0)) * (t1 - t0);
+    const dXa = adiabaticIncrement ?? 0.5 * ((this.rates.chiAdiabatic ?? 0) + (rates.chiAdiabatic ?? 0)) * (t1 - t0);
     this.theta += dTheta;
     this.chiIntegral += dX;
     this.chiAdiabaticIntegral += dXa;
@@ -200,11 +201,14 @@ export class ClockAccumulator {
     return openKerrState(this.particles, this.model.start, this.integrals);
   }
 
-  /** Every clock's verdict, projecting those not yet rung with the current rates. */
-  results(): ClockResult[] {
+  /**
+   * Every clock's verdict, projecting those not yet rung with the current rates; `adiabatic` gives the
+   * rate to project the adiabatic clock with and says how it was measured (default: the last rate).
+   */
+  results(adiabatic?: { readonly rate: number; readonly how: string }): ClockResult[] {
     const now = this.t - this.tStart;
     const chiRate = Math.abs(this.rates.chiTilde); // projected with a frozen at its last value
-    const chiAd = this.rates.chiAdiabatic;
+    const chiAd = adiabatic ? adiabatic.rate : this.rates.chiAdiabatic;
     const never = (name: ClockResult["name"], why: string): ClockResult => ({ name, reached: false, time: undefined, method: why });
     const project = (name: ClockResult["name"], target: number | undefined, value: number, rate: number, what: string): ClockResult => {
       const t = this.rung.get(name);
@@ -216,7 +220,7 @@ export class ClockAccumulator {
     const x = Math.abs(this.chiIntegral);
     const onset = project("squeezing-onset", this.xOnset, x, chiRate, "N|∫χ dt| = 1, i.e. t ≈ 1/(N|χ|)");
     const breakdown = project("classical-breakdown", this.lnN, this.breakdown, this.rates.lambda, "estimate: ∫λ dt = ln N with λ = √(4πG ρ_eff)");
-    const adWhat = "|⟨b⟩|²/N = 1/e with the adiabatic coefficient χ_ad = (1/ħ) dμ/dN";
+    const adWhat = `|⟨b⟩|²/N = 1/e with the adiabatic coefficient χ_ad = (1/ħ) dμ/dN${adiabatic ? `, ${adiabatic.how}` : ""}`;
     if (this.simple) {
       return [
         onset,

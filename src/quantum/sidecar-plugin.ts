@@ -20,6 +20,8 @@ export interface SidecarSettings {
   readonly start?: GaussianStart;
   readonly lossRate?: number;
   readonly dephasingRate?: number;
+  /** The twin field's relative extra amplitude e (ψ₂(0) = (1 + e/2)ψ(0)); 0 or absent: no twin. */
+  readonly twinExcess?: number;
 }
 
 const START_KEYS: Record<string, string> = { squeeze: "sidecar.squeeze", "squeeze-angle": "sidecar.squeeze_angle", thermal: "sidecar.thermal_quanta" };
@@ -47,20 +49,25 @@ export function sidecarPlugin(settings: SidecarSettings): RunPlugin {
     if (!tracker) throw new Error("the sidecar plug-in was called before start()");
     return tracker;
   };
+  const twinExcess = settings.twinExcess ?? 0;
+  const twin = twinExcess > 0;
   return {
     name: "sidecar",
     stateVersion: 1,
-    measures: ["kinetic", "moments"],
+    measures: twin ? ["kinetic", "moments", "overlaps"] : ["kinetic", "moments"],
+    ...(twin ? { companions: [{ kind: "own-gravity", startScale: 1 + twinExcess / 2 }] } : {}),
     columns: SIDECAR_COLUMNS,
     start(ctx: RunContext, facts: StartFacts) {
       context = ctx;
       const start = { sums: facts.sums.moments!, kineticTilde: facts.sums.kinetic!, a: facts.a };
       const N = facts.mass0 / ctx.particleMass;
-      tracker = new SidecarTracker(ctx.particleMass, N, squeezingDb, ctx.startTime, ctx.grid.cellVolume, start, modelOf(settings, N));
+      const twinStart = twin ? { excess: twinExcess, overlap: facts.sums.overlaps![0]! } : undefined;
+      tracker = new SidecarTracker(ctx.particleMass, N, squeezingDb, ctx.startTime, ctx.grid.cellVolume, start, modelOf(settings, N), twinStart);
       if (saved) tracker.restore(saved);
     },
     afterStep(facts: StepFacts) {
-      running().afterStep({ ...facts, sums: facts.sums.moments!, midKineticTilde: facts.sums.kinetic! });
+      const overlap = facts.sums.overlaps?.[0];
+      running().afterStep({ ...facts, sums: facts.sums.moments!, midKineticTilde: facts.sums.kinetic!, ...(overlap ? { overlap } : {}) });
     },
     output(facts) {
       if (facts.kind === "row") return sidecarRow(running(), facts.a, context!.scales.units.timeS);
@@ -70,7 +77,7 @@ export function sidecarPlugin(settings: SidecarSettings): RunPlugin {
       const timeS = ctx.scales.units.timeS;
       const record = clocksRecord(running(), ctx.background, timeS, (ctx.endTime - ctx.startTime) * timeS);
       writeFileAtomic(runPaths(ctx.outputDir).clocks, JSON.stringify(record, null, 2) + "\n");
-      return { clocks: record.clocks };
+      return { clocks: record.clocks, ...(record.adiabatic_twin ? { adiabatic_twin: record.adiabatic_twin } : {}) };
     },
     save: () => running().save(),
     checkState: (state) => (isSidecarState(state) ? undefined : "is not a sidecar state psibox wrote (rates and clocks with finite values)"),

@@ -62,7 +62,7 @@ export interface ClockReport {
 
 /** The clocks' verdicts with physical times. */
 export function clockReports(tracker: SidecarTracker, timeS: number, spanS: number, ageS: number): ClockReport[] {
-  return tracker.clocks.results().map((r) => {
+  return tracker.results().map((r) => {
     const t = r.time === undefined ? null : r.time * timeS;
     return {
       name: r.name,
@@ -89,6 +89,7 @@ export function clocksRecord(tracker: SidecarTracker, background: Background, ti
     age_of_universe_s: age,
     age_of_universe_source: background.kind === "lcdm" ? "the run's own cosmology, t(a = 1)" : "Planck 2018 (13.797 Gyr)",
     clocks: clockReports(tracker, timeS, spanS, age),
+    ...(tracker.twin ? { adiabatic_twin: twinRecord(tracker, timeS) } : {}),
     final: {
       theta_rad: tracker.clocks.theta,
       chi_integral_rad: tracker.clocks.chiIntegral,
@@ -101,5 +102,27 @@ export function clocksRecord(tracker: SidecarTracker, background: Background, ti
       breakdown_integral: tracker.clocks.breakdown,
       ln_N: Math.log(tracker.clocks.particles),
     },
+  };
+}
+
+/**
+ * The twin field's measurement in physical units: the fitted χ_ad, the stationary-state value
+ * 2ω/N + 2χ and the frozen-mode χ at the end for comparison, and the phase integral it gives.
+ */
+export function twinRecord(tracker: SidecarTracker, timeS: number) {
+  const twin = tracker.twin!;
+  const fitted = tracker.twinChi();
+  const chi = tracker.rates.chiTilde / tracker.a; // the frozen-mode χ now
+  return {
+    excess: twin.e,
+    extra_quanta: twin.deltaN,
+    chi_adiabatic_per_s: fitted === undefined ? null : fitted / timeS,
+    chi_adiabatic_stationary_per_s: tracker.stationaryChiAdiabatic / timeS,
+    chi_frozen_per_s: chi / timeS,
+    ratio_to_stationary: fitted === undefined ? null : fitted / tracker.stationaryChiAdiabatic,
+    ratio_to_frozen: fitted === undefined ? null : fitted / chi,
+    chi_adiabatic_integral_rad: twin.integral,
+    samples: twin.samples.t.length,
+    method: "−(d/dt) arg∫conj(ψ)ψ₂ dV / ΔN, ΔN = ((1 + e/2)² − 1)N, fitted by a line plus one oscillation over the run",
   };
 }

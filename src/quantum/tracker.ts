@@ -6,8 +6,8 @@
  * factors D = ∫dt/a² and K = ∫dt/a. It works from sums over the grid alone,
  * so it knows nothing of the integrator.
  */
-import { ClockAccumulator, CLOSED_COHERENT, type ClockRates, type ModeModel } from "./clocks.js";
-import { stationaryAdiabaticChi } from "./adiabatic.js";
+import { ClockAccumulator, CLOSED_COHERENT, type ClockRates, type ClockResult, type ModeModel } from "./clocks.js";
+import { stationaryAdiabaticChi, TwinPhaseTracker, type TwinState } from "./adiabatic.js";
 
 /** Grid sums of a field (code units, without the cell volume): Σ|ψ|², Σ|ψ|⁴, Σ|ψ|²φ. */
 export interface ModeSums {
@@ -33,12 +33,27 @@ function ratesOf(sums: ModeSums, cellVolume: number, a: number, particleMass: nu
   };
 }
 
+/** A twin field's start: its relative extra amplitude e and its overlap ∫conj(ψ)ψ₂ dV with the run's field. */
+export interface TwinStart {
+  readonly excess: number;
+  readonly overlap: readonly [number, number];
+}
+
+const TWIN_HOW = "measured by the twin field (its overlap phase; projected with the rate of a line-plus-oscillation fit)";
+
 /** Runs the clocks alongside a run. */
 export class SidecarTracker {
   readonly clocks: ClockAccumulator;
   private readonly particleMass: number;
   private readonly cellVolume: number;
   rates: ClockRates;
+  /** The twin field's phase tracker, when the run has one: χ_ad is then measured, not the stationary formula. */
+  readonly twin: TwinPhaseTracker | undefined;
+  /** The stationary-state χ_ad = 2ω/N + 2χ of the last step (the twin's comparison). */
+  stationaryChiAdiabatic: number;
+  /** The scale factor of the last step. */
+  a: number;
+  private t: number;
 
   /**
    * Start at the current field: its sums, its ½∫|∇ψ|² dV and the scale factor a.
@@ -53,28 +68,63 @@ export class SidecarTracker {
     cellVolume: number,
     start: { sums: ModeSums; kineticTilde: number; a: number },
     model: ModeModel = CLOSED_COHERENT,
+    twin?: TwinStart,
   ) {
     this.particleMass = particleMass;
     this.cellVolume = cellVolume;
+    this.t = startTime;
+    this.a = start.a;
     this.rates = ratesOf(start.sums, cellVolume, start.a, particleMass, start.kineticTilde).rates;
+    this.stationaryChiAdiabatic = this.rates.chiAdiabatic as number;
+    if (twin) {
+      this.twin = new TwinPhaseTracker(twin.excess, particles);
+      this.twin.add(startTime, Math.atan2(twin.overlap[1], twin.overlap[0]));
+      // until the first step the twin's rate is unknown: it starts at the frozen-mode rate
+      this.rates = { ...this.rates, chiAdiabatic: this.rates.chiTilde / start.a };
+    }
     this.clocks = new ClockAccumulator(particles, squeezingDb, startTime, this.rates, model);
   }
 
-  /** After a step to time t (scale factor a) with factors D and K: measure and advance. */
-  afterStep(step: { t: number; a: number; drift: number; kick: number; sums: ModeSums; midKineticTilde: number }): void {
-    const { rates, mass } = ratesOf(step.sums, this.cellVolume, step.a, this.particleMass, step.midKineticTilde);
+  /** After a step to time t (scale factor a) with factors D and K (and the twin's overlap): measure and advance. */
+  afterStep(step: { t: number; a: number; drift: number; kick: number; sums: ModeSums; midKineticTilde: number; overlap?: readonly [number, number] }): void {
+    const measured = ratesOf(step.sums, this.cellVolume, step.a, this.particleMass, step.midKineticTilde);
+    let rates = measured.rates;
+    this.stationaryChiAdiabatic = rates.chiAdiabatic as number;
+    let increment: number | undefined;
+    if (this.twin && step.overlap) {
+      increment = this.twin.add(step.t, Math.atan2(step.overlap[1], step.overlap[0]));
+      rates = { ...rates, chiAdiabatic: increment / (step.t - this.t) }; // the step's mean measured rate
+    }
     this.rates = rates;
-    this.clocks.advance(step.t, step.drift, step.kick, rates, step.midKineticTilde / mass);
+    this.t = step.t;
+    this.a = step.a;
+    this.clocks.advance(step.t, step.drift, step.kick, rates, step.midKineticTilde / measured.mass, increment);
+  }
+
+  /** χ_ad of the twin field fitted over the run so far (undefined without a twin or with too few steps). */
+  twinChi(): number | undefined {
+    return this.twin?.chi();
+  }
+
+  /** Every clock's verdict; with a twin, the adiabatic clock is projected with its fitted rate. */
+  results(): ClockResult[] {
+    if (!this.twin) return this.clocks.results();
+    const rate = this.twinChi() ?? (this.rates.chiAdiabatic as number);
+    return this.clocks.results({ rate, how: TWIN_HOW });
   }
 
   /** JSON-safe state for a checkpoint. */
-  save(): { rates: ClockRates; clocks: string } {
-    return { rates: this.rates, clocks: this.clocks.save() };
+  save(): { rates: ClockRates; clocks: string; t: number; a: number; stationary: number; twin?: TwinState } {
+    return { rates: this.rates, clocks: this.clocks.save(), t: this.t, a: this.a, stationary: this.stationaryChiAdiabatic, ...(this.twin ? { twin: this.twin.save() } : {}) };
   }
 
   /** Restore a saved state. */
-  restore(saved: { rates: ClockRates; clocks: string }): void {
+  restore(saved: { rates: ClockRates; clocks: string; t?: number; a?: number; stationary?: number; twin?: TwinState }): void {
     this.rates = saved.rates;
     this.clocks.restore(saved.clocks);
+    this.t = saved.t ?? this.t;
+    this.a = saved.a ?? this.a;
+    this.stationaryChiAdiabatic = saved.stationary ?? (saved.rates.chiAdiabatic as number);
+    if (this.twin && saved.twin) this.twin.restore(saved.twin);
   }
 }

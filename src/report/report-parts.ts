@@ -58,6 +58,16 @@ export function clockSentence(c: ClockEntry, targetDb: number): string {
   return `${what[c.name] ?? c.name} ${when}${ratios}.`;
 }
 
+/** The twin field's measurement of the adiabatic coefficient in a sentence (clocks.json's adiabatic_twin). */
+export function twinSentence(twin: { excess: number; chi_adiabatic_per_s: number | null; ratio_to_stationary: number | null; ratio_to_frozen: number | null }): string {
+  if (twin.chi_adiabatic_per_s === null) return "A twin field ran beside the field, but the run had too few steps to fit its overlap phase.";
+  return (
+    `A twin field (ψ₂ = (1 + e/2)ψ at the start with e = ${formatNumber(twin.excess)}, advanced with its own gravity) measured the adiabatic coefficient ` +
+    `χ_ad = ${formatNumber(twin.chi_adiabatic_per_s)} /s from the phase of its overlap with the field: ${formatNumber(twin.ratio_to_stationary ?? Number.NaN, 4)} × the ` +
+    `stationary-state value 2ω/N + 2χ and ${formatNumber(twin.ratio_to_frozen ?? Number.NaN, 4)} × the frozen-mode χ (3/2 for a stationary soliton). The adiabatic clock above uses it.`
+  );
+}
+
 export const STYLESHEET = `
 body{font-family:"DejaVu Sans",system-ui,sans-serif;max-width:1060px;margin:2em auto;padding:0 1em;color:#222;line-height:1.45}
 h1{font-size:1.5em;margin-bottom:.2em}h2{font-size:1.2em;border-bottom:1px solid #ccc;padding-bottom:.2em;margin-top:1.8em}h3{font-size:1em}

@@ -105,8 +105,9 @@ export class RunWriter {
    * changes a run, and a run resumed or extended from any checkpoint repeats
    * the uninterrupted one bit for bit.
    */
-  writeCheckpoint(stepper: SplitStepper, state: Omit<CheckpointState, "psiCode" | "phiCode" | "timeCode" | "massCode" | "owedKickCode" | "fieldsCode">): void {
+  writeCheckpoint(stepper: SplitStepper, state: Omit<CheckpointState, "psiCode" | "phiCode" | "timeCode" | "massCode" | "owedKickCode" | "fieldsCode" | "fieldsOwedKickCode">): void {
     const fields = Array.from({ length: stepper.extraFields }, (_, i) => Float64Array.from(stepper.rawField(i + 1)));
+    const owed = fields.map((_, i) => stepper.fieldOwedKick(i + 1)); // each field's own (a tangent's is ψ's)
     const { time, mass, owedKickFactor } = stepper;
     // ψ as stored is copied only when it owes a kick (the kick changes it in place); the kick leaves φ as it is
     const raw = owedKickFactor !== 0 ? Float64Array.from(stepper.rawPsi) : stepper.rawPsi;
@@ -123,12 +124,12 @@ export class RunWriter {
           timeCode: time,
           massCode: mass,
           ...(owedKickFactor !== 0 ? { owedKickCode: owedKickFactor } : {}),
-          ...(fields.length ? { fieldsCode: fields } : {}),
+          ...(fields.length ? { fieldsCode: fields, fieldsOwedKickCode: owed } : {}),
         },
       });
     } finally {
       stepper.restoreState(raw, phi, time, mass, owedKickFactor);
-      fields.forEach((f, i) => stepper.setField(i + 1, f, owedKickFactor));
+      fields.forEach((f, i) => stepper.setField(i + 1, f, owed[i]));
     }
     this.log(`checkpoint at step ${state.steps}, t = ${this.scales.formatTime(time)}`);
   }

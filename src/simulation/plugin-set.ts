@@ -6,7 +6,7 @@
  */
 import { fileName } from "../core/sanitize.js";
 import { InputError } from "../core/errors.js";
-import type { MeasuredSum, OutputFacts, RunContext, RunPlugin, StartFacts, StepFacts, StopFacts, TangentFields } from "./plugin.js";
+import type { CompanionField, MeasuredSum, MeasuredSums, OutputFacts, RunContext, RunPlugin, StartFacts, StepFacts, StopFacts, TangentFields } from "./plugin.js";
 
 const NAME = /^[A-Za-z][A-Za-z0-9_-]*$/;
 
@@ -32,6 +32,17 @@ export class PluginSet {
     }
     this.plugins = plugins;
     this.columns = plugins.flatMap((p) => p.columns ?? []);
+    this.companions = plugins.flatMap((p) => p.companions ?? []);
+  }
+
+  /** Every plug-in's companion fields, in order (the stepper's extra fields 1 … n). */
+  readonly companions: readonly CompanionField[];
+
+  /** The sums as plug-in p sees them: its own companions' overlaps only. */
+  private sumsFor(p: RunPlugin, sums: MeasuredSums): MeasuredSums {
+    if (!sums.overlaps) return sums;
+    const before = this.plugins.slice(0, this.plugins.indexOf(p)).reduce((n, q) => n + (q.companions?.length ?? 0), 0);
+    return { ...sums, overlaps: sums.overlaps.slice(before, before + (p.companions?.length ?? 0)) };
   }
 
   /** Tangent fields of all plug-ins together. */
@@ -56,11 +67,11 @@ export class PluginSet {
   }
 
   start(context: RunContext, facts: StartFacts): void {
-    for (const p of this.plugins) p.start?.(context, facts);
+    for (const p of this.plugins) p.start?.(context, { ...facts, sums: this.sumsFor(p, facts.sums) });
   }
 
   afterStep(facts: StepFacts): void {
-    for (const p of this.plugins) p.afterStep?.(facts);
+    for (const p of this.plugins) p.afterStep?.({ ...facts, sums: this.sumsFor(p, facts.sums) });
   }
 
   /** The plug-ins' values for a time-series row; `field` gives ψ to those that measure "field". */

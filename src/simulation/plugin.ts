@@ -24,12 +24,27 @@ import type { OutputScales } from "./scales.js";
  * the cell volume) and max |ψ|² of the field after the step; "field" hands
  * the field itself to output() at every time-series row (OutputFacts.psi).
  */
-export type MeasuredSum = "kinetic" | "moments" | "field";
+export type MeasuredSum = "kinetic" | "moments" | "field" | "overlaps";
 
 /** The sums a plug-in asked for (the others are absent). */
 export interface MeasuredSums {
   readonly kinetic?: number;
   readonly moments?: FieldMoments;
+  /**
+   * "overlaps": ∫conj(ψ) ψ_i dV (re, im) of each of the plug-in's companion fields with the run's field,
+   * both current (their owed kicks applied), in the order of its `companions`.
+   */
+  readonly overlaps?: readonly (readonly [number, number])[];
+}
+
+/**
+ * A field a plug-in asks the run to advance in lockstep with ψ: kicked by the
+ * potential of its own density ("own-gravity"), started as `startScale` × ψ at
+ * the run's start, and kept in checkpoints (a resumed run continues it exactly).
+ */
+export interface CompanionField {
+  readonly kind: "own-gravity";
+  readonly startScale: number;
 }
 
 /** What a plug-in knows about the run it joins. All values in code units unless `scales` converts them. */
@@ -137,6 +152,8 @@ export interface RunPlugin {
   readonly tangents?: number;
   /** Called once, before start() (and before restore() on resume), with its tangent fields. */
   attach?(fields: TangentFields): void;
+  /** Fields it needs advanced with ψ (see CompanionField); it measures them through "overlaps". */
+  readonly companions?: readonly CompanionField[];
   /** Its time-series columns (names with units), after the run's own. */
   readonly columns?: readonly string[];
   /** Called once, before the first step (after restore() on resume). */

@@ -101,9 +101,13 @@ function checkStep(session: RunSession, start: RunStart): RunStart {
 /** The sums the plug-ins asked for, of the stepper's current state (`kinetic`: measured in the last drift, or now). */
 function measuredSums(session: RunSession, kineticNow: boolean): MeasuredSums {
   const { plugins, stepper } = session;
-  const sums: { kinetic?: number; moments?: MeasuredSums["moments"] } = {};
+  const sums: { -readonly [K in keyof MeasuredSums]: MeasuredSums[K] } = {};
   if (plugins.measures("kinetic")) sums.kinetic = kineticNow ? stepper.kineticTilde() : stepper.midKineticTilde;
   if (plugins.measures("moments")) sums.moments = stepper.moments();
+  if (plugins.measures("overlaps")) sums.overlaps = plugins.companions.map((_, i) => {
+      const o = stepper.fieldOverlap(plugins.tangents + i + 1); // both fields current first (changes later steps at round-off only)
+      return [o.re, o.im] as const;
+    });
   return sums;
 }
 

@@ -9,6 +9,7 @@ import { makePoissonSolver, type PoissonSolver } from "../fields/poisson.js";
 import { makeBackground, type Background } from "../physics/cosmology/background.js";
 import { SplitStepper } from "../integrators/split-step.js";
 import { ThreadedStepper } from "../integrators/threaded-step.js";
+import type { FieldKind } from "../integrators/extra-fields.js";
 import { buildInitialField } from "../initial-conditions/build.js";
 import { snapshotInitialField } from "./snapshot-start.js";
 import { cleanStaleTemporaries, writeFileAtomic } from "../io/atomic.js";
@@ -93,7 +94,8 @@ export function openSession(run: ResolvedRun, options: RunOptions): RunSession {
   if (!options.resume) writeFileAtomic(paths.config, configText);
   const writer = new RunWriter(run, scales, configText, sha256(configText));
   const { threads, fft } = run.integrator;
-  const fields = Array.from({ length: plugins.tangents }, () => ({ kind: "tangent" }) as const);
+  // the stepper's extra fields: the plug-ins' tangents (1 … T), then their companions (T + 1 …)
+  const fields: FieldKind[] = [...Array.from({ length: plugins.tangents }, () => ({ kind: "tangent" }) as const), ...plugins.companions.map((c) => ({ kind: c.kind }))];
   // refuse a grid that cannot fit before anything is allocated
   const memory = checkMemory({ cells: run.grid.cells, gravity: run.grid.gravity, threads, fft, fields });
   const stepper = threads > 1 ? new ThreadedStepper(grid, background, gravity, threads, fft, {}, fields) : new SplitStepper(grid, background, gravity, fft, 1, fields);
@@ -130,9 +132,11 @@ function tangentHandle(stepper: SplitStepper, first: number, count: number): Tan
 function restoreFields(stepper: SplitStepper, state: CheckpointState, file: string): void {
   const fields = state.fieldsCode ?? [];
   if (fields.length !== stepper.extraFields) {
-    throw new InputError(`${file}: holds ${fields.length} companion field(s), this run advances ${stepper.extraFields}; resume with the [breakdown] settings the run started with, or start it afresh`);
+    throw new InputError(`${file}: holds ${fields.length} companion field(s), this run advances ${stepper.extraFields}; resume with the [breakdown] and [sidecar] settings the run started with, or start it afresh`);
   }
-  fields.forEach((f, i) => stepper.setField(i + 1, f, state.owedKickCode ?? 0));
+  // each field owes ψ's kick (tangents) or its own (fields with their own gravity, saved beside it)
+  const owed = (i: number): number => state.fieldsOwedKickCode?.[i] ?? Number.NaN;
+  fields.forEach((f, i) => stepper.setField(i + 1, f, Number.isFinite(owed(i)) ? owed(i) : (state.owedKickCode ?? 0)));
 }
 
 /** Where the run starts: a checkpoint's counters, or a fresh start's relaxation and warnings. */
@@ -182,6 +186,8 @@ export function startRun(session: RunSession): RunStart {
     writer.log(`warning: ${w}`);
   }
   if (initial.powerTable) writeFileAtomic(paths.power, initial.powerTable);
+  const first = session.plugins.tangents + 1; // companions follow the tangents
+  session.plugins.companions.forEach((c, i) => stepper.setField(first + i, initial.psi.map((v) => v * c.startScale)));
   stepper.setState(initial.psi, run.span.startTime);
   return { ...(relaxation ? { relaxation } : {}), warnings, mass0: stepper.mass, steps: 0, snapshotsWritten: 0, wallBefore: 0 };
 }
