@@ -45,6 +45,19 @@ function flowColumns(summary: Record<string, unknown> | undefined): SummaryRow {
   return { flow_resolved: flow?.resolved ?? null, unresolved_mass_fraction: flow?.worst_unresolved_mass_fraction ?? null };
 }
 
+/** The mode's start, its loss and dephasing rates and its region's measured outflow (clocks.json), as columns. */
+function modeColumns(clocks: Record<string, unknown> | undefined): SummaryRow {
+  const start = clocks?.["start"] as { description?: string } | undefined;
+  const outflow = clocks?.["outflow"] as { loss_rate_per_s?: number | null } | undefined;
+  const num = (v: unknown): number | null => (typeof v === "number" ? v : null);
+  return {
+    mode_start: start?.description ?? null,
+    loss_rate_per_s: num(clocks?.["loss_rate_per_s"]),
+    dephasing_rate_per_s: num(clocks?.["dephasing_rate_per_s"]),
+    outflow_loss_rate_per_s: num(outflow?.loss_rate_per_s),
+  };
+}
+
 /** The status of one entry folder: "completed", "stopped", "failed", "interrupted" or "pending". */
 export function entryStatus(dir: string): { status: string; reason: string | null } {
   const summary = readJson(path.join(dir, "summary.json"));
@@ -80,9 +93,10 @@ export function buildSummary(sweepDir: string): { manifest: SweepManifest; rows:
       mass_drift: (summary?.["mass_drift"] as number | undefined) ?? null,
       ...flowColumns(summary),
     });
-    for (const col of ["kinetic_Msun_km2_s2", "potential_Msun_km2_s2", "total_Msun_km2_s2", "max_density_Msun_kpc3", "squeezing_dB"]) {
+    for (const col of ["kinetic_Msun_km2_s2", "potential_Msun_km2_s2", "total_Msun_km2_s2", "max_density_Msun_kpc3", "squeezing_dB", "log10_meanfield_fraction"]) {
       row[`final_${col}`] = last?.[col] !== undefined ? Number(last[col]) : null;
     }
+    Object.assign(row, modeColumns(clocks));
     const list = (clocks?.["clocks"] as { name: string; time_s: number | null; reached: boolean; method: string }[] | undefined) ?? [];
     for (const name of CLOCKS) {
       const c = list.find((x) => x.name === name);

@@ -15,7 +15,7 @@ import { fileName } from "../core/sanitize.js";
 import { runPaths } from "../simulation/outputs.js";
 import { TextReporter } from "./progress.js";
 import { describeRun } from "./describe.js";
-import type { ClockReport, twinRecord } from "../quantum/sidecar-report.js";
+import type { ClockReport, outflowRecord, twinRecord } from "../quantum/sidecar-report.js";
 
 export interface RunFlags {
   set: string[];
@@ -128,6 +128,8 @@ async function runOwned(run: ResolvedRun, flags: RunFlags & { readonly initialOn
       if (measured) process.stdout.write(formatMeasuredClock(measured));
       const twin = summary["adiabatic_twin"] as TwinSummary | undefined;
       if (twin) process.stdout.write(formatTwin(twin));
+      const outflow = summary["outflow"] as OutflowSummary | undefined;
+      if (outflow) process.stdout.write(formatOutflow(outflow));
       return 0;
     }
     const hint = interrupted ? `; continue with: psibox run --resume ${where}` : "";
@@ -174,6 +176,16 @@ export function formatClocks(clocks: readonly ClockReport[], squeezingDb = -10):
 }
 
 type TwinSummary = ReturnType<typeof twinRecord>;
+type OutflowSummary = ReturnType<typeof outflowRecord>;
+
+/** The region's measured outflow in a line, with the loss rate to feed back. */
+export function formatOutflow(o: OutflowSummary): string {
+  if (o.loss_rate_per_s === null) return `  mass outflow of the ${o.region} region: too few time-series rows to measure\n`;
+  const g = o.loss_rate_per_s;
+  const what = g >= 0 ? "mass outflow" : "mass inflow (a negative loss rate)";
+  const hint = g > 0 ? `; as a loss rate: sidecar.loss_rate = "${g.toPrecision(4)}/s"` : "";
+  return `  ${what} of the ${o.region} region over the run: ${formatQuantity(g, "/s")} = ${formatQuantity(o.loss_rate_per_yr as number, "/yr")}${hint}\n`;
+}
 
 /** The twin field's measurement in a line: χ_ad against the stationary-state formula and the frozen χ. */
 export function formatTwin(twin: TwinSummary): string {

@@ -1,13 +1,27 @@
 /**
  * The [sidecar] section in code units: whether it runs, the squeezing level,
- * the mode's start (squeeze, squeeze_angle, thermal_quanta) and its loss and
- * dephasing rates (per code time). That the start fits the mode's N is
- * checked when the run starts and N is known.
+ * the mode's start (squeeze, squeeze_angle, thermal_quanta), its loss and
+ * dephasing rates (per code time) and the region whose mass outflow it
+ * measures. That the start fits the mode's N is checked when the run starts
+ * and N is known.
  */
 import { ConfigError } from "../core/errors.js";
 import type { UnitContext } from "../physics/units.js";
+import { PC_M } from "../physics/constants.js";
 import type { CheckedConfig } from "./schema.js";
-import { read } from "./values.js";
+import { perAxis, positive, read } from "./values.js";
+
+/** A region of the box in code lengths (the shape the quantum sidecar's modes take). */
+export type OutflowRegion =
+  | { readonly kind: "sphere"; readonly center: readonly number[]; readonly radius: number }
+  | { readonly kind: "cube"; readonly center: readonly number[]; readonly halfWidth: number }
+  | { readonly kind: "densest"; readonly radius: number };
+
+/** The box the regions lie in: code lengths per axis, and the code length unit in metres. */
+export interface SidecarSpace {
+  readonly lengths: readonly number[];
+  readonly lengthM: number;
+}
 
 export interface ResolvedSidecar {
   readonly enabled: boolean;
@@ -19,6 +33,8 @@ export interface ResolvedSidecar {
   readonly dephasingRate: number;
   /** The twin field's e (ψ₂(0) = (1 + e/2)ψ(0)); 0: no twin. */
   readonly twinExcess: number;
+  /** The region whose mass outflow is measured at every time-series row (sidecar.outflow_region), if any. */
+  readonly outflow?: OutflowRegion;
 }
 
 function nonNegative(key: string, v: number, what: string): number {
@@ -32,7 +48,7 @@ function rate(key: string, text: string, timeS: number, ctx: UnitContext): numbe
 }
 
 /** Resolve the [sidecar] section; `timeS` is the code time unit in seconds. */
-export function resolveSidecar(config: CheckedConfig, timeS: number, ctx: UnitContext): ResolvedSidecar {
+export function resolveSidecar(config: CheckedConfig, timeS: number, ctx: UnitContext, space?: SidecarSpace): ResolvedSidecar {
   const s = config.sidecar;
   if (!Number.isFinite(s.squeeze_angle)) throw new ConfigError("sidecar.squeeze_angle", `must be a finite angle in radians, got ${s.squeeze_angle}`);
   return {
@@ -46,7 +62,32 @@ export function resolveSidecar(config: CheckedConfig, timeS: number, ctx: UnitCo
     lossRate: rate("sidecar.loss_rate", s.loss_rate, timeS, ctx),
     dephasingRate: rate("sidecar.dephasing_rate", s.dephasing_rate, timeS, ctx),
     twinExcess: twinExcess(s.twin_excess, s.enabled),
+    ...outflowOf(config, ctx, space),
   };
+}
+
+/** sidecar.outflow_region with its centre and radius in code lengths (nothing for "none"). */
+function outflowOf(config: CheckedConfig, ctx: UnitContext, space: SidecarSpace | undefined): { outflow?: OutflowRegion } {
+  const s = config.sidecar;
+  if (s.outflow_region === "none" || !space) {
+    for (const key of ["outflow_center", "outflow_radius"] as const) {
+      if (s[key] !== undefined && s.outflow_region === "none") throw new ConfigError(`sidecar.${key}`, 'needs sidecar.outflow_region = "sphere", "cube" or "densest"');
+    }
+    return {};
+  }
+  if (!s.enabled) throw new ConfigError("sidecar.outflow_region", "needs sidecar.enabled = true (the sidecar measures the outflow)");
+  const { lengths, lengthM } = space;
+  if (s.outflow_radius === undefined) throw new ConfigError("sidecar.outflow_radius", `missing: the ${s.outflow_region === "cube" ? "cube's half-width" : "sphere's radius"}, e.g. "3 kpc"`);
+  const radius = positive("sidecar.outflow_radius", read("sidecar.outflow_radius", s.outflow_radius, "length", ctx)) / lengthM;
+  if (s.outflow_region === "densest") {
+    if (s.outflow_center !== undefined) throw new ConfigError("sidecar.outflow_center", 'not used with outflow_region = "densest" (the sphere follows the densest cell)');
+    return { outflow: { kind: "densest", radius } };
+  }
+  const center = s.outflow_center === undefined ? lengths.map((l) => l / 2) : perAxis("sidecar.outflow_center", s.outflow_center, lengths.length).map((t) => read("sidecar.outflow_center", t, "length", ctx) / lengthM);
+  center.forEach((v, i) => {
+    if (!(v >= 0 && v <= (lengths[i] as number))) throw new ConfigError("sidecar.outflow_center", `lies outside the box on axis ${i + 1} (0 … ${(((lengths[i] as number) * lengthM) / (1e3 * PC_M)).toPrecision(4)} kpc)`);
+  });
+  return { outflow: s.outflow_region === "sphere" ? { kind: "sphere", center, radius } : { kind: "cube", center, halfWidth: radius } };
 }
 
 /** sidecar.twin_excess: 0 (no twin), or e from 1e-6 to 0.1 with the sidecar on. */

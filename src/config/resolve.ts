@@ -94,7 +94,7 @@ export function resolveRun(config: CheckedConfig, name: string, cwd: string): Re
   if (!(config.sidecar.squeezing_db < 0)) {
     throw new ConfigError("sidecar.squeezing_db", `must be negative (a variance below the coherent state's), got ${config.sidecar.squeezing_db}`);
   }
-  const sidecar = resolveSidecar(config, units.timeS, ctx);
+  const sidecar = resolveSidecar(config, units.timeS, ctx, { lengths, lengthM: units.lengthM });
   const breakdown = resolveBreakdown(config, units, ctx, endTime - startTime, cells.reduce((p, n) => p * n, 1));
   return {
     name,

@@ -237,6 +237,12 @@ export const sidecarSchema = z.strictObject({
    * e, from 1e-6 to 0.1 (0: no twin). @default 0
    */
   twin_excess: z.number().default(0),
+  /** Measure a region's mass outflow at every time-series row as a loss rate: "none", "sphere", "cube" or "densest". @default "none" */
+  outflow_region: z.enum(["none", "sphere", "cube", "densest"]).default("none"),
+  /** Centre of the outflow region (sphere, cube), one length per axis. @default the box centre */
+  outflow_center: z.array(quantity).min(1).max(3).optional(),
+  /** Radius of the outflow sphere (or the densest cell's sphere), or the cube's half-width, e.g. "3 kpc". */
+  outflow_radius: quantity.optional(),
 });
 
 export const breakdownSchema = z.strictObject({

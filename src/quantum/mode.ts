@@ -68,7 +68,8 @@ function edge(d: number, h: number): number {
   return 0.5 * (1 + Math.cos((Math.PI * (d + h)) / (2 * h)));
 }
 
-function window(grid: Grid, region: Exclude<ModeRegion, { kind: "box" } | { kind: "densest" }>): Float64Array {
+/** The region's window w (1 inside, a raised-cosine edge two cells wide, 0 beyond) on every cell. */
+export function regionWindow(grid: Grid, region: Exclude<ModeRegion, { kind: "box" } | { kind: "densest" }>): Float64Array {
   const w = new Float64Array(grid.size);
   const h = Math.max(...grid.spacing.slice(3 - grid.dims));
   for (let p = 0; p < grid.size; p++) {
@@ -134,7 +135,7 @@ export function modeCoefficients(input: ModeInputs): ModeCoefficients {
   if (region.kind !== "box") {
     const r: Exclude<ModeRegion, { kind: "box" } | { kind: "densest" }> =
       region.kind === "densest" ? { kind: "sphere", center: (center = densestPoint(grid, input.psi)), radius: region.radius } : region;
-    const w = window(grid, r);
+    const w = regionWindow(grid, r);
     psi = new Float64Array(input.psi.length);
     for (let p = 0; p < grid.size; p++) {
       psi[2 * p] = input.psi[2 * p]! * w[p]!;

@@ -8,6 +8,8 @@
  * A negative value is inflow. The whole span's mean is the constant rate with
  * the same Γ, the number to give back as a loss rate.
  */
+import type { Grid } from "../grid/grid.js";
+import { densestPoint, regionWindow, type ModeRegion } from "./mode.js";
 
 /** The outflow rates of a region measured at times t (any unit) with particles N. */
 export interface OutflowRates {
@@ -30,4 +32,67 @@ export function outflowRates(times: readonly number[], particles: readonly numbe
     mean: last > 0 ? rate(0, last) : Number.NaN,
     lossIntegral: last > 0 ? -Math.log((particles[last] as number) / (particles[0] as number)) : 0,
   };
+}
+
+/** What the meter keeps between rows (and in checkpoints): the first and the last sample. */
+export interface OutflowMeterState {
+  readonly t0: number;
+  readonly n0: number;
+  readonly t: number;
+  readonly n: number;
+}
+
+/**
+ * A region's particles measured on the run's field at every time-series row
+ * (in code time), with the loss rate over each interval between rows and
+ * over the whole span. The window of a fixed region is computed once; a
+ * "densest" sphere follows the densest cell.
+ */
+export class OutflowMeter {
+  private fixed: Float64Array | undefined;
+  private first: { t: number; n: number } | undefined;
+  private last: { t: number; n: number; rate: number } | undefined;
+
+  constructor(
+    private readonly grid: Grid,
+    readonly region: Exclude<ModeRegion, { kind: "box" }>,
+    private readonly particleMass: number,
+  ) {
+    if (region.kind !== "densest") this.fixed = regionWindow(grid, region);
+  }
+
+  /** Particles in the region now (ψ interleaved, code units). */
+  particles(psi: Float64Array): number {
+    const r = this.region;
+    const w = this.fixed ?? regionWindow(this.grid, { kind: "sphere", center: densestPoint(this.grid, psi), radius: (r as { radius: number }).radius });
+    let sum = 0;
+    for (let p = 0; p < this.grid.size; p++) sum += (w[p] as number) ** 2 * ((psi[2 * p] as number) ** 2 + (psi[2 * p + 1] as number) ** 2);
+    return (sum * this.grid.cellVolume) / this.particleMass;
+  }
+
+  /** Measure at time t: [particles, loss rate over the interval since the last row (NaN at the first)]. A repeated t repeats the last row. */
+  sample(t: number, psi: Float64Array): [number, number] {
+    if (this.last && !(t > this.last.t)) return [this.last.n, this.last.rate];
+    const n = this.particles(psi);
+    const rate = this.last ? -Math.log(n / this.last.n) / (t - this.last.t) : Number.NaN;
+    this.first ??= { t, n };
+    this.last = { t, n, rate };
+    return [n, rate];
+  }
+
+  /** The rates over the span measured so far (per code time). */
+  rates(): { mean: number; lossIntegral: number; first?: { t: number; n: number }; last?: { t: number; n: number } } {
+    if (!this.first || !this.last) return { mean: Number.NaN, lossIntegral: 0 };
+    const span = outflowRates([this.first.t, this.last.t], [this.first.n, this.last.n]);
+    return { mean: this.last.t > this.first.t ? span.mean : Number.NaN, lossIntegral: span.lossIntegral, first: this.first, last: this.last };
+  }
+
+  save(): OutflowMeterState | undefined {
+    return this.first && this.last ? { t0: this.first.t, n0: this.first.n, t: this.last.t, n: this.last.n } : undefined;
+  }
+
+  restore(s: OutflowMeterState): void {
+    this.first = { t: s.t0, n: s.n0 };
+    this.last = { t: s.t, n: s.n, rate: Number.NaN };
+  }
 }

@@ -12,7 +12,9 @@ import { SidecarTracker } from "./tracker.js";
 import { ConfigError } from "../core/errors.js";
 import { COHERENT, validateStart, type GaussianStart } from "./gaussian-start.js";
 import type { ModeModel } from "./clocks.js";
-import { SIDECAR_COLUMNS, clocksRecord, sidecarRow } from "./sidecar-report.js";
+import type { ModeRegion } from "./mode.js";
+import { OutflowMeter, type OutflowMeterState } from "./outflow.js";
+import { OUTFLOW_COLUMNS, SIDECAR_COLUMNS, clocksRecord, outflowRecord, sidecarRow } from "./sidecar-report.js";
 
 /** The settings the plug-in takes (the resolved [sidecar] section; rates per code time). */
 export interface SidecarSettings {
@@ -22,6 +24,8 @@ export interface SidecarSettings {
   readonly dephasingRate?: number;
   /** The twin field's relative extra amplitude e (ψ₂(0) = (1 + e/2)ψ(0)); 0 or absent: no twin. */
   readonly twinExcess?: number;
+  /** A region whose mass outflow is measured at every time-series row, as a loss rate (code lengths). */
+  readonly outflow?: Exclude<ModeRegion, { kind: "box" }>;
 }
 
 const START_KEYS: Record<string, string> = { squeeze: "sidecar.squeeze", "squeeze-angle": "sidecar.squeeze_angle", thermal: "sidecar.thermal_quanta" };
@@ -51,14 +55,18 @@ export function sidecarPlugin(settings: SidecarSettings): RunPlugin {
   };
   const twinExcess = settings.twinExcess ?? 0;
   const twin = twinExcess > 0;
+  let meter: OutflowMeter | undefined;
+  let savedMeter: OutflowMeterState | undefined;
   return {
     name: "sidecar",
     stateVersion: 1,
-    measures: twin ? ["kinetic", "moments", "overlaps"] : ["kinetic", "moments"],
+    measures: ["kinetic", "moments", ...(twin ? (["overlaps"] as const) : []), ...(settings.outflow ? (["field"] as const) : [])],
     ...(twin ? { companions: [{ kind: "own-gravity", startScale: 1 + twinExcess / 2 }] } : {}),
-    columns: SIDECAR_COLUMNS,
+    columns: settings.outflow ? [...SIDECAR_COLUMNS, ...OUTFLOW_COLUMNS] : SIDECAR_COLUMNS,
     start(ctx: RunContext, facts: StartFacts) {
       context = ctx;
+      if (settings.outflow) meter = new OutflowMeter(ctx.grid, settings.outflow, ctx.particleMass);
+      if (meter && savedMeter) meter.restore(savedMeter);
       const start = { sums: facts.sums.moments!, kineticTilde: facts.sums.kinetic!, a: facts.a };
       const N = facts.mass0 / ctx.particleMass;
       const twinStart = twin ? { excess: twinExcess, overlap: facts.sums.overlaps![0]! } : undefined;
@@ -70,19 +78,29 @@ export function sidecarPlugin(settings: SidecarSettings): RunPlugin {
       running().afterStep({ ...facts, sums: facts.sums.moments!, midKineticTilde: facts.sums.kinetic!, ...(overlap ? { overlap } : {}) });
     },
     output(facts) {
-      if (facts.kind === "row") return sidecarRow(running(), facts.a, context!.scales.units.timeS);
+      if (facts.kind !== "row") return;
+      const timeS = context!.scales.units.timeS;
+      const row = sidecarRow(running(), facts.a, timeS);
+      if (!meter) return row;
+      const [n, rate] = meter.sample(facts.t, facts.psi!);
+      return [...row, n, rate / timeS];
     },
     stop() {
       const ctx = context!;
       const timeS = ctx.scales.units.timeS;
-      const record = clocksRecord(running(), ctx.background, timeS, (ctx.endTime - ctx.startTime) * timeS);
+      const outflow = meter ? outflowRecord(meter, timeS) : undefined;
+      const record = { ...clocksRecord(running(), ctx.background, timeS, (ctx.endTime - ctx.startTime) * timeS), ...(outflow ? { outflow } : {}) };
       writeFileAtomic(runPaths(ctx.outputDir).clocks, JSON.stringify(record, null, 2) + "\n");
-      return { clocks: record.clocks, ...(record.adiabatic_twin ? { adiabatic_twin: record.adiabatic_twin } : {}) };
+      return { clocks: record.clocks, ...(record.adiabatic_twin ? { adiabatic_twin: record.adiabatic_twin } : {}), ...(outflow ? { outflow } : {}) };
     },
-    save: () => running().save(),
+    save: () => {
+      const outflow = meter?.save();
+      return { ...running().save(), ...(outflow ? { outflow } : {}) };
+    },
     checkState: (state) => (isSidecarState(state) ? undefined : "is not a sidecar state psibox wrote (rates and clocks with finite values)"),
     restore(state) {
       saved = state as Parameters<SidecarTracker["restore"]>[0];
+      savedMeter = (state as { outflow?: OutflowMeterState }).outflow;
     },
   };
 }
@@ -96,9 +114,10 @@ function finiteFields(v: unknown, keys: readonly string[]): boolean {
 /** Is `saved` a state as the tracker saves it (rates and the clocks' running state, all finite)? */
 export function isSidecarState(saved: unknown): boolean {
   try {
-    const s = saved as { rates?: unknown; clocks?: unknown };
+    const s = saved as { rates?: unknown; clocks?: unknown; outflow?: unknown };
     const rateKeys = ["omegaTilde", "chiTilde", "lambda"];
     if (!finiteFields(s?.rates, rateKeys) || typeof s.clocks !== "string") return false;
+    if (s.outflow !== undefined && !finiteFields(s.outflow, ["t0", "n0", "t", "n"])) return false;
     const c = JSON.parse(s.clocks) as { rates?: unknown; rung?: unknown };
     if (!finiteFields(c, ["t", "theta", "chi", "b"]) || !finiteFields(c.rates, rateKeys) || !Array.isArray(c.rung)) return false;
     return c.rung.every((r) => Array.isArray(r) && r.length === 2 && CLOCK_NAMES.has(r[0] as string) && Number.isFinite(r[1]));

@@ -4,6 +4,7 @@
  * and to the age of the universe.
  */
 import type { SidecarTracker } from "./tracker.js";
+import type { OutflowMeter } from "./outflow.js";
 import { formatDuration, type ClockResult } from "./clocks.js";
 import type { Background } from "../physics/cosmology/background.js";
 import { YEAR_S } from "../physics/constants.js";
@@ -27,6 +28,25 @@ export const SIDECAR_COLUMNS = [
   "chi_adiabatic_per_s",
   "chi_adiabatic_integral_rad",
 ];
+
+/** The columns of a measured outflow region (sidecar.outflow_region). */
+export const OUTFLOW_COLUMNS = ["outflow_N", "outflow_loss_rate_per_s"];
+
+/** The region's measured outflow in physical units: the mean loss rate over the run, to feed back as sidecar.loss_rate. */
+export function outflowRecord(meter: OutflowMeter, timeS: number) {
+  const r = meter.rates();
+  const g = r.mean / timeS;
+  const finite = (v: number) => (Number.isFinite(v) ? v : null);
+  return {
+    region: meter.region.kind,
+    particles_first_N: r.first?.n ?? null,
+    particles_last_N: r.last?.n ?? null,
+    loss_rate_per_s: finite(g),
+    loss_rate_per_yr: finite(g * YEAR_S),
+    loss_integral: r.lossIntegral,
+    method: "−ln(N_last/N_first)/(t_last − t_first) of the particles in the region's window at the time-series rows",
+  };
+}
 
 /** The sidecar's time-series values now. */
 export function sidecarRow(tracker: SidecarTracker, a: number, timeS: number): number[] {

@@ -13,7 +13,7 @@ import { readSnapshot } from "../io/snapshot.js";
 import { analyzeRun, type RunAnalysisOptions } from "./analyze.js";
 import { diagnosticsSection } from "./diagnostics-section.js";
 import { axisUnit } from "./snapshot-pictures.js";
-import { clockSentence, twinSentence, esc, figure, STYLESHEET, table, type ClockEntry } from "./report-parts.js";
+import { clockSentence, twinSentence, outflowSentence, modeSentence, esc, figure, STYLESHEET, table, type ClockEntry } from "./report-parts.js";
 
 interface RunSummary {
   name?: string;
@@ -90,15 +90,15 @@ export async function writeReport(runDir: string, outFile?: string, options: Run
   const summary = readJson<RunSummary>(path.join(runDir, "summary.json"));
   if (!summary) throw new InputError(`${runDir}: not a finished psibox run folder (no summary.json)`);
   const config = fs.existsSync(path.join(runDir, "config.toml")) ? fs.readFileSync(path.join(runDir, "config.toml"), "utf8") : "";
-  const clocks = readJson<{ clocks: ClockEntry[]; particles_N: number; squeezing_db_target?: number; adiabatic_twin?: Parameters<typeof twinSentence>[0] }>(path.join(runDir, "clocks.json"));
+  const clocks = readJson<Parameters<typeof modeSentence>[0] & { clocks: ClockEntry[]; squeezing_db_target?: number; adiabatic_twin?: Parameters<typeof twinSentence>[0]; outflow?: Parameters<typeof outflowSentence>[0] }>(path.join(runDir, "clocks.json"));
   const analysis = await analyzeRun(runDir, path.join(runDir, "analysis"), { ...options, pictures: true });
   const first = analysis.snapshots[0];
   const last = analysis.snapshots.at(-1);
   const dims = first ? readSnapshot(first.file).meta.cells.length : 0;
   const target = clocks?.squeezing_db_target ?? -10;
   const clockSection = clocks
-    ? `<p>For the whole-box condensate mode of N = ${formatNumber(clocks.particles_N)} particles, counted from the start of the run (squeezing target ${formatNumber(target)} dB):</p>
-<ul class="verdict">${clocks.clocks.map((c) => `<li>${esc(clockSentence(c, target))}</li>`).join("")}</ul>${clocks.adiabatic_twin ? `\n<p>${esc(twinSentence(clocks.adiabatic_twin))}</p>` : ""}
+    ? `<p>For the whole-box condensate mode of N = ${formatNumber(clocks.particles_N)} particles, counted from the start of the run (squeezing target ${formatNumber(target)} dB). ${esc(modeSentence(clocks))}</p>
+<ul class="verdict">${clocks.clocks.map((c) => `<li>${esc(clockSentence(c, target))}</li>`).join("")}</ul>${clocks.adiabatic_twin ? `\n<p>${esc(twinSentence(clocks.adiabatic_twin))}</p>` : ""}${clocks.outflow ? `\n<p>${esc(outflowSentence(clocks.outflow))}</p>` : ""}
 <div class="figs">${figure(analysis.figures["clocks"], "Squeezing, mean-field decay and the breakdown integral, with their thresholds (dashed) and the times the clocks rang (dotted).")}</div>`
     : "<p>The quantum sidecar was off for this run.</p>";
   const fieldFigs = [

@@ -68,6 +68,25 @@ export function twinSentence(twin: { excess: number; chi_adiabatic_per_s: number
   );
 }
 
+/** The mode's start and its loss and dephasing rates in a sentence (clocks.json's start and rates). */
+export function modeSentence(c: { particles_N: number; start?: { description: string; number_spread: number }; loss_rate_per_s?: number; dephasing_rate_per_s?: number }): string {
+  const start = c.start ? `${c.start.description} start (number spread ΔN = ${formatNumber(c.start.number_spread)}, √N = ${formatNumber(Math.sqrt(c.particles_N))})` : "coherent start";
+  const rate = (v: number | undefined, what: string) => (v ? `${what} at ${formatNumber(v)} /s` : `no ${what}`);
+  return `The clocks are those of a ${start}, with ${rate(c.loss_rate_per_s, "loss")} and ${rate(c.dephasing_rate_per_s, "dephasing")}.`;
+}
+
+/** The measured mass outflow of the sidecar's region in a sentence (clocks.json's outflow). */
+export function outflowSentence(o: { region: string; particles_first_N: number | null; particles_last_N: number | null; loss_rate_per_s: number | null; loss_rate_per_yr: number | null }): string {
+  if (o.loss_rate_per_s === null) return `The ${o.region} region's mass outflow was measured, but the run had too few time-series rows for a rate.`;
+  const flow = o.loss_rate_per_s >= 0 ? "lost" : "gained";
+  return (
+    `The ${o.region} region held ${formatNumber(o.particles_first_N ?? Number.NaN)} particles at the first time-series row and ${formatNumber(o.particles_last_N ?? Number.NaN)} at the last: it ${flow} matter at a mean ` +
+    `rate of ${formatNumber(Math.abs(o.loss_rate_per_s))} /s (${formatNumber(Math.abs(o.loss_rate_per_yr ?? Number.NaN))} /yr), ` +
+    (o.loss_rate_per_s > 0 ? "the loss rate of its mode to give back as sidecar.loss_rate" : "a negative loss rate (inflow)") +
+    ` (outflow_loss_rate_per_s in the time series gives it per interval).`
+  );
+}
+
 export const STYLESHEET = `
 body{font-family:"DejaVu Sans",system-ui,sans-serif;max-width:1060px;margin:2em auto;padding:0 1em;color:#222;line-height:1.45}
 h1{font-size:1.5em;margin-bottom:.2em}h2{font-size:1.2em;border-bottom:1px solid #ccc;padding-bottom:.2em;margin-top:1.8em}h3{font-size:1em}

@@ -5,6 +5,7 @@ import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { modeSentence } from "../../src/report/report-parts.js";
 
 const BIN = path.resolve("dist/cli/bin.js");
 const YEAR_S = 365.25 * 86400;
@@ -114,6 +115,8 @@ describe("runs with a squeezed, lossy mode ([sidecar] keys)", () => {
     expect(clocks.loss_rate_per_s * 1e9 * YEAR_S).toBeCloseTo(1, 10);
     expect(clocks.dephasing_rate_per_s * 1e9 * YEAR_S).toBeCloseTo(0.01, 12);
     expect(clocks.clocks.map((c: { name: string }) => c.name)).toContain("phase-diffusion-adiabatic");
+    // the report says which start and rates the clocks are for (a number-squeezed start: ΔN = √N e^{−r})
+    expect(modeSentence(clocks)).toMatch(/^The clocks are those of a squeezed r = 0\.5 at 0 rad start \(number spread ΔN = 1\.81 × 10⁴⁹, √N = 2\.99 × 10⁴⁹\), with loss at 3\.17 × 10⁻¹⁷ \/s and dephasing at 3\.17 × 10⁻¹⁹ \/s\.$/);
     const [header, first] = fs.readFileSync(path.join(work, "output/sq/timeseries.csv"), "utf8").split("\n");
     const row = Object.fromEntries(header!.split(",").map((c, i) => [c, Number(first!.split(",")[i])]));
     expect(row["squeezing_dB"]).toBeCloseTo(-10 * Math.log10(Math.E), 6);

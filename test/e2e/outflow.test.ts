@@ -1,4 +1,5 @@
-// A region's measured mass outflow as a loss rate (psibox clocks --region): a free Gaussian packet spreading out
+// A region's measured mass outflow as a loss rate (psibox clocks --region, and in-line in the run with
+// sidecar.outflow_region): a free Gaussian packet spreading out
 // of a sphere centred on it. Reference (computed independently): the packet's density is Gaussian at every time,
 // ρ(r, t) = M (2πσ²)^{−3/2} e^{−r²/2σ²} with σ(t)² = σ₀²(1 + (ħt/(2mσ₀²))²) (the textbook free spreading), so the
 // mass the region holds is the radial integral of ρ times the region's window w² (the raised cosine of half-width
@@ -7,6 +8,7 @@
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { makeWork, readCsv, readJson, removeWork, runPsibox, writeIn } from "../helpers/cli.js";
+import { outflowSentence } from "../../src/report/report-parts.js";
 
 let work: string;
 beforeAll(() => {
@@ -40,9 +42,11 @@ describe("mass outflow of a region as a loss rate", () => {
       work,
       "spread.toml",
       `[grid]\ncells = [32, 32, 32]\nbox = "20 kpc"\ngravity = "none"\n[particle]\nmass = "1e-22 eV"\n[span]\nduration = "300 Myr"\n` +
-        `[initial]\nkind = "gaussian-packet"\nmass = "1e8 Msun"\nwidth = "${sigma0} kpc"\n[output]\ntime_unit = "Myr"\nsnapshot_interval = "30 Myr"\n[sidecar]\nenabled = false\n`,
+        `[initial]\nkind = "gaussian-packet"\nmass = "1e8 Msun"\nwidth = "${sigma0} kpc"\n[output]\ntime_unit = "Myr"\nsnapshot_interval = "30 Myr"\n` +
+        `[sidecar]\noutflow_region = "sphere"\noutflow_center = ["10 kpc", "10 kpc", "10 kpc"]\noutflow_radius = "3 kpc"\n`,
     );
-    expect(runPsibox(work, ["run", "spread.toml", "-q"]).code).toBe(0);
+    const run = runPsibox(work, ["run", "spread.toml"]);
+    expect(run.code).toBe(0);
     const args = ["clocks", "output/spread", "--region", "sphere", "--center", "10 kpc, 10 kpc, 10 kpc", "--radius", "3 kpc", "--out", "sphere"];
     const r = runPsibox(work, args);
     expect(r.stderr).toBe("");
@@ -69,6 +73,22 @@ describe("mass outflow of a region as a loss rate", () => {
     const fed = runPsibox(work, [...args, "--loss-rate", hint![1]!, "--json"]);
     expect(fed.code).toBe(0);
     expect(Math.abs(JSON.parse(fed.stdout).loss_rate_per_s / summary.outflow_loss_rate_per_s - 1)).toBeLessThan(1e-3);
+    // measured in-line by the run at its time-series rows: per interval, over the run, on screen and in the files
+    const series = readCsv(path.join(work, "output/spread/timeseries.csv"));
+    let worst = 0;
+    for (let j = 1; j < series.length; j++) {
+      const [ta, tb] = [Number(series[j - 1]!["t_Myr"]), Number(series[j]!["t_Myr"])].map((t) => t * 1e6 * 365.25 * 86400) as [number, number];
+      const expected = -Math.log(frac(tb) / frac(ta)) / (tb - ta);
+      worst = Math.max(worst, Math.abs(Number(series[j]!["outflow_loss_rate_per_s"]) / expected - 1));
+    }
+    expect(worst).toBeLessThan(5e-4); // measured 1.3e-4
+    expect(series[0]!["outflow_loss_rate_per_s"]).toBe("NaN");
+    const inline = readJson<{ outflow: Parameters<typeof outflowSentence>[0] & { loss_rate_per_s: number; loss_integral: number } }>(path.join(work, "output/spread/clocks.json")).outflow;
+    expect(Math.abs(inline.loss_rate_per_s / mean - 1)).toBeLessThan(5e-4);
+    expect(Math.abs(inline.loss_integral / -Math.log(frac(t1) / frac(0)) - 1)).toBeLessThan(5e-4);
+    expect(readJson<{ outflow: unknown }>(path.join(work, "output/spread/summary.json")).outflow).toEqual(inline);
+    expect(outflowSentence(inline)).toMatch(/^The sphere region held [\d.]+ × 10⁹⁵ particles at the first time-series row and [\d.]+ × 10⁹⁵ at the last: it lost matter at a mean rate of 9\.53 × 10⁻¹⁷ \/s/);
+    expect(run.stdout).toMatch(/mass outflow of the sphere region over the run: [\d.]+ × 10⁻¹⁷ \/s = [\d.]+ × 10⁻⁹ \/yr; as a loss rate: sidecar\.loss_rate = "[\d.e-]+\/s"/);
     // the whole periodic box loses nothing (unitarity)
     const box = runPsibox(work, ["clocks", "output/spread", "--out", "box", "--json"]);
     expect(Math.abs(JSON.parse(box.stdout).outflow_loss_rate_per_s)).toBeLessThan(1e-12 / t1);

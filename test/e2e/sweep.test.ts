@@ -59,6 +59,11 @@ describe("psibox sweep", () => {
     for (const r of rows as { entry: string; flow_resolved: boolean; unresolved_mass_fraction: number }[]) {
       const flow = readJson<{ flow_resolution: { resolved: boolean; worst_unresolved_mass_fraction: number } }>(path.join(work, "full", r.entry, "summary.json")).flow_resolution;
       expect([r.flow_resolved, r.unresolved_mass_fraction]).toEqual([flow.resolved, flow.worst_unresolved_mass_fraction]);
+      // the mode's start and rates from clocks.json, the final squeezing and mean field from the time series
+      expect(r).toMatchObject({ mode_start: "coherent", loss_rate_per_s: 0, dephasing_rate_per_s: 0, outflow_loss_rate_per_s: null });
+      const final = readJson<{ final: { squeezing_db: number } }>(path.join(work, "full", r.entry, "clocks.json")).final;
+      expect((r as unknown as { final_squeezing_dB: number }).final_squeezing_dB).toBeCloseTo(final.squeezing_db, 9);
+      expect((r as unknown as { final_log10_meanfield_fraction: number }).final_log10_meanfield_fraction).toBeLessThanOrEqual(0);
     }
     expect(fs.readFileSync(path.join(work, "full/sweep-summary.csv"), "utf8").split("\n")[0]).toMatch(/^entry,particle\.mass,initial\.contrast,status,reason,steps,wall_time_s,/);
 

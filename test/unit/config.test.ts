@@ -44,6 +44,24 @@ describe("config", () => {
     expect(run.outputDir).toBe(path.resolve("/tmp", "output", "t"));
   });
 
+  it("sidecar.outflow_region: the region in code lengths, and errors naming the key", () => {
+    const box = { ...base, grid: { cells: [32, 32], box: "10 kpc" } };
+    const run = resolveRun(checkConfig({ ...box, sidecar: { outflow_region: "cube", outflow_radius: "2 kpc", outflow_center: ["3 kpc", "4 kpc"] } }), "t", "/");
+    const cube = run.sidecar.outflow as { kind: string; center: number[]; halfWidth: number };
+    expect(cube.kind).toBe("cube");
+    [0.3, 0.4].forEach((c, i) => expect(cube.center[i]).toBeCloseTo(c, 14)); // code length: the 10 kpc box side
+    expect(cube.halfWidth).toBeCloseTo(0.2, 14);
+    expect(resolveRun(checkConfig({ ...box, sidecar: { outflow_region: "sphere", outflow_radius: "1 kpc" } }), "t", "/").sidecar.outflow).toMatchObject({ center: [0.5, 0.5] });
+    expect(resolveRun(checkConfig(box), "t", "/").sidecar.outflow).toBeUndefined();
+    const bad = (sidecar: Record<string, unknown>) => errorOf({ ...box, sidecar });
+    expect(bad({ outflow_region: "ball" })).toMatch(/^sidecar\.outflow_region: must be one of "none", "sphere", "cube", "densest"/);
+    expect(bad({ outflow_region: "sphere" })).toMatch(/^sidecar\.outflow_radius: missing: the sphere's radius/);
+    expect(bad({ outflow_region: "sphere", outflow_radius: "2 Myr" })).toMatch(/^sidecar\.outflow_radius: "2 Myr" is not a length/);
+    expect(bad({ outflow_region: "cube", outflow_radius: "2 kpc", outflow_center: ["30 kpc", "1 kpc"] })).toMatch(/^sidecar\.outflow_center: lies outside the box on axis 1/);
+    expect(bad({ outflow_radius: "2 kpc" })).toMatch(/^sidecar\.outflow_radius: needs sidecar\.outflow_region/);
+    expect(bad({ enabled: false, outflow_region: "densest", outflow_radius: "2 kpc" })).toMatch(/^sidecar\.outflow_region: needs sidecar\.enabled = true/);
+  });
+
   it("names the key and what is valid in every error", () => {
     expect(errorOf({ ...base, grid: { cells: [48], box: "10 kpc" } })).toMatch(/^grid\.cells: 48 is not a power of two/);
     expect(errorOf({ ...base, particle: { mass: "-1e-22 eV" } })).toMatch(/^particle\.mass: must be positive/);
