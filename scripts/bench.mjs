@@ -3,7 +3,8 @@
 // Prints ms per step (median), ns per cell-step, nominal GFLOP/s and peak resident memory.
 // When python3 with NumPy is available it also runs scripts/numpy_step.py, NumPy's version of the
 // identical step, checks that both give the same field to 1e-10 and prints the time ratio.
-// Usage: node scripts/bench.mjs [--large] [--steps N] [--no-numpy] [--threads N] [--fft auto|wasm|js] [--tangents-only]
+// It ends with the real run against the bare step (scripts/bench-run.mjs): 128³, and 256³ with --large.
+// Usage: node scripts/bench.mjs [--large] [--steps N] [--no-numpy] [--threads N] [--fft auto|wasm|js] [--tangents-only] [--real-run-only]
 // (threads default to the number of cores; the fft backend to auto, and the 3D grids are also run on the other backend)
 import { Grid } from "../dist/grid/grid.js";
 import { makePoissonSolver } from "../dist/fields/poisson.js";
@@ -16,6 +17,8 @@ import os from "node:os";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
 import { readNpyComplex } from "../dist/io/npy.js";
+import { printRealRunRows } from "./bench-run.mjs";
+import { defaultThreads } from "../dist/config/resolve-output.js";
 
 const args = process.argv.slice(2);
 const large = args.includes("--large");
@@ -148,6 +151,11 @@ function benchTangents() {
     console.log(`${r.label.padEnd(40)} ${r.ms.toFixed(1).padStart(8)} ms   ${(r.ms / plain.ms).toFixed(2)}× (target ≤ ${target.toFixed(1)}×)`);
   }
 }
+const realRunSizes = large ? [128, 256] : [128];
+if (args.includes("--real-run-only")) {
+  await printRealRunRows(realRunSizes, (n) => (threadsArg >= 0 ? threads : defaultThreads(n ** 3)));
+  process.exit(0);
+}
 if (args.includes("--tangents-only")) {
   benchTangents();
   process.exit(0);
@@ -179,3 +187,4 @@ if (useNumpy) {
 } else {
   console.log("(no python3 with NumPy here: the comparison with NumPy is skipped)");
 }
+await printRealRunRows(realRunSizes, (n) => (threadsArg >= 0 ? threads : defaultThreads(n ** 3)));

@@ -25,7 +25,7 @@ def main():
 
     def potential(p):
         rho = (p.real ** 2 + p.imag ** 2)
-        return np.fft.irfftn(np.fft.rfftn(rho) * green, s=shape)
+        return np.fft.irfftn(np.fft.rfftn(rho) * green, s=shape, axes=tuple(range(len(shape))))
 
     phi = potential(psi)
     times = []

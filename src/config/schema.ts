@@ -197,8 +197,8 @@ export const integratorSchema = z.strictObject({
 export const outputSchema = z.strictObject({
   /** Output folder. @default "output/<config file name>" */
   dir: z.string().optional(),
-  /** Write a time-series row every this many steps (and always the first and last). @default 1 */
-  timeseries_every: z.number().int().default(1),
+  /** Write a time-series row every this many steps (and always the first and last). @default 1 below 2^18 cells, else 8 */
+  timeseries_every: z.number().int().optional(),
   /** Time unit of the outputs, e.g. "Myr". @default the unit of span.duration, or "Gyr" */
   time_unit: z.string().optional(),
   /** Write a snapshot every this many steps. @default off */
