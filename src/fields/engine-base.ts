@@ -153,18 +153,25 @@ export abstract class EngineBase implements StepEngine {
     let rho2 = 0;
     let rhoPhi = 0;
     let max = 0;
+    let phiMin = Infinity;
+    let phiMax = -Infinity;
     const n2 = this.shape[2];
     for (let i = lo * n2; i < hi * n2; i++) {
       const rho = psi[2 * i]! * psi[2 * i]! + psi[2 * i + 1]! * psi[2 * i + 1]!;
+      const p = phi[i]!;
       mass += rho;
       rho2 += rho * rho;
-      rhoPhi += rho * phi[i]!;
+      rhoPhi += rho * p;
       if (rho > max) max = rho;
+      if (p < phiMin) phiMin = p;
+      if (p > phiMax) phiMax = p;
     }
     out[0] = mass;
     out[1] = rho2;
     out[2] = rhoPhi;
     out[3] = max;
+    out[4] = phiMin;
+    out[5] = phiMax;
   }
 
   norm(field: ComplexGrid, lo: number, hi: number): number {

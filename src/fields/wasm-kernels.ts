@@ -32,6 +32,7 @@ export interface WasmKernelExports {
   realRows(input: number, out: number, n2: number, lo: number, hi: number, buf: number, tw: number, rev: number, ctw: number): void;
   realRowsInverse(spec: number, out: number, n2: number, lo: number, hi: number, buf: number, tw: number, rev: number, ctw: number): void;
   kick(psi: number, phi: number, factor: number, lo: number, hi: number): void;
+  moments(psi: number, phi: number, lo: number, hi: number, out: number): void;
   sinCos(angles: number, out: number, count: number): void;
   phaseTable(kk: number, factor: number, out: number, count: number): void;
 }

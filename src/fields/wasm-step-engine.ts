@@ -60,6 +60,13 @@ export class WasmStepEngine extends EngineBase {
     this.k.kick(this.at(field), this.at(potential), factor, lo * n2, hi * n2);
   }
 
+  /** The moments on the SIMD kernel (written to this thread's scratch block, then copied out). */
+  override moments(lo: number, hi: number, out: Float64Array): void {
+    const n2 = this.shape[2];
+    this.k.moments(this.at("psi"), this.at("phi"), lo * n2, hi * n2, this.buf);
+    out.set(new Float64Array(this.setup.memory!.buffer, this.buf, 6));
+  }
+
   axis(field: ComplexGrid, axis: number, inverse: boolean, lo: number, hi: number): void {
     this.pass(this.at(field), this.shape, axis, inverse, lo, hi);
   }

@@ -39,6 +39,9 @@ export interface FieldMoments {
   readonly rho2: number;
   readonly rhoPhi: number;
   readonly maxRho: number;
+  /** Smallest and largest φ on the grid. */
+  readonly phiMin: number;
+  readonly phiMax: number;
 }
 
 /**
@@ -377,26 +380,20 @@ export class SplitStepper {
     return (0.5 * this.sums.kinetic * this.grid.cellVolume) / this.grid.size;
   }
 
-  /** Sums over the grid of the current field: Σ|ψ|², Σ|ψ|⁴, Σ|ψ|²φ (no ΔV) and max |ψ|². */
+  /** Sums over the grid of the current field: Σ|ψ|², Σ|ψ|⁴, Σ|ψ|²φ (no ΔV), max |ψ|², and φ's range. */
   moments(): FieldMoments {
     if (!this.momentsCache) {
       this.runPass(this.plan.rows, { op: "moments" });
       const r = this.results;
-      this.momentsCache = { rho: r[0]!, rho2: r[1]!, rhoPhi: r[2]!, maxRho: r[3]! };
+      this.momentsCache = { rho: r[0]!, rho2: r[1]!, rhoPhi: r[2]!, maxRho: r[3]!, phiMin: r[4]!, phiMax: r[5]! };
     }
     return this.momentsCache;
   }
 
-  /** Range max φ − min φ of the current potential (0 without gravity). */
+  /** Range max φ − min φ of the current potential (0 without gravity), from the moments pass (cached until φ changes). */
   potentialRange(): number {
     if (this.gravity.kind === "none") return 0;
-    let lo = Infinity;
-    let hi = -Infinity;
-    for (let i = 0; i < this.phi.length; i++) {
-      const v = this.phi[i] as number;
-      if (v < lo) lo = v;
-      if (v > hi) hi = v;
-    }
-    return hi - lo;
+    const m = this.moments();
+    return m.phiMax - m.phiMin;
   }
 }

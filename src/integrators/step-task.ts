@@ -36,15 +36,32 @@ export type StepTask =
   | { readonly op: "combine"; readonly field: ComplexGrid; readonly scale: number; readonly re: number; readonly im: number }
   | { readonly op: "poisson" | "isolated-zero" | "convolve" };
 
-/** Length of a task's result vector: sums in entries 0–2, a maximum in entry 3. */
-export const RESULT_LENGTH = 4;
+/** Length of a task's result vector: sums in entries 0–2, maxima in entries 3 and 5, a minimum in entry 4. */
+export const RESULT_LENGTH = 6;
 
-/** Combine per-thread result vectors (RESULT_LENGTH each, concatenated) into `out`. */
+/** Neutral per-thread result vectors (for threads given no range): zero sums and maxima, an infinite minimum and maximum of φ. */
+export function clearResults(parts: Float64Array, threads: number): void {
+  parts.fill(0);
+  for (let t = 0; t < threads; t++) {
+    parts[RESULT_LENGTH * t + 4] = Infinity;
+    parts[RESULT_LENGTH * t + 5] = -Infinity;
+  }
+}
+
+/**
+ * Combine per-thread result vectors (RESULT_LENGTH each, concatenated) into `out`: entries 0–2 are sums,
+ * 3 and 5 maxima, 4 a minimum (the moments pass's Σ|ψ|², Σ|ψ|⁴, Σ|ψ|²φ, max |ψ|², min φ, max φ).
+ */
 export function combineResults(parts: Float64Array, threads: number, out: Float64Array): void {
   out.fill(0);
+  out[4] = Infinity;
+  out[5] = -Infinity;
   for (let t = 0; t < threads; t++) {
-    for (let i = 0; i < 3; i++) out[i]! += parts[RESULT_LENGTH * t + i]!;
-    out[3] = Math.max(out[3]!, parts[RESULT_LENGTH * t + 3]!);
+    const at = RESULT_LENGTH * t;
+    for (let i = 0; i < 3; i++) out[i]! += parts[at + i]!;
+    out[3] = Math.max(out[3]!, parts[at + 3]!);
+    out[4] = Math.min(out[4]!, parts[at + 4]!);
+    out[5] = Math.max(out[5]!, parts[at + 5]!);
   }
 }
 

@@ -22,7 +22,7 @@ import { ThreadError } from "../core/errors.js";
 import type { StepSetup } from "../fields/step-memory.js";
 import { createEngine, type StepEngine } from "../fields/step-engine.js";
 import { controlWords, MESSAGE_BYTES, messageView, PENDING, readMessage, stateWord, takenWord, TASK, WorkerState, writeMessage } from "./pool-control.js";
-import { combineResults, RESULT_LENGTH, runTask, type StepTask } from "./step-task.js";
+import { clearResults, combineResults, RESULT_LENGTH, runTask, type StepTask } from "./step-task.js";
 
 /** What a worker is given once: the step's memory layout and its slot, plus the shared words. */
 export interface WorkerSetup {
@@ -175,7 +175,7 @@ export class ThreadPool {
   run(count: number, task: StepTask, out: Float64Array): void {
     if (this.isClosed) throw new Error("the thread pool is closed");
     this.checkAlive();
-    this.results.fill(0);
+    clearResults(this.results, this.size);
     const ranges = Array.from({ length: this.size }, (_, i) => [Math.floor((i * count) / this.size), Math.floor(((i + 1) * count) / this.size)] as const);
     const posted = ranges.map(([lo, hi], i) => i > 0 && hi > lo);
     const number = Atomics.add(this.ctrl, TASK, 1) + 1;

@@ -76,3 +76,44 @@ describe("the kinetic measurement and undo", () => {
     });
   }
 });
+
+describe("the moments pass", () => {
+  // Σ|ψ|², Σ|ψ|⁴, Σ|ψ|²φ, max|ψ|² and φ's range, against the same sums computed independently here from
+  // the stepper's own ψ and φ; isolated gravity keeps 0 outside φ's range (negative everywhere in 3D, positive
+  // everywhere in 1D, where the Green's function grows as |x|), so an extremum that started at 0 (or a thread
+  // given no cells) would show
+  // (a 1D grid is one row: with 3 threads two of them get no cells)
+  for (const [fft, threads, cells] of [["wasm", 1, [4, 8, 8]], ["js", 1, [4, 8, 8]], ["wasm", 2, [8, 8, 8]], ["wasm", 3, [64]]] as const) {
+    it(`gives the sums and φ's range of the current field (${fft}, ${threads} thread${threads > 1 ? "s" : ""}, ${cells.join("×")}, isolated)`, () => {
+      const grid = new Grid([...cells], [1, 1.5, 2].slice(0, cells.length));
+      const psi = fillComplex(grid, (x, y, z) => [Math.exp(-8 * ((x - 0.4) ** 2 + (y - 0.7) ** 2 + (z - 1.1) ** 2)) + 0.1, 0.2 * Math.sin(3 * x + y)]);
+      const gravity = makePoissonSolver(grid, "isolated");
+      const s = threads > 1 ? new ThreadedStepper(grid, new StaticBackground(), gravity, threads, fft) : new SplitStepper(grid, new StaticBackground(), gravity, fft);
+      try {
+        s.setState(psi, 0);
+        s.step(1e-3);
+        const f = s.psi;
+        const phi = s.phi;
+        let [m, r2, rp, rmax, pmin, pmax] = [0, 0, 0, 0, Infinity, -Infinity];
+        for (let i = 0; i < grid.size; i++) {
+          const rho = f[2 * i]! ** 2 + f[2 * i + 1]! ** 2;
+          m += rho;
+          r2 += rho * rho;
+          rp += rho * phi[i]!;
+          rmax = Math.max(rmax, rho);
+          pmin = Math.min(pmin, phi[i]!);
+          pmax = Math.max(pmax, phi[i]!);
+        }
+        expect(pmin > 0 || pmax < 0).toBe(true);
+        const got = s.moments();
+        expect(Math.abs(got.rho / m - 1)).toBeLessThan(1e-13);
+        expect(Math.abs(got.rho2 / r2 - 1)).toBeLessThan(1e-13);
+        expect(Math.abs(got.rhoPhi / rp - 1)).toBeLessThan(1e-13);
+        expect([got.maxRho, got.phiMin, got.phiMax]).toEqual([rmax, pmin, pmax]);
+        expect(s.potentialRange()).toBe(pmax - pmin);
+      } finally {
+        s.close();
+      }
+    });
+  }
+});

@@ -648,3 +648,36 @@ export function phaseTable(kk: usize, factor: f64, out: usize, count: i32): void
     rotatePair(p, f64x2.mul(v128.load(kk + (<usize>i << 3)), f));
   }
 }
+
+/**
+ * Sums over cells [lo, hi) (an even count, from an even start) of ψ and φ, written to `out` as six
+ * doubles: Σ|ψ|², Σ|ψ|⁴, Σ|ψ|²φ, max |ψ|², min φ, max φ. Two cells at a time in the two lanes.
+ */
+export function moments(psi: usize, phi: usize, lo: i32, hi: i32, out: usize): void {
+  let mass = f64x2.splat(0.0);
+  let rho2 = f64x2.splat(0.0);
+  let rhoPhi = f64x2.splat(0.0);
+  let rhoMax = f64x2.splat(0.0);
+  let phiMin = f64x2.splat(Infinity);
+  let phiMax = f64x2.splat(-Infinity);
+  for (let i = lo; i < hi; i += 2) {
+    const a = v128.load(psi + (<usize>i << 4));
+    const b = v128.load(psi + (<usize>i << 4), 16);
+    const aa = f64x2.mul(a, a);
+    const bb = f64x2.mul(b, b);
+    const rho = f64x2.add(v128.shuffle<f64>(aa, bb, 0, 2), v128.shuffle<f64>(aa, bb, 1, 3));
+    const p = v128.load(phi + (<usize>i << 3));
+    mass = f64x2.add(mass, rho);
+    rho2 = f64x2.add(rho2, f64x2.mul(rho, rho));
+    rhoPhi = f64x2.add(rhoPhi, f64x2.mul(rho, p));
+    rhoMax = f64x2.max(rhoMax, rho);
+    phiMin = f64x2.min(phiMin, p);
+    phiMax = f64x2.max(phiMax, p);
+  }
+  store<f64>(out, f64x2.extract_lane(mass, 0) + f64x2.extract_lane(mass, 1));
+  store<f64>(out, f64x2.extract_lane(rho2, 0) + f64x2.extract_lane(rho2, 1), 8);
+  store<f64>(out, f64x2.extract_lane(rhoPhi, 0) + f64x2.extract_lane(rhoPhi, 1), 16);
+  store<f64>(out, Math.max(f64x2.extract_lane(rhoMax, 0), f64x2.extract_lane(rhoMax, 1)), 24);
+  store<f64>(out, Math.min(f64x2.extract_lane(phiMin, 0), f64x2.extract_lane(phiMin, 1)), 32);
+  store<f64>(out, Math.max(f64x2.extract_lane(phiMax, 0), f64x2.extract_lane(phiMax, 1)), 40);
+}
