@@ -91,14 +91,15 @@ function writeNpy(file, shape, data) {
   fs.writeFileSync(file, Buffer.concat([head, Buffer.from(header, "latin1"), Buffer.from(data.buffer, data.byteOffset, data.byteLength)]));
 }
 
-/** psibox and NumPy on the same 3D field: ms/step of each and the largest difference after `steps` steps. */
-function compareWithNumpy(n) {
-  const grid = new Grid([n, n, n], [1, 1, 1]);
+/** psibox and NumPy on the same field: ms/step of each and the largest difference after `steps` steps. */
+function compareWithNumpy(shape) {
+  const grid = new Grid(shape, shape.map(() => 1));
   const psi0 = field(grid);
-  const dt = 1e-5;
+  const kMax = Math.PI * Math.max(...shape); // a step the phase rule would allow, as in bench()
+  const dt = Math.min(1e-5, 4 / (kMax * kMax));
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), "psibox-bench-"));
   try {
-    writeNpy(path.join(dir, "in.npy"), [n, n, n], psi0);
+    writeNpy(path.join(dir, "in.npy"), shape, psi0);
     const r = spawnSync("python3", [path.join(here, "numpy_step.py"), path.join(dir, "in.npy"), path.join(dir, "out.npy"), String(steps), String(dt)], { encoding: "utf8" });
     if (r.status !== 0) return undefined;
     const numpyMs = Number(r.stdout.trim());
@@ -174,15 +175,17 @@ benchTangents();
 
 if (useNumpy) {
   console.log(`\nagainst NumPy (scripts/numpy_step.py, the identical step), same machine, same run; psibox on ${threads} thread(s):`);
-  console.log("grid      psibox ms/step   NumPy ms/step   ratio   max |Δψ|/max|ψ| after " + steps + " steps");
-  for (const n of large ? [64, 128, 256] : [64, 128]) {
-    const c = compareWithNumpy(n);
+  console.log("grid          psibox ms/step   NumPy ms/step   ratio   max |Δψ|/max|ψ| after " + steps + " steps");
+  const shapes = [[64, 64, 64], [128, 128, 128], ...(large ? [[256, 256, 256]] : []), [2048, 2048], [1 << 20]];
+  for (const shape of shapes) {
+    const name = shape.length === 1 ? `2^${Math.log2(shape[0])}` : shape.length === 2 ? `${shape[0]}²` : `${shape[0]}³`;
+    const c = compareWithNumpy(shape);
     if (!c) {
-      console.log(`${n}³: NumPy run failed`);
+      console.log(`${name}: NumPy run failed`);
       continue;
     }
     const ok = c.relDiff < 1e-10 ? "agree" : "DIFFER";
-    console.log(`${String(n).padStart(3)}³   ${c.psiboxMs.toFixed(1).padStart(14)} ${c.numpyMs.toFixed(1).padStart(15)} ${(c.psiboxMs / c.numpyMs).toFixed(2).padStart(7)}   ${c.relDiff.toExponential(1)} (${ok})`);
+    console.log(`${name.padEnd(9)} ${c.psiboxMs.toFixed(1).padStart(14)} ${c.numpyMs.toFixed(1).padStart(15)} ${(c.psiboxMs / c.numpyMs).toFixed(2).padStart(7)}   ${c.relDiff.toExponential(1)} (${ok})`);
   }
 } else {
   console.log("(no python3 with NumPy here: the comparison with NumPy is skipped)");
