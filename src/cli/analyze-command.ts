@@ -3,7 +3,7 @@ import fs from "node:fs";
 import path from "node:path";
 import { InputError } from "../core/errors.js";
 import { loadHdf5 } from "../io/h5.js";
-import { analyzeRun, analyzeSnapshot, runSnapshots } from "../report/analyze.js";
+import { analyzeRun, analyzeSnapshot, checkRunSnapshots, runSnapshots } from "../report/analyze.js";
 import { writeReport } from "../report/html.js";
 import { pictureOptions, type PictureFlags } from "../report/picture-options.js";
 import { formatDuration } from "../core/format.js";
@@ -42,7 +42,7 @@ function flagValue(flag: string, text: string, kind: "length" | "mass"): number 
 }
 
 /** The halo catalogue's request of the flags. */
-function haloRequest(flags: AnalyzeFlags): HaloRequest {
+export function haloRequest(flags: Pick<AnalyzeFlags, "overdensity" | "haloMinMass">): HaloRequest {
   const minMassMsun = flags.haloMinMass !== undefined ? flagValue("--halo-min-mass", flags.haloMinMass, "mass") / M_SUN_KG : undefined;
   if (minMassMsun !== undefined && !(minMassMsun > 0)) throw new InputError(`--halo-min-mass: must be above zero, e.g. "1e8 Msun"`);
   return { definition: parseOverdensity(flags.overdensity ?? "200m"), ...(minMassMsun !== undefined ? { minMassMsun } : {}) };
@@ -78,6 +78,8 @@ export async function analyzeCommand(paths: readonly string[], flags: AnalyzeFla
     if (flags.movie && runFolder(p).length < 2) throw new InputError(`--movie: needs at least two snapshots; ${p} has ${runFolder(p).length}`);
   }
   await loadHdf5();
+  // halos are followed through a run's snapshots: refuse a folder that mixes runs before anything is written
+  for (const p of paths) if (fs.statSync(p).isDirectory() && fs.existsSync(path.join(p, "snapshots"))) checkRunSnapshots(p);
   const reporter = new TextReporter();
   for (const p of paths) {
     const started = performance.now();
@@ -100,14 +102,16 @@ export async function analyzeCommand(paths: readonly string[], flags: AnalyzeFla
 }
 
 /** Write a run's HTML report; returns the exit code. */
-export async function reportCommand(runDir: string, flags: PictureFlags & { out?: string }): Promise<number> {
+export async function reportCommand(runDir: string, flags: PictureFlags & { out?: string; overdensity?: string; haloMinMass?: string }): Promise<number> {
   const pictures = pictureOptions(flags);
+  const halos = haloRequest(flags);
   if (!fs.existsSync(runDir)) throw new InputError(`${runDir}: no such folder`);
   await loadHdf5();
+  if (fs.existsSync(path.join(runDir, "snapshots"))) checkRunSnapshots(runDir);
   recordIfInside(runDir, path.join(runDir, "analysis"), true);
   recordIfInside(runDir, flags.out ?? path.join(runDir, "report.html"));
   const reporter = new TextReporter();
-  const file = await writeReport(runDir, flags.out, { pictureOptions: pictures, onSnapshot: (done, total) => reporter.progress(done / total, `snapshot ${done} of ${total}`) });
+  const file = await writeReport(runDir, flags.out, { pictureOptions: pictures, diagnostics: { halos }, onSnapshot: (done, total) => reporter.progress(done / total, `snapshot ${done} of ${total}`) });
   reporter.endPhase();
   process.stdout.write(`wrote ${file}\n`);
   return 0;

@@ -62,8 +62,8 @@ class Ball {
     this.h = Math.max(...this.axes.map((ax) => grid.spacing[ax]!));
   }
 
-  /** Call visit(p, w) for every cell with weight w > 0 in the ball of radius r about `centre` (internal 3D coordinates). */
-  each(centre: readonly number[], r: number, visit: (p: number, w: number) => void): void {
+  /** Call visit(p, w, dx, dy, dz) for every cell with weight w > 0 in the ball of radius r about `centre` (internal 3D coordinates; d the cell's offset from it). */
+  each(centre: readonly number[], r: number, visit: (p: number, w: number, dx: number, dy: number, dz: number) => void): void {
     const { shape, spacing } = this.grid;
     const span = [0, 1, 2].map((ax) => (shape[ax]! === 1 ? 0 : Math.min(Math.ceil((r + this.h) / spacing[ax]!), Math.floor((shape[ax]! - 1) / 2))));
     const base = [0, 1, 2].map((ax) => (shape[ax]! === 1 ? 0 : Math.round(centre[ax]! / spacing[ax]!)));
@@ -77,7 +77,7 @@ class Ball {
           const c = base[2]! + k;
           const dz = c * spacing[2]! - centre[2]!;
           const w = Math.min(1, Math.max(0, (r - Math.hypot(dx, dy, dz)) / this.h + 0.5));
-          if (w > 0) visit(this.index(a, b, c), w);
+          if (w > 0) visit(this.index(a, b, c), w, dx, dy, dz);
         }
       }
     }
@@ -88,6 +88,34 @@ class Ball {
     const wrap = (i: number, n: number) => ((i % n) + n) % n;
     return (wrap(a, n0) * n1 + wrap(b, n1)) * n2 + wrap(c, n2);
   }
+}
+
+/** Internal 3D coordinates of a point given per simulated axis (0 along the absent ones). */
+export function internalPoint(grid: Grid, point: readonly number[]): number[] {
+  const internal = [0, 0, 0];
+  ([0, 1, 2] as const).filter((ax) => grid.shape[ax]! > 1).forEach((ax, k) => (internal[ax] = point[k]!));
+  return internal;
+}
+
+/**
+ * Visit every cell of the soft-edged ball of radius r about `centre` (one coordinate per simulated axis,
+ * periodic): visit(p, w, d) with the cell's index, weight w = clamp((r − |d|)/Δx + ½, 0, 1) and offset d
+ * (internal 3D) from the centre.
+ */
+export function forEachInBall(grid: Grid, centre: readonly number[], r: number, visit: (p: number, w: number, d: readonly [number, number, number]) => void): void {
+  new Ball(grid).each(internalPoint(grid, centre), r, (p, w, dx, dy, dz) => visit(p, w, [dx, dy, dz]));
+}
+
+/** The mass ∫ρ of ψ (interleaved re, im) in the soft-edged ball of radius r about `centre` (one coordinate per simulated axis). */
+export function ballMass(grid: Grid, psi: Float64Array, centre: readonly number[], r: number): number {
+  let m = 0;
+  forEachInBall(grid, centre, r, (p, w) => (m += w * (psi[2 * p]! ** 2 + psi[2 * p + 1]! ** 2)));
+  return m * grid.cellVolume;
+}
+
+/** The edge width of the soft ball: the largest simulated cell spacing. */
+export function ballEdge(grid: Grid): number {
+  return new Ball(grid).h;
 }
 
 /** Peaks above `threshold`: cells at least as dense as both neighbours along every simulated axis, densest first. */
@@ -209,7 +237,8 @@ export function findHalos(grid: Grid, psi: Float64Array, search: HaloSearch): Ha
   return halos.map(({ internal: _i, ...h }) => h);
 }
 
-function minimumImageDistance(grid: Grid, x: readonly number[], y: readonly number[]): number {
+/** The distance between two points (internal 3D coordinates) by the nearest periodic image. */
+export function minimumImageDistance(grid: Grid, x: readonly number[], y: readonly number[]): number {
   let d2 = 0;
   for (let ax = 0; ax < 3; ax++) {
     if (grid.shape[ax]! === 1) continue;

@@ -7,7 +7,10 @@
  */
 import fs from "node:fs";
 import path from "node:path";
-import { readSnapshot, type Snapshot } from "../io/snapshot.js";
+import { readSnapshot, readSnapshotMeta, type Snapshot } from "../io/snapshot.js";
+import { checkOneRun } from "../io/run-identity.js";
+import { RunTracks } from "./halo-track-table.js";
+import { haloFigures } from "./halo-plots.js";
 import { writeFileAtomic } from "../io/atomic.js";
 import { loadField, type LoadedField } from "../simulation/from-snapshot.js";
 import { M_SUN_KG, PC_M } from "../physics/constants.js";
@@ -81,6 +84,7 @@ export async function analyzeSnapshot(
   request: DiagnosticRequest = {},
   pictures: PictureOptions = DEFAULT_PICTURES,
   transforms?: AnalysisTransforms,
+  tracks?: RunTracks,
 ): Promise<SnapshotAnalysis> {
   const snap = readSnapshot(file);
   const chosen = checkDiagnostics(request, snap.meta.cells.length, snap.meta.boxSizeKpc, snap.meta.cells, file);
@@ -99,7 +103,7 @@ export async function analyzeSnapshot(
     // the energy split's transforms give the tables' kinetic split too
     const both = chosen.has("energy-split") ? energyAndKineticSplit(field.grid, field.psi, field.scaleFactor, fft) : undefined;
     ({ summary, power } = snapshotTables(file, snap, field, outDir, fft, both?.kinetic));
-    summary["halos"] = haloTables(file, snap, field, outDir, halos);
+    summary["halos"] = haloTables(file, snap, field, outDir, halos, tracks);
     diagnostics = fieldDiagnostics(field, chosen, outDir, fft, request.husimiWindowKpc, request.husimiPointsKpc, both?.split);
   } finally {
     if (!transforms) own.close();
@@ -154,24 +158,34 @@ export function runSnapshots(runDir: string): string[] {
   return fs.readdirSync(snapDir).filter((f) => /^snap_\d{5}\.h5$/.test(f)).sort().map((f) => path.join(snapDir, f));
 }
 
-/** Analyse a run folder: every snapshot, plus run-level figures (and frames and a movie when asked). */
-export async function analyzeRun(runDir: string, outDir: string, options: RunAnalysisOptions = {}): Promise<{ snapshots: SnapshotAnalysis[]; figures: Record<string, Figure> } & RunOutputs> {
+/** Refuse a run folder whose snapshots are not all of one run (before anything is written); returns the run's identity. */
+export function checkRunSnapshots(runDir: string): string | undefined {
   const files = runSnapshots(runDir);
+  return files.length ? checkOneRun(files, files.map(readSnapshotMeta), "following halos through a run") : undefined;
+}
+
+/** Analyse a run folder: every snapshot, its halos followed through them, plus run-level figures (and frames and a movie when asked). */
+export async function analyzeRun(runDir: string, outDir: string, options: RunAnalysisOptions = {}): Promise<{ snapshots: SnapshotAnalysis[]; figures: Record<string, Figure>; tracks: RunTracks } & RunOutputs> {
+  const files = runSnapshots(runDir);
+  const identity = checkRunSnapshots(runDir) ?? "";
   const pictures = options.pictures !== false;
   const pictureOptions = options.pictureOptions ?? DEFAULT_PICTURES;
   const snapshots: SnapshotAnalysis[] = [];
   const transforms = new AnalysisTransforms();
+  const tracks = new RunTracks();
   try {
     for (const f of files) {
-      snapshots.push(await analyzeSnapshot(f, path.join(outDir, path.basename(f, ".h5")), pictures, options.diagnostics, pictureOptions, transforms));
+      snapshots.push(await analyzeSnapshot(f, path.join(outDir, path.basename(f, ".h5")), pictures, options.diagnostics, pictureOptions, transforms, tracks));
       options.onSnapshot?.(snapshots.length, files.length);
     }
   } finally {
     transforms.close();
   }
-  if (!pictures) return { snapshots, figures: {} };
+  if (files.length) tracks.write(outDir, identity);
+  if (!pictures) return { snapshots, figures: {}, tracks };
   const firstSnap: Snapshot | undefined = files[0] ? readSnapshot(files[0]) : undefined;
   const run = await runFigures(runDir, outDir, snapshots, files, firstSnap, { frames: options.frames === true, movie: options.movie === true, pictures: pictureOptions });
+  if (firstSnap) Object.assign(run.figures, await haloFigures(tracks, firstSnap.meta));
   for (const [name, fig] of Object.entries(run.figures)) writeFigure(outDir, name, fig);
   if (options.frames || options.movie) {
     // 1D runs: the Husimi x–v image over the snapshots, as a second set of frames
@@ -180,5 +194,5 @@ export async function analyzeRun(runDir: string, outDir: string, options: RunAna
       if (husimi) writeFileAtomic(path.join(outDir, "frames", `husimi_${String(i).padStart(5, "0")}.png`), husimi.png);
     });
   }
-  return { snapshots, ...run };
+  return { snapshots, ...run, tracks };
 }

@@ -12,6 +12,7 @@ import { writeFileAtomic } from "../io/atomic.js";
 import { readSnapshot } from "../io/snapshot.js";
 import { analyzeRun, type RunAnalysisOptions } from "./analyze.js";
 import { diagnosticsSection } from "./diagnostics-section.js";
+import { haloSection } from "./halo-section.js";
 import { axisUnit } from "./snapshot-pictures.js";
 import { clockSentence, twinSentence, outflowSentence, modeSentence, esc, figure, STYLESHEET, table, type ClockEntry } from "./report-parts.js";
 
@@ -125,6 +126,7 @@ ${peaksTable(last?.dir, dims)}
 <h2 id="power">Power spectrum</h2>
 <div class="figs">${figure(first?.figures["power"], "At the start.")}${figure(last?.figures["power"], "At the end.")}</div>
 ${diagnosticsSection(first, last, { img: figure, esc })}
+${haloSection(last?.dir, analysis.tracks, analysis.figures, dims)}
 <h2 id="parameters">Parameters</h2>
 <pre>${esc(config)}</pre>
 </body></html>

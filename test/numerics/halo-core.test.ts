@@ -6,6 +6,8 @@
 import { beforeAll, describe, expect, it } from "vitest";
 import { Grid } from "../../src/grid/grid.js";
 import { coreRelationDensity, haloCore } from "../../src/diagnostics/halo-core.js";
+import { ballMass } from "../../src/diagnostics/halo-catalogue.js";
+import { schiveCoreMass } from "../../src/physics/cosmology/core-halo.js";
 import { relaxedSoliton } from "../helpers/soliton.js";
 
 let fine: { grid: Grid; psi: Float64Array; mass: number };
@@ -39,6 +41,13 @@ describe("soliton cores", () => {
     expect(rC / (1 / 64)).toBeGreaterThan(5);
   });
 
+  it("the core mass inside the fitted r_c: 0.2408 of the soliton's mass, as for the core profile of Schive, Chiueh & Broadhurst 2014, to 3%", () => {
+    // ∫₀¹ x²/(1 + 0.091x²)⁸ dx / ∫₀^∞ x²/(1 + 0.091x²)⁸ dx = 0.2407822 (computed independently by adaptive quadrature)
+    const core = haloCore(fine.grid, fine.psi, [0.5, 0.5, 0.5], 0.25);
+    if (core.status !== "fitted") throw new Error("not fitted");
+    expect(Math.abs(ballMass(fine.grid, fine.psi, [0.5, 0.5, 0.5], core.rC) / fine.mass / 0.2407822 - 1)).toBeLessThan(0.03);
+  });
+
   it("the same soliton on 16³ cells is unresolved, with an upper limit above the true core radius", () => {
     const rC = (2.67941 * 4 * Math.PI) / fine.mass;
     const { grid, psi } = coarse();
@@ -52,5 +61,22 @@ describe("soliton cores", () => {
   it("the core–halo relation: 1.9 Msun/pc³ at r_c = 1 kpc for m = 1e-23 eV, scaling as m⁻² r_c⁻⁴ (Schive, Chiueh & Broadhurst 2014)", () => {
     expect(coreRelationDensity(1, 1e-23)).toBeCloseTo(1.9e9, 0);
     expect(coreRelationDensity(0.5, 1e-22) / coreRelationDensity(1, 1e-23)).toBeCloseTo(16 / 100, 12);
+  });
+
+  it("the core-halo relation of Schive et al. (2014): M_c = 3.12e8 Msun at M_h = 1e12 Msun, z = 0, m = 1e-22 eV, with its a^(-1/2) zeta(z)^(1/6) and m^(-1) dependence", () => {
+    // computed independently from the published formula: M_c = (1/4) (M_h/M_0)^(1/3) M_0 at z = 0, M_0 = 4.4e7 Msun
+    const planck = { omegaMatter: 0.3153, omegaRadiation: 0 };
+    expect(Math.abs(schiveCoreMass(1e12, 1e-22, 0, planck) / 3.12e8 - 1)).toBeLessThan(2e-3);
+    expect(schiveCoreMass(1e12, 1e-22, 0, planck)).toBeCloseTo(0.25 * Math.cbrt(1e12 / 4.4e7) * 4.4e7, -1);
+    expect(schiveCoreMass(1e12, 1e-22, 0, undefined)).toBe(schiveCoreMass(1e12, 1e-22, 0, planck)); // a static box: z = 0
+    // z = 3: a^(-1/2) = 2 and zeta(z) = (18 pi^2 + 82x - 39x^2)/Om(z), x = Om(z) - 1, Om(z) = Om (1+z)^3/(Om (1+z)^3 + 1 - Om)
+    const zeta = (z: number) => {
+      const om = (0.3153 * (1 + z) ** 3) / (0.3153 * (1 + z) ** 3 + 0.6847);
+      const x = om - 1;
+      return (18 * Math.PI ** 2 + 82 * x - 39 * x * x) / om;
+    };
+    expect(schiveCoreMass(1e12, 1e-22, 3, planck) / schiveCoreMass(1e12, 1e-22, 0, planck)).toBeCloseTo(2 * (zeta(3) / zeta(0)) ** (1 / 6), 12);
+    // M_c ∝ m^(-3/2 · 2/3) = m^(-1) at fixed M_h
+    expect(schiveCoreMass(1e12, 2e-22, 0, planck) / schiveCoreMass(1e12, 1e-22, 0, planck)).toBeCloseTo(0.5, 12);
   });
 });

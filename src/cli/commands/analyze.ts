@@ -13,6 +13,12 @@ const PICTURE_OPTIONS: OptionTable<PictureFlags> = {
   sliceIndex: { flags: "--slice-index <i>", help: "3D: the slice's cell along that axis (default: through the densest cell)" },
 };
 
+/** The halo catalogue's options (analyze and report). */
+const HALO_OPTIONS: OptionTable<{ overdensity?: string; haloMinMass?: string }> = {
+  overdensity: { flags: "--overdensity <definition>", help: "halo definition: Δ times the critical density (e.g. 200c) or the mean matter density (e.g. 200m; in static boxes the box mean), or vir (Bryan & Norman 1998); default 200m" },
+  haloMinMass: { flags: "--halo-min-mass <mass>", help: 'smallest halo in the catalogue, e.g. "1e8 Msun" (default: a halo of 2 cells\' radius at the threshold)' },
+};
+
 export const analyzeSpec: CommandSpec<AnalyzeFlags, [string[]]> = {
   name: "analyze",
   summary: "diagnostics and pictures of run folders or snapshots: P(k), PDF, energies, peaks, profiles, core fits, slices, projections, a movie, energy split, vortices, granules, Husimi",
@@ -25,8 +31,7 @@ export const analyzeSpec: CommandSpec<AnalyzeFlags, [string[]]> = {
     diagnostics: { flags: "--diagnostics <list>", help: "field diagnostics, comma-separated: energy-split, vortices, granules, husimi, or none (default: all that apply)" },
     husimiWindow: { flags: "--husimi-window <length>", help: 'Husimi window η, e.g. "0.5 kpc" (default: √(L Δx/4π))' },
     husimiPoints: { flags: "--husimi-points <points>", help: '2D/3D: points for the Husimi momentum distribution, "x,y[,z];…" in kpc (default: the densest point)' },
-    overdensity: { flags: "--overdensity <definition>", help: "halo definition: Δ times the critical density (e.g. 200c) or the mean matter density (e.g. 200m; in static boxes the box mean), or vir (Bryan & Norman 1998); default 200m" },
-    haloMinMass: { flags: "--halo-min-mass <mass>", help: 'smallest halo in the catalogue, e.g. "1e8 Msun" (default: a halo of 2 cells\' radius at the threshold)' },
+    ...HALO_OPTIONS,
     ...PICTURE_OPTIONS,
   },
   run: async ([paths], flags) => (await import("../analyze-command.js")).analyzeCommand(paths, flags),
@@ -34,12 +39,14 @@ export const analyzeSpec: CommandSpec<AnalyzeFlags, [string[]]> = {
 
 export interface ReportFlags extends PictureFlags {
   out?: string;
+  overdensity?: string;
+  haloMinMass?: string;
 }
 
 export const reportSpec: CommandSpec<ReportFlags, [string]> = {
   name: "report",
   summary: "write a self-contained HTML report of a run (report.html in the run folder)",
   arguments: [{ name: "run", help: "a run folder", required: true }],
-  options: { out: { flags: "--out <file>", help: "the HTML file to write" }, ...PICTURE_OPTIONS },
+  options: { out: { flags: "--out <file>", help: "the HTML file to write" }, ...HALO_OPTIONS, ...PICTURE_OPTIONS },
   run: async ([run], flags) => (await import("../analyze-command.js")).reportCommand(run, flags),
 };
