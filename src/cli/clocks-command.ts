@@ -8,7 +8,7 @@ import fs from "node:fs";
 import path from "node:path";
 import { InputError } from "../core/errors.js";
 import { loadHdf5 } from "../io/h5.js";
-import { readSnapshot } from "../io/snapshot.js";
+import { readSnapshot, readSnapshotMeta } from "../io/snapshot.js";
 import { writeFileAtomic } from "../io/atomic.js";
 import { recordIfInside } from "../simulation/run-manifest.js";
 import { fileName, quoteValue } from "../core/sanitize.js";
@@ -26,9 +26,14 @@ import { describeStart, numberSpread } from "../quantum/gaussian-start.js";
 import { stationaryAdiabaticChi } from "../quantum/adiabatic.js";
 import { outflowRates, type OutflowRates } from "../quantum/outflow.js";
 import { YEAR_S } from "../physics/constants.js";
+import { trackedRegions, type TrackedRegions } from "./track-region.js";
 
 export interface ClocksFlags extends ModeStateFlags {
   region: string;
+  /** A track id of the run's track table: the region follows that halo. */
+  track?: string;
+  /** The track table (default: <run>/analysis/tracks.h5). */
+  trackTable?: string;
   center?: string;
   radius?: string;
   squeezingDb: string;
@@ -78,13 +83,27 @@ function length(name: string, text: string): number {
   }
 }
 
+/** The region that follows a tracked halo (--track), or undefined; refuses --track with another --region. */
+function trackOf(paths: readonly string[], files: readonly string[], flags: ClocksFlags): TrackedRegions | undefined {
+  if (flags.track === undefined) {
+    if (flags.trackTable !== undefined) throw new InputError("--track-table: only with --track ID");
+    return undefined;
+  }
+  if (flags.region !== "box") throw new InputError(`--track: the region follows the tracked halo; leave out --region ${quoteValue(flags.region)}`);
+  if (flags.center !== undefined) throw new InputError("--center: the tracked halo gives the centre; leave it out with --track");
+  return trackedRegions(paths, files, flags.track, flags.trackTable, flags.radius === undefined ? undefined : length("radius", flags.radius));
+}
+
 /** Run the sidecar over snapshots; returns the exit code. */
 export async function clocksCommand(paths: readonly string[], flags: ClocksFlags): Promise<number> {
   await loadHdf5();
-  const files = snapshotFiles(paths);
+  const given = snapshotFiles(paths);
   const db = Number(flags.squeezingDb);
   if (!(db < 0)) throw new InputError(`--squeezing-db: must be a negative number of dB, got ${flags.squeezingDb}`);
   if (!["box", "sphere", "cube", "densest"].includes(flags.region)) throw new InputError(`--region: must be box, sphere, cube or densest, got ${quoteValue(flags.region)}`);
+  const tracked = trackOf(paths, given, flags);
+  const files = tracked?.files ?? given;
+  const regionName = tracked ? `track ${flags.track} (a sphere of ${formatNumber(tracked.radiusKpc, 4)} kpc${snapComoving(files[0]!)} following it)` : flags.region;
   const rows: (string | number)[][] = [];
   let acc: ClockAccumulator | undefined;
   let t0S = 0;
@@ -95,7 +114,7 @@ export async function clocksCommand(paths: readonly string[], flags: ClocksFlags
     const snap = readSnapshot(file);
     const field = loadField(snap);
     const { units, grid } = field;
-    const region = regionOf(flags, field);
+    const region = tracked ? tracked.region(file, field) : regionOf(flags, field);
     const m = modeCoefficients({ grid, psi: field.psi, scaleFactor: field.scaleFactor, particleMass: units.particleMassKg / units.massKg, gravity: field.gravity, region });
     if (!(m.particles >= 1)) throw new InputError(`${file}: the mode holds N = ${m.particles.toPrecision(3)} particles (< 1); choose a larger region`);
     const tS = snap.meta.time * snapshotTimeUnit(file, snap.meta.timeUnit);
@@ -133,7 +152,7 @@ export async function clocksCommand(paths: readonly string[], flags: ClocksFlags
     };
   });
   const outDir = clocksOutDir(paths, flags);
-  const summary = writeClockFiles(paths, flags, files.length, rows, clocks, a, state as ModeState, db, outflow);
+  const summary = writeClockFiles(paths, flags, files.length, rows, clocks, a, state as ModeState, db, outflow, tracked);
   if (flags.json) {
     process.stdout.write(JSON.stringify(summary, null, 2) + "\n");
     return 0;
@@ -142,8 +161,9 @@ export async function clocksCommand(paths: readonly string[], flags: ClocksFlags
     (r) =>
       `  ${String(r[0]).padEnd(16)} t − t₀ = ${formatDuration((r[1] as number) - t0S).padEnd(11)} N|χ| = ${formatQuantity(r[6] as number, "/s").padEnd(17)} λ = ${formatQuantity(r[7] as number, "/s").padEnd(17)} squeezing ${formatQuantity(r[11] as number, "dB")}`,
   );
-  const clockText = formatClocks(clocks, db).replace("(whole-box mode):", `(${flags.region} mode, from snapshots; times counted from the first snapshot, t₀):`);
-  process.stdout.write(`${files.length} snapshots, mode: ${flags.region}, N = ${formatNumber(a.particles, 5)}\n${table.join("\n")}\n${clockText}${outflowLine(outflow)}`);
+  const clockText = formatClocks(clocks, db).replace("(whole-box mode):", `(${tracked ? `track ${flags.track}` : flags.region} mode, from snapshots; times counted from the first snapshot, t₀):`);
+  const skipped = tracked && given.length > files.length ? ` (the track exists in ${files.length} of the ${given.length} given)` : "";
+  process.stdout.write(`${files.length} snapshots${skipped}, mode: ${regionName}, N = ${formatNumber(a.particles, 5)}\n${table.join("\n")}\n${clockText}${outflowLine(outflow)}`);
   process.stdout.write(`wrote ${path.relative(process.cwd(), path.join(outDir, "snapshot-clocks.csv")) || "snapshot-clocks.csv"} and snapshot-clocks.json\n`);
   return 0;
 }
@@ -159,6 +179,7 @@ function writeClockFiles(
   state: ModeState,
   db: number,
   outflow: OutflowRates,
+  tracked: TrackedRegions | undefined,
 ): Record<string, unknown> {
   const outDir = clocksOutDir(paths, flags);
   fs.mkdirSync(outDir, { recursive: true });
@@ -173,7 +194,8 @@ function writeClockFiles(
   const final = a.state();
   const summary = {
     snapshots,
-    region: flags.region,
+    region: tracked ? "track" : flags.region,
+    ...(tracked ? { track: { id: Number(flags.track), radius_kpc: tracked.radiusKpc, radius_frame: "comoving in comoving runs", table: tracked.table } } : {}),
     particles_N: a.particles,
     squeezing_db_target: db,
     start: { ...st.start, description: describeStart(st.start), number_spread: numberSpread(a.particles, st.start) },
@@ -212,6 +234,11 @@ function outflowLine(outflow: OutflowRates): string {
   const what = g >= 0 ? "mass outflow" : "mass inflow (a negative loss rate)";
   const hint = g > 0 ? `; as a loss rate: --loss-rate "${g.toPrecision(4)}/s" or sidecar.loss_rate = "${g.toPrecision(4)}/s"` : "";
   return `  ${what} of the region, mean over the snapshots: ${formatQuantity(g, "/s")} = ${formatQuantity(g * YEAR_S, "/yr")}${hint}\n`;
+}
+
+/** ", comoving" for a snapshot of a comoving run. */
+function snapComoving(file: string): string {
+  return readSnapshotMeta(file).background.kind === "lcdm" ? ", comoving" : "";
 }
 
 /** Where the clock files go: --out, else the one folder given, else the working folder. */

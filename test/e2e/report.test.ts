@@ -159,7 +159,7 @@ describe.runIf(chromium !== undefined || process.env["CI"] === "true")("psibox r
       });
       page.on("pageerror", (e) => errors.push(e.message));
       await page.goto(`file://${file}`);
-      for (const id of ["clocks", "energies", "field", "power", "diagnostics", "parameters"]) expect(await page.locator(`#${id}`).count(), id).toBe(1);
+      for (const id of ["clocks", "energies", "field", "power", "diagnostics", "halos", "parameters"]) expect(await page.locator(`#${id}`).count(), id).toBe(1);
       const images = (await page.evaluate(`Array.from(document.images).map((e) => ({ ok: e.complete && e.naturalWidth > 0, w: e.naturalWidth }))`)) as { ok: boolean; w: number }[];
       expect(images.length).toBeGreaterThanOrEqual(7);
       expect(images.every((i) => i.ok && i.w > 600)).toBe(true);

@@ -13,7 +13,9 @@ export const clocksSpec: CommandSpec<ClocksFlags, [string[]]> = {
   options: {
     region: { flags: "--region <kind>", help: "box (whole box), sphere, cube or densest (a sphere around the densest cell)", default: "box" },
     center: { flags: "--center <lengths>", help: 'region centre, one length per axis, e.g. "10 kpc, 10 kpc"' },
-    radius: { flags: "--radius <length>", help: "sphere radius or cube half-width" },
+    radius: { flags: "--radius <length>", help: "sphere radius or cube half-width (with --track: the sphere's radius, comoving; default the halo's R at the first snapshot)" },
+    track: { flags: "--track <id>", help: "follow halo track ID of the run's track table (from psibox analyze): a sphere about the halo at every snapshot" },
+    trackTable: { flags: "--track-table <file>", help: "the track table for --track (default: <run>/analysis/tracks.h5)" },
     squeezingDb: SQUEEZING_DB,
     ...MODE_STATE_OPTIONS,
     out: { flags: "--out <dir>", help: "where to write snapshot-clocks.csv and .json (default: the run folder, or .)" },
