@@ -28,6 +28,8 @@ export type { EnergySplit, EnergyShell } from "./diagnostics/energy-split.js";
 export { findVortices } from "./diagnostics/vortices.js";
 export { findHalos, type Halo, type HaloSearch } from "./diagnostics/halo-catalogue.js";
 export { bryanNormanDelta, overdensityThreshold } from "./physics/cosmology/overdensity.js";
+export { HaloTracker, mainProgenitors, overlapMass, type TrackedHalo } from "./diagnostics/halo-tracks.js";
+export { schiveCoreMass } from "./physics/cosmology/core-halo.js";
 export { flowResolution } from "./diagnostics/flow-resolution.js";
 export type { VortexCensus, VortexPoint } from "./diagnostics/vortices.js";
 export { granuleStats } from "./diagnostics/granules.js";

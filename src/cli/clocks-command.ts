@@ -103,7 +103,7 @@ export async function clocksCommand(paths: readonly string[], flags: ClocksFlags
   if (!["box", "sphere", "cube", "densest"].includes(flags.region)) throw new InputError(`--region: must be box, sphere, cube or densest, got ${quoteValue(flags.region)}`);
   const tracked = trackOf(paths, given, flags);
   const files = tracked?.files ?? given;
-  const regionName = tracked ? `track ${flags.track} (a sphere of ${formatNumber(tracked.radiusKpc, 4)} kpc${snapComoving(files[0]!)} following it)` : flags.region;
+  const regionName = tracked ? `track ${flags.track} (a sphere of ${formatNumber(tracked.radiusKpc, 4)}${snapComoving(files[0]!)} kpc following it)` : flags.region;
   const rows: (string | number)[][] = [];
   let acc: ClockAccumulator | undefined;
   let t0S = 0;
@@ -236,9 +236,9 @@ function outflowLine(outflow: OutflowRates): string {
   return `  ${what} of the region, mean over the snapshots: ${formatQuantity(g, "/s")} = ${formatQuantity(g * YEAR_S, "/yr")}${hint}\n`;
 }
 
-/** ", comoving" for a snapshot of a comoving run. */
+/** " comoving" for a snapshot of a comoving run. */
 function snapComoving(file: string): string {
-  return readSnapshotMeta(file).background.kind === "lcdm" ? ", comoving" : "";
+  return readSnapshotMeta(file).background.kind === "lcdm" ? " comoving" : "";
 }
 
 /** Where the clock files go: --out, else the one folder given, else the working folder. */
