@@ -1,6 +1,8 @@
 #!/usr/bin/env node
-// Snapshot write and read speed for a 3D field (default 128³), from the built library.
+// Snapshot write and read speed for a 3D field (default 128³), from the built library, and the same file
+// read by h5py (psi_re and psi_im, as a Python user would) when a python3 with h5py is there.
 // Usage: node scripts/bench-io.mjs [cells-per-axis]
+import { spawnSync } from "node:child_process";
 import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
@@ -17,6 +19,25 @@ const meta = {
   massMsun: 1, config: "", configSha256: "",
 };
 const mb = psi.byteLength / 1e6;
+
+/** Median ms of h5py reading psi_re and psi_im of `file` (3 reads, page cache warm as for psibox), or undefined without h5py. */
+function h5pyReadMs(file) {
+  const script = [
+    "import sys, time, h5py",
+    "ts = []",
+    "for _ in range(3):",
+    "    t0 = time.perf_counter()",
+    "    with h5py.File(sys.argv[1], 'r') as f:",
+    "        re = f['psi_re'][...]; im = f['psi_im'][...]",
+    "    ts.append((time.perf_counter() - t0) * 1000)",
+    "print(sorted(ts)[1])",
+  ].join("\n");
+  for (const python of ["python3", "/usr/bin/python3"]) {
+    const r = spawnSync(python, ["-c", script, file], { encoding: "utf8" });
+    if (r.status === 0) return Number(r.stdout.trim());
+  }
+  return undefined;
+}
 for (const precision of ["float64", "float32"]) {
   const file = path.join(dir, `s-${precision}.h5`);
   const times = { write: [], read: [] };
@@ -30,7 +51,9 @@ for (const precision of ["float64", "float32"]) {
   }
   const med = (a) => a.sort((x, y) => x - y)[1];
   const size = fs.statSync(file).size / 1e6;
-  console.log(`${n}³ ${precision}: ${size.toFixed(0)} MB file; write ${(mb / (med(times.write) / 1000)).toFixed(0)} MB/s of field (with fsync), read ${(mb / (med(times.read) / 1000)).toFixed(0)} MB/s`);
+  const h5py = h5pyReadMs(file);
+  const ratio = h5py === undefined ? "" : `; h5py reads it at ${(mb / (h5py / 1000)).toFixed(0)} MB/s (psibox's read takes ${(med(times.read) / h5py).toFixed(2)}× h5py's time)`;
+  console.log(`${n}³ ${precision}: ${size.toFixed(0)} MB file; write ${(mb / (med(times.write) / 1000)).toFixed(0)} MB/s of field (with fsync), read ${(mb / (med(times.read) / 1000)).toFixed(0)} MB/s${ratio}`);
 }
 console.log(`peak resident memory: ${(process.resourceUsage().maxRSS / 1024).toFixed(0)} MB`);
 fs.rmSync(dir, { recursive: true, force: true });
