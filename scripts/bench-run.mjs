@@ -83,7 +83,8 @@ async function realStepMs(n, threads, every, steps) {
     const gaps = stamps.slice(1).map((t, i) => t - stamps[i]);
     // whole cadences: the mean over the gaps of the last `every`-multiple of steps (rows included at their rate)
     const k = every ?? run.output.timeseriesEvery;
-    const skip = k < gaps.length ? gaps.length % k : 0;
+    // the first cadence warms up (first touches of the undo and scratch grids, compilation); then whole cadences
+    const skip = k < gaps.length ? k + ((gaps.length - k) % k) : 0;
     const whole = gaps.slice(skip);
     const cpuPerStep = (cpu[cpu.length - 1] - cpu[skip]) / whole.length;
     return { ms: whole.reduce((a, b) => a + b, 0) / whole.length, cpu: cpuPerStep, every: k };
@@ -93,7 +94,7 @@ async function realStepMs(n, threads, every, steps) {
 }
 
 /** Per-step ms of the real run and of the bare step, and their ratio. */
-export async function realRunRow(n, threads, every, steps = 25) {
+export async function realRunRow(n, threads, every, steps = 41) {
   // the bare step before and after the run (the mean of both medians), to even out a machine's load drifting
   const before = bareStepMs(n, threads);
   const real = await realStepMs(n, threads, every, steps);
