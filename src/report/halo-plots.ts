@@ -69,15 +69,16 @@ function coreHaloPlot(rows: readonly TrackRow[], meta: SnapshotMeta, definition:
   const colour = { field: "snapshot", type: "nominal", title: null, sort: labels, scale: { domain: labels, range }, legend: { orient: "right" } };
   const x = { field: "Mh", type: "quantitative", title: `halo mass M (${definition}) [Msun]`, scale: { type: "log", domain: xa.domain, nice: false }, axis: { values: xa.values } };
   const y = { field: "Mc", type: "quantitative", title: "core mass M_c [Msun]", scale: { type: "log", domain: ya.domain, nice: false }, axis: { values: ya.values } };
-  const lines = cosmology && measured.length ? "lines: Schive et al. (2014) at each snapshot's z" : `line: Schive et al. (2014)${cosmology ? ` at z = ${formatNumber(rows.at(-1)!["z"]!, 3)}` : ", a = 1"}`;
-  const note = `${measured.length ? `${measured.length} resolved core${measured.length === 1 ? "" : "s"}` : "no resolved core yet"}; ${lines}, drawn, not fitted (contested)`;
+  const lines = cosmology && measured.length ? "dashed: Schive et al. (2014) at each snapshot's z" : `dashed: Schive et al. (2014)${cosmology ? ` at z = ${formatNumber(rows.at(-1)!["z"]!, 3)}` : ", a = 1"}`;
+  // two short lines: Vega sizes the figure by an estimate of the text's width, which runs long
+  const note = [`${measured.length ? `${measured.length} resolved core${measured.length === 1 ? "" : "s"}` : "no resolved core yet"}; ${lines},`, "drawn as published, never fitted (a contested relation)"];
   return renderVegaLite({
     $schema: SCHEMA,
     title: { text: "Core–halo relation", subtitle: note },
     ...PANEL,
     layer: [
       { data: { values: line }, mark: { type: "line", strokeDash: [6, 3], strokeWidth: 1.2 }, encoding: { x, y, color: colour, detail: { field: "snapshot" } } },
-      ...(measured.length ? [{ data: { values: measured }, mark: { type: "point", filled: true, size: 30 }, encoding: { x, y, color: colour } }] : []),
+      ...(measured.length ? [{ data: { values: measured }, mark: { type: "point", filled: true, size: 30, opacity: 1 }, encoding: { x, y, color: colour } }] : []),
     ],
   } as unknown as TopLevelSpec);
 }
@@ -107,7 +108,8 @@ function trackPlot(rows: readonly TrackRow[], dims: number): Promise<Figure> {
       x: { field: "t", type: "quantitative", title: `t [${unit.name}]`, scale: { nice: false, zero: false } },
       y: { field: "mass", type: "quantitative", title: "mass [Msun]", scale: { type: "log", domain: ya.domain, nice: false }, axis: { values: ya.values } },
       color: { field: "track", type: "nominal", title: null, scale: { domain: names, scheme: "tableau10" }, legend: { orient: "right" } },
-      strokeDash: { field: "quantity", type: "nominal", title: null, scale: { domain: ["halo M", "core M_c"], range: [[1, 0], [5, 3]] }, legend: dims === 3 ? { orient: "bottom", direction: "horizontal", symbolType: "stroke", symbolStrokeWidth: 1.5, symbolSize: 300 } : null },
+      // the subtitle says which is which (a legend of dash patterns draws no symbol in this renderer)
+      strokeDash: { field: "quantity", type: "nominal", title: null, scale: { domain: ["halo M", "core M_c"], range: [[1, 0], [5, 3]] }, legend: null },
       detail: { field: "quantity" },
     },
   } as unknown as TopLevelSpec);
