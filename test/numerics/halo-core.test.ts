@@ -64,7 +64,8 @@ describe("soliton cores", () => {
   });
 
   it("the core-halo relation of Schive et al. (2014): M_c = 3.12e8 Msun at M_h = 1e12 Msun, z = 0, m = 1e-22 eV, with its a^(-1/2) zeta(z)^(1/6) and m^(-1) dependence", () => {
-    // computed independently from the published formula: M_c = (1/4) (M_h/M_0)^(1/3) M_0 at z = 0, M_0 = 4.4e7 Msun
+    // computed independently from the published formula (recalled from memory; its a^(-1/2) M_h^(1/3) scaling is the
+    // paper's abstract): M_c = (1/4) (M_h/M_0)^(1/3) M_0 at z = 0, M_0 = 4.4e7 Msun
     const planck = { omegaMatter: 0.3153, omegaRadiation: 0 };
     expect(Math.abs(schiveCoreMass(1e12, 1e-22, 0, planck) / 3.12e8 - 1)).toBeLessThan(2e-3);
     expect(schiveCoreMass(1e12, 1e-22, 0, planck)).toBeCloseTo(0.25 * Math.cbrt(1e12 / 4.4e7) * 4.4e7, -1);

@@ -1,6 +1,7 @@
 /**
  * The core–halo mass relation of Schive et al. (2014, PRL 113, 261302),
- * found in their cosmological wave dark matter simulations:
+ * found in their cosmological wave dark matter simulations (the formula
+ * from memory; its scaling M_c ∝ a^{−1/2} M_h^{1/3} is their abstract's):
  *
  *   M_c = ¼ a^{−1/2} (ζ(z)/ζ(0))^{1/6} (M_h / M_min,0)^{1/3} M_min,0,
  *   M_min,0 = 4.4 × 10⁷ m₂₂^{−3/2} Msun,   m₂₂ = m / 10⁻²² eV,
