@@ -23,8 +23,13 @@
  */
 import type { ModeCoefficients } from "./mode.js";
 
-/** χ_ad from the coefficients of a stationary state (code units, 1/code time). */
+/**
+ * χ_ad from the coefficients of a stationary state (code units, 1/code time). Without self-gravity
+ * (χ = 0: gravity off) the equation is linear, μ does not depend on N and χ_ad = 0: the scaling
+ * argument above needs gravity.
+ */
 export function stationaryAdiabaticChi(c: Pick<ModeCoefficients, "omega" | "chi" | "particles">): number {
+  if (c.chi === 0) return 0;
   return (2 * c.omega) / c.particles + 2 * c.chi;
 }
 

@@ -5,7 +5,7 @@
 // scripts/adiabatic-ratio.mjs; the twin field of a run: test/e2e/twin.test.ts).
 import { describe, expect, it } from "vitest";
 import { Grid } from "../../src/grid/grid.js";
-import { IsolatedPoisson } from "../../src/fields/poisson.js";
+import { IsolatedPoisson, NoGravity } from "../../src/fields/poisson.js";
 import { relaxGroundState } from "../../src/ground-state/imaginary-time.js";
 import { modeCoefficients } from "../../src/quantum/mode.js";
 import { stationaryAdiabaticChi } from "../../src/quantum/adiabatic.js";
@@ -42,5 +42,19 @@ describe("adiabatic coefficient of the soliton", () => {
     // the stationary-state formula χ_ad = 2ω/N + 2χ (virial theorem on the grid) gives the same
     expect(error(coarse.stationary)).toBeLessThan(5e-3); // measured 1.9e-3
     expect(error(fine.stationary)).toBeLessThan(1e-4); // measured 2e-6
+  });
+
+  it("is zero without gravity: the free equation is linear, so a packet of (1 + e)N quanta has the same μ (computed independently)", () => {
+    const grid = new Grid([64], [1]);
+    const envelope = (x: number) => Math.exp(-((x - 0.5) ** 2) / 0.01);
+    const packet = (amp: number) => fillComplex(grid, (_x, _y, z) => [amp * envelope(z) * Math.cos(20 * z), amp * envelope(z) * Math.sin(20 * z)]);
+    const of = (amp: number) => modeCoefficients({ grid, psi: packet(amp), scaleFactor: 1, particleMass: 1e-6, gravity: new NoGravity(grid) });
+    const one = of(1);
+    const more = of(Math.sqrt(1.01));
+    expect(one.chi).toBe(0);
+    expect(one.omega).toBeGreaterThan(0);
+    // μ/ħ = ω + Nχ with χ = 0: the same for both packets to round-off, so dμ/dN = 0
+    expect(Math.abs(more.omega - one.omega)).toBeLessThan(1e-12 * one.omega);
+    expect(stationaryAdiabaticChi(one)).toBe(0);
   });
 });
