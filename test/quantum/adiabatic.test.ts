@@ -48,7 +48,7 @@ describe("adiabatic coefficient of the soliton", () => {
     const grid = new Grid([64], [1]);
     const envelope = (x: number) => Math.exp(-((x - 0.5) ** 2) / 0.01);
     const packet = (amp: number) => fillComplex(grid, (_x, _y, z) => [amp * envelope(z) * Math.cos(20 * z), amp * envelope(z) * Math.sin(20 * z)]);
-    const of = (amp: number) => modeCoefficients({ grid, psi: packet(amp), scaleFactor: 1, particleMass: 1e-6, gravity: new NoGravity(grid) });
+    const of = (amp: number) => modeCoefficients({ grid, psi: packet(amp), scaleFactor: 1, particleMass: 1e-6, gravity: new NoGravity() });
     const one = of(1);
     const more = of(Math.sqrt(1.01));
     expect(one.chi).toBe(0);
