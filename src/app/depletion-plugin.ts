@@ -13,11 +13,15 @@
  */
 import type { RunContext, RunPlugin, StartFacts, TangentFields } from "../simulation/plugin.js";
 import { SeededRandom } from "../math/random.js";
+import { clockRecord } from "./scrambling-clock.js";
+import { depletionClock } from "./depletion-clock.js";
 
 /** The [breakdown] options of the depletion (probes ≥ 1, seed). */
 export interface DepletionOptions {
   readonly probes: number;
   readonly seed: number;
+  /** The depletion clock rings at N_dep = fraction × N (0 < fraction ≤ 1). */
+  readonly fraction: number;
 }
 
 /** Σ ψ̄ f over cells (re, im), without the cell volume. */
@@ -64,23 +68,52 @@ export function depletedNorm(psi: Float64Array, a: Float64Array, b: Float64Array
   return cellVolume * (norm - (pr * pr + pi * pi) / mass);
 }
 
+/** What the plug-in keeps (and checkpoints): the measured depletion at the rows, and the run's N. */
+interface DepletionState {
+  particles: number;
+  times: number[];
+  depleted: number[];
+}
+
+/** The plug-in's part of summary.json, with the depletion clock in physical units. */
+function summaryOf(st: DepletionState, last: { n: number; error: number }, options: DepletionOptions, timeS: number, span: number) {
+  const target = options.fraction * st.particles;
+  return {
+    depleted_N: last.n,
+    depleted_N_error: last.error,
+    depleted_fraction: last.n / st.particles,
+    particles_N: st.particles,
+    probes: options.probes,
+    seed: options.seed,
+    depletion_clock: { ...clockRecord(depletionClock(st.times, st.depleted, target), timeS, span), fraction: options.fraction, target_N: target },
+  };
+}
+
 /** The plug-in. */
 export function depletionPlugin(options: DepletionOptions): RunPlugin {
   let fields: TangentFields | undefined;
   let cellVolume = 1;
+  let timeS = 1;
+  let span = 1;
   let last = { n: 0, error: 0 };
-  const measure = () => {
+  let s: DepletionState | undefined;
+  const measure = (t: number) => {
     const psi = Float64Array.from(fields!.reference());
     const samples = Array.from({ length: options.probes }, (_, j) => {
       const a = Float64Array.from(fields!.field(2 * j + 1));
       return depletedNorm(psi, a, fields!.field(2 * j + 2), cellVolume);
     });
-    const n = samples.reduce((s, x) => s + x, 0) / samples.length;
-    const variance = samples.length > 1 ? samples.reduce((s, x) => s + (x - n) ** 2, 0) / (samples.length - 1) : Number.NaN;
+    const n = samples.reduce((sum, x) => sum + x, 0) / samples.length;
+    const variance = samples.length > 1 ? samples.reduce((sum, x) => sum + (x - n) ** 2, 0) / (samples.length - 1) : Number.NaN;
     last = { n, error: Math.sqrt(variance / samples.length) };
+    if (s!.times.length === 0 || t > s!.times.at(-1)!) {
+      s!.times.push(t);
+      s!.depleted.push(n);
+    }
   };
   return {
     name: "depletion",
+    stateVersion: 1,
     tangents: 2 * options.probes,
     columns: ["depleted_N", "depleted_N_error"],
     attach(f) {
@@ -88,7 +121,10 @@ export function depletionPlugin(options: DepletionOptions): RunPlugin {
     },
     start(context: RunContext, facts: StartFacts) {
       cellVolume = context.grid.cellVolume;
+      timeS = context.scales.units.timeS;
+      span = context.endTime - context.startTime;
       if (facts.resumed) return;
+      s = { particles: facts.mass0 / context.particleMass, times: [], depleted: [] };
       const rng = new SeededRandom(options.seed);
       const psi = fields!.reference();
       for (let j = 0; j < options.probes; j++) {
@@ -98,15 +134,20 @@ export function depletionPlugin(options: DepletionOptions): RunPlugin {
         fields!.set(2 * j + 1, z);
         fields!.set(2 * j + 2, iz);
       }
+      measure(facts.t);
     },
     output(facts) {
       if (facts.kind !== "row") return;
-      measure();
+      measure(facts.t);
       return [last.n, last.error];
     },
-    stop() {
-      measure();
-      return { depletion: { depleted_N: last.n, depleted_N_error: last.error, probes: options.probes, seed: options.seed } };
+    stop(facts) {
+      measure(facts.t);
+      return { depletion: summaryOf(s!, last, options, timeS, span) };
+    },
+    save: () => s!,
+    restore(state) {
+      s = state as DepletionState;
     },
   };
 }

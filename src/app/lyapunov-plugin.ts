@@ -27,8 +27,7 @@
 import type { RunContext, RunPlugin, StartFacts, StepFacts, TangentFields } from "../simulation/plugin.js";
 import { jeansWavenumber, tangentSeed } from "../initial-conditions/tangent-seed.js";
 import { PC_M } from "../physics/constants.js";
-import { formatDuration } from "../core/format.js";
-import { scramblingClock } from "./scrambling-clock.js";
+import { clockRecord, rateClock, scramblingClock } from "./scrambling-clock.js";
 
 const KPC_M = 1e3 * PC_M;
 
@@ -69,20 +68,12 @@ function renormalise(fields: TangentFields): { perp2: number; mass: number } {
   return { perp2, mass };
 }
 
-/** The plug-in's part of summary.json: the rates, the integral and the scrambling clock, in physical units. */
+/** The plug-in's part of summary.json: the rates, the integral and the clocks of the rate, in physical units. */
 function summaryOf(st: LyapunovState, u: { timeS: number; kpc: number; span: number; seed: number }) {
-  const clock = scramblingClock(st.times, st.integrals, st.lnN);
   const finite = st.intervals > 0 ? st.lnSum / (st.tLast - st.t0) : Number.NaN;
   return {
-    scrambling_clock: {
-      verdict: clock.verdict,
-      time_s: clock.time === null ? null : clock.time * u.timeS,
-      time: clock.time === null ? "never" : formatDuration(clock.time * u.timeS),
-      rate_per_s: clock.rate === null ? null : clock.rate / u.timeS,
-      ln_N: st.lnN,
-      method: clock.method,
-      ratio_to_span: clock.time === null ? null : clock.time / u.span,
-    },
+    scrambling_clock: { ...clockRecord(scramblingClock(st.times, st.integrals, st.lnN), u.timeS, u.span), ln_N: st.lnN },
+    depletion_time_from_rate: { ...clockRecord(rateClock(st.times, st.integrals, st.lnN / 2, "∫λ dt = ½ ln N"), u.timeS, u.span), half_ln_N: st.lnN / 2 },
     rate_per_s: finite / u.timeS,
     last_interval_rate_per_s: st.lastRate / u.timeS,
     integral: st.lnSum,

@@ -20,7 +20,7 @@ export function configuredPlugins(run: ResolvedRun): RunPlugin[] {
     ...(run.output.vortexCensus ? [vortexCensusPlugin(run.grid.cells.length)] : []),
     flowResolutionPlugin(),
     ...(run.breakdown.tangent ? [lyapunovPlugin({ interval: run.breakdown.interval, seed: run.breakdown.seed })] : []),
-    ...(run.breakdown.probes > 0 ? [depletionPlugin({ probes: run.breakdown.probes, seed: run.breakdown.seed })] : []),
+    ...(run.breakdown.probes > 0 ? [depletionPlugin({ probes: run.breakdown.probes, seed: run.breakdown.seed, fraction: run.breakdown.depletionFraction })] : []),
   ];
 }
 

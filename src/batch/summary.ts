@@ -58,6 +58,23 @@ function modeColumns(clocks: Record<string, unknown> | undefined): SummaryRow {
   };
 }
 
+/** A measured clock of summary.json. */
+type Clock = { time_s?: number | null; verdict?: string } | undefined;
+
+/** The [breakdown] companion's measurements and clocks (summary.json's lyapunov and depletion), as columns (empty without it). */
+function breakdownColumns(summary: Record<string, unknown> | undefined): SummaryRow {
+  const ly = summary?.["lyapunov"] as { rate_per_s?: number; scrambling_clock?: Clock; depletion_time_from_rate?: Clock } | undefined;
+  const dep = summary?.["depletion"] as { depleted_fraction?: number; depletion_clock?: Clock } | undefined;
+  const clock = (name: string, c: Clock): SummaryRow => ({ [`${name}_s`]: c?.time_s ?? null, [`${name}_verdict`]: c?.verdict ?? null });
+  return {
+    lyapunov_rate_per_s: ly?.rate_per_s ?? null,
+    ...clock("scrambling_clock", ly?.scrambling_clock),
+    ...clock("depletion_from_rate_clock", ly?.depletion_time_from_rate),
+    depleted_fraction: dep?.depleted_fraction ?? null,
+    ...clock("depletion_clock", dep?.depletion_clock),
+  };
+}
+
 /** The status of one entry folder: "completed", "stopped", "failed", "interrupted" or "pending". */
 export function entryStatus(dir: string): { status: string; reason: string | null } {
   const summary = readJson(path.join(dir, "summary.json"));
@@ -104,7 +121,7 @@ export function buildSummary(sweepDir: string): { manifest: SweepManifest; rows:
       row[`${name}_reached`] = c ? c.reached : null;
       row[`${name}_method`] = c?.method ?? null;
     }
-    return row;
+    return { ...row, ...breakdownColumns(summary) };
   });
   return { manifest, rows };
 }

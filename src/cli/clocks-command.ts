@@ -20,7 +20,7 @@ import { PLANCK_AGE_S } from "../quantum/sidecar-report.js";
 import { formatClocks } from "./run-command.js";
 import { formatNumber, formatQuantity } from "../core/format.js";
 import type { ClockReport } from "../quantum/sidecar-report.js";
-import { PC_M } from "../physics/constants.js";
+import { parseRegion, REGION_KINDS } from "../config/region.js";
 import { readModeState, type ModeState, type ModeStateFlags } from "./mode-state-options.js";
 import { describeStart, numberSpread } from "../quantum/gaussian-start.js";
 import { stationaryAdiabaticChi } from "../quantum/adiabatic.js";
@@ -41,22 +41,11 @@ export interface ClocksFlags extends ModeStateFlags {
   json: boolean;
 }
 
-/** The --region, --center and --radius options in a field's code units. */
+/** The --region, --center and --radius options in a field's code units (the one region parser, config/region.ts). */
 function regionOf(flags: ClocksFlags, field: ReturnType<typeof loadField>): ModeRegion {
   const { units, grid } = field;
-  if (flags.region === "box") return { kind: "box" };
-  if (flags.radius === undefined) throw new InputError(`--radius: needed with --region ${flags.region}`);
-  const r = length("radius", flags.radius) / units.lengthM;
-  if (!(r > 0)) throw new InputError("--radius: must be positive");
-  if (flags.region === "densest") return { kind: "densest", radius: r };
-  if (flags.center === undefined) throw new InputError(`--center: needed with --region ${flags.region}, one length per axis separated by commas`);
-  const c = flags.center.split(",").map((t) => length("center", t.trim()) / units.lengthM);
-  if (c.length !== grid.dims) throw new InputError(`--center: give ${grid.dims} lengths, got ${c.length}`);
-  const kpcCode = (1e3 * PC_M) / units.lengthM;
-  c.forEach((v, i) => {
-    if (!(v >= 0 && v <= (grid.lengths[i] as number))) throw new InputError(`--center: lies outside the box on axis ${i + 1} (0 … ${((grid.lengths[i] as number) / kpcCode).toPrecision(4)} kpc)`);
-  });
-  return flags.region === "sphere" ? { kind: "sphere", center: c, radius: r } : { kind: "cube", center: c, halfWidth: r };
+  const text = { kind: flags.region, center: flags.center?.split(","), radius: flags.radius, names: { kind: "--region", center: "--center", radius: "--radius" } };
+  return parseRegion(text, { lengths: grid.lengths.slice(0, grid.dims), lengthM: units.lengthM }, (key, message) => new InputError(`${key}: ${message}`));
 }
 
 /** The snapshot files a list of paths names (run folders expand to their snapshots, in order). */
@@ -100,7 +89,7 @@ export async function clocksCommand(paths: readonly string[], flags: ClocksFlags
   const given = snapshotFiles(paths);
   const db = Number(flags.squeezingDb);
   if (!(db < 0)) throw new InputError(`--squeezing-db: must be a negative number of dB, got ${flags.squeezingDb}`);
-  if (!["box", "sphere", "cube", "densest"].includes(flags.region)) throw new InputError(`--region: must be box, sphere, cube or densest, got ${quoteValue(flags.region)}`);
+  if (!(REGION_KINDS as readonly string[]).includes(flags.region)) throw new InputError(`--region: must be box, sphere, cube or densest, got ${quoteValue(flags.region)}`);
   const tracked = trackOf(paths, given, flags);
   const files = tracked?.files ?? given;
   const regionName = tracked ? `track ${flags.track} (a sphere of ${formatNumber(tracked.radiusKpc, 4)}${snapComoving(files[0]!)} kpc following it)` : flags.region;

@@ -2,19 +2,26 @@
 import type { ResolvedRun } from "../config/resolve.js";
 import { OutputScales } from "../simulation/scales.js";
 import { formatNumber } from "../core/format.js";
-import { TANGENT_BYTES_PER_CELL } from "../config/resolve-breakdown.js";
+import { breakdownFields } from "../app/breakdown-memory.js";
+import { estimateMemory } from "../simulation/memory-estimate.js";
 
 
-/** The header line of the [breakdown] companion: what it costs. */
+/** The header line of the [breakdown] companion: what it measures and what it costs (extra fields, memory from the run's estimate). */
 function breakdownLine(run: ResolvedRun, scales: OutputScales): string | undefined {
   const b = run.breakdown;
-  const fields = (b.tangent ? 1 : 0) + 2 * b.probes;
-  if (fields === 0) return undefined;
-  const cells = run.grid.cells.reduce((p, n) => p * n, 1);
-  const mb = (fields * cells * TANGENT_BYTES_PER_CELL) / 1e6;
+  const extra = breakdownFields(b);
+  if (extra.length === 0) return undefined;
+  const base = { cells: run.grid.cells, gravity: run.grid.gravity, threads: run.integrator.threads, fft: run.integrator.fft };
+  const mb = (estimateMemory({ ...base, fields: extra }).total - estimateMemory(base).total) / 1e6;
   const every = b.interval === undefined ? "one dynamical time at the start" : scales.formatTime(b.interval);
-  const what = [...(b.tangent ? [`Lyapunov rate (renormalised every ${every})`] : []), ...(b.probes > 0 ? [`depletion (${b.probes} probes)`] : [])].join(" and ");
-  return `├─ breakdown    ${what} by tangent-linear fields: ${fields} extra field${fields > 1 ? "s" : ""}, +${formatNumber(mb)} MB, about ${fields + 1} times the work per step; seed ${b.seed}`;
+  const where = b.region.kind === "box" ? "" : ` in the ${b.region.kind} region`;
+  const twin = b.twinOffset > 0 ? `, twin run from ψ + ${formatNumber(b.twinOffset)}·u` : "";
+  const what = [
+    ...(b.tangent ? [`Lyapunov rate${where} (renormalised every ${every}${twin})`] : []),
+    ...(b.probes > 0 ? [`depletion (${b.probes} probes, clock at ${formatNumber(b.depletionFraction)} N)`] : []),
+  ].join(" and ");
+  const n = extra.length;
+  return `├─ breakdown    ${what} by tangent-linear fields: ${n} extra field${n > 1 ? "s" : ""}, +${formatNumber(mb)} MB, about ${n + 1} times the work per step; seed ${b.seed}`;
 }
 
 /** Describe a run in physical units. */

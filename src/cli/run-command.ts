@@ -9,6 +9,7 @@ import { fillFromSnapshot } from "../simulation/snapshot-start.js";
 import { resolveRun, type ResolvedRun } from "../config/resolve.js";
 import { silentReporter } from "../simulation/run.js";
 import { runSimulation } from "../app/run.js";
+import { checkBreakdownMemory } from "../app/breakdown-memory.js";
 import { takeRunFolder, type OwnedFolder } from "../simulation/run-folder.js";
 import { recordOwned } from "../simulation/run-manifest.js";
 import { fileName } from "../core/sanitize.js";
@@ -66,6 +67,7 @@ export async function runCommand(
     const config = checkConfig(fillFromSnapshot(applyOverrides(readTomlFile(configFile), flags.set)));
     if (config.sweep) throw new InputError(`${fileName(configFile)} describes a sweep ([sweep] section): run it with psibox sweep ${fileName(configFile)}`);
     run = resolveRun(config, path.basename(configFile).replace(/\.[^.]*$/, ""), process.cwd());
+    checkBreakdownMemory(run);
     owned = takeRunFolder(run.outputDir, { force: flags.force });
   }
   run = { ...run, outputDir: owned.dir };
@@ -124,8 +126,7 @@ async function runOwned(run: ResolvedRun, flags: RunFlags & { readonly initialOn
       process.stdout.write(`completed ${summary.steps} steps in ${summary.wall_time_s.toFixed(1)} s; outputs in ${where}\n`);
       const clocks = summary["clocks"] as readonly ClockReport[] | undefined;
       if (clocks) process.stdout.write(formatClocks(clocks, run.sidecar.squeezingDb));
-      const measured = (summary["lyapunov"] as { scrambling_clock?: MeasuredClock } | undefined)?.scrambling_clock;
-      if (measured) process.stdout.write(formatMeasuredClock(measured));
+      process.stdout.write(formatMeasuredClocks(summary));
       const twin = summary["adiabatic_twin"] as TwinSummary | undefined;
       if (twin) process.stdout.write(formatTwin(twin));
       const outflow = summary["outflow"] as OutflowSummary | undefined;
@@ -149,7 +150,7 @@ const clockTitle = (name: ClockReport["name"], squeezingDb: number): string =>
     "classical-breakdown": "classical breakdown, estimate (gravitational rate)",
   })[name];
 
-/** The scrambling clock of the measured Lyapunov rate, as in summary.json. */
+/** A measured breakdown clock, as in summary.json. */
 interface MeasuredClock {
   readonly verdict: "rang" | "projected" | "never";
   readonly time: string;
@@ -157,10 +158,21 @@ interface MeasuredClock {
   readonly ratio_to_span: number | null;
 }
 
-/** The measured clock's line: when it rang, or its projection, or never (with the reason). */
-export function formatMeasuredClock(c: MeasuredClock): string {
-  const when = c.verdict === "never" ? c.method : `${c.verdict === "rang" ? "at" : "projected at"} ${c.time} (${formatNumber(c.ratio_to_span!)} × the run)`;
-  return `measured classical breakdown (Lyapunov rate of the tangent-linear companion):\n  scrambling (∫λ dt = ln N)  ${when}\n`;
+/** The measured breakdown clocks of summary.json (the Lyapunov and depletion plug-ins' parts) as lines; empty without them. */
+export function formatMeasuredClocks(summary: Readonly<Record<string, unknown>>): string {
+  const ly = summary["lyapunov"] as { scrambling_clock: MeasuredClock; depletion_time_from_rate: MeasuredClock } | undefined;
+  const dep = summary["depletion"] as { depletion_clock: MeasuredClock & { fraction: number } } | undefined;
+  const clocks: [string, MeasuredClock][] = [
+    ...(dep ? [[`depletion, measured (N_dep = ${formatNumber(dep.depletion_clock.fraction)} N)`, dep.depletion_clock] as [string, MeasuredClock]] : []),
+    ...(ly ? ([["depletion, from the rate (∫λ dt = ½ ln N)", ly.depletion_time_from_rate], ["scrambling (∫λ dt = ln N)", ly.scrambling_clock]] as [string, MeasuredClock][]) : []),
+  ];
+  if (clocks.length === 0) return "";
+  const width = Math.max(...clocks.map(([t]) => t.length));
+  const lines = clocks.map(([title, c]) => {
+    const when = c.verdict === "never" ? c.method : `${c.verdict === "rang" ? "at" : "projected at"} ${c.time} (${formatNumber(c.ratio_to_span!)} × the run)`;
+    return `  ${title.padEnd(width)}  ${when}`;
+  });
+  return `measured classical breakdown (tangent-linear companion):\n${lines.join("\n")}\n`;
 }
 
 /** One line per clock: when it rang (or will), and how that compares with the run and the universe. */

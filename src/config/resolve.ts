@@ -95,7 +95,7 @@ export function resolveRun(config: CheckedConfig, name: string, cwd: string): Re
     throw new ConfigError("sidecar.squeezing_db", `must be negative (a variance below the coherent state's), got ${config.sidecar.squeezing_db}`);
   }
   const sidecar = resolveSidecar(config, units.timeS, ctx, { lengths, lengthM: units.lengthM });
-  const breakdown = resolveBreakdown(config, units, ctx, endTime - startTime, cells.reduce((p, n) => p * n, 1));
+  const breakdown = resolveBreakdown(config, units, ctx, endTime - startTime, lengths);
   return {
     name,
     outputDir,

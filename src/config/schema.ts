@@ -254,6 +254,16 @@ export const breakdownSchema = z.strictObject({
   probes: z.number().default(0),
   /** Seed of the companion's band-limited start and of the probes' noise. @default 1 */
   seed: z.number().default(1),
+  /** The depletion clock rings when the measured N_dep reaches this fraction of N, in (0, 1]. @default 0.1 */
+  depletion_fraction: z.number().default(0.1),
+  /** Where the Lyapunov rate is measured: box, sphere, cube or densest (a sphere around the densest cell at the start). @default "box" */
+  region: z.string().default("box"),
+  /** The region's centre, one length per axis, e.g. ["10 kpc", "10 kpc"] (sphere, cube). */
+  region_center: z.array(z.string()).optional(),
+  /** The region's radius (a cube's half-width), e.g. "2 kpc" (sphere, cube, densest). */
+  region_radius: z.string().optional(),
+  /** Cross-check: a twin nonlinear run from ψ + e·u with the tangent's start u, e relative to ‖ψ‖, from 1e-12 to 1e-3 (0: none). @default 0 */
+  twin_offset: z.number().default(0),
 });
 
 const sweepRange = z.strictObject({

@@ -10,7 +10,8 @@
  *   start (linear in X across a step);
  * - phase diffusion: |⟨b⟩|²/N = 1/e, at |X| = 2 asin(1/(2√N)) ≈ 1/√N;
  * - classical breakdown: B = ln N (Ehrenfest time of chaotic dynamics,
- *   Berman & Zaslavsky 1978), with λ = √(4πG ρ_eff).
+ *   Berman & Zaslavsky 1978), with λ the estimate of gravity-rate.ts
+ *   (√(4πG ρ_eff), f H in expanding boxes, 0 without gravity: never).
  * A clock that has not rung by the end is projected with the last rate.
  */
 import { formatNumber } from "../core/format.js";
@@ -70,6 +71,8 @@ export class ClockAccumulator {
   /** ∫χ_ad dt (0 while no adiabatic coefficient is known). */
   chiAdiabaticIntegral = 0;
   breakdown = 0;
+  /** How λ of the breakdown estimate is found (its method text). */
+  breakdownLabel = "estimate: ∫λ dt = ln N with λ = √(4πG ρ_eff)";
   /** The open-system integrals with X (frozen mode) and with ∫χ_ad dt (adiabatic). */
   integrals: KerrIntegrals = closedIntegrals(0);
   integralsAdiabatic: KerrIntegrals = closedIntegrals(0);
@@ -219,7 +222,7 @@ export class ClockAccumulator {
     };
     const x = Math.abs(this.chiIntegral);
     const onset = project("squeezing-onset", this.xOnset, x, chiRate, "N|∫χ dt| = 1, i.e. t ≈ 1/(N|χ|)");
-    const breakdown = project("classical-breakdown", this.lnN, this.breakdown, this.rates.lambda, "estimate: ∫λ dt = ln N with λ = √(4πG ρ_eff)");
+    const breakdown = project("classical-breakdown", this.lnN, this.breakdown, this.rates.lambda, this.breakdownLabel);
     const adWhat = `|⟨b⟩|²/N = 1/e with the adiabatic coefficient χ_ad = (1/ħ) dμ/dN${adiabatic ? `, ${adiabatic.how}` : ""}`;
     if (this.simple) {
       return [

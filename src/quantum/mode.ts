@@ -18,16 +18,13 @@
  * its own gravity, not that of its periodic images or of the rest of the box.
  */
 import type { Grid } from "../grid/grid.js";
+import type { Region } from "../config/region.js";
 import { ComplexFft } from "../fields/fft.js";
 import { IsolatedPoisson, type PoissonSolver } from "../fields/poisson.js";
 import { kineticEnergy, potentialEnergy } from "../diagnostics/energies.js";
 
-/** Where the mode lives. Lengths in code units, one centre coordinate per simulated axis. */
-export type ModeRegion =
-  | { readonly kind: "box" }
-  | { readonly kind: "sphere"; readonly center: readonly number[]; readonly radius: number }
-  | { readonly kind: "cube"; readonly center: readonly number[]; readonly halfWidth: number }
-  | { readonly kind: "densest"; readonly radius: number };
+/** Where the mode lives (config/region.ts parses it). Lengths in code units, one centre coordinate per simulated axis. */
+export type ModeRegion = Region;
 
 /** Mode coefficients in code units. */
 export interface ModeCoefficients {

@@ -9,6 +9,7 @@ import { writeFileAtomic } from "../io/atomic.js";
 import type { RunContext, RunPlugin, StartFacts, StepFacts } from "../simulation/plugin.js";
 import { runPaths } from "../simulation/outputs.js";
 import { SidecarTracker } from "./tracker.js";
+import { gravityRate } from "./gravity-rate.js";
 import { ConfigError } from "../core/errors.js";
 import { COHERENT, validateStart, type GaussianStart } from "./gaussian-start.js";
 import type { ModeModel } from "./clocks.js";
@@ -70,7 +71,7 @@ export function sidecarPlugin(settings: SidecarSettings): RunPlugin {
       const start = { sums: facts.sums.moments!, kineticTilde: facts.sums.kinetic!, a: facts.a };
       const N = facts.mass0 / ctx.particleMass;
       const twinStart = twin ? { excess: twinExcess, overlap: facts.sums.overlaps![0]! } : undefined;
-      tracker = new SidecarTracker(ctx.particleMass, N, squeezingDb, ctx.startTime, ctx.grid.cellVolume, start, modelOf(settings, N), twinStart);
+      tracker = new SidecarTracker(ctx.particleMass, N, squeezingDb, ctx.startTime, ctx.grid.cellVolume, start, modelOf(settings, N), twinStart, gravityRate(ctx.gravity, ctx.background));
       if (saved) tracker.restore(saved);
     },
     afterStep(facts: StepFacts) {

@@ -7,6 +7,7 @@
  * so it knows nothing of the integrator.
  */
 import { ClockAccumulator, CLOSED_COHERENT, type ClockRates, type ClockResult, type ModeModel } from "./clocks.js";
+import { DENSITY_RATE, type GravityRate } from "./gravity-rate.js";
 import { stationaryAdiabaticChi, TwinPhaseTracker, type TwinState } from "./adiabatic.js";
 
 /** Grid sums of a field (code units, without the cell volume): Σ|ψ|², Σ|ψ|⁴, Σ|ψ|²φ. */
@@ -17,7 +18,7 @@ export interface ModeSums {
 }
 
 /** Whole-box rates from the field's sums, with ½∫|∇ψ|² dV given as `kineticTilde`. */
-function ratesOf(sums: ModeSums, cellVolume: number, a: number, particleMass: number, kineticTilde: number): { rates: ClockRates; mass: number } {
+function ratesOf(sums: ModeSums, cellVolume: number, a: number, particleMass: number, kineticTilde: number, gravity: GravityRate): { rates: ClockRates; mass: number } {
   const M = sums.rho * cellVolume;
   const omegaTilde = kineticTilde / M;
   const chiTilde = (2 * (0.5 * sums.rhoPhi * cellVolume) * particleMass) / (M * M);
@@ -26,7 +27,7 @@ function ratesOf(sums: ModeSums, cellVolume: number, a: number, particleMass: nu
     rates: {
       omegaTilde,
       chiTilde,
-      lambda: Math.sqrt(sums.rho2 / sums.rho / (a * a * a)),
+      lambda: gravity.rate(sums.rho2 / sums.rho / (a * a * a), a),
       // χ_ad = 2ω/N + 2χ, the stationary-state dμ/dN (adiabatic.ts), at the current a
       chiAdiabatic: stationaryAdiabaticChi({ omega: omegaTilde / (a * a), chi: chiTilde / a, particles: M / particleMass }),
     },
@@ -46,6 +47,8 @@ export class SidecarTracker {
   readonly clocks: ClockAccumulator;
   private readonly particleMass: number;
   private readonly cellVolume: number;
+  /** The rate of the gravitational breakdown estimate. */
+  private readonly gravity: GravityRate;
   rates: ClockRates;
   /** The twin field's phase tracker, when the run has one: χ_ad is then measured, not the stationary formula. */
   readonly twin: TwinPhaseTracker | undefined;
@@ -69,12 +72,14 @@ export class SidecarTracker {
     start: { sums: ModeSums; kineticTilde: number; a: number },
     model: ModeModel = CLOSED_COHERENT,
     twin?: TwinStart,
+    gravity: GravityRate = DENSITY_RATE,
   ) {
+    this.gravity = gravity;
     this.particleMass = particleMass;
     this.cellVolume = cellVolume;
     this.t = startTime;
     this.a = start.a;
-    this.rates = ratesOf(start.sums, cellVolume, start.a, particleMass, start.kineticTilde).rates;
+    this.rates = ratesOf(start.sums, cellVolume, start.a, particleMass, start.kineticTilde, gravity).rates;
     this.stationaryChiAdiabatic = this.rates.chiAdiabatic as number;
     if (twin) {
       this.twin = new TwinPhaseTracker(twin.excess, particles);
@@ -83,11 +88,12 @@ export class SidecarTracker {
       this.rates = { ...this.rates, chiAdiabatic: this.rates.chiTilde / start.a };
     }
     this.clocks = new ClockAccumulator(particles, squeezingDb, startTime, this.rates, model);
+    this.clocks.breakdownLabel = gravity.label;
   }
 
   /** After a step to time t (scale factor a) with factors D and K (and the twin's overlap): measure and advance. */
   afterStep(step: { t: number; a: number; drift: number; kick: number; sums: ModeSums; midKineticTilde: number; overlap?: readonly [number, number] }): void {
-    const measured = ratesOf(step.sums, this.cellVolume, step.a, this.particleMass, step.midKineticTilde);
+    const measured = ratesOf(step.sums, this.cellVolume, step.a, this.particleMass, step.midKineticTilde, this.gravity);
     let rates = measured.rates;
     this.stationaryChiAdiabatic = rates.chiAdiabatic as number;
     let increment: number | undefined;

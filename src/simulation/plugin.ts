@@ -51,6 +51,8 @@ export interface CompanionField {
 export interface RunContext {
   readonly grid: Grid;
   readonly background: Background;
+  /** The run has gravity (grid.gravity is not "none"). */
+  readonly gravity: boolean;
   /** Code → physical units of the outputs. */
   readonly scales: OutputScales;
   /** The run's particle mass in code mass units. */

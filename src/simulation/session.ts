@@ -106,7 +106,7 @@ export function openSession(run: ResolvedRun, options: RunOptions): RunSession {
     reporter.warn(text);
     writer.log(`warning: ${text}`);
   };
-  const context: RunContext = { grid, background, scales, particleMass: run.particleMassKg / scales.units.massKg, startTime, endTime, outputDir: run.outputDir, warn };
+  const context: RunContext = { grid, background, gravity: run.grid.gravity !== "none", scales, particleMass: run.particleMassKg / scales.units.massKg, startTime, endTime, outputDir: run.outputDir, warn };
   const expanding = background.kind !== "static";
   return { run, options, reporter, scales, grid, background, gravity, expanding, paths, writer, stepper, plugins, context, wallStart, memory };
 }

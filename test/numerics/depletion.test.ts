@@ -73,17 +73,25 @@ describe("exact Bogoliubov depletion of one mode pair", () => {
 });
 
 const KPC = 1e3 * PC_M;
+
+/** The depletion clock in summary.json. */
+interface DepletionClock {
+  readonly verdict: string;
+  readonly time_s: number | null;
+  readonly rate_per_s: number | null;
+}
 const MYR_S = 3.15576e13;
 let work: string;
 beforeAll(() => (work = makeWork("depletion")));
 afterAll(() => removeWork(work));
 
 /** Σ_k n_k(t) over the modes k = 2πj/L, j = −n/2 … n/2 − 1, j ≠ 0, of a uniform box (SI inputs). */
-function boxDepletion(rhoMsunKpc3: number, massEv: number, boxKpc: number, cells: number, tS: number): { total: number; unstable: number } {
+function boxDepletion(rhoMsunKpc3: number, massEv: number, boxKpc: number, cells: number, tS: number): { total: number; unstable: number; growth: number } {
   const m = massEv * KG_PER_EV;
   const rho = (rhoMsunKpc3 * M_SUN_KG) / KPC ** 3;
   let total = 0;
   let unstable = 0;
+  let growth = 0;
   for (let j = -cells / 2; j < cells / 2; j++) {
     if (j === 0) continue;
     const k = (2 * Math.PI * j) / (boxKpc * KPC);
@@ -91,8 +99,9 @@ function boxDepletion(rhoMsunKpc3: number, massEv: number, boxKpc: number, cells
     const u = (-4 * Math.PI * G_SI * m * rho) / (k * k);
     total += pairDepletion(eps, u, tS, HBAR_J_S);
     if (eps * (eps + 2 * u) < 0) unstable++;
+    growth = Math.max(growth, Math.sqrt(Math.max(0, -eps * (eps + 2 * u))) / HBAR_J_S);
   }
-  return { total, unstable };
+  return { total, unstable, growth };
 }
 
 describe("Hutchinson's estimate of the depletion on the grid", () => {
@@ -110,13 +119,23 @@ describe("Hutchinson's estimate of the depletion on the grid", () => {
       const run = resolveRun(loadConfig(writeIn(work, `${dir}.toml`, text)), dir, work);
       prepareOutputDir(run.outputDir, true);
       const summary = await runSimulation(run);
-      const d = summary["depletion"] as { depleted_N: number; depleted_N_error: number; probes: number };
+      const d = summary["depletion"] as { depleted_N: number; depleted_N_error: number; probes: number; particles_N: number; depletion_clock: DepletionClock };
       const exact = boxDepletion(rho, 1e-22, 10, 64, duration * MYR_S);
       expect(exact.unstable).toBe(dir === "unstable" ? 4 : 0);
       expect(d.depleted_N_error).toBeLessThan(0.5 * exact.total); // a meaningful error bar
       expect(Math.abs(d.depleted_N - exact.total)).toBeLessThan(3 * d.depleted_N_error);
       const rows = readCsv(path.join(run.outputDir, "timeseries.csv"));
       expect(Number(rows[0]!["depleted_N"])).toBe(0); // no depletion at the start
+      // the depletion clock (N_dep = 0.1 N, N ≈ 1e96: far beyond the run): projected at the growth rate of the
+      // unstable pairs' sinh², 2γ_max, for the unstable box; never for the stable one, whose depletion oscillates
+      const clock = d.depletion_clock;
+      if (dir === "stable") expect(clock.verdict).toBe("never");
+      else {
+        expect(clock.verdict).toBe("projected");
+        expect(Math.abs(clock.rate_per_s! / (2 * exact.growth) - 1)).toBeLessThan(0.05);
+        const projected = duration * MYR_S + Math.log((0.1 * d.particles_N) / d.depleted_N) / clock.rate_per_s!;
+        expect(Math.abs(clock.time_s! / projected - 1)).toBeLessThan(1e-9);
+      }
     });
   }
 });

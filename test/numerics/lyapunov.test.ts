@@ -94,11 +94,15 @@ describe("Lyapunov rate of the split-step map", () => {
       "soliton",
       `[grid]\ncells = [16, 16]\nbox = "2.5 kpc"\ngravity = "isolated"\n[particle]\nmass = "1e-22 eV"\n[span]\nduration = "400 Myr"\n` +
         `[initial]\nkind = "ground-state"\nmass = "1e9 Msun"\nguess_width = "0.3 kpc"\n[integrator]\nsafety = 0.5\n` +
-        `[output]\ntime_unit = "Myr"\ntimeseries_every = 20\n[sidecar]\nenabled = false\n[breakdown]\ntangent = true\n`,
+        `[output]\ntime_unit = "Myr"\ntimeseries_every = 20\n[sidecar]\nenabled = false\n[breakdown]\ntangent = true\nprobes = 1\n`,
     );
-    const ly = (await runIt(run))["lyapunov"] as { rate_per_s: number; intervals: number; interval_s: number; scrambling_clock: Clock };
+    const summary = await runIt(run);
+    const ly = summary["lyapunov"] as { rate_per_s: number; intervals: number; interval_s: number; scrambling_clock: Clock; depletion_time_from_rate: Clock };
     expect(ly.intervals).toBeGreaterThan(40);
+    // every measured clock says never: scrambling, the rate's depletion time and the measured depletion
     expect(ly.scrambling_clock.verdict).toBe("never");
+    expect(ly.depletion_time_from_rate.verdict).toBe("never");
+    expect((summary["depletion"] as { depletion_clock: Clock }).depletion_clock.verdict).toBe("never");
     expect(ly.scrambling_clock.time_s).toBeNull();
     const rates = readCsv(path.join(run.outputDir, "timeseries.csv")).map((r) => Number(r["lyapunov_rate_per_s"])).filter(Number.isFinite);
     // (measured: the finite-time rate peaks at 2.6e-16/s near 95 Myr, as the seed's share of the oscillating modes
@@ -107,16 +111,24 @@ describe("Lyapunov rate of the split-step map", () => {
     expect(Math.abs(ly.rate_per_s) * ly.interval_s).toBeLessThan(0.05);
   });
 
-  it("a free field (no gravity) is not chaotic: every interval's rate is 0 to round-off", async () => {
+  it("a free field (no gravity) is not chaotic: every interval's rate is 0 to round-off, and every clock says never", async () => {
     const run = resolved(
       "free",
       `[grid]\ncells = [32, 32]\nbox = "10 kpc"\ngravity = "none"\n[particle]\nmass = "1e-22 eV"\n[span]\nduration = "200 Myr"\n` +
         `[initial]\nkind = "plane-wave"\nmean_density = "1e7 Msun/kpc^3"\ncontrast = 0.5\nmode = [1, 2]\n[output]\ntime_unit = "Myr"\n` +
-        `[sidecar]\nenabled = false\n[breakdown]\ntangent = true\ninterval = "20 Myr"\n`,
+        `[breakdown]\ntangent = true\ninterval = "20 Myr"\nprobes = 1\n`,
     );
-    const ly = (await runIt(run))["lyapunov"] as { rate_per_s: number; integral: number; intervals: number; scrambling_clock: Clock };
+    const summary = await runIt(run);
+    const ly = summary["lyapunov"] as { rate_per_s: number; integral: number; intervals: number; scrambling_clock: Clock };
     expect(ly.intervals).toBe(10);
     expect(ly.scrambling_clock.verdict).toBe("never");
+    // the sidecar's gravitational estimate says never without gravity, and so does the measured depletion (V = 0)
+    const estimate = (summary["clocks"] as { name: string; time_s: number | null; method: string }[]).find((c) => c.name === "classical-breakdown")!;
+    expect(estimate.time_s).toBeNull();
+    expect(estimate.method).toMatch(/^estimate: gravity is off/);
+    const depletion = summary["depletion"] as { depleted_N: number; depletion_clock: Clock };
+    expect(depletion.depletion_clock.verdict).toBe("never");
+    expect(Math.abs(depletion.depleted_N)).toBeLessThan(1e-9);
     expect(Math.abs(ly.integral)).toBeLessThan(1e-10);
   });
 });
