@@ -11,7 +11,7 @@
  * statistical error is the probes' standard error s/√p. The sums run in
  * JavaScript in a fixed order, so they do not depend on the thread count.
  */
-import type { RunContext, RunPlugin, StartFacts, TangentFields } from "../simulation/plugin.js";
+import type { RunContext, RunPlugin, StartFacts, PluginFields } from "../simulation/plugin.js";
 import { SeededRandom } from "../math/random.js";
 import { clockRecord } from "./scrambling-clock.js";
 import { depletionClock } from "./depletion-clock.js";
@@ -91,7 +91,7 @@ function summaryOf(st: DepletionState, last: { n: number; error: number }, optio
 
 /** The plug-in. */
 export function depletionPlugin(options: DepletionOptions): RunPlugin {
-  let fields: TangentFields | undefined;
+  let fields: PluginFields | undefined;
   let cellVolume = 1;
   let timeS = 1;
   let span = 1;
@@ -114,7 +114,7 @@ export function depletionPlugin(options: DepletionOptions): RunPlugin {
   return {
     name: "depletion",
     stateVersion: 1,
-    tangents: 2 * options.probes,
+    fields: Array.from({ length: 2 * options.probes }, () => ({ kind: "tangent" }) as const),
     columns: ["depleted_N", "depleted_N_error"],
     attach(f) {
       fields = f;

@@ -12,6 +12,10 @@
  *   directions, the global phase iψ and the norm ψ, by
  *   dψ ← dψ − ψ⟨ψ|dψ⟩/⟨ψ|ψ⟩, take d = ‖dψ‖, add ln(d/d₀) to the sum and
  *   rescale dψ to d₀ (‖dψ‖² = ∫|ψ|² dV, the reference's mass);
+ * - with a region (`breakdown.region`, parsed as the regions of `psibox
+ *   clocks`): the growth is that of the norm in the region's window w,
+ *   ‖w dψ‖, from just after one renormalisation to the next (the rescaling
+ *   still uses the whole norm, so no part of dψ outgrows the doubles);
  * - the finite-time rate λ_T = Σ ln(dᵢ/d₀)/(t − t₀), the rate of the last
  *   interval, and ∫λ dt = Σ ln(dᵢ/d₀);
  * - at the end, the scrambling clock ∫λ dt = ln N (app/scrambling-clock.ts),
@@ -24,10 +28,14 @@
  * at the same times and repeats the uninterrupted run bit for bit (at the
  * same thread count: the overlaps are sums).
  */
-import type { RunContext, RunPlugin, StartFacts, StepFacts, TangentFields } from "../simulation/plugin.js";
+import type { RunContext, RunPlugin, StartFacts, StepFacts, PluginFields } from "../simulation/plugin.js";
 import { jeansWavenumber, tangentSeed } from "../initial-conditions/tangent-seed.js";
 import { PC_M } from "../physics/constants.js";
 import { clockRecord, rateClock, scramblingClock } from "./scrambling-clock.js";
+import type { Region } from "../config/region.js";
+import type { Grid } from "../grid/grid.js";
+import { regionWeights } from "../quantum/mode.js";
+import { renormaliseTwin, twinStart, twinStartNorm, type TwinState } from "./twin-run.js";
 
 const KPC_M = 1e3 * PC_M;
 
@@ -36,6 +44,10 @@ export interface LyapunovOptions {
   /** Renormalisation interval (code time); undefined: one dynamical time at the start. */
   readonly interval: number | undefined;
   readonly seed: number;
+  /** Where the perturbation's growth is measured (default: the whole box). */
+  readonly region?: Region;
+  /** The twin nonlinear run's relative offset e (0 or absent: no twin). */
+  readonly twinOffset?: number;
 }
 
 /** What the plug-in keeps (and checkpoints). */
@@ -56,16 +68,42 @@ interface LyapunovState {
   /** Times and ∫λ dt at the start and at every renormalisation. */
   times: number[];
   integrals: number[];
+  /** With a region: ‖w dψ‖² right after the last renormalisation, and the centre of a "densest" region. */
+  w0sq?: number;
+  center?: number[];
+  /** The twin nonlinear run, when there is one. */
+  twin?: TwinState;
+}
+
+/** ‖w f‖² = Σ w²|f|² ΔV, the perturbation's norm in the region's window. */
+function windowedNorm(w: Float64Array, f: Float64Array, cellVolume: number): number {
+  let sum = 0;
+  for (let p = 0; p < w.length; p++) sum += w[p]! * w[p]! * (f[2 * p]! * f[2 * p]! + f[2 * p + 1]! * f[2 * p + 1]!);
+  return sum * cellVolume;
+}
+
+/** The region's window (a "densest" region around `center`, or ψ's densest cell now). */
+function windowOf(grid: Grid, region: Exclude<Region, { kind: "box" }>, psi: Float64Array, center?: number[]): { w: Float64Array; center?: number[] } {
+  if (region.kind === "densest" && center) return { w: regionWeights(grid, { kind: "sphere", center, radius: region.radius }, psi).w, center };
+  return regionWeights(grid, region, psi);
 }
 
 /** Project dψ off ψ and iψ, and rescale it to ‖dψ‖² = mass; returns ‖dψ⊥‖² before the rescale. */
-function renormalise(fields: TangentFields): { perp2: number; mass: number } {
+function renormalise(fields: PluginFields): { perp2: number; mass: number } {
   const o = fields.overlap(1);
   const mass = fields.mass();
   const perp2 = o.norm2 - (o.re * o.re + o.im * o.im) / mass;
   if (!(perp2 > 0) || !Number.isFinite(perp2)) throw new Error(`the tangent field's norm is ${perp2} after projection; it cannot be renormalised`);
   fields.combine(1, Math.sqrt(mass / perp2), o.re / mass, o.im / mass);
   return { perp2, mass };
+}
+
+/** The region in summary.json: its kind and, in kpc, its centre (a "densest" one's as found at the start) and radius. */
+function regionRecord(region: Region, center: number[] | undefined, kpc: number) {
+  if (region.kind === "box") return { kind: "box" };
+  const c = region.kind === "densest" ? center : region.center;
+  const radius = region.kind === "cube" ? region.halfWidth : region.radius;
+  return { kind: region.kind, ...(c ? { center_kpc: c.map((v) => v * kpc) } : {}), radius_kpc: radius * kpc };
 }
 
 /** The plug-in's part of summary.json: the rates, the integral and the clocks of the rate, in physical units. */
@@ -81,23 +119,82 @@ function summaryOf(st: LyapunovState, u: { timeS: number; kpc: number; span: num
     interval_s: st.tau * u.timeS,
     seed: u.seed,
     seed_k_max_per_kpc: st.kJeans / u.kpc,
+    ...(st.twin ? { twin: twinRecord(st.twin, finite, st, u.timeS) } : {}),
   };
+}
+
+/** The twin run's rates beside the tangent's (summary.json lyapunov.twin). */
+function twinRecord(twin: TwinState, tangentRate: number, st: LyapunovState, timeS: number) {
+  const rate = st.intervals > 0 ? twin.lnSum / (st.tLast - st.t0) : Number.NaN;
+  return {
+    offset: twin.offset,
+    rate_per_s: rate / timeS,
+    last_interval_rate_per_s: twin.lastRate / timeS,
+    integral: twin.lnSum,
+    ratio_to_tangent: rate / tangentRate,
+    method: "a nonlinear twin from ψ + e·u, renormalised with the tangent (Benettin)",
+  };
+}
+
+/** The twin's start ψ + e·u from the tangent's start u (field 1) into field 2. */
+function startTwin(fields: PluginFields, offset: number, cellVolume: number, window: Float64Array | undefined): TwinState {
+  const psi = Float64Array.from(fields.reference());
+  const twin = twinStart(psi, fields.field(1), offset);
+  fields.set(2, twin);
+  return { offset, w0sq: twinStartNorm(psi, twin, cellVolume, window), lnSum: 0, lastRate: Number.NaN };
+}
+
+/** A fresh start: the seed loaded into the tangent field and renormalised, τ and k_J from the start's moments. */
+function seeded(context: RunContext, facts: StartFacts, fields: PluginFields, options: LyapunovOptions): LyapunovState {
+  const m = facts.sums.moments!;
+  const rhoEff = m.rho2 / m.rho;
+  const tau = options.interval ?? 1 / Math.sqrt(rhoEff / facts.a ** 3);
+  const kJeans = jeansWavenumber(rhoEff, facts.a);
+  fields.set(1, tangentSeed(context.grid, fields.reference(), kJeans, options.seed));
+  const { mass } = renormalise(fields);
+  const lnN = Math.log(facts.mass0 / context.particleMass);
+  return { t0: facts.t, tau, tLast: facts.t, next: facts.t + tau, d0sq: mass, lnSum: 0, lastRate: Number.NaN, intervals: 0, kJeans, lnN, times: [facts.t], integrals: [0] };
+}
+
+/** The state as JSON: JSON has no NaN, so the rate of no interval yet is saved as null. */
+function saveState(st: LyapunovState) {
+  const orNull = (v: number) => (Number.isFinite(v) ? v : null);
+  return { ...st, lastRate: orNull(st.lastRate), ...(st.twin ? { twin: { ...st.twin, lastRate: orNull(st.twin.lastRate) } } : {}) };
+}
+
+/** What saveState wrote. */
+function restoreState(state: unknown): LyapunovState {
+  type Saved = Omit<LyapunovState, "lastRate" | "twin"> & { lastRate: number | null; twin?: Omit<TwinState, "lastRate"> & { lastRate: number | null } };
+  const { twin, ...rest } = state as Saved;
+  return { ...rest, lastRate: rest.lastRate ?? Number.NaN, ...(twin ? { twin: { ...twin, lastRate: twin.lastRate ?? Number.NaN } } : {}) };
 }
 
 /** The plug-in. */
 export function lyapunovPlugin(options: LyapunovOptions): RunPlugin {
-  let fields: TangentFields | undefined;
+  let fields: PluginFields | undefined;
   let timeS = 1;
   let kpc = 1;
   let spanEnd = 1;
   let s: LyapunovState | undefined;
+  let window: Float64Array | undefined;
+  let cellVolume = 1;
+  const region = options.region ?? { kind: "box" };
+  const twinOffset = options.twinOffset ?? 0;
+  /** Growth of the interval (ln of the norm's ratio, in the window with a region) and the new reference norm. */
+  const measureGrowth = (st: LyapunovState, perp2: number, mass: number): number => {
+    if (!window) return 0.5 * Math.log(perp2 / st.d0sq);
+    const after = windowedNorm(window, fields!.field(1), cellVolume); // ‖w dψ⊥‖² = after · perp2/mass
+    const growth = 0.5 * Math.log((after * perp2) / mass / st.w0sq!);
+    st.w0sq = after;
+    return growth;
+  };
   const finiteTime = (st: LyapunovState) => (st.intervals > 0 ? st.lnSum / (st.tLast - st.t0) : Number.NaN);
   return {
     name: "lyapunov",
     stateVersion: 2,
-    tangents: 1,
+    fields: twinOffset > 0 ? [{ kind: "tangent" }, { kind: "own-gravity", startScale: 1 }] : [{ kind: "tangent" }],
     measures: ["moments"],
-    columns: ["lyapunov_rate_per_s", "lyapunov_interval_rate_per_s", "lyapunov_integral"],
+    columns: ["lyapunov_rate_per_s", "lyapunov_interval_rate_per_s", "lyapunov_integral", ...(twinOffset > 0 ? ["lyapunov_twin_integral"] : [])],
     attach(f) {
       fields = f;
     },
@@ -105,21 +202,29 @@ export function lyapunovPlugin(options: LyapunovOptions): RunPlugin {
       timeS = context.scales.units.timeS;
       kpc = context.scales.units.lengthM / KPC_M;
       spanEnd = context.endTime;
-      if (facts.resumed) return;
-      const m = facts.sums.moments!;
-      const rhoEff = m.rho2 / m.rho;
-      const tau = options.interval ?? 1 / Math.sqrt(rhoEff / facts.a ** 3);
-      const kJeans = jeansWavenumber(rhoEff, facts.a);
-      fields!.set(1, tangentSeed(context.grid, fields!.reference(), kJeans, options.seed));
-      const { mass } = renormalise(fields!);
-      const lnN = Math.log(facts.mass0 / context.particleMass);
-      s = { t0: facts.t, tau, tLast: facts.t, next: facts.t + tau, d0sq: mass, lnSum: 0, lastRate: Number.NaN, intervals: 0, kJeans, lnN, times: [facts.t], integrals: [0] };
+      cellVolume = context.grid.cellVolume;
+      if (!facts.resumed) s = seeded(context, facts, fields!, options);
+      if (region.kind !== "box") {
+        const made = windowOf(context.grid, region, fields!.reference(), s!.center);
+        window = made.w;
+        if (!facts.resumed) {
+          if (made.center) s!.center = made.center;
+          s!.w0sq = windowedNorm(window, fields!.field(1), cellVolume);
+        }
+      }
+      if (!facts.resumed && twinOffset > 0) s!.twin = startTwin(fields!, twinOffset, cellVolume, window);
     },
     afterStep(facts: StepFacts) {
       const st = s!;
       if (facts.t < st.next - 1e-9 * st.tau) return;
       const { perp2, mass } = renormalise(fields!);
-      const growth = 0.5 * Math.log(perp2 / st.d0sq);
+      const growth = measureGrowth(st, perp2, mass);
+      if (st.twin) {
+        const twin = renormaliseTwin(Float64Array.from(fields!.reference()), fields!.field(2), st.twin, cellVolume, window);
+        fields!.set(2, twin.reset);
+        st.twin.lnSum += twin.growth;
+        st.twin.lastRate = twin.growth / (facts.t - st.tLast);
+      }
       st.lnSum += growth;
       st.lastRate = growth / (facts.t - st.tLast);
       st.tLast = facts.t;
@@ -132,14 +237,12 @@ export function lyapunovPlugin(options: LyapunovOptions): RunPlugin {
     output(facts) {
       if (facts.kind !== "row") return;
       const st = s!;
-      return [finiteTime(st) / timeS, st.lastRate / timeS, st.lnSum];
+      return [finiteTime(st) / timeS, st.lastRate / timeS, st.lnSum, ...(st.twin ? [st.twin.lnSum] : [])];
     },
-    stop: () => ({ lyapunov: summaryOf(s!, { timeS, kpc, span: spanEnd - s!.t0, seed: options.seed }) }),
-    // JSON has no NaN: the rate of no interval yet is saved as null
-    save: () => ({ ...s!, lastRate: Number.isFinite(s!.lastRate) ? s!.lastRate : null }),
+    stop: () => ({ lyapunov: { ...summaryOf(s!, { timeS, kpc, span: spanEnd - s!.t0, seed: options.seed }), region: regionRecord(region, s!.center, kpc) } }),
+    save: () => saveState(s!),
     restore(state) {
-      const saved = state as Omit<LyapunovState, "lastRate"> & { lastRate: number | null };
-      s = { ...saved, lastRate: saved.lastRate ?? Number.NaN };
+      s = restoreState(state);
     },
   };
 }

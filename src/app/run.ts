@@ -19,7 +19,7 @@ export function configuredPlugins(run: ResolvedRun): RunPlugin[] {
     ...(run.sidecar.enabled ? [sidecarPlugin(run.sidecar)] : []),
     ...(run.output.vortexCensus ? [vortexCensusPlugin(run.grid.cells.length)] : []),
     flowResolutionPlugin(),
-    ...(run.breakdown.tangent ? [lyapunovPlugin({ interval: run.breakdown.interval, seed: run.breakdown.seed })] : []),
+    ...(run.breakdown.tangent ? [lyapunovPlugin({ interval: run.breakdown.interval, seed: run.breakdown.seed, region: run.breakdown.region, twinOffset: run.breakdown.twinOffset })] : []),
     ...(run.breakdown.probes > 0 ? [depletionPlugin({ probes: run.breakdown.probes, seed: run.breakdown.seed, fraction: run.breakdown.depletionFraction })] : []),
   ];
 }

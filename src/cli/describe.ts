@@ -21,7 +21,9 @@ function breakdownLine(run: ResolvedRun, scales: OutputScales): string | undefin
     ...(b.probes > 0 ? [`depletion (${b.probes} probes, clock at ${formatNumber(b.depletionFraction)} N)`] : []),
   ].join(" and ");
   const n = extra.length;
-  return `├─ breakdown    ${what} by tangent-linear fields: ${n} extra field${n > 1 ? "s" : ""}, +${formatNumber(mb)} MB, about ${n + 1} times the work per step; seed ${b.seed}`;
+  const tangents = extra.filter((f) => f.kind === "tangent").length;
+  const by = `${tangents} tangent-linear field${tangents > 1 ? "s" : ""}${b.twinOffset > 0 ? " and a nonlinear twin" : ""}`;
+  return `├─ breakdown    ${what} by ${by}: ${n} extra field${n > 1 ? "s" : ""}, +${formatNumber(mb)} MB, about ${n + 1} times the work per step; seed ${b.seed}`;
 }
 
 /** Describe a run in physical units. */

@@ -106,6 +106,16 @@ export function densestPoint(grid: Grid, psi: Float64Array): number[] {
   return coords(grid, where);
 }
 
+/**
+ * The amplitude window of a region other than the whole box (the field in it is w·ψ): smooth edges one
+ * cell wide; a "densest" region is the sphere around ψ's densest cell, whose centre is returned.
+ */
+export function regionWeights(grid: Grid, region: Exclude<ModeRegion, { kind: "box" }>, psi: Float64Array): { w: Float64Array; center?: number[] } {
+  if (region.kind !== "densest") return { w: regionWindow(grid, region) };
+  const center = densestPoint(grid, psi);
+  return { w: regionWindow(grid, { kind: "sphere", center, radius: region.radius }), center };
+}
+
 /** Inputs of a coefficient evaluation. */
 export interface ModeInputs {
   readonly grid: Grid;
@@ -130,9 +140,9 @@ export function modeCoefficients(input: ModeInputs): ModeCoefficients {
   let gravity = input.gravity;
   let center: number[] | undefined;
   if (region.kind !== "box") {
-    const r: Exclude<ModeRegion, { kind: "box" } | { kind: "densest" }> =
-      region.kind === "densest" ? { kind: "sphere", center: (center = densestPoint(grid, input.psi)), radius: region.radius } : region;
-    const w = regionWindow(grid, r);
+    const weights = regionWeights(grid, region, input.psi);
+    const w = weights.w;
+    center = weights.center;
     psi = new Float64Array(input.psi.length);
     for (let p = 0; p < grid.size; p++) {
       psi[2 * p] = input.psi[2 * p]! * w[p]!;

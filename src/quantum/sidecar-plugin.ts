@@ -62,7 +62,7 @@ export function sidecarPlugin(settings: SidecarSettings): RunPlugin {
     name: "sidecar",
     stateVersion: 1,
     measures: ["kinetic", "moments", ...(twin ? (["overlaps"] as const) : []), ...(settings.outflow ? (["field"] as const) : [])],
-    ...(twin ? { companions: [{ kind: "own-gravity", startScale: 1 + twinExcess / 2 }] } : {}),
+    ...(twin ? { fields: [{ kind: "own-gravity", startScale: 1 + twinExcess / 2 }] } : {}),
     columns: settings.outflow ? [...SIDECAR_COLUMNS, ...OUTFLOW_COLUMNS] : SIDECAR_COLUMNS,
     start(ctx: RunContext, facts: StartFacts) {
       context = ctx;

@@ -6,7 +6,7 @@
  */
 import { fileName } from "../core/sanitize.js";
 import { InputError } from "../core/errors.js";
-import type { CompanionField, MeasuredSum, MeasuredSums, OutputFacts, RunContext, RunPlugin, StartFacts, StepFacts, StopFacts, TangentFields } from "./plugin.js";
+import type { ExtraField, MeasuredSum, MeasuredSums, OutputFacts, PluginFields, RunContext, RunPlugin, StartFacts, StepFacts, StopFacts } from "./plugin.js";
 
 const NAME = /^[A-Za-z][A-Za-z0-9_-]*$/;
 
@@ -25,39 +25,43 @@ export class PluginSet {
       if ((p.save || version !== undefined) && !(version !== undefined && Number.isInteger(version) && version >= 0)) {
         throw new InputError(`plug-in "${p.name}": a plug-in that saves state needs a stateVersion, a whole number ≥ 0 (got ${version})`);
       }
-      const t = p.tangents ?? 0;
-      if (!(Number.isInteger(t) && t >= 0 && t <= 64)) throw new InputError(`plug-in "${p.name}": tangents is a whole number from 0 to 64, got ${t}`);
+      const kinds = (p.fields ?? []).map((f) => f.kind);
+      if (kinds.some((k) => k !== "tangent" && k !== "own-gravity")) throw new InputError(`plug-in "${p.name}": a field's kind is "tangent" or "own-gravity"`);
       if (Boolean(p.save) !== Boolean(p.restore)) throw new InputError(`plug-in "${p.name}": give both save() and restore(), or neither`);
       names.add(p.name);
     }
     this.plugins = plugins;
     this.columns = plugins.flatMap((p) => p.columns ?? []);
-    this.companions = plugins.flatMap((p) => p.companions ?? []);
+    this.fields = plugins.flatMap((p) => p.fields ?? []);
+    if (this.fields.length > 64) throw new InputError(`the plug-ins ask for ${this.fields.length} extra fields; a run advances at most 64`);
   }
 
-  /** Every plug-in's companion fields, in order (the stepper's extra fields 1 … n). */
-  readonly companions: readonly CompanionField[];
+  /** Every plug-in's extra fields, in the plug-ins' order (the stepper's extra fields 1 … n). */
+  readonly fields: readonly ExtraField[];
 
-  /** The sums as plug-in p sees them: its own companions' overlaps only. */
+  /** The stepper's number of plug-in p's first field, less one. */
+  private offset(p: RunPlugin): number {
+    return this.plugins.slice(0, this.plugins.indexOf(p)).reduce((n, q) => n + (q.fields?.length ?? 0), 0);
+  }
+
+  /** Whether the stepper's field i (1 …) belongs to a plug-in that measures "overlaps". */
+  overlapWanted(i: number): boolean {
+    const p = this.plugins.find((q) => this.offset(q) < i && i <= this.offset(q) + (q.fields?.length ?? 0));
+    return p?.measures?.includes("overlaps") ?? false;
+  }
+
+  /** The sums as plug-in p sees them: its own fields' overlaps only. */
   private sumsFor(p: RunPlugin, sums: MeasuredSums): MeasuredSums {
     if (!sums.overlaps) return sums;
-    const before = this.plugins.slice(0, this.plugins.indexOf(p)).reduce((n, q) => n + (q.companions?.length ?? 0), 0);
-    return { ...sums, overlaps: sums.overlaps.slice(before, before + (p.companions?.length ?? 0)) };
+    const before = this.offset(p);
+    return { ...sums, overlaps: sums.overlaps.slice(before, before + (p.fields?.length ?? 0)) };
   }
 
-  /** Tangent fields of all plug-ins together. */
-  get tangents(): number {
-    return this.plugins.reduce((n, p) => n + (p.tangents ?? 0), 0);
-  }
-
-  /** Give each plug-in with tangents its own: `make(first, count)` for the stepper's fields first … first + count − 1. */
-  attach(make: (first: number, count: number) => TangentFields): void {
-    let first = 1;
+  /** Give each plug-in with fields its own: `make(first, count)` for the stepper's fields first … first + count − 1. */
+  attach(make: (first: number, count: number) => PluginFields): void {
     for (const p of this.plugins) {
-      const n = p.tangents ?? 0;
-      if (n === 0) continue;
-      p.attach?.(make(first, n));
-      first += n;
+      const n = p.fields?.length ?? 0;
+      if (n > 0) p.attach?.(make(this.offset(p) + 1, n));
     }
   }
 

@@ -3,8 +3,9 @@
  * every accepted step, at every output and at the stop, without the loop
  * knowing what they compute. A plug-in sees neutral facts (step, t, Δt, a,
  * the step's drift and kick factors) and the measured sums it declared in
- * `measures`; it never touches the stepper, except through the tangent-linear
- * fields it asked for (`tangents`, handed to `attach`). It declares its own time-series
+ * `measures`; it never touches the stepper, except through the extra fields
+ * it asked for (`fields`: tangent-linear or with their own gravity, handed to
+ * `attach`). It declares its own time-series
  * columns, returns its part of summary.json, and saves and restores its own
  * versioned state in checkpoints, so that a resumed run with the plug-in on
  * is bit for bit an uninterrupted one. The quantum sidecar is one
@@ -31,21 +32,21 @@ export interface MeasuredSums {
   readonly kinetic?: number;
   readonly moments?: FieldMoments;
   /**
-   * "overlaps": ∫conj(ψ) ψ_i dV (re, im) of each of the plug-in's companion fields with the run's field,
-   * both current (their owed kicks applied), in the order of its `companions`.
+   * "overlaps": ∫conj(ψ) ψ_i dV (re, im) of each of the plug-in's fields with the run's field,
+   * both current (their owed kicks applied), in the order of its `fields`, after every step.
    */
   readonly overlaps?: readonly (readonly [number, number])[];
 }
 
 /**
- * A field a plug-in asks the run to advance in lockstep with ψ: kicked by the
- * potential of its own density ("own-gravity"), started as `startScale` × ψ at
- * the run's start, and kept in checkpoints (a resumed run continues it exactly).
+ * A field a plug-in asks the run to advance in lockstep with ψ (one engine for both,
+ * integrators/extra-fields.ts), kept in checkpoints (a resumed run continues it exactly):
+ * - "tangent": a tangent-linear field dψ, the exact derivative of the step at ψ, started at 0
+ *   (the plug-in loads its start with `set`);
+ * - "own-gravity": a nonlinear field kicked by the potential of its own density, started as
+ *   `startScale` × ψ at the run's start (or loaded by the plug-in with `set`).
  */
-export interface CompanionField {
-  readonly kind: "own-gravity";
-  readonly startScale: number;
-}
+export type ExtraField = { readonly kind: "tangent" } | { readonly kind: "own-gravity"; readonly startScale: number };
 
 /** What a plug-in knows about the run it joins. All values in code units unless `scales` converts them. */
 export interface RunContext {
@@ -119,26 +120,23 @@ export interface StopFacts {
 }
 
 /**
- * The tangent-linear fields a plug-in asked for (`tangents`), advanced by the
- * stepper beside ψ as the exact derivative of its step
- * (integrators/extra-fields.ts), numbered 1 … count for the plug-in, in code
- * units. The run loop keeps them in checkpoints. Each call applies the kick ψ
- * and the fields owe (an exact split of the folded kick: ψ's trajectory
- * changes by round-off only).
+ * The extra fields a plug-in asked for (`fields`), advanced by the stepper beside ψ, numbered
+ * 1 … count in the order asked for, in code units. Each call applies the kick ψ and the fields
+ * owe (an exact split of the folded kick: ψ's trajectory changes by round-off only).
  */
-export interface TangentFields {
+export interface PluginFields {
   readonly count: number;
   /** The current ψ, interleaved (re, im); read-only, valid during the call. */
   reference(): Float64Array;
   /** Mass ∫|ψ|² dV of the current field. */
   mass(): number;
-  /** Field j, current (its owed kick applied with ψ's); read-only, valid during the call. */
+  /** Field j, current (its owed kick applied); read-only, valid during the call. */
   field(j: number): Float64Array;
-  /** Load field j (a perturbation of the current ψ). */
+  /** Load field j (a tangent: a perturbation of the current ψ; a nonlinear field: a field beside it). */
   set(j: number, field: Float64Array): void;
-  /** ⟨ψ|dψ_j⟩ = ∫ψ̄ dψ_j dV (re, im) and ‖dψ_j‖² = ∫|dψ_j|² dV. */
+  /** ⟨ψ|f_j⟩ = ∫ψ̄ f_j dV (re, im) and ‖f_j‖² = ∫|f_j|² dV. */
   overlap(j: number): { re: number; im: number; norm2: number };
-  /** dψ_j ← scale·(dψ_j − (re + i·im)ψ). */
+  /** f_j ← scale·(f_j − (re + i·im)ψ). */
   combine(j: number, scale: number, re: number, im: number): void;
 }
 
@@ -150,12 +148,10 @@ export interface RunPlugin {
   readonly stateVersion?: number;
   /** Sums it needs (see MeasuredSum). */
   readonly measures?: readonly MeasuredSum[];
-  /** Tangent-linear fields it needs advanced with ψ (handed to attach() before start()). */
-  readonly tangents?: number;
-  /** Called once, before start() (and before restore() on resume), with its tangent fields. */
-  attach?(fields: TangentFields): void;
-  /** Fields it needs advanced with ψ (see CompanionField); it measures them through "overlaps". */
-  readonly companions?: readonly CompanionField[];
+  /** Extra fields it needs advanced with ψ (see ExtraField), handed to attach() before start(). */
+  readonly fields?: readonly ExtraField[];
+  /** Called once, before start() (and before restore() on resume), with its fields. */
+  attach?(fields: PluginFields): void;
   /** Its time-series columns (names with units), after the run's own. */
   readonly columns?: readonly string[];
   /** Called once, before the first step (after restore() on resume). */

@@ -104,8 +104,9 @@ function measuredSums(session: RunSession, kineticNow: boolean): MeasuredSums {
   const sums: { -readonly [K in keyof MeasuredSums]: MeasuredSums[K] } = {};
   if (plugins.measures("kinetic")) sums.kinetic = kineticNow ? stepper.kineticTilde() : stepper.midKineticTilde;
   if (plugins.measures("moments")) sums.moments = stepper.moments();
-  if (plugins.measures("overlaps")) sums.overlaps = plugins.companions.map((_, i) => {
-      const o = stepper.fieldOverlap(plugins.tangents + i + 1); // both fields current first (changes later steps at round-off only)
+  if (plugins.measures("overlaps")) sums.overlaps = plugins.fields.map((_, i) => {
+      if (!plugins.overlapWanted(i + 1)) return [Number.NaN, Number.NaN] as const; // of a plug-in that did not ask
+      const o = stepper.fieldOverlap(i + 1); // both fields current first (changes later steps at round-off only)
       return [o.re, o.im] as const;
     });
   return sums;

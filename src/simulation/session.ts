@@ -21,7 +21,7 @@ import { OutputScales } from "./scales.js";
 import { RunWriter, runPaths } from "./outputs.js";
 import { PluginSet } from "./plugin-set.js";
 import { verifyCheckpoint } from "./resume-check.js";
-import type { RunContext, RunPlugin, TangentFields } from "./plugin.js";
+import type { RunContext, RunPlugin, PluginFields } from "./plugin.js";
 import { InputError } from "../core/errors.js";
 
 /** Where a run reports what it is doing. */
@@ -94,12 +94,12 @@ export function openSession(run: ResolvedRun, options: RunOptions): RunSession {
   if (!options.resume) writeFileAtomic(paths.config, configText);
   const writer = new RunWriter(run, scales, configText, sha256(configText));
   const { threads, fft } = run.integrator;
-  // the stepper's extra fields: the plug-ins' tangents (1 … T), then their companions (T + 1 …)
-  const fields: FieldKind[] = [...Array.from({ length: plugins.tangents }, () => ({ kind: "tangent" }) as const), ...plugins.companions.map((c) => ({ kind: c.kind }))];
+  // the stepper's extra fields: the plug-ins' fields in the plug-ins' order
+  const fields: FieldKind[] = plugins.fields.map((f) => ({ kind: f.kind }));
   // refuse a grid that cannot fit before anything is allocated
   const memory = checkMemory({ cells: run.grid.cells, gravity: run.grid.gravity, threads, fft, fields });
   const stepper = threads > 1 ? new ThreadedStepper(grid, background, gravity, threads, fft, {}, fields) : new SplitStepper(grid, background, gravity, fft, 1, fields);
-  plugins.attach((first, count) => tangentHandle(stepper, first, count));
+  plugins.attach((first, count) => fieldsHandle(stepper, first, count));
   const { startTime, endTime } = run.span;
   const reporter = options.reporter ?? silentReporter;
   const warn = (text: string): void => {
@@ -111,10 +111,10 @@ export function openSession(run: ResolvedRun, options: RunOptions): RunSession {
   return { run, options, reporter, scales, grid, background, gravity, expanding, paths, writer, stepper, plugins, context, wallStart, memory };
 }
 
-/** A plug-in's view of the stepper's tangent fields first … first + count − 1. */
-function tangentHandle(stepper: SplitStepper, first: number, count: number): TangentFields {
+/** A plug-in's view of the stepper's fields first … first + count − 1. */
+function fieldsHandle(stepper: SplitStepper, first: number, count: number): PluginFields {
   const at = (j: number): number => {
-    if (!(Number.isInteger(j) && j >= 1 && j <= count)) throw new RangeError(`tangent field ${j} does not exist (1 … ${count})`);
+    if (!(Number.isInteger(j) && j >= 1 && j <= count)) throw new RangeError(`field ${j} of the plug-in does not exist (1 … ${count})`);
     return first + j - 1;
   };
   return {
@@ -186,8 +186,9 @@ export function startRun(session: RunSession): RunStart {
     writer.log(`warning: ${w}`);
   }
   if (initial.powerTable) writeFileAtomic(paths.power, initial.powerTable);
-  const first = session.plugins.tangents + 1; // companions follow the tangents
-  session.plugins.companions.forEach((c, i) => stepper.setField(first + i, initial.psi.map((v) => v * c.startScale)));
+  session.plugins.fields.forEach((f, i) => {
+    if (f.kind === "own-gravity") stepper.setField(i + 1, initial.psi.map((v) => v * f.startScale));
+  });
   stepper.setState(initial.psi, run.span.startTime);
   return { ...(relaxation ? { relaxation } : {}), warnings, mass0: stepper.mass, steps: 0, snapshotsWritten: 0, wallBefore: 0 };
 }

@@ -31,7 +31,7 @@ describe("[breakdown] from the CLI", () => {
     // 32² cells × 40 bytes
     // the memory is the run's estimate with the field and without: 32² cells × 56 bytes (the field, its undo
     // copy, dφ's real grid, the checkpoint's copy)
-    expect(r.stderr).toMatch(/breakdown +Lyapunov rate \(renormalised every 10(\.0*)? Myr\) by tangent-linear fields: 1 extra field, \+0\.057\d* MB, about 2 times the work per step; seed 5/);
+    expect(r.stderr).toMatch(/breakdown +Lyapunov rate \(renormalised every 10(\.0*)? Myr\) by 1 tangent-linear field: 1 extra field, \+0\.057\d* MB, about 2 times the work per step; seed 5/);
     // the measured clocks are printed after the run: projected, or never with the growth they saw
     expect(r.stdout).toMatch(/^measured classical breakdown \(tangent-linear companion\):\n  depletion, from the rate \(∫λ dt = ½ ln N\)  (never: .*|projected at .*)\n  scrambling \(∫λ dt = ln N\) +(never: .*|projected at .*)$/m);
     const rows = readCsv(path.join(work, "output/on/timeseries.csv"));

@@ -89,6 +89,24 @@ describe("Lyapunov rate of the split-step map", () => {
     expect(Math.max(...densities) / rho - 1).toBeLessThan(1e-5);
   });
 
+  it("in a region (a window on the perturbation's norm) of the uniform box: the same largest Jeans rate, to 1% (Khlopov, Malomed & Zeldovich 1985)", async () => {
+    // the growing modes fill the box, so a window anywhere sees them grow at their own rate
+    const rho = 7e6;
+    const top = Math.max(...jeansRates(rho * MSUN_KPC3, 1e-22, 10, 64));
+    const duration = 25 / top / 3.15576e13;
+    const run = resolved(
+      "uniform-region",
+      `[grid]\ncells = 64\nbox = "10 kpc"\n[particle]\nmass = "1e-22 eV"\n[span]\nduration = "${duration} Myr"\n` +
+        `[initial]\nkind = "plane-wave"\nmean_density = "${rho} Msun/kpc^3"\ncontrast = 0\n[output]\ntime_unit = "Myr"\ntimeseries_every = 50\n` +
+        `[sidecar]\nenabled = false\n[breakdown]\ntangent = true\nregion = "sphere"\nregion_center = ["3 kpc"]\nregion_radius = "1.5 kpc"\n`,
+    );
+    const ly = (await runIt(run))["lyapunov"] as { last_interval_rate_per_s: number; region: { kind: string; center_kpc: number[]; radius_kpc: number } };
+    expect(ly.region.kind).toBe("sphere");
+    expect(ly.region.center_kpc[0]).toBeCloseTo(3, 9);
+    expect(ly.region.radius_kpc).toBeCloseTo(1.5, 9);
+    expect(Math.abs(ly.last_interval_rate_per_s / top - 1)).toBeLessThan(0.01);
+  });
+
   it("a relaxed soliton is stable: the finite-time rate falls back towards 0, far below one per dynamical time", async () => {
     const run = resolved(
       "soliton",
@@ -133,13 +151,31 @@ describe("Lyapunov rate of the split-step map", () => {
   });
 });
 
+describe("Lyapunov rate: the twin nonlinear run", () => {
+  it("a chaotic 2D random-soliton merger: tangent-linear and twin-run rates agree to 5% (Benettin et al. 1980: both measure the same largest exponent)", async () => {
+    const run = resolved(
+      "merger",
+      `[grid]\ncells = [32, 32]\nbox = "10 kpc"\n[particle]\nmass = "1e-22 eV"\n[span]\nduration = "400 Myr"\n` +
+        `[initial]\nkind = "random-solitons"\ncount = 8\nmass = "1e10 Msun"\nseed = 3\nvelocity_dispersion = "10 km/s"\n` +
+        `[output]\ntime_unit = "Myr"\ntimeseries_every = 100\n[sidecar]\nenabled = false\n[breakdown]\ntangent = true\ntwin_offset = 1e-7\n`,
+    );
+    const ly = (await runIt(run))["lyapunov"] as { rate_per_s: number; integral: number; intervals: number; scrambling_clock: Clock; twin: { rate_per_s: number; integral: number; ratio_to_tangent: number } };
+    // chaotic: the separation grew by e^20 and more over the run (measured ∫λ dt = 35.5 over 151 intervals)
+    expect(ly.integral).toBeGreaterThan(20);
+    expect(ly.scrambling_clock.verdict).toBe("projected");
+    // (measured: the rates agree to 2e-7, the twin's offset 1e-7 times the growth over one interval)
+    expect(Math.abs(ly.twin.rate_per_s / ly.rate_per_s - 1)).toBeLessThan(0.05);
+    expect(ly.twin.ratio_to_tangent).toBeCloseTo(ly.twin.rate_per_s / ly.rate_per_s, 12);
+  });
+});
+
 describe("Lyapunov rate: resume", () => {
   const text =
     `[grid]\ncells = [16, 16]\nbox = "20 kpc"\n[particle]\nmass = "1e-22 eV"\n[span]\nduration = "120 Myr"\n` +
     `[initial]\nkind = "plane-wave"\nmean_density = "1e7 Msun/kpc^3"\ncontrast = 0.3\nmode = [1, 1]\n[output]\ntime_unit = "Myr"\ncheckpoint_every = 7\n` +
-    `[sidecar]\nenabled = false\n[breakdown]\ntangent = true\ninterval = "10 Myr"\n`;
+    `[sidecar]\nenabled = false\n[breakdown]\ntangent = true\ninterval = "10 Myr"\nprobes = 1\ntwin_offset = 1e-6\n`;
 
-  it("a stopped run resumed from its checkpoint (with the tangent field in it) ends bit for bit like an uninterrupted one", async () => {
+  it("a stopped run resumed from its checkpoint (with the tangent, the probes and the twin in it) ends bit for bit like an uninterrupted one", async () => {
     const whole = resolved("whole", text);
     const a = await runIt(whole);
     const cut = { ...resolved("cut", text) };
@@ -148,6 +184,7 @@ describe("Lyapunov rate: resume", () => {
     const b = await runIt(cut, { resume: true });
     expect(b.status).toBe("completed");
     expect(b["lyapunov"]).toEqual(a["lyapunov"]);
+    expect(b["depletion"]).toEqual(a["depletion"]);
     const series = (dir: string) => fs.readFileSync(path.join(dir, "timeseries.csv"), "utf8");
     expect(series(cut.outputDir)).toBe(series(whole.outputDir));
   });
