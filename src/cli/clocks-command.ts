@@ -21,6 +21,7 @@ import { formatClocks } from "./run-command.js";
 import { formatNumber, formatQuantity } from "../core/format.js";
 import type { ClockReport } from "../quantum/sidecar-report.js";
 import { parseRegion, REGION_KINDS } from "../config/region.js";
+import { gravityRate } from "../quantum/gravity-rate.js";
 import { readModeState, type ModeState, type ModeStateFlags } from "./mode-state-options.js";
 import { describeStart, numberSpread } from "../quantum/gaussian-start.js";
 import { stationaryAdiabaticChi } from "../quantum/adiabatic.js";
@@ -110,10 +111,13 @@ export async function clocksCommand(paths: readonly string[], flags: ClocksFlags
     const toS = 1 / units.timeS;
     // χ_ad = (1/ħ) dμ/dN = 2μ/(ħN) for a stationary state (μ ∝ N² by the scaling symmetry), μ/ħ = (K + 2W)/M = ω + Nχ
     const chiAd = stationaryAdiabaticChi(m) * toS;
-    const rates = { omegaTilde: m.omega * toS, chiTilde: m.chi * toS, lambda: m.lambda * toS, chiAdiabatic: chiAd };
+    // the breakdown estimate's rate: √(4πGρ_eff), f H in expanding boxes, 0 without gravity (quantum/gravity-rate.ts)
+    const estimate = gravityRate(snap.meta.gravity !== "none", field.background);
+    const rates = { omegaTilde: m.omega * toS, chiTilde: m.chi * toS, lambda: estimate.rate(m.lambda ** 2, field.scaleFactor) * toS, chiAdiabatic: chiAd };
     if (!acc) {
       state = readModeState(flags, m.particles);
       acc = new ClockAccumulator(m.particles, db, tS, rates, { start: state.start, lossRate: state.lossRatePerS, dephasingRate: state.dephasingRatePerS });
+      acc.breakdownLabel = estimate.label;
       t0S = tS;
       if (snap.meta.background.kind === "lcdm") ageS = field.background.time(1) * units.timeS;
     } else {
