@@ -98,3 +98,32 @@ td:first-child,th:first-child{text-align:left}
 pre{background:#f7f7f7;padding:1em;overflow-x:auto;font-size:.8em;white-space:pre-wrap}
 .verdict li{margin:.2em 0}.note{color:#555;font-size:.9em}
 `;
+
+/** A measured breakdown clock of summary.json. */
+interface MeasuredClockEntry {
+  readonly verdict: string;
+  readonly time: string;
+  readonly method: string;
+  readonly ratio_to_span: number | null;
+}
+
+/** The measured breakdown clocks (summary.json's lyapunov and depletion parts) as a report section; empty without them. */
+export function breakdownSection(summary: Readonly<Record<string, unknown>>, fig: Figure | undefined): string {
+  const ly = summary["lyapunov"] as { rate_per_s: number; scrambling_clock: MeasuredClockEntry; depletion_time_from_rate: MeasuredClockEntry; twin?: { ratio_to_tangent: number } } | undefined;
+  const dep = summary["depletion"] as { depleted_N: number; depleted_N_error: number; depleted_fraction: number; depletion_clock: MeasuredClockEntry & { fraction: number } } | undefined;
+  if (!ly && !dep) return "";
+  const when = (c: MeasuredClockEntry) => (c.verdict === "never" ? c.method : `${c.verdict === "rang" ? "rang at" : "projected at"} ${c.time} (${formatNumber(c.ratio_to_span!)} × the run)`);
+  const items = [
+    ...(dep ? [`Depletion, measured (N_dep = ${formatNumber(dep.depletion_clock.fraction)} N): ${when(dep.depletion_clock)}; at the end N_dep = ${formatNumber(dep.depleted_N)} ± ${formatNumber(dep.depleted_N_error)} particles, ${formatNumber(dep.depleted_fraction)} of N.`] : []),
+    ...(ly
+      ? [
+          `Depletion from the rate (∫λ dt = ½ ln N): ${when(ly.depletion_time_from_rate)}.`,
+          `Scrambling (∫λ dt = ln N): ${when(ly.scrambling_clock)}.`,
+          `Finite-time Lyapunov rate over the run: ${formatNumber(ly.rate_per_s)} /s${ly.twin ? `; the twin nonlinear run measured ${formatNumber(ly.twin.ratio_to_tangent)} × that` : ""}.`,
+        ]
+      : []),
+  ];
+  return `<h2 id="breakdown">Measured classical breakdown</h2>
+<ul class="verdict">${items.map((i) => `<li>${esc(i)}</li>`).join("")}</ul>
+<div class="figs">${figure(fig, "The Lyapunov rate λ(t), ∫λ dt against ½ ln N (depletion) and ln N (scrambling), and the measured depletion N_dep/N on a log axis against the depletion clock's fraction.")}</div>`;
+}

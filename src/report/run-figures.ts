@@ -1,6 +1,6 @@
 /**
- * A run's own figures, after its snapshots are analysed: energies and
- * clocks from the time series, the space–time diagram of a 1D run, and the
+ * A run's own figures, after its snapshots are analysed: energies, the
+ * sidecar's clocks and the measured breakdown from the time series, the space–time diagram of a 1D run, and the
  * movie frames (2D: the density; 3D: the column density along the chosen
  * axis; 1D: the density profile) on one colour range for the whole run,
  * encoded into a movie when asked and an encoder is found.
@@ -14,6 +14,7 @@ import { unitInSI } from "../physics/units.js";
 import { formatNumber } from "../core/format.js";
 import { energiesPlot, clocksPlot, type Ring } from "./run-plots.js";
 import { spacetimeFigure } from "./spacetime.js";
+import { breakdownPlot, type BreakdownMarks } from "./breakdown-plot.js";
 import { colourRange, fieldFigure } from "./field-image.js";
 import { densityLinePlot, type Row } from "./plots.js";
 import { AXIS_NAMES, type DensityPlane } from "./planes.js";
@@ -55,6 +56,24 @@ function clockInfo(runDir: string, t0: number, unit: string): { targetDb: number
   const perUnit = unitInSI(unit);
   const rings = c.clocks.filter((k) => k.reached && k.time_s !== null).map((k) => ({ t: t0 + k.time_s! / perUnit, label: CLOCK_LABELS[k.name] ?? k.name }));
   return { targetDb: c.squeezing_db_target ?? -10, rings };
+}
+
+/** A measured breakdown clock in summary.json. */
+type MeasuredClock = { verdict: string; time_s: number | null } | undefined;
+
+/** ln N, the depletion clock's fraction and the measured clocks that rang, from summary.json's lyapunov and depletion parts. */
+function breakdownMarks(runDir: string, t0: number, unit: string): BreakdownMarks | undefined {
+  const file = path.join(runDir, "summary.json");
+  if (!fs.existsSync(file)) return undefined;
+  const s = JSON.parse(fs.readFileSync(file, "utf8")) as Record<string, unknown>;
+  const ly = s["lyapunov"] as { scrambling_clock: MeasuredClock & { ln_N: number }; depletion_time_from_rate: MeasuredClock } | undefined;
+  const dep = s["depletion"] as { particles_N: number; depletion_clock: MeasuredClock & { fraction: number } } | undefined;
+  const lnN = ly?.scrambling_clock.ln_N ?? (dep ? Math.log(dep.particles_N) : undefined);
+  if (lnN === undefined) return undefined;
+  const perUnit = unitInSI(unit);
+  const named: [string, MeasuredClock][] = [["depletion", dep?.depletion_clock], ["½ ln N", ly?.depletion_time_from_rate], ["scrambling", ly?.scrambling_clock]];
+  const rings = named.filter(([, c]) => c?.verdict === "rang" && c.time_s !== null).map(([label, c]) => ({ t: t0 + c!.time_s! / perUnit, label }));
+  return { lnN, ...(dep ? { fraction: dep.depletion_clock.fraction } : {}), rings };
 }
 
 /** Frames of the whole run on one colour range; returns how many were written. */
@@ -113,6 +132,8 @@ export async function runFigures(runDir: string, outDir: string, snapshots: read
       const clocks = clockInfo(runDir, Number(series.rows[0]![series.tCol]), series.unit);
       figures["clocks"] = await clocksPlot(series.rows, series.tCol, tTitle, { lnN, ...clocks });
     }
+    const marks = "lyapunov_integral" in series.rows[0]! || "depleted_N" in series.rows[0]! ? breakdownMarks(runDir, Number(series.rows[0]![series.tCol]), series.unit) : undefined;
+    if (marks) figures["breakdown"] = await breakdownPlot(series.rows, series.tCol, tTitle, marks);
   }
   if (first && first.meta.cells.length === 1 && files.length > 1) {
     const rows = files.map((f) => {

@@ -28,7 +28,7 @@ const RUNS: Record<string, string> = {
     `[initial]\nkind = "plane-wave"\nmean_density = "1e6 Msun/kpc^3"\ncontrast = 0.2\nmode = [1]\n[output]\ntime_unit = "Myr"\nsnapshot_interval = "200 Myr"\n`,
   cosmo:
     `[grid]\ncells = [16, 16, 16]\nbox = "2 Mpc/h"\n[particle]\nmass = "1e-22 eV"\n[background]\nkind = "lcdm"\n[span]\nstart_redshift = 50\nend_redshift = 10\n` +
-    `[initial]\nkind = "cosmological"\nseed = 3\n[output]\nsnapshot_redshifts = [20]\n`,
+    `[initial]\nkind = "cosmological"\nseed = 3\n[output]\nsnapshot_redshifts = [20]\n[breakdown]\ntangent = true\nprobes = 1\n`,
 };
 
 beforeAll(() => {
@@ -89,6 +89,7 @@ describe("psibox analyze: every picture type from real runs", () => {
     const a = path.join(work, "output/cosmo/analysis");
     for (const f of ["slice", "projection", "power"]) checkPicture(path.join(a, "snap_00002", `${f}.png`));
     checkPicture(path.join(a, "energies.png"));
+    checkPicture(path.join(a, "breakdown.png")); // the measured breakdown ([breakdown] tangent and one probe)
     const projection = fs.readFileSync(path.join(a, "snap_00002/projection.svg"), "utf8");
     expect(projection).toContain("log₁₀ Σ [Msun/kpc²]");
     expect(projection).toContain("column density, along y");
@@ -159,11 +160,13 @@ describe.runIf(chromium !== undefined || process.env["CI"] === "true")("psibox r
       });
       page.on("pageerror", (e) => errors.push(e.message));
       await page.goto(`file://${file}`);
-      for (const id of ["clocks", "energies", "field", "power", "diagnostics", "halos", "parameters"]) expect(await page.locator(`#${id}`).count(), id).toBe(1);
+      for (const id of ["clocks", "breakdown", "energies", "field", "power", "diagnostics", "halos", "parameters"]) expect(await page.locator(`#${id}`).count(), id).toBe(1);
       const images = (await page.evaluate(`Array.from(document.images).map((e) => ({ ok: e.complete && e.naturalWidth > 0, w: e.naturalWidth }))`)) as { ok: boolean; w: number }[];
       expect(images.length).toBeGreaterThanOrEqual(7);
       expect(images.every((i) => i.ok && i.w > 600)).toBe(true);
-      expect(await page.locator(".verdict li").count()).toBe(5); // five clocks: onset, level, phase diffusion frozen and adiabatic, breakdown
+      // five sidecar clocks (onset, level, phase diffusion frozen and adiabatic, breakdown estimate), then four measured lines
+      // (depletion, its time from the rate, scrambling, the finite-time rate)
+      expect(await page.locator(".verdict li").count()).toBe(9);
       // text that overflows its box, or boxes that stick out of the page's column
       const overflow = (await page.evaluate(`(() => {
         const bad = [];

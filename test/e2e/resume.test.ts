@@ -1,5 +1,6 @@
 // Checkpoint and resume: a run killed with SIGKILL and resumed ends bit for bit where an uninterrupted run ends,
-// with the quantum sidecar on (its state travels in the checkpoint).
+// with the quantum sidecar on (its state travels in the checkpoint), and with the [breakdown] companion on (its
+// tangent, probe and twin fields and the plug-ins' states travel in the checkpoint; same thread count).
 import { spawn, spawnSync } from "node:child_process";
 import fs from "node:fs";
 import path from "node:path";
@@ -29,10 +30,39 @@ snapshot_interval = "50 Myr"
 checkpoint_every = 100
 `;
 
+// a tiny 1D run of many short steps, so that the kill lands long before the end
+const COMPANION = `
+[grid]
+cells = 128
+box = "20 kpc"
+[particle]
+mass = "1e-22 eV"
+[span]
+duration = "3000 Myr"
+[initial]
+kind = "plane-wave"
+mean_density = "1e7 Msun/kpc^3"
+contrast = 0.3
+mode = [1]
+[integrator]
+safety = 0.05
+[output]
+time_unit = "Myr"
+snapshot_interval = "3000 Myr"
+timeseries_every = 50
+checkpoint_every = 300
+[breakdown]
+tangent = true
+interval = "100 Myr"
+probes = 1
+twin_offset = 1e-6
+`;
+
 beforeAll(async () => {
   await loadHdf5();
   work = makeWork("resume");
   fs.writeFileSync(path.join(work, "r.toml"), CONFIG);
+  fs.writeFileSync(path.join(work, "c.toml"), COMPANION);
 });
 afterAll(() => removeWork(work));
 
@@ -98,5 +128,20 @@ describe("resume", () => {
     expect(bad.status).toBe(2);
     expect(bad.stderr).toMatch(/^psibox: .*checkpoint\.h5: not a readable HDF5 file \(.*\)\n$/);
     expect(fs.readFileSync(path.join(work, "broken/timeseries.csv")).equals(before)).toBe(true);
+  });
+
+  it("with the [breakdown] companion on (tangent, probe and twin fields), a SIGKILLed run resumes bit for bit", async () => {
+    expect(psibox(["run", "c.toml", "-q", "--set", "output.dir=cfull"]).status).toBe(0);
+    await killAfterCheckpoint(["run", "c.toml", "-q", "--set", "output.dir=ccut"], path.join(work, "ccut/checkpoint.h5"));
+    expect(fs.existsSync(path.join(work, "ccut/summary.json"))).toBe(false); // killed mid-run
+    expect(psibox(["run", "--resume", "ccut", "-q"]).status).toBe(0);
+    const read = (dir: string) => JSON.parse(fs.readFileSync(path.join(work, dir, "summary.json"), "utf8"));
+    const [full, cut] = [read("cfull"), read("ccut")];
+    expect(cut.resumed_from_step).toBeGreaterThan(0);
+    expect(cut.lyapunov).toEqual(full.lyapunov);
+    expect(cut.depletion).toEqual(full.depletion);
+    expect(fs.readFileSync(path.join(work, "ccut/timeseries.csv"), "utf8")).toBe(fs.readFileSync(path.join(work, "cfull/timeseries.csv"), "utf8"));
+    const last = (dir: string) => readSnapshot(path.join(work, dir, "snapshots/snap_00001.h5")).psi;
+    expect(Buffer.from(last("ccut").buffer).equals(Buffer.from(last("cfull").buffer))).toBe(true);
   });
 });
