@@ -38,17 +38,17 @@ box = "20 kpc"
 [particle]
 mass = "1e-22 eV"
 [span]
-duration = "3000 Myr"
+duration = "1000 Myr"
 [initial]
 kind = "plane-wave"
 mean_density = "1e7 Msun/kpc^3"
 contrast = 0.3
 mode = [1]
 [integrator]
-safety = 0.05
+safety = 0.1
 [output]
 time_unit = "Myr"
-snapshot_interval = "3000 Myr"
+snapshot_interval = "1000 Myr"
 timeseries_every = 50
 checkpoint_every = 300
 [breakdown]
