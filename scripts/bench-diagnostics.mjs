@@ -44,7 +44,7 @@ if (process.argv[2] === "--analyze") {
 
 const n = Number(process.argv[2] ?? 256);
 const dir = fs.mkdtempSync(path.join(os.tmpdir(), "psibox-bench-diagnostics-"));
-const threads = defaultThreads(n ** 3);
+const threads = defaultThreads([n, n, n]);
 const grid0 = new Grid([n, n, n], [1, 1, 1]);
 const fft = new PooledTransforms(grid0, 3, { threads });
 

@@ -123,5 +123,5 @@ if (process.argv[1] && path.resolve(process.argv[1]) === fileURLToPath(import.me
   const threads = opt("--threads");
   const every = opt("--every");
   const sizes = args.filter((a, i) => /^\d+$/.test(a) && !["--threads", "--every"].includes(args[i - 1])).map(Number);
-  await printRealRunRows(sizes.length ? sizes : [128], (n) => threads ?? defaultThreads(n ** 3), every);
+  await printRealRunRows(sizes.length ? sizes : [128], (n) => threads ?? defaultThreads([n, n, n]), every);
 }

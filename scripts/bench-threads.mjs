@@ -63,7 +63,7 @@ console.log("grid               cells      1 thread   " + `${cores} threads`.pad
 for (const shape of shapes) {
   const cells = shape.reduce((p, n) => p * n, 1);
   const r = crossover(shape);
-  const chosen = defaultThreads(cells);
+  const chosen = defaultThreads(shape);
   const chosenMs = chosen > 1 ? r.all : r.one;
   const verdict = chosenMs <= Math.min(r.one, r.all) * 1.05 ? "fastest" : `${(chosenMs / Math.min(r.one, r.all)).toFixed(2)}× the fastest`;
   console.log(`${shape.join("×").padEnd(14)} ${String(cells).padStart(9)} ${r.one.toFixed(2).padStart(11)} ${r.all.toFixed(2).padStart(10)} ${(r.all / r.one).toFixed(2).padStart(7)} ${String(chosen).padStart(9)}   ${verdict}`);

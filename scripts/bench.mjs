@@ -154,7 +154,7 @@ function benchTangents() {
 }
 const realRunSizes = large ? [128, 256] : [128];
 if (args.includes("--real-run-only")) {
-  await printRealRunRows(realRunSizes, (n) => (threadsArg >= 0 ? threads : defaultThreads(n ** 3)));
+  await printRealRunRows(realRunSizes, (n) => (threadsArg >= 0 ? threads : defaultThreads([n, n, n])));
   process.exit(0);
 }
 if (args.includes("--tangents-only")) {
@@ -190,4 +190,4 @@ if (useNumpy) {
 } else {
   console.log("(no python3 with NumPy here: the comparison with NumPy is skipped)");
 }
-await printRealRunRows(realRunSizes, (n) => (threadsArg >= 0 ? threads : defaultThreads(n ** 3)));
+await printRealRunRows(realRunSizes, (n) => (threadsArg >= 0 ? threads : defaultThreads([n, n, n])));

@@ -10,7 +10,7 @@ import { positive, read } from "./values.js";
 import type { ResolvedRun } from "./resolve.js";
 
 /** The [integrator] section in code units. */
-export function resolveIntegrator(config: CheckedConfig, cells: number, units: CodeUnits, ctx: UnitContext): ResolvedRun["integrator"] {
+export function resolveIntegrator(config: CheckedConfig, shape: readonly number[], units: CodeUnits, ctx: UnitContext): ResolvedRun["integrator"] {
   const integ = config.integrator;
   if (!(integ.safety > 0 && integ.safety <= 1)) throw new ConfigError("integrator.safety", `must be in (0, 1], got ${integ.safety}`);
   positive("integrator.max_dln_a", integ.max_dln_a);
@@ -23,25 +23,31 @@ export function resolveIntegrator(config: CheckedConfig, cells: number, units: C
     maxDlnA: integ.max_dln_a,
     massTolerance: integ.mass_tolerance,
     maxSteps: integ.max_steps,
-    threads: resolveThreads(integ.threads, cells),
+    threads: resolveThreads(integ.threads, shape),
     fft: integ.fft,
   };
 }
 
-/** Threads: as configured, else PSIBOX_THREADS, else the cores (one thread below 32³ cells, where threads do not pay). */
-function resolveThreads(configured: number | undefined, cells: number): number {
+/** Threads: as configured, else the default (see defaultThreads). */
+function resolveThreads(configured: number | undefined, shape: readonly number[]): number {
   if (configured !== undefined) {
     if (!(configured >= 1 && configured <= 64)) throw new ConfigError("integrator.threads", `must be from 1 to 64, got ${configured}`);
     return configured;
   }
-  return defaultThreads(cells);
+  return defaultThreads(shape);
 }
 
-/** Threads when none are configured: PSIBOX_THREADS, else the cores (one thread below 32³ cells, where threads do not pay). */
-export function defaultThreads(cells: number): number {
+/**
+ * Threads when none are configured: PSIBOX_THREADS, else the cores from 2^18 cells on (64³, 512²; 2^19
+ * in 1D), one thread below, where a second thread costs more than it saves. Measured on an idle 2-core
+ * machine, 2 threads against 1 (scripts/bench-threads.mjs): 32³ 1.47–1.49×, 64³ 0.76–1.04×, 128³ 0.52×;
+ * 256² 0.84–1.11×, 512² 0.67–0.87×; 1D 2^18 1.53–1.61×, 2^19 0.80×, 2^20 0.78–1.01×.
+ */
+export function defaultThreads(shape: readonly number[]): number {
   const env = Number(process.env["PSIBOX_THREADS"] ?? NaN);
   if (Number.isInteger(env) && env >= 1) return Math.min(env, 64);
-  return cells < 32 ** 3 ? 1 : os.availableParallelism();
+  const cells = shape.reduce((p, n) => p * n, 1);
+  return cells < (shape.length === 1 ? 2 ** 19 : 2 ** 18) ? 1 : os.availableParallelism();
 }
 
 /** The [output] section; `span` in code time. */

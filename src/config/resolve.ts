@@ -89,7 +89,7 @@ export function resolveRun(config: CheckedConfig, name: string, cwd: string): Re
   if (config.grid.gravity === "isolated") checkIsolatedGrid(cells);
   const { background, startTime, endTime } = resolveBackgroundAndSpan(config, units, ctx, hubbleSI);
   const initial = resolveInitial(config, dims, lengths, units, ctx, background);
-  const integrator = resolveIntegrator(config, cells.reduce((p, n) => p * n, 1), units, ctx);
+  const integrator = resolveIntegrator(config, cells, units, ctx);
   const { outputDir, output } = resolveOutput(config, name, cwd, background, { startTime, endTime }, units, ctx);
   if (!(config.sidecar.squeezing_db < 0)) {
     throw new ConfigError("sidecar.squeezing_db", `must be negative (a variance below the coherent state's), got ${config.sidecar.squeezing_db}`);

@@ -43,7 +43,7 @@ export class AnalysisTransforms {
   of(grid: Grid): PooledTransforms {
     if (this.current && this.current.shape.every((n, i) => n === grid.shape[i])) return this.current;
     this.close();
-    this.current = new PooledTransforms(grid, 3, { threads: defaultThreads(grid.size) });
+    this.current = new PooledTransforms(grid, 3, { threads: defaultThreads(grid.cells) });
     return this.current;
   }
 

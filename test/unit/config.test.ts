@@ -1,5 +1,6 @@
 // Config loading, validation and resolution.
 import fs from "node:fs";
+import os from "node:os";
 import path from "node:path";
 import { describe, expect, it } from "vitest";
 import { applyOverrides, checkConfig, loadConfig, parseTomlText } from "../../src/config/load.js";
@@ -44,6 +45,22 @@ describe("config", () => {
     expect(every([512, 512])).toBe(8);
     expect(every([64, 64, 64], 1)).toBe(1);
     expect(errorOf({ ...base, output: { timeseries_every: 0 } })).toMatch(/^output\.timeseries_every/);
+  });
+
+  it("uses the cores from 2^18 cells on (2^19 in 1D) and one thread below, unless told (the crossover measured by scripts/bench-threads.mjs)", () => {
+    const threads = (cells: number[]) => resolveRun(checkConfig({ ...base, grid: { cells, box: "10 kpc" } }), "t", "/tmp").integrator.threads;
+    const saved = process.env["PSIBOX_THREADS"];
+    delete process.env["PSIBOX_THREADS"];
+    try {
+      const cores = os.availableParallelism();
+      expect([threads([32, 32, 32]), threads([256, 256]), threads([2 ** 18])]).toEqual([1, 1, 1]);
+      expect([threads([64, 64, 64]), threads([512, 512]), threads([2 ** 19])]).toEqual([cores, cores, cores]);
+      process.env["PSIBOX_THREADS"] = "3";
+      expect(threads([32, 32, 32])).toBe(3);
+    } finally {
+      if (saved === undefined) delete process.env["PSIBOX_THREADS"];
+      else process.env["PSIBOX_THREADS"] = saved;
+    }
   });
 
   it("fills defaults and converts to code units", () => {
