@@ -13,6 +13,10 @@ import { runSimulation } from "../../src/app/run.js";
 import type { RunPlugin } from "../../src/simulation/plugin.js";
 import { G_SI, HBAR_J_S, KG_PER_EV, M_SUN_KG, PC_M } from "../../src/physics/constants.js";
 import { makeWork, readCsv, removeWork, writeIn } from "../helpers/cli.js";
+import { Grid } from "../../src/grid/grid.js";
+import { ComplexFft } from "../../src/fields/fft.js";
+import { regionWeights } from "../../src/quantum/mode.js";
+import { jeansWavenumber, tangentSeed } from "../../src/initial-conditions/tangent-seed.js";
 
 const KPC = 1e3 * PC_M;
 const MSUN_KPC3 = M_SUN_KG / KPC ** 3; // kg/m³ per Msun/kpc³
@@ -187,5 +191,60 @@ describe("Lyapunov rate: resume", () => {
     expect(b["depletion"]).toEqual(a["depletion"]);
     const series = (dir: string) => fs.readFileSync(path.join(dir, "timeseries.csv"), "utf8");
     expect(series(cut.outputDir)).toBe(series(whole.outputDir));
+  });
+
+  it("in a region of a free field: the growth of the perturbation's norm inside the window, which the whole box does not have (computed independently)", async () => {
+    // Without gravity the tangent equation is the free Schrödinger equation: the perturbation's norm over the
+    // box is conserved (rate 0), while the noise that disperses into and out of a window changes the norm
+    // inside it. The test evolves the same seed itself (each mode turns by e^{−ik²t/2}, ħ/m = 1) and takes
+    // ½ ln(‖w dψ(T)‖²/‖w dψ(0)‖²)/T with the same window: a rate the box-wide norm would not show.
+    const run = resolved(
+      "free-region",
+      `[grid]\ncells = 64\nbox = "10 kpc"\ngravity = "none"\n[particle]\nmass = "1e-22 eV"\n[span]\nduration = "300 Myr"\n` +
+        `[initial]\nkind = "plane-wave"\nmean_density = "1e7 Msun/kpc^3"\ncontrast = 0\n[output]\ntime_unit = "Myr"\ntimeseries_every = 50\n` +
+        `[sidecar]\nenabled = false\n[breakdown]\ntangent = true\nseed = 11\ninterval = "300 Myr"\nregion = "sphere"\nregion_center = ["3 kpc"]\nregion_radius = "1.5 kpc"\n`,
+    );
+    let grid: Grid | undefined;
+    let psi0: Float64Array | undefined;
+    let lengthKpc = 1;
+    let timeS = 1;
+    const probe: RunPlugin = {
+      name: "probe",
+      measures: ["field"],
+      start(context) {
+        grid = context.grid;
+        lengthKpc = context.scales.units.lengthM / KPC;
+        timeS = context.scales.units.timeS;
+      },
+      output(facts) {
+        if (facts.kind === "row" && !psi0) psi0 = Float64Array.from(facts.psi!);
+      },
+    };
+    prepareOutputDir(run.outputDir, true);
+    const ly = (await runSimulation(run, { plugins: [probe] }))["lyapunov"] as { last_interval_rate_per_s: number; rate_per_s: number; intervals: number };
+    expect(ly.intervals).toBe(1);
+    const g = grid!;
+    const rho = psi0![0]! ** 2 + psi0![1]! ** 2;
+    const seed = tangentSeed(g, psi0!, jeansWavenumber(rho, 1), 11);
+    const w = regionWeights(g, { kind: "sphere", center: [3 / lengthKpc], radius: 1.5 / lengthKpc }, psi0!).w;
+    const windowed = (f: Float64Array) => f.reduce((acc, _, i) => (i % 2 === 0 ? acc + w[i / 2]! ** 2 * (f[i]! ** 2 + f[i + 1]! ** 2) : acc), 0);
+    const T = (300 * 3.15576e13) / timeS;
+    const evolved = Float64Array.from(seed);
+    const fft = new ComplexFft(g.shape);
+    fft.forward(evolved);
+    const n = g.cells[0]!;
+    for (let j = 0; j < n; j++) {
+      const k = (2 * Math.PI * (j <= n / 2 ? j : j - n)) / g.extent[2]!;
+      const [re, im] = [evolved[2 * j]!, evolved[2 * j + 1]!];
+      const [c, s] = [Math.cos(-0.5 * k * k * T), Math.sin(-0.5 * k * k * T)];
+      evolved[2 * j] = re * c - im * s;
+      evolved[2 * j + 1] = re * s + im * c;
+    }
+    fft.inverse(evolved);
+    const expected = (0.5 * Math.log(windowed(evolved) / windowed(seed))) / T / timeS;
+    const scale = 1 / (300 * 3.15576e13);
+    process.stdout.write(`free field in a sphere: rate ${ly.last_interval_rate_per_s.toExponential(4)} /s, expected ${expected.toExponential(4)} /s (1/T = ${scale.toExponential(2)})\n`);
+    expect(Math.abs(expected)).toBeGreaterThan(1e-3 * scale); // the window's own answer, far from the box's 0
+    expect(Math.abs(ly.last_interval_rate_per_s - expected)).toBeLessThan(1e-6 * scale);
   });
 });
