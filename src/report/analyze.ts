@@ -114,16 +114,21 @@ export async function analyzeSnapshot(
   const planes: SnapshotAnalysis["planes"] = {};
   if (withPictures) {
     const { kpcPerCode, densityUnit } = units(field);
-    const pics = await snapshotPictures(snap, field, kpcPerCode, densityUnit, pictures);
+    // bins at round-off level (a field with a few modes) would only stretch the log axis
+    const maxP = Math.max(...power.map((b) => b.P));
+    const d = field.grid.dims;
+    // drawn together: their rasterising shares the thread pool
+    const [pics, powerFigure, diagnostic] = await Promise.all([
+      snapshotPictures(snap, field, kpcPerCode, densityUnit, pictures),
+      powerPlot(power.filter((b) => b.P > 1e-12 * maxP), linearPrediction(file, field), "k [1/kpc]", `P(k) [kpc${["", "", "²", "³"][d]}]`, "Density power spectrum", timeCaption(snap)),
+      diagnosticFigures(field, diagnostics, physicalScales(field), timeCaption(snap)),
+    ]);
     figures["slice"] = pics.slice;
     if (pics.projection) figures["projection"] = pics.projection;
     if (pics.slicePlane) planes.slice = pics.slicePlane;
     if (pics.projectionPlane) planes.projection = pics.projectionPlane;
-    // bins at round-off level (a field with a few modes) would only stretch the log axis
-    const maxP = Math.max(...power.map((b) => b.P));
-    const d = field.grid.dims;
-    figures["power"] = await powerPlot(power.filter((b) => b.P > 1e-12 * maxP), linearPrediction(file, field), "k [1/kpc]", `P(k) [kpc${["", "", "²", "³"][d]}]`, "Density power spectrum", timeCaption(snap));
-    Object.assign(figures, await diagnosticFigures(field, diagnostics, physicalScales(field), timeCaption(snap)));
+    figures["power"] = powerFigure;
+    Object.assign(figures, diagnostic);
     for (const [name, fig] of Object.entries(figures)) writeFigure(outDir, name, fig);
   }
   return { file, dir: outDir, summary, figures, planes, time: snap.meta.time, caption: timeCaption(snap) };

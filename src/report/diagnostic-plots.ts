@@ -1,6 +1,6 @@
 /** Pictures of the field diagnostics: energy spectra, vortices, granules and the Husimi distribution. */
 import type { TopLevelSpec } from "vega-lite";
-import { renderVegaLite, type Figure } from "./render.js";
+import { figuresTogether, renderVegaLite, type Figure } from "./render.js";
 import { colourRange, fieldFigure } from "./field-image.js";
 import { powerPlot } from "./plots.js";
 import { rangedFigure } from "./phase-space-figure.js";
@@ -118,35 +118,35 @@ function speedPlot(points: NonNullable<FieldDiagnosticsResult["husimiPoints"]>, 
 
 /** Every picture of the field diagnostics, keyed by file name (without .png). */
 export async function diagnosticFigures(field: LoadedField, r: FieldDiagnosticsResult, s: PhysicalScales, caption: string): Promise<Record<string, Figure>> {
-  const figures: Record<string, Figure> = {};
+  const figures: Record<string, Promise<Figure>> = {};
   const box = field.grid.lengths.map((l) => l * s.kpc);
   const d = field.grid.dims;
   if (r.split) {
-    figures["energy-spectra"] = await energySpectraPlot(r.split, s, `kinetic energy spectra, ${caption}`);
+    figures["energy-spectra"] = energySpectraPlot(r.split, s, `kinetic energy spectra, ${caption}`);
     const vp = r.split.spectra.map((b) => ({ k: b.k / s.kpc, P: b.velocityPower * s.kms * s.kms * s.kpc ** d }));
     const peak = Math.max(...vp.map((b) => b.P));
-    figures["velocity-power"] = await powerPlot(vp.filter((b) => b.P > 1e-12 * peak), undefined, "k [1/kpc]", `P_u(k) [(km/s)² kpc${d === 1 ? "" : d === 2 ? "²" : "³"}]`, `power of √(ρ/ρ̄) v, ${caption}`);
+    figures["velocity-power"] = powerPlot(vp.filter((b) => b.P > 1e-12 * peak), undefined, "k [1/kpc]", `P_u(k) [(km/s)² kpc${d === 1 ? "" : d === 2 ? "²" : "³"}]`, `power of √(ρ/ρ̄) v, ${caption}`);
   }
   if (r.vortices && d === 2) {
     const pts = r.vortices.points.map((p) => ({ x: p.position[0]! * s.kpc, y: p.position[1]! * s.kpc, charge: p.charge > 0 ? "+1" : "−1" }));
-    figures["vortices"] = await vortexScatter(pts, box, `${r.vortices.positive + r.vortices.negative} vortices, ${caption}`);
+    figures["vortices"] = vortexScatter(pts, box, `${r.vortices.positive + r.vortices.negative} vortices, ${caption}`);
   } else if (r.vortices) {
     const [, n1, n2] = field.grid.shape;
     const area = field.grid.spacing[1] * field.grid.spacing[2] * s.kpc * s.kpc;
     const values = Float64Array.from(r.vortices.projection, (v) => (v * s.kpc) / area);
-    figures["vortices"] = await fieldFigure(
+    figures["vortices"] = fieldFigure(
       { nx: n2, ny: n1, values, x0: 0, y0: 0, width: box[2]!, height: box[1]! },
       { xTitle: "z [kpc]", yTitle: "y [kpc]", legend: "line length / area [1/kpc]", title: "Vortex lines projected along x", subtitle: caption, range: colourRange(values, Infinity), colourMap: "viridis" },
     );
   }
-  if (r.granules) figures["granules"] = await granulePlot(r.granules, s, `granules, ${caption}`);
+  if (r.granules) figures["granules"] = granulePlot(r.granules, s, `granules, ${caption}`);
   if (r.husimiImage) {
     const im = r.husimiImage;
-    figures["husimi"] = await rangedFigure(
+    figures["husimi"] = rangedFigure(
       { nx: im.x.length, ny: im.v.length, values: im.log10f, x: [0, box[0]!], y: [im.v[0]!, im.v[im.v.length - 1]!] },
       { xTitle: "x [kpc]", yTitle: "v [km/s]", legend: "log₁₀ f [Msun/(kpc km/s)]", caption: `Husimi f(x, v), η = ${(r.eta! * s.kpc).toPrecision(3)} kpc, ${caption}`, decades: 8 },
     );
   }
-  if (r.husimiPoints) figures["husimi-points"] = await speedPlot(r.husimiPoints, d, `Husimi speed distribution, η = ${(r.eta! * s.kpc).toPrecision(3)} kpc, ${caption}`);
-  return figures;
+  if (r.husimiPoints) figures["husimi-points"] = speedPlot(r.husimiPoints, d, `Husimi speed distribution, η = ${(r.eta! * s.kpc).toPrecision(3)} kpc, ${caption}`);
+  return figuresTogether(figures);
 }

@@ -11,10 +11,18 @@
  * width); the SVG is kept as the vector version. Tick labels go through
  * psibox's number formatter (registered as the Vega expression function
  * `psiboxTick`).
+ *
+ * Rasterising runs on libuv's thread pool (resvg's asynchronous render), so
+ * figures requested together (Promise.all) are drawn on all cores while the
+ * main thread builds the next SVG. Only the figure font's own files are
+ * loaded, found once per process through fontconfig; without fontconfig, or
+ * without the font, every system font is loaded (slower, same pictures).
  */
+import { execFileSync } from "node:child_process";
+import fs from "node:fs";
 import * as vega from "vega";
 import { compile, type TopLevelSpec } from "vega-lite";
-import { Resvg } from "@resvg/resvg-js";
+import { renderAsync, type ResvgRenderOptions } from "@resvg/resvg-js";
 import { formatTick } from "../core/format.js";
 
 /** A rendered figure. */
@@ -59,14 +67,40 @@ export const STYLE = {
   view: { stroke: "#333" },
 } as const;
 
-/** Rasterise an SVG with the figure font. */
-export function rasterise(svg: string, scale = PNG_SCALE): Figure {
-  const image = new Resvg(svg, {
-    fitTo: { mode: "zoom", value: scale },
-    font: { loadSystemFonts: true, defaultFontFamily: FONT, sansSerifFamily: FONT },
-    background: "white",
-  }).render();
+let fontFiles: string[] | null | undefined;
+
+/** The figure font's files (all its styles), asked of fontconfig once; null when it cannot say. */
+export function figureFontFiles(): string[] | null {
+  if (fontFiles !== undefined) return fontFiles;
+  fontFiles = null;
+  try {
+    const listed = execFileSync("fc-list", [FONT, "file"], { encoding: "utf8", timeout: 10_000, stdio: ["ignore", "pipe", "ignore"] });
+    const files = listed.split("\n").map((l) => l.trim().replace(/:$/, "")).filter((f) => f.length > 0 && fs.existsSync(f));
+    if (files.length > 0) fontFiles = files.sort();
+  } catch {
+    // no fontconfig: resvg loads the system's fonts itself
+  }
+  return fontFiles;
+}
+
+/** Options of resvg: the zoom, the figure font and a white background. */
+function rasterOptions(scale: number): ResvgRenderOptions {
+  const files = figureFontFiles();
+  const font = files ? { loadSystemFonts: false, fontFiles: files } : { loadSystemFonts: true };
+  return { fitTo: { mode: "zoom", value: scale }, font: { ...font, defaultFontFamily: FONT, sansSerifFamily: FONT }, background: "white" };
+}
+
+/** Rasterise an SVG with the figure font (on libuv's thread pool). */
+export async function rasterise(svg: string, scale = PNG_SCALE): Promise<Figure> {
+  const image = await renderAsync(svg, rasterOptions(scale));
   return { svg, png: image.asPng(), width: image.width, height: image.height };
+}
+
+/** Figures drawn together (their rasterising shares the thread pool), awaited into a record in the keys' order; undefined entries are left out. */
+export async function figuresTogether(pending: Readonly<Record<string, Promise<Figure> | undefined>>): Promise<Record<string, Figure>> {
+  const entries = Object.entries(pending).filter((e): e is [string, Promise<Figure>] => e[1] !== undefined);
+  const figures = await Promise.all(entries.map(([, f]) => f));
+  return Object.fromEntries(entries.map(([name], i) => [name, figures[i]!]));
 }
 
 /** Render a Vega spec to SVG and PNG. */

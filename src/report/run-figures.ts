@@ -21,7 +21,7 @@ import { AXIS_NAMES, type DensityPlane } from "./planes.js";
 import { axisUnit } from "./snapshot-pictures.js";
 import { encodeMovie, findEncoder } from "./movie.js";
 import type { PictureOptions } from "./picture-options.js";
-import type { Figure } from "./render.js";
+import { figuresTogether, type Figure } from "./render.js";
 
 export interface RunOutputs {
   readonly figures: Record<string, Figure>;
@@ -76,6 +76,16 @@ function breakdownMarks(runDir: string, t0: number, unit: string): BreakdownMark
   return { lnN, ...(dep ? { fraction: dep.depletion_clock.fraction } : {}), rings };
 }
 
+/** Frames drawn at a time: their rasterising shares the thread pool, and few are held in memory at once. */
+const FRAMES_TOGETHER = 4;
+
+/** Run `draw(0 … count − 1)` in groups of FRAMES_TOGETHER at a time. */
+async function inGroups(count: number, draw: (i: number) => Promise<void>): Promise<void> {
+  for (let i0 = 0; i0 < count; i0 += FRAMES_TOGETHER) {
+    await Promise.all(Array.from({ length: Math.min(FRAMES_TOGETHER, count - i0) }, (_, j) => draw(i0 + j)));
+  }
+}
+
 /** Frames of the whole run on one colour range; returns how many were written. */
 async function writeFrames(snapshots: readonly SnapshotLike[], files: readonly string[], frameDir: string, first: Snapshot, opts: PictureOptions): Promise<number> {
   fs.mkdirSync(frameDir, { recursive: true });
@@ -90,7 +100,7 @@ async function writeFrames(snapshots: readonly SnapshotLike[], files: readonly s
       return Array.from({ length: n }, (_, i) => ({ x: i * unit, rho: s.psi[2 * i]! ** 2 + s.psi[2 * i + 1]! ** 2 }));
     });
     const all = profiles.flat().map((p) => p.rho);
-    for (const [i, rows] of profiles.entries()) writeFileAtomic(frame(i), (await densityLinePlot(rows, "x [kpc]", "ρ [Msun/kpc³]", "Density", snapshots[i]!.caption, all)).png);
+    await inGroups(profiles.length, async (i) => writeFileAtomic(frame(i), (await densityLinePlot(profiles[i]!, "x [kpc]", "ρ [Msun/kpc³]", "Density", snapshots[i]!.caption, all)).png));
     return profiles.length;
   }
   const pick = (s: SnapshotLike) => (dims === 3 ? s.planes.projection : s.planes.slice)!;
@@ -101,7 +111,8 @@ async function writeFrames(snapshots: readonly SnapshotLike[], files: readonly s
   const range = fixed ? ([fixed[0], fixed[1]] as const) : colourRange(Float64Array.of(hi - opts.decades, hi), opts.decades);
   const p0 = pick(snapshots[0]!);
   const unit = axisUnit(Math.max(...first.meta.boxSizeKpc)).name;
-  for (const [i, s] of snapshots.entries()) {
+  await inGroups(snapshots.length, async (i) => {
+    const s = snapshots[i]!;
     const plane = pick(s);
     const fig = await fieldFigure(
       { ...plane, values: logs[i]! },
@@ -116,32 +127,34 @@ async function writeFrames(snapshots: readonly SnapshotLike[], files: readonly s
       },
     );
     writeFileAtomic(frame(i), fig.png);
-  }
+  });
   return snapshots.length;
 }
 
 /** Make the run's figures (and frames and movie when asked). */
 export async function runFigures(runDir: string, outDir: string, snapshots: readonly SnapshotLike[], files: readonly string[], first: Snapshot | undefined, opts: { frames: boolean; movie: boolean; pictures: PictureOptions }): Promise<RunOutputs> {
-  const figures: Record<string, Figure> = {};
+  const pending: Record<string, Promise<Figure>> = {};
   const series = readSeries(path.join(runDir, "timeseries.csv"));
   if (series) {
     const tTitle = `t [${series.unit}]`;
-    figures["energies"] = await energiesPlot(series.rows, series.tCol, tTitle);
+    pending["energies"] = energiesPlot(series.rows, series.tCol, tTitle);
     if ("squeezing_dB" in series.rows[0]!) {
       const lnN = Math.log(Number(series.rows[0]!["particles_N"]));
       const clocks = clockInfo(runDir, Number(series.rows[0]![series.tCol]), series.unit);
-      figures["clocks"] = await clocksPlot(series.rows, series.tCol, tTitle, { lnN, ...clocks });
+      pending["clocks"] = clocksPlot(series.rows, series.tCol, tTitle, { lnN, ...clocks });
     }
     const marks = "lyapunov_integral" in series.rows[0]! || "depleted_N" in series.rows[0]! ? breakdownMarks(runDir, Number(series.rows[0]![series.tCol]), series.unit) : undefined;
-    if (marks) figures["breakdown"] = await breakdownPlot(series.rows, series.tCol, tTitle, marks);
+    if (marks) pending["breakdown"] = breakdownPlot(series.rows, series.tCol, tTitle, marks);
   }
   if (first && first.meta.cells.length === 1 && files.length > 1) {
     const rows = files.map((f) => {
       const s = readSnapshot(f);
       return { t: s.meta.time, logRho: Float64Array.from({ length: s.meta.cells[0]! }, (_, i) => Math.log10(Math.max(s.psi[2 * i]! ** 2 + s.psi[2 * i + 1]! ** 2, 1e-300))) };
     });
-    figures["spacetime"] = await spacetimeFigure(rows, first.meta.boxSizeKpc[0]!, first.meta.timeUnit, { colourMap: opts.pictures.colourMap, decades: opts.pictures.decades, ...(opts.pictures.densityRange ? { range: opts.pictures.densityRange } : {}) });
+    pending["spacetime"] = spacetimeFigure(rows, first.meta.boxSizeKpc[0]!, first.meta.timeUnit, { colourMap: opts.pictures.colourMap, decades: opts.pictures.decades, ...(opts.pictures.densityRange ? { range: opts.pictures.densityRange } : {}) });
   }
+  // drawn together: their rasterising shares the thread pool
+  const figures = await figuresTogether(pending);
   if (!(opts.frames || opts.movie) || !first) return { figures };
   const frameDir = path.join(outDir, "frames");
   const frames = await writeFrames(snapshots, files, frameDir, first, opts.pictures);

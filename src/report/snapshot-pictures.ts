@@ -81,12 +81,13 @@ export async function snapshotPictures(snap: Snapshot, field: LoadedField, kpcPe
       { xTitle: axisTitle(plane.across), yTitle: axisTitle(plane.up), legend, title: `${title(plane, what)} · ${when}`, subtitle: rangeNote(values, range, options.decades, fixed !== undefined), range, colourMap: options.colourMap },
     );
   };
-  const slice = await draw(slicePlane, grid.dims === 3 ? "density slice" : "density", "log₁₀ ρ [Msun/kpc³]", options.densityRange);
-  if (grid.dims !== 3) return { slice, slicePlane };
+  const slice = draw(slicePlane, grid.dims === 3 ? "density slice" : "density", "log₁₀ ρ [Msun/kpc³]", options.densityRange);
+  if (grid.dims !== 3) return { slice: await slice, slicePlane };
   // column density in Msun/kpc² whatever the axis unit
   const projPlane = densityPlane(grid, rho, "projection", { normal, index: null }, lengthUnit);
   const kpcPerAxis = 1 / unit.perKpc;
   const column = { ...projPlane, values: projPlane.values.map((v) => v * kpcPerAxis) };
-  const projection = await draw(column, "column density", "log₁₀ Σ [Msun/kpc²]", options.columnRange);
-  return { slice, projection, slicePlane, projectionPlane: column };
+  // drawn together: the two rasterise at once
+  const [sliceFigure, projection] = await Promise.all([slice, draw(column, "column density", "log₁₀ Σ [Msun/kpc²]", options.columnRange)]);
+  return { slice: sliceFigure, projection, slicePlane, projectionPlane: column };
 }

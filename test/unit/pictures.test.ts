@@ -118,3 +118,25 @@ describe("conservation drifts", () => {
     expect(residual(100) / residual(200)).toBeCloseTo(4, 1); // trapezoid: second order
   });
 });
+
+describe("the figure font", () => {
+  it("is loaded from its own files, and draws the same pixels as loading every system font", async () => {
+    const { Resvg } = await import("@resvg/resvg-js");
+    const { FONT, PNG_SCALE, figureFontFiles, rasterise } = await import("../../src/report/render.js");
+    const { PNG } = await import("pngjs");
+    const files = figureFontFiles();
+    expect(files?.some((f) => /DejaVuSans\.ttf$/.test(f))).toBe(true);
+    // the glyphs the labels use, in the regular and the bold title style
+    const svg =
+      `<svg xmlns="http://www.w3.org/2000/svg" width="240" height="60"><text x="4" y="22" font-family="${FONT}" font-size="10">⟨ρ⟩ log₁₀ Σ [Msun/kpc²] −∫λ dt χ</text>` +
+      `<text x="4" y="48" font-family="${FONT}" font-weight="bold" font-size="11">Density power spectrum</text></svg>`;
+    const all = new Resvg(svg, { fitTo: { mode: "zoom", value: PNG_SCALE }, font: { loadSystemFonts: true, defaultFontFamily: FONT, sansSerifFamily: FONT }, background: "white" }).render();
+    const own = PNG.sync.read((await rasterise(svg)).png);
+    expect([own.width, own.height]).toEqual([all.width, all.height]);
+    expect(Buffer.compare(Buffer.from(own.data), Buffer.from(all.pixels))).toBe(0);
+    // and there is text: dark pixels
+    let ink = 0;
+    for (let i = 0; i < own.data.length; i += 4) if (own.data[i]! < 128) ink++;
+    expect(ink).toBeGreaterThan(500);
+  });
+});
