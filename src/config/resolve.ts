@@ -17,6 +17,7 @@ import { resolveBackgroundAndSpan, resolveHubble } from "./resolve-span.js";
 import { resolveIntegrator, resolveOutput } from "./resolve-output.js";
 import { resolveSidecar, type ResolvedSidecar } from "./resolve-sidecar.js";
 import { resolveBreakdown, type ResolvedBreakdown } from "./resolve-breakdown.js";
+import { resolveContact, type ResolvedContact } from "./resolve-contact.js";
 
 /** Background in code units. */
 export type { BackgroundSpec as ResolvedBackground } from "../physics/cosmology/background.js";
@@ -30,6 +31,8 @@ export interface ResolvedRun {
   /** The config with every default filled in (physical units, as text). */
   readonly config: CheckedConfig;
   readonly particleMassKg: number;
+  /** The particle's contact interaction (particle.scattering_length or particle.decay_constant), if any. */
+  readonly contact: ResolvedContact | undefined;
   /** The code length unit ℓ: the first axis's box length [m]. */
   readonly lengthUnitM: number;
   readonly grid: {
@@ -83,6 +86,10 @@ export function resolveRun(config: CheckedConfig, name: string, cwd: string): Re
   const ctx: UnitContext = { littleH };
   const m = positive("particle.mass", read("particle.mass", config.particle.mass, "mass", ctx));
   const boxSI = perAxis("grid.box", config.grid.box, dims).map((t) => positive("grid.box", read("grid.box", t, "length", ctx)));
+  const contact = resolveContact(config.particle, "particle", m);
+  if (contact && config.background.kind !== "static") {
+    throw new ConfigError(contact.decayConstantJ === undefined ? "particle.scattering_length" : "particle.decay_constant", 'a contact interaction runs in static boxes only (background.kind = "static")');
+  }
   const units = new CodeUnits(m, boxSI[0] as number);
   const lengths = boxSI.map((l) => l / units.lengthM);
   new Grid(cells, lengths); // validates the cell counts (powers of two) with errors naming grid.cells
@@ -103,6 +110,7 @@ export function resolveRun(config: CheckedConfig, name: string, cwd: string): Re
     sidecar,
     breakdown,
     particleMassKg: m,
+    contact,
     lengthUnitM: units.lengthM,
     grid: { cells, lengths, gravity: config.grid.gravity, poisson: config.grid.poisson },
     background,

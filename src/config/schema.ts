@@ -24,9 +24,18 @@ export const gridSchema = z.strictObject({
   poisson: z.enum(["spectral", "finite-difference"]).default("spectral"),
 });
 
+/** The keys of a table that may carry a contact interaction (the particle's, a species'); read by config/resolve-contact.ts. */
+export const contactKeys = {
+  /** s-wave scattering length a_s, e.g. "1e-80 m" (negative: attractive). @default none */
+  scattering_length: quantity.optional(),
+  /** Decay constant f of an axion-like field, e.g. "1e17 GeV": a_s = −(ħc)(mc²)/(32π f²), attractive. @default none */
+  decay_constant: quantity.optional(),
+};
+
 export const particleSchema = z.strictObject({
   /** Particle mass, e.g. "1e-22 eV". */
   mass: quantity,
+  ...contactKeys,
 });
 
 export const backgroundSchema = z.discriminatedUnion("kind", [

@@ -116,8 +116,8 @@ export abstract class EngineBase implements StepEngine {
     }
   }
 
-  kick(field: ComplexGrid, potential: RealGrid, factor: number, lo: number, hi: number): void {
-    kickRows(this.view(field), this.view(potential), factor, this.shape[2], lo, hi);
+  kick(field: ComplexGrid, potential: RealGrid, factor: number, contact: number, source: ComplexGrid, lo: number, hi: number): void {
+    kickRows(this.view(field), this.view(potential), factor, this.shape[2], lo, hi, contact, this.view(source));
   }
 
   fillPhases(set: number, factor: number): void {
@@ -191,8 +191,8 @@ export abstract class EngineBase implements StepEngine {
     crossDensityRows(this.view("psi"), this.view(field), this.view(target), this.shape[2], lo, hi);
   }
 
-  tangentSource(field: ComplexGrid, potential: RealGrid, factor: number, lo: number, hi: number): void {
-    tangentSourceRows(this.view("psi"), this.view(field), this.view(potential), factor, this.shape[2], lo, hi);
+  tangentSource(field: ComplexGrid, potential: RealGrid, factor: number, contact: number, lo: number, hi: number): void {
+    tangentSourceRows(this.view("psi"), this.view(field), this.view(potential), factor, this.shape[2], lo, hi, contact);
   }
 
   overlap(field: ComplexGrid, lo: number, hi: number, out: Float64Array): void {
@@ -204,7 +204,7 @@ export abstract class EngineBase implements StepEngine {
   }
 
   abstract axis(field: ComplexGrid, axis: number, inverse: boolean, lo: number, hi: number): void;
-  abstract rows(field: ComplexGrid, inverse: boolean, kick: number, potential: RealGrid, density: boolean, lo: number, hi: number): number;
+  abstract rows(field: ComplexGrid, inverse: boolean, kick: number, potential: RealGrid, density: boolean, contact: number, source: ComplexGrid, lo: number, hi: number): number;
   abstract driftOuter(field: ComplexGrid, phases: number, axis: number, lo: number, hi: number, gradient: boolean): number;
   abstract realRows(target: PoissonTarget, real: RealGrid, lo: number, hi: number): void;
   abstract realRowsInverse(target: PoissonTarget, real: RealGrid, lo: number, hi: number): void;

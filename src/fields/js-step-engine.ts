@@ -52,8 +52,8 @@ export class JsStepEngine extends EngineBase {
     this.cfft.pass(this.view(field), axis, inverse, lo, hi);
   }
 
-  rows(field: ComplexGrid, inverse: boolean, kick: number, potential: RealGrid, density: boolean, lo: number, hi: number): number {
-    if (kick !== 0) this.kick(field, potential, kick, lo, hi);
+  rows(field: ComplexGrid, inverse: boolean, kick: number, potential: RealGrid, density: boolean, contact: number, source: ComplexGrid, lo: number, hi: number): number {
+    if (kick !== 0) this.kick(field, potential, kick, contact, source, lo, hi);
     this.cfft.pass(this.view(field), 2, inverse, lo, hi);
     return density ? this.density(field, potential, false, lo, hi) : 0;
   }

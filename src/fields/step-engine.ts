@@ -35,18 +35,18 @@ export type RealGrid = "phi" | "aux";
 export type PoissonTarget = "periodic" | "isolated";
 
 export interface StepEngine {
-  /** field ← e^{−i·potential·factor} field over rows. */
-  kick(field: ComplexGrid, potential: RealGrid, factor: number, lo: number, hi: number): void;
+  /** field ← e^{−i·factor·(potential + contact·|source|²)} field over rows (source: the field itself, or a tangent's ψ). */
+  kick(field: ComplexGrid, potential: RealGrid, factor: number, contact: number, source: ComplexGrid, lo: number, hi: number): void;
   /** Phase set `set`: (cos, sin)(−½ k² D) per index of every axis, D = `factor`. */
   fillPhases(set: number, factor: number): void;
   /** FFT pass of a field along `axis` over units. */
   axis(field: ComplexGrid, axis: number, inverse: boolean, lo: number, hi: number): void;
   /**
    * FFT pass of a field along the last axis over rows; with `kick` ≠ 0 the
-   * rows get e^{−i·potential·kick} first, with `density` potential ← |field|²
-   * afterwards (returns Σ|field|²).
+   * rows get e^{−i·kick·(potential + contact·|source|²)} first, with `density`
+   * potential ← |field|² afterwards (returns Σ|field|²).
    */
-  rows(field: ComplexGrid, inverse: boolean, kick: number, potential: RealGrid, density: boolean, lo: number, hi: number): number;
+  rows(field: ComplexGrid, inverse: boolean, kick: number, potential: RealGrid, density: boolean, contact: number, source: ComplexGrid, lo: number, hi: number): number;
   /** Copy rows of one complex grid to another. */
   copy(from: ComplexGrid, to: ComplexGrid, lo: number, hi: number): void;
   /** Over rows: Σ|ψ|², Σ|ψ|⁴, Σ|ψ|²φ and max |ψ|² into out[0…3]. */
@@ -81,8 +81,8 @@ export interface StepEngine {
   poissonOuter(axis: number, lo: number, hi: number): void;
   /** Tangent fields: target ← 2 Re(ψ̄ field) over rows (the source of the linearised potential). */
   crossDensity(field: ComplexGrid, target: RealGrid, lo: number, hi: number): void;
-  /** Tangent fields: field ← field − i·factor·potential·ψ over rows (the linear term of the kick). */
-  tangentSource(field: ComplexGrid, potential: RealGrid, factor: number, lo: number, hi: number): void;
+  /** Tangent fields: field ← field − i·factor·(potential + 2·contact·Re(ψ̄ field))·ψ over rows (the linear term of the kick). */
+  tangentSource(field: ComplexGrid, potential: RealGrid, factor: number, contact: number, lo: number, hi: number): void;
   /** Over rows: Σ Re(ψ̄ field), Σ Im(ψ̄ field), Σ|field|² into out[0…2]. */
   overlap(field: ComplexGrid, lo: number, hi: number, out: Float64Array): void;
   /** field ← scale·(field − (re + i·im)ψ) over rows. */

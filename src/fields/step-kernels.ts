@@ -6,10 +6,14 @@
  */
 import type { Triple } from "../grid/grid.js";
 
-/** ψ ← e^{−iφK} ψ over rows [lo, hi). */
-export function kickRows(psi: Float64Array, phi: Float64Array, factor: number, n2: number, lo: number, hi: number): void {
+/**
+ * ψ ← e^{−iK(φ + g|s|²)} ψ over rows [lo, hi), K = `factor`, g = `contact`,
+ * s = `source` (ψ itself, or a tangent's reference field); g = 0: e^{−iKφ}.
+ */
+export function kickRows(psi: Float64Array, phi: Float64Array, factor: number, n2: number, lo: number, hi: number, contact = 0, source = psi): void {
   for (let i = lo * n2; i < hi * n2; i++) {
-    const angle = -(phi[i] as number) * factor;
+    const v = contact === 0 ? (phi[i] as number) : (phi[i] as number) + contact * (source[2 * i]! * source[2 * i]! + source[2 * i + 1]! * source[2 * i + 1]!);
+    const angle = -v * factor;
     const c = Math.cos(angle);
     const s = Math.sin(angle);
     const re = psi[2 * i] as number;

@@ -1,10 +1,10 @@
 /**
  * The elementwise passes of a tangent-linear field dψ beside the reference
  * field ψ, as functions of a row range (the same arithmetic per cell for any
- * thread count). The linearised kick of the split-step,
- *   dψ ← e^{−iKφ} (dψ − iK dφ ψ),   ∇²dφ = 2 Re(ψ̄ dψ),
+ * thread count). The linearised kick of the split-step with contact term g,
+ *   dψ ← e^{−iK(φ + g|ψ|²)} (dψ − iK(dφ + 2g Re(ψ̄ dψ)) ψ),   ∇²dφ = 2 Re(ψ̄ dψ),
  * is `crossDensityRows` (the source of dφ), the Poisson passes, then
- * `tangentSourceRows` (dψ − iK dφ ψ) and the ordinary kick. The projections
+ * `tangentSourceRows` (the linear term) and the kick of ψ's phase. The projections
  * onto ψ (the neutral directions of the flow) are `overlapRows` and
  * `combineRows`. A row is one run of the last axis, n2 cells.
  */
@@ -16,10 +16,14 @@ export function crossDensityRows(psi: Float64Array, field: Float64Array, target:
   }
 }
 
-/** dψ ← dψ − i·factor·dφ·ψ over rows [lo, hi) (the kick's linear term, before its phase). */
-export function tangentSourceRows(psi: Float64Array, field: Float64Array, dphi: Float64Array, factor: number, n2: number, lo: number, hi: number): void {
+/**
+ * dψ ← dψ − i·K·(dφ + 2g Re(ψ̄ dψ))·ψ over rows [lo, hi), K = `factor`, g = `contact`
+ * (the kick's linear term, before its phase; the contact term's derivative is 2g Re(ψ̄ dψ)).
+ */
+export function tangentSourceRows(psi: Float64Array, field: Float64Array, dphi: Float64Array, factor: number, n2: number, lo: number, hi: number, contact = 0): void {
   for (let i = lo * n2; i < hi * n2; i++) {
-    const g = factor * dphi[i]!;
+    const dv = contact === 0 ? dphi[i]! : dphi[i]! + 2 * contact * (psi[2 * i]! * field[2 * i]! + psi[2 * i + 1]! * field[2 * i + 1]!);
+    const g = factor * dv;
     // −i g (ψr + i ψi) = g ψi − i g ψr
     field[2 * i] = field[2 * i]! + g * psi[2 * i + 1]!;
     field[2 * i + 1] = field[2 * i + 1]! - g * psi[2 * i]!;

@@ -11,7 +11,7 @@ import { BLOCK, CONSTANTS_ADDRESS, RESERVED_BYTES, TWIDDLE_STRIDE } from "./wasm
 export interface WasmKernelExports {
   rowsPass(
     data: number, n2: number, lo: number, hi: number, buf: number, tw: number, rev: number, inverse: number, scale: number,
-    phi: number, kickFactor: number, density: number,
+    phi: number, kickFactor: number, density: number, src: number, contact: number,
   ): number;
   initConstants(): void;
   /** The shared numbers of wasm/layout.ts as the module was built with them, and the constants table's size. */
@@ -31,7 +31,7 @@ export interface WasmKernelExports {
   ): void;
   realRows(input: number, out: number, n2: number, lo: number, hi: number, buf: number, tw: number, rev: number, ctw: number): void;
   realRowsInverse(spec: number, out: number, n2: number, lo: number, hi: number, buf: number, tw: number, rev: number, ctw: number): void;
-  kick(psi: number, phi: number, factor: number, lo: number, hi: number): void;
+  kick(psi: number, src: number, phi: number, factor: number, contact: number, lo: number, hi: number): void;
   moments(psi: number, phi: number, lo: number, hi: number, out: number): void;
   sinCos(angles: number, out: number, count: number): void;
   phaseTable(kk: number, factor: number, out: number, count: number): void;

@@ -55,9 +55,9 @@ export class WasmStepEngine extends EngineBase {
     }
   }
 
-  override kick(field: ComplexGrid, potential: RealGrid, factor: number, lo: number, hi: number): void {
+  override kick(field: ComplexGrid, potential: RealGrid, factor: number, contact: number, source: ComplexGrid, lo: number, hi: number): void {
     const n2 = this.shape[2];
-    this.k.kick(this.at(field), this.at(potential), factor, lo * n2, hi * n2);
+    this.k.kick(this.at(field), this.at(source), this.at(potential), factor, contact, lo * n2, hi * n2);
   }
 
   /** The moments on the SIMD kernel (written to this thread's scratch block, then copied out). */
@@ -71,10 +71,14 @@ export class WasmStepEngine extends EngineBase {
     this.pass(this.at(field), this.shape, axis, inverse, lo, hi);
   }
 
-  rows(field: ComplexGrid, inverse: boolean, kick: number, potential: RealGrid, density: boolean, lo: number, hi: number): number {
+  rows(field: ComplexGrid, inverse: boolean, kick: number, potential: RealGrid, density: boolean, contact: number, source: ComplexGrid, lo: number, hi: number): number {
     const n2 = this.shape[2];
     const t = this.tables(n2);
-    return this.k.rowsPass(this.at(field), n2, lo, hi, this.buf, inverse ? t.inverse : t.forward, t.reversal, inverse ? 1 : 0, inverse ? 1 / n2 : 1, this.at(potential), kick, density ? 1 : 0);
+    const { forward, inverse: back, reversal } = t;
+    return this.k.rowsPass(
+      this.at(field), n2, lo, hi, this.buf, inverse ? back : forward, reversal, inverse ? 1 : 0, inverse ? 1 / n2 : 1,
+      this.at(potential), kick, density ? 1 : 0, this.at(source), contact,
+    );
   }
 
   halfAxis(target: PoissonTarget, axis: number, inverse: boolean, lo: number, hi: number): void {

@@ -38,8 +38,16 @@ import type { ExtraLayout } from "../fields/step-memory.js";
 import type { StepPlan, PlannedPass } from "./step-plan.js";
 import type { StepTask } from "./step-task.js";
 
-/** The kind of an extra field's kick. */
-export type FieldKind = { readonly kind: "own-gravity" } | { readonly kind: "species"; readonly massRatio: number } | { readonly kind: "tangent" };
+/**
+ * The kind of an extra field's kick. A species may carry its own contact
+ * coefficient g (code units, see physics/contact.ts `contactCode`): its kick
+ * is e^{−iμK(φ + g|ψ_i|²)}, its own density only (no cross-species contact).
+ * Own-gravity and tangent fields take the reference field's coefficient.
+ */
+export type FieldKind =
+  | { readonly kind: "own-gravity" }
+  | { readonly kind: "species"; readonly massRatio: number; readonly contact?: number }
+  | { readonly kind: "tangent" };
 
 /** How a kind takes part in the step. */
 interface KindRule {
@@ -55,25 +63,32 @@ interface KindRule {
   readonly kickScale: number;
   /** Its kicks are the reference's, linearised: dφ of 2 Re(ψ̄ dψ) solved into "aux" before each. */
   readonly linearised: boolean;
+  /** Its contact coefficient g (0: none); a tangent's is the reference's, linearised. */
+  readonly contact: number;
 }
 
-function ruleOf(kind: FieldKind): KindRule {
+function ruleOf(kind: FieldKind, reference: number): KindRule {
   switch (kind.kind) {
     case "own-gravity":
-      return { potential: "aux", ownPotential: true, sources: false, driftScale: 1, kickScale: 1, linearised: false };
-    case "species":
+      return { potential: "aux", ownPotential: true, sources: false, driftScale: 1, kickScale: 1, linearised: false, contact: reference };
+    case "species": {
       if (!(kind.massRatio > 0) || !Number.isFinite(kind.massRatio)) throw new RangeError(`a species' mass ratio must be positive, got ${kind.massRatio}`);
-      return { potential: "phi", ownPotential: false, sources: true, driftScale: 1 / kind.massRatio, kickScale: kind.massRatio, linearised: false };
+      const contact = kind.contact ?? 0;
+      if (!Number.isFinite(contact)) throw new RangeError(`a species' contact coefficient must be finite, got ${contact}`);
+      return { potential: "phi", ownPotential: false, sources: true, driftScale: 1 / kind.massRatio, kickScale: kind.massRatio, linearised: false, contact };
+    }
     case "tangent":
-      return { potential: "phi", ownPotential: false, sources: false, driftScale: 1, kickScale: 1, linearised: true };
+      return { potential: "phi", ownPotential: false, sources: false, driftScale: 1, kickScale: 1, linearised: true, contact: reference };
   }
 }
 
 /** What the extra fields ask of their stepper. */
 export interface PassRunner {
   readonly plan: StepPlan;
-  /** Whether the step has gravity (no kicks without). */
+  /** Whether the step has gravity (without, φ = 0 and fields have no potentials of their own). */
   readonly gravity: boolean;
+  /** Whether the step kicks at all: gravity, or any contact term. */
+  readonly kicks: boolean;
   runPass(units: number, task: StepTask): number;
   runPasses(passes: readonly PlannedPass[]): void;
   /** Fill phase set `set` for drift factor D (skipped when it already holds it). */
@@ -88,9 +103,10 @@ export class ExtraFields {
   private readonly owed: Float64Array;
   private readonly undoOwed: Float64Array;
 
-  constructor(kinds: readonly FieldKind[]) {
+  /** @param referenceContact the reference field's contact coefficient (taken by own-gravity and tangent fields) */
+  constructor(kinds: readonly FieldKind[], referenceContact = 0) {
     this.count = kinds.length;
-    this.rules = kinds.map(ruleOf);
+    this.rules = kinds.map((k) => ruleOf(k, referenceContact));
     if (this.rules.some((r) => r.linearised) && this.rules.some((r) => r.sources)) {
       throw new RangeError("tangent fields cannot be advanced beside species: the tangents of the species' densities would enter the potential");
     }
@@ -118,6 +134,16 @@ export class ExtraFields {
     return this.rules[i - 1]!;
   }
 
+  /** Whether any field has a contact term. */
+  get contact(): boolean {
+    return this.rules.some((r) => r.contact !== 0);
+  }
+
+  /** The fields (not tangents, whose kick is ψ's) with a contact term, with μ_i|g_i|: their contact phase per kick factor and density. */
+  contactFields(): { index: number; scale: number }[] {
+    return this.rules.flatMap((r, i) => (r.contact !== 0 && !r.linearised ? [{ index: i + 1, scale: r.kickScale * Math.abs(r.contact) }] : []));
+  }
+
   /** Whether field i is a tangent field (kicked only together with ψ). */
   isTangent(i: number): boolean {
     this.check(i);
@@ -143,23 +169,38 @@ export class ExtraFields {
   private prepareKick(r: PassRunner, i: number, kick: number): void {
     const rule = this.rule(i);
     const field = this.grid(i);
-    if (rule.ownPotential) {
+    if (rule.ownPotential && r.gravity) {
       r.runPass(r.plan.rows, { op: "density", field, target: rule.potential, add: false });
       r.runPasses(r.plan.potential(rule.potential));
     } else if (rule.linearised) {
-      r.runPass(r.plan.rows, { op: "cross-density", field, target: "aux" });
-      r.runPasses(r.plan.potential("aux"));
-      r.runPass(r.plan.rows, { op: "tangent-source", field, potential: "aux", factor: kick });
+      // without gravity dφ = 0: φ itself is zero then
+      if (r.gravity) {
+        r.runPass(r.plan.rows, { op: "cross-density", field, target: "aux" });
+        r.runPasses(r.plan.potential("aux"));
+      }
+      r.runPass(r.plan.rows, { op: "tangent-source", field, potential: r.gravity ? "aux" : "phi", factor: kick, contact: rule.contact });
     }
+  }
+
+  /** The potential field i's kicks multiply (φ = 0 stands in for an own potential without gravity). */
+  private kickPotential(r: PassRunner, i: number): RealGrid {
+    const rule = this.rule(i);
+    return rule.ownPotential && !r.gravity ? "phi" : rule.potential;
+  }
+
+  /** Where the contact term of field i's kick takes |·|² from: ψ for a tangent, else the field itself. */
+  private contactSource(i: number): ComplexGrid {
+    return this.rule(i).linearised ? "psi" : this.grid(i);
   }
 
   /** Apply field i's owed kick (a tangent's only while ψ still owes the same kick: see the stepper). */
   synchronize(r: PassRunner, i: number): void {
     const k = this.owed[i]!;
     this.owed[i] = 0;
-    if (k === 0 || !r.gravity) return;
+    if (k === 0 || !r.kicks) return;
     this.prepareKick(r, i, k);
-    r.runPass(r.plan.rows, { op: "kick", field: this.grid(i), potential: this.rule(i).potential, factor: k });
+    const rule = this.rule(i);
+    r.runPass(r.plan.rows, { op: "kick", field: this.grid(i), potential: this.kickPotential(r, i), factor: k, contact: rule.contact, source: this.contactSource(i) });
   }
 
   /** Apply the owed kicks of every tangent field (before ψ applies its own). */
@@ -175,12 +216,13 @@ export class ExtraFields {
   drift(r: PassRunner, drift: number, k1: number): void {
     for (let i = 1; i <= this.count; i++) {
       const rule = this.rule(i);
-      const kick = r.gravity ? this.owed[i]! + k1 * rule.kickScale : 0;
+      const kick = r.kicks ? this.owed[i]! + k1 * rule.kickScale : 0;
       this.owed[i] = 0;
       if (kick !== 0) this.prepareKick(r, i, kick);
       const set = rule.driftScale !== 1 ? i : 0;
       r.fillPhases(set, drift * rule.driftScale);
-      r.runPasses(r.plan.drift(this.grid(i), set, { kick, potential: rule.potential, density: false, gradient: false }));
+      const options = { kick, potential: this.kickPotential(r, i), density: false, gradient: false, contact: rule.contact, source: this.contactSource(i) };
+      r.runPasses(r.plan.drift(this.grid(i), set, options));
     }
   }
 
@@ -193,7 +235,7 @@ export class ExtraFields {
 
   /** The closing kick K₂ of the step, owed by every field. */
   owe(r: PassRunner, k2: number): void {
-    for (let i = 1; i <= this.count; i++) this.owed[i] = r.gravity ? k2 * this.rule(i).kickScale : 0;
+    for (let i = 1; i <= this.count; i++) this.owed[i] = r.kicks ? k2 * this.rule(i).kickScale : 0;
   }
 
   /** Copy every field to its undo copy (`save`) or back, with its owed kick. */

@@ -20,6 +20,11 @@
  * and cos per cell and step instead of two. Until then the closing kick is
  * owed; reading `psi` applies it (`rawPsi` gives ψ without it, which has the
  * same |ψ|). The density for the potential is taken in the drift's last pass.
+ *
+ * A contact interaction (the Gross–Pitaevskii term) adds g|ψ|² to the
+ * potential the kicks multiply, ψ ← e^{−iK(φ + g|ψ|²)} ψ (static box, a = 1):
+ * the kick leaves |ψ| unchanged, so it is still exact and the folding above
+ * still holds. Without gravity φ = 0 and only the contact term kicks.
  */
 import type { Grid } from "../grid/grid.js";
 import type { Background } from "../physics/cosmology/background.js";
@@ -62,6 +67,8 @@ export class SplitStepper {
   trackKinetic = false;
   /** ½∫|∇ψ|² dV measured during the last drift (NaN unless trackKinetic). */
   midKineticTilde = Number.NaN;
+  /** The contact coefficient g of ψ (code units; 0: none): the kick is e^{−iK(φ + g|ψ|²)}. */
+  readonly contact: number;
   /** The last step's factors D = ∫dt/a² and K = K₁ + K₂ = ∫dt/a. */
   lastDrift = 0;
   lastKick = 0;
@@ -93,12 +100,18 @@ export class SplitStepper {
    * @param fft the FFT backend ("auto": WebAssembly when the grid fits its 4 GiB memory)
    * @param slots threads that will run the step's passes (subclasses with worker threads)
    * @param fields kinds of the extra fields advanced with ψ (none by default)
+   * @param contact ψ's contact coefficient g in code units (physics/contact.ts `contactCode`; static backgrounds only)
    */
-  constructor(grid: Grid, background: Background, gravity: PoissonSolver, fft: FftChoice = "auto", slots = 1, fields: readonly FieldKind[] = []) {
+  constructor(grid: Grid, background: Background, gravity: PoissonSolver, fft: FftChoice = "auto", slots = 1, fields: readonly FieldKind[] = [], contact = 0) {
     this.grid = grid;
     this.background = background;
     this.gravity = gravity;
-    this.extras = new ExtraFields(fields);
+    if (!Number.isFinite(contact)) throw new RangeError(`the contact coefficient must be finite, got ${contact}`);
+    this.contact = contact;
+    this.extras = new ExtraFields(fields, contact);
+    if ((contact !== 0 || this.extras.contact) && background.kind !== "static") {
+      throw new RangeError("a contact interaction needs a static background (its comoving form is not implemented)");
+    }
     const kind: GravityKind = gravity instanceof PeriodicPoisson ? "periodic" : gravity instanceof IsolatedPoisson ? "isolated" : "none";
     const padded = gravity instanceof IsolatedPoisson ? [...gravity.paddedShape] as const : undefined;
     const geometry = stepGeometry(grid.shape, kind, padded, this.extras.layout);
@@ -125,10 +138,16 @@ export class SplitStepper {
     this.runner = {
       plan: this.plan,
       gravity: gravity.kind !== "none",
+      kicks: this.kicks,
       runPass: (units, task) => this.runPass(units, task),
       runPasses: (passes) => this.runPasses(passes),
       fillPhases: (set, factor) => this.fillPhaseTables(factor, set),
     };
+  }
+
+  /** Whether steps kick: with gravity, or with a contact term on any field. */
+  get kicks(): boolean {
+    return this.gravity.kind !== "none" || this.contact !== 0 || this.extras.contact;
   }
 
   /** How many extra fields advance with ψ. */
@@ -287,10 +306,10 @@ export class SplitStepper {
     else this.runPasses(this.plan.potential("phi"));
   }
 
-  /** ψ ← e^{−iφK} ψ. */
+  /** ψ ← e^{−iK(φ + g|ψ|²)} ψ. */
   kick(factor: number): void {
-    if (factor === 0 || this.gravity.kind === "none") return;
-    this.runPass(this.plan.rows, { op: "kick", field: "psi", potential: "phi", factor });
+    if (factor === 0 || !this.kicks) return;
+    this.runPass(this.plan.rows, { op: "kick", field: "psi", potential: "phi", factor, contact: this.contact, source: "psi" });
   }
 
   /**
@@ -311,7 +330,7 @@ export class SplitStepper {
    */
   private driftPasses(factor: number, kick: number, density: boolean): number {
     this.fillPhaseTables(factor);
-    this.runPasses(this.plan.drift("psi", 0, { kick, potential: "phi", density, gradient: this.trackKinetic }));
+    this.runPasses(this.plan.drift("psi", 0, { kick, potential: "phi", density, gradient: this.trackKinetic, contact: this.contact }));
     // Parseval: ½∫|∇ψ|² dV = ½ Σ_k k²|ψ_k|² ΔV/N
     this.midKineticTilde = this.trackKinetic ? (0.5 * this.sums.kinetic * this.grid.cellVolume) / this.grid.size : Number.NaN;
     return this.sums.mass;
@@ -336,16 +355,16 @@ export class SplitStepper {
     const k2 = bg.kickFactor(tHalf, t1);
     this.lastDrift = bg.driftFactor(t0, t1);
     this.lastKick = k1 + k2;
-    const gravity = this.gravity.kind !== "none";
+    const kicks = this.kicks;
     this.momentsCache = undefined;
     // the extra fields first: their kicks need the potentials before the step, and ψ's drift overwrites φ
     this.extras.drift(this.runner, this.lastDrift, k1);
-    const opening = gravity ? this.owedKick + k1 : 0;
+    const opening = kicks ? this.owedKick + k1 : 0;
     this.owedKick = 0;
     this.mass = this.driftPasses(this.lastDrift, opening, true) * this.grid.cellVolume;
     this.extras.addSources(this.runner);
     this.solvePotential();
-    this.owedKick = gravity ? k2 : 0;
+    this.owedKick = kicks ? k2 : 0;
     this.extras.owe(this.runner, k2);
     this.time = t1;
   }
@@ -390,10 +409,27 @@ export class SplitStepper {
     return this.momentsCache;
   }
 
+  /**
+   * The fastest contact phase rate of any field, max over fields of μ_i|g_i| max|ψ_i|² (0 without a
+   * contact term): a kick of factor K turns a cell by at most this times K beyond its potential's phase.
+   */
+  contactPhaseRate(): number {
+    let rate = this.contact !== 0 ? Math.abs(this.contact) * this.moments().maxRho : 0;
+    for (const f of this.extras.contactFields()) rate = Math.max(rate, f.scale * maxDensity(this.rawField(f.index)));
+    return rate;
+  }
+
   /** Range max φ − min φ of the current potential (0 without gravity), from the moments pass (cached until φ changes). */
   potentialRange(): number {
     if (this.gravity.kind === "none") return 0;
     const m = this.moments();
     return m.phiMax - m.phiMin;
   }
+}
+
+/** The largest |ψ|² of an interleaved complex field. */
+function maxDensity(psi: Float64Array): number {
+  let max = 0;
+  for (let i = 0; i < psi.length; i += 2) max = Math.max(max, psi[i]! * psi[i]! + psi[i + 1]! * psi[i + 1]!);
+  return max;
 }

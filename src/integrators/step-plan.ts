@@ -30,6 +30,9 @@ export interface DriftOptions {
   readonly density: boolean;
   /** Measure Σ k²|ψ_k|² at the middle (result "kinetic"). */
   readonly gradient: boolean;
+  /** The folded kick's contact coefficient (default 0) and the field whose |·|² it takes (default the drifted field). */
+  readonly contact?: number;
+  readonly source?: ComplexGrid;
 }
 
 /** The passes of one step geometry. */
@@ -57,7 +60,9 @@ export class StepPlan {
    */
   drift(field: ComplexGrid, phases: number, o: DriftOptions): PlannedPass[] {
     const shape = this.geometry.shape;
-    const passes: PlannedPass[] = [{ task: { op: "rows", field, inverse: false, kick: o.kick, potential: o.potential, density: false }, units: this.rows }];
+    const contact = o.contact ?? 0;
+    const source = o.source ?? field;
+    const passes: PlannedPass[] = [{ task: { op: "rows", field, inverse: false, kick: o.kick, potential: o.potential, density: false, contact, source }, units: this.rows }];
     const middle = (inverse: boolean): PlannedPass => ({ task: { op: "axis", field, axis: 1, inverse }, units: outerCount(shape, 1) });
     if (this.middle) passes.push(middle(false));
     if (this.outer >= 0) {
@@ -67,7 +72,7 @@ export class StepPlan {
       passes.push({ task: { op: "drift", field, phases }, units: this.rows });
     }
     if (this.middle) passes.push(middle(true));
-    passes.push({ task: { op: "rows", field, inverse: true, kick: 0, potential: o.potential, density: o.density }, units: this.rows, result: o.density ? "mass" : undefined });
+    passes.push({ task: { op: "rows", field, inverse: true, kick: 0, potential: o.potential, density: o.density, contact: 0, source }, units: this.rows, result: o.density ? "mass" : undefined });
     return passes;
   }
 
@@ -121,7 +126,7 @@ export class StepPlan {
   /** Σ k²|ψ_k|² of `field` (result "kinetic"): a copy into `scratch`, its forward transform, the sum. */
   kinetic(field: ComplexGrid, scratch: ComplexGrid): PlannedPass[] {
     const shape = this.geometry.shape;
-    const passes: PlannedPass[] = [this.copy(field, scratch), { task: { op: "rows", field: scratch, inverse: false, kick: 0, potential: "phi", density: false }, units: this.rows }];
+    const passes: PlannedPass[] = [this.copy(field, scratch), { task: { op: "rows", field: scratch, inverse: false, kick: 0, potential: "phi", density: false, contact: 0, source: scratch }, units: this.rows }];
     for (const axis of [1, 0]) if (shape[axis]! > 1) passes.push({ task: { op: "axis", field: scratch, axis, inverse: false }, units: outerCount(shape, axis) });
     passes.push({ task: { op: "gradient", field: scratch }, units: this.rows, result: "kinetic" });
     return passes;

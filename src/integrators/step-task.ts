@@ -9,7 +9,16 @@ import type { StepGeometry, Transform } from "../fields/step-memory.js";
 
 /** One pass of the step, without its unit range. */
 export type StepTask =
-  | { readonly op: "kick"; readonly field: ComplexGrid; readonly potential: RealGrid; readonly factor: number }
+  | {
+      readonly op: "kick";
+      readonly field: ComplexGrid;
+      readonly potential: RealGrid;
+      readonly factor: number;
+      /** The contact coefficient g: the kick is e^{−i·factor·(potential + g|source|²)} (0: none). */
+      readonly contact: number;
+      /** Whose |·|² the contact term takes: the field itself, or "psi" for a tangent field. */
+      readonly source: ComplexGrid;
+    }
   | { readonly op: "axis"; readonly field: ComplexGrid; readonly axis: number; readonly inverse: boolean }
   | { readonly op: "gradient"; readonly field: ComplexGrid }
   | { readonly op: "copy"; readonly from: ComplexGrid; readonly to: ComplexGrid }
@@ -22,6 +31,9 @@ export type StepTask =
       readonly kick: number;
       readonly potential: RealGrid;
       readonly density: boolean;
+      /** The folded kick's contact coefficient and source, as for "kick". */
+      readonly contact: number;
+      readonly source: ComplexGrid;
     }
   | { readonly op: "drift"; readonly field: ComplexGrid; readonly phases: number }
   | { readonly op: "drift-outer"; readonly field: ComplexGrid; readonly phases: number; readonly axis: number; readonly gradient: boolean }
@@ -31,7 +43,7 @@ export type StepTask =
   | { readonly op: "poisson-outer"; readonly axis: number }
   | { readonly op: "moments" }
   | { readonly op: "cross-density"; readonly field: ComplexGrid; readonly target: RealGrid }
-  | { readonly op: "tangent-source"; readonly field: ComplexGrid; readonly potential: RealGrid; readonly factor: number }
+  | { readonly op: "tangent-source"; readonly field: ComplexGrid; readonly potential: RealGrid; readonly factor: number; readonly contact: number }
   | { readonly op: "overlap"; readonly field: ComplexGrid }
   | { readonly op: "combine"; readonly field: ComplexGrid; readonly scale: number; readonly re: number; readonly im: number }
   | { readonly op: "poisson" | "isolated-zero" | "convolve" };
@@ -79,13 +91,13 @@ function runScalar(engine: StepEngine, t: Exclude<StepTask, { op: "moments" | "o
       engine.crossDensity(t.field, t.target, lo, hi);
       return 0;
     case "tangent-source":
-      engine.tangentSource(t.field, t.potential, t.factor, lo, hi);
+      engine.tangentSource(t.field, t.potential, t.factor, t.contact, lo, hi);
       return 0;
     case "combine":
       engine.combine(t.field, t.scale, t.re, t.im, lo, hi);
       return 0;
     case "kick":
-      engine.kick(t.field, t.potential, t.factor, lo, hi);
+      engine.kick(t.field, t.potential, t.factor, t.contact, t.source, lo, hi);
       return 0;
     case "axis":
       engine.axis(t.field, t.axis, t.inverse, lo, hi);
@@ -94,7 +106,7 @@ function runScalar(engine: StepEngine, t: Exclude<StepTask, { op: "moments" | "o
       engine.copy(t.from, t.to, lo, hi);
       return 0;
     case "rows":
-      return engine.rows(t.field, t.inverse, t.kick, t.potential, t.density, lo, hi);
+      return engine.rows(t.field, t.inverse, t.kick, t.potential, t.density, t.contact, t.source, lo, hi);
     case "half-axis":
       engine.halfAxis(t.target, t.axis, t.inverse, lo, hi);
       return 0;

@@ -24,6 +24,7 @@ export class ThreadedStepper extends SplitStepper {
   /**
    * @param pool where the worker script is and how long the pool waits for its workers (defaults suit runs)
    * @param fields kinds of the extra fields advanced with ψ (see SplitStepper)
+   * @param contact ψ's contact coefficient (see SplitStepper)
    */
   constructor(
     grid: Grid,
@@ -33,8 +34,9 @@ export class ThreadedStepper extends SplitStepper {
     fft: FftChoice = "auto",
     pool: ThreadPoolOptions = {},
     fields: readonly FieldKind[] = [],
+    contact = 0,
   ) {
-    super(grid, background, gravity, fft, threads, fields);
+    super(grid, background, gravity, fft, threads, fields, contact);
     this.threads = threads;
     this.pool = new ThreadPool(threads, this.memory.setup, pool);
   }

@@ -1,14 +1,15 @@
 /**
  * Time-step rules (common practice, no single source): keep the phase that
  * one step adds at the grid's corner mode, k²_max D / 2, and the phase of
- * the potential across the box, (max φ − min φ) K, below budgets scaled by a
- * safety factor; in an expanding background also cap the step in ln a.
+ * the potential across the box, (max φ − min φ) K, and the contact phase
+ * |g| ρ_max K of a self-interacting field below budgets scaled by a safety
+ * factor; in an expanding background also cap the step in ln a.
  */
 import type { SplitStepper } from "./split-step.js";
 
 /** Step-size settings. */
 export interface TimestepRules {
-  /** Safety factor s: kinetic phase ≤ 2π s, potential phase ≤ π s per step. @default 0.25 */
+  /** Safety factor s: kinetic phase ≤ 2π s, potential and contact phases ≤ π s per step. @default 0.25 */
   readonly safety: number;
   /** Largest step in ln a for expanding runs. @default 0.01 */
   readonly maxDlnA: number;
@@ -17,7 +18,7 @@ export interface TimestepRules {
 }
 
 /** Which rule set the step. */
-export type StepLimiter = "kinetic" | "potential" | "expansion" | "fixed" | "end";
+export type StepLimiter = "kinetic" | "potential" | "contact" | "expansion" | "fixed" | "end";
 
 /** The step the rules allow at the stepper's current state. */
 export function chooseTimestep(stepper: SplitStepper, rules: TimestepRules): { dt: number; limiter: StepLimiter } {
@@ -33,6 +34,14 @@ export function chooseTimestep(stepper: SplitStepper, rules: TimestepRules): { d
     if (potential < dt) {
       dt = potential;
       limiter = "potential";
+    }
+  }
+  const rate = stepper.contactPhaseRate();
+  if (rate > 0) {
+    const contact = (Math.PI * rules.safety) / rate;
+    if (contact < dt) {
+      dt = contact;
+      limiter = "contact";
     }
   }
   const h = bg.hubble(a);

@@ -5,11 +5,13 @@
  * A unit expression is a product of symbols with optional integer powers
  * (`kpc^3`, `s^-1`), joined by spaces or `*`; each `/` divides by the single
  * symbol that follows it, so `km/s/Mpc` is km s⁻¹ Mpc⁻¹. The particle-physics
- * mass units (eV, meV, ...) mean eV/c². The symbol `h` is the dimensionless
- * Hubble parameter H0 / (100 km/s/Mpc) and needs a cosmology.
+ * mass units (eV, meV, ...) mean eV/c², except where an energy is asked for
+ * (a decay constant, "1e17 GeV"): there they are energies, as are J and erg.
+ * The symbol `h` is the dimensionless Hubble parameter H0 / (100 km/s/Mpc)
+ * and needs a cosmology.
  */
 import { shorten } from "../core/sanitize.js";
-import { AU_M, KG_PER_EV, M_SUN_KG, MPC_M, PC_M, YEAR_S, G_SI, HBAR_J_S } from "./constants.js";
+import { AU_M, J_PER_EV, KG_PER_EV, M_SUN_KG, MPC_M, PC_M, YEAR_S, G_SI, HBAR_J_S } from "./constants.js";
 
 /** Powers of length, mass and time. */
 export interface Dimension {
@@ -33,8 +35,27 @@ const LEN: Dimension = { L: 1, M: 0, T: 0 };
 const MASS: Dimension = { L: 0, M: 1, T: 0 };
 const TIME: Dimension = { L: 0, M: 0, T: 1 };
 const NONE: Dimension = { L: 0, M: 0, T: 0 };
+const ENERGY: Dimension = { L: 2, M: 1, T: -2 };
+
+/** The electronvolt family: masses (eV/c²) by default, energies where an energy is asked for. */
+const EV_FAMILY: Readonly<Record<string, number>> = {
+  ueV: 1e-6,
+  "µeV": 1e-6,
+  meV: 1e-3,
+  eV: 1,
+  keV: 1e3,
+  MeV: 1e6,
+  GeV: 1e9,
+  TeV: 1e12,
+};
 
 const UNITS: Readonly<Record<string, UnitDef>> = {
+  fm: { si: 1e-15, dim: LEN },
+  pm: { si: 1e-12, dim: LEN },
+  nm: { si: 1e-9, dim: LEN },
+  um: { si: 1e-6, dim: LEN },
+  "µm": { si: 1e-6, dim: LEN },
+  mm: { si: 1e-3, dim: LEN },
   m: { si: 1, dim: LEN },
   cm: { si: 0.01, dim: LEN },
   km: { si: 1e3, dim: LEN },
@@ -46,13 +67,9 @@ const UNITS: Readonly<Record<string, UnitDef>> = {
   kg: { si: 1, dim: MASS },
   g: { si: 1e-3, dim: MASS },
   Msun: { si: M_SUN_KG, dim: MASS },
-  ueV: { si: 1e-6 * KG_PER_EV, dim: MASS },
-  "µeV": { si: 1e-6 * KG_PER_EV, dim: MASS },
-  meV: { si: 1e-3 * KG_PER_EV, dim: MASS },
-  eV: { si: KG_PER_EV, dim: MASS },
-  keV: { si: 1e3 * KG_PER_EV, dim: MASS },
-  MeV: { si: 1e6 * KG_PER_EV, dim: MASS },
-  GeV: { si: 1e9 * KG_PER_EV, dim: MASS },
+  ...Object.fromEntries(Object.entries(EV_FAMILY).map(([k, f]) => [k, { si: f * KG_PER_EV, dim: MASS }])),
+  J: { si: 1, dim: ENERGY },
+  erg: { si: 1e-7, dim: ENERGY },
   s: { si: 1, dim: TIME },
   ms: { si: 1e-3, dim: TIME },
   us: { si: 1e-6, dim: TIME },
@@ -73,6 +90,7 @@ export const QUANTITY_KINDS = {
   velocity: { dim: { L: 1, M: 0, T: -1 }, examples: "km/s, m/s, kpc/Gyr, e.g. \"250 km/s\"" },
   density: { dim: { L: -3, M: 1, T: 0 }, examples: "Msun/kpc^3, Msun/Mpc^3, kg/m^3, e.g. \"1e7 Msun/kpc^3\"" },
   rate: { dim: { L: 0, M: 0, T: -1 }, examples: "km/s/Mpc, 1/Gyr, s^-1, e.g. \"67.36 km/s/Mpc\"" },
+  energy: { dim: ENERGY, examples: "eV, keV, MeV, GeV, TeV, J, erg, e.g. \"1e17 GeV\"" },
 } as const;
 
 /** A named kind of quantity. */
@@ -81,6 +99,8 @@ export type QuantityKind = keyof typeof QUANTITY_KINDS;
 /** Context for parsing: the value of little h when a cosmology defines it. */
 export interface UnitContext {
   readonly littleH?: number | undefined;
+  /** Read eV, GeV, … as energies rather than as masses eV/c² (set by parseAs for kind "energy"). */
+  readonly electronvoltEnergy?: boolean;
 }
 
 function sameDim(a: Dimension, b: Dimension): boolean {
@@ -122,7 +142,8 @@ export function parseUnit(expr: string, ctx: UnitContext = {}): Quantity {
       si *= Math.pow(ctx.littleH, power);
       continue;
     }
-    const def = UNITS[symbol];
+    const ev = ctx.electronvoltEnergy ? EV_FAMILY[symbol] : undefined;
+    const def = ev !== undefined ? { si: ev * J_PER_EV, dim: ENERGY } : UNITS[symbol];
     if (!def) throw new UnitSyntaxError(`unknown unit "${shorten(symbol)}" in "${shorten(expr)}"`);
     si *= Math.pow(def.si, power);
     L += def.dim.L * power;
@@ -151,14 +172,19 @@ export function parseAs(text: string, kind: QuantityKind, ctx: UnitContext = {})
   const spec = QUANTITY_KINDS[kind];
   let q: Quantity;
   try {
-    q = parseQuantity(text, ctx);
+    q = parseQuantity(text, kind === "energy" ? { ...ctx, electronvoltEnergy: true } : ctx);
   } catch (e) {
-    throw new UnitSyntaxError(`${(e as Error).message}; expected a ${kind} such as ${spec.examples}`);
+    throw new UnitSyntaxError(`${(e as Error).message}; expected ${withArticle(kind)} such as ${spec.examples}`);
   }
   if (!sameDim(q.dim, spec.dim)) {
-    throw new UnitSyntaxError(`"${shorten(text)}" is not a ${kind}; use ${spec.examples}`);
+    throw new UnitSyntaxError(`"${shorten(text)}" is not ${withArticle(kind)}; use ${spec.examples}`);
   }
   return q.si;
+}
+
+/** "a length", "an energy". */
+function withArticle(kind: QuantityKind): string {
+  return `${/^[aeiou]/.test(kind) ? "an" : "a"} ${kind}`;
 }
 
 /** SI value of one unit expression, for converting outputs ("Myr", "Msun/kpc^3"). */

@@ -9,6 +9,8 @@
  * by the trapezoid rule in ln a over the rows, relative to |W(t)|. In an
  * expanding box K + W itself is not conserved (the expansion takes energy
  * out), so R, not the drift of K + W, shows whether the solver keeps energy.
+ * A static run with a contact interaction conserves K + W + U, U = ½g∫ρ²
+ * (contact interactions run in static boxes only, so R never carries U).
  */
 
 export interface EnergyRow {
@@ -18,6 +20,8 @@ export interface EnergyRow {
   readonly mass: number;
   readonly kinetic: number;
   readonly potential: number;
+  /** The contact interaction energy U (0 without one). */
+  readonly contact?: number;
 }
 
 export interface Drift {
@@ -32,11 +36,11 @@ export interface Drift {
 export function conservationDrifts(rows: readonly EnergyRow[]): Drift[] {
   if (rows.length === 0) return [];
   const r0 = rows[0]!;
-  const e0 = r0.kinetic + r0.potential;
+  const e0 = r0.kinetic + r0.potential + (r0.contact ?? 0);
   const expanding = r0.a !== undefined;
   let integral = 0;
   return rows.map((r, i) => {
-    const e = r.kinetic + r.potential;
+    const e = r.kinetic + r.potential + (r.contact ?? 0);
     let energy: number;
     if (expanding) {
       if (i > 0) {
@@ -57,5 +61,6 @@ export function energyRows(rows: readonly Record<string, number | string>[], tCo
     mass: Number(r["mass_Msun"]),
     kinetic: Number(r["kinetic_Msun_km2_s2"]),
     potential: Number(r["potential_Msun_km2_s2"]),
+    contact: r["contact_Msun_km2_s2"] !== undefined ? Number(r["contact_Msun_km2_s2"]) : 0,
   }));
 }

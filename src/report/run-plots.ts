@@ -10,7 +10,7 @@ import { conservationDrifts, energyRows } from "./energy-series.js";
 import { logAxis, PANEL, scaleColumn, SCHEMA, type Row } from "./plots.js";
 import { renderVegaLite, type Figure } from "./render.js";
 
-const COLOURS = { K: "#d1495b", W: "#1f5fa8", E: "#222222", mark: "#b5651d" };
+const COLOURS = { K: "#d1495b", W: "#1f5fa8", U: "#2a9d5c", E: "#222222", mark: "#b5651d" };
 
 function xEnc(title: string, showTitle = true, domain?: [number, number]): object {
   return { field: "t", type: "quantitative", title: showTitle ? title : null, scale: { nice: false, zero: false, ...(domain ? { domain } : {}) } };
@@ -21,18 +21,23 @@ export function energiesPlot(series: Row[], tCol: string, tTitle: string): Promi
   const rows = energyRows(series, tCol);
   const expanding = rows[0]?.a !== undefined;
   const drifts = conservationDrifts(rows);
+  const contact = rows.some((r) => (r.contact ?? 0) !== 0);
+  const total = contact ? "K + W + U" : "K + W";
   const long = rows.flatMap((r) => [
     { t: r.t, series: "kinetic K", v: r.kinetic },
     { t: r.t, series: "potential W", v: r.potential },
-    { t: r.t, series: "K + W", v: r.kinetic + r.potential },
+    ...(contact ? [{ t: r.t, series: "contact U", v: r.contact ?? 0 }] : []),
+    { t: r.t, series: total, v: r.kinetic + r.potential + (r.contact ?? 0) },
   ]);
+  const names = ["kinetic K", "potential W", ...(contact ? ["contact U"] : []), total];
+  const colours = [COLOURS.K, COLOURS.W, ...(contact ? [COLOURS.U] : []), COLOURS.E];
   const energy = scaleColumn(long, ["v"], () => "v", "energy", "Msun (km/s)²");
   const eDrift = scaleColumn(drifts as unknown as Row[], ["energy"], () => "energy", expanding ? "Layzer–Irvine R/|W|" : "(E − E₀)/|E₀|", "");
   const mDrift = scaleColumn(drifts as unknown as Row[], ["mass"], () => "mass", "(M − M₀)/M₀", "");
   const small = { width: PANEL.width, height: 95 };
   return renderVegaLite({
     $schema: SCHEMA,
-    title: { text: "Energies and conservation", subtitle: expanding ? "expanding box: R = Δ(K + W) + ∫(2K + W) d ln a stays ≈ 0 (Layzer–Irvine)" : "static box: K + W and M are conserved" },
+    title: { text: "Energies and conservation", subtitle: expanding ? "expanding box: R = Δ(K + W) + ∫(2K + W) d ln a stays ≈ 0 (Layzer–Irvine)" : `static box: ${total} and M are conserved` },
     spacing: 10,
     vconcat: [
       {
@@ -42,7 +47,7 @@ export function energiesPlot(series: Row[], tCol: string, tTitle: string): Promi
         encoding: {
           x: xEnc(tTitle, false),
           y: { field: "v", type: "quantitative", title: energy.title },
-          color: { field: "series", type: "nominal", title: null, scale: { domain: ["kinetic K", "potential W", "K + W"], range: [COLOURS.K, COLOURS.W, COLOURS.E] }, legend: { orient: "right" } },
+          color: { field: "series", type: "nominal", title: null, scale: { domain: names, range: colours }, legend: { orient: "right" } },
         },
       },
       { ...small, data: { values: eDrift.rows }, mark: { type: "line", color: COLOURS.E }, encoding: { x: xEnc(tTitle, false), y: { field: "energy", type: "quantitative", title: eDrift.title } } },

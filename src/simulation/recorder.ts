@@ -9,8 +9,8 @@ import type { RunSession, RunStart } from "./session.js";
 
 const ENERGY_UNIT = "Msun_km2_s2";
 
-/** The run's own time-series columns (before the plug-ins'). */
-export function coreColumns(timeUnit: string, expanding: boolean): string[] {
+/** The run's own time-series columns (before the plug-ins'); `contact` adds the interaction energy before the total. */
+export function coreColumns(timeUnit: string, expanding: boolean, contact = false): string[] {
   return [
     "step",
     `t_${timeUnit}`,
@@ -20,6 +20,7 @@ export function coreColumns(timeUnit: string, expanding: boolean): string[] {
     "mass_Msun",
     `kinetic_${ENERGY_UNIT}`,
     `potential_${ENERGY_UNIT}`,
+    ...(contact ? [`contact_${ENERGY_UNIT}`] : []),
     `total_${ENERGY_UNIT}`,
     "max_density_Msun_kpc3",
   ];
@@ -37,7 +38,7 @@ export class RunRecorder {
     this.session = session;
     this.start = start;
     this.snapshotsWritten = start.snapshotsWritten;
-    const columns = [...coreColumns(session.scales.timeUnit, session.expanding), ...session.plugins.columns];
+    const columns = [...coreColumns(session.scales.timeUnit, session.expanding, session.stepper.contact !== 0), ...session.plugins.columns];
     const twice = columns.find((c, i) => columns.indexOf(c) !== i);
     if (twice !== undefined) throw new InputError(`time-series column "${twice}" is declared twice (a plug-in's columns must be new)`);
     const limiter = columns.indexOf("limiter");
@@ -52,11 +53,14 @@ export class RunRecorder {
     const { stepper, background, grid, scales, expanding, plugins } = this.session;
     const t = stepper.time;
     const a = background.scaleFactor(t);
-    // K = ½∫|∇ψ|²/a² (spectral, on the step's own transforms), W = ½∫ρφ/a
+    // K = ½∫|∇ψ|²/a² (spectral, on the step's own transforms), W = ½∫ρφ/a, U = ½g∫ρ² (static runs only)
     const K = stepper.kineticTilde() / (a * a);
     const moments = stepper.moments();
     const W = (0.5 / a) * moments.rhoPhi * grid.cellVolume;
-    const own = [scales.time(dt), limiter, scales.massMsun(stepper.mass), scales.energy(K), scales.energy(W), scales.energy(K + W), scales.density(moments.maxRho)];
+    const contact = stepper.contact !== 0 ? [0.5 * stepper.contact * moments.rho2 * grid.cellVolume] : [];
+    const total = K + W + (contact[0] ?? 0);
+    const energies = [K, W, ...contact, total].map((e) => scales.energy(e));
+    const own = [scales.time(dt), limiter, scales.massMsun(stepper.mass), ...energies, scales.density(moments.maxRho)];
     this.series.row([step, scales.time(t), ...(expanding ? [a, 1 / a - 1] : []), ...own, ...plugins.row({ step, t, a }, () => stepper.rawPsi)]);
   }
 

@@ -3,6 +3,7 @@
  * gravity, stepper, writer, plug-ins), and the run's start: the initial
  * field built in place, or the checkpoint it resumes from.
  */
+import { contactCode } from "../physics/contact.js";
 import fs from "node:fs";
 import { Grid } from "../grid/grid.js";
 import { makePoissonSolver, type PoissonSolver } from "../fields/poisson.js";
@@ -98,7 +99,9 @@ export function openSession(run: ResolvedRun, options: RunOptions): RunSession {
   const fields: FieldKind[] = plugins.fields.map((f) => ({ kind: f.kind }));
   // refuse a grid that cannot fit before anything is allocated
   const memory = checkMemory({ cells: run.grid.cells, gravity: run.grid.gravity, threads, fft, fields });
-  const stepper = threads > 1 ? new ThreadedStepper(grid, background, gravity, threads, fft, {}, fields) : new SplitStepper(grid, background, gravity, fft, 1, fields);
+  const contact = run.contact ? contactCode(run.contact.scatteringLengthM, scales.units) : 0;
+  const stepper =
+    threads > 1 ? new ThreadedStepper(grid, background, gravity, threads, fft, {}, fields, contact) : new SplitStepper(grid, background, gravity, fft, 1, fields, contact);
   plugins.attach((first, count) => fieldsHandle(stepper, first, count));
   const { startTime, endTime } = run.span;
   const reporter = options.reporter ?? silentReporter;

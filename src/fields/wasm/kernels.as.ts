@@ -259,19 +259,19 @@ function scatter(dst: usize, pointStride: i32, pencilStride: i32, n: i32, count:
 
 /**
  * FFT of rows [lo, hi) along the last axis, BLOCK rows at a time. With
- * `kickFactor` non-zero the rows are first multiplied by e^{−iφK} (the step's
- * opening kick, while the block is in cache); with `density` set, φ ← |ψ|²
+ * `kickFactor` non-zero the rows are first multiplied by e^{−iK(φ + g|s|²)}
+ * (the step's opening kick, while the block is in cache; see `kick`); with `density` set, φ ← |ψ|²
  * of the transformed rows is written afterwards and Σ|ψ|² returned.
  */
 export function rowsPass(
   data: usize, n2: i32, lo: i32, hi: i32, buf: usize, tw: usize, rev: usize, inverse: bool, scale: f64,
-  phi: usize, kickFactor: f64, density: bool,
+  phi: usize, kickFactor: f64, density: bool, src: usize, contact: f64,
 ): f64 {
   let sum = f64x2.splat(0);
   for (let r = lo; r < hi; r += BLOCK) {
     const count = min(BLOCK, hi - r);
     const p = data + (<usize>(r * n2) << 4);
-    if (kickFactor != 0) kick(data, phi, kickFactor, r * n2, (r + count) * n2);
+    if (kickFactor != 0) kick(data, src, phi, kickFactor, contact, r * n2, (r + count) * n2);
     transformInPlace(p, 16, n2 << 4, n2, count, buf, count << 4, rev, tw, inverse, scale);
     if (density) {
       const q = phi + (<usize>(r * n2) << 3);
@@ -390,7 +390,7 @@ function stridedPass(
 
 /** One FFT pass along `axis` over units [lo, hi). */
 export function axisPass(data: usize, n0: i32, n1: i32, n2: i32, axis: i32, lo: i32, hi: i32, buf: usize, tw: usize, rev: usize, inverse: bool, scale: f64): void {
-  if (axis == 2) rowsPass(data, n2, lo, hi, buf, tw, rev, inverse, scale, 0, 0.0, false);
+  if (axis == 2) rowsPass(data, n2, lo, hi, buf, tw, rev, inverse, scale, 0, 0.0, false, 0, 0.0);
   else stridedPass(data, n0, n1, n2, axis, lo, hi, buf, 0, tw, 0, rev, inverse, scale, PLAIN, 0, 0, 0, 0, 0, 0);
 }
 
@@ -618,11 +618,28 @@ export function initConstants(): void {
   v128.store(p, cmul(x1, c1, s1), 16);
 }
 
-/** ψ ← e^{−iφK} ψ over cells [lo, hi) (an even count, from an even start). */
-export function kick(psi: usize, phi: usize, factor: f64, lo: i32, hi: i32): void {
+/**
+ * ψ ← e^{−iK(φ + g|s|²)} ψ over cells [lo, hi) (an even count, from an even
+ * start), K = `factor`, g = `contact`, s the field at `src` (ψ itself, or the
+ * reference field of a tangent); g = 0 is the plain kick e^{−iKφ}.
+ */
+export function kick(psi: usize, src: usize, phi: usize, factor: f64, contact: f64, lo: i32, hi: i32): void {
   const f = f64x2.splat(-factor);
+  if (contact == 0) {
+    for (let i = lo; i < hi; i += 2) {
+      rotatePair(psi + (<usize>i << 4), f64x2.mul(v128.load(phi + (<usize>i << 3)), f));
+    }
+    return;
+  }
+  const g = f64x2.splat(contact);
   for (let i = lo; i < hi; i += 2) {
-    rotatePair(psi + (<usize>i << 4), f64x2.mul(v128.load(phi + (<usize>i << 3)), f));
+    const a = v128.load(src + (<usize>i << 4));
+    const b = v128.load(src + (<usize>i << 4), 16);
+    const aa = f64x2.mul(a, a);
+    const bb = f64x2.mul(b, b);
+    const rho = f64x2.add(v128.shuffle<f64>(aa, bb, 0, 2), v128.shuffle<f64>(aa, bb, 1, 3));
+    const v = f64x2.add(v128.load(phi + (<usize>i << 3)), f64x2.mul(g, rho));
+    rotatePair(psi + (<usize>i << 4), f64x2.mul(v, f));
   }
 }
 

@@ -1,0 +1,55 @@
+/**
+ * The contact (self-)interaction of the Gross–Pitaevskii part of the
+ * equations: a term g|ψₙ|²ψₙ in iħ ∂ψₙ/∂t (ψₙ in number units), with
+ *   g = 4πħ² a_s / m
+ * for an s-wave scattering length a_s (a_s > 0 repulsive, a_s < 0 attractive).
+ * For an axion-like field of decay constant f the quartic term of the cosine
+ * potential gives the attractive
+ *   a_s = −(ħc)(mc²) / (32π f²)
+ * (Chavanis 2011, PRD 84, 043531). In psibox's mass normalisation
+ * (|ψ|² = ρ) the term adds g ρ / m² to the potential per unit mass Φ.
+ */
+import { C_M_PER_S, G_SI, HBAR_J_S } from "./constants.js";
+import type { CodeUnits } from "./units.js";
+
+/**
+ * M_max·√(G m |a_s|)/ħ of the largest stable attractive soliton: 1.0125,
+ * computed independently by shooting on the stationary Gross–Pitaevskii–Poisson
+ * equations (Chavanis & Delfini 2011, PRD 84, 043532, quote 1.012).
+ */
+export const CRITICAL_MASS_COEFFICIENT = 1.0125;
+
+/** The attractive scattering length [m] (negative) of an axion-like field of decay constant f [J] and particle mass m [kg]. */
+export function scatteringLengthFromDecayConstant(decayConstantJ: number, particleMassKg: number): number {
+  const hbarC = HBAR_J_S * C_M_PER_S;
+  const restEnergy = particleMassKg * C_M_PER_S * C_M_PER_S;
+  return -(hbarC * restEnergy) / (32 * Math.PI * decayConstantJ * decayConstantJ);
+}
+
+/** g = 4πħ² a_s / m [J m³]. */
+export function contactCouplingSI(scatteringLengthM: number, particleMassKg: number): number {
+  return (4 * Math.PI * HBAR_J_S * HBAR_J_S * scatteringLengthM) / particleMassKg;
+}
+
+/**
+ * The contact coefficient in code units: the term g|ψ|² a field of particle
+ * mass μm adds to the potential φ its kicks multiply (static box), so that a
+ * kick is e^{−iμK(φ + g|ψ|²)}: g = 4π a_s / (μ³ m) with a_s in code lengths and
+ * m in code masses (ħ/m = 1, 4πG = 1; from g_SI ρ / m_i² per unit mass).
+ * @param massRatio μ = m_i/m of a species (1: the run's particle)
+ */
+export function contactCode(scatteringLengthM: number, units: CodeUnits, massRatio = 1): number {
+  const aCode = scatteringLengthM / units.lengthM;
+  const mCode = units.particleMassKg / units.massKg;
+  return (4 * Math.PI * aCode) / (massRatio ** 3 * mCode);
+}
+
+/** The largest stable mass [kg] of an attractive soliton, 1.0125 ħ/√(G m |a_s|) (see CRITICAL_MASS_COEFFICIENT). */
+export function criticalMassKg(scatteringLengthM: number, particleMassKg: number): number {
+  return (CRITICAL_MASS_COEFFICIENT * HBAR_J_S) / Math.sqrt(G_SI * particleMassKg * Math.abs(scatteringLengthM));
+}
+
+/** Radius [m] of the Thomas–Fermi soliton of a strong repulsive interaction, π√(a_s ħ²/(G m³)) (Böhmer & Harko 2007, JCAP 06, 025). */
+export function thomasFermiRadiusM(scatteringLengthM: number, particleMassKg: number): number {
+  return Math.PI * Math.sqrt((scatteringLengthM * HBAR_J_S * HBAR_J_S) / (G_SI * particleMassKg ** 3));
+}
