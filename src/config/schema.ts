@@ -275,6 +275,21 @@ export const breakdownSchema = z.strictObject({
   twin_offset: z.number().default(0),
 });
 
+export const ensembleSchema = z.strictObject({
+  /** Members M of the truncated-Wigner ensemble (psibox ensemble), at least 2. @default 64 */
+  members: z.number().default(64),
+  /** Particles N in the box, which sets the vacuum noise: "physical" (the field's mass over particle.mass) or a number ≥ 1 (an effective N). @default "physical" */
+  particles: z.union([z.number(), z.literal("physical")]).default("physical"),
+  /** Seed of the members' vacuum noise, a whole number from 0 to 4294967295. @default 1 */
+  noise_seed: z.number().default(1),
+  /** Sample times: the span cut into this many equal intervals (the start and every cut). @default 16 */
+  samples: z.number().default(16),
+  /** The departure clock rings when ‖⟨ψ⟩ − ψ_classical‖ / ‖ψ_classical‖ reaches this level, in (0, 2]. @default 0.1 */
+  departure: z.number().default(0.1),
+  /** Bootstrap resamples for the errors, from 8 to 1000. @default 32 */
+  resamples: z.number().default(32),
+});
+
 const sweepRange = z.strictObject({
   /** First value: a number, or a quantity with its unit. */
   from: z.union([z.number(), z.string()]),
@@ -316,6 +331,8 @@ export const userConfigSchema = z.strictObject({
   output: outputSchema.default(outputSchema.parse({})),
   sidecar: sidecarSchema.default(sidecarSchema.parse({})),
   breakdown: breakdownSchema.default(breakdownSchema.parse({})),
+  /** A truncated-Wigner ensemble of the run (psibox ensemble); absent: its defaults. */
+  ensemble: ensembleSchema.optional(),
   /** A parameter sweep (psibox sweep). */
   sweep: sweepSchema.optional(),
   /** Cluster resources for psibox sweep --emit slurm. */

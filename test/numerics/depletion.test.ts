@@ -8,19 +8,8 @@ import { loadConfig } from "../../src/config/load.js";
 import { resolveRun } from "../../src/config/resolve.js";
 import { prepareOutputDir } from "../../src/simulation/run.js";
 import { runSimulation } from "../../src/app/run.js";
-import { G_SI, HBAR_J_S, KG_PER_EV, M_SUN_KG, PC_M } from "../../src/physics/constants.js";
+import { boxDepletion, pairDepletion } from "../helpers/bogoliubov.js";
 import { makeWork, readCsv, removeWork, writeIn } from "../helpers/cli.js";
-
-/** Bogoliubov depletion of one mode of a pair: (U/ħγ)² sinh²(γt), or (U/ħω)² sin²(ωt) for a stable pair (ħ = 1 units of the inputs). */
-function pairDepletion(eps: number, u: number, t: number, hbar = 1): number {
-  const d = eps * (eps + 2 * u);
-  if (d < 0) {
-    const g = Math.sqrt(-d) / hbar;
-    return (u / (hbar * g)) ** 2 * Math.sinh(g * t) ** 2;
-  }
-  const w = Math.sqrt(d) / hbar;
-  return (u / (hbar * w)) ** 2 * Math.sin(w * t) ** 2;
-}
 
 /**
  * ⟨a†a⟩(t) from the vacuum under H = (ε + U)(a†a + b†b) + U(a†b† + ab) (ħ = 1), by RK4 in the span of |n, n⟩,
@@ -72,8 +61,6 @@ describe("exact Bogoliubov depletion of one mode pair", () => {
   });
 });
 
-const KPC = 1e3 * PC_M;
-
 /** The depletion clock in summary.json. */
 interface DepletionClock {
   readonly verdict: string;
@@ -84,25 +71,6 @@ const MYR_S = 3.15576e13;
 let work: string;
 beforeAll(() => (work = makeWork("depletion")));
 afterAll(() => removeWork(work));
-
-/** Σ_k n_k(t) over the modes k = 2πj/L, j = −n/2 … n/2 − 1, j ≠ 0, of a uniform box (SI inputs). */
-function boxDepletion(rhoMsunKpc3: number, massEv: number, boxKpc: number, cells: number, tS: number): { total: number; unstable: number; growth: number } {
-  const m = massEv * KG_PER_EV;
-  const rho = (rhoMsunKpc3 * M_SUN_KG) / KPC ** 3;
-  let total = 0;
-  let unstable = 0;
-  let growth = 0;
-  for (let j = -cells / 2; j < cells / 2; j++) {
-    if (j === 0) continue;
-    const k = (2 * Math.PI * j) / (boxKpc * KPC);
-    const eps = (HBAR_J_S * HBAR_J_S * k * k) / (2 * m);
-    const u = (-4 * Math.PI * G_SI * m * rho) / (k * k);
-    total += pairDepletion(eps, u, tS, HBAR_J_S);
-    if (eps * (eps + 2 * u) < 0) unstable++;
-    growth = Math.max(growth, Math.sqrt(Math.max(0, -eps * (eps + 2 * u))) / HBAR_J_S);
-  }
-  return { total, unstable, growth };
-}
 
 describe("Hutchinson's estimate of the depletion on the grid", () => {
   // (measured: unstable 7.68e4 ± 1.27e4 against 5.95e4, 1.4σ; stable 0.659 ± 0.131 against 0.559, 0.8σ)

@@ -9,5 +9,6 @@ import { importSpec } from "./import.js";
 import { sweepSpec } from "./sweep.js";
 import { analyzeSpec, reportSpec } from "./analyze.js";
 import { clocksSpec, estimateSpec } from "./clocks.js";
+import { ensembleSpec } from "./ensemble.js";
 
-export const COMMANDS: readonly AnyCommandSpec[] = [runSpec, extendSpec, icSpec, initSpec, inspectSpec, importSpec, sweepSpec, analyzeSpec, reportSpec, clocksSpec, estimateSpec];
+export const COMMANDS: readonly AnyCommandSpec[] = [runSpec, extendSpec, icSpec, initSpec, inspectSpec, importSpec, sweepSpec, ensembleSpec, analyzeSpec, reportSpec, clocksSpec, estimateSpec];

@@ -1,0 +1,128 @@
+/**
+ * psibox ensemble: a truncated-Wigner ensemble of a run. The classical
+ * start is built once; the members (start + vacuum noise, noise.ts) and the
+ * classical reference are advanced on a pool of workers (pool.ts) and kept
+ * in the ensemble folder (store.ts); the reduction (reduce.ts) runs each
+ * time the completed members double and at the end, so series.csv,
+ * fields.h5 and summary.json exist while the ensemble grows.
+ */
+import path from "node:path";
+import { Grid } from "../grid/grid.js";
+import { makePoissonSolver } from "../fields/poisson.js";
+import { makeBackground } from "../physics/cosmology/background.js";
+import { buildInitialField } from "../initial-conditions/build.js";
+import { snapshotInitialField } from "../simulation/snapshot-start.js";
+import { OutputScales } from "../simulation/scales.js";
+import { silentReporter, type RunReporter } from "../simulation/session.js";
+import type { ResolvedRun } from "../config/resolve.js";
+import { resolveEnsemble, type ResolvedEnsemble } from "../config/resolve-ensemble.js";
+import { resolvedConfigToml, sha256 } from "../config/serialize.js";
+import { loadHdf5 } from "../io/h5.js";
+import { EnsembleStore, type EnsembleIdentity } from "./store.js";
+import { runMembers } from "./pool.js";
+import { reduceEnsemble, type EnsembleReduction } from "./reduce.js";
+import { writeEnsembleOutputs, writeSummary } from "./outputs.js";
+import { summaryOf } from "./summary.js";
+import { checkEnsembleSize, validityWarning } from "./guards.js";
+import type { MemberSetup } from "./member.js";
+
+/** Options of an ensemble. */
+export interface EnsembleOptions {
+  /** Worker threads. */
+  readonly workers: number;
+  /** Replace an ensemble of other settings in the folder. */
+  readonly force?: boolean;
+  readonly reporter?: RunReporter;
+  /** Checked as members end; a reason stops the ensemble (the members done are kept). */
+  readonly stopRequested?: () => string | undefined;
+  /** The ensemble folder. @default the run's output folder + "/ensemble" */
+  readonly dir?: string;
+}
+
+/** How an ensemble ended. */
+export interface EnsembleResult {
+  readonly status: "completed" | "stopped";
+  readonly reason?: string;
+  readonly dir: string;
+  readonly reduction: EnsembleReduction | undefined;
+  readonly summary: Record<string, unknown>;
+  readonly warnings: readonly string[];
+}
+
+/** The classical start, the particle number and the sample times. */
+function prepare(run: ResolvedRun, settings: ResolvedEnsemble, reporter: RunReporter): { setup: MemberSetup; grid: Grid; particles: number; warnings: string[] } {
+  const grid = new Grid(run.grid.cells, run.grid.lengths);
+  const background = makeBackground(run.background);
+  const gravity = makePoissonSolver(grid, run.grid.gravity, run.grid.poisson);
+  const into = new Float64Array(2 * grid.size);
+  if (run.initial.kind === "ground-state") reporter.phase("relaxing the ground state");
+  const initial = run.initial.kind === "snapshot" ? snapshotInitialField(run, grid, into) : buildInitialField(run.initial, grid, background, run.span.startTime, gravity, undefined, into);
+  let mass = 0;
+  for (let i = 0; i < initial.psi.length; i++) mass += (initial.psi[i] as number) ** 2;
+  mass *= grid.cellVolume;
+  const scales = new OutputScales(run);
+  const particles = settings.particles === "physical" ? (mass * scales.units.massKg) / run.particleMassKg : settings.particles;
+  const { startTime, endTime } = run.span;
+  const times = Array.from({ length: settings.samples + 1 }, (_, i) => (i === settings.samples ? endTime : startTime + ((endTime - startTime) * i) / settings.samples));
+  const warnings = [...(initial.warnings ?? [])];
+  const validity = validityWarning(particles, grid.size);
+  if (validity) warnings.push(validity);
+  return { setup: { run, start: Float64Array.from(initial.psi), times, particleMass: mass / particles, seed: settings.seed }, grid, particles, warnings };
+}
+
+/** The identity of the ensemble: the run config without [ensemble], N, seed, cells and times. */
+function identityOf(run: ResolvedRun, setup: MemberSetup, particles: number): EnsembleIdentity {
+  const { ensemble: _settings, ...config } = run.config;
+  return { config_sha256: sha256(resolvedConfigToml({ ...run, config: config as ResolvedRun["config"] })), cells: setup.start.length / 2, particles, seed: setup.seed, times_code: setup.times };
+}
+
+/** Run (or continue) the ensemble of `run`. */
+export async function runEnsemble(run: ResolvedRun, options: EnsembleOptions): Promise<EnsembleResult> {
+  await loadHdf5();
+  const reporter = options.reporter ?? silentReporter;
+  const settings = resolveEnsemble(run.config);
+  const dir = options.dir ?? path.join(run.outputDir, "ensemble");
+  checkEnsembleSize(settings, new Grid(run.grid.cells, run.grid.lengths), settings.samples + 1, dir);
+  const { setup, grid, particles, warnings } = prepare(run, settings, reporter);
+  for (const w of warnings) reporter.warn(w);
+  const { store } = EnsembleStore.open(dir, identityOf(run, setup, particles), resolvedConfigToml(run), options.force === true);
+  const scales = new OutputScales(run);
+  const out = { dir, scales, cells: run.grid.cells, particleMass: setup.particleMass, cellVolume: grid.cellVolume };
+  const reduction = { particleMass: setup.particleMass, cellVolume: grid.cellVolume, resamples: settings.resamples, seed: settings.seed, level: settings.departure };
+  const done = new Set(store.completed().filter((j) => j < settings.members));
+  const hasReference = (): boolean => store.hasReference();
+  const tasks: (number | null)[] = [...(hasReference() ? [] : [null]), ...Array.from({ length: settings.members }, (_, j) => j).filter((j) => !done.has(j))];
+  let reduced: EnsembleReduction | undefined;
+  const reduce = (status: string, reason?: string): void => {
+    const members = [...done].sort((a, b) => a - b);
+    if (members.length < 2 || !hasReference()) return;
+    reduced = reduceEnsemble(store, reduction, members);
+    writeEnsembleOutputs(reduced, out, summaryOf(run, settings, particles, grid.size, reduced, scales, status, reason, warnings));
+  };
+  reporter.phase(done.size > 0 ? `ensemble (continuing: ${done.size} of ${settings.members} members kept)` : "ensemble");
+  let nextReduction = Math.max(2, 2 ** Math.ceil(Math.log2(Math.max(2, done.size + 1))));
+  const total = tasks.length;
+  let finished = 0;
+  const stopped = await runMembers(setup, dir, tasks, options.workers, {
+    done: (index) => {
+      finished++;
+      if (index !== null) done.add(index);
+      if (done.size >= nextReduction && done.size < settings.members) {
+        reduce("running");
+        nextReduction *= 2;
+      }
+      reporter.progress(finished / Math.max(1, total), `${done.size} of ${settings.members} members`);
+    },
+    progress: (running) => {
+      const partial = [...running.values()].reduce((s, f) => s + f, 0);
+      reporter.progress((finished + partial) / Math.max(1, total), `${done.size} of ${settings.members} members, ${running.size} running`);
+    },
+    ...(options.stopRequested ? { stopRequested: options.stopRequested } : {}),
+  });
+  reporter.endPhase();
+  const status = stopped ? "stopped" : "completed";
+  reduce(status, stopped);
+  const summary = summaryOf(run, settings, particles, grid.size, reduced, scales, status, stopped, warnings);
+  if (!reduced) writeSummary(dir, summary);
+  return { status, ...(stopped ? { reason: stopped } : {}), dir, reduction: reduced, summary, warnings };
+}

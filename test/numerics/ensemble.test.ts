@@ -1,0 +1,151 @@
+// Truncated-Wigner ensembles (psibox ensemble): the vacuum noise against the single-mode closed form of the
+// method, the ensemble's depletion against the exact Bogoliubov n_k(t) of a uniform box (the method is exact
+// for quadratic dynamics), the condensate number's power method against a closed-form eigenvalue, and the
+// ensemble's independence of the worker count and of a stop and continue.
+import fs from "node:fs";
+import path from "node:path";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { loadConfig } from "../../src/config/load.js";
+import { resolveRun } from "../../src/config/resolve.js";
+import { resolveEnsemble } from "../../src/config/resolve-ensemble.js";
+import { runEnsemble } from "../../src/ensemble/ensemble.js";
+import { addVacuumNoise } from "../../src/ensemble/noise.js";
+import { leadingMode } from "../../src/ensemble/density-matrix.js";
+import { bootstrapWeights, sampleStatistics } from "../../src/ensemble/observables.js";
+import { validityWarning } from "../../src/ensemble/guards.js";
+import { ConfigError } from "../../src/core/errors.js";
+import { boxDepletion } from "../helpers/bogoliubov.js";
+import { makeWork, removeWork, writeIn } from "../helpers/cli.js";
+
+const MYR_S = 3.15576e13;
+
+/** ⟨b⟩_TWA = α e^{iX} (1 + iX/2)^{-2} exp(−iNX/(1 + iX/2)) for a real α = √N: the Gaussian average of the classical Kerr map. */
+function kerrTwaClosedForm(n: number, x: number): [number, number] {
+  const mul = (a: [number, number], b: [number, number]): [number, number] => [a[0] * b[0] - a[1] * b[1], a[0] * b[1] + a[1] * b[0]];
+  const div = (a: [number, number], b: [number, number]): [number, number] => {
+    const d = b[0] ** 2 + b[1] ** 2;
+    return [(a[0] * b[0] + a[1] * b[1]) / d, (a[1] * b[0] - a[0] * b[1]) / d];
+  };
+  const cexp = (z: [number, number]): [number, number] => [Math.exp(z[0]) * Math.cos(z[1]), Math.exp(z[0]) * Math.sin(z[1])];
+  const d: [number, number] = [1, x / 2];
+  const expo = div([0, -n * x], d);
+  return mul(mul([Math.sqrt(n), 0], cexp([0, x])), mul(div([1, 0], mul(d, d)), cexp(expo)));
+}
+
+/** Members of a one-cell ensemble (m = ΔV = 1: a = ψ) after the classical Kerr map β → β e^{−iX(|β|² − 1)} (the Weyl symbol's equation of motion of H = (χ/2) b†b†bb). */
+function kerrMembers(n: number, x: number, members: number, seed: number): Float64Array {
+  const a = new Float64Array(2 * members);
+  for (let j = 0; j < members; j++) a[2 * j] = Math.sqrt(n);
+  addVacuumNoise(a, 1, 1, seed, 0);
+  for (let j = 0; j < members; j++) {
+    const re = a[2 * j]!;
+    const im = a[2 * j + 1]!;
+    const phase = -x * (re * re + im * im - 1);
+    a[2 * j] = re * Math.cos(phase) - im * Math.sin(phase);
+    a[2 * j + 1] = re * Math.sin(phase) + im * Math.cos(phase);
+  }
+  return a;
+}
+
+describe("single-mode limit: the Kerr oscillator's truncated-Wigner mean", () => {
+  const [n, x] = [50, 0.1];
+  it("closed form at N = 50, X = 0.1 is 1.4929 + 5.2900i (computed independently); the exact quantum value 1.5184 + 5.2947i differs", () => {
+    const [re, im] = kerrTwaClosedForm(n, x);
+    expect(re).toBeCloseTo(1.4929, 4);
+    expect(im).toBeCloseTo(5.29, 4);
+  });
+  it("4·10⁶ draws of half a quantum of vacuum noise reproduce the closed form and resolve it from the exact value", () => {
+    const count = 4_000_000;
+    const a = kerrMembers(n, x, count, 7);
+    let [sr, si, qr, qi] = [0, 0, 0, 0];
+    for (let j = 0; j < count; j++) (sr += a[2 * j]!), (si += a[2 * j + 1]!), (qr += a[2 * j]! ** 2), (qi += a[2 * j + 1]! ** 2);
+    const [mr, mi] = [sr / count, si / count];
+    const [er, ei] = [Math.sqrt((qr / count - mr * mr) / count), Math.sqrt((qi / count - mi * mi) / count)];
+    const [tr, ti] = kerrTwaClosedForm(n, x);
+    expect(Math.abs(mr - tr)).toBeLessThan(4 * er);
+    expect(Math.abs(mi - ti)).toBeLessThan(4 * ei);
+    expect(Math.abs(mr - 1.5184)).toBeGreaterThan(6 * er); // the exact quantum ⟨b⟩ (Yurke & Stoler 1986, PRL 57, 13) is resolved apart
+  });
+  it("the reduction's ⟨b⟩ and its standard error, over 20000 one-cell members, agree with the closed form", () => {
+    const m = 20_000;
+    const a = kerrMembers(n, x, m, 11);
+    const members = Array.from({ length: m }, (_, j) => a.subarray(2 * j, 2 * j + 2));
+    const s = sampleStatistics(members, Float64Array.of(1, 0), bootstrapWeights(m, 8, 3));
+    const [tr, ti] = kerrTwaClosedForm(n, x);
+    expect(s.bRe.error).toBeGreaterThan(0.01);
+    expect(Math.abs(s.bRe.value - tr)).toBeLessThan(4 * s.bRe.error);
+    expect(Math.abs(s.bIm.value - ti)).toBeLessThan(4 * s.bIm.error);
+    // N = ⟨|β|²⟩ − 1/2 is conserved by the map: 50 within its error
+    expect(Math.abs(s.particles.value - n)).toBeLessThan(4 * s.particles.error);
+  });
+});
+
+describe("the condensate number's power method", () => {
+  it("matches the closed-form largest eigenvalue of a 2×2 Hermitian W = (a₁a₁† + a₂a₂†)/2 (textbook)", () => {
+    const a1 = Float64Array.of(1, 0.5, -0.3, 2);
+    const a2 = Float64Array.of(0.2, -1, 1.5, 0.1);
+    const w = (p: Float64Array, q: Float64Array, i: number, k: number) => [p[2 * i]! * q[2 * k]! + p[2 * i + 1]! * q[2 * k + 1]!, p[2 * i + 1]! * q[2 * k]! - p[2 * i]! * q[2 * k + 1]!];
+    const entry = (i: number, k: number) => [0, 1].map((c) => (w(a1, a1, i, k)[c]! + w(a2, a2, i, k)[c]!) / 2);
+    const [w00, w11, w01] = [entry(0, 0)[0]!, entry(1, 1)[0]!, entry(0, 1)];
+    const exact = (w00 + w11) / 2 + Math.sqrt(((w00 - w11) / 2) ** 2 + w01[0]! ** 2 + w01[1]! ** 2);
+    const lead = leadingMode([a1, a2], Float64Array.of(1, 0, 0, 0));
+    expect(Math.abs(lead.eigenvalue / exact - 1)).toBeLessThan(1e-11);
+  });
+});
+
+describe("validity guard and settings", () => {
+  it("warns with the numbers when N is not well above the modes, and not when it is", () => {
+    expect(validityWarning(300, 64)).toMatch(/N = 300 particles is not well above the grid's 64 modes \(N\/modes = 4\.69/);
+    expect(validityWarning(1e4, 64)).toBeUndefined();
+  });
+  it("refuses M < 2, N < 1 and a seed that is not a whole number, naming the key", () => {
+    const base = loadConfig(path.resolve("configs/jeans-collapse-2d.toml"));
+    const bad = (ensemble: Record<string, unknown>) => () => resolveEnsemble({ ...base, ensemble: { members: 64, particles: "physical", noise_seed: 1, samples: 16, departure: 0.1, resamples: 32, ...ensemble } } as typeof base);
+    expect(bad({ members: 1 })).toThrow(ConfigError);
+    expect(bad({ members: 1 })).toThrow(/ensemble\.members/);
+    expect(bad({ particles: 0.5 })).toThrow(/ensemble\.particles/);
+    expect(bad({ noise_seed: 2.5 })).toThrow(/ensemble\.noise_seed: must be a whole number/);
+  });
+});
+
+let work: string;
+beforeAll(() => (work = makeWork("ensemble")));
+afterAll(() => removeWork(work));
+
+function boxConfig(name: string, cells: number, rho: number, durationMyr: number, members: number): ReturnType<typeof resolveRun> {
+  const text =
+    `[grid]\ncells = ${cells}\nbox = "10 kpc"\n[particle]\nmass = "1e-22 eV"\n[span]\nduration = "${durationMyr} Myr"\n` +
+    `[initial]\nkind = "plane-wave"\nmean_density = "${rho} Msun/kpc^3"\ncontrast = 0\n[output]\ntime_unit = "Myr"\n` +
+    `[ensemble]\nmembers = ${members}\nparticles = 1e8\nsamples = 2\nnoise_seed = 5\n`;
+  return resolveRun(loadConfig(writeIn(work, `${name}.toml`, text)), name, work);
+}
+
+describe("uniform box: the ensemble's depletion against the exact Bogoliubov Σ_k n_k(t)", () => {
+  // N = 1e8 keeps the dynamics of the fluctuations linear (n_k/N < 1e-3), where the method is exact
+  it("Jeans-unstable box (2 unstable mode pairs), 250 Myr; the same numbers on 1 worker, stopped after some members and continued", async () => {
+    const run = boxConfig("unstable", 64, 7e6, 250, 32);
+    const whole = await runEnsemble(run, { workers: 2, dir: path.join(work, "two") });
+    const end = whole.reduction!.samples[2]!;
+    const exact = boxDepletion(7e6, 1e-22, 10, 64, 250 * MYR_S);
+    expect(exact.unstable).toBe(4);
+    expect(end.depletion.error).toBeLessThan(0.3 * exact.total);
+    expect(Math.abs(end.depletion.value - exact.total)).toBeLessThan(3 * end.depletion.error);
+    let done = 0;
+    const stopped = await runEnsemble(run, { workers: 1, dir: path.join(work, "one"), stopRequested: () => (++done > 6 ? "stopped by the test" : undefined) });
+    expect(stopped.status).toBe("stopped");
+    const continued = await runEnsemble(run, { workers: 1, dir: path.join(work, "one") });
+    expect(continued.status).toBe("completed");
+    const csv = (d: string) => fs.readFileSync(path.join(d, "series.csv"), "utf8");
+    expect(csv(path.join(work, "one"))).toBe(csv(path.join(work, "two")));
+  });
+  it("stable box near the Jeans threshold (every mode oscillates), a quarter period of the lowest pair", async () => {
+    const [rho, tMyr] = [238475.78918749382, 1283.453344850469]; // 0.9 of the lowest pair's marginal density; ωt = π/2 (computed with boxMode)
+    const run = boxConfig("stable", 16, rho, tMyr, 64);
+    const result = await runEnsemble(run, { workers: 2, dir: path.join(work, "stable") });
+    const end = result.reduction!.samples[2]!;
+    const exact = boxDepletion(rho, 1e-22, 10, 16, tMyr * MYR_S);
+    expect(exact.unstable).toBe(0);
+    expect(end.depletion.error).toBeLessThan(0.3 * exact.total);
+    expect(Math.abs(end.depletion.value - exact.total)).toBeLessThan(3 * end.depletion.error);
+  });
+});
