@@ -28,7 +28,7 @@ export interface PoolEvents {
   readonly done: (index: number | null) => void;
   /** The members in flight and the fraction of the span each has done. */
   readonly progress?: (running: ReadonlyMap<number | null, number>) => void;
-  /** Checked whenever a member ends; a reason stops the pool (members in flight are dropped). */
+  /** Checked whenever a member ends or reports progress; a reason stops the pool (members in flight are dropped). */
   readonly stopRequested?: () => string | undefined;
 }
 
@@ -75,6 +75,8 @@ export function runMembers(setup: MemberSetup, dir: string, tasks: readonly (num
       if (m.kind === "ready") return next(w);
       if (m.kind === "failed") return finish(new NumericsError(m.message));
       if (m.kind === "progress") {
+        const reason = events.stopRequested?.();
+        if (reason) return finish(undefined, reason);
         running.set(m.index, m.fraction);
         events.progress?.(running);
         return;
