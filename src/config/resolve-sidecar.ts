@@ -7,15 +7,12 @@
  */
 import { ConfigError } from "../core/errors.js";
 import type { UnitContext } from "../physics/units.js";
-import { PC_M } from "../physics/constants.js";
 import type { CheckedConfig } from "./schema.js";
-import { perAxis, positive, read } from "./values.js";
+import { perAxis, read } from "./values.js";
+import { parseRegion, type Region } from "./region.js";
 
-/** A region of the box in code lengths (the shape the quantum sidecar's modes take). */
-export type OutflowRegion =
-  | { readonly kind: "sphere"; readonly center: readonly number[]; readonly radius: number }
-  | { readonly kind: "cube"; readonly center: readonly number[]; readonly halfWidth: number }
-  | { readonly kind: "densest"; readonly radius: number };
+/** A region of the box in code lengths (the shape the quantum sidecar's modes take): any region but the whole box. */
+export type OutflowRegion = Exclude<Region, { readonly kind: "box" }>;
 
 /** The box the regions lie in: code lengths per axis, and the code length unit in metres. */
 export interface SidecarSpace {
@@ -66,7 +63,7 @@ export function resolveSidecar(config: CheckedConfig, timeS: number, ctx: UnitCo
   };
 }
 
-/** sidecar.outflow_region with its centre and radius in code lengths (nothing for "none"). */
+/** sidecar.outflow_region with its centre and radius in code lengths (nothing for "none"), read by the shared region parser. */
 function outflowOf(config: CheckedConfig, ctx: UnitContext, space: SidecarSpace | undefined): { outflow?: OutflowRegion } {
   const s = config.sidecar;
   if (s.outflow_region === "none" || !space) {
@@ -76,18 +73,17 @@ function outflowOf(config: CheckedConfig, ctx: UnitContext, space: SidecarSpace 
     return {};
   }
   if (!s.enabled) throw new ConfigError("sidecar.outflow_region", "needs sidecar.enabled = true (the sidecar measures the outflow)");
-  const { lengths, lengthM } = space;
   if (s.outflow_radius === undefined) throw new ConfigError("sidecar.outflow_radius", `missing: the ${s.outflow_region === "cube" ? "cube's half-width" : "sphere's radius"}, e.g. "3 kpc"`);
-  const radius = positive("sidecar.outflow_radius", read("sidecar.outflow_radius", s.outflow_radius, "length", ctx)) / lengthM;
-  if (s.outflow_region === "densest") {
-    if (s.outflow_center !== undefined) throw new ConfigError("sidecar.outflow_center", 'not used with outflow_region = "densest" (the sphere follows the densest cell)');
-    return { outflow: { kind: "densest", radius } };
+  if (s.outflow_region === "densest" && s.outflow_center !== undefined) {
+    throw new ConfigError("sidecar.outflow_center", 'not used with outflow_region = "densest" (the sphere follows the densest cell)');
   }
-  const center = s.outflow_center === undefined ? lengths.map((l) => l / 2) : perAxis("sidecar.outflow_center", s.outflow_center, lengths.length).map((t) => read("sidecar.outflow_center", t, "length", ctx) / lengthM);
-  center.forEach((v, i) => {
-    if (!(v >= 0 && v <= (lengths[i] as number))) throw new ConfigError("sidecar.outflow_center", `lies outside the box on axis ${i + 1} (0 … ${(((lengths[i] as number) * lengthM) / (1e3 * PC_M)).toPrecision(4)} kpc)`);
-  });
-  return { outflow: s.outflow_region === "sphere" ? { kind: "sphere", center, radius } : { kind: "cube", center, halfWidth: radius } };
+  const dims = space.lengths.length;
+  const center = s.outflow_center === undefined ? undefined : perAxis("sidecar.outflow_center", s.outflow_center, dims);
+  const names = { kind: "sidecar.outflow_region", center: "sidecar.outflow_center", radius: "sidecar.outflow_radius" };
+  const text = { kind: s.outflow_region, center, radius: s.outflow_radius, middleByDefault: true, names };
+  const region = parseRegion(text, { ...space, units: ctx }, (key, message) => new ConfigError(key, message));
+  if (region.kind === "box") throw new ConfigError("sidecar.outflow_region", 'must be "none", "sphere", "cube" or "densest"');
+  return { outflow: region };
 }
 
 /** sidecar.twin_excess: 0 (no twin), or e from 1e-6 to 0.1 with the sidecar on. */

@@ -87,6 +87,9 @@ describe("config", () => {
     expect(bad({ outflow_region: "sphere", outflow_radius: "2 Myr" })).toMatch(/^sidecar\.outflow_radius: "2 Myr" is not a length/);
     expect(bad({ outflow_region: "cube", outflow_radius: "2 kpc", outflow_center: ["30 kpc", "1 kpc"] })).toMatch(/^sidecar\.outflow_center: lies outside the box on axis 1/);
     expect(bad({ outflow_radius: "2 kpc" })).toMatch(/^sidecar\.outflow_radius: needs sidecar\.outflow_region/);
+    // the shared region parser's checks, with the sidecar's keys in the messages
+    expect(bad({ outflow_region: "sphere", outflow_radius: "6 kpc" })).toMatch(/^sidecar\.outflow_radius: must be at most half the box's smallest side \(5\.000 kpc\)/);
+    expect(bad({ outflow_region: "cube", outflow_radius: "1 kpc", outflow_center: ["1 kpc"] })).toMatch(/^sidecar\.outflow_center: give one value or 2/);
     expect(bad({ enabled: false, outflow_region: "densest", outflow_radius: "2 kpc" })).toMatch(/^sidecar\.outflow_region: needs sidecar\.enabled = true/);
   });
 
