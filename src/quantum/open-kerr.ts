@@ -23,13 +23,18 @@
  * ⟨b²⟩/⟨b⟩².
  *
  * The smallest quadrature variance V_min = ½ + n̄ − |⟨b²⟩ − ⟨b⟩²| subtracts
- * numbers of size N; the evaluation runs in double precision when its
- * estimated error is below 1e-11 of the result and otherwise repeats in
- * decimal arithmetic with enough digits (about 2 log₁₀ N + 25).
+ * numbers of size N. The closed system is evaluated in double precision by
+ * the form that keeps its digits where it is used (closedVariance: the
+ * near-Gaussian series of the covariance determinant, the dephased form, the
+ * direct form). With loss or dephasing the direct form runs in double
+ * precision when its estimated error is below 1e-11 of the result and
+ * otherwise repeats in decimal arithmetic with enough digits (about
+ * 2 log₁₀ N + 25).
  */
 import { complexOps, decimalReal, DOUBLE, type Cx, type Real } from "./real-arith.js";
 import { fluctuationMoments, isCoherent, type GaussianStart } from "./gaussian-start.js";
 import { kerrState, type KerrState } from "./kerr.js";
+import { nearGaussianDeterminant } from "./near-gaussian.js";
 
 /** Integrals accumulated along the run (radians or e-folds; complex ones as [re, im]). */
 export interface KerrIntegrals {
@@ -65,6 +70,8 @@ interface Raw<T> {
   ell: T;
   /** ln(⟨b²⟩/⟨b⟩²), or ln|⟨b²⟩/⟨n⟩| in .re when there is no displacement. */
   d: Cx<T>;
+  /** ln(|⟨b²⟩|/⟨n⟩) summed directly (not as ℓ + Re D, which cancels once the mean field has dephased). */
+  ell2: T;
   /** Im ln⟨b⟩ + Θ (the mean field's phase apart from Θ); without displacement, Im ln⟨b²⟩ + 2Θ. */
   phase: T;
   /** Size of the terms summed, for the error estimate. */
@@ -91,35 +98,48 @@ function moments<T>(R: Real<T>, N: number, start: GaussianStart, k: KerrIntegral
   const e1 = C.c(R.mul(R.of(-2), R.mul(sh, sh)), R.sub(R.of(0), R.sin(R.of(k.x))));
   const c1 = C.add(C.scale(e1, eG), C.c(R.of(k.lossPhase1[0]), R.of(k.lossPhase1[1])));
   const cq = C.add(C.scale(C.mul(e1, e1), eG), C.c(R.of(k.lossPhase2[0]), R.of(k.lossPhase2[1])));
-  const c2 = C.add(C.scale(c1, R.of(2)), cq);
+  // c₂ = e^{−Γ}(e^{−2iX} − 1) + 2J₁ + J₂ (= 2c₁ + cq, which cancels near X = π)
+  const s2 = R.sin(R.of(k.x));
+  const e2 = C.c(R.mul(R.of(-2), R.mul(s2, s2)), R.sub(R.of(0), R.sin(R.of(2 * k.x))));
+  const j12 = C.c(R.add(R.mul(R.of(2), R.of(k.lossPhase1[0])), R.of(k.lossPhase2[0])), R.add(R.mul(R.of(2), R.of(k.lossPhase1[1])), R.of(k.lossPhase2[1])));
+  const c2 = C.add(C.scale(e2, eG), j12);
   const logDet = (c: Cx<T>) => C.add(C.log1p(C.scale(c, R.sub(R.of(0), lp))), C.log1p(C.scale(c, R.sub(R.of(0), lm))));
   const det = (c: Cx<T>) => C.mul(C.sub(one, C.scale(c, lp)), C.sub(one, C.scale(c, lm)));
   // c² N_α ((n + Re m) − c λ₊λ₋)/det(c)
   const quad = (c: Cx<T>) => C.scale(C.div(C.mul(C.mul(c, c), C.sub(C.c(nPlusRe), C.scale(c, R.mul(lp, lm)))), det(c)), NaR);
   const ld1 = logDet(c1);
   const ld2 = logDet(c2);
-  const aff2 = C.add(one, C.mul(c2, mMinusN));
   const q1 = quad(c1);
   const q2 = quad(c2);
   if (!(Na > 0)) {
     // no displacement: ⟨b⟩ = 0 and |⟨b²⟩|/⟨n⟩ = e^{−Γ−2K} |m| |det(c₂)|^{−3/2} / (n e^{−Γ})
     const lnB2 = R.sub(R.sub(R.ln(R.of(mAbs / n)), R.of(2 * k.dephasing)), R.mul(R.of(1.5), ld2.re));
     const phase2 = R.sub(R.of(Math.atan2(m[1], m[0]) - k.x), R.mul(R.of(1.5), ld2.im));
-    return { ell: R.of(-Infinity), d: C.c(lnB2), phase: phase2, size: 4 };
+    return { ell: R.of(-Infinity), d: C.c(lnB2), ell2: lnB2, phase: phase2, size: 4 };
   }
   // ln⟨b⟩ − ln α + iΘ + (Γ+K)/2 = c₁N_α + quad(c₁) − (3/2) ln det(c₁) + ln(1 + c₁(m − n))
   const e1Log = C.add(C.add(C.scale(c1, NaR), q1), C.sub(C.log1p(C.mul(c1, mMinusN)), C.scale(ld1, R.of(1.5))));
   const ell = R.add(R.sub(R.log1p(R.div(R.of(-n), R.of(N))), R.of(k.dephasing)), R.mul(R.of(2), e1Log.re));
+  // ln[(1 + c₂(m − n))²/det(c₂) + m/N_α] = ln(1 + w), w = c₂(2m + c₂((m − n)² − λ₊λ₋))/det(c₂) + m/N_α
+  // (both parts of w vanish with X and 1/N_α: the logarithm of 1 + w itself would lose them)
+  const mu2 = C.sub(C.mul(mMinusN, mMinusN), C.c(R.mul(lp, lm)));
+  const w2 = C.add(C.div(C.mul(c2, C.add(C.scale(mm, R.of(2)), C.mul(c2, mu2))), det(c2)), C.scale(mm, R.div(R.of(1), NaR)));
+  const lnPair = C.log1p(w2);
   // ln(⟨b²⟩/⟨b⟩²) = −iX − K + N_α(c₂ − 2c₁) + quad(c₂) − 2 quad(c₁) − (3/2)(ln det(c₂) − 2 ln det(c₁))
   //                + ln[(1 + c₂(m − n))²/det(c₂) + m/N_α] − 2 ln(1 + c₁(m − n))
-  let d = C.add(C.c(R.of(-k.dephasing), R.of(-k.x)), C.scale(cq, NaR));
+  // the −iX of e^{−iX} taken in (−π, π], so that D keeps its small parts near X = 2π
+  let d = C.add(C.c(R.of(-k.dephasing), R.of(-Math.atan2(Math.sin(k.x), Math.cos(k.x)))), C.scale(cq, NaR));
   d = C.add(d, C.sub(q2, C.scale(q1, R.of(2))));
   d = C.sub(d, C.scale(C.sub(ld2, C.scale(ld1, R.of(2))), R.of(1.5)));
-  d = C.add(d, C.ln(C.add(C.div(C.mul(aff2, aff2), det(c2)), C.scale(mm, R.div(R.of(1), NaR)))));
+  d = C.add(d, lnPair);
   d = C.sub(d, C.scale(C.log1p(C.mul(c1, mMinusN)), R.of(2)));
+  // ln(|⟨b²⟩|/⟨n⟩) = ln(N_α/N) − 2K + Re[c₂N_α + quad(c₂) − (3/2) ln det(c₂) + ln((1 + c₂(m − n))²/det(c₂) + m/N_α)]
+  const logB2 = C.add(C.add(C.scale(c2, NaR), q2), C.sub(lnPair, C.scale(ld2, R.of(1.5))));
+  const ell2 = R.add(R.sub(R.log1p(R.div(R.of(-n), R.of(N))), R.of(2 * k.dephasing)), logB2.re);
   const mag = (z: Cx<T>) => Math.hypot(R.num(z.re), R.num(z.im));
-  const terms = Na * (mag(c1) + mag(cq)) + mag(q1) + mag(q2) + mag(ld1) + mag(ld2) + 1;
-  return { ell, d, phase: e1Log.im, size: terms };
+  // Im c₁ N_α (of size N_α X) enters only the phase of ⟨b⟩, not ℓ or D
+  const terms = Na * (Math.abs(R.num(c1.re)) + mag(cq)) + mag(q1) + mag(q2) + mag(ld1) + mag(ld2) + 1;
+  return { ell, d, ell2, phase: e1Log.im, size: terms };
 }
 
 /**
@@ -149,6 +169,7 @@ export function openKerrState(N: number, start: GaussianStart, k: KerrIntegrals)
   const Na = Math.max(0, N - n);
   const nt = N * Math.exp(-k.loss);
   const raw = moments(DOUBLE, N, start, k);
+  if (closed) return assemble(N, nt, Na, raw, closedVariance(N, start, k.x, raw), 16, k);
   let v = 0.5 + nt * excess(DOUBLE, raw, Na > 0);
   let digits = 16;
   // error of the double evaluation: the logs ℓ and D carry absolute errors ~ ε × (size of their terms),
@@ -168,6 +189,38 @@ export function openKerrState(N: number, start: GaussianStart, k: KerrIntegrals)
   }
   return assemble(N, nt, Na, raw, v, digits, k);
 }
+
+/**
+ * V_min of the closed system in double precision, by the one of three forms
+ * that has no cancellation where it is used: the near-Gaussian series of the
+ * covariance determinant while the Kerr phase is small (near-gaussian.ts),
+ * the direct form from |⟨b²⟩| once the mean field has dephased, and
+ * ½ + ⟨n⟩(−expm1(ℓ) − e^ℓ|expm1(D)|) in between.
+ */
+function closedVariance(N: number, start: GaussianStart, x: number, raw: Raw<number>): number {
+  const { n, m } = fluctuationMoments(start);
+  const Na = Math.max(0, N - n);
+  if (!(Na > 0)) return 0.5 + N * excess(DOUBLE, raw, false);
+  const C = complexOps(DOUBLE);
+  // X reduced to (−π, π] with full relative precision near multiples of 2π
+  const det = nearGaussianDeterminant(Na, n, m, Math.atan2(Math.sin(x), Math.cos(x)));
+  if (det !== undefined) {
+    // V_min = det / (½ + n̄ + |m̄|): the larger variance has no cancellation
+    return det / (0.5 + N * (-Math.expm1(raw.ell) + Math.exp(raw.ell) * C.abs(C.expm1(raw.d))));
+  }
+  if (raw.ell < DEPHASED) {
+    // (V_min − ½)/⟨n⟩ = (1 − p) − q + q(2p cos ψ − q)/(p + |p e^{iψ} − q|), q = e^ℓ, p = e^{ℓ₂}, ψ = Im D
+    const q = Math.exp(raw.ell);
+    const p = Math.exp(raw.ell2);
+    const far = Math.hypot(p * Math.cos(raw.d.im) - q, p * Math.sin(raw.d.im));
+    const rest = p + far > 0 ? (q * (2 * p * Math.cos(raw.d.im) - q)) / (p + far) : 0;
+    return 0.5 + N * (-Math.expm1(raw.ell2) - q + rest);
+  }
+  return 0.5 + N * excess(DOUBLE, raw, true);
+}
+
+/** ln q below which the mean field no longer enters V_min at double precision (q < 1e-20). */
+const DEPHASED = -46;
 
 /** ln(|⟨b⟩|²/⟨n⟩) alone, in double precision (it has no cancellation): −Infinity without displacement. */
 export function logMeanFieldFraction(N: number, start: GaussianStart, k: KerrIntegrals): number {

@@ -87,6 +87,10 @@ describe("config", () => {
     expect(bad({ outflow_region: "sphere", outflow_radius: "2 Myr" })).toMatch(/^sidecar\.outflow_radius: "2 Myr" is not a length/);
     expect(bad({ outflow_region: "cube", outflow_radius: "2 kpc", outflow_center: ["30 kpc", "1 kpc"] })).toMatch(/^sidecar\.outflow_center: lies outside the box on axis 1/);
     expect(bad({ outflow_radius: "2 kpc" })).toMatch(/^sidecar\.outflow_radius: needs sidecar\.outflow_region/);
+    // the mode's start and rates (a start too large for the mode's N is found when the run starts: test/e2e/mode-state.test.ts)
+    expect(bad({ squeeze: -1 })).toMatch(/^sidecar\.squeeze: must be a finite squeeze parameter r ≥ 0/);
+    expect(bad({ loss_rate: "3 km" })).toMatch(/^sidecar\.loss_rate: "3 km" is not a rate/);
+    expect(bad({ dephasing_rate: "-2/Gyr" })).toMatch(/^sidecar\.dephasing_rate: must be a rate ≥ 0/);
     // the shared region parser's checks, with the sidecar's keys in the messages
     expect(bad({ outflow_region: "sphere", outflow_radius: "6 kpc" })).toMatch(/^sidecar\.outflow_radius: must be at most half the box's smallest side \(5\.000 kpc\)/);
     expect(bad({ outflow_region: "cube", outflow_radius: "1 kpc", outflow_center: ["1 kpc"] })).toMatch(/^sidecar\.outflow_center: give one value or 2/);
