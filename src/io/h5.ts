@@ -7,7 +7,7 @@
 import fs from "node:fs";
 import path from "node:path";
 import { fsyncFolder, fsyncPath, temporaryPathFor } from "./atomic.js";
-import h5wasm, { Dataset, Group, type File as H5File, type FileOptions } from "h5wasm/node";
+import h5wasm, { Dataset, Group, Module as loadedModule, type File as H5File, type FileOptions } from "h5wasm/node";
 import { InputError } from "../core/errors.js";
 import { writeFailure } from "./write-failure.js";
 
@@ -24,6 +24,12 @@ export function loadHdf5(): Promise<void> {
     module.activate_throwing_error_handler();
   })();
   return ready;
+}
+
+/** The loaded HDF5 module itself (its heap and low-level calls); loadHdf5() first. */
+export function h5Module(): typeof loadedModule {
+  if (!loadedModule) throw new Error("the HDF5 library is not loaded (call loadHdf5 first)");
+  return loadedModule;
 }
 
 /** The last informative line of an HDF5 error stack. */

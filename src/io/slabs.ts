@@ -8,7 +8,7 @@
  */
 import { InputError } from "../core/errors.js";
 import { fileName } from "../core/sanitize.js";
-import type { Dataset, Group, H5File } from "./h5.js";
+import { h5Module, type Dataset, type Group, type H5File } from "./h5.js";
 
 /** Bytes of one slab (and chunk) unless set otherwise: 2 MiB, a few rows of a large grid. */
 export const DEFAULT_SLAB_BYTES = 2 << 20;
@@ -77,6 +77,9 @@ export function writeVector(node: H5File | Group, name: string, values: Float64A
 /**
  * Read a float dataset slab by slab: `take(r0, r1, slab)` receives rows [r0, r1)
  * (float64 or float32 as stored). Anything else is an InputError naming the file.
+ * HDF5 reads every slab into one buffer of its heap, and `slab` is a view of
+ * that buffer (no copy): it is valid only inside `take`, which must not call
+ * h5wasm (its heap may move).
  */
 export function readSlabs(ds: Dataset, file: string, take: (r0: number, r1: number, slab: Float64Array | Float32Array) => void): void {
   const shape = ds.shape ?? [];
@@ -84,11 +87,21 @@ export function readSlabs(ds: Dataset, file: string, take: (r0: number, r1: numb
   if (type.type !== 1 || (type.size !== 8 && type.size !== 4)) throw new InputError(`${fileName(file)}: dataset ${ds.path} is not floating point`);
   if (shape.length === 0) throw new InputError(`${fileName(file)}: dataset ${ds.path} is a scalar, not an array`);
   const step = slabRows(shape, type.size);
-  for (let r0 = 0; r0 < (shape[0] as number); r0 += step) {
-    const r1 = Math.min(shape[0] as number, r0 + step);
-    const slab = ds.slice(rows(r0, r1, shape.length));
-    if (!(slab instanceof Float64Array || slab instanceof Float32Array)) throw new InputError(`${fileName(file)}: dataset ${ds.path} is not floating point`);
-    take(r0, r1, slab);
+  const rowValues = shape.slice(1).reduce((p, n) => p * n, 1);
+  const heap = h5Module();
+  const at = heap._malloc(step * rowValues * type.size);
+  if (at === 0) throw new InputError(`${fileName(file)}: no memory in the HDF5 heap for a slab of ${ds.path}`);
+  try {
+    const rest = shape.slice(1).map(BigInt);
+    const strides = shape.map(() => 1n);
+    for (let r0 = 0; r0 < (shape[0] as number); r0 += step) {
+      const r1 = Math.min(shape[0] as number, r0 + step);
+      const values = (r1 - r0) * rowValues;
+      heap.get_dataset_data(ds.file_id, ds.path, [BigInt(r1 - r0), ...rest], [BigInt(r0), ...rest.map(() => 0n)], strides, BigInt(at));
+      take(r0, r1, type.size === 8 ? new Float64Array(heap.HEAPU8.buffer, at, values) : new Float32Array(heap.HEAPU8.buffer, at, values));
+    }
+  } finally {
+    heap._free(at);
   }
 }
 
