@@ -36,13 +36,13 @@ describe("config", () => {
     }
   });
 
-  it("records a time-series row every step below 2^18 cells and every 8th step from there, unless told", () => {
+  it("records a time-series row every step below 2^18 cells and every 16th step from there, unless told", () => {
     const every = (cells: number[], set?: number) =>
       resolveRun(checkConfig({ ...base, grid: { cells, box: "10 kpc" }, ...(set ? { output: { timeseries_every: set } } : {}) }), "t", "/tmp").output.timeseriesEvery;
     expect(every([32, 32, 32])).toBe(1);
     expect(every([2 ** 17])).toBe(1);
-    expect(every([64, 64, 64])).toBe(8);
-    expect(every([512, 512])).toBe(8);
+    expect(every([64, 64, 64])).toBe(16);
+    expect(every([512, 512])).toBe(16);
     expect(every([64, 64, 64], 1)).toBe(1);
     expect(errorOf({ ...base, output: { timeseries_every: 0 } })).toMatch(/^output\.timeseries_every/);
   });
