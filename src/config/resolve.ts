@@ -18,6 +18,7 @@ import { resolveIntegrator, resolveOutput } from "./resolve-output.js";
 import { resolveSidecar, type ResolvedSidecar } from "./resolve-sidecar.js";
 import { resolveBreakdown, type ResolvedBreakdown } from "./resolve-breakdown.js";
 import { resolveContact, type ResolvedContact } from "./resolve-contact.js";
+import { checkRelaxedMasses } from "./contact-limits.js";
 
 /** Background in code units. */
 export type { BackgroundSpec as ResolvedBackground } from "../physics/cosmology/background.js";
@@ -96,6 +97,7 @@ export function resolveRun(config: CheckedConfig, name: string, cwd: string): Re
   if (config.grid.gravity === "isolated") checkIsolatedGrid(cells);
   const { background, startTime, endTime } = resolveBackgroundAndSpan(config, units, ctx, hubbleSI);
   const initial = resolveInitial(config, dims, lengths, units, ctx, background);
+  checkRelaxedMasses(initial, dims, units, contact, m);
   const integrator = resolveIntegrator(config, cells, units, ctx);
   const { outputDir, output } = resolveOutput(config, name, cwd, background, { startTime, endTime }, units, ctx);
   if (!(config.sidecar.squeezing_db < 0)) {

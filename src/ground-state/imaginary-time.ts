@@ -12,6 +12,13 @@
  * then renormalises the mass. A fixed point is an eigenvector of
  * H[ψ] = T + φ[ψ] up to O(Δτ⁴), i.e. the self-consistent ground state.
  * Further stages (Δτ/2 each) are optional and measure the remaining bias.
+ *
+ * With a contact interaction g (the Gross–Pitaevskii term) the frozen
+ * potential is V = φ + g|ψ|², in the factorisation and in Ṽ, and the energy
+ * gains U = (g/2)∫|ψ|⁴. An attractive interaction has no ground state above
+ * a largest mass: the flow then shrinks the field until its interaction
+ * length 1/√(2|g|ρ_max) is below a cell's Δx/π, where the relaxation stops
+ * with a RelaxationCollapse instead of iterating to its cap.
  */
 import type { Grid } from "../grid/grid.js";
 import type { PoissonSolver } from "../fields/poisson.js";
@@ -28,6 +35,8 @@ export interface RelaxOptions {
   readonly stepScale?: number;
   /** Iteration cap over all stages. @default 20000 */
   readonly maxIterations?: number;
+  /** The contact coefficient g (code units, static a = 1): V = φ + g|ψ|². @default 0 */
+  readonly contact?: number;
   /** Called every few iterations with the stage, iteration and energy. */
   readonly onProgress?: (info: { stage: number; iteration: number; energy: number }) => void;
 }
@@ -43,15 +52,35 @@ export interface GroundState {
   readonly kinetic: number;
   /** Potential energy W. */
   readonly potential: number;
-  /** Eigenvalue per unit mass μ = (K + 2W)/M (in code units ħ/m = 1 this is ε/m). */
+  /** Contact energy U = (g/2)∫|ψ|⁴ dV (0 without a contact term). */
+  readonly contact: number;
+  /** Eigenvalue per unit mass μ = (K + 2W + 2U)/M (in code units ħ/m = 1 this is ε/m). */
   readonly eigenvalue: number;
   readonly iterations: number;
   readonly converged: boolean;
 }
 
+/** A relaxation of an attractive field that collapsed to the grid's scale: no ground state of this mass on this grid. */
+export class RelaxationCollapse extends RangeError {
+  /** The relaxed mass [code]. */
+  readonly mass: number;
+  constructor(mass: number, iterations: number) {
+    super(`the relaxation collapsed to the grid's scale after ${iterations} iterations (an attractive contact term with no ground state of this mass on this grid)`);
+    this.name = "RelaxationCollapse";
+    this.mass = mass;
+  }
+}
+
+/** (π/Δx)²/2 on the finest simulated axis: an attractive |g|ρ_max above it has collapsed below a cell. */
+function collapseLevel(grid: Grid): number {
+  let h = Infinity;
+  for (let ax = 0; ax < 3; ax++) if (grid.shape[ax]! > 1) h = Math.min(h, grid.spacing[ax]!);
+  return 0.5 * (Math.PI / h) ** 2;
+}
+
 /**
  * Relax `initial` (copied; its mass is kept) to the ground state on `grid`
- * with static (a = 1) gravity from `gravity`.
+ * with static (a = 1) gravity from `gravity`, and the contact term of `options.contact`.
  */
 export function relaxGroundState(
   grid: Grid,
@@ -62,55 +91,22 @@ export function relaxGroundState(
   const tol = options.energyTolerance ?? 1e-11;
   const stages = options.stages ?? 1;
   const maxIterations = options.maxIterations ?? 20000;
-  const fft = new ComplexFft(grid.shape);
-  const psi = Float64Array.from(initial);
-  const phi = new Float64Array(grid.size);
-  const scratch = new Float64Array(psi.length);
-  const vTilde = new Float64Array(grid.size);
-  const mass = massOf(grid, psi);
-  if (!(mass > 0)) throw new RangeError("the initial field of a relaxation has no mass");
-
-  const updatePotential = (): void => {
-    for (let i = 0; i < phi.length; i++) phi[i] = psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2;
-    gravity.solveInPlace(phi);
-  };
-  const energies = (): { kinetic: number; potential: number } => ({
-    kinetic: kineticEnergy(grid, psi, 1, fft, scratch),
-    potential: potentialEnergy(grid, psi, phi, 1),
-  });
-  updatePotential();
-  let { kinetic, potential } = energies();
-  const mu0 = Math.abs((kinetic + 2 * potential) / mass);
-  let dtau = (options.stepScale ?? 0.5) / Math.max(mu0, 1e-300);
-
-  const kineticDamping = buildDampingTables(grid);
+  const field = new RelaxingField(grid, gravity, initial, options.contact ?? 0);
+  let e = field.energies();
+  const eigenvalue = (): number => (e.kinetic + 2 * e.potential + 2 * e.contact) / field.mass;
+  let dtau = (options.stepScale ?? 0.5) / Math.max(Math.abs(eigenvalue()), 1e-300);
   let iterations = 0;
   let converged = false;
   const checkEvery = 10;
   for (let stage = 0; stage < stages && iterations < maxIterations; stage++) {
-    let last = kinetic + potential;
+    let last = e.kinetic + e.potential + e.contact;
     converged = false;
     while (iterations < maxIterations) {
-      for (let j = 0; j < checkEvery; j++) {
-        updatePotential();
-        gradientSquared(grid, phi, vTilde);
-        const c = (dtau * dtau) / 48;
-        for (let i = 0; i < phi.length; i++) vTilde[i] = phi[i]! + c * vTilde[i]!;
-        potentialDamping(psi, phi, dtau / 6);
-        fft.forward(psi);
-        applyKineticDamping(grid, psi, kineticDamping, dtau / 2);
-        fft.inverse(psi);
-        potentialDamping(psi, vTilde, (2 * dtau) / 3);
-        fft.forward(psi);
-        applyKineticDamping(grid, psi, kineticDamping, dtau / 2);
-        fft.inverse(psi);
-        potentialDamping(psi, phi, dtau / 6);
-        renormalise(grid, psi, mass);
-        iterations++;
-      }
-      updatePotential();
-      ({ kinetic, potential } = energies());
-      const energy = kinetic + potential;
+      for (let j = 0; j < checkEvery; j++) field.iterate(dtau);
+      iterations += checkEvery;
+      e = field.energies();
+      if (field.collapsed()) throw new RelaxationCollapse(field.mass, iterations);
+      const energy = e.kinetic + e.potential + e.contact;
       options.onProgress?.({ stage, iteration: iterations, energy });
       if (Math.abs(energy - last) <= tol * checkEvery * Math.abs(energy)) {
         converged = true;
@@ -120,16 +116,85 @@ export function relaxGroundState(
     }
     dtau /= 2;
   }
-  return {
-    psi,
-    phi,
-    mass,
-    kinetic,
-    potential,
-    eigenvalue: (kinetic + 2 * potential) / mass,
-    iterations,
-    converged,
-  };
+  return { psi: field.psi, phi: field.phi, mass: field.mass, ...e, eigenvalue: eigenvalue(), iterations, converged };
+}
+
+/** The field being relaxed, its frozen potential V = φ + g|ψ|² and the scratch of an iteration. */
+class RelaxingField {
+  readonly psi: Float64Array;
+  readonly phi: Float64Array;
+  readonly mass: number;
+  /** V = φ + g|ψ|² (φ itself without a contact term). */
+  private readonly v: Float64Array;
+  private readonly vTilde: Float64Array;
+  private readonly scratch: Float64Array;
+  private readonly fft: ComplexFft;
+  private readonly damping: Float64Array[];
+
+  constructor(
+    private readonly grid: Grid,
+    private readonly gravity: PoissonSolver,
+    initial: Float64Array,
+    private readonly contact: number,
+  ) {
+    this.fft = new ComplexFft(grid.shape);
+    this.psi = Float64Array.from(initial);
+    this.phi = new Float64Array(grid.size);
+    this.v = contact !== 0 ? new Float64Array(grid.size) : this.phi;
+    this.scratch = new Float64Array(this.psi.length);
+    this.vTilde = new Float64Array(grid.size);
+    this.damping = buildDampingTables(grid);
+    this.mass = massOf(grid, this.psi);
+    if (!(this.mass > 0)) throw new RangeError("the initial field of a relaxation has no mass");
+  }
+
+  /** φ of the current field and V = φ + g|ψ|². */
+  private updatePotential(): void {
+    const { psi, phi, v, contact } = this;
+    for (let i = 0; i < phi.length; i++) phi[i] = psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2;
+    this.gravity.solveInPlace(phi);
+    if (contact !== 0) for (let i = 0; i < phi.length; i++) v[i] = phi[i]! + contact * (psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2);
+  }
+
+  /** K, W and U of the current field (φ recomputed). */
+  energies(): { kinetic: number; potential: number; contact: number } {
+    this.updatePotential();
+    const { grid, psi } = this;
+    let rho2 = 0;
+    if (this.contact !== 0) for (let i = 0; i < psi.length; i += 2) rho2 += (psi[i]! ** 2 + psi[i + 1]! ** 2) ** 2;
+    return {
+      kinetic: kineticEnergy(grid, psi, 1, this.fft, this.scratch),
+      potential: potentialEnergy(grid, psi, this.phi, 1),
+      contact: 0.5 * this.contact * rho2 * grid.cellVolume,
+    };
+  }
+
+  /** One iteration of Chin's 4A factorisation on the frozen V, then the mass renormalised. */
+  iterate(dtau: number): void {
+    const { grid, psi, v, vTilde, fft, damping } = this;
+    this.updatePotential();
+    gradientSquared(grid, v, vTilde);
+    const c = (dtau * dtau) / 48;
+    for (let i = 0; i < v.length; i++) vTilde[i] = v[i]! + c * vTilde[i]!;
+    potentialDamping(psi, v, dtau / 6);
+    fft.forward(psi);
+    applyKineticDamping(grid, psi, damping, dtau / 2);
+    fft.inverse(psi);
+    potentialDamping(psi, vTilde, (2 * dtau) / 3);
+    fft.forward(psi);
+    applyKineticDamping(grid, psi, damping, dtau / 2);
+    fft.inverse(psi);
+    potentialDamping(psi, v, dtau / 6);
+    renormalise(grid, psi, this.mass);
+  }
+
+  /** An attractive field whose interaction length fell below a cell: |g| ρ_max > (π/Δx)²/2. */
+  collapsed(): boolean {
+    if (!(this.contact < 0)) return false;
+    let max = 0;
+    for (let i = 0; i < this.psi.length; i += 2) max = Math.max(max, this.psi[i]! ** 2 + this.psi[i + 1]! ** 2);
+    return -this.contact * max > collapseLevel(this.grid);
+  }
 }
 
 function massOf(grid: Grid, psi: Float64Array): number {

@@ -36,6 +36,7 @@ export interface InitialField {
  * @param startTime code time of the start (sets a, H and f in expanding runs)
  * @param gravity the run's Poisson solver (used by the ground-state relaxation)
  * @param into where to build grid-filling fields (plane wave, white noise, cosmological), e.g. the stepper's own ψ, to save a copy
+ * @param contact the field's contact coefficient g (code units), which relaxed ground states include
  */
 export function buildInitialField(
   ic: Exclude<ResolvedInitial, { kind: "snapshot" }>,
@@ -45,6 +46,7 @@ export function buildInitialField(
   gravity: PoissonSolver,
   onRelaxProgress?: (info: { iteration: number; energy: number }) => void,
   into?: Float64Array,
+  contact = 0,
 ): InitialField {
   const a = background.scaleFactor(startTime);
   const fresh = (): Float64Array => (into ? into.fill(0) : new Float64Array(2 * grid.size));
@@ -68,7 +70,7 @@ export function buildInitialField(
     case "gaussian-packet":
       return { psi: gaussian(grid, ic.mass, ic.width, ic.center, ic.velocity.map((v) => a * v)) };
     case "solitons":
-      return buildSolitons(ic, grid, a, onRelaxProgress);
+      return buildSolitons(ic, grid, a, onRelaxProgress, contact);
     case "white-noise": {
       const rng = new SeededRandom(ic.seed);
       const psi = fresh();
@@ -84,7 +86,7 @@ export function buildInitialField(
       return buildCosmological(ic, grid, background, a, into);
     case "ground-state": {
       const guess = gaussian(grid, ic.mass, ic.guessWidth, ic.center, ic.center.map(() => 0));
-      const gs = relaxGroundState(grid, gravity, guess, onRelaxProgress ? { onProgress: onRelaxProgress } : {});
+      const gs = relaxGroundState(grid, gravity, guess, { contact, ...(onRelaxProgress ? { onProgress: onRelaxProgress } : {}) });
       return { psi: gs.psi, relaxation: { iterations: gs.iterations, converged: gs.converged, eigenvalue: gs.eigenvalue } };
     }
   }

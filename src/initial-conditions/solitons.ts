@@ -41,6 +41,7 @@ export function buildSolitons(
   grid: Grid,
   a: number,
   onRelaxProgress?: (info: { iteration: number; energy: number }) => void,
+  contact = 0,
 ): InitialField {
   const psi = new Float64Array(2 * grid.size);
   const profiles = new Map<number, Float64Array>();
@@ -54,7 +55,7 @@ export function buildSolitons(
       if (!profile) {
         const width = grid.dims === 3 ? SOLITON_MASS_CORE / s.mass : Math.min(...grid.lengths) / 10;
         const guess = gaussian(grid, s.mass, width, boxCentre, boxCentre.map(() => 0));
-        const gs = relaxGroundState(grid, isolated, guess, onRelaxProgress ? { onProgress: onRelaxProgress } : {});
+        const gs = relaxGroundState(grid, isolated, guess, { contact, ...(onRelaxProgress ? { onProgress: onRelaxProgress } : {}) });
         relaxation = {
           iterations: (relaxation?.iterations ?? 0) + gs.iterations,
           converged: (relaxation?.converged ?? true) && gs.converged,

@@ -37,6 +37,7 @@ import { resolveFftBackend, type FftChoice } from "./fft-backend.js";
 import { ExtraFields, type FieldKind, type PassRunner } from "./extra-fields.js";
 import { StepPlan, type PlannedPass } from "./step-plan.js";
 import { RESULT_LENGTH, runTask, type StepTask } from "./step-task.js";
+import { maxDensity } from "../diagnostics/energies.js";
 
 /** Sums over the grid of |ψ|² = ρ and φ, without the cell volume. */
 export interface FieldMoments {
@@ -425,11 +426,4 @@ export class SplitStepper {
     const m = this.moments();
     return m.phiMax - m.phiMin;
   }
-}
-
-/** The largest |ψ|² of an interleaved complex field. */
-function maxDensity(psi: Float64Array): number {
-  let max = 0;
-  for (let i = 0; i < psi.length; i += 2) max = Math.max(max, psi[i]! * psi[i]! + psi[i + 1]! * psi[i + 1]!);
-  return max;
 }

@@ -53,3 +53,15 @@ export function criticalMassKg(scatteringLengthM: number, particleMassKg: number
 export function thomasFermiRadiusM(scatteringLengthM: number, particleMassKg: number): number {
   return Math.PI * Math.sqrt((scatteringLengthM * HBAR_J_S * HBAR_J_S) / (G_SI * particleMassKg ** 3));
 }
+
+/** The |a_s| [m] at which a soliton of mass M [kg] is the largest stable one: (1.0125 ħ/M)²/(G m). */
+export function criticalScatteringLengthM(massKg: number, particleMassKg: number): number {
+  return (CRITICAL_MASS_COEFFICIENT * HBAR_J_S / massKg) ** 2 / (G_SI * particleMassKg);
+}
+
+/** The decay constant f [J] of an axion-like field whose scattering length is −|a_s|: √((ħc)(mc²)/(32π|a_s|)). */
+export function decayConstantOf(scatteringLengthM: number, particleMassKg: number): number {
+  const hbarC = HBAR_J_S * C_M_PER_S;
+  const restEnergy = particleMassKg * C_M_PER_S * C_M_PER_S;
+  return Math.sqrt((hbarC * restEnergy) / (32 * Math.PI * Math.abs(scatteringLengthM)));
+}

@@ -3,6 +3,9 @@
  * gravity, stepper, writer, plug-ins), and the run's start: the initial
  * field built in place, or the checkpoint it resumes from.
  */
+import { RelaxationCollapse } from "../ground-state/imaginary-time.js";
+import { collapseVerdict } from "./collapse-guard.js";
+import { M_SUN_KG } from "../physics/constants.js";
 import { contactCode } from "../physics/contact.js";
 import fs from "node:fs";
 import { Grid } from "../grid/grid.js";
@@ -11,7 +14,7 @@ import { makeBackground, type Background } from "../physics/cosmology/background
 import { SplitStepper } from "../integrators/split-step.js";
 import { ThreadedStepper } from "../integrators/threaded-step.js";
 import type { FieldKind } from "../integrators/extra-fields.js";
-import { buildInitialField } from "../initial-conditions/build.js";
+import { buildInitialField, type InitialField } from "../initial-conditions/build.js";
 import { snapshotInitialField } from "./snapshot-start.js";
 import { cleanStaleTemporaries, writeFileAtomic } from "../io/atomic.js";
 import { readCheckpoint, type CheckpointState } from "../io/snapshot.js";
@@ -23,7 +26,7 @@ import { RunWriter, runPaths } from "./outputs.js";
 import { PluginSet } from "./plugin-set.js";
 import { verifyCheckpoint } from "./resume-check.js";
 import type { RunContext, RunPlugin, PluginFields } from "./plugin.js";
-import { InputError } from "../core/errors.js";
+import { InputError, NumericsError } from "../core/errors.js";
 
 /** Where a run reports what it is doing. */
 export interface RunReporter {
@@ -173,10 +176,7 @@ export function startRun(session: RunSession): RunStart {
   const reporter = session.reporter;
   if (run.initial.kind === "ground-state") reporter.phase("relaxing the ground state");
   const progress = (info: { iteration: number }) => reporter.progress(Math.min(1, info.iteration / 400), `iteration ${info.iteration}`);
-  const initial =
-    run.initial.kind === "snapshot"
-      ? snapshotInitialField(run, session.grid, stepper.rawPsi)
-      : buildInitialField(run.initial, session.grid, session.background, run.span.startTime, session.gravity, progress, stepper.rawPsi);
+  const initial = run.initial.kind === "snapshot" ? snapshotInitialField(run, session.grid, stepper.rawPsi) : builtField(session, run.initial, progress);
   let relaxation: RunStart["relaxation"];
   if (initial.relaxation) {
     reporter.endPhase();
@@ -194,6 +194,18 @@ export function startRun(session: RunSession): RunStart {
   });
   stepper.setState(initial.psi, run.span.startTime);
   return { ...(relaxation ? { relaxation } : {}), warnings, mass0: stepper.mass, steps: 0, snapshotsWritten: 0, wallBefore: 0 };
+}
+
+/** The initial field of a config (not a snapshot); a relaxation that collapsed under an attractive contact term is a NumericsError naming the mass and the critical mass. */
+function builtField(session: RunSession, ic: Exclude<ResolvedRun["initial"], { kind: "snapshot" }>, progress: (info: { iteration: number }) => void): InitialField {
+  const { run, stepper } = session;
+  try {
+    return buildInitialField(ic, session.grid, session.background, run.span.startTime, session.gravity, progress, stepper.rawPsi, stepper.contact);
+  } catch (e) {
+    if (!(e instanceof RelaxationCollapse) || !run.contact) throw e;
+    const kg = session.scales.massMsun(e.mass) * M_SUN_KG;
+    throw new NumericsError(`${ic.kind === "ground-state" ? "initial.mass" : "initial.soliton"}: no ground state: the relaxation collapsed to the grid's scale under the attractive self-interaction: ${collapseVerdict(kg, session.grid.dims, run.contact, run.particleMassKg)}`);
+  }
 }
 
 /**

@@ -1,0 +1,65 @@
+/**
+ * The largest stable mass of an attractive contact interaction, in words:
+ * what a message about a collapsing or impossible soliton says (the mass,
+ * the critical mass M_max = 1.0125 ħ/√(G m |a_s|) for this particle and
+ * interaction, and what to change), and the check of a config whose
+ * relaxed soliton would be above it (no ground state exists then).
+ */
+import { ConfigError } from "../core/errors.js";
+import { formatNumber } from "../core/format.js";
+import { J_PER_EV, KG_PER_EV, M_SUN_KG } from "../physics/constants.js";
+import { criticalMassKg, criticalScatteringLengthM, decayConstantOf } from "../physics/contact.js";
+import type { CodeUnits } from "../physics/units.js";
+import type { ResolvedContact } from "./resolve-contact.js";
+import type { ResolvedInitial } from "./resolve-initial.js";
+
+/** "1.5 × 10⁹ Msun". */
+function msun(kg: number): string {
+  return `${formatNumber(kg / M_SUN_KG)} Msun`;
+}
+
+/** The particle and its interaction, as the user gave them. */
+function particleText(contact: ResolvedContact, particleMassKg: number): string {
+  const m = `m = ${formatNumber(particleMassKg / KG_PER_EV)} eV`;
+  const a = `a_s = ${formatNumber(contact.scatteringLengthM)} m`;
+  return contact.decayConstantJ !== undefined ? `${m} and f = ${formatNumber(contact.decayConstantJ / J_PER_EV / 1e9)} GeV (${a})` : `${m} and ${a}`;
+}
+
+/** The largest stable mass for this particle and interaction, named with its formula. */
+export function criticalMassText(contact: ResolvedContact, particleMassKg: number): string {
+  return `${msun(criticalMassKg(contact.scatteringLengthM, particleMassKg))} (M_max = 1.0125 ħ/√(G m |a_s|) for ${particleText(contact, particleMassKg)})`;
+}
+
+/** What to change so that a mass `massKg` is stable: less mass, or a weaker interaction (a larger decay constant), or a repulsive one. */
+export function stabilityAdvice(massKg: number, contact: ResolvedContact, particleMassKg: number): string {
+  const limit = criticalMassKg(contact.scatteringLengthM, particleMassKg);
+  const a = criticalScatteringLengthM(massKg, particleMassKg);
+  const weaker =
+    contact.decayConstantJ !== undefined
+      ? `particle.decay_constant above ${formatNumber(decayConstantOf(a, particleMassKg) / J_PER_EV / 1e9)} GeV`
+      : `|particle.scattering_length| below ${formatNumber(a)} m`;
+  return `use less mass (below ${msun(limit)}), a weaker interaction (${weaker}) or a repulsive one`;
+}
+
+/** The masses [code] and config keys of the solitons a config relaxes by imaginary time (3D only). */
+function relaxedMasses(initial: ResolvedInitial, dims: number): { key: string; mass: number }[] {
+  if (dims !== 3) return [];
+  if (initial.kind === "ground-state") return [{ key: "initial.mass", mass: initial.mass }];
+  if (initial.kind === "solitons" && initial.profile === "relaxed") return initial.solitons.map((s, i) => ({ key: `initial.soliton[${i}].mass`, mass: s.mass }));
+  return [];
+}
+
+/**
+ * Refuse a 3D config that relaxes a soliton above the largest stable mass of an attractive
+ * interaction: no ground state exists, imaginary time would only collapse it.
+ */
+export function checkRelaxedMasses(initial: ResolvedInitial, dims: number, units: CodeUnits, contact: ResolvedContact | undefined, particleMassKg: number): void {
+  if (!contact || contact.scatteringLengthM >= 0) return;
+  const limit = criticalMassKg(contact.scatteringLengthM, particleMassKg);
+  for (const { key, mass } of relaxedMasses(initial, dims)) {
+    const kg = units.toSI(mass, "mass");
+    if (kg > limit) {
+      throw new ConfigError(key, `${msun(kg)} is above the largest stable soliton, ${criticalMassText(contact, particleMassKg)}: no ground state exists to relax to; ${stabilityAdvice(kg, contact, particleMassKg)}`);
+    }
+  }
+}
