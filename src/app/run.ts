@@ -4,6 +4,8 @@
  * census, `output.vortex_census`; the flow-resolution check, always) come first, then
  * the caller's own, in the order given. The CLI and the public API call this.
  */
+import { contactCode } from "../physics/contact.js";
+import { CodeUnits } from "../physics/units.js";
 import type { ResolvedRun } from "../config/resolve.js";
 import { simulate, type RunOptions, type RunSummary } from "../simulation/run.js";
 import type { RunPlugin } from "../simulation/plugin.js";
@@ -16,7 +18,7 @@ import { depletionPlugin } from "./depletion-plugin.js";
 /** The built-in plug-ins a resolved config turns on. */
 export function configuredPlugins(run: ResolvedRun): RunPlugin[] {
   return [
-    ...(run.sidecar.enabled ? [sidecarPlugin(run.sidecar)] : []),
+    ...(run.sidecar.enabled ? [sidecarPlugin({ ...run.sidecar, contact: runContact(run) })] : []),
     ...(run.output.vortexCensus ? [vortexCensusPlugin(run.grid.cells.length)] : []),
     flowResolutionPlugin(),
     ...(run.breakdown.tangent ? [lyapunovPlugin({ interval: run.breakdown.interval, seed: run.breakdown.seed, region: run.breakdown.region, twinOffset: run.breakdown.twinOffset })] : []),
@@ -30,4 +32,9 @@ export function configuredPlugins(run: ResolvedRun): RunPlugin[] {
  */
 export async function runSimulation(run: ResolvedRun, options: RunOptions = {}): Promise<RunSummary> {
   return simulate(run, { ...options, plugins: [...configuredPlugins(run), ...(options.plugins ?? [])] });
+}
+
+/** The run's contact coefficient in code units (0 without a contact interaction). */
+function runContact(run: ResolvedRun): number {
+  return run.contact ? contactCode(run.contact.scatteringLengthM, new CodeUnits(run.particleMassKg, run.lengthUnitM)) : 0;
 }

@@ -105,12 +105,12 @@ export async function clocksCommand(paths: readonly string[], flags: ClocksFlags
     const field = loadField(snap);
     const { units, grid } = field;
     const region = tracked ? tracked.region(file, field) : regionOf(flags, field);
-    const m = modeCoefficients({ grid, psi: field.psi, scaleFactor: field.scaleFactor, particleMass: units.particleMassKg / units.massKg, gravity: field.gravity, region });
+    const m = modeCoefficients({ grid, psi: field.psi, scaleFactor: field.scaleFactor, particleMass: units.particleMassKg / units.massKg, gravity: field.gravity, region, contact: field.contact });
     if (!(m.particles >= 1)) throw new InputError(`${file}: the mode holds N = ${m.particles.toPrecision(3)} particles (< 1); choose a larger region`);
     const tS = snap.meta.time * snapshotTimeUnit(file, snap.meta.timeUnit);
     const toS = 1 / units.timeS;
     // χ_ad = (1/ħ) dμ/dN = 2μ/(ħN) for a stationary state (μ ∝ N² by the scaling symmetry), μ/ħ = (K + 2W)/M = ω + Nχ
-    const chiAd = stationaryAdiabaticChi(m) * toS;
+    const chiAd = stationaryAdiabaticChi({ ...m, chi: m.chi - m.chiContact }) * toS;
     // the breakdown estimate's rate: √(4πGρ_eff), f H in expanding boxes, 0 without gravity (quantum/gravity-rate.ts)
     const estimate = gravityRate(snap.meta.gravity !== "none", field.background);
     const rates = { omegaTilde: m.omega * toS, chiTilde: m.chi * toS, lambda: estimate.rate(m.lambda ** 2, field.scaleFactor) * toS, chiAdiabatic: chiAd };

@@ -41,7 +41,7 @@ export function describeRun(run: ResolvedRun): string {
   const lines = [
     `psibox run "${run.name}"`,
     `├─ grid         ${run.grid.cells.length}D, ${cells} cells, box ${box}, gravity ${run.grid.gravity}`,
-    `├─ particle     m = ${c.particle.mass}`,
+    `├─ particle     ${particleText(c.particle)}`,
     `├─ background   ${bg}`,
     `├─ span         ${span}`,
     `├─ initial      ${c.initial.kind}`,
@@ -50,4 +50,10 @@ export function describeRun(run: ResolvedRun): string {
     `└─ output       ${run.outputDir}`,
   ];
   return lines.filter((l) => l !== undefined).join("\n");
+}
+
+/** The particle and its contact interaction, as the config gives them. */
+function particleText(p: { mass: string; scattering_length?: string | undefined; decay_constant?: string | undefined }): string {
+  const contact = p.scattering_length !== undefined ? `, scattering length ${p.scattering_length}` : p.decay_constant !== undefined ? `, decay constant ${p.decay_constant}` : "";
+  return `m = ${p.mass}${contact}`;
 }

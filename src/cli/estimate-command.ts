@@ -5,7 +5,8 @@ import { parseAs, UnitSyntaxError, type QuantityKind } from "../physics/units.js
 import { estimateClocks } from "../quantum/estimate.js";
 import { formatDuration } from "../quantum/clocks.js";
 import { PLANCK_AGE_S } from "../quantum/sidecar-report.js";
-import { C_M_PER_S } from "../physics/constants.js";
+import { C_M_PER_S, M_SUN_KG } from "../physics/constants.js";
+import { scatteringLengthFromDecayConstant } from "../physics/contact.js";
 import { readModeState, type ModeStateFlags } from "./mode-state-options.js";
 import { describeStart } from "../quantum/gaussian-start.js";
 
@@ -17,6 +18,8 @@ export interface EstimateFlags extends ModeStateFlags {
   radius?: string;
   density?: string;
   modeMass?: string;
+  scatteringLength?: string;
+  decayConstant?: string;
   squeezingDb: string;
   json: boolean;
 }
@@ -31,6 +34,32 @@ function read(flag: string, text: string | undefined, kind: QuantityKind): numbe
     if (e instanceof UnitSyntaxError) throw new InputError(`--${flag}: ${e.message}`);
     throw e;
   }
+}
+
+/** The scattering length [m] of --scattering-length or --decay-constant (undefined without either). */
+function scatteringLength(flags: EstimateFlags, m: number): number | undefined {
+  if (flags.scatteringLength !== undefined && flags.decayConstant !== undefined) {
+    throw new InputError("--decay-constant: give either --scattering-length or --decay-constant, not both (a decay constant fixes the scattering length)");
+  }
+  if (flags.decayConstant !== undefined) return scatteringLengthFromDecayConstant(read("decay-constant", flags.decayConstant, "energy") as number, m);
+  if (flags.scatteringLength === undefined) return undefined;
+  try {
+    return parseAs(flags.scatteringLength, "length");
+  } catch (e) {
+    if (e instanceof UnitSyntaxError) throw new InputError(`--scattering-length: ${e.message}`);
+    throw e;
+  }
+}
+
+/** The interaction's lines of the printed estimate. */
+function contactLines(est: ReturnType<typeof estimateClocks>, a: number | undefined, solitonMass: number | undefined): string[] {
+  if (a === undefined || a === 0) return [];
+  const lines = [`contact interaction     a_s = ${a.toPrecision(4)} m: χ_SI = ${est.chiContactPerS.toPrecision(4)} /s (ħχ_SI = g∫|φ|⁴, g = 4πħ²a_s/m), χ_grav = ${est.chiGravityPerS.toPrecision(4)} /s`];
+  if (est.criticalMassKg !== undefined) {
+    const over = solitonMass !== undefined && solitonMass > est.criticalMassKg ? "; the soliton is above it and collapses" : "";
+    lines.push(`largest stable soliton  M_max = 1.0125 ħ/√(G m |a_s|) = ${(est.criticalMassKg / M_SUN_KG).toPrecision(4)} Msun${over}`);
+  }
+  return lines;
 }
 
 /** Print the estimate; returns the exit code. */
@@ -50,6 +79,7 @@ export function estimateCommand(flags: EstimateFlags): number {
     throw new InputError("--velocity: give a velocity dispersion (e.g. \"200 km/s\" or \"1e-3 c\"), a --soliton-mass, or both --halo-mass and --radius");
   }
   const state = readModeState(flags, modeMass / m);
+  const a = scatteringLength(flags, m);
   const db = Number(flags.squeezingDb);
   if (!(db < 0)) throw new InputError(`--squeezing-db: must be a negative number of dB, got ${flags.squeezingDb}`);
   let est;
@@ -66,6 +96,7 @@ export function estimateCommand(flags: EstimateFlags): number {
       start: state.start,
       lossRatePerS: state.lossRatePerS,
       dephasingRatePerS: state.dephasingRatePerS,
+      scatteringLengthM: a,
     });
   } catch (e) {
     if (e instanceof RangeError) throw new InputError(e.message);
@@ -81,7 +112,8 @@ export function estimateCommand(flags: EstimateFlags): number {
     `particles in the mode   N = ${est.particles.toPrecision(4)}   (ln N = ${Math.log(est.particles).toFixed(1)})`,
     `initial state           ${describeStart(state.start)}, ΔN = ${est.numberSpread.toPrecision(4)}${state.lossRatePerS > 0 || state.dephasingRatePerS > 0 ? `; loss γ = ${state.lossRatePerS.toPrecision(3)} /s, dephasing κ = ${state.dephasingRatePerS.toPrecision(3)} /s` : ""}`,
     `velocity dispersion     ${(est.velocityMS / 1e3).toPrecision(4)} km/s = ${(est.velocityMS / C_M_PER_S).toPrecision(3)} c`,
-    `self-gravity rate       N|χ| = 2 m⟨v²⟩/ħ = ${est.rateNChiPerS.toPrecision(4)} /s   (χ = ${est.chiPerS.toPrecision(4)} /s frozen mode, χ_ad = ${est.chiAdiabaticPerS.toPrecision(4)} /s adiabatic)`,
+    `${a ? "Kerr rate               N|χ| = N|χ_grav + χ_SI|" : "self-gravity rate       N|χ| = 2 m⟨v²⟩/ħ"} = ${est.rateNChiPerS.toPrecision(4)} /s   (χ = ${est.chiPerS.toPrecision(4)} /s frozen mode, χ_ad = ${est.chiAdiabaticPerS.toPrecision(4)} /s adiabatic)`,
+    ...contactLines(est, a, solitonMass),
     ...(est.lambdaPerS !== undefined ? [`dynamical rate          λ = √(4πGρ) = ${est.lambdaPerS.toPrecision(4)} /s`] : []),
     "",
   ];

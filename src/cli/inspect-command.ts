@@ -36,7 +36,12 @@ export async function inspectCommand(file: string, json: boolean): Promise<numbe
     ["density min / mean / max", `${fmt(stats.minDensityMsunKpc3)} / ${fmt(stats.meanDensityMsunKpc3)} / ${fmt(stats.maxDensityMsunKpc3)} Msun/kpc³`],
     ["kinetic energy K", `${fmt(stats.kineticMsunKm2S2)} Msun (km/s)²`],
     ["potential energy W", `${fmt(stats.potentialMsunKm2S2)} Msun (km/s)²`],
-    ["total energy K + W", `${fmt(stats.totalMsunKm2S2)} Msun (km/s)²`],
+    ...(stats.contactMsunKm2S2 !== 0
+      ? ([
+          ["contact energy U", `${fmt(stats.contactMsunKm2S2)} Msun (km/s)²`],
+          ["total energy K + W + U", `${fmt(stats.totalMsunKm2S2)} Msun (km/s)²`],
+        ] as [string, string][])
+      : ([["total energy K + W", `${fmt(stats.totalMsunKm2S2)} Msun (km/s)²`]] as [string, string][])),
     ["virial ratio 2K/|W|", fmt(stats.virialRatio)],
     ["config sha256", m.configSha256.slice(0, 16) + "…"],
   ];

@@ -5,6 +5,7 @@
  * whose attractive scattering length follows), never both. The keys'
  * schema is `contactKeys` in config/schema.ts.
  */
+import { parse as parseToml } from "smol-toml";
 import { ConfigError } from "../core/errors.js";
 import { scatteringLengthFromDecayConstant } from "../physics/contact.js";
 import { read } from "./values.js";
@@ -45,4 +46,24 @@ export function resolveContact(table: ContactTable, keyPath: string, particleMas
   const a = read(lengthKey, table.scattering_length, "length", {});
   if (!Number.isFinite(a)) throw new ConfigError(lengthKey, "must be a finite length, e.g. \"1e-80 m\" (negative: attractive)");
   return a === 0 ? undefined : { scatteringLengthM: a };
+}
+
+/**
+ * The contact interaction recorded in a snapshot's config text (its [particle] table), or undefined when the
+ * text holds none or is not a psibox config (a field imported from another program).
+ */
+export function contactOfConfigText(text: string, particleMassKg: number): ResolvedContact | undefined {
+  let particle: unknown;
+  try {
+    particle = (parseToml(text) as { particle?: unknown }).particle;
+  } catch {
+    return undefined;
+  }
+  if (typeof particle !== "object" || particle === null) return undefined;
+  const { scattering_length, decay_constant } = particle as Record<string, unknown>;
+  const table: ContactTable = {
+    ...(typeof scattering_length === "string" ? { scattering_length } : {}),
+    ...(typeof decay_constant === "string" ? { decay_constant } : {}),
+  };
+  return resolveContact(table, "particle", particleMassKg);
 }

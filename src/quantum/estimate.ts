@@ -13,9 +13,16 @@
  *   phase diffusion       |⟨b⟩|² down by 1/e, with χ (frozen mode) and with χ_ad (adiabatic)
  *   classical breakdown   t = ln N / √(4πG ρ),  ρ = 3M/(4πR³) or given
  * The start may be squeezed or thermal, and the mode may lose quanta (γ)
- * and dephase (κ) at constant rates. All inputs and outputs in SI.
+ * and dephase (κ) at constant rates. A contact interaction of scattering
+ * length a_s adds its Kerr part, ħχ_SI = g∫|φ|⁴ = g ρ_eff/M with
+ * g = 4πħ²a_s/m and the mode's mass-weighted density ρ_eff = ∫ρ²/∫ρ: the
+ * given density, 3M/(4πR³) of a uniform sphere, or 0.00135492 G³M⁴m⁶/ħ⁶
+ * of the soliton of self-gravity alone (computed independently by
+ * shooting; a weak interaction); its stationary dμ/dN part is χ_SI itself
+ * (μ_SI = g n), so χ_ad = (3/2)χ_grav + χ_SI. All inputs and outputs in SI.
  */
 import { G_SI, HBAR_J_S } from "../physics/constants.js";
+import { contactCouplingSI, criticalMassKg } from "../physics/contact.js";
 import { xForSqueezing } from "./kerr.js";
 import { COHERENT, isCoherent, numberSpread, validateStart, type GaussianStart } from "./gaussian-start.js";
 import { meanFieldCollapseX, xForSqueezingOf } from "./state-clocks.js";
@@ -24,6 +31,9 @@ import { meanFieldCollapsed, projectCrossing, squeezingReached, type ConstantRat
 
 /** |E| M^{-3} G^{-2} m^{-2} ħ² of the ground state (Membrado, Pacheco & Sañudo 1989, PRA 39, 4207). */
 export const SOLITON_ENERGY = 0.0542564;
+
+/** ∫ρ² dV/M of the soliton of self-gravity alone in G³M⁴m⁶/ħ⁶ (computed independently by shooting the radial equations). */
+export const SOLITON_MEAN_DENSITY = 0.00135492;
 
 /** What the estimate starts from (SI). */
 export interface EstimateInputs {
@@ -45,6 +55,8 @@ export interface EstimateInputs {
   /** Loss rate γ and dephasing rate κ [1/s] (default 0). */
   readonly lossRatePerS?: number | undefined;
   readonly dephasingRatePerS?: number | undefined;
+  /** A contact interaction's scattering length a_s [m] (negative: attractive). */
+  readonly scatteringLengthM?: number | undefined;
 }
 
 /** One estimated clock. */
@@ -62,8 +74,13 @@ export interface Estimate {
   readonly velocityMS: number;
   /** N|χ| [1/s] (positive). */
   readonly rateNChiPerS: number;
-  /** χ [1/s] (negative: gravity attracts). */
+  /** χ [1/s]: self-gravity (negative) plus the contact part. */
   readonly chiPerS: number;
+  /** The gravitational part χ_grav [1/s] and the contact part χ_SI [1/s] (0 without an interaction) of χ. */
+  readonly chiGravityPerS: number;
+  readonly chiContactPerS: number;
+  /** The largest stable soliton M_max = 1.0125 ħ/√(G m |a_s|) [kg] of an attractive interaction. */
+  readonly criticalMassKg: number | undefined;
   /** χ_ad = (1/ħ) dμ/dN [1/s] (negative). */
   readonly chiAdiabaticPerS: number;
   readonly lossRatePerS: number;
@@ -84,6 +101,18 @@ function velocitySquared(inp: EstimateInputs): { v2: number; note?: string } {
   throw new RangeError("give a velocity dispersion, a soliton mass, or a halo mass and radius");
 }
 
+/** χ_SI = g ρ_eff/(ħM) [1/s] of the mode (0 without an interaction); ρ_eff from the density, the sphere or the soliton. */
+function contactChi(inp: EstimateInputs, rho: number | undefined): number {
+  const a = inp.scatteringLengthM;
+  if (a === undefined || a === 0) return 0;
+  const m = inp.particleMassKg;
+  let rhoEff = rho;
+  // (G M m²/ħ²)³ M: the inverse length cubed first, as m⁶ alone underflows
+  if (rhoEff === undefined && inp.solitonMassKg !== undefined) rhoEff = SOLITON_MEAN_DENSITY * ((G_SI * inp.solitonMassKg * m * m) / HBAR_J_S ** 2) ** 3 * inp.solitonMassKg;
+  if (rhoEff === undefined) throw new RangeError("an interaction's Kerr part needs the mode's density: give a density, a halo mass and radius, or a soliton mass");
+  return (contactCouplingSI(a, m) * rhoEff) / (HBAR_J_S * inp.modeMassKg);
+}
+
 /** Compute the estimate; throws RangeError naming the missing or bad input. */
 export function estimateClocks(inp: EstimateInputs): Estimate {
   const m = inp.particleMassKg;
@@ -94,11 +123,13 @@ export function estimateClocks(inp: EstimateInputs): Estimate {
   const gamma = inp.lossRatePerS ?? 0;
   const kappa = inp.dephasingRatePerS ?? 0;
   const { v2, note: vNote } = velocitySquared(inp);
-  const rate = (2 * m * v2) / HBAR_J_S;
-  const chi = -rate / N;
-  const chiAd = 1.5 * chi;
   let rho = inp.densityKgM3;
   if (rho === undefined && inp.haloMassKg !== undefined && inp.radiusM !== undefined) rho = (3 * inp.haloMassKg) / (4 * Math.PI * inp.radiusM ** 3);
+  const chiGravity = -(2 * m * v2) / HBAR_J_S / N;
+  const chiContact = contactChi(inp, rho);
+  const chi = chiGravity + chiContact;
+  const rate = N * Math.abs(chi);
+  const chiAd = 1.5 * chiGravity + chiContact;
   const lambda = rho === undefined ? undefined : Math.sqrt(4 * Math.PI * G_SI * rho);
   const open = gamma > 0 || kappa > 0;
   const stateNote = `${isCoherent(start) ? "coherent start" : "the chosen start"}${open ? `, loss γ = ${gamma.toPrecision(3)} /s and dephasing κ = ${kappa.toPrecision(3)} /s` : ""}`;
@@ -123,12 +154,15 @@ export function estimateClocks(inp: EstimateInputs): Estimate {
     velocityMS: Math.sqrt(v2),
     rateNChiPerS: rate,
     chiPerS: chi,
+    chiGravityPerS: chiGravity,
+    chiContactPerS: chiContact,
+    criticalMassKg: inp.scatteringLengthM !== undefined && inp.scatteringLengthM < 0 ? criticalMassKg(inp.scatteringLengthM, m) : undefined,
     chiAdiabaticPerS: chiAd,
     lossRatePerS: gamma,
     dephasingRatePerS: kappa,
     lambdaPerS: lambda,
     clocks: [
-      { name: "squeezing onset", timeS: 1 / rate, formula: "1/(N|χ|) = ħ/(2 m ⟨v²⟩)", ...(vNote ? { note: vNote } : {}) },
+      { name: "squeezing onset", timeS: 1 / rate, formula: chiContact !== 0 ? "1/(N|χ|), χ = −2m⟨v²⟩/(Nħ) + χ_SI" : "1/(N|χ|) = ħ/(2 m ⟨v²⟩)", ...(vNote ? { note: vNote } : {}) },
       {
         name: `squeezing to ${inp.squeezingDb} dB`,
         timeS: tLevel,
@@ -136,7 +170,7 @@ export function estimateClocks(inp: EstimateInputs): Estimate {
         ...(tLevel === undefined ? { note: `the squeezing of this state never reaches ${inp.squeezingDb} dB` } : tLevel === 0 ? { note: "the start is already squeezed to this level" } : {}),
       },
       { name: "phase diffusion, frozen mode", timeS: diffusion(chi), formula: `|⟨b⟩|² down by 1/e with χ: X_c ≈ 1/ΔN, ΔN = ${dN.toPrecision(4)} (${stateNote})` },
-      { name: "phase diffusion, adiabatic", timeS: diffusion(chiAd), formula: "the same with χ_ad = (1/ħ) dμ/dN = (3/2) χ (stationary state)" },
+      { name: "phase diffusion, adiabatic", timeS: diffusion(chiAd), formula: chiContact !== 0 ? "the same with χ_ad = (3/2) χ_grav + χ_SI (stationary state)" : "the same with χ_ad = (1/ħ) dμ/dN = (3/2) χ (stationary state)" },
       {
         name: "classical breakdown",
         timeS: lambda === undefined ? undefined : Math.log(N) / lambda,

@@ -37,8 +37,10 @@ export interface ModeCoefficients {
   readonly potential: number;
   /** ω = K/M [1/code time]. */
   readonly omega: number;
-  /** χ = 2 W m / M² [1/code time] (negative). */
+  /** χ = 2 (W + U) m / M² [1/code time]: self-gravity (negative) plus the contact part χ_SI. */
   readonly chi: number;
+  /** The contact part χ_SI = 2 U m / M², i.e. ħχ_SI = g∫|φ|⁴ [1/code time] (0 without a contact term). */
+  readonly chiContact: number;
   /** N|χ| [1/code time]. */
   readonly rate: number;
   /** 2K/|W| (1 for a virialised object). */
@@ -127,6 +129,8 @@ export interface ModeInputs {
   /** The solver's own gravity (used for the whole-box mode). */
   readonly gravity: PoissonSolver;
   readonly region?: ModeRegion;
+  /** The contact coefficient g (code units; static runs). @default 0 */
+  readonly contact?: number;
 }
 
 /**
@@ -165,7 +169,8 @@ export function modeCoefficients(input: ModeInputs): ModeCoefficients {
   const fft = new ComplexFft(grid.shape);
   const K = kineticEnergy(grid, psi, a, fft, new Float64Array(psi.length));
   const W = potentialEnergy(grid, psi, phi, a);
-  return coefficientsFrom(mass, K, W, rhoEff, a, particleMass, center);
+  const U = 0.5 * (input.contact ?? 0) * rho2 * grid.cellVolume;
+  return coefficientsFrom(mass, K, W, rhoEff, a, particleMass, center, U);
 }
 
 /** Assemble the coefficients from a field's mass, energies and effective density. */
@@ -177,9 +182,11 @@ export function coefficientsFrom(
   a: number,
   particleMass: number,
   center?: readonly number[],
+  contactEnergy = 0,
 ): ModeCoefficients {
   const N = mass / particleMass;
-  const chi = (2 * potential * particleMass) / (mass * mass);
+  const chiContact = (2 * contactEnergy * particleMass) / (mass * mass);
+  const chi = (2 * potential * particleMass) / (mass * mass) + chiContact;
   return {
     mass,
     particles: N,
@@ -187,6 +194,7 @@ export function coefficientsFrom(
     potential,
     omega: kinetic / mass,
     chi,
+    chiContact,
     rate: N * Math.abs(chi),
     virialRatio: potential !== 0 ? (2 * kinetic) / Math.abs(potential) : Number.POSITIVE_INFINITY,
     lambda: Math.sqrt(Math.max(rhoEff, 0) / (a * a * a)),

@@ -15,7 +15,7 @@ import { COHERENT, validateStart, type GaussianStart } from "./gaussian-start.js
 import type { ModeModel } from "./clocks.js";
 import type { ModeRegion } from "./mode.js";
 import { OutflowMeter, type OutflowMeterState } from "./outflow.js";
-import { OUTFLOW_COLUMNS, SIDECAR_COLUMNS, clocksRecord, outflowRecord, sidecarRow } from "./sidecar-report.js";
+import { CONTACT_COLUMNS, OUTFLOW_COLUMNS, SIDECAR_COLUMNS, clocksRecord, contactRow, outflowRecord, sidecarRow } from "./sidecar-report.js";
 
 /** The settings the plug-in takes (the resolved [sidecar] section; rates per code time). */
 export interface SidecarSettings {
@@ -27,6 +27,8 @@ export interface SidecarSettings {
   readonly twinExcess?: number;
   /** A region whose mass outflow is measured at every time-series row, as a loss rate (code lengths). */
   readonly outflow?: Exclude<ModeRegion, { kind: "box" }>;
+  /** The run's contact coefficient g (code units; 0 or absent: none): χ gains χ_SI, reported apart. */
+  readonly contact?: number;
 }
 
 const START_KEYS: Record<string, string> = { squeeze: "sidecar.squeeze", "squeeze-angle": "sidecar.squeeze_angle", thermal: "sidecar.thermal_quanta" };
@@ -58,12 +60,13 @@ export function sidecarPlugin(settings: SidecarSettings): RunPlugin {
   const twin = twinExcess > 0;
   let meter: OutflowMeter | undefined;
   let savedMeter: OutflowMeterState | undefined;
+  const contact = settings.contact ?? 0;
   return {
     name: "sidecar",
     stateVersion: 1,
     measures: ["kinetic", "moments", ...(twin ? (["overlaps"] as const) : []), ...(settings.outflow ? (["field"] as const) : [])],
     ...(twin ? { fields: [{ kind: "own-gravity", startScale: 1 + twinExcess / 2 }] } : {}),
-    columns: settings.outflow ? [...SIDECAR_COLUMNS, ...OUTFLOW_COLUMNS] : SIDECAR_COLUMNS,
+    columns: [...SIDECAR_COLUMNS, ...(contact !== 0 ? CONTACT_COLUMNS : []), ...(settings.outflow ? OUTFLOW_COLUMNS : [])],
     start(ctx: RunContext, facts: StartFacts) {
       context = ctx;
       if (settings.outflow) meter = new OutflowMeter(ctx.grid, settings.outflow, ctx.particleMass);
@@ -71,7 +74,7 @@ export function sidecarPlugin(settings: SidecarSettings): RunPlugin {
       const start = { sums: facts.sums.moments!, kineticTilde: facts.sums.kinetic!, a: facts.a };
       const N = facts.mass0 / ctx.particleMass;
       const twinStart = twin ? { excess: twinExcess, overlap: facts.sums.overlaps![0]! } : undefined;
-      tracker = new SidecarTracker(ctx.particleMass, N, squeezingDb, ctx.startTime, ctx.grid.cellVolume, start, modelOf(settings, N), twinStart, gravityRate(ctx.gravity, ctx.background));
+      tracker = new SidecarTracker(ctx.particleMass, N, squeezingDb, ctx.startTime, ctx.grid.cellVolume, start, modelOf(settings, N), twinStart, gravityRate(ctx.gravity, ctx.background), contact);
       if (saved) tracker.restore(saved);
     },
     afterStep(facts: StepFacts) {
@@ -81,7 +84,7 @@ export function sidecarPlugin(settings: SidecarSettings): RunPlugin {
     output(facts) {
       if (facts.kind !== "row") return;
       const timeS = context!.scales.units.timeS;
-      const row = sidecarRow(running(), facts.a, timeS);
+      const row = [...sidecarRow(running(), facts.a, timeS), ...(contact !== 0 ? contactRow(running(), timeS) : [])];
       if (!meter) return row;
       const [n, rate] = meter.sample(facts.t, facts.psi!);
       return [...row, n, rate / timeS];

@@ -29,6 +29,14 @@ export const SIDECAR_COLUMNS = [
   "chi_adiabatic_integral_rad",
 ];
 
+/** The columns of a run with a contact interaction: the two parts of χ (chi_per_s is their sum). */
+export const CONTACT_COLUMNS = ["chi_gravity_per_s", "chi_contact_per_s"];
+
+/** The gravitational and contact parts of χ now [1/s] (static runs). */
+export function contactRow(tracker: SidecarTracker, timeS: number): number[] {
+  return [(tracker.rates.chiTilde - tracker.chiContact) / timeS, tracker.chiContact / timeS];
+}
+
 /** The columns of a measured outflow region (sidecar.outflow_region). */
 export const OUTFLOW_COLUMNS = ["outflow_N", "outflow_loss_rate_per_s"];
 

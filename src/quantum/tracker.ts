@@ -17,20 +17,25 @@ export interface ModeSums {
   readonly rhoPhi: number;
 }
 
-/** Whole-box rates from the field's sums, with ½∫|∇ψ|² dV given as `kineticTilde`. */
-function ratesOf(sums: ModeSums, cellVolume: number, a: number, particleMass: number, kineticTilde: number, gravity: GravityRate): { rates: ClockRates; mass: number } {
+/**
+ * Whole-box rates from the field's sums, with ½∫|∇ψ|² dV given as `kineticTilde`. With a contact
+ * coefficient g (static runs) χ = χ_grav + χ_SI, ħχ_SI = g∫|φ|⁴ = 2U/N² with U = (g/2)∫ρ² dV.
+ */
+function ratesOf(sums: ModeSums, cellVolume: number, a: number, particleMass: number, kineticTilde: number, gravity: GravityRate, contact: number) {
   const M = sums.rho * cellVolume;
   const omegaTilde = kineticTilde / M;
-  const chiTilde = (2 * (0.5 * sums.rhoPhi * cellVolume) * particleMass) / (M * M);
+  const chiGravity = (2 * (0.5 * sums.rhoPhi * cellVolume) * particleMass) / (M * M);
+  const chiContact = (2 * (0.5 * contact * sums.rho2 * cellVolume) * particleMass) / (M * M);
   return {
     mass: M,
+    chiContact,
     rates: {
       omegaTilde,
-      chiTilde,
+      chiTilde: chiGravity + chiContact,
       lambda: gravity.rate(sums.rho2 / sums.rho / (a * a * a), a),
-      // χ_ad = 2ω/N + 2χ, the stationary-state dμ/dN (adiabatic.ts), at the current a
-      chiAdiabatic: stationaryAdiabaticChi({ omega: omegaTilde / (a * a), chi: chiTilde / a, particles: M / particleMass }),
-    },
+      // χ_ad = 2ω/N + 2χ, the stationary-state dμ/dN of self-gravity alone (adiabatic.ts), at the current a
+      chiAdiabatic: stationaryAdiabaticChi({ omega: omegaTilde / (a * a), chi: chiGravity / a, particles: M / particleMass }),
+    } satisfies ClockRates,
   };
 }
 
@@ -56,12 +61,16 @@ export class SidecarTracker {
   stationaryChiAdiabatic: number;
   /** The scale factor of the last step. */
   a: number;
+  /** The contact part χ_SI of χ at the last step [1/code time] (0 without a contact term). */
+  chiContact: number;
+  private readonly contact: number;
   private t: number;
 
   /**
    * Start at the current field: its sums, its ½∫|∇ψ|² dV and the scale factor a.
    * @param particles N, fixed for the run (the run's initial mass over m)
    * @param model the start and the loss and dephasing rates per code time (default: coherent, closed)
+   * @param contact the contact coefficient g (code units; static runs), whose part χ_SI joins χ
    */
   constructor(
     particleMass: number,
@@ -73,13 +82,17 @@ export class SidecarTracker {
     model: ModeModel = CLOSED_COHERENT,
     twin?: TwinStart,
     gravity: GravityRate = DENSITY_RATE,
+    contact = 0,
   ) {
     this.gravity = gravity;
+    this.contact = contact;
     this.particleMass = particleMass;
     this.cellVolume = cellVolume;
     this.t = startTime;
     this.a = start.a;
-    this.rates = ratesOf(start.sums, cellVolume, start.a, particleMass, start.kineticTilde, gravity).rates;
+    const first = ratesOf(start.sums, cellVolume, start.a, particleMass, start.kineticTilde, gravity, contact);
+    this.rates = first.rates;
+    this.chiContact = first.chiContact;
     this.stationaryChiAdiabatic = this.rates.chiAdiabatic as number;
     if (twin) {
       this.twin = new TwinPhaseTracker(twin.excess, particles);
@@ -93,8 +106,9 @@ export class SidecarTracker {
 
   /** After a step to time t (scale factor a) with factors D and K (and the twin's overlap): measure and advance. */
   afterStep(step: { t: number; a: number; drift: number; kick: number; sums: ModeSums; midKineticTilde: number; overlap?: readonly [number, number] }): void {
-    const measured = ratesOf(step.sums, this.cellVolume, step.a, this.particleMass, step.midKineticTilde, this.gravity);
-    let rates = measured.rates;
+    const measured = ratesOf(step.sums, this.cellVolume, step.a, this.particleMass, step.midKineticTilde, this.gravity, this.contact);
+    let rates: ClockRates = measured.rates;
+    this.chiContact = measured.chiContact;
     this.stationaryChiAdiabatic = rates.chiAdiabatic as number;
     let increment: number | undefined;
     if (this.twin && step.overlap) {

@@ -2,6 +2,8 @@
  * Rebuild a grid, background, Poisson solver and code-unit field from a
  * snapshot alone, so the same diagnostics run on live state and on files.
  */
+import { contactOfConfigText } from "../config/resolve-contact.js";
+import { contactCode } from "../physics/contact.js";
 import { Grid } from "../grid/grid.js";
 import { makePoissonSolver, type GravityKind, type PoissonSolver } from "../fields/poisson.js";
 import { makeBackground, type Background } from "../physics/cosmology/background.js";
@@ -21,6 +23,8 @@ export interface LoadedField {
   /** ψ in code units. */
   readonly psi: Float64Array;
   readonly scaleFactor: number;
+  /** The contact coefficient g in code units, from the run's config (0 without a contact interaction). */
+  readonly contact: number;
 }
 
 const KPC_M = 1e3 * PC_M;
@@ -46,7 +50,9 @@ export function loadField(snap: Snapshot, takeOver = false): LoadedField {
   const f = Math.sqrt(densityUnit);
   const psi = takeOver ? snap.psi : new Float64Array(snap.psi.length);
   for (let i = 0; i < psi.length; i++) psi[i] = snap.psi[i]! * f;
-  return { units, grid, background, gravity, psi, scaleFactor: m.scaleFactor };
+  const interaction = contactOfConfigText(m.config, units.particleMassKg);
+  const contact = interaction ? contactCode(interaction.scatteringLengthM, units) : 0;
+  return { units, grid, background, gravity, psi, scaleFactor: m.scaleFactor, contact };
 }
 
 /** Field statistics of a snapshot in physical units. */
@@ -57,6 +63,9 @@ export interface FieldStats {
   readonly meanDensityMsunKpc3: number;
   readonly kineticMsunKm2S2: number;
   readonly potentialMsunKm2S2: number;
+  /** The contact interaction energy U = (g/2m²)∫ρ² dV (0 without one). */
+  readonly contactMsunKm2S2: number;
+  /** K + W + U. */
   readonly totalMsunKm2S2: number;
   readonly virialRatio: number;
 }
@@ -81,7 +90,13 @@ export function fieldStats(field: LoadedField, fft?: FieldTransforms): FieldStat
     W = potentialEnergy(grid, stepper.psi, stepper.phi, a);
   }
   let min = Infinity;
-  for (let i = 0; i < psi.length; i += 2) min = Math.min(min, psi[i]! ** 2 + psi[i + 1]! ** 2);
+  let rho2 = 0;
+  for (let i = 0; i < psi.length; i += 2) {
+    const rho = psi[i]! ** 2 + psi[i + 1]! ** 2;
+    min = Math.min(min, rho);
+    rho2 += rho * rho;
+  }
+  const U = 0.5 * field.contact * rho2 * grid.cellVolume;
   const toDensity = (units.massKg / units.lengthM ** 3) / (M_SUN_KG / KPC_M ** 3);
   const toEnergy = units.energyJ / (M_SUN_KG * 1e6);
   const mass = fieldMass(grid, psi);
@@ -92,7 +107,8 @@ export function fieldStats(field: LoadedField, fft?: FieldTransforms): FieldStat
     meanDensityMsunKpc3: (mass / grid.volume) * toDensity,
     kineticMsunKm2S2: K * toEnergy,
     potentialMsunKm2S2: W * toEnergy,
-    totalMsunKm2S2: (K + W) * toEnergy,
+    contactMsunKm2S2: U * toEnergy,
+    totalMsunKm2S2: (K + W + U) * toEnergy,
     virialRatio: W !== 0 ? (2 * K) / Math.abs(W) : Number.NaN,
   };
 }

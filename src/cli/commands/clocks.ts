@@ -36,6 +36,8 @@ export const estimateSpec: CommandSpec<EstimateFlags, []> = {
     density: { flags: "--density <density>", help: 'density for the breakdown rate, e.g. "0.3 GeV/cm^3" or "1e7 Msun/kpc^3"' },
     solitonMass: { flags: "--soliton-mass <mass>", help: 'an exact soliton of this mass, e.g. "1e9 Msun" (its own ⟨v²⟩; the mode mass defaults to it)' },
     modeMass: { flags: "--mode-mass <mass>", help: "mass in the condensate mode (default: the soliton or halo mass)" },
+    scatteringLength: { flags: "--scattering-length <length>", help: 'a contact interaction by its scattering length, e.g. "1e-80 m" (negative: attractive)' },
+    decayConstant: { flags: "--decay-constant <energy>", help: 'a contact interaction of an axion-like field by its decay constant, e.g. "1e17 GeV" (attractive)' },
     squeezingDb: SQUEEZING_DB,
     ...MODE_STATE_OPTIONS,
     json: { flags: "--json", help: "print JSON: every number, χ < 0 like everywhere else, clock times in seconds", default: false },
