@@ -19,6 +19,8 @@ import { resolveSidecar, type ResolvedSidecar } from "./resolve-sidecar.js";
 import { resolveBreakdown, type ResolvedBreakdown } from "./resolve-breakdown.js";
 import { resolveContact, type ResolvedContact } from "./resolve-contact.js";
 import { checkRelaxedMasses } from "./contact-limits.js";
+import { firstSpeciesName, resolveSpecies, type ResolvedSpecies } from "./resolve-species.js";
+export type { ResolvedSpecies } from "./resolve-species.js";
 
 /** Background in code units. */
 export type { BackgroundSpec as ResolvedBackground } from "../physics/cosmology/background.js";
@@ -71,6 +73,10 @@ export interface ResolvedRun {
   };
   readonly sidecar: ResolvedSidecar;
   readonly breakdown: ResolvedBreakdown;
+  /** The first species' name (the reference field's; [particle] name). */
+  readonly firstSpecies: string;
+  /** The species after the first ([[species]]), advanced beside ψ in this order; empty for one species. */
+  readonly species: readonly ResolvedSpecies[];
 }
 
 /**
@@ -105,7 +111,10 @@ export function resolveRun(config: CheckedConfig, name: string, cwd: string): Re
   }
   const sidecar = resolveSidecar(config, units.timeS, ctx, { lengths, lengthM: units.lengthM });
   const breakdown = resolveBreakdown(config, units, ctx, endTime - startTime, lengths);
+  const species = resolveSpecies(config, dims, lengths, units, ctx, hubbleSI);
   return {
+    firstSpecies: firstSpeciesName(config),
+    species,
     name,
     outputDir,
     config,
@@ -123,10 +132,14 @@ export function resolveRun(config: CheckedConfig, name: string, cwd: string): Re
   };
 }
 
-/** A spectrum table's path taken from cwd and recorded in full, so that the resolved config reads the same file from anywhere. */
+/** Spectrum tables' and the species' snapshot paths taken from cwd and recorded in full, so that the resolved config reads the same files from anywhere. */
 function withTablePath(config: CheckedConfig, cwd: string): CheckedConfig {
-  const ic = config.initial;
-  if (ic.kind !== "cosmological" || ic.spectrum_table === undefined) return config;
-  const full = path.resolve(cwd, ic.spectrum_table).split(path.sep).join("/");
-  return { ...config, initial: { ...ic, spectrum_table: full } };
+  const full = (file: string) => path.resolve(cwd, file).split(path.sep).join("/");
+  const fix = <T extends CheckedConfig["initial"]>(ic: T): T => {
+    if (ic.kind === "cosmological" && ic.spectrum_table !== undefined) return { ...ic, spectrum_table: full(ic.spectrum_table) };
+    if (ic.kind === "snapshot") return { ...ic, file: full(ic.file) };
+    return ic;
+  };
+  const species = config.species?.map((sp) => (sp.initial ? { ...sp, initial: fix(sp.initial) } : sp));
+  return { ...config, initial: fix(config.initial), ...(species ? { species } : {}) };
 }

@@ -36,6 +36,8 @@ export const particleSchema = z.strictObject({
   /** Particle mass, e.g. "1e-22 eV". */
   mass: quantity,
   ...contactKeys,
+  /** Runs with [[species]]: the name of this first species (the run's reference field). @default "main" */
+  name: z.string().optional(),
 });
 
 export const backgroundSchema = z.discriminatedUnion("kind", [
@@ -184,6 +186,16 @@ export const initialSchema = z.discriminatedUnion("kind", [
   snapshotFieldSchema,
 ]);
 
+/** One more species of particle beside the first ([particle] and [initial]), sharing its gravity. */
+export const speciesSchema = z.strictObject({
+  /** Its name: a letter, then letters, digits or "_" (at most 32); names its outputs. */
+  name: z.string(),
+  /** Its particle mass, e.g. "4e-22 eV". */
+  particle_mass: quantity,
+  /** Its initial field: a table of any [initial] kind. */
+  initial: initialSchema.optional(),
+});
+
 export const integratorSchema = z.strictObject({
   /** Safety factor s: kinetic phase ≤ 2πs and potential phase ≤ πs per step. @default 0.25 */
   safety: z.number().default(0.25),
@@ -327,6 +339,8 @@ export const userConfigSchema = z.strictObject({
   background: backgroundSchema.default({ kind: "static" }),
   span: spanSchema,
   initial: initialSchema,
+  /** More species sharing the potential: a list of tables [[species]]. @default none */
+  species: z.array(speciesSchema).optional(),
   integrator: integratorSchema.default(integratorSchema.parse({})),
   output: outputSchema.default(outputSchema.parse({})),
   sidecar: sidecarSchema.default(sidecarSchema.parse({})),

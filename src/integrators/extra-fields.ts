@@ -120,6 +120,11 @@ export class ExtraFields {
     return { fields: this.count, phaseSets, aux: this.rules.some((r) => r.potential === "aux" || r.linearised) };
   }
 
+  /** The largest drift and kick factors over the reference's (1 and 1 without species of other masses): the time step's phase rules scale by them. */
+  get largestScales(): { readonly drift: number; readonly kick: number } {
+    return { drift: Math.max(1, ...this.rules.map((r) => r.driftScale)), kick: Math.max(1, ...this.rules.map((r) => r.kickScale)) };
+  }
+
   /** The region of field i (1 … K). */
   grid(i: number): ComplexGrid {
     this.check(i);

@@ -151,6 +151,11 @@ export class SplitStepper {
     return this.gravity.kind !== "none" || this.contact !== 0 || this.extras.contact;
   }
 
+  /** The largest drift and kick factors of any field over ψ's (species of other particle masses). */
+  get largestScales(): { readonly drift: number; readonly kick: number } {
+    return this.extras.largestScales;
+  }
+
   /** How many extra fields advance with ψ. */
   get extraFields(): number {
     return this.extras.count;
@@ -397,6 +402,14 @@ export class SplitStepper {
     this.synchronize();
     this.undoState = undefined;
     this.runPasses(this.plan.kinetic("psi", "undo"));
+    return (0.5 * this.sums.kinetic * this.grid.cellVolume) / this.grid.size;
+  }
+
+  /** ½∫|∇ψ_i|² dV of the current extra field i (its owed kick applied first), spectrally, with its undo copy as scratch (used up). */
+  fieldKineticTilde(i: number): number {
+    this.field(i);
+    this.undoState = undefined;
+    this.runPasses(this.plan.kinetic(this.extras.grid(i), `undo.${i}`));
     return (0.5 * this.sums.kinetic * this.grid.cellVolume) / this.grid.size;
   }
 

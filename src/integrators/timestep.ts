@@ -25,12 +25,14 @@ export function chooseTimestep(stepper: SplitStepper, rules: TimestepRules): { d
   if (rules.fixedStep !== undefined) return { dt: rules.fixedStep, limiter: "fixed" };
   const bg = stepper.background;
   const a = bg.scaleFactor(stepper.time);
-  const kinetic = (2 * Math.PI * rules.safety * a * a) / (0.5 * stepper.grid.kSquaredMax);
+  // species of other particle masses drift by D/μ and kick by μK: the lightest and heaviest set the limits
+  const scales = stepper.largestScales;
+  const kinetic = (2 * Math.PI * rules.safety * a * a) / (0.5 * stepper.grid.kSquaredMax * scales.drift);
   let dt = kinetic;
   let limiter: StepLimiter = "kinetic";
   const range = stepper.potentialRange();
   if (range > 0) {
-    const potential = (Math.PI * rules.safety * a) / range;
+    const potential = (Math.PI * rules.safety * a) / (range * scales.kick);
     if (potential < dt) {
       dt = potential;
       limiter = "potential";

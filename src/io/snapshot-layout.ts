@@ -13,13 +13,21 @@
  *                          comment, config (the resolved config, TOML), config_sha256
  *   /x, /y, /z             coordinate variables (dimension scales): comoving cell centres i·dx [kpc]
  *   /psi_re, /psi_im       float64 or float32 over (x[, y[, z]]): ψ in (Msun/kpc³)^(1/2),
- *                          |ψ|² the comoving mass density
+ *                          |ψ|² the comoving mass density (of the first species in a run of several)
+ *   several species        (optional; a file without them holds one species) global attributes
+ *                          species (the names, space-separated, the first one's field in psi_re/psi_im),
+ *                          species_particle_mass [eV] and species_mass [Msun], one per name; mass is then
+ *                          their total and particle_mass the first species'; psi_re and psi_im carry an
+ *                          attribute species = the first name, and each later species NAME has its own
+ *                          /psi_re_NAME, /psi_im_NAME (same form and units) with attributes species,
+ *                          particle_mass, particle_mass_units
  *   /state                 checkpoints only: psi_code, phi_code (float64, code units, the exact
  *                          state) over the dimensions n_psi_code and n_phi_code, attributes
  *                          time_code, mass_code, mass0_code, owed_kick_code, steps, wall_time_s,
  *                          snapshots_written; field_1_code, field_2_code, …: the companion fields a run
  *                          advances beside ψ (tangent-linear fields), as stored, owing ψ's kick, over
- *                          n_psi_code; /state/plugins: one text attribute per run plug-in that
+ *                          n_psi_code (several species: the later species first, in order, then the
+ *                          plug-ins' fields); /state/plugins: one text attribute per run plug-in that
  *                          keeps state, JSON {"version": n, "state": …} (the quantum sidecar's is "sidecar")
  * Version 1 (read only): the same root attributes up to config_sha256, /grid (dims, cells,
  * box_size), /field/psi of shape [cells..., 2] (re, im), and /state as above (checkpoints written before
@@ -40,6 +48,10 @@ export const AXIS_NAMES = ["x", "y", "z"] as const;
 /** The field's data variables. */
 export const PSI_RE = "psi_re";
 export const PSI_IM = "psi_im";
+/** The variables of a later species' field (several species; the first one's are PSI_RE and PSI_IM). */
+export const speciesVariables = (name: string): readonly [string, string] => [`${PSI_RE}_${name}`, `${PSI_IM}_${name}`];
+/** Global attributes of a file of several species. */
+export const SPECIES_ATTRS = { names: "species", particleMass: "species_particle_mass", mass: "species_mass" } as const;
 
 /** Names inside the checkpoint's /state group. */
 export const STATE = {

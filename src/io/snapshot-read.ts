@@ -8,8 +8,8 @@ import { InputError } from "../core/errors.js";
 import { Dataset, Group, hdf5Reason, openHdf5, type H5File } from "./h5.js";
 import { hasAttr, numberOf, numbersOf, stringOf } from "./h5-attrs.js";
 import { readFloat64, readSlabs } from "./slabs.js";
-import { PSI_IM, PSI_RE, SNAPSHOT_FORMAT, SNAPSHOT_VERSION, STATE, V1 } from "./snapshot-layout.js";
-import type { CheckpointState, Snapshot, SnapshotBackground, SnapshotMeta } from "./snapshot.js";
+import { PSI_IM, PSI_RE, SNAPSHOT_FORMAT, SNAPSHOT_VERSION, SPECIES_ATTRS, STATE, V1, speciesVariables } from "./snapshot-layout.js";
+import type { CheckpointState, Snapshot, SnapshotBackground, SnapshotMeta, SpeciesMeta } from "./snapshot.js";
 
 function dataset(f: H5File, name: string, file: string, what: string): Dataset {
   const ds = f.get(name);
@@ -29,10 +29,10 @@ function readPsiV1(f: H5File, cells: readonly number[], file: string): Float64Ar
   return readFloat64(ds, file);
 }
 
-/** Version 2: ψ as psi_re and psi_im over the grid's dimensions, interleaved slab by slab. */
-function readPsiV2(f: H5File, cells: readonly number[], file: string): Float64Array {
-  const re = dataset(f, PSI_RE, file, "the snapshot has no field");
-  const im = dataset(f, PSI_IM, file, "the snapshot has no field");
+/** Version 2: ψ as psi_re and psi_im (or a later species' pair) over the grid's dimensions, interleaved slab by slab. */
+function readPsiV2(f: H5File, cells: readonly number[], file: string, names: readonly string[] = [PSI_RE, PSI_IM]): Float64Array {
+  const re = dataset(f, names[0]!, file, "the snapshot has no field");
+  const im = dataset(f, names[1]!, file, "the snapshot has no field");
   checkShape(re, cells, file);
   checkShape(im, cells, file);
   const rowCells = cells.slice(1).reduce((p, n) => p * n, 1);
@@ -70,7 +70,26 @@ function readMeta(f: H5File, version: number, file: string): SnapshotMeta {
     massMsun: numberOf(f, "mass", file),
     config: stringOf(f, "config", file),
     configSha256: stringOf(f, "config_sha256", file),
+    ...speciesOf(f, file),
   };
+}
+
+/** The species of a file of several (none: a file of one). */
+function speciesOf(f: H5File, file: string): { species?: SpeciesMeta[] } {
+  if (!hasAttr(f, SPECIES_ATTRS.names)) return {};
+  const names = stringOf(f, SPECIES_ATTRS.names, file).split(" ").filter((n) => n !== "");
+  const masses = numbersOf(f, SPECIES_ATTRS.particleMass, file);
+  const totals = numbersOf(f, SPECIES_ATTRS.mass, file);
+  if (masses.length !== names.length || totals.length !== names.length) {
+    throw new InputError(`${file}: the attributes ${SPECIES_ATTRS.particleMass} and ${SPECIES_ATTRS.mass} need one value per species (${names.length})`);
+  }
+  return { species: names.map((name, i) => ({ name, particleMassEv: masses[i]!, massMsun: totals[i]! })) };
+}
+
+/** The fields of the species after the first. */
+function readSpeciesPsi(f: H5File, meta: SnapshotMeta, file: string): { speciesPsi?: Float64Array[] } {
+  const later = (meta.species ?? []).slice(1);
+  return later.length ? { speciesPsi: later.map((s) => readPsiV2(f, meta.cells, file, speciesVariables(s.name))) } : {};
 }
 
 /** The companion fields of a checkpoint's /state group, in order. */
@@ -147,7 +166,8 @@ export function readSnapshot(file: string, withState = false): Snapshot {
   return withFile(file, (f, version) => {
     const meta = readMeta(f, version, file);
     const psi = version === 1 ? readPsiV1(f, meta.cells, file) : readPsiV2(f, meta.cells, file);
-    return withState ? { meta, psi, state: readState(f, file) } : { meta, psi };
+    const species = version === 1 ? {} : readSpeciesPsi(f, meta, file);
+    return withState ? { meta, psi, ...species, state: readState(f, file) } : { meta, psi, ...species };
   });
 }
 

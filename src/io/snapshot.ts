@@ -21,9 +21,11 @@ import {
   PSI_UNITS,
   SNAPSHOT_FORMAT,
   SNAPSHOT_VERSION,
+  SPECIES_ATTRS,
   STATE,
   UNIT_SYSTEM,
   snapshotConstants,
+  speciesVariables,
 } from "./snapshot-layout.js";
 
 export { SNAPSHOT_FORMAT, SNAPSHOT_VERSION, PSI_UNITS } from "./snapshot-layout.js";
@@ -51,6 +53,15 @@ export interface SnapshotMeta {
   readonly massMsun: number;
   readonly config: string;
   readonly configSha256: string;
+  /** Several species: each one's name, particle mass [eV] and mass [Msun], the first one's field in `psi`. */
+  readonly species?: readonly SpeciesMeta[];
+}
+
+/** A species of a file of several. */
+export interface SpeciesMeta {
+  readonly name: string;
+  readonly particleMassEv: number;
+  readonly massMsun: number;
 }
 
 /** The exact code-unit state a checkpoint carries for a bit-exact resume. */
@@ -79,6 +90,8 @@ export interface Snapshot {
   readonly psi: Float64Array;
   /** Factor applied to psi as it is written, slab by slab (default 1: psi is written as given). */
   readonly psiScale?: number;
+  /** Several species: the fields of the species after the first (meta.species[1 …]), like `psi`. */
+  readonly speciesPsi?: readonly Float64Array[];
   readonly state?: CheckpointState;
 }
 
@@ -90,13 +103,19 @@ function gridVariable(f: H5File, name: string, cells: readonly number[], precisi
   return ds;
 }
 
-/** Write ψ (interleaved, times `scale`) as the two real variables, slab by slab along the first axis. */
-function writePsi(f: H5File, cells: readonly number[], psi: Float64Array, precision: "float64" | "float32", scale: number): void {
-  const re = gridVariable(f, PSI_RE, cells, precision);
-  const im = gridVariable(f, PSI_IM, cells, precision);
+/** Write ψ (interleaved, times `scale`) as the two real variables, slab by slab along the first axis; `species` names its species. */
+function writePsi(f: H5File, cells: readonly number[], psi: Float64Array, precision: "float64" | "float32", scale: number, species?: SpeciesMeta, names = [PSI_RE, PSI_IM]): void {
+  const re = gridVariable(f, names[0]!, cells, precision);
+  const im = gridVariable(f, names[1]!, cells, precision);
   for (const [ds, part] of [[re, "real"], [im, "imaginary"]] as const) {
-    textAttr(ds, "long_name", `${part} part of the wave function psi (|psi|^2 is the comoving mass density)`);
+    const whose = species ? ` of the species ${species.name}` : "";
+    textAttr(ds, "long_name", `${part} part of the wave function psi${whose} (|psi|^2 is the comoving mass density)`);
     textAttr(ds, "units", PSI_UNITS);
+    if (species) {
+      textAttr(ds, "species", species.name);
+      numberAttr(ds, "particle_mass", species.particleMassEv);
+      textAttr(ds, "particle_mass_units", "eV");
+    }
     const offset = part === "real" ? 0 : 1;
     const rowCells = psi.length / 2 / (cells[0] as number);
     writeSlabs(ds, cells, precision, (r0, _r1, out) => {
@@ -201,6 +220,22 @@ function writeGlobals(f: H5File, m: SnapshotMeta): void {
   textAttr(f, "comment", LAYOUT_COMMENT);
   textAttr(f, "config", m.config);
   textAttr(f, "config_sha256", m.configSha256);
+  if (m.species) {
+    textAttr(f, SPECIES_ATTRS.names, m.species.map((s) => s.name).join(" "));
+    numbersAttr(f, SPECIES_ATTRS.particleMass, m.species.map((s) => s.particleMassEv));
+    numbersAttr(f, SPECIES_ATTRS.mass, m.species.map((s) => s.massMsun));
+  }
+}
+
+/** The fields of the species after the first, each in its own pair of variables. */
+function writeSpecies(f: H5File, snap: Snapshot, precision: "float64" | "float32"): void {
+  const species = snap.meta.species ?? [];
+  const fields = snap.speciesPsi ?? [];
+  if (fields.length !== Math.max(0, species.length - 1)) throw new RangeError(`a snapshot of ${species.length} species needs ${Math.max(0, species.length - 1)} more fields, got ${fields.length}`);
+  fields.forEach((psi, i) => {
+    const sp = species[i + 1]!;
+    writePsi(f, snap.meta.cells, psi, precision, snap.psiScale ?? 1, sp, [...speciesVariables(sp.name)]);
+  });
 }
 
 function timeUnitSeconds(unit: string): number {
@@ -219,7 +254,8 @@ export function writeSnapshot(file: string, snap: Snapshot, precision: "float64"
     (f) => {
       writeGlobals(f, m);
       writeCoordinates(f, m.cells, m.boxSizeKpc);
-      writePsi(f, m.cells, snap.psi, precision, snap.psiScale ?? 1);
+      writePsi(f, m.cells, snap.psi, precision, snap.psiScale ?? 1, m.species?.[0]);
+      writeSpecies(f, snap, precision);
       if (snap.state) writeState(f, snap.state);
     },
     { track_order: true },

@@ -18,6 +18,11 @@ import { VERSION } from "../version.js";
 import type { OutputScales } from "./scales.js";
 import { recordOwned } from "./run-manifest.js";
 
+/** The mass of each species in code units: ψ's, then the later species' (the stepper's extra fields 1 … count). */
+export function speciesMasses(stepper: SplitStepper, count: number): number[] {
+  return [stepper.mass, ...Array.from({ length: count }, (_, i) => stepper.fieldMass(i + 1))];
+}
+
 /** Paths of a run folder. */
 export function runPaths(dir: string) {
   return {
@@ -77,10 +82,21 @@ export class RunWriter {
         bg.kind === "lcdm"
           ? { kind: "lcdm", hubbleKmSMpc: bg.littleH * 100, omegaMatter: bg.omegaMatter, omegaRadiation: bg.omegaRadiation }
           : { kind: "static" },
-      massMsun: this.scales.massMsun(stepper.mass),
+      massMsun: this.scales.massMsun(speciesMasses(stepper, run.species.length).reduce((a, b) => a + b, 0)),
       config: this.configText,
       configSha256: this.configHash,
+      ...this.speciesMeta(stepper),
     };
+  }
+
+  /** Several species: their names, particle masses and masses (the first is the reference field). */
+  private speciesMeta(stepper: SplitStepper): Pick<SnapshotMeta, "species"> {
+    const run = this.run;
+    if (run.species.length === 0) return {};
+    const masses = speciesMasses(stepper, run.species.length);
+    const eV = [run.particleMassKg, ...run.species.map((sp) => sp.particleMassKg)].map((m) => m / KG_PER_EV);
+    const names = [run.firstSpecies, ...run.species.map((sp) => sp.name)];
+    return { species: names.map((name, i) => ({ name, particleMassEv: eV[i]!, massMsun: this.scales.massMsun(masses[i]!) })) };
   }
 
   /** The factor from code ψ to physical ψ (√ of the density unit), applied as snapshots are written. */
@@ -92,7 +108,8 @@ export class RunWriter {
   writeSnapshot(stepper: SplitStepper, step: number, index: number): string {
     const file = this.paths.snapshot(index);
     recordOwned(this.run.outputDir, [`snapshots/${path.basename(file)}`]);
-    writeSnapshot(file, { meta: this.meta(stepper, step, "snapshot"), psi: stepper.psi, psiScale: this.psiScale }, this.run.output.snapshotPrecision);
+    const speciesPsi = this.run.species.map((_, i) => stepper.field(i + 1));
+    writeSnapshot(file, { meta: this.meta(stepper, step, "snapshot"), psi: stepper.psi, psiScale: this.psiScale, ...(speciesPsi.length ? { speciesPsi } : {}) }, this.run.output.snapshotPrecision);
     this.log(`snapshot ${path.basename(file)} at step ${step}, t = ${this.scales.formatTime(stepper.time)}`);
     return file;
   }
@@ -113,10 +130,12 @@ export class RunWriter {
     const raw = owedKickFactor !== 0 ? Float64Array.from(stepper.rawPsi) : stepper.rawPsi;
     const phi = stepper.phi;
     try {
+      const speciesPsi = this.run.species.map((_, i) => stepper.field(i + 1));
       writeSnapshot(this.paths.checkpoint, {
         meta: this.meta(stepper, state.steps, "checkpoint"),
         psi: stepper.psi,
         psiScale: this.psiScale,
+        ...(speciesPsi.length ? { speciesPsi } : {}),
         state: {
           ...state,
           psiCode: raw,

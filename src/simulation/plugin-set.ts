@@ -16,7 +16,12 @@ export class PluginSet {
   /** Every plug-in column, in order. */
   readonly columns: readonly string[];
 
-  constructor(plugins: readonly RunPlugin[]) {
+  /** The stepper's extra fields before the plug-ins' (a run's later species). */
+  readonly base: number;
+
+  /** `base`: how many of the stepper's extra fields come before the plug-ins' (their fields are base + 1 …). */
+  constructor(plugins: readonly RunPlugin[], base = 0) {
+    this.base = base;
     const names = new Set<string>();
     for (const p of plugins) {
       if (!NAME.test(p.name)) throw new InputError(`plug-in "${p.name}": a name is a letter followed by letters, digits, "-" or "_"`);
@@ -36,7 +41,7 @@ export class PluginSet {
     if (this.fields.length > 64) throw new InputError(`the plug-ins ask for ${this.fields.length} extra fields; a run advances at most 64`);
   }
 
-  /** Every plug-in's extra fields, in the plug-ins' order (the stepper's extra fields 1 … n). */
+  /** Every plug-in's extra fields, in the plug-ins' order (the stepper's extra fields base + 1 … base + n). */
   readonly fields: readonly ExtraField[];
 
   /** The stepper's number of plug-in p's first field, less one. */
@@ -44,7 +49,7 @@ export class PluginSet {
     return this.plugins.slice(0, this.plugins.indexOf(p)).reduce((n, q) => n + (q.fields?.length ?? 0), 0);
   }
 
-  /** Whether the stepper's field i (1 …) belongs to a plug-in that measures "overlaps". */
+  /** Whether the plug-ins' field i (1 …, the stepper's base + i) belongs to a plug-in that measures "overlaps". */
   overlapWanted(i: number): boolean {
     const p = this.plugins.find((q) => this.offset(q) < i && i <= this.offset(q) + (q.fields?.length ?? 0));
     return p?.measures?.includes("overlaps") ?? false;
@@ -61,7 +66,7 @@ export class PluginSet {
   attach(make: (first: number, count: number) => PluginFields): void {
     for (const p of this.plugins) {
       const n = p.fields?.length ?? 0;
-      if (n > 0) p.attach?.(make(this.offset(p) + 1, n));
+      if (n > 0) p.attach?.(make(this.base + this.offset(p) + 1, n));
     }
   }
 

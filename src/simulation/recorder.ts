@@ -6,11 +6,16 @@
 import { CsvWriter } from "../io/csv-writer.js";
 import { InputError } from "../core/errors.js";
 import type { RunSession, RunStart } from "./session.js";
+import { maxSummedDensity, speciesEnergies, type SpeciesEnergy } from "./species-energies.js";
 
 const ENERGY_UNIT = "Msun_km2_s2";
 
-/** The run's own time-series columns (before the plug-ins'); `contact` adds the interaction energy before the total. */
-export function coreColumns(timeUnit: string, expanding: boolean, contact = false): string[] {
+/**
+ * The run's own time-series columns (before the plug-ins'); `contact` adds the interaction energy before
+ * the total. With several species (`species`: every species' name, the first's first) mass, kinetic,
+ * potential and max density are totals over them, followed by each species' mass, kinetic and potential energy.
+ */
+export function coreColumns(timeUnit: string, expanding: boolean, contact = false, species: readonly string[] = []): string[] {
   return [
     "step",
     `t_${timeUnit}`,
@@ -23,7 +28,14 @@ export function coreColumns(timeUnit: string, expanding: boolean, contact = fals
     ...(contact ? [`contact_${ENERGY_UNIT}`] : []),
     `total_${ENERGY_UNIT}`,
     "max_density_Msun_kpc3",
+    ...species.flatMap((name) => [`mass_${name}_Msun`, `kinetic_${name}_${ENERGY_UNIT}`, `potential_${name}_${ENERGY_UNIT}`]),
   ];
+}
+
+/** Every species' name of a run of several (the first's first), or none for a run of one. */
+export function speciesNames(session: RunSession): string[] {
+  const { run } = session;
+  return run.species.length ? [run.firstSpecies, ...run.species.map((sp) => sp.name)] : [];
 }
 
 /** Writes a run's time series, snapshots and checkpoints. */
@@ -38,7 +50,7 @@ export class RunRecorder {
     this.session = session;
     this.start = start;
     this.snapshotsWritten = start.snapshotsWritten;
-    const columns = [...coreColumns(session.scales.timeUnit, session.expanding, session.stepper.contact !== 0), ...session.plugins.columns];
+    const columns = [...coreColumns(session.scales.timeUnit, session.expanding, session.stepper.contact !== 0, speciesNames(session)), ...session.plugins.columns];
     const twice = columns.find((c, i) => columns.indexOf(c) !== i);
     if (twice !== undefined) throw new InputError(`time-series column "${twice}" is declared twice (a plug-in's columns must be new)`);
     const limiter = columns.indexOf("limiter");
@@ -50,17 +62,19 @@ export class RunRecorder {
 
   /** A time-series row of the current state. */
   row(step: number, dt: number, limiter: string): void {
-    const { stepper, background, grid, scales, expanding, plugins } = this.session;
+    const { stepper, background, grid, scales, expanding, plugins, run } = this.session;
     const t = stepper.time;
     const a = background.scaleFactor(t);
-    // K = ½∫|∇ψ|²/a² (spectral, on the step's own transforms), W = ½∫ρφ/a, U = ½g∫ρ² (static runs only)
-    const K = stepper.kineticTilde() / (a * a);
+    // K = ½∫|∇ψ|²/a² (spectral, on the step's own transforms), W = ½∫ρφ/a, per species and summed; U = ½g∫ρ² (static runs only)
+    const each = speciesEnergies(stepper, run.species.map((sp) => sp.massRatio), a);
+    const sum = (f: (e: SpeciesEnergy) => number) => each.reduce((s, e) => s + f(e), 0);
+    const [M, K, W] = [sum((e) => e.mass), sum((e) => e.kinetic), sum((e) => e.potential)];
     const moments = stepper.moments();
-    const W = (0.5 / a) * moments.rhoPhi * grid.cellVolume;
     const contact = stepper.contact !== 0 ? [0.5 * stepper.contact * moments.rho2 * grid.cellVolume] : [];
-    const total = K + W + (contact[0] ?? 0);
-    const energies = [K, W, ...contact, total].map((e) => scales.energy(e));
-    const own = [scales.time(dt), limiter, scales.massMsun(stepper.mass), ...energies, scales.density(moments.maxRho)];
+    const energies = [K, W, ...contact, K + W + (contact[0] ?? 0)].map((e) => scales.energy(e));
+    const maxRho = run.species.length ? maxSummedDensity(stepper, run.species.length) : moments.maxRho;
+    const perSpecies = run.species.length ? each.flatMap((e) => [scales.massMsun(e.mass), scales.energy(e.kinetic), scales.energy(e.potential)]) : [];
+    const own = [scales.time(dt), limiter, scales.massMsun(M), ...energies, scales.density(maxRho), ...perSpecies];
     this.series.row([step, scales.time(t), ...(expanding ? [a, 1 / a - 1] : []), ...own, ...plugins.row({ step, t, a }, () => stepper.rawPsi)]);
   }
 

@@ -107,7 +107,7 @@ function measuredSums(session: RunSession, kineticNow: boolean): MeasuredSums {
   if (plugins.measures("moments")) sums.moments = stepper.moments();
   if (plugins.measures("overlaps")) sums.overlaps = plugins.fields.map((_, i) => {
       if (!plugins.overlapWanted(i + 1)) return [Number.NaN, Number.NaN] as const; // of a plug-in that did not ask
-      const o = stepper.fieldOverlap(i + 1); // both fields current first (changes later steps at round-off only)
+      const o = stepper.fieldOverlap(plugins.base + i + 1); // both fields current first (changes later steps at round-off only)
       return [o.re, o.im] as const;
     });
   return sums;

@@ -16,6 +16,7 @@ import { ThreadedStepper } from "../integrators/threaded-step.js";
 import type { FieldKind } from "../integrators/extra-fields.js";
 import { buildInitialField, type InitialField } from "../initial-conditions/build.js";
 import { snapshotInitialField } from "./snapshot-start.js";
+import { speciesInitialField } from "./species-start.js";
 import { cleanStaleTemporaries, writeFileAtomic } from "../io/atomic.js";
 import { readCheckpoint, type CheckpointState } from "../io/snapshot.js";
 import { checkMemory, describeEstimate, formatBytes, type MemoryEstimate } from "./memory-estimate.js";
@@ -86,7 +87,7 @@ export interface RunSession {
 /** Build a run's parts and write (or, on resume, read) its config.toml. Close `stepper` when done. */
 export function openSession(run: ResolvedRun, options: RunOptions): RunSession {
   const wallStart = performance.now();
-  const plugins = new PluginSet(options.plugins ?? []);
+  const plugins = new PluginSet(options.plugins ?? [], run.species.length);
   const scales = new OutputScales(run);
   const grid = new Grid(run.grid.cells, run.grid.lengths);
   const background = makeBackground(run.background);
@@ -98,8 +99,9 @@ export function openSession(run: ResolvedRun, options: RunOptions): RunSession {
   if (!options.resume) writeFileAtomic(paths.config, configText);
   const writer = new RunWriter(run, scales, configText, sha256(configText));
   const { threads, fft } = run.integrator;
-  // the stepper's extra fields: the plug-ins' fields in the plug-ins' order
-  const fields: FieldKind[] = plugins.fields.map((f) => ({ kind: f.kind }));
+  // the stepper's extra fields: the later species in order, then the plug-ins' fields in the plug-ins' order
+  const species: FieldKind[] = run.species.map((sp) => ({ kind: "species", massRatio: sp.massRatio }));
+  const fields: FieldKind[] = [...species, ...plugins.fields.map((f): FieldKind => ({ kind: f.kind }))];
   // refuse a grid that cannot fit before anything is allocated
   const memory = checkMemory({ cells: run.grid.cells, gravity: run.grid.gravity, threads, fft, fields });
   const contact = run.contact ? contactCode(run.contact.scatteringLengthM, scales.units) : 0;
@@ -138,7 +140,7 @@ function fieldsHandle(stepper: SplitStepper, first: number, count: number): Plug
 function restoreFields(stepper: SplitStepper, state: CheckpointState, file: string): void {
   const fields = state.fieldsCode ?? [];
   if (fields.length !== stepper.extraFields) {
-    throw new InputError(`${file}: holds ${fields.length} companion field(s), this run advances ${stepper.extraFields}; resume with the [breakdown] and [sidecar] settings the run started with, or start it afresh`);
+    throw new InputError(`${file}: holds ${fields.length} companion field(s), this run advances ${stepper.extraFields}; resume with the [[species]], [breakdown] and [sidecar] settings the run started with, or start it afresh`);
   }
   // each field owes ψ's kick (tangents) or its own (fields with their own gravity, saved beside it)
   const owed = (i: number): number => state.fieldsOwedKickCode?.[i] ?? Number.NaN;
@@ -189,8 +191,10 @@ export function startRun(session: RunSession): RunStart {
     writer.log(`warning: ${w}`);
   }
   if (initial.powerTable) writeFileAtomic(paths.power, initial.powerTable);
+  warnings.push(...startSpecies(session, progress));
+  const base = session.plugins.base;
   session.plugins.fields.forEach((f, i) => {
-    if (f.kind === "own-gravity") stepper.setField(i + 1, initial.psi.map((v) => v * f.startScale));
+    if (f.kind === "own-gravity") stepper.setField(base + i + 1, initial.psi.map((v) => v * f.startScale));
   });
   stepper.setState(initial.psi, run.span.startTime);
   return { ...(relaxation ? { relaxation } : {}), warnings, mass0: stepper.mass, steps: 0, snapshotsWritten: 0, wallBefore: 0 };
@@ -206,6 +210,26 @@ function builtField(session: RunSession, ic: Exclude<ResolvedRun["initial"], { k
     const kg = session.scales.massMsun(e.mass) * M_SUN_KG;
     throw new NumericsError(`${ic.kind === "ground-state" ? "initial.mass" : "initial.soliton"}: no ground state: the relaxation collapsed to the grid's scale under the attractive self-interaction: ${collapseVerdict(kg, session.grid.dims, run.contact, run.particleMassKg)}`);
   }
+}
+
+/** Build and load the later species' initial fields (extra fields 1 … S); returns their warnings, also reported. */
+function startSpecies(session: RunSession, progress: (info: { iteration: number }) => void): string[] {
+  const { run, reporter, writer, stepper } = session;
+  const warnings: string[] = [];
+  run.species.forEach((sp, i) => {
+    const relaxing = sp.initial.kind === "ground-state" || (sp.initial.kind === "solitons" && sp.initial.profile === "relaxed");
+    if (relaxing) reporter.phase(`relaxing the species ${sp.name}`);
+    const built = speciesInitialField(run, sp, session.grid, session.gravity, progress);
+    if (relaxing) reporter.endPhase();
+    if (built.relaxation) writer.log(`species ${sp.name}: ground state relaxed in ${built.relaxation.iterations} iterations (converged: ${built.relaxation.converged})`);
+    for (const w of built.warnings ?? []) {
+      reporter.warn(w);
+      writer.log(`warning: ${w}`);
+      warnings.push(w);
+    }
+    stepper.setField(i + 1, built.psi);
+  });
+  return warnings;
 }
 
 /**

@@ -75,7 +75,14 @@ export function fillFromSnapshot(raw: Table): Table {
 /** The snapshot's field in the run's code units on the run's grid (resampled when the cell counts differ). */
 export function snapshotInitialField(run: ResolvedRun, grid: Grid, into: Float64Array): InitialField {
   if (run.initial.kind !== "snapshot") throw new TypeError("not a snapshot initial condition");
-  const file = run.initial.file;
+  return fileField(run, grid, into, run.initial.file);
+}
+
+/**
+ * A file's field in the run's code units on the run's grid: its first field, or with `species` the field of
+ * the species of that name when the file holds several species and one of that name (its first field otherwise).
+ */
+export function fileField(run: ResolvedRun, grid: Grid, into: Float64Array, file: string, species?: string): InitialField {
   const snap = readSnapshot(file);
   const m = snap.meta;
   if (m.cells.length !== grid.dims) {
@@ -87,7 +94,8 @@ export function snapshotInitialField(run: ResolvedRun, grid: Grid, into: Float64
   }
   const units = new CodeUnits(run.particleMassKg, run.lengthUnitM);
   const toCode = Math.sqrt(M_SUN_KG / KPC_M ** 3 / (units.massKg / units.lengthM ** 3));
-  const psi = snap.psi.map((v) => v * toCode);
+  const at = species === undefined ? 0 : Math.max(0, (m.species ?? []).findIndex((s) => s.name === species));
+  const psi = (at === 0 ? snap.psi : snap.speciesPsi![at - 1]!).map((v) => v * toCode);
   const same = m.cells.every((n, i) => n === run.grid.cells[i]);
   const warnings: string[] = [];
   if (same) {

@@ -54,6 +54,16 @@ function field(cells: number[], boxKpc: number[], lcdm: boolean): Snapshot {
   };
 }
 
+/** The same field as the first of two species, with a second species ψ/2 (a quarter of the mass). */
+function twoSpecies(snap: Snapshot): Snapshot {
+  const m = snap.meta.massMsun;
+  const species = [
+    { name: "light", particleMassEv: 1e-22, massMsun: m },
+    { name: "heavy", particleMassEv: 4e-22, massMsun: m / 4 },
+  ];
+  return { ...snap, meta: { ...snap.meta, massMsun: 1.25 * m, species }, speciesPsi: [snap.psi.map((v) => v / 2)] };
+}
+
 // The script reads the file with xarray alone and reports what it sees; the raw values go to a binary file.
 const SCRIPT = `
 import sys, json, numpy as np, xarray as xr
@@ -67,7 +77,12 @@ def look(file, raw):
   dx = [float(ds[d][1] - ds[d][0]) for d in dims]
   depth = (len(ds[dims[0]]) * dx[0]) ** (3 - len(dims))
   mass = float(rho.sum() * np.prod(dx) * depth)
+  # several species: the names, which species each pair of variables holds, and the later species' masses
+  names = ds.attrs["species"].split() if "species" in ds.attrs else []
+  pairs = ["psi_re"] + ["psi_re_" + n for n in names[1:]]
+  later = {n: float((ds["psi_re_" + n].values.astype("f8") ** 2 + ds["psi_im_" + n].values.astype("f8") ** 2).sum() * np.prod(dx) * depth) for n in names[1:]}
   return {
+    "species": names, "species_of": [ds[v].attrs.get("species") for v in pairs], "species_mass": later,
     "dims": dims, "coords": coords, "mass": mass,
     "units": {v: ds[v].attrs.get("units") for v in dims + ["psi_re", "psi_im"]},
     "long_name": ds["psi_re"].attrs.get("long_name"),
@@ -81,22 +96,23 @@ print(json.dumps([look(sys.argv[i], sys.argv[i + 1]) for i in range(1, len(sys.a
 const python = pythonWith(["xarray", "h5netcdf"]);
 const noPython = process.env["PSIBOX_NO_XARRAY"];
 describe.skipIf(python === undefined && noPython !== undefined)(`snapshots in xarray (h5netcdf engine)${noPython ? `: not run, ${noPython}` : ""}`, () => {
-  const cases: [number[], number[], boolean, "float64" | "float32"][] = [
+  const cases: [number[], number[], boolean, "float64" | "float32", boolean?][] = [
     [[16], [3], true, "float64"],
     [[8, 4], [2, 1], false, "float64"],
     [[4, 8, 4], [4, 8, 4], true, "float32"],
+    [[8, 4], [2, 1], false, "float64", true],
   ];
   const files = (i: number) => [path.join(dir, `f${i}.h5`), path.join(dir, `f${i}.bin`)] as const;
   let seenAll: Record<string, any>[] = [];
   beforeAll(() => {
     if (python === undefined) return;
-    cases.forEach(([cells, box, lcdm, precision], i) => writeSnapshot(files(i)[0], field(cells, box, lcdm), precision));
+    cases.forEach(([cells, box, lcdm, precision, species], i) => writeSnapshot(files(i)[0], species ? twoSpecies(field(cells, box, lcdm)) : field(cells, box, lcdm), precision));
     const r = spawnSync(python, ["-c", SCRIPT, ...cases.flatMap((_, i) => files(i))], { encoding: "utf8" });
     expect(r.stderr).toBe("");
     seenAll = JSON.parse(r.stdout);
   });
-  cases.forEach(([cells, box, lcdm, precision], index) => {
-    it(`${cells.length}D ${precision} ${lcdm ? "lcdm" : "static"}: xarray → numpy equals psibox's reader bit for bit, coordinates at the cell centres, mass from the file alone`, () => {
+  cases.forEach(([cells, box, lcdm, precision, species], index) => {
+    it(`${cells.length}D ${precision} ${lcdm ? "lcdm" : "static"}${species ? ", two species" : ""}: xarray → numpy equals psibox's reader bit for bit, coordinates at the cell centres, mass from the file alone`, () => {
       if (python === undefined) throw new Error("no python3 with xarray and h5netcdf found on PATH: install Debian's python3-xarray and python3-h5netcdf (or pip install xarray h5netcdf)");
       const [file, raw] = files(index);
       const seen = seenAll[index]!;
@@ -115,6 +131,10 @@ describe.skipIf(python === undefined && noPython !== undefined)(`snapshots in xa
       // ρ0 V (analytic), from the file alone; float32 rounds ψ to 6e-8
       const exact = RHO0 * box.reduce((p, b) => p * b, 1) * (box[0] as number) ** (3 - cells.length);
       expect(Math.abs(seen.mass / exact - 1)).toBeLessThan(precision === "float64" ? 1e-12 : 3e-7);
+      // a second species of a quarter of the mass (ψ/2) in its own pair of variables, each pair naming its species
+      expect(seen.species).toEqual(species ? ["light", "heavy"] : []);
+      expect(seen.species_of).toEqual([species ? "light" : null, ...(species ? ["heavy"] : [])]);
+      if (species) expect(Math.abs(seen.species_mass.heavy / (exact / 4) - 1)).toBeLessThan(1e-12);
       expect(seen.attrs).toEqual({
         Conventions: "CF-1.10",
         time_units: lcdm ? "Gyr" : "Myr",
