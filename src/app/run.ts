@@ -1,6 +1,7 @@
 /**
  * The application layer: a run assembled with its plug-ins. The plug-ins a
- * config asks for (the quantum sidecar, `[sidecar] enabled`; the vortex
+ * config asks for (the quantum sidecar, `[sidecar] enabled`, with the species' modes in a run of
+ * several species; the vortex
  * census, `output.vortex_census`; the flow-resolution check, always) come first, then
  * the caller's own, in the order given. The CLI and the public API call this.
  */
@@ -14,16 +15,23 @@ import { vortexCensusPlugin } from "./vortex-census-plugin.js";
 import { flowResolutionPlugin } from "./flow-resolution-plugin.js";
 import { lyapunovPlugin } from "./lyapunov-plugin.js";
 import { depletionPlugin } from "./depletion-plugin.js";
+import { speciesModesPlugin } from "./species-modes-plugin.js";
 
 /** The built-in plug-ins a resolved config turns on. */
 export function configuredPlugins(run: ResolvedRun): RunPlugin[] {
   return [
     ...(run.sidecar.enabled ? [sidecarPlugin({ ...run.sidecar, contact: runContact(run) })] : []),
+    ...(run.sidecar.enabled && run.species.length ? [speciesModesPlugin(speciesOf(run), run.grid.gravity, run.grid.poisson)] : []),
     ...(run.output.vortexCensus ? [vortexCensusPlugin(run.grid.cells.length)] : []),
     flowResolutionPlugin(),
     ...(run.breakdown.tangent ? [lyapunovPlugin({ interval: run.breakdown.interval, seed: run.breakdown.seed, region: run.breakdown.region, twinOffset: run.breakdown.twinOffset })] : []),
     ...(run.breakdown.probes > 0 ? [depletionPlugin({ probes: run.breakdown.probes, seed: run.breakdown.seed, fraction: run.breakdown.depletionFraction })] : []),
   ];
+}
+
+/** Every species of a run of several, the first one's first. */
+function speciesOf(run: ResolvedRun): { name: string; massRatio: number }[] {
+  return [{ name: run.firstSpecies, massRatio: 1 }, ...run.species.map((sp) => ({ name: sp.name, massRatio: sp.massRatio }))];
 }
 
 /**

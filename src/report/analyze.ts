@@ -29,6 +29,7 @@ import { PooledTransforms } from "../integrators/pooled-transforms.js";
 import { defaultThreads } from "../config/resolve-output.js";
 import type { Grid } from "../grid/grid.js";
 import { energyAndKineticSplit } from "../diagnostics/energy-split.js";
+import { speciesSummary } from "./species-summary.js";
 
 const KPC = 1e3 * PC_M;
 
@@ -104,6 +105,8 @@ export async function analyzeSnapshot(
     const both = chosen.has("energy-split") ? energyAndKineticSplit(field.grid, field.psi, field.scaleFactor, fft) : undefined;
     ({ summary, power } = snapshotTables(file, snap, field, outDir, fft, both?.kinetic));
     summary["halos"] = haloTables(file, snap, field, outDir, halos, tracks);
+    const species = speciesSummary(snap, field, outDir);
+    if (species) summary["species"] = species;
     diagnostics = fieldDiagnostics(field, chosen, outDir, fft, request.husimiWindowKpc, request.husimiPointsKpc, both?.split);
   } finally {
     if (!transforms) own.close();

@@ -86,6 +86,22 @@ function energyTable(summary: Record<string, unknown>): string {
   );
 }
 
+/** Each species at the end and their total (a run of several species), with their modes' coefficients; empty otherwise. */
+function speciesTable(summary: Record<string, unknown>): string {
+  type Energies = { kinetic: number; potential: number; total: number };
+  const sp = summary["species"] as { each: { name: string; particle_mass_eV: number; mass_Msun: number; energies_Msun_km2_s2: Energies; particles_N: number; chi_per_s: number }[]; total: { mass_Msun: number; energies_Msun_km2_s2: Energies }; cross: { species: string[]; chi_per_s: number }[] } | undefined;
+  if (!sp) return "";
+  const unit = "Msun (km/s)²";
+  const rows = [
+    ...sp.each.map((e) => [e.name, e.particle_mass_eV, e.mass_Msun, e.energies_Msun_km2_s2.kinetic, e.energies_Msun_km2_s2.potential, e.energies_Msun_km2_s2.total, e.particles_N, e.chi_per_s]),
+    ["total", undefined, sp.total.mass_Msun, sp.total.energies_Msun_km2_s2.kinetic, sp.total.energies_Msun_km2_s2.potential, sp.total.energies_Msun_km2_s2.total, undefined, undefined],
+  ];
+  const cross = sp.cross.map((c) => `χ between the modes of ${c.species.join(" and ")}: ${formatNumber(c.chi_per_s)} /s`).join("; ");
+  return `<h3>Species at the end</h3>
+${table(["species", "particle mass [eV]", "mass [Msun]", `kinetic K_i [${unit}]`, `potential W_i (shared Φ) [${unit}]`, `K_i + W_i [${unit}]`, "mode N_i", "mode χ_i (own Φ) [1/s]"], rows)}
+<p class="note">${esc(cross)}. The table above this one and the pictures are of the first species' field.</p>`;
+}
+
 /** Write <run>/report.html (and the analysis it shows under <run>/analysis); returns the report's path. */
 export async function writeReport(runDir: string, outFile?: string, options: RunAnalysisOptions = {}): Promise<string> {
   const summary = readJson<RunSummary>(path.join(runDir, "summary.json"));
@@ -120,6 +136,7 @@ ${breakdownSection(summary as unknown as Record<string, unknown>, analysis.figur
 <div class="figs">${figure(analysis.figures["energies"], "Energies, and the checks of energy and mass conservation.")}</div>
 <h3>At the end: ${esc(last?.caption ?? "")}</h3>
 ${last ? energyTable(last.summary) : "<p>none</p>"}
+${last ? speciesTable(last.summary) : ""}
 <h2 id="field">Field</h2>
 <div class="figs">${fieldFigs}</div>
 <h3>Densest points at the end</h3>

@@ -83,12 +83,13 @@ export class PluginSet {
     for (const p of this.plugins) p.afterStep?.({ ...facts, sums: this.sumsFor(p, facts.sums) });
   }
 
-  /** The plug-ins' values for a time-series row; `field` gives ψ to those that measure "field". */
-  row(facts: Omit<OutputFacts, "kind" | "file" | "psi">, field?: () => Float64Array): (number | string)[] {
+  /** The plug-ins' values for a time-series row; `field` gives ψ to those that measure "field", `species` every species' field to those that measure "species". */
+  row(facts: Omit<OutputFacts, "kind" | "file" | "psi" | "species">, field?: () => Float64Array, species?: () => readonly Float64Array[]): (number | string)[] {
     return this.plugins.flatMap((p) => {
       const expected = p.columns?.length ?? 0;
       const psi = field && p.measures?.includes("field") ? { psi: field() } : {};
-      const values = p.output?.({ kind: "row", ...facts, ...psi }) ?? [];
+      const all = species && p.measures?.includes("species") ? { species: species() } : {};
+      const values = p.output?.({ kind: "row", ...facts, ...psi, ...all }) ?? [];
       if (values.length !== expected) {
         throw new InputError(`plug-in "${p.name}": output() gave ${values.length} values for its ${expected} time-series columns`);
       }

@@ -23,9 +23,11 @@ import type { OutputScales } from "./scales.js";
  * the current field at the start and measured inside each step's drift, at
  * the step's middle, afterwards; "moments" are Σ|ψ|², Σ|ψ|⁴, Σ|ψ|²φ (without
  * the cell volume) and max |ψ|² of the field after the step; "field" hands
- * the field itself to output() at every time-series row (OutputFacts.psi).
+ * the field itself to output() at every time-series row (OutputFacts.psi);
+ * "species" hands every species' field, current, to output() at every row
+ * (OutputFacts.species; a run of one species hands ψ alone).
  */
-export type MeasuredSum = "kinetic" | "moments" | "field" | "overlaps";
+export type MeasuredSum = "kinetic" | "moments" | "field" | "overlaps" | "species";
 
 /** The sums a plug-in asked for (the others are absent). */
 export interface MeasuredSums {
@@ -109,6 +111,11 @@ export interface OutputFacts {
    * the folded closing kick still owes (reading it never changes the run).
    */
   readonly psi?: Float64Array;
+  /**
+   * Rows, for a plug-in that measures "species": every species' field in code units, the first
+   * species' (ψ) first, current (their owed kicks applied), read-only and valid during the call.
+   */
+  readonly species?: readonly Float64Array[];
 }
 
 /** How the run ended. */

@@ -75,7 +75,7 @@ export class RunRecorder {
     const maxRho = run.species.length ? maxSummedDensity(stepper, run.species.length) : moments.maxRho;
     const perSpecies = run.species.length ? each.flatMap((e) => [scales.massMsun(e.mass), scales.energy(e.kinetic), scales.energy(e.potential)]) : [];
     const own = [scales.time(dt), limiter, scales.massMsun(M), ...energies, scales.density(maxRho), ...perSpecies];
-    this.series.row([step, scales.time(t), ...(expanding ? [a, 1 / a - 1] : []), ...own, ...plugins.row({ step, t, a }, () => stepper.rawPsi)]);
+    this.series.row([step, scales.time(t), ...(expanding ? [a, 1 / a - 1] : []), ...own, ...plugins.row({ step, t, a }, () => stepper.rawPsi, () => [stepper.psi, ...run.species.map((_, i) => stepper.field(i + 1))])]);
   }
 
   /** Write the next snapshot of the current state. */

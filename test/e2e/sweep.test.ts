@@ -126,7 +126,7 @@ describe("psibox sweep", () => {
 
   const bad: [string, string, RegExp][] = [
     ["an empty sweep", `${BASE}[sweep]\n[sweep.values]\n`, /^psibox: sweep\.values: is empty/],
-    ["a key that does not exist", `${BASE}[sweep]\n[sweep.values]\n"particle.masss" = ["1e-22 eV"]\n`, /^psibox: particle\.masss: unknown key; valid keys here: mass, scattering_length, decay_constant \(in sweep entry "masss=1e-22eV"\)/],
+    ["a key that does not exist", `${BASE}[sweep]\n[sweep.values]\n"particle.masss" = ["1e-22 eV"]\n`, /^psibox: particle\.masss: unknown key; valid keys here: mass, scattering_length, decay_constant, name \(in sweep entry "masss=1e-22eV"\)/],
     ["values of the wrong unit", `${BASE}[sweep]\n[sweep.values]\n"particle.mass" = ["1e-22 eV", "2 kpc"]\n`, /^psibox: particle\.mass: "2 kpc" is not a mass.*\(in sweep entry "mass=2kpc"\)/],
     ["two entries in one folder", `${BASE}[sweep]\n[sweep.values]\n"particle.mass" = ["1e-22 eV", "1e-22eV"]\n`, /^psibox: sweep\.values: entries 1 and 2 would share the folder "mass=1e-22eV"/],
     ["zipped lists of different lengths", `${BASE}[sweep]\ncombine = "zip"\n[sweep.values]\n"particle.mass" = ["1e-22 eV", "2e-22 eV"]\n"initial.contrast" = [0.1]\n`, /^psibox: sweep\.values\."initial\.contrast": has 1 values; combine = "zip" needs every list to have 2/],

@@ -11,6 +11,7 @@ import { prepareOutputDir, type RunSummary } from "../../src/simulation/run.js";
 import { runSimulation } from "../../src/app/run.js";
 import type { RunPlugin } from "../../src/simulation/plugin.js";
 import { readSnapshot } from "../../src/io/snapshot.js";
+import { analyzeSnapshot } from "../../src/report/analyze.js";
 import { loadHdf5 } from "../../src/io/h5.js";
 import { ConfigError } from "../../src/core/errors.js";
 import { G_SI, HBAR_J_S, KG_PER_EV, M_SUN_KG, PC_M } from "../../src/physics/constants.js";
@@ -141,6 +142,34 @@ describe("a run of two species", () => {
     expect(b.meta.step).toBe(a.meta.step);
     expect(Buffer.from(b.psi.buffer).equals(Buffer.from(a.psi.buffer))).toBe(true);
     expect(Buffer.from(b.speciesPsi![0]!.buffer).equals(Buffer.from(a.speciesPsi![0]!.buffer))).toBe(true);
+  });
+});
+
+describe("the species' modes and analyze", () => {
+  it("give each species' mode and the cross coefficient in the time series, and analyze the same of the last snapshot with the totals", async () => {
+    const run = resolved("modes", PACKETS.replace("enabled = false", "enabled = true").replace('duration = "150 Myr"', 'duration = "20 Myr"'));
+    await runIt(run);
+    const rows = readCsv(path.join(run.outputDir, "timeseries.csv"));
+    const last = rows.at(-1)!;
+    const num = (c: string) => Number(last[c]);
+    expect(num("chi_main_heavy_per_s")).toBeLessThan(0);
+    expect(num("particles_N_heavy")).toBeGreaterThan(0);
+    const summary = (await analyzeSnapshot(path.join(run.outputDir, "snapshots", "snap_00001.h5"), path.join(work, "modes-analysis"), false)).summary;
+    const species = summary["species"] as { each: { name: string; mass_Msun: number; particles_N: number; chi_per_s: number; energies_Msun_km2_s2: { kinetic: number; potential: number } }[]; total: { mass_Msun: number; energies_Msun_km2_s2: { total: number } }; cross: { species: string[]; chi_per_s: number }[] };
+    expect(species.each.map((e) => e.name)).toEqual(["main", "heavy"]);
+    // the same state as the run's last row: the same numbers to the time series' 12 digits
+    const close = (x: number, y: number) => expect(Math.abs(x / y - 1)).toBeLessThan(1e-9);
+    for (const e of species.each) {
+      close(e.mass_Msun, num(`mass_${e.name}_Msun`));
+      close(e.energies_Msun_km2_s2.kinetic, num(`kinetic_${e.name}_Msun_km2_s2`));
+      close(e.energies_Msun_km2_s2.potential, num(`potential_${e.name}_Msun_km2_s2`));
+      close(e.particles_N, num(`particles_N_${e.name}`));
+      close(e.chi_per_s, num(`chi_${e.name}_per_s`));
+    }
+    close(species.total.mass_Msun, num("mass_Msun"));
+    close(species.total.energies_Msun_km2_s2.total, num("total_Msun_km2_s2"));
+    expect(species.cross[0]!.species).toEqual(["main", "heavy"]);
+    close(species.cross[0]!.chi_per_s, num("chi_main_heavy_per_s"));
   });
 });
 

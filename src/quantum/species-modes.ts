@@ -1,0 +1,83 @@
+/**
+ * The condensate modes of several species sharing one potential, and the
+ * cross coefficients between them (code units: ħ/m = 1 for the first
+ * species' particle mass m, 4πG = 1). Species i holds N_i = M_i/m_i
+ * particles (m_i = μ_i m) in the mode φ_i = ψ_i/√M_i (ψ_i in mass-density
+ * units, ∫|φ_i|² = 1). With the field operators ψ̂_i = φ_i b_i in the
+ * normal-ordered gravitational energy ½∫∫ :ρ̂(x) ρ̂(y): G(x − y), where
+ * ρ̂ = Σ_i m_i ψ̂_i†ψ̂_i, the modes obey the multi-mode Kerr Hamiltonian
+ *
+ *   H = Σ_i [ħω_i n_i + (ħχ_i/2) b_i†b_i†b_i b_i] + Σ_{i<j} ħχ_ij n_i n_j,
+ *
+ * where the terms of one species give its own coefficients and the terms of
+ * two (whose operators commute, so normal ordering leaves n_i n_j) give
+ *   ħχ_ij = m_i m_j ∫∫|φ_i(x)|²|φ_j(y)|² G(x − y) = W_ij / (N_i N_j),
+ * with W_ij = ∫ρ_i Φ[ρ_j] dV the two species' mutual gravitational energy
+ * (Φ[ρ_j] the potential of species j's density alone); likewise
+ * ħχ_i = 2 W_ii / N_i² with W_ii = ½∫ρ_i Φ[ρ_i] dV (its own potential only),
+ * and ħω_i = K_i/N_i with K_i = (ħ²/2m_i²a²)∫|∇ψ_i|² dV. The summed
+ * potential energy is W = Σ_i W_ii + Σ_{i<j} W_ij. χ_ij < 0: gravity binds
+ * the two modes' occupations to each other as it does each one's own.
+ */
+import type { Grid } from "../grid/grid.js";
+import type { PoissonSolver } from "../fields/poisson.js";
+import { ComplexFft } from "../fields/fft.js";
+import { kineticEnergy, potentialEnergy } from "../diagnostics/energies.js";
+import { coefficientsFrom, type ModeCoefficients } from "./mode.js";
+
+/** One species' field in the first species' code units and its particle mass ratio μ = m_i/m. */
+export interface SpeciesField {
+  readonly psi: Float64Array;
+  readonly massRatio: number;
+}
+
+/** The modes of every species and the cross coefficients of each pair (i < j). */
+export interface SpeciesModes {
+  /** Each species' own mode (its particles, ω from its kinetic energy, χ from its own potential). */
+  readonly modes: readonly ModeCoefficients[];
+  /** χ_ij [1/code time] and the mutual energy W_ij [code energy] of species i and j, i < j. */
+  readonly cross: readonly { readonly i: number; readonly j: number; readonly chi: number; readonly energy: number }[];
+}
+
+/** Σρ_i Φ_j ΔV / a: the mutual energy of a density and another's potential. */
+function mutualEnergy(grid: Grid, rho: Float64Array, phi: Float64Array, a: number): number {
+  let sum = 0;
+  for (let p = 0; p < rho.length; p++) sum += rho[p]! * phi[p]!;
+  return (sum * grid.cellVolume) / a;
+}
+
+/**
+ * The species' modes and cross coefficients at scale factor a (own Poisson solves with `gravity`).
+ * @param particleMass the first species' particle mass m in code mass units (ħ = m in code units)
+ */
+export function speciesModes(grid: Grid, fields: readonly SpeciesField[], a: number, particleMass: number, gravity: PoissonSolver): SpeciesModes {
+  const hbar = particleMass;
+  const fft = new ComplexFft(grid.shape);
+  const scratch = new Float64Array(2 * grid.size);
+  const rhos = fields.map((f) => Float64Array.from({ length: grid.size }, (_, p) => f.psi[2 * p]! ** 2 + f.psi[2 * p + 1]! ** 2));
+  const phis = rhos.map((rho) => {
+    const phi = Float64Array.from(rho);
+    gravity.solveInPlace(phi);
+    return phi;
+  });
+  const particles = fields.map((f, i) => (rhos[i]!.reduce((s, r) => s + r, 0) * grid.cellVolume) / (particleMass * f.massRatio));
+  const modes = fields.map((f, i) => {
+    const rho = rhos[i]!;
+    const mass = rho.reduce((s, r) => s + r, 0) * grid.cellVolume;
+    const kinetic = kineticEnergy(grid, f.psi, a, fft, scratch) / (f.massRatio * f.massRatio);
+    const potential = potentialEnergy(grid, f.psi, phis[i]!, a);
+    const rhoEff = rho.reduce((s, r) => s + r * r, 0) / (mass / grid.cellVolume);
+    const base = coefficientsFrom(mass, kinetic, potential, rhoEff, a, particleMass * f.massRatio);
+    const N = particles[i]!;
+    const chi = (2 * potential) / (N * N * hbar);
+    return { ...base, omega: kinetic / (N * hbar), chi, rate: N * Math.abs(chi) };
+  });
+  const cross: { i: number; j: number; chi: number; energy: number }[] = [];
+  for (let i = 0; i < fields.length; i++) {
+    for (let j = i + 1; j < fields.length; j++) {
+      const energy = mutualEnergy(grid, rhos[i]!, phis[j]!, a);
+      cross.push({ i, j, chi: energy / (particles[i]! * particles[j]! * hbar), energy });
+    }
+  }
+  return { modes, cross };
+}
