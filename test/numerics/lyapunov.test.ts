@@ -8,10 +8,11 @@ import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { loadConfig } from "../../src/config/load.js";
 import { resolveRun, type ResolvedRun } from "../../src/config/resolve.js";
-import { prepareOutputDir, type RunSummary } from "../../src/simulation/run.js";
+import { prepareOutputDir } from "../../src/simulation/run.js";
 import { runSimulation } from "../../src/app/run.js";
 import type { RunPlugin } from "../../src/simulation/plugin.js";
 import { G_SI, HBAR_J_S, KG_PER_EV, M_SUN_KG, PC_M } from "../../src/physics/constants.js";
+import { runStoppable } from "../helpers/runs.js";
 import { makeWork, readCsv, removeWork, writeIn } from "../helpers/cli.js";
 import { Grid } from "../../src/grid/grid.js";
 import { ComplexFft } from "../../src/fields/fft.js";
@@ -36,17 +37,7 @@ function resolved(name: string, text: string): ResolvedRun {
   return resolveRun(loadConfig(writeIn(work, `${name}.toml`, text)), name, work);
 }
 
-async function runIt(run: ResolvedRun, options: { plugins?: RunPlugin[]; resume?: boolean; stopAfter?: number } = {}): Promise<RunSummary> {
-  if (!options.resume) prepareOutputDir(run.outputDir, true);
-  let steps = 0;
-  const counter: RunPlugin = { name: "counter", afterStep: () => void steps++ };
-  const stop = options.stopAfter;
-  return runSimulation(run, {
-    plugins: [counter],
-    ...(options.resume ? { resume: true } : {}),
-    ...(stop !== undefined ? { stopRequested: () => (steps >= stop ? "stopped by the test" : undefined) } : {}),
-  });
-}
+const runIt = runStoppable;
 
 /** The Jeans rates of a uniform medium of density rho [kg/m³] over the modes k = 2πj/L, j = 1 … n/2 (1/s). */
 function jeansRates(rho: number, massEv: number, boxKpc: number, cells: number): number[] {

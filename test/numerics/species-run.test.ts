@@ -7,14 +7,14 @@ import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { loadConfig } from "../../src/config/load.js";
 import { resolveRun, type ResolvedRun } from "../../src/config/resolve.js";
-import { prepareOutputDir, type RunSummary } from "../../src/simulation/run.js";
-import { runSimulation } from "../../src/app/run.js";
-import type { RunPlugin } from "../../src/simulation/plugin.js";
 import { readSnapshot } from "../../src/io/snapshot.js";
+import { prepareOutputDir } from "../../src/simulation/run.js";
+import { runSimulation } from "../../src/app/run.js";
 import { analyzeSnapshot } from "../../src/report/analyze.js";
 import { loadHdf5 } from "../../src/io/h5.js";
 import { ConfigError } from "../../src/core/errors.js";
 import { G_SI, HBAR_J_S, KG_PER_EV, M_SUN_KG, PC_M } from "../../src/physics/constants.js";
+import { runStoppable } from "../helpers/runs.js";
 import { makeWork, readCsv, removeWork, runPsibox, writeIn } from "../helpers/cli.js";
 
 const KPC = 1e3 * PC_M;
@@ -31,17 +31,7 @@ function resolved(name: string, text: string): ResolvedRun {
   return resolveRun(loadConfig(writeIn(work, `${name}.toml`, text)), name, work);
 }
 
-async function runIt(run: ResolvedRun, options: { resume?: boolean; stopAfter?: number } = {}): Promise<RunSummary> {
-  if (!options.resume) prepareOutputDir(run.outputDir, true);
-  let steps = 0;
-  const counter: RunPlugin = { name: "counter", afterStep: () => void steps++ };
-  const stop = options.stopAfter;
-  return runSimulation(run, {
-    plugins: [counter],
-    ...(options.resume ? { resume: true } : {}),
-    ...(stop !== undefined ? { stopRequested: () => (steps >= stop ? "stopped by the test" : undefined) } : {}),
-  });
-}
+const runIt = runStoppable;
 
 const snap = (run: ResolvedRun, i: number) => readSnapshot(path.join(run.outputDir, "snapshots", `snap_${String(i).padStart(5, "0")}.h5`));
 
@@ -142,6 +132,23 @@ describe("a run of two species", () => {
     expect(b.meta.step).toBe(a.meta.step);
     expect(Buffer.from(b.psi.buffer).equals(Buffer.from(a.psi.buffer))).toBe(true);
     expect(Buffer.from(b.speciesPsi![0]!.buffer).equals(Buffer.from(a.speciesPsi![0]!.buffer))).toBe(true);
+  });
+});
+
+describe("a run started from a snapshot of several species", () => {
+  it("takes each species' field from the file's species of the same name", async () => {
+    const source = resolved("source", PACKETS.replace('duration = "150 Myr"', 'duration = "5 Myr"'));
+    await runIt(source);
+    const file = path.join(source.outputDir, "snapshots", "snap_00001.h5").split(path.sep).join("/");
+    const grid = PACKETS.slice(0, PACKETS.indexOf("[initial]"));
+    const text = `${grid}[initial]\nkind = "snapshot"\nfile = "${file}"\n[[species]]\nname = "heavy"\nparticle_mass = "3e-22 eV"\n[species.initial]\nkind = "snapshot"\nfile = "${file}"\n[sidecar]\nenabled = false\n`;
+    const run = resolved("from", text);
+    prepareOutputDir(run.outputDir, true);
+    await runSimulation(run, { initialOnly: true });
+    const [a, b] = [readSnapshot(file), snap(run, 0)];
+    const worst = (x: Float64Array, y: Float64Array) => x.reduce((w, v, i) => Math.max(w, Math.abs(v - y[i]!)), 0) / y.reduce((m, v) => Math.max(m, Math.abs(v)), 0);
+    expect(worst(b.psi, a.psi)).toBeLessThan(1e-14);
+    expect(worst(b.speciesPsi![0]!, a.speciesPsi![0]!)).toBeLessThan(1e-14);
   });
 });
 
