@@ -3,7 +3,8 @@
 // against a 330-digit evaluation of the published Gaussian-integral form of the moments at large N.
 import { Decimal } from "decimal.js";
 import { describe, expect, it } from "vitest";
-import { closedIntegrals, openKerrState } from "../../src/quantum/open-kerr.js";
+import { closedIntegrals, openKerrState, type KerrIntegrals } from "../../src/quantum/open-kerr.js";
+import { constantRateIntegrals } from "../../src/quantum/kerr-integrals.js";
 import { kerrState } from "../../src/quantum/kerr.js";
 import { fluctuationMoments, numberSpread, validateStart, type GaussianStart } from "../../src/quantum/gaussian-start.js";
 import { meanFieldCollapseX } from "../../src/quantum/state-clocks.js";
@@ -97,7 +98,7 @@ const psqrt = (a: PC): PC => {
 };
 const exact = (x: number) => new P(x === 0 ? "0" : x.toPrecision(100));
 
-function referenceV(N: number, s: GaussianStart, X: number): Decimal {
+function referenceV(N: number, s: GaussianStart, X: number, k?: KerrIntegrals): Decimal {
   const { n, m } = fluctuationMoments(s);
   const nD = exact(n);
   const a0 = P.sqrt(exact(N).minus(nD));
@@ -123,15 +124,20 @@ function referenceV(N: number, s: GaussianStart, X: number): Decimal {
     const Sxy = padd(pmul(pc(sxx), ixy), pmul(pc(sxy), iyy));
     return { F, lin, Sxx, Syy, Sxy };
   };
-  const c1 = pc(P.cos(x).minus(1), P.sin(x).neg());
-  const c2 = pc(P.cos(x.times(2)).minus(1), P.sin(x.times(2)).neg());
+  // with loss and dephasing: c_k = e^{−Γ}(e^{−ikX} − 1) + (J₁ for k = 1; 2J₁ + J₂ for k = 2), ⟨b⟩ gains
+  // e^{−(Γ+K)/2}, ⟨b²⟩ e^{−Γ−2K} and ⟨n⟩ = N e^{−Γ} (the integrals are the test's inputs, taken exactly)
+  const eG = k ? P.exp(exact(-k.loss)) : new P(1);
+  const j1 = k ? pc(exact(k.lossPhase1[0]), exact(k.lossPhase1[1])) : pc(0);
+  const j2 = k ? padd(pmul(pc(2), j1), pc(exact(k.lossPhase2[0]), exact(k.lossPhase2[1]))) : pc(0);
+  const c1 = padd(pmul(pc(eG), pc(P.cos(x).minus(1), P.sin(x).neg())), j1);
+  const c2 = padd(pmul(pc(eG), pc(P.cos(x.times(2)).minus(1), P.sin(x.times(2)).neg())), j2);
   const p1 = parts(c1);
-  const b1 = pmul(p1.F, p1.lin);
+  const b1 = pmul(pmul(p1.F, p1.lin), pc(k ? P.exp(exact(-(k.loss + k.dephasing) / 2)) : 1));
   const p2 = parts(c2);
   const br = padd(psub(pmul(p2.lin, p2.lin), p2.Syy), padd(p2.Sxx, pmul(pc(0, 2), p2.Sxy)));
-  const b2 = pmul(pmul(pc(P.cos(x), P.sin(x).neg()), p2.F), br);
+  const b2 = pmul(pmul(pmul(pc(P.cos(x), P.sin(x).neg()), p2.F), br), pc(k ? P.exp(exact(-k.loss - 2 * k.dephasing)) : 1));
   const mm = psub(b2, pmul(b1, b1));
-  return new P(0.5).plus(exact(N)).minus(b1.re.pow(2).plus(b1.im.pow(2))).minus(pabs(mm));
+  return new P(0.5).plus(exact(N).times(eG)).minus(b1.re.pow(2).plus(b1.im.pow(2))).minus(pabs(mm));
 }
 
 describe("Gaussian starts at large N: the double-precision forms against 330-digit arithmetic (1e-8 relative)", () => {
@@ -163,6 +169,29 @@ describe("Gaussian starts at large N: the double-precision forms against 330-dig
     }
     expect(checked).toBeGreaterThanOrEqual(150);
     expect(worst).toBeLessThan(1e-8);
+  });
+});
+
+describe("with loss and dephasing at large N against 330-digit arithmetic (1e-8 relative)", () => {
+  it("constant rates, N = 1 … 1e120, coherent, squeezed and squeezed thermal starts (doubles where their error estimate allows, decimal digits otherwise)", () => {
+    const states = [start(0, 0, 0), start(0.5, 0.3, 0), start(0.2, 2, 1.5)];
+    const rates = [[1e-3, 0], [0, 1e-4], [0.02, 2e-4], [1, 0.5]] as const;
+    let checked = 0;
+    [0, 2, 6, 12, 30, 60, 97, 120].forEach((lgN, i) => {
+      const N = Math.pow(10, lgN);
+      [1e-3 / N, N ** (-5 / 6), N ** -0.5, 0.3].forEach((X, j) => {
+        const s = states[(i + j) % states.length] as GaussianStart;
+        const [gamma, kappa] = rates[(i + 2 * j) % rates.length] as readonly [number, number];
+        if (fluctuationMoments(s).n > N) return;
+        // Γ = γt and K = κt with t = 1: the loss integrals J₁, J₂ by the sidecar's own quadrature
+        const k = constantRateIntegrals(0, X, gamma, kappa, 1);
+        const ref = referenceV(N, s, X, k).toNumber();
+        const rel = Math.abs(openKerrState(N, s, k).minVariance / ref - 1);
+        expect(rel, `V at N=${N}, X=${X}, γt=${gamma}, κt=${kappa}, ${JSON.stringify(s)}`).toBeLessThan(1e-8);
+        checked++;
+      });
+    });
+    expect(checked).toBeGreaterThanOrEqual(30);
   });
 });
 
