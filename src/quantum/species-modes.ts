@@ -16,8 +16,9 @@
  * (Φ[ρ_j] the potential of species j's density alone); likewise
  * ħχ_i = 2 W_ii / N_i² with W_ii = ½∫ρ_i Φ[ρ_i] dV (its own potential only),
  * and ħω_i = K_i/N_i with K_i = (ħ²/2m_i²a²)∫|∇ψ_i|² dV. The summed
- * potential energy is W = Σ_i W_ii + Σ_{i<j} W_ij. χ_ij < 0: gravity binds
- * the two modes' occupations to each other as it does each one's own.
+ * potential energy is W = Σ_i W_ii + Σ_{i<j} W_ij. In free space χ_ij < 0;
+ * periodic gravity takes the mean density out of the source, so modes far
+ * apart in the box can have χ_ij > 0.
  */
 import type { Grid } from "../grid/grid.js";
 import type { PoissonSolver } from "../fields/poisson.js";
