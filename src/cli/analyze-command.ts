@@ -106,6 +106,12 @@ export async function reportCommand(runDir: string, flags: PictureFlags & { out?
   const pictures = pictureOptions(flags);
   const halos = haloRequest(flags);
   if (!fs.existsSync(runDir)) throw new InputError(`${runDir}: no such folder`);
+  if (fs.existsSync(path.join(runDir, "ensemble.json"))) {
+    const { writeEnsembleReport } = await import("../report/ensemble-report.js");
+    recordIfInside(runDir, flags.out ?? path.join(runDir, "report.html"));
+    process.stdout.write(`wrote ${await writeEnsembleReport(runDir, flags.out)}\n`);
+    return 0;
+  }
   await loadHdf5();
   if (fs.existsSync(path.join(runDir, "snapshots"))) checkRunSnapshots(runDir);
   recordIfInside(runDir, path.join(runDir, "analysis"), true);

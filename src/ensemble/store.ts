@@ -25,7 +25,7 @@ export interface EnsembleIdentity {
 }
 
 /** The files psibox writes in an ensemble folder. */
-export const ENSEMBLE_FILES = ["ensemble.json", "config.toml", "reference.f64", "members/", "series.csv", "fields.h5", "summary.json"] as const;
+export const ENSEMBLE_FILES = ["ensemble.json", "config.toml", "reference.f64", "members/", "series.csv", "fields.h5", "summary.json", "report.html"] as const;
 
 const IDENTITY = "ensemble.json";
 

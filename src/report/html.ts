@@ -14,6 +14,7 @@ import { analyzeRun, type RunAnalysisOptions } from "./analyze.js";
 import { diagnosticsSection } from "./diagnostics-section.js";
 import { haloSection } from "./halo-section.js";
 import { axisUnit } from "./snapshot-pictures.js";
+import { ensembleSection } from "./ensemble-report.js";
 import { breakdownSection, clockSentence, twinSentence, outflowSentence, modeSentence, esc, figure, STYLESHEET, table, type ClockEntry } from "./report-parts.js";
 
 interface RunSummary {
@@ -132,6 +133,7 @@ ${overview(summary, runDir, first?.file)}
 <h2 id="clocks">Quantum clocks</h2>
 ${clockSection}
 ${breakdownSection(summary as unknown as Record<string, unknown>, analysis.figures["breakdown"])}
+${await ensembleSection(path.join(runDir, "ensemble"))}
 <h2 id="energies">Energies</h2>
 <div class="figs">${figure(analysis.figures["energies"], "Energies, and the checks of energy and mass conservation.")}</div>
 <h3>At the end: ${esc(last?.caption ?? "")}</h3>

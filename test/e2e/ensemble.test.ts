@@ -36,6 +36,13 @@ describe("psibox ensemble", () => {
     const other = runPsibox(work, ["ensemble", "small.toml", "--set", "ensemble.noise_seed=9"]);
     expect(other.code).toBe(2);
     expect(other.stderr).toMatch(/holds an ensemble with another seed; pass --force/);
+    // psibox report on the ensemble folder: the headline sentences, the figure and the series table
+    const report = runPsibox(work, ["report", "output/small/ensemble"]);
+    expect(report.code).toBe(0);
+    const html = fs.readFileSync(path.join(dir, "report.html"), "utf8");
+    expect(html).toMatch(/4 of 4 members reduced \(completed\); N = 100 particles over 16 grid modes/);
+    expect(html).toMatch(/<img alt="The condensate fraction/);
+    expect((html.match(/<tr>/g) ?? []).length).toBe(4); // header and three sample times
   });
   for (const [label, cells, ensemble, key] of [
     ["one member", "16", "members = 1", /ensemble\.members: must be a whole number from 2/],

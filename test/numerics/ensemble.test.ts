@@ -11,6 +11,8 @@ import { resolveEnsemble } from "../../src/config/resolve-ensemble.js";
 import { runEnsemble } from "../../src/ensemble/ensemble.js";
 import { addVacuumNoise } from "../../src/ensemble/noise.js";
 import { leadingMode } from "../../src/ensemble/density-matrix.js";
+import { gramLeadingEigenvalue, gramMatrix } from "../../src/ensemble/gram.js";
+import { SeededRandom } from "../../src/math/random.js";
 import { bootstrapWeights, sampleStatistics } from "../../src/ensemble/observables.js";
 import { validityWarning } from "../../src/ensemble/guards.js";
 import { ConfigError } from "../../src/core/errors.js";
@@ -66,6 +68,20 @@ describe("single-mode limit: the Kerr oscillator's truncated-Wigner mean", () =>
     expect(Math.abs(mi - ti)).toBeLessThan(4 * ei);
     expect(Math.abs(mr - 1.5184)).toBeGreaterThan(6 * er); // the exact quantum ⟨b⟩ (Yurke & Stoler 1986, PRL 57, 13) is resolved apart
   });
+  it("N → large at fixed NX = 5: the ensemble mean approaches the classical N^{1/2} e^{−iNX} as 1/N (the closed form's expansion: N·|⟨b⟩/b_cl − 1| → (NX)²/2 = 12.5, computed independently)", () => {
+    const s = 5;
+    const departure = (nParticles: number): number => {
+      const count = 1_000_000;
+      const a = kerrMembers(nParticles, s / nParticles, count, 13);
+      let [sr, si] = [0, 0];
+      for (let j = 0; j < count; j++) (sr += a[2 * j]!), (si += a[2 * j + 1]!);
+      const [cr, ci] = [Math.sqrt(nParticles) * Math.cos(s), -Math.sqrt(nParticles) * Math.sin(s)];
+      return Math.hypot(sr / count - cr, si / count - ci) / Math.sqrt(nParticles);
+    };
+    const [d200, d800] = [departure(200), departure(800)];
+    expect(Math.abs(d200 / d800 / 4 - 1)).toBeLessThan(0.05);
+    expect(Math.abs(800 * d800 / 12.5 - 1)).toBeLessThan(0.05);
+  });
   it("the reduction's ⟨b⟩ and its standard error, over 20000 one-cell members, agree with the closed form", () => {
     const m = 20_000;
     const a = kerrMembers(n, x, m, 11);
@@ -81,6 +97,15 @@ describe("single-mode limit: the Kerr oscillator's truncated-Wigner mean", () =>
 });
 
 describe("the condensate number's power method", () => {
+  it("on the Gram matrix gives the eigenvalue of the power method on the fields, for bootstrap weights (Horn & Johnson, Thm 1.3.22: AB and BA share their nonzero eigenvalues)", () => {
+    const rng = new SeededRandom(4);
+    const members = Array.from({ length: 12 }, () => Float64Array.from({ length: 2 * 32 }, (_, x) => (x % 2 === 0 ? 3 : 0) + rng.normal()));
+    const weights = bootstrapWeights(12, 3, 9)[2]!;
+    const start = Float64Array.from({ length: 64 }, (_, x) => (x % 2 === 0 ? 1 : 0));
+    const overlaps = Float64Array.from({ length: 24 }, (_, k) => (k % 2 === 0 ? 1 : 0));
+    const fields = leadingMode(members, start, weights).eigenvalue;
+    expect(Math.abs(gramLeadingEigenvalue(gramMatrix(members), weights, overlaps) / fields - 1)).toBeLessThan(1e-10);
+  });
   it("matches the closed-form largest eigenvalue of a 2×2 Hermitian W = (a₁a₁† + a₂a₂†)/2 (textbook)", () => {
     const a1 = Float64Array.of(1, 0.5, -0.3, 2);
     const a2 = Float64Array.of(0.2, -1, 1.5, 0.1);

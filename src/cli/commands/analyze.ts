@@ -45,7 +45,7 @@ export interface ReportFlags extends PictureFlags {
 
 export const reportSpec: CommandSpec<ReportFlags, [string]> = {
   name: "report",
-  summary: "write a self-contained HTML report of a run (report.html in the run folder)",
+  summary: "write a self-contained HTML report of a run or of an ensemble folder (report.html in the folder)",
   arguments: [{ name: "run", help: "a run folder", required: true }],
   options: { out: { flags: "--out <file>", help: "the HTML file to write" }, ...HALO_OPTIONS, ...PICTURE_OPTIONS },
   run: async ([run], flags) => (await import("../analyze-command.js")).reportCommand(run, flags),
