@@ -20,6 +20,21 @@ export interface LeadingMode {
   readonly iterations: number;
 }
 
+/** ⟨a|b⟩ = Σₓ conj(aₓ) bₓ of two interleaved complex arrays. */
+export function overlap(a: Float64Array, b: Float64Array): { re: number; im: number } {
+  let re = 0;
+  let im = 0;
+  for (let x = 0; x < a.length; x += 2) {
+    const ar = a[x] as number;
+    const ai = a[x + 1] as number;
+    const br = b[x] as number;
+    const bi = b[x + 1] as number;
+    re += ar * br + ai * bi;
+    im += ar * bi - ai * br;
+  }
+  return { re, im };
+}
+
 /** out = W v for W = Σ wⱼ aⱼ aⱼ† / Σ wⱼ (weights undefined: all 1). */
 export function applyEnsembleMatrix(members: readonly Float64Array[], v: Float64Array, out: Float64Array, weights?: ArrayLike<number>): void {
   out.fill(0);
@@ -28,18 +43,9 @@ export function applyEnsembleMatrix(members: readonly Float64Array[], v: Float64
     const w = weights ? (weights[j] as number) : 1;
     total += w;
     if (w === 0) return;
-    let cr = 0;
-    let ci = 0;
-    for (let x = 0; x < a.length; x += 2) {
-      const ar = a[x] as number;
-      const ai = a[x + 1] as number;
-      const vr = v[x] as number;
-      const vi = v[x + 1] as number;
-      cr += ar * vr + ai * vi;
-      ci += ar * vi - ai * vr;
-    }
-    cr *= w;
-    ci *= w;
+    const c = overlap(a, v);
+    const cr = c.re * w;
+    const ci = c.im * w;
     for (let x = 0; x < a.length; x += 2) {
       const ar = a[x] as number;
       const ai = a[x + 1] as number;

@@ -8,6 +8,7 @@
  * power iteration then costs M² products instead of 2·M·cells, which is
  * far cheaper when the grid has more cells than the ensemble has members.
  */
+import { overlap } from "./density-matrix.js";
 
 /** G (Hermitian, interleaved re, im, row-major M × M) of the members. */
 export function gramMatrix(members: readonly Float64Array[]): Float64Array {
@@ -16,17 +17,7 @@ export function gramMatrix(members: readonly Float64Array[]): Float64Array {
   for (let i = 0; i < m; i++) {
     const a = members[i] as Float64Array;
     for (let j = i; j < m; j++) {
-      const b = members[j] as Float64Array;
-      let re = 0;
-      let im = 0;
-      for (let x = 0; x < a.length; x += 2) {
-        const ar = a[x] as number;
-        const ai = a[x + 1] as number;
-        const br = b[x] as number;
-        const bi = b[x + 1] as number;
-        re += ar * br + ai * bi;
-        im += ar * bi - ai * br;
-      }
+      const { re, im } = overlap(a, members[j] as Float64Array);
       g[2 * (i * m + j)] = re;
       g[2 * (i * m + j) + 1] = im;
       g[2 * (j * m + i)] = re;

@@ -11,7 +11,7 @@
  * the condensate number, its fraction, the depletion, V_min and the
  * departure of the mean field from the classical one.
  */
-import { leadingMode } from "./density-matrix.js";
+import { leadingMode, overlap } from "./density-matrix.js";
 import { gramLeadingEigenvalue, gramMatrix } from "./gram.js";
 import { SeededRandom } from "../math/random.js";
 
@@ -74,21 +74,10 @@ function perMember(members: readonly Float64Array[], mode: Float64Array): { bRe:
   const bIm = new Float64Array(m);
   const total = new Float64Array(m);
   members.forEach((a, j) => {
-    let re = 0;
-    let im = 0;
-    let t = 0;
-    for (let x = 0; x < a.length; x += 2) {
-      const ar = a[x] as number;
-      const ai = a[x + 1] as number;
-      const pr = mode[x] as number;
-      const pi = mode[x + 1] as number;
-      re += pr * ar + pi * ai;
-      im += pr * ai - pi * ar;
-      t += ar * ar + ai * ai;
-    }
-    bRe[j] = re;
-    bIm[j] = im;
-    total[j] = t;
+    const b = overlap(mode, a);
+    bRe[j] = b.re;
+    bIm[j] = b.im;
+    total[j] = overlap(a, a).re;
   });
   return { bRe, bIm, total };
 }

@@ -8,9 +8,8 @@ import fs from "node:fs";
 import path from "node:path";
 import { InputError } from "../core/errors.js";
 import { formatNumber } from "../core/format.js";
-import { writeFileAtomic } from "../io/atomic.js";
 import { ensemblePlot } from "./ensemble-plot.js";
-import { esc, figure, STYLESHEET, table } from "./report-parts.js";
+import { esc, figure, table, writePage } from "./report-parts.js";
 
 type Pair = { value: number; error: number };
 interface EnsembleSummary {
@@ -82,17 +81,7 @@ export async function writeEnsembleReport(dir: string, outFile?: string): Promis
   if (!fs.existsSync(path.join(dir, "summary.json"))) throw new InputError(`${dir}: the ensemble has no summary.json yet (fewer than 2 members done); run psibox ensemble on its config again`);
   const name = (JSON.parse(fs.readFileSync(path.join(dir, "summary.json"), "utf8")) as EnsembleSummary).name;
   const config = fs.existsSync(path.join(dir, "config.toml")) ? fs.readFileSync(path.join(dir, "config.toml"), "utf8") : "";
-  const html = `<!doctype html>
-<html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1"><title>psibox ensemble: ${esc(name)}</title>
-<style>${STYLESHEET}</style></head><body>
-<h1>psibox ensemble “${esc(name)}”</h1>
-<p>Folder: <code>${esc(dir)}</code>.</p>
-${await ensembleSection(dir)}
-<h2 id="parameters">Parameters</h2>
-<pre>${esc(config)}</pre>
-</body></html>
-`;
   const target = outFile ?? path.join(dir, "report.html");
-  writeFileAtomic(target, html);
+  writePage(target, `psibox ensemble: ${name}`, `psibox ensemble “${name}”`, `<p>Folder: <code>${esc(dir)}</code>.</p>\n${await ensembleSection(dir)}`, config);
   return target;
 }

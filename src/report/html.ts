@@ -8,14 +8,13 @@ import fs from "node:fs";
 import path from "node:path";
 import { InputError } from "../core/errors.js";
 import { formatNumber, formatQuantity } from "../core/format.js";
-import { writeFileAtomic } from "../io/atomic.js";
 import { readSnapshot } from "../io/snapshot.js";
 import { analyzeRun, type RunAnalysisOptions } from "./analyze.js";
 import { diagnosticsSection } from "./diagnostics-section.js";
 import { haloSection } from "./halo-section.js";
 import { axisUnit } from "./snapshot-pictures.js";
 import { ensembleSection } from "./ensemble-report.js";
-import { breakdownSection, clockSentence, twinSentence, outflowSentence, modeSentence, esc, figure, STYLESHEET, table, type ClockEntry } from "./report-parts.js";
+import { breakdownSection, clockSentence, twinSentence, outflowSentence, modeSentence, esc, figure, table, writePage, type ClockEntry } from "./report-parts.js";
 
 interface RunSummary {
   name?: string;
@@ -125,11 +124,7 @@ export async function writeReport(runDir: string, outFile?: string, options: Run
     figure(last?.figures["projection"], "Column density at the end (mass per area along the line of sight)."),
     figure(analysis.figures["spacetime"], "Density against position and time, one band per snapshot."),
   ].join("");
-  const html = `<!doctype html>
-<html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1"><title>psibox report: ${esc(String(summary.name))}</title>
-<style>${STYLESHEET}</style></head><body>
-<h1>psibox run “${esc(String(summary.name))}”</h1>
-${overview(summary, runDir, first?.file)}
+  const body = `${overview(summary, runDir, first?.file)}
 <h2 id="clocks">Quantum clocks</h2>
 ${clockSection}
 ${breakdownSection(summary as unknown as Record<string, unknown>, analysis.figures["breakdown"])}
@@ -146,12 +141,8 @@ ${peaksTable(last?.dir, dims)}
 <h2 id="power">Power spectrum</h2>
 <div class="figs">${figure(first?.figures["power"], "At the start.")}${figure(last?.figures["power"], "At the end.")}</div>
 ${diagnosticsSection(first, last, { img: figure, esc })}
-${haloSection(last?.dir, analysis.tracks, analysis.figures, dims)}
-<h2 id="parameters">Parameters</h2>
-<pre>${esc(config)}</pre>
-</body></html>
-`;
+${haloSection(last?.dir, analysis.tracks, analysis.figures, dims)}`;
   const target_ = outFile ?? path.join(runDir, "report.html");
-  writeFileAtomic(target_, html);
+  writePage(target_, `psibox report: ${String(summary.name)}`, `psibox run “${String(summary.name)}”`, body, config);
   return target_;
 }

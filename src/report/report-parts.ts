@@ -6,6 +6,7 @@
 import { formatNumber } from "../core/format.js";
 import type { Figure } from "./render.js";
 import { PNG_SCALE } from "./render.js";
+import { writeFileAtomic } from "../io/atomic.js";
 
 export function esc(s: string): string {
   return s.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;");
@@ -98,6 +99,20 @@ td:first-child,th:first-child{text-align:left}
 pre{background:#f7f7f7;padding:1em;overflow-x:auto;font-size:.8em;white-space:pre-wrap}
 .verdict li{margin:.2em 0}.note{color:#555;font-size:.9em}
 `;
+
+/** Write a whole report page atomically: its title, heading, body and the config it came from. */
+export function writePage(file: string, title: string, heading: string, body: string, config: string): void {
+  const html = `<!doctype html>
+<html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1"><title>${esc(title)}</title>
+<style>${STYLESHEET}</style></head><body>
+<h1>${esc(heading)}</h1>
+${body}
+<h2 id="parameters">Parameters</h2>
+<pre>${esc(config)}</pre>
+</body></html>
+`;
+  writeFileAtomic(file, html);
+}
 
 /** A measured breakdown clock of summary.json. */
 interface MeasuredClockEntry {
