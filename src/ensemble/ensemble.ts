@@ -23,7 +23,7 @@ import { runMembers } from "./pool.js";
 import { reduceEnsemble, type EnsembleReduction } from "./reduce.js";
 import { writeEnsembleOutputs, writeSummary } from "./outputs.js";
 import { summaryOf } from "./summary.js";
-import { checkEnsembleSize, validityWarning } from "./guards.js";
+import { checkEnsembleModel, checkEnsembleSize, validityWarning } from "./guards.js";
 import type { MemberSetup } from "./member.js";
 
 /** Options of an ensemble. */
@@ -81,6 +81,7 @@ export async function runEnsemble(run: ResolvedRun, options: EnsembleOptions): P
   await loadHdf5();
   const reporter = options.reporter ?? silentReporter;
   const settings = resolveEnsemble(run.config);
+  checkEnsembleModel(run);
   const dir = options.dir ?? path.join(run.outputDir, "ensemble");
   checkEnsembleSize(settings, new Grid(run.grid.cells, run.grid.lengths), settings.samples + 1, dir);
   const { setup, grid, particles, warnings } = prepare(run, settings, reporter);

@@ -14,6 +14,7 @@ import { formatNumber } from "../core/format.js";
 import { formatBytes } from "../simulation/memory-estimate.js";
 import type { Grid } from "../grid/grid.js";
 import type { ResolvedEnsemble } from "../config/resolve-ensemble.js";
+import type { ResolvedRun } from "../config/resolve.js";
 
 /** N over the number of modes below which the ensemble warns. */
 export const VALIDITY_RATIO = 10;
@@ -26,6 +27,19 @@ export function validityWarning(particles: number, modes: number): string | unde
     `below ${VALIDITY_RATIO}): the vacuum noise, ${formatNumber(modes / 2, 4)} quanta in all, is a large part of the field and the truncated Wigner method ` +
     "is not reliable; raise ensemble.particles or use fewer cells"
   );
+}
+
+/**
+ * Refuse what the members' equations leave out: a contact interaction and
+ * species beside the first (members advance one field under gravity alone,
+ * so such an ensemble would silently drop part of the model).
+ */
+export function checkEnsembleModel(run: ResolvedRun): void {
+  if (run.contact) {
+    const key = run.contact.decayConstantJ !== undefined ? "particle.decay_constant" : "particle.scattering_length";
+    throw new ConfigError(key, "psibox ensemble advances members under gravity alone, without a contact interaction; remove the key for an ensemble");
+  }
+  if (run.species.length > 0) throw new ConfigError("species", `psibox ensemble advances one species, and the config has ${run.species.length + 1}; remove [[species]] for an ensemble`);
 }
 
 /** Bytes the reduction holds (every member at one sample time) and the folder needs (every member at every time). */

@@ -14,7 +14,7 @@ import { leadingMode } from "../../src/ensemble/density-matrix.js";
 import { gramLeadingEigenvalue, gramMatrix } from "../../src/ensemble/gram.js";
 import { SeededRandom } from "../../src/math/random.js";
 import { bootstrapWeights, sampleStatistics } from "../../src/ensemble/observables.js";
-import { validityWarning } from "../../src/ensemble/guards.js";
+import { checkEnsembleModel, validityWarning } from "../../src/ensemble/guards.js";
 import { ConfigError } from "../../src/core/errors.js";
 import { boxDepletion } from "../helpers/bogoliubov.js";
 import { makeWork, removeWork, writeIn } from "../helpers/cli.js";
@@ -144,6 +144,20 @@ function boxConfig(name: string, cells: number, rho: number, durationMyr: number
     `[ensemble]\nmembers = ${members}\nparticles = 1e8\nsamples = 2\nnoise_seed = 5\n`;
   return resolveRun(loadConfig(writeIn(work, `${name}.toml`, text)), name, work);
 }
+
+describe("what the members' equations leave out", () => {
+  it("refuses a contact interaction and a second species, naming the key, instead of dropping them", () => {
+    const jeans = fs.readFileSync(path.resolve("configs/jeans-collapse-2d.toml"), "utf8");
+    const run = (name: string, text: string) => resolveRun(loadConfig(writeIn(work, `${name}.toml`, text)), name, work);
+    const contact = run("contact", jeans.replace(/\[particle\]\n/, '[particle]\nscattering_length = "1e-80 m"\n'));
+    expect(() => checkEnsembleModel(contact)).toThrow(/^particle\.scattering_length: psibox ensemble advances members under gravity alone/);
+    const axion = run("axion", jeans.replace(/\[particle\]\n/, '[particle]\ndecay_constant = "1e17 GeV"\n'));
+    expect(() => checkEnsembleModel(axion)).toThrow(/^particle\.decay_constant:/);
+    const two = run("two", jeans + '\n[[species]]\nname = "heavy"\nparticle_mass = "4e-22 eV"\n[species.initial]\nkind = "plane-wave"\nmean_density = "1e6 Msun/kpc^3"\ncontrast = 0\n');
+    expect(() => checkEnsembleModel(two)).toThrow(/^species: psibox ensemble advances one species, and the config has 2/);
+    expect(() => checkEnsembleModel(run("plain", jeans))).not.toThrow();
+  });
+});
 
 describe("uniform box: the ensemble's depletion against the exact Bogoliubov Σ_k n_k(t)", () => {
   // N = 1e8 keeps the dynamics of the fluctuations linear (n_k/N < 1e-3), where the method is exact
