@@ -15,7 +15,8 @@ import { vortexCensusPlugin } from "./vortex-census-plugin.js";
 import { flowResolutionPlugin } from "./flow-resolution-plugin.js";
 import { lyapunovPlugin } from "./lyapunov-plugin.js";
 import { depletionPlugin } from "./depletion-plugin.js";
-import { speciesModesPlugin } from "./species-modes-plugin.js";
+import { speciesModesPlugin, type SpeciesOfRun } from "./species-modes-plugin.js";
+import { speciesContacts } from "../simulation/species-energies.js";
 
 /** The built-in plug-ins a resolved config turns on. */
 export function configuredPlugins(run: ResolvedRun): RunPlugin[] {
@@ -29,9 +30,10 @@ export function configuredPlugins(run: ResolvedRun): RunPlugin[] {
   ];
 }
 
-/** Every species of a run of several, the first one's first. */
-function speciesOf(run: ResolvedRun): { name: string; massRatio: number }[] {
-  return [{ name: run.firstSpecies, massRatio: 1 }, ...run.species.map((sp) => ({ name: sp.name, massRatio: sp.massRatio }))];
+/** Every species of a run of several, the first one's first, with its own contact coefficient (code units). */
+function speciesOf(run: ResolvedRun): SpeciesOfRun[] {
+  const contacts = speciesContacts(run, new CodeUnits(run.particleMassKg, run.lengthUnitM));
+  return [{ name: run.firstSpecies, massRatio: 1 }, ...run.species.map((sp) => ({ name: sp.name, massRatio: sp.massRatio }))].map((s, i) => ({ ...s, contact: contacts[i]! }));
 }
 
 /**

@@ -30,36 +30,40 @@ export function criticalMassText(contact: ResolvedContact, particleMassKg: numbe
   return `${msun(criticalMassKg(contact.scatteringLengthM, particleMassKg))} (M_max = 1.0125 ħ/√(G m |a_s|) for ${particleText(contact, particleMassKg)})`;
 }
 
-/** What to change so that a mass `massKg` is stable: less mass, or a weaker interaction (a larger decay constant), or a repulsive one. */
-export function stabilityAdvice(massKg: number, contact: ResolvedContact, particleMassKg: number): string {
+/**
+ * What to change so that a mass `massKg` is stable: less mass, or a weaker interaction (a larger decay constant), or a repulsive one.
+ * @param table the config table holding the interaction ("particle", or a species' "species[0]")
+ */
+export function stabilityAdvice(massKg: number, contact: ResolvedContact, particleMassKg: number, table = "particle"): string {
   const limit = criticalMassKg(contact.scatteringLengthM, particleMassKg);
   const a = criticalScatteringLengthM(massKg, particleMassKg);
   const weaker =
     contact.decayConstantJ !== undefined
-      ? `particle.decay_constant above ${formatNumber(decayConstantOf(a, particleMassKg) / J_PER_EV / 1e9)} GeV`
-      : `|particle.scattering_length| below ${formatNumber(a)} m`;
+      ? `${table}.decay_constant above ${formatNumber(decayConstantOf(a, particleMassKg) / J_PER_EV / 1e9)} GeV`
+      : `|${table}.scattering_length| below ${formatNumber(a)} m`;
   return `use less mass (below ${msun(limit)}), a weaker interaction (${weaker}) or a repulsive one`;
 }
 
-/** The masses [code] and config keys of the solitons a config relaxes by imaginary time (3D only). */
-function relaxedMasses(initial: ResolvedInitial, dims: number): { key: string; mass: number }[] {
+/** The masses [code] and config keys of the solitons a config relaxes by imaginary time (3D only); `at` prefixes the keys. */
+function relaxedMasses(initial: ResolvedInitial, dims: number, at: string): { key: string; mass: number }[] {
   if (dims !== 3) return [];
-  if (initial.kind === "ground-state") return [{ key: "initial.mass", mass: initial.mass }];
-  if (initial.kind === "solitons" && initial.profile === "relaxed") return initial.solitons.map((s, i) => ({ key: `initial.soliton[${i}].mass`, mass: s.mass }));
+  if (initial.kind === "ground-state") return [{ key: `${at}initial.mass`, mass: initial.mass }];
+  if (initial.kind === "solitons" && initial.profile === "relaxed") return initial.solitons.map((s, i) => ({ key: `${at}initial.soliton[${i}].mass`, mass: s.mass }));
   return [];
 }
 
 /**
  * Refuse a 3D config that relaxes a soliton above the largest stable mass of an attractive
  * interaction: no ground state exists, imaginary time would only collapse it.
+ * @param species a later species' table ("species[0]"), whose keys the message names; the first species' by default
  */
-export function checkRelaxedMasses(initial: ResolvedInitial, dims: number, units: CodeUnits, contact: ResolvedContact | undefined, particleMassKg: number): void {
+export function checkRelaxedMasses(initial: ResolvedInitial, dims: number, units: CodeUnits, contact: ResolvedContact | undefined, particleMassKg: number, species?: string): void {
   if (!contact || contact.scatteringLengthM >= 0) return;
   const limit = criticalMassKg(contact.scatteringLengthM, particleMassKg);
-  for (const { key, mass } of relaxedMasses(initial, dims)) {
+  for (const { key, mass } of relaxedMasses(initial, dims, species ? `${species}.` : "")) {
     const kg = units.toSI(mass, "mass");
     if (kg > limit) {
-      throw new ConfigError(key, `${msun(kg)} is above the largest stable soliton, ${criticalMassText(contact, particleMassKg)}: no ground state exists to relax to; ${stabilityAdvice(kg, contact, particleMassKg)}`);
+      throw new ConfigError(key, `${msun(kg)} is above the largest stable soliton, ${criticalMassText(contact, particleMassKg)}: no ground state exists to relax to; ${stabilityAdvice(kg, contact, particleMassKg, species)}`);
     }
   }
 }

@@ -192,6 +192,7 @@ export const speciesSchema = z.strictObject({
   name: z.string(),
   /** Its particle mass, e.g. "4e-22 eV". */
   particle_mass: quantity,
+  ...contactKeys,
   /** Its initial field: a table of any [initial] kind. */
   initial: initialSchema.optional(),
 });

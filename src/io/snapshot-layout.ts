@@ -16,7 +16,9 @@
  *                          |ψ|² the comoving mass density (of the first species in a run of several)
  *   several species        (optional; a file without them holds one species) global attributes
  *                          species (the names, space-separated, the first one's field in psi_re/psi_im),
- *                          species_particle_mass [eV] and species_mass [Msun], one per name; mass is then
+ *                          species_particle_mass [eV], species_mass [Msun] and species_scattering_length
+ *                          [m] (each species' own contact interaction, 0 for none; with
+ *                          species_scattering_length_units = "m"; files written before it lack it), one per name; mass is then
  *                          their total and particle_mass the first species'; psi_re and psi_im carry an
  *                          attribute species = the first name, and each later species NAME has its own
  *                          /psi_re_NAME, /psi_im_NAME (same form and units) with attributes species,
@@ -51,7 +53,7 @@ export const PSI_IM = "psi_im";
 /** The variables of a later species' field (several species; the first one's are PSI_RE and PSI_IM). */
 export const speciesVariables = (name: string): readonly [string, string] => [`${PSI_RE}_${name}`, `${PSI_IM}_${name}`];
 /** Global attributes of a file of several species. */
-export const SPECIES_ATTRS = { names: "species", particleMass: "species_particle_mass", mass: "species_mass" } as const;
+export const SPECIES_ATTRS = { names: "species", particleMass: "species_particle_mass", mass: "species_mass", scatteringLength: "species_scattering_length" } as const;
 
 /** Names inside the checkpoint's /state group. */
 export const STATE = {

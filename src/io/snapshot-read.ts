@@ -83,7 +83,10 @@ function speciesOf(f: H5File, file: string): { species?: SpeciesMeta[] } {
   if (masses.length !== names.length || totals.length !== names.length) {
     throw new InputError(`${file}: the attributes ${SPECIES_ATTRS.particleMass} and ${SPECIES_ATTRS.mass} need one value per species (${names.length})`);
   }
-  return { species: names.map((name, i) => ({ name, particleMassEv: masses[i]!, massMsun: totals[i]! })) };
+  // files written before the species' contact interactions were recorded lack their scattering lengths
+  const lengths = hasAttr(f, SPECIES_ATTRS.scatteringLength) ? numbersOf(f, SPECIES_ATTRS.scatteringLength, file) : undefined;
+  if (lengths && lengths.length !== names.length) throw new InputError(`${file}: the attribute ${SPECIES_ATTRS.scatteringLength} needs one value per species (${names.length})`);
+  return { species: names.map((name, i) => ({ name, particleMassEv: masses[i]!, massMsun: totals[i]!, ...(lengths ? { scatteringLengthM: lengths[i]! } : {}) })) };
 }
 
 /** The fields of the species after the first. */

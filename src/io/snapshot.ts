@@ -53,7 +53,7 @@ export interface SnapshotMeta {
   readonly massMsun: number;
   readonly config: string;
   readonly configSha256: string;
-  /** Several species: each one's name, particle mass [eV] and mass [Msun], the first one's field in `psi`. */
+  /** Several species: each one's name, particle mass [eV], mass [Msun] and scattering length [m], the first one's field in `psi`. */
   readonly species?: readonly SpeciesMeta[];
 }
 
@@ -62,6 +62,8 @@ export interface SpeciesMeta {
   readonly name: string;
   readonly particleMassEv: number;
   readonly massMsun: number;
+  /** Its own contact interaction's scattering length a_s [m] (0: none); undefined when read from a file written before it was recorded. */
+  readonly scatteringLengthM?: number;
 }
 
 /** The exact code-unit state a checkpoint carries for a bit-exact resume. */
@@ -224,6 +226,8 @@ function writeGlobals(f: H5File, m: SnapshotMeta): void {
     textAttr(f, SPECIES_ATTRS.names, m.species.map((s) => s.name).join(" "));
     numbersAttr(f, SPECIES_ATTRS.particleMass, m.species.map((s) => s.particleMassEv));
     numbersAttr(f, SPECIES_ATTRS.mass, m.species.map((s) => s.massMsun));
+    numbersAttr(f, SPECIES_ATTRS.scatteringLength, m.species.map((s) => s.scatteringLengthM ?? 0));
+    textAttr(f, `${SPECIES_ATTRS.scatteringLength}_units`, "m");
   }
 }
 

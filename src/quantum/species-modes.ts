@@ -19,6 +19,14 @@
  * potential energy is W = Σ_i W_ii + Σ_{i<j} W_ij. In free space χ_ij < 0;
  * periodic gravity takes the mean density out of the source, so modes far
  * apart in the box can have χ_ij > 0.
+ *
+ * A species with its own contact interaction (g_i in code units: the term
+ * g_i ρ_i it adds to the potential per unit mass, g_SI,i = g_i m_i²) adds
+ * (g_SI,i/2)∫ψ̂_i†ψ̂_i†ψ̂_i ψ̂_i = (ħχ_SI,i/2) b_i†b_i†b_i b_i to its own
+ * mode: ħχ_SI,i = g_SI,i ∫|φ_i|⁴ = 2U_i/N_i² with U_i = (g_i/2)∫ρ_i² dV, so
+ * χ_i = χ_grav,i + χ_SI,i. The cross coefficient stays gravitational: each
+ * species' contact term acts on its own density only (the equations have
+ * no inter-species contact term), so no b_i†b_j†b_j b_i term arises.
  */
 import type { Grid } from "../grid/grid.js";
 import type { PoissonSolver } from "../fields/poisson.js";
@@ -26,15 +34,17 @@ import { ComplexFft } from "../fields/fft.js";
 import { kineticEnergy, potentialEnergy } from "../diagnostics/energies.js";
 import { coefficientsFrom, type ModeCoefficients } from "./mode.js";
 
-/** One species' field in the first species' code units and its particle mass ratio μ = m_i/m. */
+/** One species' field in the first species' code units, its particle mass ratio μ = m_i/m and its own contact coefficient. */
 export interface SpeciesField {
   readonly psi: Float64Array;
   readonly massRatio: number;
+  /** g_i in the first species' code units (physics/contact.ts `contactCode` with μ_i); 0 or absent: none. */
+  readonly contact?: number;
 }
 
 /** The modes of every species and the cross coefficients of each pair (i < j). */
 export interface SpeciesModes {
-  /** Each species' own mode (its particles, ω from its kinetic energy, χ from its own potential). */
+  /** Each species' own mode (its particles, ω from its kinetic energy, χ from its own potential plus its contact part `chiContact`). */
   readonly modes: readonly ModeCoefficients[];
   /** χ_ij [1/code time] and the mutual energy W_ij [code energy] of species i and j, i < j. */
   readonly cross: readonly { readonly i: number; readonly j: number; readonly chi: number; readonly energy: number }[];
@@ -67,11 +77,14 @@ export function speciesModes(grid: Grid, fields: readonly SpeciesField[], a: num
     const mass = rho.reduce((s, r) => s + r, 0) * grid.cellVolume;
     const kinetic = kineticEnergy(grid, f.psi, a, fft, scratch) / (f.massRatio * f.massRatio);
     const potential = potentialEnergy(grid, f.psi, phis[i]!, a);
-    const rhoEff = rho.reduce((s, r) => s + r * r, 0) / (mass / grid.cellVolume);
+    const rho2 = rho.reduce((s, r) => s + r * r, 0);
+    const rhoEff = rho2 / (mass / grid.cellVolume);
     const base = coefficientsFrom(mass, kinetic, potential, rhoEff, a, particleMass * f.massRatio);
     const N = particles[i]!;
-    const chi = (2 * potential) / (N * N * hbar);
-    return { ...base, omega: kinetic / (N * hbar), chi, rate: N * Math.abs(chi) };
+    // ħχ_SI = 2U/N², U = (g/2)∫ρ² dV/a³ (the physical density ρ/a³ over the physical volume a³dV)
+    const chiContact = f.contact ? (f.contact * rho2 * grid.cellVolume) / (a ** 3 * N * N * hbar) : 0;
+    const chi = (2 * potential) / (N * N * hbar) + chiContact;
+    return { ...base, omega: kinetic / (N * hbar), chi, chiContact, rate: N * Math.abs(chi) };
   });
   const cross: { i: number; j: number; chi: number; energy: number }[] = [];
   for (let i = 0; i < fields.length; i++) {

@@ -88,18 +88,25 @@ function energyTable(summary: Record<string, unknown>): string {
 
 /** Each species at the end and their total (a run of several species), with their modes' coefficients; empty otherwise. */
 function speciesTable(summary: Record<string, unknown>): string {
-  type Energies = { kinetic: number; potential: number; total: number };
-  const sp = summary["species"] as { each: { name: string; particle_mass_eV: number; mass_Msun: number; energies_Msun_km2_s2: Energies; particles_N: number; chi_per_s: number }[]; total: { mass_Msun: number; energies_Msun_km2_s2: Energies }; cross: { species: string[]; chi_per_s: number }[] } | undefined;
+  type Energies = { kinetic: number; potential: number; contact?: number; total: number };
+  type Each = { name: string; particle_mass_eV: number; mass_Msun: number; energies_Msun_km2_s2: Energies; particles_N: number; chi_per_s: number; chi_contact_per_s?: number };
+  const sp = summary["species"] as { each: Each[]; total: { mass_Msun: number; energies_Msun_km2_s2: Energies }; cross: { species: string[]; chi_per_s: number }[] } | undefined;
   if (!sp) return "";
   const unit = "Msun (km/s)²";
+  // a species' own contact energy U_i and its mode's contact part χ_SI,i, when a species has a contact term
+  const withContact = sp.total.energies_Msun_km2_s2.contact !== undefined;
+  const c = <T>(values: T[]): T[] => (withContact ? values : []);
+  const energies = (e: Energies) => [e.kinetic, e.potential, ...c([e.contact]), e.total];
   const rows = [
-    ...sp.each.map((e) => [e.name, e.particle_mass_eV, e.mass_Msun, e.energies_Msun_km2_s2.kinetic, e.energies_Msun_km2_s2.potential, e.energies_Msun_km2_s2.total, e.particles_N, e.chi_per_s]),
-    ["total", undefined, sp.total.mass_Msun, sp.total.energies_Msun_km2_s2.kinetic, sp.total.energies_Msun_km2_s2.potential, sp.total.energies_Msun_km2_s2.total, undefined, undefined],
+    ...sp.each.map((e) => [e.name, e.particle_mass_eV, e.mass_Msun, ...energies(e.energies_Msun_km2_s2), e.particles_N, e.chi_per_s, ...c([e.chi_contact_per_s])]),
+    ["total", undefined, sp.total.mass_Msun, ...energies(sp.total.energies_Msun_km2_s2), undefined, undefined, ...c([undefined])],
   ];
-  const cross = sp.cross.map((c) => `χ between the modes of ${c.species.join(" and ")}: ${formatNumber(c.chi_per_s)} /s`).join("; ");
+  const cross = sp.cross.map((x) => `χ between the modes of ${x.species.join(" and ")}: ${formatNumber(x.chi_per_s)} /s`).join("; ");
+  const total = withContact ? "K_i + W_i + U_i" : "K_i + W_i";
+  const header = ["species", "particle mass [eV]", "mass [Msun]", `kinetic K_i [${unit}]`, `potential W_i (shared Φ) [${unit}]`, ...c([`contact U_i [${unit}]`]), `${total} [${unit}]`, "mode N_i", withContact ? "mode χ_i (own Φ and contact) [1/s]" : "mode χ_i (own Φ) [1/s]", ...c(["its contact part χ_SI,i [1/s]"])];
   return `<h3>Species at the end</h3>
-${table(["species", "particle mass [eV]", "mass [Msun]", `kinetic K_i [${unit}]`, `potential W_i (shared Φ) [${unit}]`, `K_i + W_i [${unit}]`, "mode N_i", "mode χ_i (own Φ) [1/s]"], rows)}
-<p class="note">${esc(cross)}. The table above this one and the pictures are of the first species' field.</p>`;
+${table(header, rows)}
+<p class="note">${esc(cross)} (gravity only: the species have no contact term between them). The table above this one and the pictures are of the first species' field.</p>`;
 }
 
 /** Write <run>/report.html (and the analysis it shows under <run>/analysis); returns the report's path. */

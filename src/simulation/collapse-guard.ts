@@ -57,14 +57,15 @@ function massAroundPeak(stepper: SplitStepper, radius: number): number {
 
 /**
  * The collapsing mass against the critical mass, and what to change: above it, less mass or a weaker
- * interaction; below it, finer cells (the grid cannot hold the stable soliton).
+ * interaction; below it, finer cells (the grid cannot hold the stable soliton). `table` names the config
+ * table of the interaction (a species' "species[0]"; "particle" by default).
  */
-export function collapseVerdict(massKg: number, dims: number, contact: ResolvedContact, particleMassKg: number): string {
+export function collapseVerdict(massKg: number, dims: number, contact: ResolvedContact, particleMassKg: number, table?: string): string {
   const depth = dims === 3 ? "" : ` (of a ${dims}D field, over its depth; the limit is that of a 3D soliton)`;
   const limit = criticalMassText(contact, particleMassKg);
   const mass = `${formatNumber(massKg / M_SUN_KG)} Msun${depth}`;
   if (massKg > criticalMassKg(contact.scatteringLengthM, particleMassKg)) {
-    return `${mass}, above the largest stable soliton, ${limit}; ${stabilityAdvice(massKg, contact, particleMassKg)}`;
+    return `${mass}, above the largest stable soliton, ${limit}; ${stabilityAdvice(massKg, contact, particleMassKg, table)}`;
   }
   return `${mass}, below the largest stable soliton, ${limit}, so the cells are too coarse for it: use more grid.cells or a smaller grid.box, or less mass`;
 }

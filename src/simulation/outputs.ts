@@ -89,14 +89,15 @@ export class RunWriter {
     };
   }
 
-  /** Several species: their names, particle masses and masses (the first is the reference field). */
+  /** Several species: their names, particle masses, masses and scattering lengths (the first is the reference field). */
   private speciesMeta(stepper: SplitStepper): Pick<SnapshotMeta, "species"> {
     const run = this.run;
     if (run.species.length === 0) return {};
     const masses = speciesMasses(stepper, run.species.length);
     const eV = [run.particleMassKg, ...run.species.map((sp) => sp.particleMassKg)].map((m) => m / KG_PER_EV);
     const names = [run.firstSpecies, ...run.species.map((sp) => sp.name)];
-    return { species: names.map((name, i) => ({ name, particleMassEv: eV[i]!, massMsun: this.scales.massMsun(masses[i]!) })) };
+    const lengths = [run.contact, ...run.species.map((sp) => sp.contact)].map((c) => c?.scatteringLengthM ?? 0);
+    return { species: names.map((name, i) => ({ name, particleMassEv: eV[i]!, massMsun: this.scales.massMsun(masses[i]!), scatteringLengthM: lengths[i]! })) };
   }
 
   /** The factor from code ψ to physical ψ (√ of the density unit), applied as snapshots are written. */

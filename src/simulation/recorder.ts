@@ -6,14 +6,15 @@
 import { CsvWriter } from "../io/csv-writer.js";
 import { InputError } from "../core/errors.js";
 import type { RunSession, RunStart } from "./session.js";
-import { maxSummedDensity, speciesEnergies, type SpeciesEnergy } from "./species-energies.js";
+import { maxSummedDensity, speciesContacts, speciesEnergies, type SpeciesEnergy } from "./species-energies.js";
 
 const ENERGY_UNIT = "Msun_km2_s2";
 
 /**
- * The run's own time-series columns (before the plug-ins'); `contact` adds the interaction energy before
- * the total. With several species (`species`: every species' name, the first's first) mass, kinetic,
- * potential and max density are totals over them, followed by each species' mass, kinetic and potential energy.
+ * The run's own time-series columns (before the plug-ins'); `contact` (any species with a contact term) adds
+ * the interaction energy before the total. With several species (`species`: every species' name, the first's
+ * first) mass, kinetic, potential, contact and max density are totals over them, followed by each species'
+ * mass, kinetic and potential energy, and its own contact energy when `contact`.
  */
 export function coreColumns(timeUnit: string, expanding: boolean, contact = false, species: readonly string[] = []): string[] {
   return [
@@ -28,7 +29,7 @@ export function coreColumns(timeUnit: string, expanding: boolean, contact = fals
     ...(contact ? [`contact_${ENERGY_UNIT}`] : []),
     `total_${ENERGY_UNIT}`,
     "max_density_Msun_kpc3",
-    ...species.flatMap((name) => [`mass_${name}_Msun`, `kinetic_${name}_${ENERGY_UNIT}`, `potential_${name}_${ENERGY_UNIT}`]),
+    ...species.flatMap((name) => [`mass_${name}_Msun`, `kinetic_${name}_${ENERGY_UNIT}`, `potential_${name}_${ENERGY_UNIT}`, ...(contact ? [`contact_${name}_${ENERGY_UNIT}`] : [])]),
   ];
 }
 
@@ -43,6 +44,8 @@ export class RunRecorder {
   private readonly session: RunSession;
   private readonly start: RunStart;
   private readonly series: CsvWriter;
+  /** Each species' contact coefficient (code units), the first's first. */
+  private readonly contacts: readonly number[];
   /** Snapshots written so far (the next snapshot's number). */
   snapshotsWritten: number;
 
@@ -50,7 +53,8 @@ export class RunRecorder {
     this.session = session;
     this.start = start;
     this.snapshotsWritten = start.snapshotsWritten;
-    const columns = [...coreColumns(session.scales.timeUnit, session.expanding, session.stepper.contact !== 0, speciesNames(session)), ...session.plugins.columns];
+    this.contacts = speciesContacts(session.run, session.scales.units);
+    const columns = [...coreColumns(session.scales.timeUnit, session.expanding, this.contacts.some((g) => g !== 0), speciesNames(session)), ...session.plugins.columns];
     const twice = columns.find((c, i) => columns.indexOf(c) !== i);
     if (twice !== undefined) throw new InputError(`time-series column "${twice}" is declared twice (a plug-in's columns must be new)`);
     const limiter = columns.indexOf("limiter");
@@ -62,18 +66,17 @@ export class RunRecorder {
 
   /** A time-series row of the current state. */
   row(step: number, dt: number, limiter: string): void {
-    const { stepper, background, grid, scales, expanding, plugins, run } = this.session;
+    const { stepper, background, scales, expanding, plugins, run } = this.session;
     const t = stepper.time;
     const a = background.scaleFactor(t);
-    // K = ½∫|∇ψ|²/a² (spectral, on the step's own transforms), W = ½∫ρφ/a, per species and summed; U = ½g∫ρ² (static runs only)
-    const each = speciesEnergies(stepper, run.species.map((sp) => sp.massRatio), a);
+    // K = ½∫|∇ψ|²/a² (spectral, on the step's own transforms), W = ½∫ρφ/a, U = ½g∫ρ², per species and summed
+    const each = speciesEnergies(stepper, run.species.map((sp) => sp.massRatio), a, this.contacts);
     const sum = (f: (e: SpeciesEnergy) => number) => each.reduce((s, e) => s + f(e), 0);
-    const [M, K, W] = [sum((e) => e.mass), sum((e) => e.kinetic), sum((e) => e.potential)];
-    const moments = stepper.moments();
-    const contact = stepper.contact !== 0 ? [0.5 * stepper.contact * moments.rho2 * grid.cellVolume] : [];
-    const energies = [K, W, ...contact, K + W + (contact[0] ?? 0)].map((e) => scales.energy(e));
-    const maxRho = run.species.length ? maxSummedDensity(stepper, run.species.length) : moments.maxRho;
-    const perSpecies = run.species.length ? each.flatMap((e) => [scales.massMsun(e.mass), scales.energy(e.kinetic), scales.energy(e.potential)]) : [];
+    const [M, K, W, U] = [sum((e) => e.mass), sum((e) => e.kinetic), sum((e) => e.potential), sum((e) => e.contact)];
+    const withContact = this.contacts.some((g) => g !== 0);
+    const energies = [K, W, ...(withContact ? [U] : []), K + W + U].map((e) => scales.energy(e));
+    const maxRho = run.species.length ? maxSummedDensity(stepper, run.species.length) : stepper.moments().maxRho;
+    const perSpecies = run.species.length ? each.flatMap((e) => [scales.massMsun(e.mass), scales.energy(e.kinetic), scales.energy(e.potential), ...(withContact ? [scales.energy(e.contact)] : [])]) : [];
     const own = [scales.time(dt), limiter, scales.massMsun(M), ...energies, scales.density(maxRho), ...perSpecies];
     this.series.row([step, scales.time(t), ...(expanding ? [a, 1 / a - 1] : []), ...own, ...plugins.row({ step, t, a }, () => stepper.rawPsi, () => [stepper.psi, ...run.species.map((_, i) => stepper.field(i + 1))])]);
   }

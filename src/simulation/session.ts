@@ -6,7 +6,6 @@
 import { RelaxationCollapse } from "../ground-state/imaginary-time.js";
 import { collapseVerdict } from "./collapse-guard.js";
 import { M_SUN_KG } from "../physics/constants.js";
-import { contactCode } from "../physics/contact.js";
 import fs from "node:fs";
 import { Grid } from "../grid/grid.js";
 import { makePoissonSolver, type PoissonSolver } from "../fields/poisson.js";
@@ -17,6 +16,7 @@ import type { FieldKind } from "../integrators/extra-fields.js";
 import { buildInitialField, type InitialField } from "../initial-conditions/build.js";
 import { snapshotInitialField } from "./snapshot-start.js";
 import { speciesInitialField } from "./species-start.js";
+import { speciesContacts } from "./species-energies.js";
 import { cleanStaleTemporaries, writeFileAtomic } from "../io/atomic.js";
 import { readCheckpoint, type CheckpointState } from "../io/snapshot.js";
 import { checkMemory, describeEstimate, formatBytes, type MemoryEstimate } from "./memory-estimate.js";
@@ -100,11 +100,12 @@ export function openSession(run: ResolvedRun, options: RunOptions): RunSession {
   const writer = new RunWriter(run, scales, configText, sha256(configText));
   const { threads, fft } = run.integrator;
   // the stepper's extra fields: the later species in order, then the plug-ins' fields in the plug-ins' order
-  const species: FieldKind[] = run.species.map((sp) => ({ kind: "species", massRatio: sp.massRatio }));
+  // each species' own contact coefficient g_i (the first one's is the stepper's): it acts on its own density only
+  const [contact, ...later] = speciesContacts(run, scales.units);
+  const species: FieldKind[] = run.species.map((sp, i) => ({ kind: "species", massRatio: sp.massRatio, contact: later[i]! }));
   const fields: FieldKind[] = [...species, ...plugins.fields.map((f): FieldKind => ({ kind: f.kind }))];
   // refuse a grid that cannot fit before anything is allocated
   const memory = checkMemory({ cells: run.grid.cells, gravity: run.grid.gravity, threads, fft, fields });
-  const contact = run.contact ? contactCode(run.contact.scatteringLengthM, scales.units) : 0;
   const stepper =
     threads > 1 ? new ThreadedStepper(grid, background, gravity, threads, fft, {}, fields, contact) : new SplitStepper(grid, background, gravity, fft, 1, fields, contact);
   plugins.attach((first, count) => fieldsHandle(stepper, first, count));
@@ -219,7 +220,7 @@ function startSpecies(session: RunSession, progress: (info: { iteration: number 
   run.species.forEach((sp, i) => {
     const relaxing = sp.initial.kind === "ground-state" || (sp.initial.kind === "solitons" && sp.initial.profile === "relaxed");
     if (relaxing) reporter.phase(`relaxing the species ${sp.name}`);
-    const built = speciesInitialField(run, sp, session.grid, session.gravity, progress);
+    const built = speciesInitialField(run, sp, i, session.grid, session.gravity, progress);
     if (relaxing) reporter.endPhase();
     if (built.relaxation) writer.log(`species ${sp.name}: ground state relaxed in ${built.relaxation.iterations} iterations (converged: ${built.relaxation.converged})`);
     for (const w of built.warnings ?? []) {

@@ -58,8 +58,8 @@ function field(cells: number[], boxKpc: number[], lcdm: boolean): Snapshot {
 function twoSpecies(snap: Snapshot): Snapshot {
   const m = snap.meta.massMsun;
   const species = [
-    { name: "light", particleMassEv: 1e-22, massMsun: m },
-    { name: "heavy", particleMassEv: 4e-22, massMsun: m / 4 },
+    { name: "light", particleMassEv: 1e-22, massMsun: m, scatteringLengthM: 0 },
+    { name: "heavy", particleMassEv: 4e-22, massMsun: m / 4, scatteringLengthM: -2.5e-79 },
   ];
   return { ...snap, meta: { ...snap.meta, massMsun: 1.25 * m, species }, speciesPsi: [snap.psi.map((v) => v / 2)] };
 }
@@ -83,6 +83,8 @@ def look(file, raw):
   later = {n: float((ds["psi_re_" + n].values.astype("f8") ** 2 + ds["psi_im_" + n].values.astype("f8") ** 2).sum() * np.prod(dx) * depth) for n in names[1:]}
   return {
     "species": names, "species_of": [ds[v].attrs.get("species") for v in pairs], "species_mass": later,
+    "scattering": [float(a) for a in np.atleast_1d(ds.attrs["species_scattering_length"])] if names else None,
+    "scattering_units": ds.attrs.get("species_scattering_length_units"),
     "dims": dims, "coords": coords, "mass": mass,
     "units": {v: ds[v].attrs.get("units") for v in dims + ["psi_re", "psi_im"]},
     "long_name": ds["psi_re"].attrs.get("long_name"),
@@ -135,6 +137,10 @@ describe.skipIf(python === undefined && noPython !== undefined)(`snapshots in xa
       expect(seen.species).toEqual(species ? ["light", "heavy"] : []);
       expect(seen.species_of).toEqual([species ? "light" : null, ...(species ? ["heavy"] : [])]);
       if (species) expect(Math.abs(seen.species_mass.heavy / (exact / 4) - 1)).toBeLessThan(1e-12);
+      // each species' own scattering length (0: none) beside its particle mass, and psibox's reader agrees
+      expect(seen.scattering).toEqual(species ? [0, -2.5e-79] : null);
+      expect(seen.scattering_units).toBe(species ? "m" : null);
+      if (species) expect(readSnapshot(file).meta.species?.map((s) => s.scatteringLengthM)).toEqual([0, -2.5e-79]);
       expect(seen.attrs).toEqual({
         Conventions: "CF-1.10",
         time_units: lcdm ? "Gyr" : "Myr",

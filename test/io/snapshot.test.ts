@@ -6,6 +6,7 @@ import os from "node:os";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import h5wasm from "h5wasm/node";
 import { loadHdf5 } from "../../src/io/h5.js";
 import { readSnapshot, writeSnapshot, type Snapshot, type SnapshotMeta } from "../../src/io/snapshot.js";
 import { seededRandom } from "../helpers/fields.js";
@@ -57,6 +58,26 @@ describe("snapshot round trip", () => {
       });
     }
   }
+
+  it("several species: each one's scattering length round-trips; a file written before it was recorded still reads, without it", () => {
+    const base = snapshot([8, 8]);
+    const species = [
+      { name: "light", particleMassEv: 1e-22, massMsun: 1e10, scatteringLengthM: 1e-80 },
+      { name: "heavy", particleMassEv: 3e-22, massMsun: 5e9, scatteringLengthM: 0 },
+    ];
+    const snap: Snapshot = { ...base, meta: { ...base.meta, species }, speciesPsi: [base.psi.map((v) => v / 2)] };
+    const file = path.join(dir, "species.h5");
+    writeSnapshot(file, snap);
+    expect(readSnapshot(file).meta.species).toEqual(species);
+    // the layout before species_scattering_length: the same file without the attribute
+    const h5 = new h5wasm.File(file, "a");
+    h5.delete_attribute("species_scattering_length");
+    h5.delete_attribute("species_scattering_length_units");
+    h5.close();
+    const old = readSnapshot(file);
+    expect(old.meta.species).toEqual(species.map(({ scatteringLengthM: _, ...s }) => s));
+    expect(Array.from(old.speciesPsi![0]!)).toEqual(Array.from(snap.speciesPsi![0]!));
+  });
 
   it("a checkpoint keeps its exact code-unit state", () => {
     const snap = snapshot([8, 8], "checkpoint");

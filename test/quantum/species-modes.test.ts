@@ -7,6 +7,7 @@
 // and a moving Gaussian ψ = √ρ e^{iq·x} has ∫|∇ψ|² = M(d/(4σ²) + q²) (textbook). The cross coefficient
 // of the two-mode Kerr Hamiltonian is ħχ₁₂ = W₁₂/(N₁N₂), each mode's own ħχ_i = 2W_ii/N_i² and
 // ħω_i = K_i/N_i with K_i = ħ²/(2m_i²)∫|∇ψ_i|² (the derivation is in species-modes.ts and the README).
+// A species' own contact term adds ħχ_SI,i = g_SI,i ∫|φ_i|⁴ (closed form for a Gaussian).
 import { describe, expect, it } from "vitest";
 import { Grid } from "../../src/grid/grid.js";
 import { PeriodicPoisson } from "../../src/fields/poisson.js";
@@ -52,6 +53,25 @@ function latticeSum(f: (k2: number) => number, d: readonly number[]): number {
   }
   return sum;
 }
+
+describe("two Gaussian modes of different particle mass, each with its own contact term", () => {
+  // g_i in code units (the term g_i ρ_i of the potential per unit mass; g_SI,i = g_i m_i²): one repulsive, one attractive.
+  // A normalised 2D Gaussian |φ|² over the box's depth D = L has ∫|φ|⁴ dV = 1/(4πσ²D) (closed form), so
+  // ħχ_SI,i = g_SI,i ∫|φ_i|⁴ = g_i (μ_i m)²/(4πσ_i² L); the gravitational part is unchanged and χ_ij stays gravitational.
+  const contacts = [0.3, -0.2];
+  const plain = speciesModes(grid, species.map((s) => ({ psi: gaussianField(s), massRatio: s.mu })), 1, m, new PeriodicPoisson(grid));
+  const result = speciesModes(grid, species.map((s, i) => ({ psi: gaussianField(s), massRatio: s.mu, contact: contacts[i]! })), 1, m, new PeriodicPoisson(grid));
+  it("ħχ_SI,i = g_SI,i ∫|φ_i|⁴ of a Gaussian to 1e-10, beside the unchanged gravitational part; the cross coefficient has no contact part", () => {
+    species.forEach((s, i) => {
+      const closed = (contacts[i]! * (s.mu * m) ** 2) / (4 * Math.PI * s.sigma ** 2 * L) / m; // ħ = m in code units
+      const mode = result.modes[i]!;
+      expect(Math.abs(mode.chiContact / closed - 1)).toBeLessThan(1e-10);
+      expect(Math.abs((mode.chi - mode.chiContact) / plain.modes[i]!.chi - 1)).toBeLessThan(1e-14);
+      expect(plain.modes[i]!.chiContact).toBe(0);
+    });
+    expect(result.cross[0]!.chi).toBe(plain.cross[0]!.chi);
+  });
+});
 
 describe("two Gaussian modes of different particle mass", () => {
   const [s1, s2] = species as [(typeof species)[0], (typeof species)[0]];
