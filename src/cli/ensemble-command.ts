@@ -12,6 +12,8 @@ import { silentReporter } from "../simulation/session.js";
 import { checkOutputFolder } from "../simulation/run-folder.js";
 import { lockRunFolder } from "../simulation/run-lock.js";
 import { runEnsemble, type EnsembleResult } from "../ensemble/ensemble.js";
+import { runCompanion } from "../app/ensemble-companion.js";
+import { comparisonHeadline } from "../ensemble/comparison-output.js";
 import type { Estimate } from "../ensemble/observables.js";
 import { TextReporter } from "./progress.js";
 
@@ -44,6 +46,7 @@ function headline(result: EnsembleResult, where: string): string {
     const when = clock.time === null ? "not within the span" : `at ${formatNumber(clock.time, 4)} ± ${formatNumber(clock.time_error ?? Number.NaN, 2)} ${s.time_unit}`;
     lines.push(`  the mean field departs from the classical one by ${formatNumber(clock.level)}: ${when}`);
   }
+  lines.push(...comparisonHeadline(result.summary));
   return lines.join("\n") + "\n";
 }
 
@@ -65,7 +68,7 @@ export async function ensembleCommand(configFile: string, flags: EnsembleFlags):
   const lock = lockRunFolder(dir);
   try {
     const reporter = flags.quiet ? silentReporter : new TextReporter();
-    const result = await runEnsemble(run, { workers, force: flags.force, reporter, dir, stopRequested: () => interrupted });
+    const result = await runEnsemble(run, { workers, force: flags.force, reporter, dir, stopRequested: () => interrupted, companion: runCompanion });
     const where = fileName(path.relative(process.cwd(), dir) || ".");
     if (result.status === "completed") {
       process.stdout.write(headline(result, where));

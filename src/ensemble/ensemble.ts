@@ -4,7 +4,9 @@
  * classical reference are advanced on a pool of workers (pool.ts) and kept
  * in the ensemble folder (store.ts); the reduction (reduce.ts) runs each
  * time the completed members double and at the end, so series.csv,
- * fields.h5 and summary.json exist while the ensemble grows.
+ * fields.h5 and summary.json exist while the ensemble grows. Given a
+ * companion runner, the classical companion (companion.ts) runs first and
+ * each reduction is compared with its predictions (comparison.ts).
  */
 import path from "node:path";
 import { Grid } from "../grid/grid.js";
@@ -25,6 +27,11 @@ import { writeEnsembleOutputs, writeSummary } from "./outputs.js";
 import { summaryOf } from "./summary.js";
 import { checkEnsembleModel, checkEnsembleSize, validityWarning } from "./guards.js";
 import type { MemberSetup } from "./member.js";
+import { companionRun, companionSeries, type CompanionRunner, type CompanionSeries } from "./companion.js";
+import { compareEnsemble, type Comparison } from "./comparison.js";
+import { comparisonSummary } from "./comparison-output.js";
+import { REDUCTION_FILES } from "./outputs.js";
+import { recordOwned } from "../simulation/run-manifest.js";
 
 /** Options of an ensemble. */
 export interface EnsembleOptions {
@@ -37,6 +44,8 @@ export interface EnsembleOptions {
   readonly stopRequested?: () => string | undefined;
   /** The ensemble folder. @default the run's output folder + "/ensemble" */
   readonly dir?: string;
+  /** Runs the classical companion (app/ensemble-companion.ts); absent: no comparison. */
+  readonly companion?: CompanionRunner;
 }
 
 /** How an ensemble ended. */
@@ -45,6 +54,8 @@ export interface EnsembleResult {
   readonly reason?: string;
   readonly dir: string;
   readonly reduction: EnsembleReduction | undefined;
+  /** The comparison with the companion's predictions (with a companion runner, once reduced). */
+  readonly comparison?: Comparison;
   readonly summary: Record<string, unknown>;
   readonly warnings: readonly string[];
 }
@@ -87,18 +98,30 @@ export async function runEnsemble(run: ResolvedRun, options: EnsembleOptions): P
   const { setup, grid, particles, warnings } = prepare(run, settings, reporter);
   for (const w of warnings) reporter.warn(w);
   const { store } = EnsembleStore.open(dir, identityOf(run, setup, particles), resolvedConfigToml(run), options.force === true);
+  recordOwned(dir, [...REDUCTION_FILES]);
   const scales = new OutputScales(run);
+  let series: CompanionSeries | undefined;
+  const companion = options.companion ? companionRun(run, dir) : undefined;
+  if (companion && options.companion) {
+    const c = await companionSeries(companion, options.companion, reporter, (t) => scales.codeTime(t), options.stopRequested);
+    if (c.stopped !== undefined) return { status: "stopped", reason: c.stopped, dir, reduction: undefined, summary: summaryOf(run, settings, particles, grid.size, undefined, scales, "stopped", c.stopped, warnings), warnings };
+    series = c.series;
+  }
   const out = { dir, scales, cells: run.grid.cells, particleMass: setup.particleMass, cellVolume: grid.cellVolume };
-  const reduction = { particleMass: setup.particleMass, cellVolume: grid.cellVolume, resamples: settings.resamples, seed: settings.seed, level: settings.departure };
+  const reduction = { particleMass: setup.particleMass, cellVolume: grid.cellVolume, resamples: settings.resamples, seed: settings.seed, level: settings.departure, grid };
   const done = new Set(store.completed().filter((j) => j < settings.members));
   const hasReference = (): boolean => store.hasReference();
   const tasks: (number | null)[] = [...(hasReference() ? [] : [null]), ...Array.from({ length: settings.members }, (_, j) => j).filter((j) => !done.has(j))];
   let reduced: EnsembleReduction | undefined;
+  let compared: Record<string, unknown> | undefined;
+  let comparison: Comparison | undefined;
   const reduce = (status: string, reason?: string): void => {
     const members = [...done].sort((a, b) => a - b);
     if (members.length < 2 || !hasReference()) return;
     reduced = reduceEnsemble(store, reduction, members);
-    writeEnsembleOutputs(reduced, out, summaryOf(run, settings, particles, grid.size, reduced, scales, status, reason, warnings));
+    comparison = series ? compareEnsemble(reduced, series, particles, run.breakdown.depletionFraction) : undefined;
+    compared = comparison && companion ? comparisonSummary(comparison, scales, companion.breakdown.probes) : undefined;
+    writeEnsembleOutputs(reduced, out, summaryOf(run, settings, particles, grid.size, reduced, scales, status, reason, warnings, compared), comparison);
   };
   reporter.phase(done.size > 0 ? `ensemble (continuing: ${done.size} of ${settings.members} members kept)` : "ensemble");
   let nextReduction = Math.max(2, 2 ** Math.ceil(Math.log2(Math.max(2, done.size + 1))));
@@ -123,7 +146,7 @@ export async function runEnsemble(run: ResolvedRun, options: EnsembleOptions): P
   reporter.endPhase();
   const status = stopped ? "stopped" : "completed";
   reduce(status, stopped);
-  const summary = summaryOf(run, settings, particles, grid.size, reduced, scales, status, stopped, warnings);
+  const summary = summaryOf(run, settings, particles, grid.size, reduced, scales, status, stopped, warnings, compared);
   if (!reduced) writeSummary(dir, summary);
-  return { status, ...(stopped ? { reason: stopped } : {}), dir, reduction: reduced, summary, warnings };
+  return { status, ...(stopped ? { reason: stopped } : {}), dir, reduction: reduced, ...(comparison ? { comparison } : {}), summary, warnings };
 }

@@ -1,6 +1,7 @@
 /**
  * An ensemble's results in physical units: series.csv (one row per sample
- * time, each observable with its error), fields.h5 (the reduced fields at
+ * time, each observable with its error), occupations.csv (each wavenumber
+ * shell's particles at each sample time), fields.h5 (the reduced fields at
  * every sample time) and summary.json, each written atomically so a reader
  * never sees half a file while the ensemble grows.
  */
@@ -12,6 +13,13 @@ import { intAttr, numberAttr, textAttr } from "../io/h5-attrs.js";
 import type { OutputScales } from "../simulation/scales.js";
 import type { EnsembleReduction } from "./reduce.js";
 import type { SampleStatistics } from "./observables.js";
+import { PC_M } from "../physics/constants.js";
+import type { Comparison } from "./comparison.js";
+import { comparisonCsv } from "./comparison-output.js";
+import { COMPANION_DIR } from "./companion.js";
+
+/** What the reduction and the comparison write besides the store's files (for the folder's manifest). */
+export const REDUCTION_FILES = ["occupations.csv", "comparison.csv", `${COMPANION_DIR}/`] as const;
 
 /** The columns of series.csv: each observable is followed by its error column (…_err). */
 export const SERIES_COLUMNS = [
@@ -41,6 +49,20 @@ function row(time: number, s: SampleStatistics): number[] {
 export function seriesCsv(reduction: EnsembleReduction, scales: OutputScales): string {
   const lines = reduction.samples.map((s, i) => row(scales.time(reduction.times[i] as number), s).map((v) => (Number.isFinite(v) ? String(v) : "")).join(","));
   return [SERIES_COLUMNS.join(","), ...lines].join("\n") + "\n";
+}
+
+/** The columns of occupations.csv: one row per sample time and wavenumber shell. */
+export const OCCUPATION_COLUMNS = ["time", "k_per_kpc", "modes", "occupation_N", "occupation_N_err"] as const;
+
+/** occupations.csv as text: |k| in 1/kpc (angular), the shell's modes, its particles with the shift removed and their standard error. */
+export function occupationsCsv(reduction: EnsembleReduction, scales: OutputScales): string {
+  const perKpc = (1e3 * PC_M) / scales.units.lengthM;
+  const { shells } = reduction;
+  const lines = reduction.occupations.flatMap((row, s) => {
+    const time = scales.time(reduction.times[s] as number);
+    return row.map((e, i) => [time, (shells.k[i] as number) * perKpc, shells.modes[i] as number, e.value, e.error].map((v) => (Number.isFinite(v) ? String(v) : "")).join(","));
+  });
+  return [OCCUPATION_COLUMNS.join(","), ...lines].join("\n") + "\n";
 }
 
 /** fields.h5: time, the ensemble density (shift removed), the mean field and the classical field, per sample time. */
@@ -80,9 +102,11 @@ export function writeSummary(dir: string, summary: Record<string, unknown>): voi
   writeFileAtomic(path.join(dir, "summary.json"), JSON.stringify(summary, null, 2) + "\n");
 }
 
-/** series.csv, fields.h5 and summary.json. */
-export function writeEnsembleOutputs(reduction: EnsembleReduction, out: OutputContext, summary: Record<string, unknown>): void {
+/** series.csv, occupations.csv, fields.h5, summary.json and, with a comparison, comparison.csv. */
+export function writeEnsembleOutputs(reduction: EnsembleReduction, out: OutputContext, summary: Record<string, unknown>, comparison?: Comparison): void {
+  if (comparison) writeFileAtomic(path.join(out.dir, "comparison.csv"), comparisonCsv(comparison, out.scales));
   writeFileAtomic(path.join(out.dir, "series.csv"), seriesCsv(reduction, out.scales));
+  writeFileAtomic(path.join(out.dir, "occupations.csv"), occupationsCsv(reduction, out.scales));
   writeFields(reduction, out);
   writeSummary(out.dir, summary);
 }

@@ -2,12 +2,15 @@
  * The reduction of an ensemble folder: the members completed so far (in
  * increasing index, so the numbers do not depend on the order they were
  * finished in), sample time by sample time, into the statistics of
- * observables.ts, and the time at which the ensemble mean departs from the
+ * observables.ts and the occupation of every wavenumber shell
+ * (occupations.ts), and the time at which the ensemble mean departs from the
  * classical field by a stated amount.
  */
 import { bootstrapWeights, sampleStatistics, type Estimate, type SampleStatistics } from "./observables.js";
 import { toNumberUnits } from "./noise.js";
 import type { EnsembleStore } from "./store.js";
+import { shellOccupations, wavenumberShells, type Shells } from "./occupations.js";
+import type { Grid } from "../grid/grid.js";
 
 /** The reduced ensemble. */
 export interface EnsembleReduction {
@@ -18,6 +21,9 @@ export interface EnsembleReduction {
   readonly samples: readonly SampleStatistics[];
   /** The mean field of the classical reference at each time, number units. */
   readonly reference: readonly Float64Array[];
+  /** The grid's wavenumber shells, and the occupation of each at each sample time (particles, shift removed). */
+  readonly shells: Shells;
+  readonly occupations: readonly (readonly Estimate[])[];
   /** When ‖⟨a⟩ − a_cl‖/‖a_cl‖ first reaches the level (code time, linear between samples), or null; error from the bootstrap resamples. */
   readonly departureTime: Estimate | null;
 }
@@ -30,6 +36,7 @@ export interface ReductionSettings {
   readonly seed: number;
   /** The departure level. */
   readonly level: number;
+  readonly grid: Grid;
 }
 
 /** The first time `values` reaches `level`, linear between samples; null if it never does. */
@@ -52,10 +59,14 @@ export function reduceEnsemble(store: EnsembleStore, settings: ReductionSettings
   const number = (psi: Float64Array) => toNumberUnits(psi, settings.particleMass, settings.cellVolume);
   const samples: SampleStatistics[] = [];
   const reference: Float64Array[] = [];
+  const shells = wavenumberShells(settings.grid);
+  const occupations: Estimate[][] = [];
   times.forEach((_, s) => {
     const ref = number(store.readSample(undefined, s));
     reference.push(ref);
-    samples.push(sampleStatistics(members.map((j) => number(store.readSample(j, s))), ref, weights));
+    const fields = members.map((j) => number(store.readSample(j, s)));
+    samples.push(sampleStatistics(fields, ref, weights));
+    occupations.push(shellOccupations(fields, settings.grid, shells));
   });
   const central = crossingTime(times, samples.map((x) => x.departure.value), settings.level);
   let departureTime: Estimate | null = null;
@@ -66,5 +77,5 @@ export function reduceEnsemble(store: EnsembleStore, settings: ReductionSettings
     const error = crossings.length > 1 ? Math.sqrt(crossings.reduce((s, t) => s + (t - mean) ** 2, 0) / (crossings.length - 1)) : Number.NaN;
     departureTime = { value: central, error };
   }
-  return { members, times, samples, reference, departureTime };
+  return { members, times, samples, reference, shells, occupations, departureTime };
 }

@@ -1,7 +1,8 @@
 /**
  * summary.json of an ensemble: its settings, N and the modes, the members
- * reduced, the last sample's observables with their errors, and the
- * departure clock, in physical units.
+ * reduced, the last sample's observables with their errors, the
+ * departure clock and, with a companion, the comparison's clocks, in
+ * physical units.
  */
 import type { ResolvedRun } from "../config/resolve.js";
 import type { ResolvedEnsemble } from "../config/resolve-ensemble.js";
@@ -22,6 +23,7 @@ export function summaryOf(
   status: string,
   reason: string | undefined,
   warnings: readonly string[],
+  comparison?: Record<string, unknown>,
 ): Record<string, unknown> {
   const last = reduction?.samples[reduction.samples.length - 1];
   const departure = reduction?.departureTime;
@@ -55,6 +57,7 @@ export function summaryOf(
           },
         }
       : {}),
+    ...(comparison ? { comparison } : {}),
     ...(warnings.length ? { warnings } : {}),
   };
 }

@@ -2,13 +2,16 @@
  * The report of a truncated-Wigner ensemble (psibox report on an ensemble
  * folder, and a section of a run's report when the run folder holds one):
  * what was reduced, the headline numbers with their errors as sentences,
- * the figure of ensemble-plot.ts and the series as a table.
+ * the figure of ensemble-plot.ts and the series as a table, then the
+ * comparison with the linear and single-mode pictures
+ * (ensemble-comparison-section.ts) when the ensemble has one.
  */
 import fs from "node:fs";
 import path from "node:path";
 import { InputError } from "../core/errors.js";
 import { formatNumber } from "../core/format.js";
 import { ensemblePlot } from "./ensemble-plot.js";
+import { comparisonSection } from "./ensemble-comparison-section.js";
 import { esc, figure, table, writePage } from "./report-parts.js";
 
 type Pair = { value: number; error: number };
@@ -73,7 +76,8 @@ export async function ensembleSection(dir: string): Promise<string> {
 <ul class="verdict">${verdicts(s).map((v) => `<li>${esc(v)}</li>`).join("")}</ul>${warnings}
 <div class="figs">${figure(fig, "The condensate fraction and the mean field's share of N, and the mean field's distance from the classical field, each with ± one error (bootstrap or standard error).")}</div>
 <h3>Series</h3>
-${seriesTable(rows, s.time_unit)}`;
+${seriesTable(rows, s.time_unit)}
+${await comparisonSection(dir, s as Parameters<typeof comparisonSection>[1])}`;
 }
 
 /** Write the report of the ensemble folder `dir` (report.html in it, or `outFile`); returns its path. */

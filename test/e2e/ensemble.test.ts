@@ -5,7 +5,8 @@ import fs from "node:fs";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { makeWork, readCsv, readJson, removeWork, runPsibox, writeIn } from "../helpers/cli.js";
-import { SERIES_COLUMNS } from "../../src/ensemble/outputs.js";
+import { OCCUPATION_COLUMNS, SERIES_COLUMNS } from "../../src/ensemble/outputs.js";
+import { COMPARISON_COLUMNS } from "../../src/ensemble/comparison-output.js";
 
 let work: string;
 beforeAll(() => (work = makeWork("ensemble-cli")));
@@ -28,6 +29,15 @@ describe("psibox ensemble", () => {
     rows.forEach((row, i) => expect(Number(row["time"])).toBeCloseTo(50 * i, 9));
     expect(Math.abs(Number(rows[0]!["particles_N"]) - 100)).toBeLessThan(5 * Number(rows[0]!["particles_N_err"]));
     expect(fs.readdirSync(path.join(dir, "members"))).toHaveLength(4);
+    // the comparison with the classical companion's predictions, and the occupation of each ±k pair (k = 0 … 8 per time)
+    expect(r.stdout).toMatch(/\n  depletion reaches 10% of N: ensemble .*, tangent-linear .*\n  mean field \|<b>\|²\/N falls to 1\/e: ensemble .*, Kerr mode .*, adiabatic Kerr mode .*\n$/);
+    const comparison = readCsv(path.join(dir, "comparison.csv"));
+    expect(Object.keys(comparison[0]!)).toEqual([...COMPARISON_COLUMNS]);
+    expect(Number(comparison[2]!["depletion_tangent"])).toBeGreaterThan(0);
+    expect(fs.existsSync(path.join(dir, "companion", "timeseries.csv"))).toBe(true);
+    const occupations = readCsv(path.join(dir, "occupations.csv"));
+    expect(Object.keys(occupations[0]!)).toEqual([...OCCUPATION_COLUMNS]);
+    expect(occupations).toHaveLength(3 * 9);
     expect(readJson(path.join(dir, "summary.json"))["members_reduced"]).toBe(4);
     const again = runPsibox(work, ["ensemble", "small.toml", "--quiet"]);
     expect(again.code).toBe(0);
@@ -42,7 +52,8 @@ describe("psibox ensemble", () => {
     const html = fs.readFileSync(path.join(dir, "report.html"), "utf8");
     expect(html).toMatch(/4 of 4 members reduced \(completed\); N = 100 particles over 16 grid modes/);
     expect(html).toMatch(/<img alt="The condensate fraction/);
-    expect((html.match(/<tr>/g) ?? []).length).toBe(4); // header and three sample times
+    expect((html.match(/<tr>/g) ?? []).length).toBe(8); // header and three sample times, in the series and the comparison tables
+    expect(html).toMatch(/<img alt="Top: the depletion N − N₀ of the ensemble and the tangent-linear/);
   });
   for (const [label, cells, ensemble, key] of [
     ["one member", "16", "members = 1", /ensemble\.members: must be a whole number from 2/],

@@ -16,7 +16,11 @@ import { SeededRandom } from "../../src/math/random.js";
 import { bootstrapWeights, sampleStatistics } from "../../src/ensemble/observables.js";
 import { checkEnsembleModel, validityWarning } from "../../src/ensemble/guards.js";
 import { ConfigError } from "../../src/core/errors.js";
-import { boxDepletion } from "../helpers/bogoliubov.js";
+import { boxDepletion, boxMode, pairDepletion } from "../helpers/bogoliubov.js";
+import { runCompanion } from "../../src/app/ensemble-companion.js";
+import type { EnsembleReduction } from "../../src/ensemble/reduce.js";
+import type { Comparison } from "../../src/ensemble/comparison.js";
+import { HBAR_J_S } from "../../src/physics/constants.js";
 import { makeWork, removeWork, writeIn } from "../helpers/cli.js";
 
 const MYR_S = 3.15576e13;
@@ -159,32 +163,76 @@ describe("what the members' equations leave out", () => {
   });
 });
 
-describe("uniform box: the ensemble's depletion against the exact Bogoliubov Σ_k n_k(t)", () => {
-  // N = 1e8 keeps the dynamics of the fluctuations linear (n_k/N < 1e-3), where the method is exact
-  it("Jeans-unstable box (2 unstable mode pairs), 250 Myr; the same numbers on 1 worker, stopped after some members and continued", async () => {
+/**
+ * Each ±k shell's occupation at the last sample against the exact Bogoliubov n_k(t) of that pair (two modes; the
+ * Nyquist shell one): every shell within 4 standard errors, and the shells holding more than `significant`
+ * particles resolved to 30%.
+ */
+function checkPairs(reduction: EnsembleReduction, rho: number, cells: number, tMyr: number, significant: number): number {
+  const occupations = reduction.occupations.at(-1)!;
+  let resolved = 0;
+  reduction.shells.k.forEach((k, i) => {
+    const j = Math.round(k / (2 * Math.PI)); // code lengths: the box side is 1
+    if (j === 0) return;
+    const { eps, u } = boxMode(rho, 1e-22, 10, j);
+    const exact = (j === cells / 2 ? 1 : 2) * pairDepletion(eps, u, tMyr * MYR_S, HBAR_J_S);
+    const n = occupations[i]!;
+    expect(Math.abs(n.value - exact), `pair ${j}: ${n.value} ± ${n.error} against ${exact}`).toBeLessThan(4 * n.error);
+    if (exact > significant) {
+      expect(n.error).toBeLessThan(0.3 * exact);
+      resolved++;
+    }
+  });
+  return resolved;
+}
+
+/** The ensemble's N − N₀, the tangent-linear Tr V†V and the exact Σ n_k agree within their errors at the last sample. */
+function checkLinearPictures(comparison: Comparison, exact: number): void {
+  const end = comparison.rows.at(-1)!;
+  const [e, t] = [end.depletion, end.depletionTangent];
+  expect(t.error).toBeLessThan(0.35 * exact);
+  expect(Math.abs(t.value - exact)).toBeLessThan(3 * t.error);
+  expect(Math.abs(e.value - t.value)).toBeLessThan(3 * Math.hypot(e.error, t.error));
+}
+
+describe("uniform box, where the method is exact (quadratic dynamics): the ensemble against the exact Bogoliubov n_k(t) pair by pair and in sum, and the tangent-linear depletion", () => {
+  // exact n_k(t) = (U_k/ħω_k)² sin²(ω_k t), or sinh² with γ_k for unstable pairs, ħ²ω_k² = ε_k(ε_k + 2U_k), U_k = −4πGmρ̄/k²:
+  // the time-dependent Bogoliubov solution of a coherent start (Pitaevskii & Stringari 2016, Bose–Einstein Condensation and
+  // Superfluidity, the Bogoliubov transformation with gn replaced by gravity's U_k; computed independently in test/helpers/bogoliubov.ts).
+  // N = 1e8 keeps the dynamics of the fluctuations linear (n_k/N < 1e-3).
+  it("Jeans-unstable box (2 unstable mode pairs), 250 Myr; the same numbers on 1 worker, stopped after some members, then in the companion, and continued", async () => {
     const run = boxConfig("unstable", 64, 7e6, 250, 32);
-    const whole = await runEnsemble(run, { workers: 2, dir: path.join(work, "two") });
+    const whole = await runEnsemble(run, { workers: 2, dir: path.join(work, "two"), companion: runCompanion });
     const end = whole.reduction!.samples[2]!;
     const exact = boxDepletion(7e6, 1e-22, 10, 64, 250 * MYR_S);
     expect(exact.unstable).toBe(4);
     expect(end.depletion.error).toBeLessThan(0.3 * exact.total);
     expect(Math.abs(end.depletion.value - exact.total)).toBeLessThan(3 * end.depletion.error);
+    expect(checkPairs(whole.reduction!, 7e6, 64, 250, 50)).toBe(2);
+    checkLinearPictures(whole.comparison!, exact.total);
     let done = 0;
     const stopped = await runEnsemble(run, { workers: 1, dir: path.join(work, "one"), stopRequested: () => (++done > 6 ? "stopped by the test" : undefined) });
     expect(stopped.status).toBe("stopped");
-    const continued = await runEnsemble(run, { workers: 1, dir: path.join(work, "one") });
+    // continued with the companion, which is itself stopped after 20 steps and then resumed from its checkpoint
+    let steps = 0;
+    const companionStopped = await runEnsemble(run, { workers: 1, dir: path.join(work, "one"), companion: runCompanion, stopRequested: () => (++steps > 20 ? "stopped by the test" : undefined) });
+    expect(companionStopped.status).toBe("stopped");
+    expect(fs.existsSync(path.join(work, "one", "companion", "checkpoint.h5"))).toBe(true);
+    const continued = await runEnsemble(run, { workers: 1, dir: path.join(work, "one"), companion: runCompanion });
     expect(continued.status).toBe("completed");
-    const csv = (d: string) => fs.readFileSync(path.join(d, "series.csv"), "utf8");
-    expect(csv(path.join(work, "one"))).toBe(csv(path.join(work, "two")));
+    const csv = (d: string, f = "series.csv") => fs.readFileSync(path.join(d, f), "utf8");
+    for (const f of ["series.csv", "occupations.csv", "comparison.csv"]) expect(csv(path.join(work, "one"), f)).toBe(csv(path.join(work, "two"), f));
   });
   it("stable box near the Jeans threshold (every mode oscillates), a quarter period of the lowest pair", async () => {
     const [rho, tMyr] = [238475.78918749382, 1283.453344850469]; // 0.9 of the lowest pair's marginal density; ωt = π/2 (computed with boxMode)
     const run = boxConfig("stable", 16, rho, tMyr, 64);
-    const result = await runEnsemble(run, { workers: 2, dir: path.join(work, "stable") });
+    const result = await runEnsemble(run, { workers: 2, dir: path.join(work, "stable"), companion: runCompanion });
     const end = result.reduction!.samples[2]!;
     const exact = boxDepletion(rho, 1e-22, 10, 16, tMyr * MYR_S);
     expect(exact.unstable).toBe(0);
     expect(end.depletion.error).toBeLessThan(0.3 * exact.total);
     expect(Math.abs(end.depletion.value - exact.total)).toBeLessThan(3 * end.depletion.error);
+    expect(checkPairs(result.reduction!, rho, 16, tMyr, 1)).toBe(1);
+    checkLinearPictures(result.comparison!, exact.total);
   });
 });
