@@ -12,6 +12,7 @@ import { PANEL, SCHEMA, type Row } from "./plots.js";
 import { renderVegaLite, type Figure } from "./render.js";
 
 const INK = { ensemble: "#1f5fa8", tangent: "#e07a1f", kerr: "#2a9d8f", adiabatic: "#8e44ad", level: "#d1495b" };
+const WIDTH = Math.round(PANEL.width * 1.4);
 const LABEL = { ensemble: "ensemble", tangent: "tangent-linear", kerr: "Kerr mode (χ)", adiabatic: "Kerr mode (χ_ad)" };
 
 /** Lines of `long` rows (t, series, v, e) with bands of ± e where e is finite, coloured by series. */
@@ -19,13 +20,15 @@ function lines(long: Row[], colours: Record<string, string>, tTitle: string | nu
   const colour = { field: "series", type: "nominal", title: null, scale: { domain: Object.keys(colours), range: Object.values(colours) }, legend: { orient: "top", direction: "horizontal", title: null } };
   const x = { field: "t", type: "quantitative", title: tTitle, scale: { nice: false, zero: false, domain } };
   const y = { type: "quantitative", title: yTitle };
+  // the adiabatic Kerr mode dashed: it often lies on the frozen one
+  const dashes = { field: "series", type: "nominal", legend: null, scale: { domain: Object.keys(colours), range: Object.keys(colours).map((k) => (k === LABEL.adiabatic ? [5, 3] : [1, 0])) } };
   const bands = long.filter((r) => Number.isFinite(r["e"] as number));
   // a level far above the curves would flatten them: drawn only when within twice their top
   const top = Math.max(...long.map((r) => (r["v"] as number) + (Number.isFinite(r["e"] as number) ? (r["e"] as number) : 0)).filter(Number.isFinite));
   const rule = level <= 2 * top ? [{ data: { values: [{}] }, mark: { type: "rule", strokeDash: [5, 3], color: INK.level }, encoding: { y: { datum: level } } }] : [];
   return [
     { data: { values: bands }, transform: [{ calculate: "datum.v - datum.e", as: "lo" }, { calculate: "datum.v + datum.e", as: "hi" }], mark: { type: "area", opacity: 0.22 }, encoding: { x, y: { field: "lo", ...y }, y2: { field: "hi" }, color: colour } },
-    { data: { values: long }, mark: { type: "line", strokeWidth: 1.5, point: long.length < 120 }, encoding: { x, y: { field: "v", ...y }, color: colour } },
+    { data: { values: long }, mark: { type: "line", strokeWidth: 1.5, point: long.length < 120 }, encoding: { x, y: { field: "v", ...y }, color: colour, strokeDash: dashes } },
     ...rule,
   ];
 }
@@ -46,12 +49,12 @@ export function ensembleComparisonPlot(rows: readonly Record<string, string>[], 
   ]);
   return renderVegaLite({
     $schema: SCHEMA,
-    title: { text: "The ensemble against the linear and the single-mode pictures", subtitle: ["bands: ± one error", `dashed (when in range): the clocks' levels, depletion ${formatNumber(depletionLevel, 3)} particles and |⟨b⟩|/√N = e^(−1/2)`] },
+    title: { text: "The ensemble against the linear and the single-mode pictures", subtitle: ["bands: ± one error; red dashes (when in range): the clocks' levels,", `depletion ${formatNumber(depletionLevel, 3)} particles and |⟨b⟩|/√N = e^(−1/2)`] },
     spacing: 10,
     resolve: { scale: { color: "independent" }, legend: { color: "independent" } },
     vconcat: [
-      { width: PANEL.width, height: 130, layer: lines(depletion, { [LABEL.ensemble]: INK.ensemble, [LABEL.tangent]: INK.tangent }, null, domain, "depletion [particles]", depletionLevel) },
-      { width: PANEL.width, height: 130, layer: lines(meanField, { [LABEL.ensemble]: INK.ensemble, [LABEL.kerr]: INK.kerr, [LABEL.adiabatic]: INK.adiabatic }, `t [${unit}]`, domain, "mean field |⟨b⟩|/√N", meanFieldLevel) },
+      { width: WIDTH, height: 130, layer: lines(depletion, { [LABEL.ensemble]: INK.ensemble, [LABEL.tangent]: INK.tangent }, null, domain, "depletion [particles]", depletionLevel) },
+      { width: WIDTH, height: 130, layer: lines(meanField, { [LABEL.ensemble]: INK.ensemble, [LABEL.kerr]: INK.kerr, [LABEL.adiabatic]: INK.adiabatic }, `t [${unit}]`, domain, "mean field |⟨b⟩|/√N", meanFieldLevel) },
     ],
   } as unknown as TopLevelSpec);
 }
