@@ -1,10 +1,12 @@
 #!/usr/bin/env bash
-# Integration check of psibox sweep --emit slurm on a real, one-node Slurm cluster on localhost.
+# Integration check of psibox sweep --emit slurm and psibox ensemble --emit slurm on a real, one-node
+# Slurm cluster on localhost.
 # Run as root on a Debian machine: bash scripts/slurm-check.sh
 # It installs slurm-wlm and munge from Debian's packages if needed, starts munged, slurmctld and
 # slurmd with a private configuration in a temporary folder, submits a 4-entry sweep as a job array
-# plus its collect job, waits for them, and checks that every entry completed. It stops the daemons
-# it started on exit.
+# plus its collect job, waits for them, and checks that every entry completed; then it submits a tiny
+# truncated-Wigner ensemble as a 2-task array plus its collect job and checks that its series.csv is
+# byte-identical to a local psibox ensemble of the same config. It stops the daemons it started on exit.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 ROOT=$(pwd)
@@ -72,6 +74,15 @@ for _ in $(seq 1 60); do
 done
 sinfo -h -o "%T" | grep -qE "idle|mixed" || { echo "slurm-check: the node did not come up"; tail -20 "$WORK/slurmctld.log" "$WORK/slurmd.log"; exit 1; }
 
+# wait until the jobs (a comma-separated list) have left the queue, at most 5 minutes
+wait_jobs() {
+  for _ in $(seq 1 300); do
+    if [ -z "$(squeue -h -j "$1" 2>/dev/null)" ]; then return 0; fi
+    sleep 1
+  done
+  echo "slurm-check: jobs $1 still queued after 5 minutes"; squeue; exit 1
+}
+
 # a 4-entry sweep of tiny runs
 cd "$WORK"
 cat > scan.toml <<'CFG'
@@ -102,11 +113,7 @@ node "$ROOT/dist/cli/bin.js" sweep scan.toml --emit slurm
 JOB=$(sbatch --parsable output/scan/sweep.sbatch)
 COLLECT=$(sbatch --parsable --dependency=afterany:"$JOB" output/scan/collect.sbatch)
 echo "slurm-check: submitted array $JOB and collect job $COLLECT"
-for _ in $(seq 1 300); do
-  if [ -z "$(squeue -h -j "$JOB,$COLLECT" 2>/dev/null)" ]; then break; fi
-  sleep 1
-done
-[ -z "$(squeue -h -j "$JOB,$COLLECT" 2>/dev/null)" ] || { echo "slurm-check: jobs still queued after 5 minutes"; squeue; exit 1; }
+wait_jobs "$JOB,$COLLECT"
 [ -f output/scan/sweep-summary.csv ] || { echo "slurm-check: the collect job wrote no summary"; cat output/scan/logs/*; exit 1; }
 COMPLETED=$(grep -c ",completed," output/scan/sweep-summary.csv || true)
 cat output/scan/sweep-summary.csv | cut -d, -f1-4
@@ -116,3 +123,43 @@ if [ "$COMPLETED" -ne 4 ]; then
   exit 1
 fi
 echo "slurm-check: passed, 4 of 4 entries completed through Slurm"
+
+# a tiny truncated-Wigner ensemble: 6 members in a 2-task array, then its collect job (reduction)
+cat > wigner.toml <<'CFG'
+[grid]
+cells = 16
+box = "10 kpc"
+[particle]
+mass = "1e-22 eV"
+[span]
+duration = "100 Myr"
+[initial]
+kind = "plane-wave"
+mean_density = "1e6 Msun/kpc^3"
+contrast = 0.1
+[output]
+time_unit = "Myr"
+[ensemble]
+members = 6
+particles = 1000
+samples = 2
+[cluster]
+partition = "check"
+time = "00:05:00"
+cpus = 1
+memory = "500M"
+max_parallel = 2
+CFG
+node "$ROOT/dist/cli/bin.js" ensemble wigner.toml --emit slurm -q
+EJOB=$(sbatch --parsable output/wigner/ensemble/slurm/ensemble.sbatch)
+ECOLLECT=$(sbatch --parsable --dependency=afterany:"$EJOB" output/wigner/ensemble/slurm/collect.sbatch)
+echo "slurm-check: submitted ensemble array $EJOB and collect job $ECOLLECT"
+wait_jobs "$EJOB,$ECOLLECT"
+sed 's/^\[output\]/[output]\ndir = "local-wigner"/' wigner.toml > local-wigner.toml
+node "$ROOT/dist/cli/bin.js" ensemble local-wigner.toml --workers 2 -q >/dev/null
+if ! cmp -s output/wigner/ensemble/series.csv local-wigner/ensemble/series.csv; then
+  echo "slurm-check: FAILED, the ensemble's series.csv through Slurm differs from the local run's"
+  cat output/wigner/ensemble/slurm/logs/* || true
+  exit 1
+fi
+echo "slurm-check: passed, the ensemble reduced through Slurm ($(ls output/wigner/ensemble/members | wc -l) members) equals the local run byte for byte"

@@ -9,6 +9,7 @@ import { ConfigError } from "../core/errors.js";
 import { checkConfig } from "../config/load.js";
 import { resolveRun, type ResolvedRun } from "../config/resolve.js";
 import type { CheckedConfig } from "../config/schema.js";
+import { DEFAULT_CLUSTER } from "./slurm-script.js";
 
 type Table = Record<string, unknown>;
 type Value = number | string | boolean | number[];
@@ -139,5 +140,5 @@ export function planSweep(raw: Table, name: string, cwd: string): SweepPlan {
     }
     return { name: entryName, values, config, resolved };
   });
-  return { name, dir: baseDir, keys, combine: spec.combine, entries, cluster: base.cluster ?? { time: "01:00:00", cpus: 1, memory: "2G", max_parallel: 8 } };
+  return { name, dir: baseDir, keys, combine: spec.combine, entries, cluster: base.cluster ?? DEFAULT_CLUSTER };
 }

@@ -12,40 +12,12 @@
  */
 import fs from "node:fs";
 import path from "node:path";
-import { writeFileAtomic } from "../io/atomic.js";
 import type { SweepPlan } from "./plan.js";
 import { writeSweepFiles } from "./runner.js";
-import { UNHEX_FUNCTION, checkCluster, hexOf, isPlainPath, jobName, type ClusterResources } from "./slurm-values.js";
+import { checkCluster, isPlainPath, jobName } from "./slurm-values.js";
+import { decodePaths, logRedirect, sbatchHeader as header, writeScripts } from "./slurm-script.js";
 
 const SAFE_ENTRY = /^[A-Za-z0-9._+=^-]+$/;
-
-function header(name: string, c: ClusterResources, extra: readonly string[]): string {
-  return [
-    "#!/bin/bash",
-    `#SBATCH --job-name=${jobName(name)}`,
-    ...(c.partition ? [`#SBATCH --partition=${c.partition}`] : []),
-    `#SBATCH --time=${c.time}`,
-    `#SBATCH --cpus-per-task=${c.cpus}`,
-    `#SBATCH --mem=${c.memory}`,
-    ...extra,
-  ].join("\n");
-}
-
-/** Lines that send the script's output to `logs/NAME` when the folder could not go in an #SBATCH line. */
-function logRedirect(plain: boolean, name: string): string {
-  return plain ? "" : `mkdir -p "$SWEEP_DIR/logs" && exec >>"$SWEEP_DIR/logs/${name}.out" 2>>"$SWEEP_DIR/logs/${name}.err"\n`;
-}
-
-/** The part of both scripts that decodes the paths they need. */
-function decodePaths(dir: string, bin: string): string {
-  return (
-    `${UNHEX_FUNCTION}\n` +
-    `# the sweep folder, node and psibox, as hex-encoded data\n` +
-    `unhex ${hexOf(dir)} SWEEP_DIR\n` +
-    `unhex ${hexOf(process.execPath)} NODE\n` +
-    `unhex ${hexOf(bin)} PSIBOX\n`
-  );
-}
 
 /** Write sweep.sbatch, collect.sbatch and slurm-manifest.tsv into the sweep folder; returns their paths. */
 export function emitSlurm(plan: SweepPlan, bin: string): { script: string; collect: string; manifest: string } {
@@ -65,11 +37,11 @@ export function emitSlurm(plan: SweepPlan, bin: string): { script: string; colle
     `
 # psibox sweep: ${plan.entries.length} entries, one array task each.
 set -euo pipefail
-${decodePaths(plan.dir, bin)}ENTRIES=(
+${decodePaths("SWEEP_DIR", "sweep", plan.dir, bin)}ENTRIES=(
 ${entries}
 )
 TASK="\${SLURM_ARRAY_TASK_ID:?run this script through sbatch, or set SLURM_ARRAY_TASK_ID}"
-${logRedirect(plain, "task-$TASK")}DIR="$SWEEP_DIR/\${ENTRIES[$TASK]}"
+${logRedirect(plain, "SWEEP_DIR", "task-$TASK")}DIR="$SWEEP_DIR/\${ENTRIES[$TASK]}"
 if grep -q '"status": "completed"' "$DIR/summary.json" 2>/dev/null; then
   echo "entry \${ENTRIES[$TASK]} has already completed"
   exit 0
@@ -85,14 +57,14 @@ exec "$NODE" "$PSIBOX" run "$DIR/entry.toml" -q --force
 # Rebuild the sweep's summary once the array has finished: submit this script
 # (collect.sbatch, beside sweep.sbatch) with sbatch --dependency=afterany:ARRAY_JOB_ID
 set -euo pipefail
-${decodePaths(plan.dir, bin)}${logRedirect(plain, "collect")}exec "$NODE" "$PSIBOX" sweep --summary "$SWEEP_DIR"
+${decodePaths("SWEEP_DIR", "sweep", plan.dir, bin)}${logRedirect(plain, "SWEEP_DIR", "collect")}exec "$NODE" "$PSIBOX" sweep --summary "$SWEEP_DIR"
 `;
   const manifest = ["task\tentry", ...plan.entries.map((e, i) => `${i}\t${e.name}`)].join("\n") + "\n";
   const paths = { script: path.join(plan.dir, "sweep.sbatch"), collect: path.join(plan.dir, "collect.sbatch"), manifest: path.join(plan.dir, "slurm-manifest.tsv") };
-  writeFileAtomic(paths.script, script);
-  writeFileAtomic(paths.collect, collect);
-  writeFileAtomic(paths.manifest, manifest);
-  fs.chmodSync(paths.script, 0o755);
-  fs.chmodSync(paths.collect, 0o755);
+  writeScripts([
+    { path: paths.script, text: script, executable: true },
+    { path: paths.collect, text: collect, executable: true },
+    { path: paths.manifest, text: manifest, executable: false },
+  ]);
   return paths;
 }

@@ -15,8 +15,9 @@ import type { ResolvedRun } from "./resolve.js";
  */
 export function resolvedConfigToml(run: ResolvedRun): string {
   const plain = JSON.parse(JSON.stringify(run.config)) as Record<string, Record<string, unknown>>;
-  // the time unit too, so a later end in another unit (psibox extend) keeps the run's unit
-  const { time_unit: _given, ...output } = plain["output"] ?? {};
+  // the time unit too, so a later end in another unit (psibox extend) keeps the run's unit; both last,
+  // so that the text of this text's own run is the same (an ensemble's Slurm tasks compare its hash)
+  const { time_unit: _given, dir: _dir, ...output } = plain["output"] ?? {};
   plain["output"] = { ...output, time_unit: run.output.timeUnit, dir: path.resolve(run.outputDir).split(path.sep).join("/") };
   return `# psibox resolved config (every default filled in)\n${stringify(plain)}\n`;
 }

@@ -46,6 +46,14 @@ export interface EnsembleOptions {
   readonly dir?: string;
   /** Runs the classical companion (app/ensemble-companion.ts); absent: no comparison. */
   readonly companion?: CompanionRunner;
+  /**
+   * One task of several sharing the members (a Slurm array): advance the
+   * members j with j mod count = task (task 0 also the classical reference)
+   * into a folder set up before (prepareEnsemble); no companion, no reduction.
+   */
+  readonly share?: { readonly task: number; readonly count: number };
+  /** Advance nothing: reduce the members the folder holds (the collect step of an array). */
+  readonly reduceOnly?: boolean;
 }
 
 /** How an ensemble ended. */
@@ -87,9 +95,8 @@ function identityOf(run: ResolvedRun, setup: MemberSetup, particles: number): En
   return { config_sha256: sha256(resolvedConfigToml({ ...run, config: config as ResolvedRun["config"] })), cells: setup.start.length / 2, particles, seed: setup.seed, times_code: setup.times };
 }
 
-/** Run (or continue) the ensemble of `run`. */
-export async function runEnsemble(run: ResolvedRun, options: EnsembleOptions): Promise<EnsembleResult> {
-  await loadHdf5();
+/** What an ensemble run and its folder need, checked and set up (an array task only joins the folder). */
+function begin(run: ResolvedRun, options: Pick<EnsembleOptions, "force" | "dir" | "reporter" | "share">) {
   const reporter = options.reporter ?? silentReporter;
   const settings = resolveEnsemble(run.config);
   checkEnsembleModel(run);
@@ -97,11 +104,46 @@ export async function runEnsemble(run: ResolvedRun, options: EnsembleOptions): P
   checkEnsembleSize(settings, new Grid(run.grid.cells, run.grid.lengths), settings.samples + 1, dir);
   const { setup, grid, particles, warnings } = prepare(run, settings, reporter);
   for (const w of warnings) reporter.warn(w);
-  const { store } = EnsembleStore.open(dir, identityOf(run, setup, particles), resolvedConfigToml(run), options.force === true);
+  const identity = identityOf(run, setup, particles);
+  if (options.share) return { reporter, settings, dir, setup, grid, particles, warnings, store: EnsembleStore.join(dir, identity) };
+  const { store } = EnsembleStore.open(dir, identity, resolvedConfigToml(run), options.force === true);
   recordOwned(dir, [...REDUCTION_FILES]);
+  return { reporter, settings, dir, setup, grid, particles, warnings, store };
+}
+
+/**
+ * Set up the folder of the ensemble of `run` (its identity and config) and
+ * advance nothing: what emitting a Slurm array does once, before its tasks
+ * add members to the folder at the same time.
+ */
+export async function prepareEnsemble(run: ResolvedRun, options: Pick<EnsembleOptions, "force" | "dir" | "reporter">): Promise<{ dir: string; settings: ResolvedEnsemble; kept: number }> {
+  await loadHdf5();
+  const { dir, settings, store } = begin(run, options);
+  return { dir, settings, kept: store.completed().filter((j) => j < settings.members).length };
+}
+
+/** The tasks of this call: the members still missing (of this share), and the reference first when it is missing. */
+function tasksOf(store: EnsembleStore, members: number, options: EnsembleOptions): { tasks: (number | null)[]; done: Set<number> } {
+  const done = new Set(store.completed().filter((j) => j < members));
+  if (options.reduceOnly) return { tasks: [], done };
+  const { task, count } = options.share ?? { task: 0, count: 1 };
+  const mine = Array.from({ length: members }, (_, j) => j).filter((j) => j % count === task && !done.has(j));
+  return { tasks: [...(store.hasReference() || task !== 0 ? [] : [null]), ...mine], done };
+}
+
+/** Why a reduction of the members in the folder is incomplete (undefined: every member is there). */
+function missingReason(done: ReadonlySet<number>, members: number, hasReference: boolean): string | undefined {
+  if (!hasReference) return "the classical reference is missing (array task 0 has not finished)";
+  return done.size < members ? `${members - done.size} of ${members} members are missing (their tasks failed, were cancelled or are still running)` : undefined;
+}
+
+/** Run (or continue) the ensemble of `run`, or one array task's share of it, or only its reduction. */
+export async function runEnsemble(run: ResolvedRun, options: EnsembleOptions): Promise<EnsembleResult> {
+  await loadHdf5();
+  const { reporter, settings, dir, setup, grid, particles, warnings, store } = begin(run, options);
   const scales = new OutputScales(run);
   let series: CompanionSeries | undefined;
-  const companion = options.companion ? companionRun(run, dir) : undefined;
+  const companion = options.companion && !options.share ? companionRun(run, dir) : undefined;
   if (companion && options.companion) {
     const c = await companionSeries(companion, options.companion, reporter, (t) => scales.codeTime(t), options.stopRequested);
     if (c.stopped !== undefined) return { status: "stopped", reason: c.stopped, dir, reduction: undefined, summary: summaryOf(run, settings, particles, grid.size, undefined, scales, "stopped", c.stopped, warnings), warnings };
@@ -109,21 +151,21 @@ export async function runEnsemble(run: ResolvedRun, options: EnsembleOptions): P
   }
   const out = { dir, scales, cells: run.grid.cells, particleMass: setup.particleMass, cellVolume: grid.cellVolume };
   const reduction = { particleMass: setup.particleMass, cellVolume: grid.cellVolume, resamples: settings.resamples, seed: settings.seed, level: settings.departure, grid };
-  const done = new Set(store.completed().filter((j) => j < settings.members));
+  const { tasks, done } = tasksOf(store, settings.members, options);
   const hasReference = (): boolean => store.hasReference();
-  const tasks: (number | null)[] = [...(hasReference() ? [] : [null]), ...Array.from({ length: settings.members }, (_, j) => j).filter((j) => !done.has(j))];
   let reduced: EnsembleReduction | undefined;
   let compared: Record<string, unknown> | undefined;
   let comparison: Comparison | undefined;
   const reduce = (status: string, reason?: string): void => {
     const members = [...done].sort((a, b) => a - b);
-    if (members.length < 2 || !hasReference()) return;
+    if (members.length < 2 || !hasReference() || options.share) return;
     reduced = reduceEnsemble(store, reduction, members);
     comparison = series ? compareEnsemble(reduced, series, particles, run.breakdown.depletionFraction) : undefined;
     compared = comparison && companion ? comparisonSummary(comparison, scales, companion.breakdown.probes) : undefined;
     writeEnsembleOutputs(reduced, out, summaryOf(run, settings, particles, grid.size, reduced, scales, status, reason, warnings, compared), comparison);
   };
-  reporter.phase(done.size > 0 ? `ensemble (continuing: ${done.size} of ${settings.members} members kept)` : "ensemble");
+  const what = options.share ? `ensemble, array task ${options.share.task} of ${options.share.count}` : "ensemble";
+  reporter.phase(done.size > 0 ? `${what} (continuing: ${done.size} of ${settings.members} members kept)` : what);
   let nextReduction = Math.max(2, 2 ** Math.ceil(Math.log2(Math.max(2, done.size + 1))));
   const total = tasks.length;
   let finished = 0;
@@ -144,9 +186,10 @@ export async function runEnsemble(run: ResolvedRun, options: EnsembleOptions): P
     ...(options.stopRequested ? { stopRequested: options.stopRequested } : {}),
   });
   reporter.endPhase();
-  const status = stopped ? "stopped" : "completed";
-  reduce(status, stopped);
-  const summary = summaryOf(run, settings, particles, grid.size, reduced, scales, status, stopped, warnings, compared);
-  if (!reduced) writeSummary(dir, summary);
-  return { status, ...(stopped ? { reason: stopped } : {}), dir, reduction: reduced, ...(comparison ? { comparison } : {}), summary, warnings };
+  const reason = stopped ?? (options.reduceOnly ? missingReason(done, settings.members, hasReference()) : undefined);
+  const status = reason ? "stopped" : "completed";
+  reduce(status, reason);
+  const summary = summaryOf(run, settings, particles, grid.size, reduced, scales, status, reason, warnings, compared);
+  if (!reduced && !options.share) writeSummary(dir, summary);
+  return { status, ...(reason ? { reason } : {}), dir, reduction: reduced, ...(comparison ? { comparison } : {}), summary, warnings };
 }

@@ -25,7 +25,7 @@ export interface EnsembleIdentity {
 }
 
 /** The files psibox writes in an ensemble folder. */
-export const ENSEMBLE_FILES = ["ensemble.json", "config.toml", "reference.f64", "members/", "series.csv", "fields.h5", "summary.json", "report.html"] as const;
+export const ENSEMBLE_FILES = ["ensemble.json", "config.toml", "reference.f64", "members/", "slurm/", "series.csv", "fields.h5", "summary.json", "report.html"] as const;
 
 const IDENTITY = "ensemble.json";
 
@@ -50,9 +50,7 @@ export class EnsembleStore {
     if (fs.existsSync(file) && force) {
       deleteOwned(dir);
     } else if (fs.existsSync(file)) {
-      const before = readIdentity(file);
-      const differs = (Object.keys(identity) as (keyof EnsembleIdentity)[]).find((k) => JSON.stringify(before[k]) !== JSON.stringify(identity[k]));
-      if (differs) throw new InputError(`${fileName(dir)}: holds an ensemble with another ${differs.replace(/_/g, " ")}; pass --force to replace it, or set output.dir`);
+      checkSame(dir, readIdentity(file), identity, "pass --force to replace it, or set output.dir");
     }
     recordOwned(dir, [...ENSEMBLE_FILES]);
     fs.mkdirSync(path.join(dir, "members"), { recursive: true });
@@ -62,6 +60,19 @@ export class EnsembleStore {
     writeFileAtomic(path.join(dir, "config.toml"), configText);
     const store = new EnsembleStore(dir, identity);
     return { store, kept: store.completed().length };
+  }
+
+  /**
+   * Join the ensemble set up in `dir` (by open) as one of several processes
+   * adding members to it at once (a Slurm array task): the identity must be
+   * the same, and nothing but member files is ever written, so the tasks
+   * never race on the folder's identity, config or manifest.
+   */
+  static join(dir: string, identity: EnsembleIdentity): EnsembleStore {
+    const file = path.join(dir, IDENTITY);
+    if (!fs.existsSync(file)) throw new InputError(`${fileName(dir)}: no ensemble is set up there (no ${IDENTITY}); psibox ensemble CONFIG --emit slurm sets it up before the array`);
+    checkSame(dir, readIdentity(file), identity, "emit the array again (psibox ensemble CONFIG --emit slurm --force)");
+    return new EnsembleStore(dir, identity);
   }
 
   /** Open an existing ensemble folder for reading. */
@@ -119,6 +130,12 @@ export class EnsembleStore {
     }
     return out;
   }
+}
+
+/** Refuse an ensemble folder whose identity is not `identity`, naming the first difference. */
+function checkSame(dir: string, before: EnsembleIdentity, identity: EnsembleIdentity, remedy: string): void {
+  const differs = (Object.keys(identity) as (keyof EnsembleIdentity)[]).find((k) => JSON.stringify(before[k]) !== JSON.stringify(identity[k]));
+  if (differs) throw new InputError(`${fileName(dir)}: holds an ensemble with another ${differs.replace(/_/g, " ")}; ${remedy}`);
 }
 
 function readIdentity(file: string): EnsembleIdentity {
