@@ -30,15 +30,11 @@ export function validityWarning(particles: number, modes: number): string | unde
 }
 
 /**
- * Refuse what the members' equations leave out: a contact interaction and
- * species beside the first (members advance one field under gravity alone,
- * so such an ensemble would silently drop part of the model).
+ * Refuse what the members' equations leave out: species beside the first
+ * (members advance one field, under gravity and the particle's contact
+ * interaction, so such an ensemble would silently drop part of the model).
  */
 export function checkEnsembleModel(run: ResolvedRun): void {
-  if (run.contact) {
-    const key = run.contact.decayConstantJ !== undefined ? "particle.decay_constant" : "particle.scattering_length";
-    throw new ConfigError(key, "psibox ensemble advances members under gravity alone, without a contact interaction; remove the key for an ensemble");
-  }
   if (run.species.length > 0) throw new ConfigError("species", `psibox ensemble advances one species, and the config has ${run.species.length + 1}; remove [[species]] for an ensemble`);
 }
 

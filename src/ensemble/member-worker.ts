@@ -27,8 +27,8 @@ port.on("message", (m: ToWorker) => {
     return;
   }
   try {
-    const samples = solver.evolveMember(m.index ?? undefined, (fraction) => post({ kind: "progress", index: m.index, fraction }));
-    store.write(m.index ?? undefined, samples);
+    const fields = solver.evolveMember(m.index ?? undefined, (fraction) => post({ kind: "progress", index: m.index, fraction }));
+    store.write(m.index ?? undefined, fields);
     post({ kind: "done", index: m.index });
   } catch (e) {
     post({ kind: "failed", index: m.index, message: e instanceof Error ? e.message : String(e) });

@@ -111,11 +111,10 @@ export class EnsembleStore {
     return this.identity.times_code.length * this.identity.cells * 16;
   }
 
-  /** Write a member's (or, index undefined, the reference's) samples atomically. */
-  write(index: number | undefined, samples: readonly Float64Array[]): void {
-    const all = new Float64Array(this.identity.times_code.length * this.identity.cells * 2);
-    samples.forEach((s, i) => all.set(s, i * this.identity.cells * 2));
-    writeFileAtomic(index === undefined ? this.referencePath : this.memberPath(index), new Uint8Array(all.buffer));
+  /** Write a member's (or, index undefined, the reference's) samples, [time][cell][re, im], atomically. */
+  write(index: number | undefined, all: Float64Array): void {
+    if (all.length !== this.identity.times_code.length * this.identity.cells * 2) throw new RangeError(`a member holds ${this.identity.times_code.length} × ${this.identity.cells} complex values, got ${all.length / 2}`);
+    writeFileAtomic(index === undefined ? this.referencePath : this.memberPath(index), new Uint8Array(all.buffer, all.byteOffset, all.byteLength));
   }
 
   /** One sample time's field of a member (or of the reference), code units. */

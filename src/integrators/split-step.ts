@@ -70,6 +70,13 @@ export class SplitStepper {
   midKineticTilde = Number.NaN;
   /** The contact coefficient g of ψ (code units; 0: none): the kick is e^{−iK(φ + g|ψ|²)}. */
   readonly contact: number;
+  /**
+   * A uniform density subtracted from ψ's in the box before the potential is
+   * solved (0: none); with periodic gravity it changes nothing (the mean is
+   * removed anyway). Truncated-Wigner members remove their half quantum of
+   * noise per cell from the source of isolated gravity with it.
+   */
+  sourceShift = 0;
   /** The last step's factors D = ∫dt/a² and K = K₁ + K₂ = ∫dt/a. */
   lastDrift = 0;
   lastKick = 0;
@@ -308,8 +315,9 @@ export class SplitStepper {
 
   /** φ from the density φ holds. */
   private solvePotential(): void {
-    if (this.gravity.kind === "none") this.gravity.solveInPlace(this.phi);
-    else this.runPasses(this.plan.potential("phi"));
+    if (this.gravity.kind === "none") return this.gravity.solveInPlace(this.phi);
+    if (this.sourceShift !== 0) for (let i = 0; i < this.grid.size; i++) this.phi[i] = (this.phi[i] as number) - this.sourceShift;
+    this.runPasses(this.plan.potential("phi"));
   }
 
   /** ψ ← e^{−iK(φ + g|ψ|²)} ψ. */
