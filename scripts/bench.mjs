@@ -4,7 +4,7 @@
 // When python3 with NumPy is available it also runs scripts/numpy_step.py, NumPy's version of the
 // identical step, checks that both give the same field to 1e-10 and prints the time ratio.
 // It ends with the real run against the bare step (scripts/bench-run.mjs): 128³, and 256³ with --large.
-// Usage: node scripts/bench.mjs [--large] [--steps N] [--no-numpy] [--threads N] [--fft auto|wasm|js] [--tangents-only] [--real-run-only]
+// Usage: node scripts/bench.mjs [--large] [--steps N] [--no-numpy] [--threads N] [--fft auto|wasm|js] [--tangents-only] [--real-run-only] [--long-only]
 // (threads default to the number of cores; the fft backend to auto, and the 3D grids are also run on the other backend)
 import { Grid } from "../dist/grid/grid.js";
 import { makePoissonSolver } from "../dist/fields/poisson.js";
@@ -82,7 +82,7 @@ const here = path.dirname(fileURLToPath(import.meta.url));
 const useNumpy = !args.includes("--no-numpy") && spawnSync("python3", ["-c", "import numpy"]).status === 0;
 
 function writeNpy(file, shape, data) {
-  let header = `{'descr': '<c16', 'fortran_order': False, 'shape': (${shape.join(", ")}), }`;
+  let header = `{'descr': '<c16', 'fortran_order': False, 'shape': (${shape.join(", ")}${shape.length === 1 ? "," : ""}), }`;
   header += " ".repeat((64 - ((10 + header.length + 1) % 64)) % 64) + "\n";
   const head = Buffer.alloc(10);
   head.write("\x93NUMPY", 0, "latin1");
@@ -92,7 +92,7 @@ function writeNpy(file, shape, data) {
 }
 
 /** psibox and NumPy on the same field: ms/step of each and the largest difference after `steps` steps. */
-function compareWithNumpy(shape) {
+function compareWithNumpy(shape, t = threads) {
   const grid = new Grid(shape, shape.map(() => 1));
   const psi0 = field(grid);
   const kMax = Math.PI * Math.max(...shape); // a step the phase rule would allow, as in bench()
@@ -103,7 +103,7 @@ function compareWithNumpy(shape) {
     const r = spawnSync("python3", [path.join(here, "numpy_step.py"), path.join(dir, "in.npy"), path.join(dir, "out.npy"), String(steps), String(dt)], { encoding: "utf8" });
     if (r.status !== 0) return undefined;
     const numpyMs = Number(r.stdout.trim());
-    const stepper = makeStepper(grid, "periodic", threads);
+    const stepper = makeStepper(grid, "periodic", t);
     stepper.setState(psi0, 0);
     const times = [];
     for (let i = 0; i < steps; i++) {
@@ -152,9 +152,34 @@ function benchTangents() {
     console.log(`${r.label.padEnd(40)} ${r.ms.toFixed(1).padStart(8)} ms   ${(r.ms / plain.ms).toFixed(2)}× (target ≤ ${target.toFixed(1)}×)`);
   }
 }
+// long 1D and big 2D grids against NumPy, psibox on 1 thread and on `threads`, interleaved in one run
+function printLongRows() {
+  if (!useNumpy) {
+    console.log("(no python3 with NumPy here: the 1D/2D comparison with NumPy is skipped)");
+    return;
+  }
+  console.log(`1D and 2D against NumPy (the identical step), median of ${steps} steps, load average ${os.loadavg().map((x) => x.toFixed(1)).join(" ")}`);
+  console.log("grid       threads   psibox ms/step   NumPy ms/step   ratio   max |Δψ|/max|ψ|");
+  for (const shape of [[1 << 16], [1 << 20], [2048, 2048]]) {
+    const name = shape.length === 1 ? `2^${Math.log2(shape[0])}` : `${shape[0]}²`;
+    for (const t of threads > 1 ? [1, threads] : [1]) {
+      const c = compareWithNumpy(shape, t);
+      if (!c) {
+        console.log(`${name}: NumPy run failed`);
+        continue;
+      }
+      const ok = c.relDiff < 1e-10 ? "agree" : "DIFFER";
+      console.log(`${name.padEnd(10)} ${String(t).padStart(7)} ${c.psiboxMs.toFixed(1).padStart(16)} ${c.numpyMs.toFixed(1).padStart(15)} ${(c.psiboxMs / c.numpyMs).toFixed(2).padStart(7)}   ${c.relDiff.toExponential(1)} (${ok})`);
+    }
+  }
+}
 const realRunSizes = large ? [128, 256] : [128];
 if (args.includes("--real-run-only")) {
   await printRealRunRows(realRunSizes, (n) => (threadsArg >= 0 ? threads : defaultThreads([n, n, n])));
+  process.exit(0);
+}
+if (args.includes("--long-only")) {
+  printLongRows();
   process.exit(0);
 }
 if (args.includes("--tangents-only")) {

@@ -8,7 +8,7 @@ import type { Triple } from "../grid/grid.js";
 import { densityRows, driftRows, gradientNormRows, kickRows, normRows, poissonRows } from "./step-kernels.js";
 import { combineRows, crossDensityRows, overlapRows, tangentSourceRows } from "./tangent-kernels.js";
 import { regionName, regionView, type StepSetup } from "./step-memory.js";
-import type { ComplexGrid, PoissonTarget, RealGrid, StepEngine } from "./step-engine.js";
+import type { ComplexGrid, LongRowsMode, PoissonTarget, RealGrid, StepEngine } from "./step-engine.js";
 
 type Axes = [Float64Array, Float64Array, Float64Array];
 
@@ -16,6 +16,8 @@ export abstract class EngineBase implements StepEngine {
   protected readonly setup: StepSetup;
   protected readonly shape: Triple;
   protected readonly half: Triple;
+  /** Cells per row of the elementwise passes: the last axis, or a long 1D grid's rows (step-memory.ts LongLayout). */
+  protected readonly rowLength: number;
   private readonly views = new Map<string, Float64Array>();
   /** k² per axis. */
   protected readonly kk: Axes;
@@ -28,6 +30,7 @@ export abstract class EngineBase implements StepEngine {
     const g = setup.geometry;
     this.shape = g.shape;
     this.half = g.half;
+    this.rowLength = g.long ? g.long.n2 : g.shape[2];
     this.kk = this.axes(regionName.kSquared);
     this.kp = g.gravity === "periodic" ? this.axes(regionName.kPoisson) : undefined;
     this.iso =
@@ -117,7 +120,7 @@ export abstract class EngineBase implements StepEngine {
   }
 
   kick(field: ComplexGrid, potential: RealGrid, factor: number, contact: number, source: ComplexGrid, lo: number, hi: number): void {
-    kickRows(this.view(field), this.view(potential), factor, this.shape[2], lo, hi, contact, this.view(source));
+    kickRows(this.view(field), this.view(potential), factor, this.rowLength, lo, hi, contact, this.view(source));
   }
 
   fillPhases(set: number, factor: number): void {
@@ -142,7 +145,7 @@ export abstract class EngineBase implements StepEngine {
   }
 
   copy(from: ComplexGrid, to: ComplexGrid, lo: number, hi: number): void {
-    const n2 = this.shape[2];
+    const n2 = this.rowLength;
     this.view(to).set(this.view(from).subarray(2 * lo * n2, 2 * hi * n2), 2 * lo * n2);
   }
 
@@ -155,7 +158,7 @@ export abstract class EngineBase implements StepEngine {
     let max = 0;
     let phiMin = Infinity;
     let phiMax = -Infinity;
-    const n2 = this.shape[2];
+    const n2 = this.rowLength;
     for (let i = lo * n2; i < hi * n2; i++) {
       const rho = psi[2 * i]! * psi[2 * i]! + psi[2 * i + 1]! * psi[2 * i + 1]!;
       const p = phi[i]!;
@@ -175,11 +178,11 @@ export abstract class EngineBase implements StepEngine {
   }
 
   norm(field: ComplexGrid, lo: number, hi: number): number {
-    return normRows(this.view(field), this.shape[2], lo, hi);
+    return normRows(this.view(field), this.rowLength, lo, hi);
   }
 
   density(field: ComplexGrid, target: RealGrid, add: boolean, lo: number, hi: number): number {
-    return densityRows(this.view(field), this.view(target), add, this.shape[2], lo, hi);
+    return densityRows(this.view(field), this.view(target), add, this.rowLength, lo, hi);
   }
 
   poisson(lo: number, hi: number): void {
@@ -188,19 +191,19 @@ export abstract class EngineBase implements StepEngine {
   }
 
   crossDensity(field: ComplexGrid, target: RealGrid, lo: number, hi: number): void {
-    crossDensityRows(this.view("psi"), this.view(field), this.view(target), this.shape[2], lo, hi);
+    crossDensityRows(this.view("psi"), this.view(field), this.view(target), this.rowLength, lo, hi);
   }
 
   tangentSource(field: ComplexGrid, potential: RealGrid, factor: number, contact: number, lo: number, hi: number): void {
-    tangentSourceRows(this.view("psi"), this.view(field), this.view(potential), factor, this.shape[2], lo, hi, contact);
+    tangentSourceRows(this.view("psi"), this.view(field), this.view(potential), factor, this.rowLength, lo, hi, contact);
   }
 
   overlap(field: ComplexGrid, lo: number, hi: number, out: Float64Array): void {
-    overlapRows(this.view("psi"), this.view(field), this.shape[2], lo, hi, out);
+    overlapRows(this.view("psi"), this.view(field), this.rowLength, lo, hi, out);
   }
 
   combine(field: ComplexGrid, scale: number, re: number, im: number, lo: number, hi: number): void {
-    combineRows(this.view("psi"), this.view(field), scale, re, im, this.shape[2], lo, hi);
+    combineRows(this.view("psi"), this.view(field), scale, re, im, this.rowLength, lo, hi);
   }
 
   abstract axis(field: ComplexGrid, axis: number, inverse: boolean, lo: number, hi: number): void;
@@ -210,4 +213,7 @@ export abstract class EngineBase implements StepEngine {
   abstract realRowsInverse(target: PoissonTarget, real: RealGrid, lo: number, hi: number): void;
   abstract halfAxis(target: PoissonTarget, axis: number, inverse: boolean, lo: number, hi: number): void;
   abstract poissonOuter(axis: number, lo: number, hi: number): void;
+  abstract longColumns(grid: ComplexGrid | RealGrid, inverse: boolean, lo: number, hi: number): void;
+  abstract longRows(grid: ComplexGrid | RealGrid, mode: LongRowsMode, phases: number, gradient: boolean, lo: number, hi: number): number;
+  abstract longPairs(real: RealGrid, lo: number, hi: number): void;
 }

@@ -5,8 +5,9 @@
 import type { Triple } from "../grid/grid.js";
 import { ComplexFft, PENCIL_BLOCK, RealFft } from "./fft.js";
 import { EngineBase } from "./engine-base.js";
-import { regionName, type StepSetup } from "./step-memory.js";
-import type { ComplexGrid, PoissonTarget, RealGrid } from "./step-engine.js";
+import { isRealGrid, regionName, type StepSetup } from "./step-memory.js";
+import type { ComplexGrid, LongRowsMode, PoissonTarget, RealGrid } from "./step-engine.js";
+import { longPairRows, longPhaseRows, twiddleRows } from "./long-kernels.js";
 
 /**
  * Visit the pencils of outer units [lo, hi) along `axis` (0 or 1) of a complex
@@ -34,12 +35,13 @@ export class JsStepEngine extends EngineBase {
   private readonly cfft: ComplexFft;
   private readonly rfft: RealFft | undefined;
   private readonly rfftPadded: RealFft | undefined;
+  private readonly longFfts = new Map<number, ComplexFft>();
 
   constructor(setup: StepSetup) {
     super(setup);
     const g = setup.geometry;
     this.cfft = new ComplexFft(g.shape);
-    this.rfft = g.gravity === "periodic" ? new RealFft(g.shape) : undefined;
+    this.rfft = g.gravity === "periodic" && !g.long ? new RealFft(g.shape) : undefined;
     this.rfftPadded = g.padded ? new RealFft(g.padded) : undefined;
   }
 
@@ -97,6 +99,45 @@ export class JsStepEngine extends EngineBase {
   halfAxis(target: PoissonTarget, axis: number, inverse: boolean, lo: number, hi: number): void {
     const [fft, , spec] = this.real(target, "phi");
     fft.outerPass(spec, axis as 0 | 1, inverse, lo, hi);
+  }
+
+  /** fft.js on a long grid's matrix of `rows` rows (made once per row count). */
+  private longFft(rows: number): ComplexFft {
+    let f = this.longFfts.get(rows);
+    if (!f) {
+      f = new ComplexFft([rows, 1, this.setup.geometry.long!.n2]);
+      this.longFfts.set(rows, f);
+    }
+    return f;
+  }
+
+  longColumns(grid: ComplexGrid | RealGrid, inverse: boolean, lo: number, hi: number): void {
+    const rows = isRealGrid(grid) ? this.setup.geometry.long!.n1 / 2 : this.setup.geometry.long!.n1;
+    this.longFft(rows).pass(this.view(grid), 0, inverse, lo, hi);
+  }
+
+  longRows(grid: ComplexGrid | RealGrid, mode: LongRowsMode, phases: number, gradient: boolean, lo: number, hi: number): number {
+    const { n1, n2 } = this.setup.geometry.long!;
+    const real = isRealGrid(grid);
+    const rows = real ? n1 / 2 : n1;
+    const data = this.view(grid);
+    const tw = this.view(regionName.longTwiddles);
+    const fft = this.longFft(rows);
+    let sum = 0;
+    if (mode !== "inverse") {
+      twiddleRows(data, tw, n1 / 16, n2, real ? 2 : 1, lo, hi, false);
+      fft.pass(data, 2, false, lo, hi);
+      sum = longPhaseRows(data, rows, n2, lo, hi, mode === "drift" ? this.view(regionName.phase(phases, 2)) : undefined, gradient ? this.kk[2] : undefined);
+    }
+    if (mode === "forward") return sum;
+    fft.pass(data, 2, true, lo, hi);
+    twiddleRows(data, tw, n1 / 16, n2, real ? 2 : 1, lo, hi, true);
+    return sum;
+  }
+
+  longPairs(real: RealGrid, lo: number, hi: number): void {
+    const { n1, n2 } = this.setup.geometry.long!;
+    longPairRows(this.view(real), n1 / 2, n2, lo, hi, this.kp![2]);
   }
 
   poissonOuter(axis: number, lo: number, hi: number): void {

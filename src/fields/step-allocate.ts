@@ -1,11 +1,12 @@
 /**
  * Allocating the step's memory from its table of regions (fields/step-memory.ts)
  * and filling its tables: k² per axis, the Poisson kernel, the isolated
- * solve's Green's function, and for the wasm backend the kernels' constants,
+ * solve's Green's function, a long 1D grid's four-step twiddles, and for the wasm backend the kernels' constants,
  * twiddles, bit-reversal permutations and real-row twiddles.
  */
 import {
   ELEMENT_BYTES,
+  LONG_FINE_ROWS,
   regionInts,
   regionName,
   regionView,
@@ -90,6 +91,21 @@ function fillTables(setup: StepSetup, tables: TableInputs): void {
     if (setup.geometry.gravity === "periodic") regionView(setup, regionName.kPoisson(axis)).set(tables.kPoisson![axis]!);
   }
   if (setup.geometry.gravity === "isolated") regionView(setup, "iso.hat").set(tables.isolatedHat!);
+  if (setup.geometry.long) fillLongTwiddles(regionView(setup, regionName.longTwiddles), setup.geometry.long.n1, setup.geometry.long.n2);
+}
+
+/** A long grid's twiddle table (step-memory.ts longTwiddleRows): coarse rows e^{−2πi·16c·j/N}, then fine rows e^{−2πi·f·j/N}. */
+function fillLongTwiddles(out: Float64Array, n1: number, n2: number): void {
+  const n = n1 * n2;
+  const multipliers = [...Array.from({ length: n1 / 16 }, (_, c) => 16 * c), ...Array.from({ length: LONG_FINE_ROWS }, (_, f) => f)];
+  multipliers.forEach((a, row) => {
+    for (let j = 0; j < n2; j++) {
+      // the exact residue of a·j mod N keeps the angle below 2π
+      const angle = (2 * Math.PI * ((a * j) % n)) / n;
+      out[2 * (row * n2 + j)] = Math.cos(angle);
+      out[2 * (row * n2 + j) + 1] = -Math.sin(angle);
+    }
+  });
 }
 
 function fillKernelTables(setup: StepSetup, transforms: readonly Transform[]): void {

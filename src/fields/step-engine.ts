@@ -32,6 +32,9 @@ export type ComplexGrid = "psi" | "undo" | `field.${number}` | `undo.${number}`;
 export type RealGrid = "phi" | "aux";
 
 /** Which Poisson grid a real-transform pass works on: the periodic half spectrum or the isolated solve's padded grid. */
+/** What a long grid's rows pass does (`longRows`). */
+export type LongRowsMode = "forward" | "inverse" | "drift";
+
 export type PoissonTarget = "periodic" | "isolated";
 
 export interface StepEngine {
@@ -79,6 +82,18 @@ export interface StepEngine {
   poisson(lo: number, hi: number): void;
   /** Forward along outer `axis` of the half spectrum, −1/k², inverse. */
   poissonOuter(axis: number, lo: number, hi: number): void;
+  /**
+   * A long 1D grid (step-memory.ts LongLayout): a pass over blocks of columns
+   * [lo, hi) of a complex field's matrix, or of a real grid's m = N/2 complex pairs.
+   */
+  longColumns(grid: ComplexGrid | RealGrid, inverse: boolean, lo: number, hi: number): void;
+  /**
+   * A long grid's rows [lo, hi) of that matrix: "forward" twiddles and transforms, "inverse" transforms back
+   * and untwiddles, "drift" does both with the phase of set `phases` between; with `gradient` returns Σ k²|ψ_k|².
+   */
+  longRows(grid: ComplexGrid | RealGrid, mode: LongRowsMode, phases: number, gradient: boolean, lo: number, hi: number): number;
+  /** A long grid's periodic Poisson solve on the transformed pairs of `real`, row pairs [lo, hi) (kernels.as.ts longPairs). */
+  longPairs(real: RealGrid, lo: number, hi: number): void;
   /** Tangent fields: target ← 2 Re(ψ̄ field) over rows (the source of the linearised potential). */
   crossDensity(field: ComplexGrid, target: RealGrid, lo: number, hi: number): void;
   /** Tangent fields: field ← field − i·factor·(potential + 2·contact·Re(ψ̄ field))·ψ over rows (the linear term of the kick). */

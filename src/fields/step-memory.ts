@@ -32,6 +32,52 @@ export interface StepGeometry {
   readonly paddedHalf: Triple | undefined;
   /** The fields beside the reference ψ. */
   readonly extra: ExtraLayout;
+  /** A long 1D grid's transforms in four steps (see LongLayout); undefined otherwise. */
+  readonly long: LongLayout | undefined;
+}
+
+/**
+ * A long 1D grid of N = n1·n2 cells seen as n1 rows of n2 cells (cell
+ * x = a·n2 + b at row a, column b). Its transform runs in four steps: the
+ * columns (length n1, blocks of pencils), a twiddle e^{−2πi·a'·b/N} per cell,
+ * the rows (length n2); the spectrum stays in transposed order, wavenumber
+ * index k = a' + n1·k2 at row a', column k2, and the inverse retraces the
+ * steps back to natural order. The periodic Poisson solve does the same on
+ * the density's N/2 complex pairs (n1/2 rows of n2), in place. Elementwise
+ * passes work on the n1 rows, so every pass splits across threads.
+ */
+export interface LongLayout {
+  readonly n1: number;
+  readonly n2: number;
+}
+
+/** Whether a grid name is a real grid (φ or aux): a long grid's real transforms run on its N/2 complex pairs. */
+export function isRealGrid(grid: string): grid is "phi" | "aux" {
+  return grid === "phi" || grid === "aux";
+}
+
+/**
+ * Rows of n2 values in a long grid's twiddle table: the twiddle e^{−2πi·a·j/N}
+ * of row a, column j is the product of coarse row ⌊a/16⌋ (e^{−2πi·16c·j/N},
+ * c < n1/16) and fine row a mod 16 (e^{−2πi·f·j/N}), a table of 1/16 + 16/n1
+ * of the grid's size.
+ */
+export function longTwiddleRows(long: LongLayout): number {
+  return long.n1 / 16 + LONG_FINE_ROWS;
+}
+
+/** Fine rows of the long twiddle table. */
+export const LONG_FINE_ROWS = 16;
+
+/** Cells from which a 1D grid (a power of two) is transformed in four steps: from here a transform outgrows the caches. */
+export const LONG_MIN_CELLS = 1 << 14;
+
+/** The four-step layout of a 1D grid of `shape`, if it gets one: rows of n2 = 2^⌈log₂N/2⌉ cells. */
+export function longLayout(shape: Triple, gravity: GravityKind): LongLayout | undefined {
+  const n = shape[2];
+  if (shape[0] !== 1 || shape[1] !== 1 || gravity === "isolated" || n < LONG_MIN_CELLS || (n & (n - 1)) !== 0) return undefined;
+  const n2 = 2 ** Math.ceil(Math.log2(n) / 2);
+  return { n1: n / n2, n2 };
 }
 
 /** What the fields advanced beside the reference ψ need laid out. */
@@ -56,7 +102,8 @@ export function defaultPadding(shape: Triple): Triple {
 export function stepGeometry(shape: Triple, gravity: GravityKind, padded: Triple = defaultPadding(shape), extra: ExtraLayout = NO_EXTRA): StepGeometry {
   const halfOf = (s: Triple): Triple => [s[0], s[1], s[2] / 2 + 1];
   const isolated = gravity === "isolated";
-  return { shape, half: halfOf(shape), gravity, padded: isolated ? padded : undefined, paddedHalf: isolated ? halfOf(padded) : undefined, extra };
+  const long = longLayout(shape, gravity);
+  return { shape, half: halfOf(shape), gravity, padded: isolated ? padded : undefined, paddedHalf: isolated ? halfOf(padded) : undefined, extra, long };
 }
 
 /** A complex transform the step runs: length, pencils in all, and for real rows their real length (else 0). */
@@ -104,6 +151,8 @@ export const regionName = {
   reversal: (n: number) => `rev.${n}`,
   /** (cos, sin)(2πk/n), k = 0 … n/2, for untangling real rows of length n. */
   realTwiddles: (n: number) => `rtw.${n}`,
+  /** The four-step twiddles of a long 1D grid (rows of n2, see longTwiddleRows). */
+  longTwiddles: "long.tw",
   /** A thread's two scratch blocks. */
   scratch: (slot: number) => `scratch.${slot}`,
 } as const;
@@ -143,8 +192,10 @@ export function stepRegions(g: StepGeometry, transforms: readonly Transform[], s
     for (const set of [0, ...g.extra.phaseSets]) add(regionName.phase(set, axis), "complex", even(g.shape[axis]!));
     add(regionName.kSquared(axis), "f64", even(g.shape[axis]!));
   }
+  if (g.long) add(regionName.longTwiddles, "complex", longTwiddleRows(g.long) * g.long.n2);
   if (g.gravity === "periodic") {
-    add("spectrum", "complex", cells(g.half));
+    // a long grid's Poisson solve runs in place on its density (LongLayout)
+    if (!g.long) add("spectrum", "complex", cells(g.half));
     for (let axis = 0; axis < 3; axis++) add(regionName.kPoisson(axis), "f64", g.half[axis]!);
   }
   if (g.gravity === "isolated") {

@@ -29,10 +29,16 @@ export interface WasmKernelExports {
     data: number, n0: number, n1: number, n2: number, axis: number, lo: number, hi: number, buf: number, buf2: number,
     twF: number, twI: number, rev: number, kAxis: number, kOuter: number, kLane: number,
   ): void;
+  longRows(
+    data: number, rows: number, n2: number, lo: number, hi: number, buf: number, buf2: number, twF: number, twI: number, rev: number,
+    ltw: number, coarse: number, tStep: number, mode: number, phase: number, kk: number,
+  ): number;
+  longPairs(data: number, rows: number, n2: number, lo: number, hi: number, kp: number, ctw: number): void;
   realRows(input: number, out: number, n2: number, lo: number, hi: number, buf: number, tw: number, rev: number, ctw: number): void;
   realRowsInverse(spec: number, out: number, n2: number, lo: number, hi: number, buf: number, tw: number, rev: number, ctw: number): void;
   kick(psi: number, src: number, phi: number, factor: number, contact: number, lo: number, hi: number): void;
   moments(psi: number, phi: number, lo: number, hi: number, out: number): void;
+  density(psi: number, phi: number, lo: number, hi: number): number;
   sinCos(angles: number, out: number, count: number): void;
   phaseTable(kk: number, factor: number, out: number, count: number): void;
 }

@@ -5,8 +5,8 @@
  */
 import type { Triple } from "../grid/grid.js";
 import { EngineBase } from "./engine-base.js";
-import { region, regionName, type StepSetup } from "./step-memory.js";
-import type { ComplexGrid, PoissonTarget, RealGrid } from "./step-engine.js";
+import { isRealGrid, region, regionName, type StepSetup } from "./step-memory.js";
+import type { ComplexGrid, LongRowsMode, PoissonTarget, RealGrid } from "./step-engine.js";
 import { instantiateKernels, kernelModule, type WasmKernelExports } from "./wasm-kernels.js";
 
 /** Byte addresses of an n-point transform's tables. */
@@ -15,6 +15,9 @@ interface Tables {
   readonly inverse: number;
   readonly reversal: number;
 }
+
+/** The kernels' numbers of the long rows pass's modes (kernels.as.ts LONG_FORWARD, LONG_INVERSE, LONG_DRIFT). */
+const LONG_MODES: readonly LongRowsMode[] = ["forward", "inverse", "drift"];
 
 /** Transforms by the WebAssembly SIMD kernels on the shared memory. */
 export class WasmStepEngine extends EngineBase {
@@ -56,15 +59,22 @@ export class WasmStepEngine extends EngineBase {
   }
 
   override kick(field: ComplexGrid, potential: RealGrid, factor: number, contact: number, source: ComplexGrid, lo: number, hi: number): void {
-    const n2 = this.shape[2];
+    const n2 = this.rowLength;
     this.k.kick(this.at(field), this.at(source), this.at(potential), factor, contact, lo * n2, hi * n2);
   }
 
   /** The moments on the SIMD kernel (written to this thread's scratch block, then copied out). */
   override moments(lo: number, hi: number, out: Float64Array): void {
-    const n2 = this.shape[2];
+    const n2 = this.rowLength;
     this.k.moments(this.at("psi"), this.at("phi"), lo * n2, hi * n2, this.buf);
     out.set(new Float64Array(this.setup.memory!.buffer, this.buf, 6));
+  }
+
+  /** |field|² on the SIMD kernel (the sums run two cells at a time, so they differ from fft.js's engine by round-off only). */
+  override density(field: ComplexGrid, target: RealGrid, add: boolean, lo: number, hi: number): number {
+    if (add) return super.density(field, target, add, lo, hi);
+    const n2 = this.rowLength;
+    return this.k.density(this.at(field), this.at(target), lo * n2, hi * n2);
   }
 
   axis(field: ComplexGrid, axis: number, inverse: boolean, lo: number, hi: number): void {
@@ -116,6 +126,29 @@ export class WasmStepEngine extends EngineBase {
     const t = this.tables(this.half[axis]!);
     const kp = (a: number) => this.at(regionName.kPoisson(a));
     this.k.poissonOuter(this.at("spectrum"), h0, h1, h2, axis, lo, hi, this.buf, this.buf2, t.forward, t.inverse, t.reversal, kp(axis), kp(1 - axis), kp(2));
+  }
+
+  longColumns(grid: ComplexGrid | RealGrid, inverse: boolean, lo: number, hi: number): void {
+    const { n1, n2 } = this.setup.geometry.long!;
+    const rows = isRealGrid(grid) ? n1 / 2 : n1;
+    const t = this.tables(rows);
+    this.k.axisPass(this.at(grid), rows, 1, n2, 0, lo, hi, this.buf, inverse ? t.inverse : t.forward, t.reversal, inverse ? 1 : 0, inverse ? 1 / rows : 1);
+  }
+
+  longRows(grid: ComplexGrid | RealGrid, mode: LongRowsMode, phases: number, gradient: boolean, lo: number, hi: number): number {
+    const { n1, n2 } = this.setup.geometry.long!;
+    const real = isRealGrid(grid);
+    const t = this.tables(n2);
+    const phase = mode === "drift" ? this.at(regionName.phase(phases, 2)) : 0;
+    return this.k.longRows(
+      this.at(grid), real ? n1 / 2 : n1, n2, lo, hi, this.buf, this.buf2, t.forward, t.inverse, t.reversal,
+      this.at(regionName.longTwiddles), n1 / 16, real ? 2 : 1, LONG_MODES.indexOf(mode), phase, gradient ? this.at(regionName.kSquared(2)) : 0,
+    );
+  }
+
+  longPairs(real: RealGrid, lo: number, hi: number): void {
+    const { n1, n2 } = this.setup.geometry.long!;
+    this.k.longPairs(this.at(real), n1 / 2, n2, lo, hi, this.at(regionName.kPoisson(2)), this.at(regionName.realTwiddles(n1 * n2)));
   }
 
   realRows(target: PoissonTarget, real: RealGrid, lo: number, hi: number): void {

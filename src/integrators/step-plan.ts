@@ -5,7 +5,7 @@
  * transforms whose tables and scratch the step's memory lays out follow from
  * them (`transforms`), so adding a pass to a list is the whole change.
  */
-import { outerCount } from "../fields/fft.js";
+import { outerCount, PENCIL_BLOCK } from "../fields/fft.js";
 import type { ComplexGrid, RealGrid } from "../fields/step-engine.js";
 import type { StepGeometry, Transform } from "../fields/step-memory.js";
 import { transformOf, type StepTask } from "./step-task.js";
@@ -48,7 +48,7 @@ export class StepPlan {
   constructor(geometry: StepGeometry) {
     this.geometry = geometry;
     const [n0, n1] = geometry.shape;
-    this.rows = n0 * n1;
+    this.rows = geometry.long ? geometry.long.n1 : n0 * n1;
     this.outer = n0 > 1 ? 0 : n1 > 1 ? 1 : -1;
     this.middle = this.outer === 0 && n1 > 1;
   }
@@ -59,6 +59,7 @@ export class StepPlan {
    * axis fused with the phase, and back.
    */
   drift(field: ComplexGrid, phases: number, o: DriftOptions): PlannedPass[] {
+    if (this.geometry.long) return this.longDrift(field, phases, o);
     const shape = this.geometry.shape;
     const contact = o.contact ?? 0;
     const source = o.source ?? field;
@@ -76,9 +77,43 @@ export class StepPlan {
     return passes;
   }
 
+  /**
+   * A long 1D grid's drift (fields/step-memory.ts LongLayout): the kick, the
+   * columns, the rows with the phase between their transforms, the columns
+   * back, the density.
+   */
+  private longDrift(field: ComplexGrid, phases: number, o: DriftOptions): PlannedPass[] {
+    const passes: PlannedPass[] = [];
+    if (o.kick !== 0) passes.push({ task: { op: "kick", field, potential: o.potential, factor: o.kick, contact: o.contact ?? 0, source: o.source ?? field }, units: this.rows });
+    passes.push(this.longColumns(field, false));
+    passes.push({ task: { op: "long-rows", grid: field, mode: "drift", phases, gradient: o.gradient }, units: this.rows, result: "kinetic" });
+    passes.push(this.longColumns(field, true));
+    if (o.density) passes.push({ task: { op: "density", field, target: o.potential, add: false }, units: this.rows, result: "mass" });
+    return passes;
+  }
+
+  /** A long grid's pass over its columns: of a field's matrix, or of a real grid's half-length one. */
+  private longColumns(grid: ComplexGrid | RealGrid, inverse: boolean): PlannedPass {
+    return { task: { op: "long-columns", grid, inverse }, units: Math.ceil(this.geometry.long!.n2 / PENCIL_BLOCK) };
+  }
+
+  /** A long grid's periodic potential: the density's four-step transform, the kernel on pairs of wavenumbers, and back. */
+  private longPotential(real: RealGrid): PlannedPass[] {
+    const rows = this.geometry.long!.n1 / 2;
+    const longRows = (mode: "forward" | "inverse"): PlannedPass => ({ task: { op: "long-rows", grid: real, mode, phases: 0, gradient: false }, units: rows });
+    return [
+      this.longColumns(real, false),
+      longRows("forward"),
+      { task: { op: "long-pairs", real }, units: rows / 2 + 1 },
+      longRows("inverse"),
+      this.longColumns(real, true),
+    ];
+  }
+
   /** The potential of the density in `real`, written back into `real` (none for gravity "none": the stepper zeroes it). */
   potential(real: RealGrid): PlannedPass[] {
     const g = this.geometry;
+    if (g.long && g.gravity === "periodic") return this.longPotential(real);
     if (g.gravity === "periodic") return this.periodicPotential(real);
     if (g.gravity === "isolated") return this.isolatedPotential(real);
     return [];
@@ -125,6 +160,10 @@ export class StepPlan {
 
   /** Σ k²|ψ_k|² of `field` (result "kinetic"): a copy into `scratch`, its forward transform, the sum. */
   kinetic(field: ComplexGrid, scratch: ComplexGrid): PlannedPass[] {
+    if (this.geometry.long) {
+      const forward: PlannedPass = { task: { op: "long-rows", grid: scratch, mode: "forward", phases: 0, gradient: true }, units: this.rows, result: "kinetic" };
+      return [this.copy(field, scratch), this.longColumns(scratch, false), forward];
+    }
     const shape = this.geometry.shape;
     const passes: PlannedPass[] = [this.copy(field, scratch), { task: { op: "rows", field: scratch, inverse: false, kick: 0, potential: "phi", density: false, contact: 0, source: scratch }, units: this.rows }];
     for (const axis of [1, 0]) if (shape[axis]! > 1) passes.push({ task: { op: "axis", field: scratch, axis, inverse: false }, units: outerCount(shape, axis) });

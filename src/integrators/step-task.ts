@@ -4,8 +4,8 @@
  * transform each pass needs, from which the step's twiddle tables and
  * scratch blocks follow (integrators/step-plan.ts).
  */
-import type { ComplexGrid, PoissonTarget, RealGrid, StepEngine } from "../fields/step-engine.js";
-import type { StepGeometry, Transform } from "../fields/step-memory.js";
+import type { ComplexGrid, LongRowsMode, PoissonTarget, RealGrid, StepEngine } from "../fields/step-engine.js";
+import { isRealGrid, type StepGeometry, type Transform } from "../fields/step-memory.js";
 
 /** One pass of the step, without its unit range. */
 export type StepTask =
@@ -41,6 +41,9 @@ export type StepTask =
   | { readonly op: "norm"; readonly field: ComplexGrid }
   | { readonly op: "isolated-rows" | "isolated-rows-inverse"; readonly real: RealGrid }
   | { readonly op: "poisson-outer"; readonly axis: number }
+  | { readonly op: "long-columns"; readonly grid: ComplexGrid | RealGrid; readonly inverse: boolean }
+  | { readonly op: "long-rows"; readonly grid: ComplexGrid | RealGrid; readonly mode: LongRowsMode; readonly phases: number; readonly gradient: boolean }
+  | { readonly op: "long-pairs"; readonly real: RealGrid }
   | { readonly op: "moments" }
   | { readonly op: "cross-density"; readonly field: ComplexGrid; readonly target: RealGrid }
   | { readonly op: "tangent-source"; readonly field: ComplexGrid; readonly potential: RealGrid; readonly factor: number; readonly contact: number }
@@ -145,6 +148,14 @@ function runScalar(engine: StepEngine, t: Exclude<StepTask, { op: "moments" | "o
     case "poisson":
       engine.poisson(lo, hi);
       return 0;
+    case "long-columns":
+      engine.longColumns(t.grid, t.inverse, lo, hi);
+      return 0;
+    case "long-rows":
+      return engine.longRows(t.grid, t.mode, t.phases, t.gradient, lo, hi);
+    case "long-pairs":
+      engine.longPairs(t.real, lo, hi);
+      return 0;
   }
 }
 
@@ -175,6 +186,10 @@ export function transformOf(t: StepTask, g: StepGeometry): Transform | undefined
       return along(t.target === "periodic" ? g.half : g.paddedHalf!, t.axis);
     case "poisson-outer":
       return along(g.half, t.axis);
+    case "long-columns":
+    case "long-rows":
+    case "long-pairs":
+      return longTransform(t, g);
     case "real-rows":
     case "real-rows-inverse":
       return t.target === "periodic" ? realRows(g.shape) : realRows(g.padded!);
@@ -197,6 +212,14 @@ export function transformOf(t: StepTask, g: StepGeometry): Transform | undefined
     case "convolve":
       return undefined;
   }
+}
+
+/** The transform of a long grid's pass: along its columns or rows, of the field's matrix or of the density's half-length one. */
+function longTransform(t: Extract<StepTask, { op: "long-columns" | "long-rows" | "long-pairs" }>, g: StepGeometry): Transform {
+  const { n1, n2 } = g.long!;
+  if (t.op === "long-pairs") return { n: n2, pencils: n1 / 2, realRow: n1 * n2 };
+  const rows = isRealGrid(t.grid) ? n1 / 2 : n1;
+  return t.op === "long-columns" ? { n: rows, pencils: n2, realRow: 0 } : { n: n2, pencils: rows, realRow: 0 };
 }
 
 /** Real rows of length n2 of a shape, transformed as complex rows of n2/2. */

@@ -273,21 +273,30 @@ export function rowsPass(
     const p = data + (<usize>(r * n2) << 4);
     if (kickFactor != 0) kick(data, src, phi, kickFactor, contact, r * n2, (r + count) * n2);
     transformInPlace(p, 16, n2 << 4, n2, count, buf, count << 4, rev, tw, inverse, scale);
-    if (density) {
-      const q = phi + (<usize>(r * n2) << 3);
-      const cells = count * n2;
-      for (let i: i32 = 0; i < cells; i += 2) {
-        const x0 = v128.load(p + (<usize>i << 4));
-        const x1 = v128.load(p + (<usize>i << 4), 16);
-        const s0 = f64x2.mul(x0, x0);
-        const s1 = f64x2.mul(x1, x1);
-        // (|ψ_i|², |ψ_i+1|²) from the two squared pairs
-        const rho = f64x2.add(v128.shuffle<f64>(s0, s1, 0, 2), v128.shuffle<f64>(s0, s1, 1, 3));
-        v128.store(q + (<usize>i << 3), rho);
-        sum = f64x2.add(sum, rho);
-      }
-    }
+    if (density) sum = f64x2.add(sum, densityCells(p, phi + (<usize>(r * n2) << 3), count * n2));
   }
+  return f64x2.extract_lane(sum, 0) + f64x2.extract_lane(sum, 1);
+}
+
+/** φ ← |ψ|² over `cells` cells (an even count) from p and q; returns the lane sums of |ψ|². */
+@inline function densityCells(p: usize, q: usize, cells: i32): v128 {
+  let sum = f64x2.splat(0);
+  for (let i: i32 = 0; i < cells; i += 2) {
+    const x0 = v128.load(p + (<usize>i << 4));
+    const x1 = v128.load(p + (<usize>i << 4), 16);
+    const s0 = f64x2.mul(x0, x0);
+    const s1 = f64x2.mul(x1, x1);
+    // (|ψ_i|², |ψ_i+1|²) from the two squared pairs
+    const rho = f64x2.add(v128.shuffle<f64>(s0, s1, 0, 2), v128.shuffle<f64>(s0, s1, 1, 3));
+    v128.store(q + (<usize>i << 3), rho);
+    sum = f64x2.add(sum, rho);
+  }
+  return sum;
+}
+
+/** φ ← |ψ|² over cells [lo, hi) (an even count, from an even start); returns Σ|ψ|². */
+export function density(psi: usize, phi: usize, lo: i32, hi: i32): f64 {
+  const sum = densityCells(psi + (<usize>lo << 4), phi + (<usize>lo << 3), hi - lo);
   return f64x2.extract_lane(sum, 0) + f64x2.extract_lane(sum, 1);
 }
 
@@ -421,6 +430,184 @@ export function poissonOuter(
   twF: usize, twI: usize, rev: usize, kAxis: usize, kOuter: usize, kLane: usize,
 ): void {
   stridedPass(data, n0, n1, n2, axis, lo, hi, buf, buf2, twF, twI, rev, false, 1.0, POISSON, 0, 0, 0, kAxis, kOuter, kLane);
+}
+
+// A long 1D grid's transforms in four steps (fields/step-memory.ts LongLayout):
+// the columns are a PLAIN strided pass (axisPass on shape (n1, 1, n2)); the
+// rows pass below multiplies each row by its twiddles and transforms it, and
+// in the drift applies the phase of each stored wavenumber between its
+// forward and inverse transforms. The spectrum stays in transposed order:
+// row a, column k2 holds wavenumber index a + rows·k2.
+const LONG_FORWARD: i32 = 0;
+const LONG_INVERSE: i32 = 1;
+const LONG_DRIFT: i32 = 2;
+/** Rows a long rows pass transforms together: two scratch blocks of them stay in a core's cache. */
+const LONG_BLOCK: i32 = 8;
+
+/**
+ * Rows r … r+count−1 of a block (n2 cells each, from p) into buf point-major
+ * ([point][row], `pitch` bytes per point), times their twiddles (table `ltw`,
+ * none when 0; see longRows); with `out`, the other way (buf back to the
+ * rows, times `scale` and the conjugate twiddles). Four points (a cache line
+ * of a row) of every row at a time, so each line is used whole; the transform
+ * then gathers from buf as a strided pass does.
+ */
+function rowsCopy(p: usize, ltw: usize, coarse: i32, tStep: i32, r: i32, n2: i32, count: i32, buf: usize, pitch: i32, out: bool, scale: f64): void {
+  const sc = f64x2.splat(scale);
+  for (let j: i32 = 0; j < n2; j += 4) {
+    for (let b: i32 = 0; b < count; b++) {
+      const row = p + (<usize>(b * n2 + j) << 4);
+      const a = (r + b) * tStep;
+      const t1 = ltw + (<usize>((a >> 4) * n2 + j) << 4);
+      const t2 = ltw + (<usize>((coarse + (a & 15)) * n2 + j) << 4);
+      const d = buf + <usize>(j * pitch) + (<usize>b << 4);
+      for (let q: i32 = 0; q < 4; q++) {
+        const o = <usize>q << 4;
+        const at = d + <usize>(q * pitch);
+        if (out) {
+          let x = f64x2.mul(v128.load(at), sc);
+          if (ltw != 0) x = times(times(x, v128.load(t1 + o), true), v128.load(t2 + o), true);
+          v128.store(row + o, x);
+        } else {
+          let x = v128.load(row + o);
+          if (ltw != 0) x = times(times(x, v128.load(t1 + o), false), v128.load(t2 + o), false);
+          v128.store(at, x);
+        }
+      }
+    }
+  }
+}
+
+/** x·w, or x·conj(w) with `conj`. */
+@inline function times(x: v128, w: v128, conj: bool): v128 {
+  const wi = f64x2.mul(v128.shuffle<f64>(w, w, 1, 1), conj ? f64x2(1.0, -1.0) : f64x2(-1.0, 1.0));
+  return cmul(x, v128.shuffle<f64>(w, w, 0, 0), wi);
+}
+
+/**
+ * The long drift's phase on a transformed block of rows r … r+count−1 (natural
+ * order in buf), to buf2 in bit-reversed order: wavenumber index r + b + rows·k2,
+ * phase table `phase` (none when 0: the sum only), and with `kk` non-zero Σ k²|ψ_k|² added to `sum` first.
+ */
+@inline function longPhase(buf: usize, buf2: usize, n2: i32, rows: i32, count: i32, pitch: i32, r: i32, rev: usize, phase: usize, kk: usize, sum: v128): v128 {
+  const conjRe = f64x2(-1.0, 1.0);
+  for (let j: i32 = 0; j < n2; j++) {
+    const s = buf + <usize>(j * pitch);
+    const d = buf2 + <usize>(load<i32>(rev + (<usize>j << 2)) * pitch);
+    const k0 = r + rows * j;
+    for (let b: i32 = 0; b < count; b++) {
+      const x = v128.load(s + (<usize>b << 4));
+      if (kk != 0) sum = f64x2.add(sum, f64x2.mul(f64x2.splat(load<f64>(kk + (<usize>(k0 + b) << 3))), f64x2.mul(x, x)));
+      if (phase == 0) continue;
+      const e = v128.load(phase + (<usize>(k0 + b) << 4));
+      v128.store(d + (<usize>b << 4), cmul(x, v128.shuffle<f64>(e, e, 0, 0), f64x2.mul(v128.shuffle<f64>(e, e, 1, 1), conjRe)));
+    }
+  }
+  return sum;
+}
+
+/**
+ * Rows [lo, hi) of a long grid's matrix of `rows` rows of n2 cells at `data`
+ * (LongLayout), BLOCK rows at a time. Row a's twiddles e^{−2πi·A·j/N},
+ * A = a·tStep, are the product of coarse row ⌊A/16⌋ of `ltw` (`coarse` rows)
+ * and fine row A mod 16 after them, each twiddle a product of the same two
+ * table entries whatever the block. LONG_FORWARD twiddles and transforms
+ * forward (with `kk` non-zero returning Σ k²|ψ_k|²); LONG_INVERSE transforms
+ * back (normalised) and multiplies by the conjugate twiddles; LONG_DRIFT does
+ * both with the phase of each wavenumber between (`phase`, and `kk` as for
+ * LONG_FORWARD, summed before the phase).
+ */
+export function longRows(
+  data: usize, rows: i32, n2: i32, lo: i32, hi: i32, buf: usize, buf2: usize, twF: usize, twI: usize, rev: usize,
+  ltw: usize, coarse: i32, tStep: i32, mode: i32, phase: usize, kk: usize,
+): f64 {
+  let sum = f64x2.splat(0);
+  for (let r = lo; r < hi; r += LONG_BLOCK) {
+    const count = min(LONG_BLOCK, hi - r);
+    const pitch = count << 4;
+    const p = data + (<usize>(r * n2) << 4);
+    if (mode == LONG_INVERSE) {
+      rowsCopy(p, 0, 0, 0, r, n2, count, buf, pitch, false, 1.0);
+      transformToBuf(buf, pitch, 16, n2, count, buf2, pitch, rev, twI, true);
+      rowsCopy(p, ltw, coarse, tStep, r, n2, count, buf2, pitch, true, 1.0 / <f64>n2);
+      continue;
+    }
+    rowsCopy(p, ltw, coarse, tStep, r, n2, count, buf, pitch, false, 1.0);
+    transformToBuf(buf, pitch, 16, n2, count, buf2, pitch, rev, twF, false);
+    if (mode == LONG_FORWARD) {
+      if (kk != 0) sum = longPhase(buf2, 0, n2, rows, count, pitch, r, rev, 0, kk, sum);
+      rowsCopy(p, 0, 0, 0, r, n2, count, buf2, pitch, true, 1.0);
+      continue;
+    }
+    sum = longPhase(buf2, buf, n2, rows, count, pitch, r, rev, phase, kk, sum);
+    transformBufToMemory(buf, n2, pitch, count, twI, true, buf2, pitch, 16, 1.0 / <f64>n2);
+    rowsCopy(p, ltw, coarse, tStep, r, n2, count, buf2, pitch, true, 1.0);
+  }
+  return f64x2.extract_lane(sum, 0) + f64x2.extract_lane(sum, 1);
+}
+
+/**
+ * The periodic Poisson solve of a long grid between its forward and inverse
+ * four-step transforms: `data` holds Z, the transform of the density's m
+ * complex pairs z_j = ρ_2j + iρ_2j+1, in transposed order (rows of n2,
+ * index k = a + rows·k2). For each pair of indices k and m − k, at once: the
+ * real spectrum X_k = E_k + W^k O_k and X_{m−k} = conj(E_k − W^k O_k) with
+ * E_k = (Z_k + conj Z_{m−k})/2, O_k = −i(Z_k − conj Z_{m−k})/2,
+ * W = e^{−2πi/2m}; Y = −X/k² (kernel `kp`, index 0 … m, 0 at k = 0); and
+ * back, Z'_k = E' + iO' with E' = (Y_k + conj Y_{m−k})/2,
+ * O' = (Y_k − conj Y_{m−k}) conj(W^k)/2, Z'_{m−k} = conj E' + i conj O'.
+ * Unit u pairs row u with row rows − u (u = 0 … rows/2).
+ */
+export function longPairs(data: usize, rows: i32, n2: i32, lo: i32, hi: i32, kp: usize, ctw: usize): void {
+  const m = rows * n2;
+  for (let u = lo; u < hi; u++) {
+    if (u == 0) {
+      // row 0: column c pairs with (n2 − c) mod n2; c = 0 with itself (k = 0, m − k = m), c = n2/2 with itself
+      for (let c: i32 = 0; c <= n2 >> 1; c++) {
+        const k = rows * c;
+        pairCell(data + (<usize>c << 4), data + (<usize>((n2 - c) & (n2 - 1)) << 4), k, m - k, kp, ctw);
+      }
+      continue;
+    }
+    const v = rows - u;
+    const last = u == v ? n2 >> 1 : n2;
+    for (let c: i32 = 0; c < last; c++) {
+      const k = u + rows * c;
+      pairCell(data + (<usize>(u * n2 + c) << 4), data + (<usize>(v * n2 + n2 - 1 - c) << 4), k, m - k, kp, ctw);
+    }
+  }
+}
+
+@inline function conjugate(x: v128): v128 {
+  return f64x2.mul(x, f64x2(1.0, -1.0));
+}
+
+/** i·x. */
+@inline function timesI(x: v128): v128 {
+  return f64x2.mul(swap(x), f64x2(-1.0, 1.0));
+}
+
+@inline function green(kp: usize, k: i32): v128 {
+  const kk = load<f64>(kp + (<usize>k << 3));
+  return f64x2.splat(kk > 0 ? -1.0 / kk : 0.0);
+}
+
+/** One pair of longPairs: Z_k at pk, Z_j at pj (j = m − k; the same address when k = j or k = 0). */
+@inline function pairCell(pk: usize, pj: usize, k: i32, j: i32, kp: usize, ctw: usize): void {
+  const half = f64x2.splat(0.5);
+  const zk = v128.load(pk);
+  const zj = conjugate(v128.load(pj));
+  const e = f64x2.mul(half, f64x2.add(zk, zj));
+  const o = f64x2.mul(half, conjugate(swap(f64x2.sub(zk, zj)))); // −i(Z_k − conj Z_j)/2
+  const c = load<f64>(ctw + (<usize>k << 4));
+  const s = load<f64>(ctw + (<usize>k << 4), 8);
+  const wo = cmul(o, f64x2.splat(c), f64x2(s, -s)); // W^k O, W^k = c − is
+  const yk = f64x2.mul(green(kp, k), f64x2.add(e, wo));
+  const yjc = f64x2.mul(green(kp, j), f64x2.sub(e, wo)); // conj Y_j = g_j (E − W^k O)
+  const e2 = f64x2.mul(half, f64x2.add(yk, yjc));
+  const o2 = cmul(f64x2.mul(half, f64x2.sub(yk, yjc)), f64x2.splat(c), f64x2(-s, s)); // × conj W^k = c + is
+  v128.store(pj, f64x2.add(conjugate(e2), timesI(conjugate(o2))));
+  v128.store(pk, f64x2.add(e2, timesI(o2)));
 }
 
 /**
