@@ -138,6 +138,7 @@ if (threads > 1) cases.push([[128, 128, 128], "periodic", threads, other]);
 cases.push([[32, 32, 32], "isolated"], [[64, 64, 64], "isolated"], [[512, 512]], [[1024, 1024]]);
 if (threads > 1) cases.push([[1024, 1024], "periodic", threads]);
 cases.push([[1 << 16]], [[1 << 20]]);
+if (threads > 1) cases.push([[1 << 20], "periodic", threads]);
 // the step with tangent-linear fields ([breakdown]): the targets are at most 2.2× the plain step with
 // one tangent field, and at most 1.1 (1 + 2p)× with p depletion probes (2p fields), at 128³
 function benchTangents() {

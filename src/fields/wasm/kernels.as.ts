@@ -257,8 +257,14 @@ function scatter(dst: usize, pointStride: i32, pencilStride: i32, n: i32, count:
 // [lo, hi): rows (axis 2), or (outer index, block of BLOCK columns) pairs
 // (axes 0 and 1), as outerCount() in fields/fft.ts counts them.
 
+/** Rows a long rows pass transforms together: two scratch blocks of them stay in a core's cache. */
+const LONG_BLOCK: i32 = 8;
+
+/** Rows from this length on are transformed LONG_BLOCK at a time through rowsCopy. */
+const LONG_ROW: i32 = 1024;
+
 /**
- * FFT of rows [lo, hi) along the last axis, BLOCK rows at a time. With
+ * FFT of rows [lo, hi) along the last axis, BLOCK rows at a time (LONG_BLOCK from LONG_ROW points on). With
  * `kickFactor` non-zero the rows are first multiplied by e^{−iK(φ + g|s|²)}
  * (the step's opening kick, while the block is in cache; see `kick`); with `density` set, φ ← |ψ|²
  * of the transformed rows is written afterwards and Σ|ψ|² returned.
@@ -268,11 +274,14 @@ export function rowsPass(
   phi: usize, kickFactor: f64, density: bool, src: usize, contact: f64,
 ): f64 {
   let sum = f64x2.splat(0);
-  for (let r = lo; r < hi; r += BLOCK) {
-    const count = min(BLOCK, hi - r);
+  const long = n2 >= LONG_ROW;
+  const block = long ? LONG_BLOCK : BLOCK;
+  for (let r = lo; r < hi; r += block) {
+    const count = min(block, hi - r);
     const p = data + (<usize>(r * n2) << 4);
     if (kickFactor != 0) kick(data, src, phi, kickFactor, contact, r * n2, (r + count) * n2);
-    transformInPlace(p, 16, n2 << 4, n2, count, buf, count << 4, rev, tw, inverse, scale);
+    if (long) rowsInPlace(p, n2, count, buf, rev, tw, inverse, scale);
+    else transformInPlace(p, 16, n2 << 4, n2, count, buf, count << 4, rev, tw, inverse, scale);
     if (density) sum = f64x2.add(sum, densityCells(p, phi + (<usize>(r * n2) << 3), count * n2));
   }
   return f64x2.extract_lane(sum, 0) + f64x2.extract_lane(sum, 1);
@@ -300,6 +309,10 @@ export function density(psi: usize, phi: usize, lo: i32, hi: i32): f64 {
   return f64x2.extract_lane(sum, 0) + f64x2.extract_lane(sum, 1);
 }
 
+/** Pencils from this length on go through a fused strided pass (two scratch blocks) LONG_PART at a time. */
+const LONG_COLUMN: i32 = 2048;
+const LONG_PART: i32 = 8;
+
 // What a strided pass does between its forward and inverse transforms.
 const PLAIN: i32 = 0; // one transform only, in place
 const DRIFT: i32 = 1;
@@ -321,21 +334,26 @@ function stridedPass(
   const pointStride = (axis == 1 ? n2 : n1 * n2) << 4;
   const outerStride = axis == 1 ? n1 * n2 : n2;
   const blocks = (n2 + BLOCK - 1) / BLOCK;
+  // long pencils with two scratch blocks: part of a unit at a time, so that both stay in a core's cache
+  const part = mode != PLAIN && n >= LONG_COLUMN ? LONG_PART : BLOCK;
   let sum = f64x2.splat(0);
   for (let u = lo; u < hi; u++) {
     const o = u / blocks;
-    const c0 = (u - o * blocks) * BLOCK;
-    const count = min(BLOCK, n2 - c0);
-    const pitch = count << 4;
-    const p = data + (<usize>(o * outerStride + c0) << 4);
-    if (mode == PLAIN) {
-      transformInPlace(p, pointStride, 16, n, count, buf, pitch, rev, tw, inverse, scale);
-      continue;
+    const u0 = (u - o * blocks) * BLOCK;
+    const end = min(u0 + BLOCK, n2);
+    for (let c0 = u0; c0 < end; c0 += part) {
+      const count = min(part, end - c0);
+      const pitch = count << 4;
+      const p = data + (<usize>(o * outerStride + c0) << 4);
+      if (mode == PLAIN) {
+        transformInPlace(p, pointStride, 16, n, count, buf, pitch, rev, tw, inverse, scale);
+        continue;
+      }
+      transformToBuf(p, pointStride, 16, n, count, buf, pitch, rev, tw, false);
+      if (mode == DRIFT) sum = driftBlock(buf, buf2, n, count, pitch, o, c0, rev, pAxis, pOuter, pLane, kAxis, kOuter, kLane, sum);
+      else poissonBlock(buf, buf2, n, count, pitch, o, c0, rev, kAxis, kOuter, kLane);
+      transformBufToMemory(buf2, n, pitch, count, twI, true, p, pointStride, 16, 1.0 / <f64>n);
     }
-    transformToBuf(p, pointStride, 16, n, count, buf, pitch, rev, tw, false);
-    if (mode == DRIFT) sum = driftBlock(buf, buf2, n, count, pitch, o, c0, rev, pAxis, pOuter, pLane, kAxis, kOuter, kLane, sum);
-    else poissonBlock(buf, buf2, n, count, pitch, o, c0, rev, kAxis, kOuter, kLane);
-    transformBufToMemory(buf2, n, pitch, count, twI, true, p, pointStride, 16, 1.0 / <f64>n);
   }
   return f64x2.extract_lane(sum, 0) + f64x2.extract_lane(sum, 1);
 }
@@ -441,18 +459,17 @@ export function poissonOuter(
 const LONG_FORWARD: i32 = 0;
 const LONG_INVERSE: i32 = 1;
 const LONG_DRIFT: i32 = 2;
-/** Rows a long rows pass transforms together: two scratch blocks of them stay in a core's cache. */
-const LONG_BLOCK: i32 = 8;
 
 /**
  * Rows r … r+count−1 of a block (n2 cells each, from p) into buf point-major
- * ([point][row], `pitch` bytes per point), times their twiddles (table `ltw`,
- * none when 0; see longRows); with `out`, the other way (buf back to the
- * rows, times `scale` and the conjugate twiddles). Four points (a cache line
- * of a row) of every row at a time, so each line is used whole; the transform
- * then gathers from buf as a strided pass does.
+ * ([point][row], `pitch` bytes per point; point j at position rev[j] when
+ * `rev` ≠ 0), times their twiddles (table `ltw`, none when 0; see longRows);
+ * with `out`, the other way (buf in natural order back to the rows, times
+ * `scale` and the conjugate twiddles). Four points (a cache line of a row) of
+ * every row at a time, so each line is used whole: gathering a block's
+ * points straight from rows a power of two apart thrashes the cache's sets.
  */
-function rowsCopy(p: usize, ltw: usize, coarse: i32, tStep: i32, r: i32, n2: i32, count: i32, buf: usize, pitch: i32, out: bool, scale: f64): void {
+function rowsCopy(p: usize, n2: i32, count: i32, buf: usize, pitch: i32, rev: usize, out: bool, scale: f64, ltw: usize, coarse: i32, tStep: i32, r: i32): void {
   const sc = f64x2.splat(scale);
   for (let j: i32 = 0; j < n2; j += 4) {
     for (let b: i32 = 0; b < count; b++) {
@@ -460,10 +477,9 @@ function rowsCopy(p: usize, ltw: usize, coarse: i32, tStep: i32, r: i32, n2: i32
       const a = (r + b) * tStep;
       const t1 = ltw + (<usize>((a >> 4) * n2 + j) << 4);
       const t2 = ltw + (<usize>((coarse + (a & 15)) * n2 + j) << 4);
-      const d = buf + <usize>(j * pitch) + (<usize>b << 4);
       for (let q: i32 = 0; q < 4; q++) {
         const o = <usize>q << 4;
-        const at = d + <usize>(q * pitch);
+        const at = buf + <usize>((rev != 0 ? load<i32>(rev + (<usize>(j + q) << 2)) : j + q) * pitch) + (<usize>b << 4);
         if (out) {
           let x = f64x2.mul(v128.load(at), sc);
           if (ltw != 0) x = times(times(x, v128.load(t1 + o), true), v128.load(t2 + o), true);
@@ -476,6 +492,28 @@ function rowsCopy(p: usize, ltw: usize, coarse: i32, tStep: i32, r: i32, n2: i32
       }
     }
   }
+}
+
+/** Transform `count` rows of n points (from p) into buf, natural order: transformToBuf reading each row whole. */
+function rowsToBuf(p: usize, n: i32, count: i32, buf: usize, rev: usize, tw: usize, inverse: bool): void {
+  const pitch = count << 4;
+  rowsCopy(p, n, count, buf, pitch, rev, false, 1.0, 0, 0, 0, 0);
+  firstStage(buf, n, pitch, count, rotation(inverse));
+  stagesInBuf(buf, n, pitch, count, tw, inverse);
+}
+
+/** Transform bit-reversed data in buf and write it to `count` rows of n points at p (times `scale`), each row written whole. */
+function bufToRows(buf: usize, p: usize, n: i32, count: i32, tw: usize, inverse: bool, scale: f64): void {
+  const pitch = count << 4;
+  firstStage(buf, n, pitch, count, rotation(inverse));
+  stagesInBuf(buf, n, pitch, count, tw, inverse);
+  rowsCopy(p, n, count, buf, pitch, 0, true, scale, 0, 0, 0, 0);
+}
+
+/** Transform `count` rows of n points in place through buf (times `scale`): the arithmetic of transformInPlace, rows read and written whole. */
+function rowsInPlace(p: usize, n: i32, count: i32, buf: usize, rev: usize, tw: usize, inverse: bool, scale: f64): void {
+  rowsToBuf(p, n, count, buf, rev, tw, inverse);
+  rowsCopy(p, n, count, buf, count << 4, 0, true, scale, 0, 0, 0, 0);
 }
 
 /** x·w, or x·conj(w) with `conj`. */
@@ -527,21 +565,21 @@ export function longRows(
     const pitch = count << 4;
     const p = data + (<usize>(r * n2) << 4);
     if (mode == LONG_INVERSE) {
-      rowsCopy(p, 0, 0, 0, r, n2, count, buf, pitch, false, 1.0);
+      rowsCopy(p, n2, count, buf, pitch, 0, false, 1.0, 0, 0, 0, r);
       transformToBuf(buf, pitch, 16, n2, count, buf2, pitch, rev, twI, true);
-      rowsCopy(p, ltw, coarse, tStep, r, n2, count, buf2, pitch, true, 1.0 / <f64>n2);
+      rowsCopy(p, n2, count, buf2, pitch, 0, true, 1.0 / <f64>n2, ltw, coarse, tStep, r);
       continue;
     }
-    rowsCopy(p, ltw, coarse, tStep, r, n2, count, buf, pitch, false, 1.0);
+    rowsCopy(p, n2, count, buf, pitch, 0, false, 1.0, ltw, coarse, tStep, r);
     transformToBuf(buf, pitch, 16, n2, count, buf2, pitch, rev, twF, false);
     if (mode == LONG_FORWARD) {
       if (kk != 0) sum = longPhase(buf2, 0, n2, rows, count, pitch, r, rev, 0, kk, sum);
-      rowsCopy(p, 0, 0, 0, r, n2, count, buf2, pitch, true, 1.0);
+      rowsCopy(p, n2, count, buf2, pitch, 0, true, 1.0, 0, 0, 0, r);
       continue;
     }
     sum = longPhase(buf2, buf, n2, rows, count, pitch, r, rev, phase, kk, sum);
     transformBufToMemory(buf, n2, pitch, count, twI, true, buf2, pitch, 16, 1.0 / <f64>n2);
-    rowsCopy(p, ltw, coarse, tStep, r, n2, count, buf2, pitch, true, 1.0);
+    rowsCopy(p, n2, count, buf2, pitch, 0, true, 1.0, ltw, coarse, tStep, r);
   }
   return f64x2.extract_lane(sum, 0) + f64x2.extract_lane(sum, 1);
 }
@@ -622,10 +660,14 @@ export function realRows(input: usize, out: usize, n2: i32, lo: i32, hi: i32, bu
   const h2 = m + 1;
   const half = f64x2.splat(0.5);
   const conj = f64x2(1.0, -1.0);
-  for (let r = lo; r < hi; r += BLOCK) {
-    const count = min(BLOCK, hi - r);
+  const long = m >= LONG_ROW;
+  const block = long ? LONG_BLOCK : BLOCK;
+  for (let r = lo; r < hi; r += block) {
+    const count = min(block, hi - r);
     const pitch = count << 4;
-    transformToBuf(input + (<usize>(r * n2) << 3), 16, n2 << 3, m, count, buf, pitch, rev, tw, false);
+    const rows = input + (<usize>(r * n2) << 3);
+    if (long) rowsToBuf(rows, m, count, buf, rev, tw, false);
+    else transformToBuf(rows, 16, n2 << 3, m, count, buf, pitch, rev, tw, false);
     const dst = out + (<usize>(r * h2) << 4);
     for (let k: i32 = 0; k <= m; k++) {
       const zk = buf + <usize>((k == m ? 0 : k) * pitch);
@@ -651,8 +693,10 @@ export function realRowsInverse(spec: usize, out: usize, n2: i32, lo: i32, hi: i
   const h2 = m + 1;
   const half = f64x2.splat(0.5);
   const conj = f64x2(1.0, -1.0);
-  for (let r = lo; r < hi; r += BLOCK) {
-    const count = min(BLOCK, hi - r);
+  const long = m >= LONG_ROW;
+  const block = long ? LONG_BLOCK : BLOCK;
+  for (let r = lo; r < hi; r += block) {
+    const count = min(block, hi - r);
     const pitch = count << 4;
     const src = spec + (<usize>(r * h2) << 4);
     for (let k: i32 = 0; k < m; k++) {
@@ -670,7 +714,9 @@ export function realRowsInverse(spec: usize, out: usize, n2: i32, lo: i32, hi: i
         v128.store(d + (<usize>b << 4), f64x2.add(e, f64x2.mul(swap(o), f64x2(-1.0, 1.0))));
       }
     }
-    transformBufToMemory(buf, m, pitch, count, tw, true, out + (<usize>(r * n2) << 3), 16, n2 << 3, 1.0 / <f64>m);
+    const rows = out + (<usize>(r * n2) << 3);
+    if (long) bufToRows(buf, rows, m, count, tw, true, 1.0 / <f64>m);
+    else transformBufToMemory(buf, m, pitch, count, tw, true, rows, 16, n2 << 3, 1.0 / <f64>m);
   }
 }
 
