@@ -67,3 +67,15 @@ export function checkRelaxedMasses(initial: ResolvedInitial, dims: number, units
     }
   }
 }
+
+/**
+ * Refuse a relaxed soliton or ground state with a contact interaction in an expanding box: the
+ * relaxation solves the static equations, where the contact term's weight against gravity's
+ * (g/a³ against φ/a) would be that of a = 1.
+ */
+export function checkExpandingRelaxation(initial: ResolvedInitial, background: "static" | "lcdm", contact: ResolvedContact | undefined): void {
+  if (!contact || background === "static") return;
+  if (initial.kind === "ground-state" || (initial.kind === "solitons" && initial.profile === "relaxed")) {
+    throw new ConfigError("initial.kind", `a relaxed ${initial.kind === "ground-state" ? "ground state" : "soliton"} with a contact interaction is made in static boxes only (background.kind = "static"); in an expanding box start from another kind, or from "solitons" with initial.profile = "core-fit"`);
+  }
+}

@@ -18,7 +18,7 @@ import { resolveIntegrator, resolveOutput } from "./resolve-output.js";
 import { resolveSidecar, type ResolvedSidecar } from "./resolve-sidecar.js";
 import { resolveBreakdown, type ResolvedBreakdown } from "./resolve-breakdown.js";
 import { resolveContact, type ResolvedContact } from "./resolve-contact.js";
-import { checkRelaxedMasses } from "./contact-limits.js";
+import { checkExpandingRelaxation, checkRelaxedMasses } from "./contact-limits.js";
 import { firstSpeciesName, resolveSpecies, type ResolvedSpecies } from "./resolve-species.js";
 export type { ResolvedSpecies } from "./resolve-species.js";
 
@@ -94,9 +94,6 @@ export function resolveRun(config: CheckedConfig, name: string, cwd: string): Re
   const m = positive("particle.mass", read("particle.mass", config.particle.mass, "mass", ctx));
   const boxSI = perAxis("grid.box", config.grid.box, dims).map((t) => positive("grid.box", read("grid.box", t, "length", ctx)));
   const contact = resolveContact(config.particle, "particle", m);
-  if (contact && config.background.kind !== "static") {
-    throw new ConfigError(contact.decayConstantJ === undefined ? "particle.scattering_length" : "particle.decay_constant", 'a contact interaction runs in static boxes only (background.kind = "static")');
-  }
   const units = new CodeUnits(m, boxSI[0] as number);
   const lengths = boxSI.map((l) => l / units.lengthM);
   new Grid(cells, lengths); // validates the cell counts (powers of two) with errors naming grid.cells
@@ -104,6 +101,7 @@ export function resolveRun(config: CheckedConfig, name: string, cwd: string): Re
   const { background, startTime, endTime } = resolveBackgroundAndSpan(config, units, ctx, hubbleSI);
   const initial = resolveInitial(config, dims, lengths, units, ctx, background);
   checkRelaxedMasses(initial, dims, units, contact, m);
+  checkExpandingRelaxation(initial, background.kind, contact);
   const integrator = resolveIntegrator(config, cells, units, ctx);
   const { outputDir, output } = resolveOutput(config, name, cwd, background, { startTime, endTime }, units, ctx);
   if (!(config.sidecar.squeezing_db < 0)) {

@@ -3,8 +3,11 @@
  *   M = ∫ |ψ|² dV
  *   K = (1/(2a²)) ∫ |∇ψ|² dV          (bulk-flow plus quantum-gradient kinetic energy)
  *   W = (1/(2a)) ∫ (ρ − ρ̄) φ dV       (periodic; W = ½ ∫ ρ φ dV for isolated gravity)
- * K and W are the comoving energies of the Layzer–Irvine equation
- * d(K + W)/dt + H (2K + W) = 0 (Layzer 1963, ApJ 138, 174; Irvine 1961).
+ *   U = (g/(2a³)) ∫ ρ² dV              (a contact interaction of coefficient g)
+ * K, W and U are the comoving energies of the Layzer–Irvine equation
+ * d(K + W + U)/dt + H (2K + W + 3U) = 0 (Layzer 1963, ApJ 138, 174; Irvine
+ * 1961; U's term follows from U ∝ a⁻³ at a fixed comoving field, as K ∝ a⁻²
+ * and W ∝ a⁻¹ give theirs: see the README).
  * K is evaluated spectrally (Parseval): ∫|∇ψ|² dV = ΔV/N Σ_k k² |ψ_k|².
  */
 import type { Grid } from "../grid/grid.js";
@@ -95,4 +98,9 @@ export function periodicPotentialEnergy(grid: Grid, psi: Float64Array, a: number
       }
     }
   return (0.5 / a) * (sum / grid.size) * grid.cellVolume;
+}
+
+/** U = (g/(2a³)) Σ ρ² ΔV from the sum Σρ² = Σ|ψ|⁴ (no ΔV): the contact energy, ρ/a³ being the physical density. */
+export function contactEnergy(grid: Grid, contact: number, rho2Sum: number, a: number): number {
+  return contact === 0 ? 0 : (0.5 * contact * rho2Sum * grid.cellVolume) / (a * a * a);
 }

@@ -93,6 +93,8 @@ export interface PassRunner {
   runPasses(passes: readonly PlannedPass[]): void;
   /** Fill phase set `set` for drift factor D (skipped when it already holds it). */
   fillPhases(set: number, factor: number): void;
+  /** What multiplies a contact coefficient in a kick at the current time (1/a², 1 in a static box: see the stepper). */
+  contactScale(): number;
 }
 
 /** The extra fields of one stepper: their kinds, owed kicks and undo state. */
@@ -183,8 +185,14 @@ export class ExtraFields {
         r.runPass(r.plan.rows, { op: "cross-density", field, target: "aux" });
         r.runPasses(r.plan.potential("aux"));
       }
-      r.runPass(r.plan.rows, { op: "tangent-source", field, potential: r.gravity ? "aux" : "phi", factor: kick, contact: rule.contact });
+      r.runPass(r.plan.rows, { op: "tangent-source", field, potential: r.gravity ? "aux" : "phi", factor: kick, contact: this.contactNow(r, i) });
     }
+  }
+
+  /** Field i's contact coefficient in a kick at the current time. */
+  private contactNow(r: PassRunner, i: number): number {
+    const g = this.rule(i).contact;
+    return g === 0 ? 0 : g * r.contactScale();
   }
 
   /** The potential field i's kicks multiply (φ = 0 stands in for an own potential without gravity). */
@@ -204,8 +212,7 @@ export class ExtraFields {
     this.owed[i] = 0;
     if (k === 0 || !r.kicks) return;
     this.prepareKick(r, i, k);
-    const rule = this.rule(i);
-    r.runPass(r.plan.rows, { op: "kick", field: this.grid(i), potential: this.kickPotential(r, i), factor: k, contact: rule.contact, source: this.contactSource(i) });
+    r.runPass(r.plan.rows, { op: "kick", field: this.grid(i), potential: this.kickPotential(r, i), factor: k, contact: this.contactNow(r, i), source: this.contactSource(i) });
   }
 
   /** Apply the owed kicks of every tangent field (before ψ applies its own). */
@@ -226,7 +233,7 @@ export class ExtraFields {
       if (kick !== 0) this.prepareKick(r, i, kick);
       const set = rule.driftScale !== 1 ? i : 0;
       r.fillPhases(set, drift * rule.driftScale);
-      const options = { kick, potential: this.kickPotential(r, i), density: false, gradient: false, contact: rule.contact, source: this.contactSource(i) };
+      const options = { kick, potential: this.kickPotential(r, i), density: false, gradient: false, contact: this.contactNow(r, i), source: this.contactSource(i) };
       r.runPasses(r.plan.drift(this.grid(i), set, options));
     }
   }

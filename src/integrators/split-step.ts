@@ -21,10 +21,16 @@
  * owed; reading `psi` applies it (`rawPsi` gives ψ without it, which has the
  * same |ψ|). The density for the potential is taken in the drift's last pass.
  *
- * A contact interaction (the Gross–Pitaevskii term) adds g|ψ|² to the
- * potential the kicks multiply, ψ ← e^{−iK(φ + g|ψ|²)} ψ (static box, a = 1):
- * the kick leaves |ψ| unchanged, so it is still exact and the folding above
- * still holds. Without gravity φ = 0 and only the contact term kicks.
+ * A contact interaction (the Gross–Pitaevskii term) adds g|ψ|²/a³ to the
+ * potential φ/a, so its kick factor is C = ∫dt/a³ where gravity's is
+ * K = ∫dt/a. A kick applied at time t_k takes C = K/a(t_k)²: the opening kick
+ * at the step's start t₀ and the closing one at its end t₁, which is a
+ * symmetric (so second-order) quadrature of ∫dt/a³, and one number K still
+ * describes a kick. The kick at t_k is ψ ← e^{−iK(φ + g|ψ|²/a(t_k)²)} ψ, and
+ * the closing kick owed at t₁ and the next opening one, both at t₁, fold as
+ * before (static box: a = 1 and C = K). The kick leaves |ψ| unchanged, so it
+ * is exact and the scheme unitary. Without gravity φ = 0 and only the
+ * contact term kicks.
  */
 import type { Grid } from "../grid/grid.js";
 import type { Background } from "../physics/cosmology/background.js";
@@ -68,7 +74,7 @@ export class SplitStepper {
   trackKinetic = false;
   /** ½∫|∇ψ|² dV measured during the last drift (NaN unless trackKinetic). */
   midKineticTilde = Number.NaN;
-  /** The contact coefficient g of ψ (code units; 0: none): the kick is e^{−iK(φ + g|ψ|²)}. */
+  /** The contact coefficient g of ψ (code units; 0: none): the kick at time t is e^{−iK(φ + g|ψ|²/a(t)²)}. */
   readonly contact: number;
   /**
    * A uniform density subtracted from ψ's in the box before the potential is
@@ -108,7 +114,7 @@ export class SplitStepper {
    * @param fft the FFT backend ("auto": WebAssembly when the grid fits its 4 GiB memory)
    * @param slots threads that will run the step's passes (subclasses with worker threads)
    * @param fields kinds of the extra fields advanced with ψ (none by default)
-   * @param contact ψ's contact coefficient g in code units (physics/contact.ts `contactCode`; static backgrounds only)
+   * @param contact ψ's contact coefficient g in code units (physics/contact.ts `contactCode`)
    */
   constructor(grid: Grid, background: Background, gravity: PoissonSolver, fft: FftChoice = "auto", slots = 1, fields: readonly FieldKind[] = [], contact = 0) {
     this.grid = grid;
@@ -117,9 +123,6 @@ export class SplitStepper {
     if (!Number.isFinite(contact)) throw new RangeError(`the contact coefficient must be finite, got ${contact}`);
     this.contact = contact;
     this.extras = new ExtraFields(fields, contact);
-    if ((contact !== 0 || this.extras.contact) && background.kind !== "static") {
-      throw new RangeError("a contact interaction needs a static background (its comoving form is not implemented)");
-    }
     const kind: GravityKind = gravity instanceof PeriodicPoisson ? "periodic" : gravity instanceof IsolatedPoisson ? "isolated" : "none";
     const padded = gravity instanceof IsolatedPoisson ? [...gravity.paddedShape] as const : undefined;
     const geometry = stepGeometry(grid.shape, kind, padded, this.extras.layout);
@@ -150,6 +153,7 @@ export class SplitStepper {
       runPass: (units, task) => this.runPass(units, task),
       runPasses: (passes) => this.runPasses(passes),
       fillPhases: (set, factor) => this.fillPhaseTables(factor, set),
+      contactScale: () => this.contactScale(this.time),
     };
   }
 
@@ -320,10 +324,25 @@ export class SplitStepper {
     this.runPasses(this.plan.potential("phi"));
   }
 
-  /** ψ ← e^{−iK(φ + g|ψ|²)} ψ. */
+  /**
+   * What multiplies a contact coefficient g in a kick at time t: C/K = 1/a(t)² (see above; exactly 1
+   * in a static box, so static runs compute with g itself).
+   */
+  contactScale(t: number): number {
+    if (this.background.kind === "static") return 1;
+    const a = this.background.scaleFactor(t);
+    return 1 / (a * a);
+  }
+
+  /** ψ's contact coefficient in a kick at time t, g/a(t)². */
+  private contactAt(t: number): number {
+    return this.contact === 0 ? 0 : this.contact * this.contactScale(t);
+  }
+
+  /** ψ ← e^{−iK(φ + g|ψ|²/a²)} ψ, at the current time. */
   kick(factor: number): void {
     if (factor === 0 || !this.kicks) return;
-    this.runPass(this.plan.rows, { op: "kick", field: "psi", potential: "phi", factor, contact: this.contact, source: "psi" });
+    this.runPass(this.plan.rows, { op: "kick", field: "psi", potential: "phi", factor, contact: this.contactAt(this.time), source: "psi" });
   }
 
   /**
@@ -344,7 +363,7 @@ export class SplitStepper {
    */
   private driftPasses(factor: number, kick: number, density: boolean): number {
     this.fillPhaseTables(factor);
-    this.runPasses(this.plan.drift("psi", 0, { kick, potential: "phi", density, gradient: this.trackKinetic, contact: this.contact }));
+    this.runPasses(this.plan.drift("psi", 0, { kick, potential: "phi", density, gradient: this.trackKinetic, contact: this.contactAt(this.time) }));
     // Parseval: ½∫|∇ψ|² dV = ½ Σ_k k²|ψ_k|² ΔV/N
     this.midKineticTilde = this.trackKinetic ? (0.5 * this.sums.kinetic * this.grid.cellVolume) / this.grid.size : Number.NaN;
     return this.sums.mass;
@@ -432,13 +451,16 @@ export class SplitStepper {
   }
 
   /**
-   * The fastest contact phase rate of any field, max over fields of μ_i|g_i| max|ψ_i|² (0 without a
-   * contact term): a kick of factor K turns a cell by at most this times K beyond its potential's phase.
+   * The fastest contact phase rate of any field in code time, max over fields of μ_i|g_i| max|ψ_i|²/a³
+   * (0 without a contact term; the physical density is the comoving one over a³): a step of Δt turns
+   * a cell by at most this times Δt beyond its potential's phase.
    */
   contactPhaseRate(): number {
     let rate = this.contact !== 0 ? Math.abs(this.contact) * this.moments().maxRho : 0;
     for (const f of this.extras.contactFields()) rate = Math.max(rate, f.scale * maxDensity(this.rawField(f.index)));
-    return rate;
+    if (rate === 0 || this.background.kind === "static") return rate;
+    const a = this.background.scaleFactor(this.time);
+    return rate / (a * a * a);
   }
 
   /** Range max φ − min φ of the current potential (0 without gravity), from the moments pass (cached until φ changes). */

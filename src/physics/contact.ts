@@ -33,9 +33,11 @@ export function contactCouplingSI(scatteringLengthM: number, particleMassKg: num
 
 /**
  * The contact coefficient in code units: the term g|ψ|² a field of particle
- * mass μm adds to the potential φ its kicks multiply (static box), so that a
- * kick is e^{−iμK(φ + g|ψ|²)}: g = 4π a_s / (μ³ m) with a_s in code lengths and
- * m in code masses (ħ/m = 1, 4πG = 1; from g_SI ρ / m_i² per unit mass).
+ * mass μm adds to the potential φ its kicks multiply in a static box, so that
+ * a kick is e^{−iμK(φ + g|ψ|²)}: g = 4π a_s / (μ³ m) with a_s in code lengths
+ * and m in code masses (ħ/m = 1, 4πG = 1; from g_SI ρ / m_i² per unit mass).
+ * In an expanding box the term is g|ψ|²/a³ beside φ/a (|ψ|² is the comoving
+ * density, a³ times the physical one), see integrators/split-step.ts.
  * @param massRatio μ = m_i/m of a species (1: the run's particle)
  */
 export function contactCode(scatteringLengthM: number, units: CodeUnits, massRatio = 1): number {

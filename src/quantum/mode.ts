@@ -21,7 +21,7 @@ import type { Grid } from "../grid/grid.js";
 import type { Region } from "../config/region.js";
 import { ComplexFft } from "../fields/fft.js";
 import { IsolatedPoisson, type PoissonSolver } from "../fields/poisson.js";
-import { kineticEnergy, potentialEnergy } from "../diagnostics/energies.js";
+import { contactEnergy as contactEnergyOf, kineticEnergy, potentialEnergy } from "../diagnostics/energies.js";
 
 /** Where the mode lives (config/region.ts parses it). Lengths in code units, one centre coordinate per simulated axis. */
 export type ModeRegion = Region;
@@ -129,7 +129,7 @@ export interface ModeInputs {
   /** The solver's own gravity (used for the whole-box mode). */
   readonly gravity: PoissonSolver;
   readonly region?: ModeRegion;
-  /** The contact coefficient g (code units; static runs). @default 0 */
+  /** The contact coefficient g (code units; its energy takes the physical density ρ/a³). @default 0 */
   readonly contact?: number;
 }
 
@@ -169,7 +169,7 @@ export function modeCoefficients(input: ModeInputs): ModeCoefficients {
   const fft = new ComplexFft(grid.shape);
   const K = kineticEnergy(grid, psi, a, fft, new Float64Array(psi.length));
   const W = potentialEnergy(grid, psi, phi, a);
-  const U = 0.5 * (input.contact ?? 0) * rho2 * grid.cellVolume;
+  const U = contactEnergyOf(grid, input.contact ?? 0, rho2, a);
   return coefficientsFrom(mass, K, W, rhoEff, a, particleMass, center, U);
 }
 

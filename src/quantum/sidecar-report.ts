@@ -32,9 +32,10 @@ export const SIDECAR_COLUMNS = [
 /** The columns of a run with a contact interaction: the two parts of χ (chi_per_s is their sum). */
 export const CONTACT_COLUMNS = ["chi_gravity_per_s", "chi_contact_per_s"];
 
-/** The gravitational and contact parts of χ now [1/s] (static runs). */
+/** The gravitational and contact parts of χ now [1/s] (both kept in the a-free form χ·a). */
 export function contactRow(tracker: SidecarTracker, timeS: number): number[] {
-  return [(tracker.rates.chiTilde - tracker.chiContact) / timeS, tracker.chiContact / timeS];
+  const a = tracker.a;
+  return [(tracker.rates.chiTilde - tracker.chiContact) / a / timeS, tracker.chiContact / a / timeS];
 }
 
 /** The columns of a measured outflow region (sidecar.outflow_region). */

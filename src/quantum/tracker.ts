@@ -19,13 +19,16 @@ export interface ModeSums {
 
 /**
  * Whole-box rates from the field's sums, with ½∫|∇ψ|² dV given as `kineticTilde`. With a contact
- * coefficient g (static runs) χ = χ_grav + χ_SI, ħχ_SI = g∫|φ|⁴ = 2U/N² with U = (g/2)∫ρ² dV.
+ * coefficient g, χ = χ_grav + χ_SI, ħχ_SI = g∫|φ|⁴ = 2U/N² with U = (g/2a³)∫ρ² dV (chiContact in the a-free
+ * form χ_SI·a of chiTilde, whose χ is chiTilde/a).
  */
 function ratesOf(sums: ModeSums, cellVolume: number, a: number, particleMass: number, kineticTilde: number, gravity: GravityRate, contact: number) {
   const M = sums.rho * cellVolume;
   const omegaTilde = kineticTilde / M;
   const chiGravity = (2 * (0.5 * sums.rhoPhi * cellVolume) * particleMass) / (M * M);
-  const chiContact = (2 * (0.5 * contact * sums.rho2 * cellVolume) * particleMass) / (M * M);
+  // χ_SI now, with the physical density ρ/a³, and in the a-free form χ·a of chiTilde
+  const chiContactNow = (contact * sums.rho2 * cellVolume * particleMass) / (M * M * a * a * a);
+  const chiContact = chiContactNow * a;
   return {
     mass: M,
     chiContact,
@@ -70,7 +73,7 @@ export class SidecarTracker {
    * Start at the current field: its sums, its ½∫|∇ψ|² dV and the scale factor a.
    * @param particles N, fixed for the run (the run's initial mass over m)
    * @param model the start and the loss and dephasing rates per code time (default: coherent, closed)
-   * @param contact the contact coefficient g (code units; static runs), whose part χ_SI joins χ
+   * @param contact the contact coefficient g (code units), whose part χ_SI joins χ
    */
   constructor(
     particleMass: number,

@@ -1,16 +1,16 @@
 /**
  * Conservation checks from a run's time series (pure functions): the
- * relative mass drift, the relative drift of K + W in static runs, and in
- * expanding runs the residual of the Layzer–Irvine equation
- * d(K + W)/dt + H (2K + W) = 0 (Layzer 1963; Irvine 1961), integrated as
+ * relative mass drift, the relative drift of K + W + U in static runs, and
+ * in expanding runs the residual of the Layzer–Irvine equation
+ * d(K + W + U)/dt + H (2K + W + 3U) = 0 (Layzer 1963; Irvine 1961; the
+ * contact energy U = ½g∫ρ²/a³, 0 without an interaction, scales as a⁻³ at a
+ * fixed comoving field, as K as a⁻² and W as a⁻¹), integrated as
  *
- *     R(t) = (K + W)(t) − (K + W)(t₀) + ∫ (2K + W) d ln a,
+ *     R(t) = (K + W + U)(t) − (K + W + U)(t₀) + ∫ (2K + W + 3U) d ln a,
  *
  * by the trapezoid rule in ln a over the rows, relative to |W(t)|. In an
- * expanding box K + W itself is not conserved (the expansion takes energy
- * out), so R, not the drift of K + W, shows whether the solver keeps energy.
- * A static run with a contact interaction conserves K + W + U, U = ½g∫ρ²
- * (contact interactions run in static boxes only, so R never carries U).
+ * expanding box K + W + U itself is not conserved (the expansion takes
+ * energy out), so R, not its drift, shows whether the solver keeps energy.
  */
 
 export interface EnergyRow {
@@ -45,7 +45,8 @@ export function conservationDrifts(rows: readonly EnergyRow[]): Drift[] {
     if (expanding) {
       if (i > 0) {
         const p = rows[i - 1]!;
-        integral += 0.5 * (2 * p.kinetic + p.potential + 2 * r.kinetic + r.potential) * Math.log(r.a! / p.a!);
+        const rate = (q: EnergyRow) => 2 * q.kinetic + q.potential + 3 * (q.contact ?? 0);
+        integral += 0.5 * (rate(p) + rate(r)) * Math.log(r.a! / p.a!);
       }
       energy = (e - e0 + integral) / Math.abs(r.potential);
     } else energy = e0 === 0 ? NaN : (e - e0) / Math.abs(e0);

@@ -37,7 +37,7 @@ export function energiesPlot(series: Row[], tCol: string, tTitle: string): Promi
   const small = { width: PANEL.width, height: 95 };
   return renderVegaLite({
     $schema: SCHEMA,
-    title: { text: "Energies and conservation", subtitle: expanding ? "expanding box: R = Δ(K + W) + ∫(2K + W) d ln a stays ≈ 0 (Layzer–Irvine)" : `static box: ${total} and M are conserved` },
+    title: { text: "Energies and conservation", subtitle: expanding ? (contact ? "expanding box: R = Δ(K + W + U) + ∫(2K + W + 3U) d ln a stays ≈ 0 (Layzer–Irvine)" : "expanding box: R = Δ(K + W) + ∫(2K + W) d ln a stays ≈ 0 (Layzer–Irvine)") : `static box: ${total} and M are conserved` },
     spacing: 10,
     vconcat: [
       {

@@ -9,7 +9,7 @@ import { makePoissonSolver, type GravityKind, type PoissonSolver } from "../fiel
 import { makeBackground, type Background } from "../physics/cosmology/background.js";
 import { CodeUnits } from "../physics/units.js";
 import { KG_PER_EV, MPC_M, M_SUN_KG, PC_M } from "../physics/constants.js";
-import { fieldMass, kineticEnergy, maxDensity, periodicPotentialEnergy, potentialEnergy } from "../diagnostics/energies.js";
+import { contactEnergy, fieldMass, kineticEnergy, maxDensity, periodicPotentialEnergy, potentialEnergy } from "../diagnostics/energies.js";
 import { SplitStepper } from "../integrators/split-step.js";
 import type { Snapshot } from "../io/snapshot.js";
 import type { FieldTransforms } from "../fields/field-transforms.js";
@@ -63,7 +63,7 @@ export interface FieldStats {
   readonly meanDensityMsunKpc3: number;
   readonly kineticMsunKm2S2: number;
   readonly potentialMsunKm2S2: number;
-  /** The contact interaction energy U = (g/2m²)∫ρ² dV (0 without one). */
+  /** The contact interaction energy U = (g/2m²)∫ρ² dV with ρ the physical density (0 without one). */
   readonly contactMsunKm2S2: number;
   /** K + W + U. */
   readonly totalMsunKm2S2: number;
@@ -96,7 +96,7 @@ export function fieldStats(field: LoadedField, fft?: FieldTransforms): FieldStat
     min = Math.min(min, rho);
     rho2 += rho * rho;
   }
-  const U = 0.5 * field.contact * rho2 * grid.cellVolume;
+  const U = contactEnergy(grid, field.contact, rho2, a);
   const toDensity = (units.massKg / units.lengthM ** 3) / (M_SUN_KG / KPC_M ** 3);
   const toEnergy = units.energyJ / (M_SUN_KG * 1e6);
   const mass = fieldMass(grid, psi);

@@ -69,7 +69,7 @@ export class RunRecorder {
     const { stepper, background, scales, expanding, plugins, run } = this.session;
     const t = stepper.time;
     const a = background.scaleFactor(t);
-    // K = ½∫|∇ψ|²/a² (spectral, on the step's own transforms), W = ½∫ρφ/a, U = ½g∫ρ², per species and summed
+    // K = ½∫|∇ψ|²/a² (spectral, on the step's own transforms), W = ½∫ρφ/a, U = ½g∫ρ²/a³, per species and summed
     const each = speciesEnergies(stepper, run.species.map((sp) => sp.massRatio), a, this.contacts);
     const sum = (f: (e: SpeciesEnergy) => number) => each.reduce((s, e) => s + f(e), 0);
     const [M, K, W, U] = [sum((e) => e.mass), sum((e) => e.kinetic), sum((e) => e.potential), sum((e) => e.contact)];

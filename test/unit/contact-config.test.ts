@@ -58,7 +58,11 @@ describe("the contact interaction of a particle", () => {
     expect(errorOf({ decay_constant: "1e17 m" })).toMatch(/^particle\.decay_constant: "1e17 m" is not an energy; use eV/);
     expect(errorOf({ decay_constant: "-1 GeV" })).toMatch(/^particle\.decay_constant: must be a positive energy/);
     expect(errorOf({ scattering_length: "1e-80 GeV" })).toMatch(/^particle\.scattering_length: "1e-80 GeV" is not a length/);
-    expect(errorOf({ scattering_length: "1e-80 m" }, { background: { kind: "lcdm" }, span: { start_redshift: 10 } })).toMatch(/^particle\.scattering_length: a contact interaction runs in static boxes only/);
+    // an expanding box takes a contact term, but not a relaxed ground state with it (relaxation is static)
+    const lcdm = { background: { kind: "lcdm" }, span: { start_redshift: 10 } };
+    expect(resolveRun(checkConfig({ ...base, ...lcdm, particle: { mass: "1e-22 eV", scattering_length: "1e-80 m" } }), "t", "/").contact).toEqual({ scatteringLengthM: 1e-80 });
+    const groundState = { ...lcdm, grid: { cells: [16, 16, 16], box: "10 kpc" }, initial: { kind: "ground-state", mass: "1e8 Msun" } };
+    expect(errorOf({ scattering_length: "1e-80 m" }, groundState)).toMatch(/^initial\.kind: a relaxed ground state with a contact interaction is made in static boxes only/);
     for (const m of [errorOf({ decay_constant: "1e17 m" })]) expect(m).not.toMatch(/\n/);
   });
 

@@ -117,6 +117,21 @@ describe("conservation drifts", () => {
     expect(residual(200)).toBeLessThan(1e-4);
     expect(residual(100) / residual(200)).toBeCloseTo(4, 1); // trapezoid: second order
   });
+  it("carry the contact energy with its own power of a: U = a⁻³ solves dU/dln a + 3U = 0 (computed independently)", () => {
+    // a fixed comoving field: K = a⁻², W = −a⁻¹, U = a⁻³ each solve their part of
+    // d(K + W + U)/dln a + 2K + W + 3U = 0; the residual vanishes to second order, and counting half of U
+    // as kinetic (weight 2 instead of 3) leaves −½∫U d ln a = −(1 − 3⁻³)/6 ≈ −0.16 at a = 3, 0.48 of |W| = 1/3
+    const rows = (n: number) =>
+      Array.from({ length: n + 1 }, (_, i) => {
+        const a = Math.exp((i / n) * Math.log(3));
+        return { t: i, a, mass: 1, kinetic: a ** -2, potential: -1 / a, contact: a ** -3 };
+      });
+    const residual = (n: number) => Math.abs(conservationDrifts(rows(n)).at(-1)!.energy);
+    expect(residual(200)).toBeLessThan(1e-4);
+    expect(residual(100) / residual(200)).toBeCloseTo(4, 1);
+    const wrong = rows(200).map((r) => ({ ...r, kinetic: r.kinetic + r.contact / 2, contact: r.contact / 2 }));
+    expect(Math.abs(conservationDrifts(wrong).at(-1)!.energy)).toBeGreaterThan(0.1);
+  });
 });
 
 describe("the figure font", () => {
