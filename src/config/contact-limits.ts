@@ -7,8 +7,8 @@
  */
 import { ConfigError } from "../core/errors.js";
 import { formatNumber } from "../core/format.js";
-import { J_PER_EV, KG_PER_EV, M_SUN_KG } from "../physics/constants.js";
-import { criticalMassKg, criticalScatteringLengthM, decayConstantOf } from "../physics/contact.js";
+import { J_PER_EV, KG_PER_EV, M_SUN_KG, PC_M } from "../physics/constants.js";
+import { TOWNES_MOMENT, criticalMassKg, criticalScatteringLengthM, decayConstantOf, townesLineMassKgPerM } from "../physics/contact.js";
 import type { CodeUnits } from "../physics/units.js";
 import type { ResolvedContact } from "./resolve-contact.js";
 import type { ResolvedInitial } from "./resolve-initial.js";
@@ -37,11 +37,34 @@ export function criticalMassText(contact: ResolvedContact, particleMassKg: numbe
 export function stabilityAdvice(massKg: number, contact: ResolvedContact, particleMassKg: number, table = "particle"): string {
   const limit = criticalMassKg(contact.scatteringLengthM, particleMassKg);
   const a = criticalScatteringLengthM(massKg, particleMassKg);
-  const weaker =
-    contact.decayConstantJ !== undefined
-      ? `${table}.decay_constant above ${formatNumber(decayConstantOf(a, particleMassKg) / J_PER_EV / 1e9)} GeV`
-      : `|${table}.scattering_length| below ${formatNumber(a)} m`;
-  return `use less mass (below ${msun(limit)}), a weaker interaction (${weaker}) or a repulsive one`;
+  return `use less mass (below ${msun(limit)}), a weaker interaction (${weakerText(a, contact, particleMassKg, table)}) or a repulsive one`;
+}
+
+/** What a key of `table` holds the weaker interaction at: |a_s| below `a`, or the decay constant that gives it. */
+function weakerText(a: number, contact: ResolvedContact, particleMassKg: number, table = "particle"): string {
+  return contact.decayConstantJ !== undefined
+    ? `${table}.decay_constant above ${formatNumber(decayConstantOf(a, particleMassKg) / J_PER_EV / 1e9)} GeV`
+    : `|${table}.scattering_length| below ${formatNumber(a)} m`;
+}
+
+/** "1.5 × 10⁹ Msun/kpc": a mass per unit depth [kg/m]. */
+function perKpc(kgPerM: number): string {
+  return `${formatNumber((kgPerM * 1e3 * PC_M) / M_SUN_KG)} Msun/kpc`;
+}
+
+/**
+ * The 2D collapse threshold in words: a line mass `lineKgPerM` [kg/m] against the Townes mass per unit
+ * depth Λ_c = 1.8623 m/(4|a_s|) (Weinstein 1983), and what to change.
+ */
+export function townesVerdict(lineKgPerM: number, contact: ResolvedContact, particleMassKg: number, table = "particle"): string {
+  const limit = townesLineMassKgPerM(contact.scatteringLengthM, particleMassKg);
+  const threshold = `the contact term alone collapses a 2D field above the Townes mass per unit depth, ${perKpc(limit)} (Λ_c = 1.8623 m/(4|a_s|), Weinstein 1983, for ${particleText(contact, particleMassKg)}; self-gravity lowers it further)`;
+  const held = `${perKpc(lineKgPerM)} (mass per unit depth)`;
+  if (lineKgPerM > limit) {
+    const a = (TOWNES_MOMENT * particleMassKg) / (4 * lineKgPerM); // the |a_s| whose Λ_c is this line mass
+    return `${held}, above it: ${threshold}; use less mass (below ${perKpc(limit)}), a weaker interaction (${weakerText(a, contact, particleMassKg, table)}) or a repulsive one`;
+  }
+  return `${held}, below it: ${threshold}, so self-gravity drives the collapse, or the cells are too coarse: use more grid.cells or a smaller grid.box, or less mass`;
 }
 
 /** The masses [code] and config keys of the solitons a config relaxes by imaginary time (3D only); `at` prefixes the keys. */

@@ -151,6 +151,11 @@ export class ExtraFields {
     return this.rules.flatMap((r, i) => (r.contact !== 0 && !r.linearised ? [{ index: i + 1, scale: r.kickScale * Math.abs(r.contact) }] : []));
   }
 
+  /** The fields (not tangents) with a contact term: their coefficient g_i and mass ratio μ_i. */
+  contactCoefficients(): { index: number; contact: number; massRatio: number }[] {
+    return this.rules.flatMap((r, i) => (r.contact !== 0 && !r.linearised ? [{ index: i + 1, contact: r.contact, massRatio: r.kickScale }] : []));
+  }
+
   /** Whether field i is a tangent field (kicked only together with ψ). */
   isTangent(i: number): boolean {
     this.check(i);

@@ -463,6 +463,15 @@ export class SplitStepper {
     return rate / (a * a * a);
   }
 
+  /**
+   * Every field with a contact term (0: ψ, then extra fields), its coefficient g and mass ratio μ (ψ's 1),
+   * and its stored density source (only |·|² is meant: it may owe its closing kick).
+   */
+  contactFields(): { index: number; contact: number; massRatio: number; field: Float64Array }[] {
+    const own = this.contact !== 0 ? [{ index: 0, contact: this.contact, massRatio: 1, field: this.rawPsi }] : [];
+    return [...own, ...this.extras.contactCoefficients().map((f) => ({ ...f, field: this.rawField(f.index) }))];
+  }
+
   /** Range max φ − min φ of the current potential (0 without gravity), from the moments pass (cached until φ changes). */
   potentialRange(): number {
     if (this.gravity.kind === "none") return 0;

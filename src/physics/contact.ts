@@ -67,3 +67,30 @@ export function decayConstantOf(scatteringLengthM: number, particleMassKg: numbe
   const restEnergy = particleMassKg * C_M_PER_S * C_M_PER_S;
   return Math.sqrt((hbarC * restEnergy) / (32 * Math.PI * Math.abs(scatteringLengthM)));
 }
+
+/**
+ * ∫R² r dr of the Townes profile, the ground state of ΔR − R + R³ = 0 in 2D: 1.8623, so that
+ * ∫R² d²x = 2π × 1.8623 = 11.70 (Weinstein 1983, Commun. Math. Phys. 87, 567). In the form
+ * i ψ_t = −½Δψ − |ψ|²ψ the ground state is R(√2 r), whose norm, the collapse threshold, is half of it.
+ */
+export const TOWNES_MOMENT = 1.8623;
+
+/**
+ * The mass per unit depth [kg/m] above which the attractive contact term alone collapses a 2D field
+ * (a field uniform along the third axis): iħψ_t = −ħ²/(2m)Δψ − |g||ψ|²ψ becomes i χ_t = −½Δχ − |χ|²χ
+ * with χ = ψ√(m|g|)/ħ, which collapses above ∫|χ|² = π × 1.8623; per unit depth that is
+ * m π 1.8623 ħ²/(m|g|) = 1.8623 m/(4|a_s|) with g = 4πħ²a_s/m. Self-gravity lowers the threshold.
+ */
+export function townesLineMassKgPerM(scatteringLengthM: number, particleMassKg: number): number {
+  return (TOWNES_MOMENT * particleMassKg) / (4 * Math.abs(scatteringLengthM));
+}
+
+/**
+ * The width w [m] of the 1D bright soliton ρ₀ sech²(x/w) of an attractive contact term alone for a
+ * peak number density n₀ [1/m³]: w = ħ/√(m|g|n₀) (from −ħ²/(2m)ψ'' − |g|ψ³ = μψ). Its mass per unit area
+ * is Σ = 2ρ₀w, so w = m/(2π|a_s|Σ): stable at every mass, it narrows as Σ grows.
+ */
+export function brightSolitonWidthM(scatteringLengthM: number, particleMassKg: number, peakNumberDensity: number): number {
+  const g = Math.abs(contactCouplingSI(scatteringLengthM, particleMassKg));
+  return HBAR_J_S / Math.sqrt(particleMassKg * g * peakNumberDensity);
+}

@@ -168,7 +168,7 @@ async function loop(session: RunSession, start: RunStart, recorder: RunRecorder)
       stepper,
       { safety: integrator.safety, maxDlnA: integrator.maxDlnA, fixedStep: integrator.fixedStep },
       { endTime: run.span.endTime, stops: run.output.snapshotTimes, massTolerance: integrator.massTolerance, maxSteps: integrator.maxSteps },
-      { onStep, beforeEndStep, guard: (s) => fieldProblem(s, session.scales) ?? collapseProblem(s, session.scales, run.contact, run.particleMassKg), formatTime: (t) => session.scales.formatTime(t), ...(session.options.stopRequested ? { stopRequested: session.options.stopRequested } : {}) },
+      { onStep, beforeEndStep, guard: (s) => fieldProblem(s, session.scales) ?? collapseProblem(s, session.scales, run), formatTime: (t) => session.scales.formatTime(t), ...(session.options.stopRequested ? { stopRequested: session.options.stopRequested } : {}) },
       { steps: start.steps, mass0: start.mass0 },
     );
   } catch (e) {

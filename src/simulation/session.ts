@@ -209,7 +209,7 @@ function builtField(session: RunSession, ic: Exclude<ResolvedRun["initial"], { k
   } catch (e) {
     if (!(e instanceof RelaxationCollapse) || !run.contact) throw e;
     const kg = session.scales.massMsun(e.mass) * M_SUN_KG;
-    throw new NumericsError(`${ic.kind === "ground-state" ? "initial.mass" : "initial.soliton"}: no ground state: the relaxation collapsed to the grid's scale under the attractive self-interaction: ${collapseVerdict(kg, session.grid.dims, run.contact, run.particleMassKg)}`);
+    throw new NumericsError(`${ic.kind === "ground-state" ? "initial.mass" : "initial.soliton"}: no ground state: the relaxation collapsed to the grid's scale under the attractive self-interaction: ${collapseVerdict(kg, session.grid.dims, run.contact, run.particleMassKg, undefined, session.scales.units.toSI(session.grid.lengths[0]!, "length"))}`);
   }
 }
 

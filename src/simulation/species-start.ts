@@ -35,7 +35,7 @@ export function speciesInitialField(run: ResolvedRun, sp: ResolvedSpecies, index
     if (!(e instanceof RelaxationCollapse) || !sp.contact) throw e;
     const key = `species[${index}].initial.${sp.initial.kind === "ground-state" ? "mass" : "soliton"}`;
     const kg = own.toSI(e.mass, "mass");
-    throw new NumericsError(`${key}: no ground state: the relaxation collapsed to the grid's scale under the attractive self-interaction: ${collapseVerdict(kg, grid.dims, sp.contact, sp.particleMassKg, `species[${index}]`)}`);
+    throw new NumericsError(`${key}: no ground state: the relaxation collapsed to the grid's scale under the attractive self-interaction: ${collapseVerdict(kg, grid.dims, sp.contact, sp.particleMassKg, `species[${index}]`, own.toSI(grid.lengths[0]!, "length"))}`);
   }
   const scale = 1 / sp.massRatio;
   const psi = built.psi;
