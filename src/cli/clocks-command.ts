@@ -109,8 +109,8 @@ export async function clocksCommand(paths: readonly string[], flags: ClocksFlags
     if (!(m.particles >= 1)) throw new InputError(`${file}: the mode holds N = ${m.particles.toPrecision(3)} particles (< 1); choose a larger region`);
     const tS = snap.meta.time * snapshotTimeUnit(file, snap.meta.timeUnit);
     const toS = 1 / units.timeS;
-    // χ_ad = (1/ħ) dμ/dN = 2μ/(ħN) for a stationary state (μ ∝ N² by the scaling symmetry), μ/ħ = (K + 2W)/M = ω + Nχ
-    const chiAd = stationaryAdiabaticChi({ ...m, chi: m.chi - m.chiContact }) * toS;
+    // χ_ad = (1/ħ) dμ/dN of a stationary state (quantum/adiabatic.ts: 2μ/(ħN) for self-gravity alone, with a contact term its dilation estimate)
+    const chiAd = stationaryAdiabaticChi(m) * toS;
     // the breakdown estimate's rate: √(4πGρ_eff), f H in expanding boxes, 0 without gravity (quantum/gravity-rate.ts)
     const estimate = gravityRate(snap.meta.gravity !== "none", field.background);
     const rates = { omegaTilde: m.omega * toS, chiTilde: m.chi * toS, lambda: estimate.rate(m.lambda ** 2, field.scaleFactor) * toS, chiAdiabatic: chiAd };

@@ -13,6 +13,20 @@
  *   χ_ad = 2μ/(ħN) = 2ω/N + 2χ,
  * and with the virial theorem (2K + W = 0) χ_ad = (3/2)χ exactly.
  *
+ * With a contact term (U = (g/2)∫ρ², χ_SI = 2Um/M², ħχ_SI = g∫|φ|⁴) the scaling ψ_λ(x) = λ²ψ(λx)
+ * (N → λN) takes K, W → λ³K, λ³W but U → λ⁵U, so the ground-state energy obeys E(λN, g) = λ³E(N, λ²g). With ∂E/∂g = U/g (Hellmann–Feynman) this gives Nμ = 3E + 2U (the same as
+ * μN = K + 2W + 2U through the virial theorem 2K + W + 3U = 0) and, differentiating μ(λN, g) = λ²μ(N, λ²g),
+ *   N dμ/dN = 2μ + 2 dU/dN,
+ * exact, but dU/dN needs how the profile changes with N. psibox takes it from the one-parameter family of
+ * dilations of the state's own profile, E(R) = K(R) + W(R) + U(R) with K ∝ N/R², W ∝ N²/R, U ∝ N²/R³,
+ * stationary in R (the virial theorem): dU/dN = (U/N)[2 − 6(K + W + 3U)/(6K + 2W + 12U)], hence
+ *   χ_ad = 2ω/N + 2χ + χ_SI [2 − 6(K + W + 3U)/(6K + 2W + 12U)]   (χ = χ_grav + χ_SI).
+ * It is exact for gravity alone (the bracket's factor χ_SI = 0), exact to first order in g about the
+ * self-gravity soliton (the bracket is 5 there: ∫ρ² ∝ N⁵ on that branch), and exact in the Thomas–Fermi
+ * limit (K → 0, W = −3U: the bracket is 2, μ ∝ N at a fixed radius); between them it is the dilation
+ * estimate (test/quantum/adiabatic-contact.test.ts measures it against shot ground states). It diverges
+ * where 6K + 2W + 12U → 0, the attractive soliton's largest stable mass, as dμ/dN does.
+ *
  * Any field (measured). A twin field ψ₂(0) = (1 + e/2) ψ₁(0) holds (1 + e)N
  * quanta to first order (ΔN = ((1 + e/2)² − 1) N exactly); both evolve with
  * the same equations, and the phase of their overlap advances at
@@ -24,13 +38,21 @@
 import type { ModeCoefficients } from "./mode.js";
 
 /**
- * χ_ad from the coefficients of a stationary state (code units, 1/code time). Without self-gravity
- * (χ = 0: gravity off) the equation is linear, μ does not depend on N and χ_ad = 0: the scaling
- * argument above needs gravity.
+ * χ_ad from the coefficients of a stationary state (code units, 1/code time), with χ the whole frozen-mode
+ * coefficient and χ_SI its contact part (0 without a contact term; see "With a contact term" above):
+ *   χ_ad = 2ω/N + 2χ + χ_SI [2 − 6(K + W + 3U)/(6K + 2W + 12U)],
+ * K : W : U = ω/N : χ_grav/2 : χ_SI/2. Without self-gravity (χ_grav = 0) a field is held by its box,
+ * whose shape does not follow N: μ = g n of a uniform field gives χ_ad = χ_SI, and without a contact term
+ * either the equation is linear, μ does not depend on N and χ_ad = 0.
  */
-export function stationaryAdiabaticChi(c: Pick<ModeCoefficients, "omega" | "chi" | "particles">): number {
-  if (c.chi === 0) return 0;
-  return (2 * c.omega) / c.particles + 2 * c.chi;
+export function stationaryAdiabaticChi(c: Pick<ModeCoefficients, "omega" | "chi" | "particles"> & { readonly chiContact?: number }): number {
+  const chiContact = c.chiContact ?? 0;
+  const chiGravity = c.chi - chiContact;
+  if (chiGravity === 0) return chiContact;
+  const base = (2 * c.omega) / c.particles + 2 * c.chi;
+  if (chiContact === 0) return base;
+  const [k, w, u] = [c.omega / c.particles, chiGravity / 2, chiContact / 2];
+  return base + chiContact * (2 - (6 * (k + w + 3 * u)) / (6 * k + 2 * w + 12 * u));
 }
 
 /** Samples the twin tracker keeps for its fit (thinned by halves beyond this, so checkpoints stay small). */

@@ -36,8 +36,8 @@ function ratesOf(sums: ModeSums, cellVolume: number, a: number, particleMass: nu
       omegaTilde,
       chiTilde: chiGravity + chiContact,
       lambda: gravity.rate(sums.rho2 / sums.rho / (a * a * a), a),
-      // χ_ad = 2ω/N + 2χ, the stationary-state dμ/dN of self-gravity alone (adiabatic.ts), at the current a
-      chiAdiabatic: stationaryAdiabaticChi({ omega: omegaTilde / (a * a), chi: chiGravity / a, particles: M / particleMass }),
+      // the stationary-state dμ/dN of self-gravity and the contact term (adiabatic.ts), at the current a
+      chiAdiabatic: stationaryAdiabaticChi({ omega: omegaTilde / (a * a), chi: chiGravity / a + chiContactNow, chiContact: chiContactNow, particles: M / particleMass }),
     } satisfies ClockRates,
   };
 }

@@ -6,11 +6,14 @@
  * cross zero (u₀ too low) and those that turn back up (too high), which is the nodeless decaying one. RK4 in r.
  */
 
-/** Mass M = 4π∫ψ²r²dr, radius r₉₉ (enclosing 99% of M) and 4π∫ψ⁴r²dr of the nodeless soliton of central amplitude ψ₀. */
-export function shootSoliton(psi0: number, g: number, dr = 0.01, rMax = 400): { mass: number; r99: number; rho2: number; rms: number } {
+/**
+ * Mass M = 4π∫ψ²r²dr, radius r₉₉ (enclosing 99% of M), 4π∫ψ⁴r²dr and the eigenvalue μ (per unit mass: Φ → 0 far
+ * away, so μ = −u − M/(4πr) where the shot ends, ψ there negligible) of the nodeless soliton of central amplitude ψ₀.
+ */
+export function shootSoliton(psi0: number, g: number, dr = 0.01, rMax = 400): { mass: number; r99: number; rho2: number; rms: number; mu: number } {
   let lo = -10 * (1 + Math.abs(g)) * psi0 * psi0 - 10;
   let hi = 0;
-  let best = { mass: 0, r99: 0, rho2: 0, rms: 0 };
+  let best = { mass: 0, r99: 0, rho2: 0, rms: 0, mu: 0 };
   for (let it = 0; it < 50; it++) {
     const u0 = 0.5 * (lo + hi);
     const r = integrate(psi0, u0, g, dr, rMax);
@@ -18,10 +21,10 @@ export function shootSoliton(psi0: number, g: number, dr = 0.01, rMax = 400): { 
     else hi = u0;
     best = r;
   }
-  return { mass: best.mass, r99: best.r99, rho2: best.rho2, rms: best.rms };
+  return { mass: best.mass, r99: best.r99, rho2: best.rho2, rms: best.rms, mu: best.mu };
 }
 
-function integrate(psi0: number, u0: number, g: number, dr: number, rMax: number): { crossed: boolean; mass: number; r99: number; rho2: number; rms: number } {
+function integrate(psi0: number, u0: number, g: number, dr: number, rMax: number): { crossed: boolean; mass: number; r99: number; rho2: number; rms: number; mu: number } {
   // series start at r = dr: ψ ≈ ψ₀ + (u₀ + gψ₀²)ψ₀ r²/3, u ≈ u₀ + ψ₀² r²/6
   let r = dr;
   let y = [psi0 + ((u0 + g * psi0 * psi0) * psi0 * r * r) / 3, (2 * (u0 + g * psi0 * psi0) * psi0 * r) / 3, u0 + (psi0 * psi0 * r * r) / 6, (psi0 * psi0 * r) / 3];
@@ -41,14 +44,15 @@ function integrate(psi0: number, u0: number, g: number, dr: number, rMax: number
     const dr2 = 2 * Math.PI * dr * (y[0]! ** 2 * r ** 4 + next[0]! ** 2 * (r + dr) ** 4);
     r += dr;
     y = next;
-    if (y[0]! < 0) return { crossed: true, mass, r99: radius(shells, mass), rho2, rms: Math.sqrt(mr2 / mass) };
-    if (y[1]! > 0) return { crossed: false, mass, r99: radius(shells, mass), rho2, rms: Math.sqrt(mr2 / mass) };
+    const mu = -(y[2]! + mass / (4 * Math.PI * r));
+    if (y[0]! < 0) return { crossed: true, mass, r99: radius(shells, mass), rho2, rms: Math.sqrt(mr2 / mass), mu };
+    if (y[1]! > 0) return { crossed: false, mass, r99: radius(shells, mass), rho2, rms: Math.sqrt(mr2 / mass), mu };
     mass += dm;
     rho2 += dq;
     mr2 += dr2;
     shells.push([r, mass]);
   }
-  return { crossed: false, mass, r99: radius(shells, mass), rho2, rms: Math.sqrt(mr2 / mass) };
+  return { crossed: false, mass, r99: radius(shells, mass), rho2, rms: Math.sqrt(mr2 / mass), mu: -(y[2]! + mass / (4 * Math.PI * r)) };
 }
 
 function radius(shells: readonly [number, number][], total: number): number {
