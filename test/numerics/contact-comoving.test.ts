@@ -29,6 +29,7 @@ import { fieldStats, loadField } from "../../src/simulation/from-snapshot.js";
 import { HBAR_J_S, KG_PER_EV, M_SUN_KG, PC_M } from "../../src/physics/constants.js";
 import { runStoppable } from "../helpers/runs.js";
 import { makeWork, readCsv, removeWork, writeIn } from "../helpers/cli.js";
+import { conservationDrifts, energyRows } from "../../src/report/energy-series.js";
 
 /** Amplitude of cos(2π·mode·z) in δ = ρ/ρ̄ − 1 on a 1D grid. */
 function modeAmplitude(grid: Grid, psi: Float64Array, mode: number): number {
@@ -209,6 +210,9 @@ describe("an expanding run with a contact interaction, from its config", () => {
     for (let i = 0; i < a.psi.length; i += 2) sum += ((a.psi[i]! ** 2 + a.psi[i + 1]! ** 2) * (M_SUN_KG / KPC ** 3)) ** 2;
     const uSI = ((g / (2 * m * m)) * sum * (side / 64) * side * side) / scale ** 3;
     const rows = readCsv(path.join(whole.outputDir, "timeseries.csv"));
+    // the time series' Layzer–Irvine residual with U (here 10⁶ |W|: the uniform field's U)
+    const drifts = conservationDrifts(energyRows(rows, "t_Gyr"));
+    expect(Math.max(...drifts.map((d) => Math.abs(d.energy)))).toBeLessThan(1e-3);
     const uRun = Number(rows.at(-1)!["contact_Msun_km2_s2"]) * M_SUN_KG * 1e6;
     expect(Math.abs(uRun / uSI - 1)).toBeLessThan(1e-9);
     expect(Math.abs(fieldStats(loadField(a)).contactMsunKm2S2 * M_SUN_KG * 1e6 / uSI - 1)).toBeLessThan(1e-9);

@@ -132,6 +132,18 @@ describe("conservation drifts", () => {
     const wrong = rows(200).map((r) => ({ ...r, kinetic: r.kinetic + r.contact / 2, contact: r.contact / 2 }));
     expect(Math.abs(conservationDrifts(wrong).at(-1)!.energy)).toBeGreaterThan(0.1);
   });
+  it("integrate U exactly where it is a power of a, so a U far above |W| (a nearly uniform field) leaves no quadrature error", () => {
+    // rows 0.08 apart in ln a (every 16th step of 0.005): the trapezoid on 3U = 3e6 a⁻³ would leave
+    // (0.24²/12)·3e6 a⁻³ per interval, thousands of |W|; the logarithmic mean is exact for a power law
+    const rows = (u: number) =>
+      Array.from({ length: 30 }, (_, i) => {
+        const a = Math.exp(0.08 * i);
+        return { t: i, a, mass: 1, kinetic: a ** -2, potential: -1 / a, contact: u * a ** -3 };
+      });
+    // K's and W's own trapezoid error (1.7e-2 of |W| at this spacing) is all there is: U adds below 1e-6
+    const [withU, without] = [conservationDrifts(rows(1e6)), conservationDrifts(rows(0))];
+    for (let i = 0; i < withU.length; i++) expect(Math.abs(withU[i]!.energy - without[i]!.energy)).toBeLessThan(1e-6);
+  });
 });
 
 describe("the figure font", () => {
