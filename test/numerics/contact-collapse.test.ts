@@ -74,9 +74,9 @@ describe("the 2D Townes threshold of the contact term", () => {
   it("words the verdict by dimension: Townes in 2D, no critical mass in 1D, the soliton's M_max in 3D", () => {
     const depth = 0.5 * KPC;
     const limit = townesLineMassKgPerM(AS, M) * depth;
-    const above = collapseVerdict(3 * limit, 2, { scatteringLengthM: AS }, M, depth);
+    const above = collapseVerdict(3 * limit, 2, { scatteringLengthM: AS }, M, undefined, depth);
     expect(above).toMatch(/over the depth 0\.5 kpc, .* Msun\/kpc \(mass per unit depth\), above it: the contact term alone collapses a 2D field above the Townes mass per unit depth, .* \(Λ_c = 1\.8623 m\/\(4\|a_s\|\), Weinstein 1983, .*; self-gravity lowers it further\); use less mass/);
-    expect(collapseVerdict(0.3 * limit, 2, { scatteringLengthM: AS }, M, depth)).toMatch(/below it: .*so self-gravity drives the collapse, or the cells are too coarse/);
+    expect(collapseVerdict(0.3 * limit, 2, { scatteringLengthM: AS }, M, undefined, depth)).toMatch(/below it: .*so self-gravity drives the collapse, or the cells are too coarse/);
     const one = collapseVerdict(1e12 * M_SUN_KG, 1, { scatteringLengthM: AS }, M);
     expect(one).toMatch(/in 1D the attractive contact term alone does not collapse a field/);
     expect(one).not.toMatch(/M_max|largest stable/);
