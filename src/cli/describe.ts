@@ -45,6 +45,7 @@ export function describeRun(run: ResolvedRun): string {
     `├─ background   ${bg}`,
     `├─ span         ${span}`,
     `├─ initial      ${c.initial.kind}`,
+    ...(c.species ?? []).map((sp) => `├─ species      ${sp.name}: ${particleText({ ...sp, mass: sp.particle_mass })}, initial ${sp.initial?.kind}`),
     `├─ integrator   safety ${run.integrator.safety}${c.integrator.fixed_step ? `, fixed step ${c.integrator.fixed_step}` : ""}, mass tolerance ${run.integrator.massTolerance}`,
     breakdownLine(run, scales),
     `└─ output       ${run.outputDir}`,

@@ -1,11 +1,18 @@
-/** `psibox inspect FILE`: a snapshot's metadata and field statistics. */
+/** `psibox inspect FILE`: a snapshot's metadata and field statistics (of the first species, with a line for each species of a file of several). */
 import { loadHdf5 } from "../io/h5.js";
-import { readSnapshot } from "../io/snapshot.js";
+import { readSnapshot, type SnapshotMeta } from "../io/snapshot.js";
 import { fieldStats, loadField } from "../simulation/from-snapshot.js";
 import { formatNumber, tidyDeep } from "../core/format.js";
 
 /** Four significant digits: enough to tell snapshots apart, short enough to read. */
 const fmt = (x: number): string => formatNumber(x, 4);
+
+/** A line per species of a file of several: name, particle mass, mass and its own contact interaction. */
+function speciesRows(m: SnapshotMeta): [string, string][] {
+  if (!m.species) return [];
+  const interaction = (a: number | undefined): string => (a === undefined ? "scattering length not recorded" : a === 0 ? "no self-interaction" : `a_s = ${fmt(a)} m`);
+  return m.species.map((s, i) => [`species ${i + 1}: ${s.name}`, `m = ${fmt(s.particleMassEv)} eV, ${fmt(s.massMsun)} Msun, ${interaction(s.scatteringLengthM)}`]);
+}
 
 /** Inspect a snapshot; returns the exit code. */
 export async function inspectCommand(file: string, json: boolean): Promise<number> {
@@ -32,7 +39,8 @@ export async function inspectCommand(file: string, json: boolean): Promise<numbe
     ["particle mass", `${fmt(m.particleMassEv)} eV`],
     ["gravity", m.gravity],
     ["background", bg],
-    ["mass", `${fmt(stats.massMsun)} Msun`],
+    ...speciesRows(m),
+    ["mass", `${fmt(stats.massMsun)} Msun${m.species ? ` (the first species; all: ${fmt(m.massMsun)} Msun)` : ""}`],
     ["density min / mean / max", `${fmt(stats.minDensityMsunKpc3)} / ${fmt(stats.meanDensityMsunKpc3)} / ${fmt(stats.maxDensityMsunKpc3)} Msun/kpc³`],
     ["kinetic energy K", `${fmt(stats.kineticMsunKm2S2)} Msun (km/s)²`],
     ["potential energy W", `${fmt(stats.potentialMsunKm2S2)} Msun (km/s)²`],

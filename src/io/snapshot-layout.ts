@@ -26,7 +26,8 @@
  *   /state                 checkpoints only: psi_code, phi_code (float64, code units, the exact
  *                          state) over the dimensions n_psi_code and n_phi_code, attributes
  *                          time_code, mass_code, mass0_code, owed_kick_code, steps, wall_time_s,
- *                          snapshots_written; field_1_code, field_2_code, …: the companion fields a run
+ *                          snapshots_written, with several species species_mass0_code (the later
+ *                          species' masses at the start, in order; the mass guard's reference); field_1_code, field_2_code, …: the companion fields a run
  *                          advances beside ψ (tangent-linear fields), as stored, owing ψ's kick, over
  *                          n_psi_code (several species: the later species first, in order, then the
  *                          plug-ins' fields); /state/plugins: one text attribute per run plug-in that
@@ -63,6 +64,8 @@ export const STATE = {
   psiDim: "n_psi_code",
   phiDim: "n_phi_code",
   plugins: "plugins",
+  /** Attribute of the group: the later species' masses at the start of the run, code units, in order. */
+  speciesMass0: "species_mass0_code",
   /** Companion field i (1, 2, …). */
   field: (i: number) => `field_${i}_code`,
 } as const;

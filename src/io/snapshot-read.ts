@@ -124,6 +124,7 @@ function readState(f: H5File, file: string): CheckpointState {
     timeCode: numberOf(g, "time_code", file),
     massCode: numberOf(g, "mass_code", file),
     mass0Code: numberOf(g, "mass0_code", file),
+    ...(hasAttr(g, STATE.speciesMass0) ? { speciesMass0Code: numbersOf(g, STATE.speciesMass0, file) } : {}),
     steps: numberOf(g, "steps", file),
     wallTimeS: numberOf(g, "wall_time_s", file),
     snapshotsWritten: numberOf(g, "snapshots_written", file),

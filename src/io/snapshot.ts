@@ -84,6 +84,8 @@ export interface CheckpointState {
   readonly plugins?: Readonly<Record<string, string>>;
   /** The kick each companion field owes, when it is not ψ's (fields with their own gravity); absent: ψ's. */
   readonly fieldsOwedKickCode?: readonly number[];
+  /** The later species' masses at the start of the run (code units, in order), which the mass guard compares with; absent before it was recorded. */
+  readonly speciesMass0Code?: readonly number[];
 }
 
 /** A snapshot in memory. `psi` is interleaved (re, im) in √(Msun/kpc³). */
@@ -168,6 +170,7 @@ function writeState(f: H5File, st: CheckpointState): void {
   numberAttr(g, "time_code", st.timeCode);
   numberAttr(g, "mass_code", st.massCode);
   numberAttr(g, "mass0_code", st.mass0Code);
+  if (st.speciesMass0Code?.length) numbersAttr(g, STATE.speciesMass0, st.speciesMass0Code);
   numberAttr(g, "owed_kick_code", st.owedKickCode ?? 0);
   intAttr(g, "steps", st.steps);
   numberAttr(g, "wall_time_s", st.wallTimeS);

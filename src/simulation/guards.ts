@@ -2,7 +2,9 @@
  * Guard rails that a conserved mass cannot hide. The split-step scheme keeps
  * the mass to round-off whatever the step, so the mass check alone passes a
  * run whose potential overflowed or whose fixed step skips many phase
- * cycles. These checks are in physical units for the messages.
+ * cycles. These checks are in physical units for the messages. The run
+ * loop checks the first species' mass; the later species' masses are
+ * checked here, each against its own start.
  */
 import type { SplitStepper } from "../integrators/split-step.js";
 import type { TimestepRules } from "../integrators/timestep.js";
@@ -26,6 +28,25 @@ export function fieldProblem(stepper: SplitStepper, scales: OutputScales): strin
   if (!Number.isFinite(m.maxRho) || !Number.isFinite(m.rho)) return `the density is not finite; ${cause}`;
   const w = scales.energy(0.5 * m.rhoPhi * stepper.grid.cellVolume);
   if (!Number.isFinite(w)) return `the potential energy is not a finite number (W = ${w} Msun (km/s)^2); ${cause}`;
+  return undefined;
+}
+
+/**
+ * Why the later species' masses cannot be trusted: a field that is not finite, or a mass that drifted from
+ * its start by more than `tolerance` (the run's integrator.mass_tolerance, which the first species' mass is
+ * held to by the run loop); undefined when every species keeps its mass.
+ * @param names the later species' names, in order (the stepper's extra fields 1 … S)
+ * @param mass0 their masses at the start of the run (code units)
+ */
+export function speciesMassProblem(stepper: SplitStepper, names: readonly string[], mass0: readonly number[], tolerance: number): string | undefined {
+  for (let i = 0; i < names.length; i++) {
+    const mass = stepper.fieldMass(i + 1);
+    if (!Number.isFinite(mass)) return `the field of the species ${names[i]} became non-finite`;
+    const drift = Math.abs(mass - mass0[i]!) / mass0[i]!;
+    if (!(drift <= tolerance)) {
+      return `the mass of the species ${names[i]} changed by ${drift.toExponential(2)} (tolerance ${tolerance.toExponential(1)}); likely cause: a time step too large (lower integrator.safety or integrator.fixed_step)`;
+    }
+  }
   return undefined;
 }
 

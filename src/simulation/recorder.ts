@@ -95,6 +95,7 @@ export class RunRecorder {
     const states = plugins.save();
     writer.writeCheckpoint(stepper, {
       mass0Code: this.start.mass0,
+      ...(this.start.speciesMass0.length ? { speciesMass0Code: this.start.speciesMass0 } : {}),
       steps,
       wallTimeS: this.start.wallBefore + (performance.now() - wallStart) / 1000,
       snapshotsWritten: this.snapshotsWritten,

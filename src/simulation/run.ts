@@ -14,7 +14,7 @@ import { loadHdf5 } from "../io/h5.js";
 import type { ResolvedRun } from "../config/resolve.js";
 import { takeRunFolder } from "./run-folder.js";
 import { ConfigError } from "../core/errors.js";
-import { FIXED_STEP_FACTOR, checkFixedStep, fieldProblem } from "./guards.js";
+import { FIXED_STEP_FACTOR, checkFixedStep, fieldProblem, speciesMassProblem } from "./guards.js";
 import { PluginSet } from "./plugin-set.js";
 import { writeFailureReason } from "../io/write-failure.js";
 import type { SplitStepper } from "../integrators/split-step.js";
@@ -162,13 +162,15 @@ async function loop(session: RunSession, start: RunStart, recorder: RunRecorder)
     extensionPoint = true;
   };
   const { integrator } = run;
+  // the run loop holds the first species' mass; every later species' own mass is held the same way
+  const speciesGuard = (s: SplitStepper) => speciesMassProblem(s, run.species.map((sp) => sp.name), start.speciesMass0, integrator.massTolerance);
   let result: EvolveResult;
   try {
     result = await evolveAsync(
       stepper,
       { safety: integrator.safety, maxDlnA: integrator.maxDlnA, fixedStep: integrator.fixedStep },
       { endTime: run.span.endTime, stops: run.output.snapshotTimes, massTolerance: integrator.massTolerance, maxSteps: integrator.maxSteps },
-      { onStep, beforeEndStep, guard: (s) => fieldProblem(s, session.scales) ?? collapseProblem(s, session.scales, run), formatTime: (t) => session.scales.formatTime(t), ...(session.options.stopRequested ? { stopRequested: session.options.stopRequested } : {}) },
+      { onStep, beforeEndStep, guard: (s) => fieldProblem(s, session.scales) ?? speciesGuard(s) ?? collapseProblem(s, session.scales, run), formatTime: (t) => session.scales.formatTime(t), ...(session.options.stopRequested ? { stopRequested: session.options.stopRequested } : {}) },
       { steps: start.steps, mass0: start.mass0 },
     );
   } catch (e) {

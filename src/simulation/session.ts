@@ -23,7 +23,7 @@ import { checkMemory, describeEstimate, formatBytes, type MemoryEstimate } from 
 import type { ResolvedRun } from "../config/resolve.js";
 import { resolvedConfigToml, sha256 } from "../config/serialize.js";
 import { OutputScales } from "./scales.js";
-import { RunWriter, runPaths } from "./outputs.js";
+import { RunWriter, runPaths, speciesMasses } from "./outputs.js";
 import { PluginSet } from "./plugin-set.js";
 import { verifyCheckpoint } from "./resume-check.js";
 import type { RunContext, RunPlugin, PluginFields } from "./plugin.js";
@@ -154,6 +154,8 @@ export interface RunStart {
   readonly relaxation?: { readonly iterations: number; readonly converged: boolean };
   readonly warnings: string[];
   readonly mass0: number;
+  /** The later species' masses at the start of the run (code units, in order; empty for one species): the mass guard's reference. */
+  readonly speciesMass0: readonly number[];
   readonly steps: number;
   readonly snapshotsWritten: number;
   readonly wallBefore: number;
@@ -173,7 +175,9 @@ export function startRun(session: RunSession): RunStart {
     writer.log(`resumed from the checkpoint at step ${resumed.steps}, t = ${scales.formatTime(resumed.timeCode)}; ${memoryLine(session)}`);
     session.plugins.restore(resumed.plugins ?? {}, paths.checkpoint);
     const { mass0Code: mass0, steps, snapshotsWritten, wallTimeS: wallBefore } = resumed;
-    return { resumed, warnings: [], mass0, steps, snapshotsWritten, wallBefore };
+    // a checkpoint written before the species' start masses were kept: the guard compares with the masses resumed
+    const speciesMass0 = resumed.speciesMass0Code ?? speciesMasses(stepper, run.species.length).slice(1);
+    return { resumed, warnings: [], mass0, speciesMass0, steps, snapshotsWritten, wallBefore };
   }
   writer.log(`started ${run.name}: ${run.grid.cells.join("×")} cells, ${run.initial.kind}; ${memoryLine(session)}`);
   const reporter = session.reporter;
@@ -198,7 +202,8 @@ export function startRun(session: RunSession): RunStart {
     if (f.kind === "own-gravity") stepper.setField(base + i + 1, initial.psi.map((v) => v * f.startScale));
   });
   stepper.setState(initial.psi, run.span.startTime);
-  return { ...(relaxation ? { relaxation } : {}), warnings, mass0: stepper.mass, steps: 0, snapshotsWritten: 0, wallBefore: 0 };
+  const speciesMass0 = speciesMasses(stepper, run.species.length).slice(1);
+  return { ...(relaxation ? { relaxation } : {}), warnings, mass0: stepper.mass, speciesMass0, steps: 0, snapshotsWritten: 0, wallBefore: 0 };
 }
 
 /** The initial field of a config (not a snapshot); a relaxation that collapsed under an attractive contact term is a NumericsError naming the mass and the critical mass. */

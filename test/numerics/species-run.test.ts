@@ -5,7 +5,7 @@
 // lists are refused with one-line errors naming the key.
 import fs from "node:fs";
 import path from "node:path";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { afterAll, beforeAll, describe, expect, it, vi } from "vitest";
 import { loadConfig } from "../../src/config/load.js";
 import { resolveRun, type ResolvedRun } from "../../src/config/resolve.js";
 import { readSnapshot } from "../../src/io/snapshot.js";
@@ -23,6 +23,10 @@ import { contactCode } from "../../src/physics/contact.js";
 import { CodeUnits } from "../../src/physics/units.js";
 import { buildInitialField } from "../../src/initial-conditions/build.js";
 import { speciesInitialField } from "../../src/simulation/species-start.js";
+import { speciesMassProblem } from "../../src/simulation/guards.js";
+import { SplitStepper } from "../../src/integrators/split-step.js";
+import { StaticBackground } from "../../src/physics/cosmology/background.js";
+import { inspectCommand } from "../../src/cli/inspect-command.js";
 import { makeWork, readCsv, removeWork, runPsibox, writeIn } from "../helpers/cli.js";
 
 const KPC = 1e3 * PC_M;
@@ -175,6 +179,10 @@ describe("a run of two species", () => {
     fs.writeFileSync(config, edited);
     await expect(runIt(parted, { resume: true })).rejects.toThrow(/config_sha256 does not match the folder's config\.toml/);
     fs.writeFileSync(config, text);
+    // the checkpoint keeps the later species' start masses for the mass guard: the mass it holds, to round-off
+    const kept = readSnapshot(path.join(parted.outputDir, "checkpoint.h5"), true).state!;
+    const heavy = kept.fieldsCode![0]!.reduce((s, v) => s + v * v, 0) * (20 / 128 / (parted.lengthUnitM / KPC)) * (20 / (parted.lengthUnitM / KPC)) ** 2;
+    expect(Math.abs(kept.speciesMass0Code![0]! / heavy - 1)).toBeLessThan(1e-12);
     expect((await runIt(parted, { resume: true })).status).toBe("completed");
     const [a, b] = [snap(whole, 1), snap(parted, 1)]; // the resumed run's end replaces the stop's snapshot
     expect(b.meta.step).toBe(a.meta.step);
@@ -234,6 +242,17 @@ describe("the species' modes and analyze", () => {
     close(species.total.mass_Msun, num("mass_Msun"));
     close(species.total.energies_Msun_km2_s2.total, num("total_Msun_km2_s2"));
     expect(species.cross[0]!.species).toEqual(["main", "heavy"]);
+    // psibox inspect names each species with its particle mass, mass and own interaction
+    const printed: string[] = [];
+    const spy = vi.spyOn(process.stdout, "write").mockImplementation((chunk) => (printed.push(String(chunk)), true));
+    try {
+      await inspectCommand(path.join(run.outputDir, "snapshots", "snap_00001.h5"), false);
+    } finally {
+      spy.mockRestore();
+    }
+    const lines = printed.join("").split("\n");
+    expect(lines.find((l) => l.startsWith("species 1: main"))).toMatch(/m = 1 × 10⁻²² eV, 2 × 10⁹ Msun, a_s = −4 × 10⁻⁷⁷ m$/);
+    expect(lines.find((l) => l.startsWith("species 2: heavy"))).toMatch(/m = 3 × 10⁻²² eV, 1 × 10⁹ Msun, a_s = 4 × 10⁻⁷⁵ m$/);
     close(species.cross[0]!.chi_per_s, num("chi_main_heavy_per_s"));
   });
 });
@@ -268,6 +287,25 @@ describe("a later species' ground state", () => {
     const plain = profile(laterField(resolved("gs-plain", asSpecies(""))));
     expect(differs(plain, reference)).toBeGreaterThan(0.05);
     expect(Math.max(...plain)).toBeGreaterThan(Math.max(...reference)); // the repulsion widens it
+  });
+});
+
+describe("the mass guard of every species", () => {
+  it("names a later species whose mass drifted beyond the tolerance or whose field is not finite, and passes a kept mass", () => {
+    const grid = new Grid([16], [1]);
+    const stepper = new SplitStepper(grid, new StaticBackground(), makePoissonSolver(grid, "periodic", "spectral"), "js", 1, [{ kind: "species", massRatio: 2 }]);
+    try {
+      const field = Float64Array.from({ length: 32 }, (_, i) => 1 + 0.1 * Math.sin(i));
+      stepper.setField(1, field);
+      const mass0 = [stepper.fieldMass(1)];
+      expect(speciesMassProblem(stepper, ["heavy"], mass0, 1e-8)).toBeUndefined();
+      stepper.setField(1, field.map((v) => v * (1 + 1e-6))); // a drift of 2e-6
+      expect(speciesMassProblem(stepper, ["heavy"], mass0, 1e-8)).toMatch(/^the mass of the species heavy changed by 2\.00e-6 \(tolerance 1\.0e-8\)/);
+      stepper.setField(1, field.map((v, i) => (i === 3 ? Number.NaN : v)));
+      expect(speciesMassProblem(stepper, ["heavy"], mass0, 1e-8)).toBe("the field of the species heavy became non-finite");
+    } finally {
+      stepper.close();
+    }
   });
 });
 
