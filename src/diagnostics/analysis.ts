@@ -12,7 +12,7 @@
  */
 import type { Grid } from "../grid/grid.js";
 import { SimpleTransforms, type FieldTransforms } from "../fields/field-transforms.js";
-import { Shells, simulatedAxes, spectralDerivative } from "./shells.js";
+import { modeShells, Shells, simulatedAxes, spectralDerivative } from "./shells.js";
 
 export { densestPoints, radialProfile } from "./peaks.js";
 
@@ -41,18 +41,14 @@ export function densityPowerSpectrum(grid: Grid, psi: Float64Array, fft: FieldTr
   }
   fft.forward(data);
   const shells = new Shells(grid, 1);
-  const [n0, n1, n2] = grid.shape;
-  const [k0, k1, k2] = [grid.wavenumbers(0), grid.wavenumbers(1), grid.wavenumbers(2)];
+  const { bins } = modeShells(grid);
+  shells.countModes(modeShells(grid));
+  const sums = shells.series(0);
   const perMode = grid.volume / (n * n);
-  let p = 0;
-  for (let a = 0; a < n0; a++)
-    for (let b = 0; b < n1; b++) {
-      const kab = k0[a]! * k0[a]! + k1[b]! * k1[b]!;
-      for (let c = 0; c < n2; c++, p += 2) {
-        const bin = shells.addMode(Math.sqrt(kab + k2[c]! * k2[c]!));
-        shells.add(bin, 0, perMode * (data[p]! ** 2 + data[p + 1]! ** 2));
-      }
-    }
+  for (let i = 0, p = 0; i < n; i++, p += 2) {
+    const bin = bins[i]!;
+    if (bin >= 0) sums[bin] = sums[bin]! + perMode * (data[p]! ** 2 + data[p + 1]! ** 2);
+  }
   return shells.rows().map((r) => ({ k: r.k, power: r.sums[0]! / r.modes, modes: r.modes }));
 }
 

@@ -21,7 +21,7 @@
  */
 import type { Grid } from "../grid/grid.js";
 import { SimpleTransforms, type FieldTransforms } from "../fields/field-transforms.js";
-import { Shells, simulatedAxes, spectralDerivative } from "./shells.js";
+import { modeShells, Shells, simulatedAxes, spectralDerivative } from "./shells.js";
 import { kineticFromSums, parsevalGradient, type KineticSplit } from "./analysis.js";
 
 /** One shell of the energy spectra (code units). */
@@ -63,24 +63,26 @@ interface FlowSums {
 function packComponents(fft: FieldTransforms, psi: Float64Array, z: Float64Array, flow: FlowSums): void {
   const n = psi.length / 2;
   let js = 0;
-  for (let i = 0; i < n; i++) {
-    const re = psi[2 * i]!;
-    const im = psi[2 * i + 1]!;
-    const gr = z[2 * i]!;
-    const gi = z[2 * i + 1]!;
+  let bulk2 = flow.bulk2;
+  for (let i = 0, p = 0; i < n; i++, p += 2) {
+    const re = psi[p]!;
+    const im = psi[p + 1]!;
+    const gr = z[p]!;
+    const gi = z[p + 1]!;
     const rho = re * re + im * im;
     const j = re * gi - im * gr;
-    if (rho > 0) flow.bulk2 += (j * j) / rho;
+    if (rho > 0) bulk2 += (j * j) / rho;
     js += j;
     if (rho > TINY) {
       const s = Math.sqrt(rho);
-      z[2 * i] = (re * gr + im * gi) / s;
-      z[2 * i + 1] = (re * gi - im * gr) / s;
+      z[p] = (re * gr + im * gi) / s;
+      z[p + 1] = j / s;
     } else {
-      z[2 * i] = Math.sqrt(gr * gr + gi * gi);
-      z[2 * i + 1] = 0;
+      z[p] = Math.sqrt(gr * gr + gi * gi);
+      z[p + 1] = 0;
     }
   }
+  flow.bulk2 = bulk2;
   flow.jSum.push(js);
   fft.forward(z);
 }
@@ -115,68 +117,83 @@ function nyquistEnergy(grid: Grid, spec: Float64Array, perMode: number): number 
   return sum;
 }
 
+/** Where one axis's modes go: the shells' sums by quantity (quantum, flow, compressible, velocity power) and each mode's shell. */
+interface ShellSums {
+  readonly bins: Int16Array | Int32Array;
+  readonly quantum: Float64Array;
+  readonly flow: Float64Array;
+  readonly compressible: Float64Array;
+  readonly velocity: Float64Array;
+}
+
 /**
  * One axis's packed transform Z = U + iW into the shells and totals: U and
  * W from Z_k and Z_−k, |U|² (quantum) and |W|² (flow) energies per mode,
  * |W|² for the velocity power, and k_axis W added into `div` (k·W over the axes).
  */
-function addAxis(grid: Grid, z: Float64Array, axis: number, div: Float64Array, shells: Shells, t: Totals, perMode: number, velocityPerMode: number): void {
+function addAxis(grid: Grid, z: Float64Array, axis: number, div: Float64Array, s: ShellSums, t: Totals, perMode: number, velocityPerMode: number): void {
   const [n0, n1, n2] = grid.shape;
   const [k0, k1, k2] = [grid.wavenumbers(0), grid.wavenumbers(1), grid.wavenumbers(2)];
+  const { bins, quantum: sq, flow: sw, velocity: sv } = s;
+  let [quantum, incompressible] = [t.quantum, t.incompressible];
   let p = 0;
   for (let a = 0; a < n0; a++) {
-    const ma = (n0 - a) % n0;
+    const ma = a === 0 ? 0 : n0 - a;
     for (let b = 0; b < n1; b++) {
-      const mb = (n1 - b) % n1;
-      const mirrorRow = (ma * n1 + mb) * n2;
+      const mirrorRow = (ma * n1 + (b === 0 ? 0 : n1 - b)) * n2;
       const kab = k0[a]! * k0[a]! + k1[b]! * k1[b]!;
+      const kRow = axis === 0 ? k0[a]! : k1[b]!;
       for (let c = 0; c < n2; c++, p += 2) {
-        const m = 2 * (mirrorRow + ((n2 - c) % n2));
+        const m = 2 * (mirrorRow + (c === 0 ? 0 : n2 - c));
         // U = (Z_k + conj Z_−k)/2, W = (Z_k − conj Z_−k)/(2i)
         const ur = 0.5 * (z[p]! + z[m]!);
         const ui = 0.5 * (z[p + 1]! - z[m + 1]!);
         const wr = 0.5 * (z[p + 1]! + z[m + 1]!);
         const wi = -0.5 * (z[p]! - z[m]!);
-        const kj = axis === 0 ? k0[a]! : axis === 1 ? k1[b]! : k2[c]!;
+        const kj = axis === 2 ? k2[c]! : kRow;
         div[p] = div[p]! + kj * wr;
         div[p + 1] = div[p + 1]! + kj * wi;
         const eq = (ur * ur + ui * ui) * perMode;
         const ww = wr * wr + wi * wi;
-        t.quantum += eq;
-        t.incompressible += ww * perMode;
-        const kk = kab + k2[c]! * k2[c]!;
-        if (kk === 0) {
+        quantum += eq;
+        incompressible += ww * perMode;
+        if (kab + k2[c]! * k2[c]! === 0) {
           t.uniformFlow += ww * perMode;
           t.zeroMode += eq + ww * perMode;
         }
-        const bin = shells.bin(Math.sqrt(kk));
-        shells.add(bin, 0, eq);
-        shells.add(bin, 1, ww * perMode);
-        shells.add(bin, 3, ww * velocityPerMode);
+        const bin = bins[p >> 1]!;
+        if (bin < 0) continue;
+        sq[bin] = sq[bin]! + eq;
+        sw[bin] = sw[bin]! + ww * perMode;
+        sv[bin] = sv[bin]! + ww * velocityPerMode;
       }
     }
   }
+  [t.quantum, t.incompressible] = [quantum, incompressible];
 }
 
-/** The compressible part |k̂·W|² from `div` = k·W: counted in the shells (with each mode), and moved out of the incompressible part. */
-function takeCompressible(grid: Grid, div: Float64Array, shells: Shells, t: Totals, perMode: number): void {
+/** The compressible part |k̂·W|² from `div` = k·W: counted in the shells, and moved out of the incompressible part. */
+function takeCompressible(grid: Grid, div: Float64Array, s: ShellSums, t: Totals, perMode: number): void {
   const [n0, n1, n2] = grid.shape;
   const [k0, k1, k2] = [grid.wavenumbers(0), grid.wavenumbers(1), grid.wavenumbers(2)];
+  const { bins, flow: sw, compressible: sc } = s;
+  let [compressible, incompressible] = [t.compressible, t.incompressible];
   let p = 0;
   for (let a = 0; a < n0; a++)
     for (let b = 0; b < n1; b++) {
       const kab = k0[a]! * k0[a]! + k1[b]! * k1[b]!;
       for (let c = 0; c < n2; c++, p += 2) {
         const kk = kab + k2[c]! * k2[c]!;
-        const bin = shells.addMode(Math.sqrt(kk));
         if (kk === 0) continue;
         const ec = ((div[p]! * div[p]! + div[p + 1]! * div[p + 1]!) / kk) * perMode;
-        t.compressible += ec;
-        t.incompressible -= ec;
-        shells.add(bin, 2, ec);
-        shells.add(bin, 1, -ec);
+        compressible += ec;
+        incompressible -= ec;
+        const bin = bins[p >> 1]!;
+        sc[bin] = sc[bin]! + ec;
+        sw[bin] = sw[bin]! - ec;
       }
     }
+  [t.compressible, t.incompressible] = [compressible, incompressible];
 }
 
 /**
@@ -206,6 +223,8 @@ export function energyAndKineticSplit(grid: Grid, psi: Float64Array, a: number, 
   const flow: FlowSums = { bulk2: 0, jSum: [] };
   const velocityPerMode = grid.volume / (n * n) / (a * a * rhoBar);
   const shells = new Shells(grid, 4);
+  shells.countModes(modeShells(grid));
+  const sums: ShellSums = { bins: modeShells(grid).bins, quantum: shells.series(0), flow: shells.series(1), compressible: shells.series(2), velocity: shells.series(3) };
   const totals: Totals = { quantum: 0, incompressible: 0, compressible: 0, uniformFlow: 0, zeroMode: 0 };
   const div = fft.work(2);
   div.fill(0);
@@ -214,9 +233,9 @@ export function energyAndKineticSplit(grid: Grid, psi: Float64Array, a: number, 
     const z = j === axes.length - 1 ? spec : fft.work(1);
     spectralDerivative(grid, fft, spec, ax, z);
     packComponents(fft, psi, z, flow);
-    addAxis(grid, z, ax, div, shells, totals, perMode, velocityPerMode);
+    addAxis(grid, z, ax, div, sums, totals, perMode, velocityPerMode);
   });
-  takeCompressible(grid, div, shells, totals, perMode);
+  takeCompressible(grid, div, sums, totals, perMode);
   const { quantum, incompressible, compressible, uniformFlow, zeroMode } = totals;
   const spectra = shells.rows().map((r) => ({ k: r.k, quantum: r.sums[0]!, incompressible: r.sums[1]!, compressible: r.sums[2]!, velocityPower: r.sums[3]! / r.modes, modes: r.modes }));
   return {

@@ -46,6 +46,27 @@ export class Shells {
     if (b >= 0) this.sums[series]![b] = this.sums[series]![b]! + value;
   }
 
+  /** Σ|k| by shell (a copy). */
+  sumsOfK(): Float64Array {
+    return Float64Array.from(this.ksum);
+  }
+
+  /** Modes by shell (a copy). */
+  modeCounts(): Float64Array {
+    return Float64Array.from(this.modes);
+  }
+
+  /** Quantity `series`'s sums by shell, for loops that add into them directly. */
+  series(series: number): Float64Array {
+    return this.sums[series]!;
+  }
+
+  /** Count every mode of `table` (the grid's own), as `addMode` over the modes in storage order would. */
+  countModes(table: ModeShells): void {
+    this.ksum.set(table.ksum);
+    this.modes.set(table.modes);
+  }
+
   /** Non-empty shells: mean |k|, the sums of each quantity and the mode count. */
   rows(): { k: number; sums: number[]; modes: number }[] {
     const out: { k: number; sums: number[]; modes: number }[] = [];
@@ -54,6 +75,35 @@ export class Shells {
     }
     return out;
   }
+}
+
+/** The shell of every mode of a grid (−1 for k = 0) in storage order, and each shell's Σ|k| and mode count. */
+export interface ModeShells {
+  readonly bins: Int16Array | Int32Array;
+  readonly ksum: Float64Array;
+  readonly modes: Float64Array;
+}
+
+let lastTable: { key: string; table: ModeShells } | undefined;
+
+/** The shells of a grid's modes, made once for a grid's shape and extent (the last one is kept: snapshots of a run share it). */
+export function modeShells(grid: Grid): ModeShells {
+  const key = `${grid.shape.join(",")}/${grid.extent.join(",")}`;
+  if (lastTable?.key === key) return lastTable.table;
+  lastTable = undefined;
+  const shells = new Shells(grid, 0);
+  const bins = shells.count < 32767 ? new Int16Array(grid.size) : new Int32Array(grid.size);
+  const [n0, n1, n2] = grid.shape;
+  const [k0, k1, k2] = [grid.wavenumbers(0), grid.wavenumbers(1), grid.wavenumbers(2)];
+  let i = 0;
+  for (let a = 0; a < n0; a++)
+    for (let b = 0; b < n1; b++) {
+      const kab = k0[a]! * k0[a]! + k1[b]! * k1[b]!;
+      for (let c = 0; c < n2; c++, i++) bins[i] = shells.addMode(Math.sqrt(kab + k2[c]! * k2[c]!));
+    }
+  const table = { bins, ksum: shells.sumsOfK(), modes: shells.modeCounts() };
+  lastTable = { key, table };
+  return table;
 }
 
 /** The wavenumbers of the spectral derivative along `axis`: k, with the Nyquist index's set to zero. */
@@ -74,14 +124,23 @@ export function spectralDerivative(grid: Grid, fft: FieldTransforms, spec: Float
   const [n0, n1, n2] = grid.shape;
   let p = 0;
   for (let a = 0; a < n0; a++)
-    for (let b = 0; b < n1; b++)
-      for (let c = 0; c < n2; c++, p += 2) {
-        const kk = k[axis === 0 ? a : axis === 1 ? b : c]!;
-        const re = spec[p]!;
-        const im = spec[p + 1]!;
-        out[p] = -kk * im;
-        out[p + 1] = kk * re;
+    for (let b = 0; b < n1; b++) {
+      const row = axis === 0 ? k[a]! : axis === 1 ? k[b]! : 0;
+      if (axis === 2) {
+        for (let c = 0; c < n2; c++, p += 2) {
+          const kk = k[c]!;
+          const re = spec[p]!;
+          out[p] = -kk * spec[p + 1]!;
+          out[p + 1] = kk * re;
+        }
+      } else {
+        for (let c = 0; c < n2; c++, p += 2) {
+          const re = spec[p]!;
+          out[p] = -row * spec[p + 1]!;
+          out[p + 1] = row * re;
+        }
       }
+    }
   fft.inverse(out);
 }
 

@@ -21,7 +21,7 @@ import { powerPlot } from "./plots.js";
 import { runFigures, type RunOutputs } from "./run-figures.js";
 import { checkSliceIndex, DEFAULT_PICTURES, type PictureOptions } from "./picture-options.js";
 import type { DensityPlane } from "./planes.js";
-import type { Figure } from "./render.js";
+import { prepareFigures, type Figure } from "./render.js";
 import { checkDiagnostics, type DiagnosticRequest } from "./diagnostic-options.js";
 import { fieldDiagnostics, physicalScales } from "./field-diagnostics.js";
 import { diagnosticFigures } from "./diagnostic-plots.js";
@@ -87,6 +87,8 @@ export async function analyzeSnapshot(
   transforms?: AnalysisTransforms,
   tracks?: RunTracks,
 ): Promise<SnapshotAnalysis> {
+  // fontconfig answers and the figure workers start while the snapshot is read
+  if (withPictures) prepareFigures();
   const snap = readSnapshot(file);
   const chosen = checkDiagnostics(request, snap.meta.cells.length, snap.meta.boxSizeKpc, snap.meta.cells, file);
   if (withPictures) checkSliceIndex(pictures, snap.meta.cells, file);

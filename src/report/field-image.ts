@@ -6,7 +6,7 @@
  * data) are drawn light grey.
  */
 import type * as vega from "vega";
-import { PNG } from "pngjs";
+import { encodePng } from "./png.js";
 import { colourTable, type ColourMap } from "./colormaps.js";
 import { renderVega, STYLE, PNG_SCALE, type Figure } from "./render.js";
 import type { Plane } from "./planes.js";
@@ -29,32 +29,35 @@ export function colourRange(values: Float64Array, decades: number, fixed?: reado
 }
 
 /** The raster: each cell a block of `zoom` × `zoom` pixels (nearest neighbour), top row = largest vertical coordinate. */
-export function planePng(plane: Plane, lo: number, hi: number, map: ColourMap, zoom = 1): Buffer {
+export async function planePng(plane: Plane, lo: number, hi: number, map: ColourMap, zoom = 1): Promise<Buffer> {
   const lut = colourTable(map);
   const W = plane.nx * zoom;
   const H = plane.ny * zoom;
-  const png = new PNG({ width: W, height: H });
-  for (let row = 0; row < H; row++) {
-    const y = plane.ny - 1 - Math.floor(row / zoom);
-    for (let col = 0; col < W; col++) {
-      const v = plane.values[y * plane.nx + Math.floor(col / zoom)]!;
-      const o = 4 * (row * W + col);
-      if (Number.isNaN(v)) png.data.set([...GAP, 255], o);
-      else {
-        const c = Math.round(255 * Math.min(1, Math.max(0, (v - lo) / (hi - lo))));
-        png.data.set([lut[3 * c]!, lut[3 * c + 1]!, lut[3 * c + 2]!, 255], o);
+  const px = new Uint8Array(3 * W * H);
+  for (let y = 0; y < plane.ny; y++) {
+    // the first pixel row of plane row y, then copied to the block's other rows
+    const top = 3 * (plane.ny - 1 - y) * zoom * W;
+    for (let x = 0; x < plane.nx; x++) {
+      const v = plane.values[y * plane.nx + x]!;
+      const c = Number.isNaN(v) ? -1 : Math.round(255 * Math.min(1, Math.max(0, (v - lo) / (hi - lo))));
+      const [r, g, b] = c < 0 ? GAP : [lut[3 * c]!, lut[3 * c + 1]!, lut[3 * c + 2]!];
+      for (let o = top + 3 * x * zoom, end = o + 3 * zoom; o < end; o += 3) {
+        px[o] = r!;
+        px[o + 1] = g!;
+        px[o + 2] = b!;
       }
     }
+    for (let r = 1; r < zoom; r++) px.copyWithin(top + 3 * r * W, top, top + 3 * W);
   }
-  return PNG.sync.write(png);
+  return encodePng(px, W, H, 3);
 }
 
 /** A vertical colour-bar raster (bottom: lowest value). */
-function colourBarPng(map: ColourMap): Buffer {
+function colourBarPng(map: ColourMap): Promise<Buffer> {
   const lut = colourTable(map);
-  const png = new PNG({ width: 1, height: 256 });
-  for (let row = 0; row < 256; row++) png.data.set([lut[3 * (255 - row)]!, lut[3 * (255 - row) + 1]!, lut[3 * (255 - row) + 2]!, 255], 4 * row);
-  return PNG.sync.write(png);
+  const px = new Uint8Array(3 * 256);
+  for (let row = 0; row < 256; row++) px.set(lut.subarray(3 * (255 - row), 3 * (256 - row)), 3 * row);
+  return encodePng(px, 1, 256, 3);
 }
 
 export interface FieldFigureOptions {
@@ -85,7 +88,7 @@ export async function fieldFigure(plane: Plane, opts: FieldFigureOptions): Promi
   const w = aspect <= 1 ? side : Math.max(80, Math.round(side / aspect));
   const h = aspect >= 1 ? side : Math.max(80, Math.round(side * aspect));
   const zoom = Math.max(1, Math.ceil((w * PNG_SCALE) / plane.nx), Math.ceil((h * PNG_SCALE) / plane.ny));
-  const raster = planePng(plane, lo, hi, opts.colourMap, Math.min(zoom, 64));
+  const [raster, bar] = await Promise.all([planePng(plane, lo, hi, opts.colourMap, Math.min(zoom, 64)), colourBarPng(opts.colourMap)]);
   const image = (url: string, width: vega.SignalRef | number, height: number): vega.Mark => ({
     type: "image",
     encode: { enter: { x: { value: 0 }, y: { value: 0 }, width: typeof width === "number" ? { value: width } : width, height: { value: height }, url: { value: url }, aspect: { value: false }, smooth: { value: false } } },
@@ -114,7 +117,7 @@ export async function fieldFigure(plane: Plane, opts: FieldFigureOptions): Promi
         encode: { enter: { x: { value: w + 14 }, y: { value: 0 }, width: { value: 12 }, height: { value: h } } },
         scales: [{ name: "bar", type: "linear", domain: [lo, hi], range: [h, 0], zero: false, nice: false }],
         axes: [{ orient: "right", scale: "bar", title: opts.legend, titleAngle: 90, titleBaseline: "bottom", titlePadding: 8, ...TICKS }],
-        marks: [image(dataUri(colourBarPng(opts.colourMap)), 12, h)],
+        marks: [image(dataUri(bar), 12, h)],
       },
     ],
   };

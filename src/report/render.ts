@@ -12,18 +12,19 @@
  * psibox's number formatter (registered as the Vega expression function
  * `psiboxTick`).
  *
- * Rasterising runs on libuv's thread pool (resvg's asynchronous render), so
+ * Rasterising and PNG encoding run on worker threads (raster-pool.ts), so
  * figures requested together (Promise.all) are drawn on all cores while the
  * main thread builds the next SVG. Only the figure font's own files are
  * loaded, found once per process through fontconfig; without fontconfig, or
  * without the font, every system font is loaded (slower, same pictures).
  */
-import { execFileSync } from "node:child_process";
+import { execFile, execFileSync } from "node:child_process";
 import fs from "node:fs";
 import * as vega from "vega";
 import { compile, type TopLevelSpec } from "vega-lite";
 import { renderAsync, type ResvgRenderOptions } from "@resvg/resvg-js";
 import { formatTick } from "../core/format.js";
+import { rasterPool } from "./raster-pool.js";
 
 /** A rendered figure. */
 export interface Figure {
@@ -68,31 +69,63 @@ export const STYLE = {
 } as const;
 
 let fontFiles: string[] | null | undefined;
+let fontLookup: Promise<string[] | null> | undefined;
+
+/** The existing files of fontconfig's answer, sorted; null when none. */
+function listedFiles(listed: string): string[] | null {
+  const files = listed.split("\n").map((l) => l.trim().replace(/:$/, "")).filter((f) => f.length > 0 && fs.existsSync(f));
+  return files.length > 0 ? files.sort() : null;
+}
 
 /** The figure font's files (all its styles), asked of fontconfig once; null when it cannot say. */
 export function figureFontFiles(): string[] | null {
   if (fontFiles !== undefined) return fontFiles;
   fontFiles = null;
   try {
-    const listed = execFileSync("fc-list", [FONT, "file"], { encoding: "utf8", timeout: 10_000, stdio: ["ignore", "pipe", "ignore"] });
-    const files = listed.split("\n").map((l) => l.trim().replace(/:$/, "")).filter((f) => f.length > 0 && fs.existsSync(f));
-    if (files.length > 0) fontFiles = files.sort();
+    fontFiles = listedFiles(execFileSync("fc-list", [FONT, "file"], { encoding: "utf8", timeout: 10_000, stdio: ["ignore", "pipe", "ignore"] }));
   } catch {
     // no fontconfig: resvg loads the system's fonts itself
   }
   return fontFiles;
 }
 
+/** The same answer, asked in the background (start it early: `psibox analyze` asks before reading a snapshot). */
+export function findFigureFont(): Promise<string[] | null> {
+  if (fontFiles !== undefined) return Promise.resolve(fontFiles);
+  fontLookup ??= new Promise((resolve) => {
+    execFile("fc-list", [FONT, "file"], { encoding: "utf8", timeout: 10_000 }, (error, stdout) => {
+      // a synchronous ask meanwhile has settled it already
+      if (fontFiles === undefined) fontFiles = error ? null : listedFiles(stdout);
+      resolve(fontFiles);
+    });
+  });
+  return fontLookup;
+}
+
+/** Get ready to draw: ask for the figure font and start the figure workers, in the background (while a snapshot is read). */
+export function prepareFigures(): void {
+  void findFigureFont();
+  rasterPool();
+}
+
 /** Options of resvg: the zoom, the figure font and a white background. */
-function rasterOptions(scale: number): ResvgRenderOptions {
-  const files = figureFontFiles();
+function rasterOptions(scale: number, files: string[] | null): ResvgRenderOptions {
   const font = files ? { loadSystemFonts: false, fontFiles: files } : { loadSystemFonts: true };
   return { fitTo: { mode: "zoom", value: scale }, font: { ...font, defaultFontFamily: FONT, sansSerifFamily: FONT }, background: "white" };
 }
 
-/** Rasterise an SVG with the figure font (on libuv's thread pool). */
+/** Rasterise an SVG with the figure font, on the figure workers (or on libuv's thread pool where they cannot start). */
 export async function rasterise(svg: string, scale = PNG_SCALE): Promise<Figure> {
-  const image = await renderAsync(svg, rasterOptions(scale));
+  const options = rasterOptions(scale, await findFigureFont());
+  const pool = rasterPool();
+  if (pool) {
+    try {
+      return { svg, ...(await pool.render(svg, options)) };
+    } catch {
+      // drawn below, where resvg's own error (if the SVG is at fault) reaches the caller
+    }
+  }
+  const image = await renderAsync(svg, options);
   return { svg, png: image.asPng(), width: image.width, height: image.height };
 }
 

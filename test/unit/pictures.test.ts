@@ -167,3 +167,42 @@ describe("the figure font", () => {
     expect(ink).toBeGreaterThan(500);
   });
 });
+
+describe("PNG files", () => {
+  it("of embedded rasters decode to the same pixels in pngjs (an independent PNG reader), RGB and RGBA", async () => {
+    const { encodePng } = await import("../../src/report/png.js");
+    const { PNG } = await import("pngjs");
+    for (const channels of [3, 4] as const) {
+      const [w, h] = [37, 23];
+      const px = Uint8Array.from({ length: channels * w * h }, (_, i) => (i * 7919 + (i >> 5) * 13) & 255);
+      const back = PNG.sync.read(await encodePng(px, w, h, channels));
+      expect([back.width, back.height]).toEqual([w, h]);
+      const rgba = Uint8Array.from({ length: 4 * w * h }, (_, i) => (i % 4 === 3 && channels === 3 ? 255 : px[channels * (i >> 2) + (i % 4)]!));
+      expect(Buffer.compare(Buffer.from(back.data), Buffer.from(rgba))).toBe(0);
+    }
+  });
+
+  it("of a density plane show its cells as blocks of the zoom, the top row at the largest vertical coordinate", async () => {
+    const { planePng } = await import("../../src/report/field-image.js");
+    const { colourTable } = await import("../../src/report/colormaps.js");
+    const { PNG } = await import("pngjs");
+    const plane = { nx: 3, ny: 2, values: Float64Array.from([0, 0.5, 1, NaN, 0.25, 2]), x0: 0, y0: 0, width: 3, height: 2 };
+    const png = PNG.sync.read(await planePng(plane, 0, 1, "viridis", 4));
+    expect([png.width, png.height]).toEqual([12, 8]);
+    const lut = colourTable("viridis");
+    const at = (col: number, row: number) => Array.from(png.data.subarray(4 * (row * 12 + col), 4 * (row * 12 + col) + 3));
+    // value v → entry round(255 v) (clipped); NaN → light grey; plane row 1 is drawn on top
+    const expected = (v: number) => (Number.isNaN(v) ? [225, 225, 225] : Array.from(lut.subarray(3 * Math.round(255 * Math.min(1, v)), 3 * Math.round(255 * Math.min(1, v)) + 3)));
+    for (let row = 0; row < 8; row++)
+      for (let col = 0; col < 12; col++) expect(at(col, row)).toEqual(expected(plane.values[(1 - Math.floor(row / 4)) * 3 + Math.floor(col / 4)]!));
+  });
+
+  it("of figures come from the workers byte for byte as resvg draws and encodes them on this thread", async () => {
+    const { Resvg } = await import("@resvg/resvg-js");
+    const { FONT, PNG_SCALE, figureFontFiles, rasterise } = await import("../../src/report/render.js");
+    const svg = `<svg xmlns="http://www.w3.org/2000/svg" width="120" height="40"><text x="4" y="22" font-family="${FONT}" font-size="10">log₁₀ Σ</text><circle cx="100" cy="20" r="12" fill="#3b528b"/></svg>`;
+    const here = new Resvg(svg, { fitTo: { mode: "zoom", value: PNG_SCALE }, font: { loadSystemFonts: false, fontFiles: figureFontFiles()!, defaultFontFamily: FONT, sansSerifFamily: FONT }, background: "white" }).render();
+    const [a, b] = await Promise.all([rasterise(svg), rasterise(svg)]);
+    for (const f of [a, b]) expect(Buffer.compare(f.png, here.asPng())).toBe(0);
+  });
+});
