@@ -3,8 +3,11 @@
 // Prints ms per step (median), ns per cell-step, nominal GFLOP/s and peak resident memory.
 // When python3 with NumPy is available it also runs scripts/numpy_step.py, NumPy's version of the
 // identical step, checks that both give the same field to 1e-10 and prints the time ratio.
-// It ends with the real run against the bare step (scripts/bench-run.mjs): 128³, and 256³ with --large.
+// It ends with the real run against the bare step (scripts/bench-run.mjs): 128³, and 256³ with --large; then
+// psibox analyze of a 128³ snapshot with and without pictures (scripts/bench-analyze.mjs) and the snapshot
+// write and read speed against h5py's read (scripts/bench-io.mjs).
 // Usage: node scripts/bench.mjs [--large] [--steps N] [--no-numpy] [--threads N] [--fft auto|wasm|js] [--tangents-only] [--real-run-only] [--long-only]
+//   [--analyze-only] [--io-only]
 // (threads default to the number of cores; the fft backend to auto, and the 3D grids are also run on the other backend)
 import { Grid } from "../dist/grid/grid.js";
 import { makePoissonSolver } from "../dist/fields/poisson.js";
@@ -18,6 +21,8 @@ import path from "node:path";
 import { fileURLToPath } from "node:url";
 import { readNpyComplex } from "../dist/io/npy.js";
 import { printRealRunRows } from "./bench-run.mjs";
+import { printAnalyzeRows } from "./bench-analyze.mjs";
+import { printIoRows } from "./bench-io.mjs";
 import { defaultThreads } from "../dist/config/resolve-output.js";
 
 const args = process.argv.slice(2);
@@ -183,6 +188,14 @@ if (args.includes("--long-only")) {
   printLongRows();
   process.exit(0);
 }
+if (args.includes("--analyze-only")) {
+  await printAnalyzeRows(128);
+  process.exit(0);
+}
+if (args.includes("--io-only")) {
+  await printIoRows(128);
+  process.exit(0);
+}
 if (args.includes("--tangents-only")) {
   benchTangents();
   process.exit(0);
@@ -217,3 +230,5 @@ if (useNumpy) {
   console.log("(no python3 with NumPy here: the comparison with NumPy is skipped)");
 }
 await printRealRunRows(realRunSizes, (n) => (threadsArg >= 0 ? threads : defaultThreads([n, n, n])));
+await printAnalyzeRows(128);
+await printIoRows(128);

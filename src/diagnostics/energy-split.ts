@@ -198,7 +198,7 @@ function takeCompressible(grid: Grid, div: Float64Array, s: ShellSums, t: Totals
 
 /**
  * Quantum, incompressible and compressible kinetic energy and their shell
- * spectra, at scale factor a. Uses work grids 0–2 of `fft`.
+ * spectra, at scale factor a. Uses work grids 0 and 1 of `fft`.
  */
 export function energySplit(grid: Grid, psi: Float64Array, a: number, fft: FieldTransforms = new SimpleTransforms(grid.shape)): EnergySplit {
   return energyAndKineticSplit(grid, psi, a, fft).split;
@@ -206,7 +206,7 @@ export function energySplit(grid: Grid, psi: Float64Array, a: number, fft: Field
 
 /**
  * The energy split and, from the same transforms, the bulk-flow / quantum
- * split of `kineticSplit` (analysis.ts; the same numbers). Work grids 0–2 of `fft`.
+ * split of `kineticSplit` (analysis.ts; the same numbers). Work grids 0 and 1 of `fft`.
  */
 export function energyAndKineticSplit(grid: Grid, psi: Float64Array, a: number, fft: FieldTransforms): { split: EnergySplit; kinetic: KineticSplit } {
   const n = grid.size;
@@ -226,12 +226,16 @@ export function energyAndKineticSplit(grid: Grid, psi: Float64Array, a: number, 
   shells.countModes(modeShells(grid));
   const sums: ShellSums = { bins: modeShells(grid).bins, quantum: shells.series(0), flow: shells.series(1), compressible: shells.series(2), velocity: shells.series(3) };
   const totals: Totals = { quantum: 0, incompressible: 0, compressible: 0, uniformFlow: 0, zeroMode: 0 };
-  const div = fft.work(2);
+  const div = fft.work(1);
   div.fill(0);
   axes.forEach((ax, j) => {
-    // the last axis reuses the spectrum's grid once its derivative is taken
-    const z = j === axes.length - 1 ? spec : fft.work(1);
-    spectralDerivative(grid, fft, spec, ax, z);
+    // each axis's derivative in place of the spectrum, transformed again after the first (a grid less memory)
+    if (j > 0) {
+      spec.set(psi);
+      fft.forward(spec);
+    }
+    spectralDerivative(grid, fft, spec, ax, spec);
+    const z = spec;
     packComponents(fft, psi, z, flow);
     addAxis(grid, z, ax, div, sums, totals, perMode, velocityPerMode);
   });

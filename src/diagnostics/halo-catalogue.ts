@@ -21,6 +21,7 @@
  *   run describes a sheet or a line, and its densities are 3D densities).
  */
 import type { Grid } from "../grid/grid.js";
+import { densityGrid } from "./peaks.js";
 
 /** One halo, in code units (comoving lengths and densities in comoving runs). */
 export interface Halo {
@@ -216,10 +217,9 @@ function haloKinematics(grid: Grid, ball: Ball, psi: Float64Array, centre: reado
   return { velocity, dispersion };
 }
 
-/** The spherical-overdensity halos of ψ (interleaved re, im), most massive peaks first as found (densest first). */
-export function findHalos(grid: Grid, psi: Float64Array, search: HaloSearch): Halo[] {
-  const rho = new Float64Array(grid.size);
-  for (let p = 0; p < grid.size; p++) rho[p] = psi[2 * p]! ** 2 + psi[2 * p + 1]! ** 2;
+/** The spherical-overdensity halos of ψ (interleaved re, im), most massive peaks first as found (densest first); `scratch` as for `densestPoints`. */
+export function findHalos(grid: Grid, psi: Float64Array, search: HaloSearch, scratch?: Float64Array): Halo[] {
+  const rho = densityGrid(psi, grid.size, scratch);
   const ball = new Ball(grid);
   const axes = ([0, 1, 2] as const).filter((ax) => grid.shape[ax]! > 1);
   const halos: (Halo & { internal: number[] })[] = [];

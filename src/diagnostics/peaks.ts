@@ -88,8 +88,15 @@ function densestCell(psi: Float64Array): { cell: number; rho: number } {
   return { cell: best, rho: max };
 }
 
-/** The `count` densest local maxima at least `minSeparation` cells apart (indices and densities). */
-export function densestPoints(grid: Grid, psi: Float64Array, count: number, minSeparation: number): { index: number; coords: number[]; density: number }[] {
+/** ρ = |ψ|² per cell, in `scratch` (its first n numbers) when given, else in a new array. */
+export function densityGrid(psi: Float64Array, n: number, scratch?: Float64Array): Float64Array {
+  const rho = scratch && scratch.length >= n ? scratch.subarray(0, n) : new Float64Array(n);
+  for (let i = 0; i < n; i++) rho[i] = psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2;
+  return rho;
+}
+
+/** The `count` densest local maxima at least `minSeparation` cells apart (indices and densities); `scratch`, if given, is a grid of at least one number per cell it may overwrite. */
+export function densestPoints(grid: Grid, psi: Float64Array, count: number, minSeparation: number, scratch?: Float64Array): { index: number; coords: number[]; density: number }[] {
   const [, n1, n2] = grid.shape;
   const cell = (i: number) => [Math.floor(i / (n1 * n2)), Math.floor(i / n2) % n1, i % n2];
   const coordsOf = (ci: number[]) => [grid.coordinate(0, ci[0]!), grid.coordinate(1, ci[1]!), grid.coordinate(2, ci[2]!)].slice(3 - grid.dims);
@@ -99,8 +106,7 @@ export function densestPoints(grid: Grid, psi: Float64Array, count: number, minS
     return [{ index: top.cell, coords: coordsOf(cell(top.cell)), density: top.rho }];
   }
   const n = grid.size;
-  const rho = new Float64Array(n);
-  for (let i = 0; i < n; i++) rho[i] = psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2;
+  const rho = densityGrid(psi, n, scratch);
   const heap = new PeakHeap(rho, peakCandidates(grid, rho));
   const chosen: { index: number; coords: number[]; density: number }[] = [];
   for (let i = heap.pop(); i >= 0 && chosen.length < count; i = heap.pop()) {

@@ -71,11 +71,11 @@ function bilinearZero(re: readonly number[], im: readonly number[]): [number, nu
   return s >= 0 && s <= 1 && t >= 0 && t <= 1 ? [s, t] : [0.5, 0.5];
 }
 
-/** Vortices of a 2D or 3D field (throws RangeError for a 1D grid). */
-export function findVortices(grid: Grid, psi: Float64Array): VortexCensus {
+/** Vortices of a 2D or 3D field (throws RangeError for a 1D grid); `scratch`, if given, is a grid of at least one number per cell it may overwrite. */
+export function findVortices(grid: Grid, psi: Float64Array, scratch?: Float64Array): VortexCensus {
   if (grid.dims < 2) throw new RangeError("vortices need a 2D or 3D field");
   const n = grid.size;
-  const phase = new Float64Array(n);
+  const phase = scratch && scratch.length >= n ? scratch.subarray(0, n) : new Float64Array(n);
   for (let i = 0; i < n; i++) phase[i] = Math.atan2(psi[2 * i + 1]!, psi[2 * i]!);
   const [n0, n1, n2] = grid.shape;
   const stride = [n1 * n2, n2, 1];

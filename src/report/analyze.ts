@@ -22,7 +22,7 @@ import { runFigures, type RunOutputs } from "./run-figures.js";
 import { checkSliceIndex, DEFAULT_PICTURES, type PictureOptions } from "./picture-options.js";
 import type { DensityPlane } from "./planes.js";
 import { prepareFigures, type Figure } from "./render.js";
-import { checkDiagnostics, type DiagnosticRequest } from "./diagnostic-options.js";
+import { checkDiagnostics, type DiagnosticRequest, type FieldDiagnostic } from "./diagnostic-options.js";
 import { fieldDiagnostics, physicalScales } from "./field-diagnostics.js";
 import { diagnosticFigures } from "./diagnostic-plots.js";
 import { PooledTransforms } from "../integrators/pooled-transforms.js";
@@ -35,8 +35,10 @@ const KPC = 1e3 * PC_M;
 
 /**
  * The diagnostics' transforms of the snapshots being analysed: the step
- * engine's kernels on the default threads, with the three work grids the
- * energy split needs, made once per grid shape and reused.
+ * engine's kernels on the default threads, with the two work grids the
+ * energy split, the kinetic split and the granules need (also the scratch
+ * of the densest points, halos and vortices), made once per grid shape and
+ * reused.
  */
 export class AnalysisTransforms {
   private current: PooledTransforms | undefined;
@@ -44,7 +46,7 @@ export class AnalysisTransforms {
   of(grid: Grid): PooledTransforms {
     if (this.current && this.current.shape.every((n, i) => n === grid.shape[i])) return this.current;
     this.close();
-    this.current = new PooledTransforms(grid, 3, { threads: defaultThreads(grid.cells) });
+    this.current = new PooledTransforms(grid, 2, { threads: defaultThreads(grid.cells) });
     return this.current;
   }
 
@@ -77,6 +79,52 @@ function units(field: LoadedField): { kpcPerCode: number; densityUnit: number } 
   return { kpcPerCode: u.lengthM / KPC, densityUnit: u.massKg / u.lengthM ** 3 / (M_SUN_KG / KPC ** 3) };
 }
 
+/** A turn of the event loop: figures started earlier take their next step (an SVG built, a raster handed to a worker). */
+const tick = (): Promise<void> => new Promise((resolve) => setImmediate(resolve));
+
+/** A promise awaited later: marked handled now, so that a failure elsewhere first does not leave it unhandled. */
+function later<T>(p: Promise<T>): Promise<T> {
+  p.catch(() => undefined);
+  return p;
+}
+
+/** What the numbers of a snapshot give the pictures. */
+interface Measured {
+  readonly summary: Record<string, unknown>;
+  readonly diagnostics: ReturnType<typeof fieldDiagnostics>;
+  readonly powerFigure?: Promise<Figure>;
+}
+
+/** The tables and the field diagnostics of a snapshot, yielding between them to the figures being drawn; the P(k) figure is started as soon as P(k) is known. */
+async function measure(file: string, snap: Snapshot, field: LoadedField, outDir: string, request: DiagnosticRequest, chosen: Set<FieldDiagnostic>, withPictures: boolean, transforms: AnalysisTransforms | undefined, tracks: RunTracks | undefined): Promise<Measured> {
+  const own = transforms ?? new AnalysisTransforms();
+  try {
+    const fft = own.of(field.grid);
+    // the energy split's transforms give the tables' kinetic split too
+    const both = chosen.has("energy-split") ? energyAndKineticSplit(field.grid, field.psi, field.scaleFactor, fft) : undefined;
+    await tick();
+    const { summary, power } = snapshotTables(file, snap, field, outDir, fft, both?.kinetic);
+    const powerFigure = withPictures ? later(powerFigureOf(file, snap, field, power)) : undefined;
+    await tick();
+    summary["halos"] = haloTables(file, snap, field, outDir, request.halos ?? { definition: "200m" }, tracks, fft.work(0));
+    const species = speciesSummary(snap, field, outDir);
+    if (species) summary["species"] = species;
+    await tick();
+    const diagnostics = fieldDiagnostics(field, chosen, outDir, fft, request.husimiWindowKpc, request.husimiPointsKpc, both?.split);
+    return { summary, diagnostics, ...(powerFigure ? { powerFigure } : {}) };
+  } finally {
+    if (!transforms) own.close();
+  }
+}
+
+/** The P(k) figure, with the linear prediction of a cosmological run. */
+function powerFigureOf(file: string, snap: Snapshot, field: LoadedField, power: { k: number; P: number }[]): Promise<Figure> {
+  // bins at round-off level (a field with a few modes) would only stretch the log axis
+  const maxP = Math.max(...power.map((b) => b.P));
+  const d = field.grid.dims;
+  return powerPlot(power.filter((b) => b.P > 1e-12 * maxP), linearPrediction(file, field), "k [1/kpc]", `P(k) [kpc${["", "", "²", "³"][d]}]`, "Density power spectrum", timeCaption(snap));
+}
+
 /** Analyse one snapshot into `outDir` (created), with the field diagnostics of `request` and pictures drawn as `pictures` says. */
 export async function analyzeSnapshot(
   file: string,
@@ -92,47 +140,26 @@ export async function analyzeSnapshot(
   const snap = readSnapshot(file);
   const chosen = checkDiagnostics(request, snap.meta.cells.length, snap.meta.boxSizeKpc, snap.meta.cells, file);
   if (withPictures) checkSliceIndex(pictures, snap.meta.cells, file);
-  const halos = request.halos ?? { definition: "200m" };
-  checkHaloRequest(halos, snap, file);
+  checkHaloRequest(request.halos ?? { definition: "200m" }, snap, file);
   // the pictures read only the snapshot's metadata: the field takes its ψ over (one grid less in memory)
   const field = loadField(snap, true);
   fs.mkdirSync(outDir, { recursive: true });
-  const own = transforms ?? new AnalysisTransforms();
-  let summary: Record<string, unknown>;
-  let power: { k: number; P: number }[];
-  let diagnostics: ReturnType<typeof fieldDiagnostics>;
-  try {
-    const fft = own.of(field.grid);
-    // the energy split's transforms give the tables' kinetic split too
-    const both = chosen.has("energy-split") ? energyAndKineticSplit(field.grid, field.psi, field.scaleFactor, fft) : undefined;
-    ({ summary, power } = snapshotTables(file, snap, field, outDir, fft, both?.kinetic));
-    summary["halos"] = haloTables(file, snap, field, outDir, halos, tracks);
-    const species = speciesSummary(snap, field, outDir);
-    if (species) summary["species"] = species;
-    diagnostics = fieldDiagnostics(field, chosen, outDir, fft, request.husimiWindowKpc, request.husimiPointsKpc, both?.split);
-  } finally {
-    if (!transforms) own.close();
-  }
+  const { kpcPerCode, densityUnit } = units(field);
+  // the density pictures need ψ alone: drawn while the numbers are computed
+  const density = withPictures ? later(snapshotPictures(snap, field, kpcPerCode, densityUnit, pictures)) : undefined;
+  const { summary, diagnostics, powerFigure } = await measure(file, snap, field, outDir, request, chosen, withPictures, transforms, tracks);
   Object.assign(summary, diagnostics.summary);
   writeFileAtomic(path.join(outDir, "summary.json"), JSON.stringify(summary, null, 2) + "\n");
   const figures: Record<string, Figure> = {};
   const planes: SnapshotAnalysis["planes"] = {};
-  if (withPictures) {
-    const { kpcPerCode, densityUnit } = units(field);
-    // bins at round-off level (a field with a few modes) would only stretch the log axis
-    const maxP = Math.max(...power.map((b) => b.P));
-    const d = field.grid.dims;
-    // drawn together: their rasterising shares the thread pool
-    const [pics, powerFigure, diagnostic] = await Promise.all([
-      snapshotPictures(snap, field, kpcPerCode, densityUnit, pictures),
-      powerPlot(power.filter((b) => b.P > 1e-12 * maxP), linearPrediction(file, field), "k [1/kpc]", `P(k) [kpc${["", "", "²", "³"][d]}]`, "Density power spectrum", timeCaption(snap)),
-      diagnosticFigures(field, diagnostics, physicalScales(field), timeCaption(snap)),
-    ]);
+  if (density && powerFigure) {
+    // drawn together: they share the figure workers
+    const [pics, power, diagnostic] = await Promise.all([density, powerFigure, diagnosticFigures(field, diagnostics, physicalScales(field), timeCaption(snap))]);
     figures["slice"] = pics.slice;
     if (pics.projection) figures["projection"] = pics.projection;
     if (pics.slicePlane) planes.slice = pics.slicePlane;
     if (pics.projectionPlane) planes.projection = pics.projectionPlane;
-    figures["power"] = powerFigure;
+    figures["power"] = power;
     Object.assign(figures, diagnostic);
     for (const [name, fig] of Object.entries(figures)) writeFigure(outDir, name, fig);
   }

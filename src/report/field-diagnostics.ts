@@ -58,7 +58,7 @@ export function fieldDiagnostics(
   const summary: Record<string, unknown> = {};
   const out: { -readonly [K in keyof FieldDiagnosticsResult]: FieldDiagnosticsResult[K] } = { summary };
   if (chosen.has("energy-split")) out.split = writeEnergySplit(field, s, outDir, summary, measuredSplit ?? energySplit(field.grid, field.psi, field.scaleFactor, fft));
-  if (chosen.has("vortices")) out.vortices = writeVortices(field, s, outDir, summary);
+  if (chosen.has("vortices")) out.vortices = writeVortices(field, s, outDir, summary, fft.work(0));
   if (chosen.has("granules")) out.granules = writeGranules(field, s, outDir, summary, fft);
   if (chosen.has("husimi")) Object.assign(out, writeHusimi(field, s, outDir, summary, windowKpc, pointsKpc));
   return out;
@@ -84,8 +84,8 @@ function writeEnergySplit(field: LoadedField, s: PhysicalScales, outDir: string,
   return split;
 }
 
-function writeVortices(field: LoadedField, s: PhysicalScales, outDir: string, summary: Record<string, unknown>): VortexCensus {
-  const census = findVortices(field.grid, field.psi);
+function writeVortices(field: LoadedField, s: PhysicalScales, outDir: string, summary: Record<string, unknown>, scratch: Float64Array): VortexCensus {
+  const census = findVortices(field.grid, field.psi, scratch);
   const three = field.grid.dims === 3;
   const header = three ? ["x_kpc", "y_kpc", "z_kpc", "normal_axis", "charge", "length_kpc"] : ["x_kpc", "y_kpc", "charge"];
   const rows = census.points.map((p) => [...p.position.map((x) => x * s.kpc), ...(three ? [p.normal + 1, p.charge, p.length * s.kpc] : [p.charge])]);

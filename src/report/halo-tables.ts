@@ -75,14 +75,14 @@ function withCore(field: LoadedField, h: Halo, cell: number): HaloRecord {
 
 /**
  * Find the halos of a snapshot and write halos.csv and halos.h5 into `outDir` (with track ids when `tracks` follows
- * the run); returns the catalogue's part of summary.json.
+ * the run); returns the catalogue's part of summary.json. `scratch`: a grid of at least one number per cell it may overwrite.
  */
-export function haloTables(file: string, snap: Snapshot, field: LoadedField, outDir: string, request: HaloRequest, tracks?: RunTracks): Record<string, unknown> {
+export function haloTables(file: string, snap: Snapshot, field: LoadedField, outDir: string, request: HaloRequest, tracks?: RunTracks, scratch?: Float64Array): Record<string, unknown> {
   const { grid, psi, scaleFactor: a } = field;
   const s = scalesOf(snap, field);
   const { code, physical } = threshold(snap, field, request.definition, file);
   const minMass = request.minMassMsun !== undefined ? request.minMassMsun / s.msun : code * ballVolume(grid.dims, 2 * s.cell);
-  const found = findHalos(grid, psi, { threshold: code, minMass, a });
+  const found = findHalos(grid, psi, { threshold: code, minMass, a }, scratch);
   const ids = tracks?.assign(file, snap, field, found);
   const records = found.map((h, i) => ({ ...withCore(field, h, s.cell), ...(ids ? { track: ids[i]! } : {}) }));
   const cols = haloColumns(grid.dims, ids !== undefined);

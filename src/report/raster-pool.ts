@@ -2,9 +2,10 @@
  * Rasterising SVG to PNG on worker threads: each worker draws with resvg
  * and encodes the PNG itself, so neither step holds the main thread (resvg's
  * asynchronous render runs on libuv's pool, but its PNG encoder runs where it
- * is called, and a 3× figure is several megabytes of pixels). One worker per
- * core, up to four, started on first use (or early, with `startRasterPool`);
- * idle workers do not keep the process alive. If a worker cannot be started
+ * is called, and a 3× figure is several megabytes of pixels). Two workers
+ * (one on a single core; each costs memory, and the main thread building the
+ * SVGs keeps no more than two busy), started on first use (or early, by
+ * `prepareFigures` in render.ts); idle workers do not keep the process alive. If a worker cannot be started
  * the caller falls back to drawing on this thread (`null` from `rasterPool`).
  */
 import os from "node:os";
@@ -106,14 +107,9 @@ let pool: RasterPool | null | undefined;
 export function rasterPool(): RasterPool | null {
   if (pool !== undefined) return pool;
   try {
-    pool = new RasterPool(Math.min(4, Math.max(1, os.availableParallelism?.() ?? os.cpus().length)));
+    pool = new RasterPool(Math.min(2, Math.max(1, os.availableParallelism?.() ?? os.cpus().length)));
   } catch {
     pool = null;
   }
   return pool;
-}
-
-/** Start the figure workers now, so that they are ready when the first figure is drawn. */
-export function startRasterPool(): void {
-  rasterPool();
 }

@@ -62,7 +62,7 @@ export function snapshotTables(
 
   const stats = fieldStats(field, fft);
   const split = kinetic ?? kineticSplit(grid, psi, a, fft);
-  const peaks = densestPoints(grid, psi, 5, Math.max(4, grid.cells[0]! / 16));
+  const peaks = densestPoints(grid, psi, 5, Math.max(4, grid.cells[0]! / 16), fft.work(0));
   const profileRows: (number | string)[][] = [];
   const peakRows = peaks.map((p, i) => {
     const rMax = Math.min(...grid.lengths) / 4;

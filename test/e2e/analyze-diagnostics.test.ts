@@ -1,5 +1,5 @@
 // psibox analyze's field diagnostics from the CLI: tables, pictures, Δ²(k) in h/Mpc against the linear spectrum, and bad input.
-import { spawnSync } from "node:child_process";
+import { spawn, spawnSync } from "node:child_process";
 import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
@@ -12,6 +12,16 @@ let work: string;
 function psibox(args: string[]) {
   const r = spawnSync(process.execPath, [BIN, ...args], { cwd: work, encoding: "utf8" });
   return { code: r.status, stdout: r.stdout, stderr: r.stderr };
+}
+
+/** The same, without waiting: independent invocations run side by side. */
+function psiboxAsync(args: string[]): Promise<{ code: number | null; stderr: string }> {
+  return new Promise((resolve) => {
+    const child = spawn(process.execPath, [BIN, ...args], { cwd: work });
+    let stderr = "";
+    child.stderr.on("data", (d: Buffer) => (stderr += d.toString("utf8")));
+    child.on("close", (code) => resolve({ code, stderr }));
+  });
 }
 
 function readCsv(file: string): Record<string, number>[] {
@@ -82,7 +92,7 @@ describe("psibox analyze: field diagnostics", () => {
     expect(files).not.toContain("energy-spectra.csv");
   });
 
-  it("bad input: one-line errors naming the option and what is valid, exit code 2", () => {
+  it("bad input: one-line errors naming the option and what is valid, exit code 2", async () => {
     const cases: [string[], RegExp][] = [
       [["output/two", "--husimi-window", "0.1 kpc"], /^psibox: --husimi-window: 0\.1 kpc is smaller than a cell; valid for .* 0\.6250 to 1\.250 kpc$/],
       [["output/two", "--husimi-window", "5 kpc"], /^psibox: --husimi-window: 5 kpc is too wide for the box .*; valid for .* 0\.6250 to 1\.250 kpc$/],
@@ -94,8 +104,9 @@ describe("psibox analyze: field diagnostics", () => {
       [["output/one", "--husimi-points", "3"], /^psibox: --husimi-points: .* is a 1D run/],
       [["output/two", "--diagnostics", "vortex"], /^psibox: --diagnostics: unknown diagnostic "vortex"; valid: energy-split, vortices, granules, husimi or none$/],
     ];
-    for (const [args, message] of cases) {
-      const r = psibox(["analyze", ...args, "--out", "bad"]);
+    const results = await Promise.all(cases.map(([args]) => psiboxAsync(["analyze", ...args, "--out", "bad"])));
+    for (const [i, [args, message]] of cases.entries()) {
+      const r = results[i]!;
       expect(r.code, args.join(" ")).toBe(2);
       expect(r.stderr.trim().split("\n"), args.join(" ")).toHaveLength(1);
       expect(r.stderr.trim(), args.join(" ")).toMatch(message);
