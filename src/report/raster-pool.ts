@@ -47,7 +47,6 @@ class Rasteriser {
 
   constructor(resvg: string) {
     this.worker = new Worker(WORKER, { eval: true, workerData: { resvg } });
-    this.worker.unref();
     this.worker.on("message", (m: { id: number; png?: Uint8Array; width: number; height: number; error?: string }) => {
       const p = this.pending.get(m.id);
       this.settle(m.id);
@@ -64,6 +63,8 @@ class Rasteriser {
     };
     this.worker.on("error", fail);
     this.worker.on("exit", (code) => fail(new Error(`the figure worker stopped (exit code ${code})`)));
+    // after the listeners: adding a "message" listener refs the worker again
+    this.worker.unref();
   }
 
   get load(): number {
