@@ -55,6 +55,17 @@ export function stationaryAdiabaticChi(c: Pick<ModeCoefficients, "omega" | "chi"
   return base + chiContact * (2 - (6 * (k + w + 3 * u)) / (6 * k + 2 * w + 12 * u));
 }
 
+/**
+ * χ_ad on the self-gravity soliton branch to first order in g, from the frozen-mode coefficients of the
+ * soliton of gravity alone (what psibox estimate has): (3/2)χ_grav + 10 χ_SI. First-order perturbation
+ * theory gives the energy E(N) = E_grav(N) + U(N) with U evaluated on the unperturbed soliton, where
+ * ∫ρ² ∝ N⁵ (radius ∝ 1/N), so ħ d²U/dN² = 20U/N² = 10 ħχ_SI (ħχ_SI = 2U/N²), and d²E_grav/dN² = (3/2)ħχ_grav.
+ * Its error is of order g² (test/quantum/adiabatic-contact.test.ts against shot ground states).
+ */
+export function solitonBranchAdiabaticChi(chiGravity: number, chiContact: number): number {
+  return 1.5 * chiGravity + 10 * chiContact;
+}
+
 /** Samples the twin tracker keeps for its fit (thinned by halves beyond this, so checkpoints stay small). */
 const MAX_SAMPLES = 512;
 

@@ -18,11 +18,14 @@
  * g = 4πħ²a_s/m and the mode's mass-weighted density ρ_eff = ∫ρ²/∫ρ: the
  * given density, 3M/(4πR³) of a uniform sphere, or 0.00135492 G³M⁴m⁶/ħ⁶
  * of the soliton of self-gravity alone (computed independently by
- * shooting; a weak interaction); its stationary dμ/dN part is χ_SI itself
- * (μ_SI = g n), so χ_ad = (3/2)χ_grav + χ_SI. All inputs and outputs in SI.
+ * shooting; a weak interaction). On the soliton branch (radius ∝ 1/N) the
+ * interaction energy grows as N⁵, so to first order in g its stationary
+ * dμ/dN part is 10χ_SI: χ_ad = (3/2)χ_grav + 10χ_SI (adiabatic.ts,
+ * solitonBranchAdiabaticChi). All inputs and outputs in SI.
  */
 import { G_SI, HBAR_J_S } from "../physics/constants.js";
 import { contactCouplingSI, criticalMassKg } from "../physics/contact.js";
+import { solitonBranchAdiabaticChi } from "./adiabatic.js";
 import { xForSqueezing } from "./kerr.js";
 import { COHERENT, isCoherent, numberSpread, validateStart, type GaussianStart } from "./gaussian-start.js";
 import { meanFieldCollapseX, xForSqueezingOf } from "./state-clocks.js";
@@ -129,7 +132,7 @@ export function estimateClocks(inp: EstimateInputs): Estimate {
   const chiContact = contactChi(inp, rho);
   const chi = chiGravity + chiContact;
   const rate = N * Math.abs(chi);
-  const chiAd = 1.5 * chiGravity + chiContact;
+  const chiAd = solitonBranchAdiabaticChi(chiGravity, chiContact);
   const lambda = rho === undefined ? undefined : Math.sqrt(4 * Math.PI * G_SI * rho);
   const open = gamma > 0 || kappa > 0;
   const stateNote = `${isCoherent(start) ? "coherent start" : "the chosen start"}${open ? `, loss γ = ${gamma.toPrecision(3)} /s and dephasing κ = ${kappa.toPrecision(3)} /s` : ""}`;
@@ -170,7 +173,7 @@ export function estimateClocks(inp: EstimateInputs): Estimate {
         ...(tLevel === undefined ? { note: `the squeezing of this state never reaches ${inp.squeezingDb} dB` } : tLevel === 0 ? { note: "the start is already squeezed to this level" } : {}),
       },
       { name: "phase diffusion, frozen mode", timeS: diffusion(chi), formula: `|⟨b⟩|² down by 1/e with χ: X_c ≈ 1/ΔN, ΔN = ${dN.toPrecision(4)} (${stateNote})` },
-      { name: "phase diffusion, adiabatic", timeS: diffusion(chiAd), formula: chiContact !== 0 ? "the same with χ_ad = (3/2) χ_grav + χ_SI (stationary state)" : "the same with χ_ad = (1/ħ) dμ/dN = (3/2) χ (stationary state)" },
+      { name: "phase diffusion, adiabatic", timeS: diffusion(chiAd), formula: chiContact !== 0 ? "the same with χ_ad = (3/2) χ_grav + 10 χ_SI (stationary soliton, first order in the interaction)" : "the same with χ_ad = (1/ħ) dμ/dN = (3/2) χ (stationary state)" },
       {
         name: "classical breakdown",
         timeS: lambda === undefined ? undefined : Math.log(N) / lambda,
