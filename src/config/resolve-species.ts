@@ -17,7 +17,7 @@ import { positive, read } from "./values.js";
 import { resolveInitial, type ResolvedInitial } from "./resolve-initial.js";
 import { resolveBackgroundAndSpan } from "./resolve-span.js";
 import { resolveContact, type ResolvedContact } from "./resolve-contact.js";
-import { checkRelaxedMasses } from "./contact-limits.js";
+import { checkExpandingRelaxation, checkRelaxedMasses } from "./contact-limits.js";
 
 /** The first species' name when [particle] gives none. */
 export const FIRST_SPECIES_NAME = "main";
@@ -67,15 +67,6 @@ function checkCompanions(config: CheckedConfig): void {
   }
 }
 
-/** A species' own contact interaction (static boxes only, as the first species'). */
-function speciesContact(config: CheckedConfig, sp: NonNullable<CheckedConfig["species"]>[number], key: string, particleMassKg: number): ResolvedContact | undefined {
-  const contact = resolveContact(sp, key, particleMassKg);
-  if (contact && config.background.kind !== "static") {
-    throw new ConfigError(`${key}.${contact.decayConstantJ === undefined ? "scattering_length" : "decay_constant"}`, 'a contact interaction runs in static boxes only (background.kind = "static")');
-  }
-  return contact;
-}
-
 /**
  * Resolve [[species]] (none: an empty list).
  * @param units the run's code units (of the first species)
@@ -96,13 +87,15 @@ export function resolveSpecies(config: CheckedConfig, dims: number, lengths: rea
     const massRatio = particleMassKg / units.particleMassKg;
     const fromFile = sp.initial.kind === "snapshot";
     const own = fromFile ? units : new CodeUnits(particleMassKg, units.lengthM);
-    const contact = speciesContact(config, sp, key, particleMassKg);
+    const contact = resolveContact(sp, key, particleMassKg);
     const scoped: CheckedConfig = { ...config, initial: sp.initial };
     return underSpecies(i, () => {
       const { background, startTime } = resolveBackgroundAndSpan({ ...scoped, initial: config.initial }, own, ctx, hubbleSI);
       const initial = resolveInitial(scoped, dims, lengths, own, ctx, background);
       // a ground state above its own largest stable mass has nothing to relax to (species[i].initial.mass)
       checkRelaxedMasses(initial, dims, own, contact, particleMassKg, key);
+      // a relaxation solves the static equations (species[i].initial.kind in an expanding box)
+      checkExpandingRelaxation(initial, background.kind, contact);
       return { name: sp.name, particleMassKg, massRatio, initial, background, startTime, ...(contact ? { contact } : {}) };
     });
   });

@@ -217,4 +217,23 @@ describe("an expanding run with a contact interaction, from its config", () => {
     expect(Math.abs(uRun / uSI - 1)).toBeLessThan(1e-9);
     expect(Math.abs(fieldStats(loadField(a)).contactMsunKm2S2 * M_SUN_KG * 1e6 / uSI - 1)).toBeLessThan(1e-9);
   });
+
+  it("gives a later species its own comoving contact term: the Layzer–Irvine residual holds with its U, and a relaxed species start is refused", async () => {
+    // the first species without an interaction, a lighter second one with its own (ΔE + ∫(2K + W + 3U) d ln a summed over both)
+    const species = `[[species]]\nname = "light"\nparticle_mass = "5e-24 eV"\nscattering_length = "1e-79 m"\n[species.initial]\nkind = "plane-wave"\ncontrast = 1e-3\n`;
+    const config = CONFIG.replace('scattering_length = "1e-79 m"\n', "") + species;
+    const run = resolveRun(loadConfig(writeIn(work, "pair.toml", config)), "pair", work);
+    expect(run.species[0]!.contact?.scatteringLengthM).toBe(1e-79);
+    expect((await runStoppable(run)).status).toBe("completed");
+    const rows = readCsv(path.join(run.outputDir, "timeseries.csv"));
+    const last = rows.at(-1)!;
+    expect(Number(last["contact_light_Msun_km2_s2"])).toBeGreaterThan(0);
+    expect(Number(last["contact_Msun_km2_s2"])).toBe(Number(last["contact_light_Msun_km2_s2"]));
+    // U here exceeds |W| by orders (a nearly uniform field), so a missing or wrong power of a in the species' U breaks it
+    const drifts = conservationDrifts(energyRows(rows, "t_Gyr"));
+    expect(Math.max(...drifts.map((d) => Math.abs(d.energy)))).toBeLessThan(1e-3);
+    const relaxed = config.replace('[species.initial]\nkind = "plane-wave"\ncontrast = 1e-3', '[species.initial]\nkind = "ground-state"\nmass = "1e8 Msun"');
+    expect(() => resolveRun(loadConfig(writeIn(work, "relaxed.toml", relaxed)), "relaxed", work)).toThrow(/species\[0\]\.initial\.kind/);
+  });
 });
+

@@ -332,13 +332,14 @@ describe("bad species lists", () => {
     const negative = `[[species]]\nname = "b"\nparticle_mass = "2e-22 eV"\n${packet.replace('"1e9 Msun"', '"-1e9 Msun"')}`;
     expect(refused(base + negative).message).toMatch(/^species\[0\]\.initial\.mass: must be positive/);
   });
-  it("refuse a species' contact interaction given twice, a decay constant that is not an energy, and one in an expanding box, naming the species' key", () => {
+  it("refuse a species' contact interaction given twice, and a decay constant that is not an energy, naming the species' key", () => {
     const sp = (keys: string) => `[[species]]\nname = "b"\nparticle_mass = "2e-22 eV"\n${keys}${packet}`;
     const both = refused(base + sp('scattering_length = "1e-80 m"\ndecay_constant = "1e17 GeV"\n'));
     expect(both.message).toBe("species[0].decay_constant: give either species[0].scattering_length or species[0].decay_constant, not both (a decay constant fixes the scattering length)");
     expect(refused(base + sp('decay_constant = "1e-30 m"\n')).key).toBe("species[0].decay_constant");
     const lcdm = base.replace("[initial]", '[background]\nkind = "lcdm"\n[initial]').replace('duration = "1 Myr"', 'start_redshift = 10\nend_redshift = 9');
-    expect(refused(lcdm + sp('scattering_length = "-1e-80 m"\n')).message).toMatch(/^species\[0\]\.scattering_length: a contact interaction runs in static boxes only/);
+    // an expanding box takes it (the comoving form), but not with a relaxed start
+    expect(resolved("lcdm", lcdm + sp('scattering_length = "-1e-80 m"\n')).species[0]!.contact?.scatteringLengthM).toBe(-1e-80);
   });
   it("refuse a species' ground state above its own largest stable mass, naming its initial mass key and its interaction's key", () => {
     // M_max = 1.0125 ħ/√(G m |a_s|) (Chavanis & Delfini 2011): 2.0e8 Msun for m = 2e-22 eV and a_s = −3e-78 m
