@@ -77,3 +77,29 @@ export function maxRelative(a: Float64Array, b: Float64Array): number {
   }
   return num / den;
 }
+
+/** Amplitude of cos(2π·mode·z) in δ = ρ/ρ̄ − 1 of a 1D field. */
+export function modeAmplitude(grid: Grid, psi: Float64Array, mode: number): number {
+  const n = grid.size;
+  let mean = 0;
+  for (let i = 0; i < n; i++) mean += psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2;
+  mean /= n;
+  let c = 0;
+  for (let i = 0; i < n; i++) c += ((psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2) / mean - 1) * Math.cos((2 * Math.PI * mode * i) / n);
+  return (2 * c) / n;
+}
+
+/**
+ * A nonlinear 2D start in an expanding unit box: two density modes (contrasts 0.3 and 0.2) of mean rhoBar at
+ * aStart with the growing mode's flow, phase S_k = a²H f δ_k/k² (linear theory).
+ */
+export function expandingTwoModeStart(grid: Grid, rhoBar: number, aStart: number, hubble: number, growthRate: number): Float64Array {
+  const flow = aStart * aStart * hubble * growthRate;
+  return fillComplex(grid, (_x, y, z) => {
+    const c1 = 0.3 * Math.cos(2 * Math.PI * y) * Math.cos(2 * Math.PI * z);
+    const c2 = 0.2 * Math.sin(4 * Math.PI * z + 1);
+    const phase = flow * (c1 / (8 * Math.PI * Math.PI) + c2 / (16 * Math.PI * Math.PI));
+    const amp = Math.sqrt(rhoBar * (1 + c1 + c2));
+    return [amp * Math.cos(phase), amp * Math.sin(phase)];
+  });
+}

@@ -20,7 +20,7 @@ import { SplitStepper } from "../../src/integrators/split-step.js";
 import { evolve } from "../../src/simulation/evolve.js";
 import { chooseTimestep } from "../../src/integrators/timestep.js";
 import { contactEnergy, kineticEnergy, potentialEnergy } from "../../src/diagnostics/energies.js";
-import { fillComplex } from "../helpers/fields.js";
+import { expandingTwoModeStart, fillComplex, modeAmplitude } from "../helpers/fields.js";
 import { loadConfig } from "../../src/config/load.js";
 import { resolveRun, type ResolvedRun } from "../../src/config/resolve.js";
 import { readSnapshot } from "../../src/io/snapshot.js";
@@ -30,17 +30,6 @@ import { HBAR_J_S, KG_PER_EV, M_SUN_KG, PC_M } from "../../src/physics/constants
 import { runStoppable } from "../helpers/runs.js";
 import { makeWork, readCsv, removeWork, writeIn } from "../helpers/cli.js";
 import { conservationDrifts, energyRows } from "../../src/report/energy-series.js";
-
-/** Amplitude of cos(2π·mode·z) in δ = ρ/ρ̄ − 1 on a 1D grid. */
-function modeAmplitude(grid: Grid, psi: Float64Array, mode: number): number {
-  const n = grid.size;
-  let mean = 0;
-  for (let i = 0; i < n; i++) mean += psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2;
-  mean /= n;
-  let c = 0;
-  for (let i = 0; i < n; i++) c += ((psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2) / mean - 1) * Math.cos((2 * Math.PI * mode * i) / n);
-  return (2 * c) / n;
-}
 
 function stepper(grid: Grid, bg: Background, g: number, psi: Float64Array, t0: number): SplitStepper {
   const s = new SplitStepper(grid, bg, makePoissonSolver(grid, "periodic"), "auto", 1, [], g);
@@ -130,14 +119,7 @@ describe("Layzer–Irvine equation with the contact term, d(K + W + U)/dt + H(2K
     const grid = new Grid([32, 32], [1, 1]);
     const rhoBar = 1.5 * 0.3 * hubble0 * hubble0;
     const aStart = 0.2;
-    const flow = aStart * aStart * bg.hubble(aStart) * bg.growthRate(aStart);
-    const psi = fillComplex(grid, (_x, y, z) => {
-      const c1 = 0.3 * Math.cos(2 * Math.PI * y) * Math.cos(2 * Math.PI * z);
-      const c2 = 0.2 * Math.sin(4 * Math.PI * z + 1);
-      const phase = flow * (c1 / (8 * Math.PI * Math.PI) + c2 / (16 * Math.PI * Math.PI));
-      const amp = Math.sqrt(rhoBar * (1 + c1 + c2));
-      return [amp * Math.cos(phase), amp * Math.sin(phase)];
-    });
+    const psi = expandingTwoModeStart(grid, rhoBar, aStart, bg.hubble(aStart), bg.growthRate(aStart));
     const s = stepper(grid, bg, g, psi, bg.time(aStart));
     const scratch = new Float64Array(psi.length);
     const record = () => {

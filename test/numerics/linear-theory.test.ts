@@ -7,7 +7,7 @@ import { LcdmBackground, StaticBackground, type Background } from "../../src/phy
 import { SplitStepper } from "../../src/integrators/split-step.js";
 import { evolve } from "../../src/simulation/evolve.js";
 import { kineticEnergy, potentialEnergy } from "../../src/diagnostics/energies.js";
-import { fillComplex } from "../helpers/fields.js";
+import { expandingTwoModeStart, fillComplex } from "../helpers/fields.js";
 
 /** Amplitude of cos(kz) in δ = ρ/ρ̄ − 1 along the last axis (mode number `mode`). */
 function modeAmplitude(grid: Grid, psi: Float64Array, mode: number): number {
@@ -122,15 +122,7 @@ describe("Layzer–Irvine equation d(K + W)/dt + H(2K + W) = 0 (Layzer 1963, ApJ
     const grid = new Grid([64, 64], [1, 1]);
     const rhoBar = 1.5 * 0.3 * hubble0 * hubble0;
     const aStart = 0.2;
-    // growing-mode flow: phase S_k = a² H f δ_k / k² (linear theory, f ≈ 1 at a = 0.2)
-    const flow = aStart * aStart * bg.hubble(aStart) * bg.growthRate(aStart);
-    const psi = fillComplex(grid, (_x, y, z) => {
-      const c1 = 0.3 * Math.cos(2 * Math.PI * y) * Math.cos(2 * Math.PI * z);
-      const c2 = 0.2 * Math.sin(4 * Math.PI * z + 1);
-      const phase = flow * (c1 / (8 * Math.PI * Math.PI) + c2 / (16 * Math.PI * Math.PI));
-      const amp = Math.sqrt(rhoBar * (1 + c1 + c2));
-      return [amp * Math.cos(phase), amp * Math.sin(phase)];
-    });
+    const psi = expandingTwoModeStart(grid, rhoBar, aStart, bg.hubble(aStart), bg.growthRate(aStart));
     const s = stepperFor(grid, bg, psi, bg.time(aStart));
     const scratch = new Float64Array(psi.length);
     const record = () => {
