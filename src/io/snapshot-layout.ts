@@ -8,6 +8,8 @@
  *                          step, time + time_units + time_origin, scale_factor, redshift (expanding),
  *                          background and cosmology, hubble + hubble_units, omega_matter, omega_radiation,
  *                          omega_lambda (expanding), particle_mass + particle_mass_units, gravity,
+ *                          scattering_length + scattering_length_units (the contact interaction's a_s [m],
+ *                          0 for none; files written before it lack it),
  *                          mass + mass_units, cells, box_size + box_size_units, unit_system,
  *                          the constants (constant_* and unit_*, each with *_units), equations,
  *                          comment, config (the resolved config, TOML), config_sha256
@@ -99,9 +101,10 @@ export const UNIT_SYSTEM =
   "densities in Msun/kpc^3, particle mass in eV (eV/c^2), time in time_units, energies derived with constant_hbar and constant_G";
 
 export const EQUATIONS =
-  "i hbar dpsi/dt = -hbar^2/(2 m a^2) laplacian(psi) + m Phi psi, laplacian(Phi) = (4 pi G / a)(|psi|^2 - mean |psi|^2) " +
-  "(periodic) or 4 pi G |psi|^2 (isolated, a = 1); x comoving, t cosmic time; K = hbar^2/(2 m^2 a^2) integral |grad psi|^2, " +
-  "W = 1/2 integral (rho - mean rho) Phi";
+  "i hbar dpsi/dt = -hbar^2/(2 m a^2) laplacian(psi) + m Phi psi + g/(m a^3) |psi|^2 psi, laplacian(Phi) = (4 pi G / a)(|psi|^2 - mean |psi|^2) " +
+  "(periodic) or 4 pi G |psi|^2 (isolated, a = 1), g = 4 pi hbar^2 a_s / m with a_s = scattering_length (0: no contact term); " +
+  "x comoving, t cosmic time; K = hbar^2/(2 m^2 a^2) integral |grad psi|^2, W = 1/2 integral (rho - mean rho) Phi, " +
+  "U = g/(2 m^2 a^3) integral |psi|^4";
 
 export const LAYOUT_COMMENT =
   "psi = psi_re + i psi_im sampled at the cell centres x_i = i dx of a periodic box of side cells*dx; " +

@@ -66,6 +66,8 @@ function readMeta(f: H5File, version: number, file: string): SnapshotMeta {
     boxSizeKpc: numbersOf(gridNode, "box_size", file),
     particleMassEv: numberOf(f, "particle_mass", file),
     gravity: stringOf(f, "gravity", file),
+    // files written before the first field's contact interaction was recorded lack it (the config text has it)
+    ...(hasAttr(f, "scattering_length") ? { scatteringLengthM: numberOf(f, "scattering_length", file) } : {}),
     background,
     massMsun: numberOf(f, "mass", file),
     config: stringOf(f, "config", file),

@@ -53,6 +53,8 @@ export interface SnapshotMeta {
   readonly massMsun: number;
   readonly config: string;
   readonly configSha256: string;
+  /** The first field's contact interaction: its scattering length a_s [m] (0: none); undefined when read from a file written before it was recorded. */
+  readonly scatteringLengthM?: number;
   /** Several species: each one's name, particle mass [eV], mass [Msun] and scattering length [m], the first one's field in `psi`. */
   readonly species?: readonly SpeciesMeta[];
 }
@@ -211,6 +213,10 @@ function writeGlobals(f: H5File, m: SnapshotMeta): void {
   numberAttr(f, "particle_mass", m.particleMassEv);
   textAttr(f, "particle_mass_units", "eV");
   textAttr(f, "gravity", m.gravity);
+  if (m.scatteringLengthM !== undefined) {
+    numberAttr(f, "scattering_length", m.scatteringLengthM);
+    textAttr(f, "scattering_length_units", "m");
+  }
   numberAttr(f, "mass", m.massMsun);
   textAttr(f, "mass_units", "Msun");
   intsAttr(f, "cells", m.cells);

@@ -23,7 +23,7 @@ export interface LoadedField {
   /** ψ in code units. */
   readonly psi: Float64Array;
   readonly scaleFactor: number;
-  /** The contact coefficient g in code units, from the run's config (0 without a contact interaction). */
+  /** The contact coefficient g in code units, from the file's scattering_length or, in older files, the run's config (0 without a contact interaction). */
   readonly contact: number;
 }
 
@@ -50,8 +50,9 @@ export function loadField(snap: Snapshot, takeOver = false): LoadedField {
   const f = Math.sqrt(densityUnit);
   const psi = takeOver ? snap.psi : new Float64Array(snap.psi.length);
   for (let i = 0; i < psi.length; i++) psi[i] = snap.psi[i]! * f;
-  const interaction = contactOfConfigText(m.config, units.particleMassKg);
-  const contact = interaction ? contactCode(interaction.scatteringLengthM, units) : 0;
+  // the file's own attribute; files written before it was recorded have the interaction in their config text only
+  const scatteringLengthM = m.scatteringLengthM ?? contactOfConfigText(m.config, units.particleMassKg)?.scatteringLengthM ?? 0;
+  const contact = scatteringLengthM !== 0 ? contactCode(scatteringLengthM, units) : 0;
   return { units, grid, background, gravity, psi, scaleFactor: m.scaleFactor, contact };
 }
 

@@ -85,6 +85,7 @@ export class RunWriter {
       massMsun: this.scales.massMsun(speciesMasses(stepper, run.species.length).reduce((a, b) => a + b, 0)),
       config: this.configText,
       configSha256: this.configHash,
+      scatteringLengthM: run.contact?.scatteringLengthM ?? 0,
       ...this.speciesMeta(stepper),
     };
   }

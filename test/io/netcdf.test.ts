@@ -61,7 +61,7 @@ function twoSpecies(snap: Snapshot): Snapshot {
     { name: "light", particleMassEv: 1e-22, massMsun: m, scatteringLengthM: 0 },
     { name: "heavy", particleMassEv: 4e-22, massMsun: m / 4, scatteringLengthM: -2.5e-79 },
   ];
-  return { ...snap, meta: { ...snap.meta, massMsun: 1.25 * m, species }, speciesPsi: [snap.psi.map((v) => v / 2)] };
+  return { ...snap, meta: { ...snap.meta, massMsun: 1.25 * m, species, scatteringLengthM: 0 }, speciesPsi: [snap.psi.map((v) => v / 2)] };
 }
 
 // The script reads the file with xarray alone and reports what it sees; the raw values go to a binary file.
@@ -85,6 +85,8 @@ def look(file, raw):
     "species": names, "species_of": [ds[v].attrs.get("species") for v in pairs], "species_mass": later,
     "scattering": [float(a) for a in np.atleast_1d(ds.attrs["species_scattering_length"])] if names else None,
     "scattering_units": ds.attrs.get("species_scattering_length_units"),
+    "own_scattering": [float(ds.attrs["scattering_length"]), ds.attrs["scattering_length_units"]] if "scattering_length" in ds.attrs else None,
+    "equations": ds.attrs["equations"],
     "dims": dims, "coords": coords, "mass": mass,
     "units": {v: ds[v].attrs.get("units") for v in dims + ["psi_re", "psi_im"]},
     "long_name": ds["psi_re"].attrs.get("long_name"),
@@ -141,6 +143,11 @@ describe.skipIf(python === undefined && noPython !== undefined)(`snapshots in xa
       expect(seen.scattering).toEqual(species ? [0, -2.5e-79] : null);
       expect(seen.scattering_units).toBe(species ? "m" : null);
       if (species) expect(readSnapshot(file).meta.species?.map((s) => s.scatteringLengthM)).toEqual([0, -2.5e-79]);
+      // the first field's own scattering length at the root (a run writes it, 0 for none; this test's single-species files predate it)
+      expect(seen.own_scattering).toEqual(species ? [0, "m"] : null);
+      expect(readSnapshot(file).meta.scatteringLengthM).toBe(species ? 0 : undefined);
+      // the equations name the contact term and its coefficient, so a reader needs nothing else
+      expect(seen.equations).toMatch(/g\/\(m a\^3\) \|psi\|\^2 psi.*g = 4 pi hbar\^2 a_s \/ m with a_s = scattering_length/);
       expect(seen.attrs).toEqual({
         Conventions: "CF-1.10",
         time_units: lcdm ? "Gyr" : "Myr",

@@ -198,6 +198,9 @@ describe("an expanding run with a contact interaction, from its config", () => {
     const uRun = Number(rows.at(-1)!["contact_Msun_km2_s2"]) * M_SUN_KG * 1e6;
     expect(Math.abs(uRun / uSI - 1)).toBeLessThan(1e-9);
     expect(Math.abs(fieldStats(loadField(a)).contactMsunKm2S2 * M_SUN_KG * 1e6 / uSI - 1)).toBeLessThan(1e-9);
+    // the snapshot carries a_s itself: without the config text a reader still gets the same U
+    expect(a.meta.scatteringLengthM).toBe(1e-79);
+    expect(Math.abs(fieldStats(loadField({ ...a, meta: { ...a.meta, config: "" } })).contactMsunKm2S2 * M_SUN_KG * 1e6 / uSI - 1)).toBeLessThan(1e-9);
   });
 
   it("gives a later species its own comoving contact term: the Layzer–Irvine residual holds with its U, and a relaxed species start is refused", async () => {
