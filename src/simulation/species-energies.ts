@@ -12,6 +12,7 @@ import type { SplitStepper } from "../integrators/split-step.js";
 import type { ResolvedRun } from "../config/resolve.js";
 import type { CodeUnits } from "../physics/units.js";
 import { contactCode } from "../physics/contact.js";
+import { contactEnergy } from "../diagnostics/energies.js";
 
 /** One species' mass, kinetic, potential and contact energy (code units). */
 export interface SpeciesEnergy {
@@ -60,8 +61,8 @@ export function maxSummedDensity(stepper: SplitStepper, count: number): number {
  */
 export function speciesEnergies(stepper: SplitStepper, ratios: readonly number[], a: number, contacts: readonly number[] = []): SpeciesEnergy[] {
   const dv = stepper.grid.cellVolume;
-  // U = (g/2)∫n² dV physical: ρ_phys = ρ/a³ and dV_phys = a³ dV (a = 1 in the static boxes a contact term runs in)
-  const u = (i: number, sum: () => number): number => (contacts[i] ? (0.5 * contacts[i] * sum() * dv) / a ** 3 : 0);
+  // U = (g/2)∫n² dV physical: ρ_phys = ρ/a³ and dV_phys = a³ dV, so U = (g/(2a³))Σρ² ΔV (diagnostics/energies.ts)
+  const u = (i: number, sum: () => number): number => (contacts[i] ? contactEnergy(stepper.grid, contacts[i], sum(), a) : 0);
   const moments = stepper.moments();
   const first: SpeciesEnergy = { mass: stepper.mass, kinetic: stepper.kineticTilde() / (a * a), potential: (0.5 / a) * moments.rhoPhi * dv, contact: u(0, () => moments.rho2) };
   const later = ratios.map((mu, k) => {
