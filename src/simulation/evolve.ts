@@ -114,7 +114,8 @@ function* evolveSteps(
   const mass0 = start?.mass0 ?? stepper.mass;
   const tEnd = limits.endTime;
   let steps = start?.steps ?? 0;
-  const tolerance = 1e-12 * Math.max(1, Math.abs(tEnd));
+  // round-off of the times themselves: relative to their size, so that a span far below one code time unit still runs
+  const tolerance = 1e-12 * Math.max(Math.abs(tEnd), Math.abs(stepper.time));
   const stops = [...(limits.stops ?? []), tEnd].filter((t) => t <= tEnd).sort((a, b) => a - b);
   const atStart = hooks.guard?.(stepper);
   if (atStart) return { status: "stopped", reason: `at the start (step ${steps}, t = ${fmt(stepper.time)}): ${atStart}`, steps };

@@ -36,6 +36,14 @@ describe("guard hook of the run loop", () => {
     expect(tripped.time).toBe(reference.time);
   });
 
+  it("runs a span far below one code time unit and lands on its end", () => {
+    // a span of 1e-14 code times (1e-10 of the fixed step): one step of exactly that length
+    const s = stepper();
+    const result = evolve(s, rules, { endTime: 1e-14, massTolerance: 1e-8, maxSteps: 100 });
+    expect(result.steps).toBe(1);
+    expect(s.time).toBe(1e-14);
+  });
+
   it("stops before the first step when the starting field fails the guard", () => {
     const s = stepper();
     const before = Float64Array.from(s.psi);
