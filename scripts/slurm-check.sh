@@ -19,10 +19,13 @@ fi
 WORK=$(mktemp -d /tmp/psibox-slurm-XXXXXX)
 PIDS=()
 cleanup() {
+  local rc=$?
   for p in "${PIDS[@]:-}"; do [ -n "$p" ] && kill "$p" 2>/dev/null || true; done
   [ -f "$WORK/slurmctld.pid" ] && kill "$(cat "$WORK/slurmctld.pid")" 2>/dev/null || true
   [ -f "$WORK/slurmd.pid" ] && kill "$(cat "$WORK/slurmd.pid")" 2>/dev/null || true
   [ -f "$WORK/munged.pid" ] && kill "$(cat "$WORK/munged.pid")" 2>/dev/null || true
+  # the daemons' logs stay for a failed check; a passed one leaves nothing behind
+  if [ "$rc" -eq 0 ]; then sleep 1; rm -rf "$WORK"; else echo "slurm check: its daemons' logs are in $WORK" >&2; fi
 }
 trap cleanup EXIT
 
