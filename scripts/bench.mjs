@@ -5,9 +5,9 @@
 // identical step, checks that both give the same field to 1e-10 and prints the time ratio.
 // It ends with the real run against the bare step (scripts/bench-run.mjs): 128³, and 256³ with --large; then
 // psibox analyze of a 128³ snapshot with and without pictures (scripts/bench-analyze.mjs) and the snapshot
-// write and read speed against h5py's read (scripts/bench-io.mjs).
+// write and read speed against h5py's read (scripts/bench-io.mjs), and the thread crossover (scripts/bench-threads.mjs).
 // Usage: node scripts/bench.mjs [--large] [--steps N] [--no-numpy] [--threads N] [--fft auto|wasm|js] [--tangents-only] [--real-run-only] [--long-only]
-//   [--analyze-only] [--io-only]
+//   [--analyze-only] [--io-only] [--crossover-only]
 // (threads default to the number of cores; the fft backend to auto, and the 3D grids are also run on the other backend)
 import { Grid } from "../dist/grid/grid.js";
 import { makePoissonSolver } from "../dist/fields/poisson.js";
@@ -23,6 +23,7 @@ import { readNpyComplex } from "../dist/io/npy.js";
 import { printRealRunRows } from "./bench-run.mjs";
 import { printAnalyzeRows } from "./bench-analyze.mjs";
 import { printIoRows } from "./bench-io.mjs";
+import { printCrossoverRows } from "./bench-threads.mjs";
 import { defaultThreads } from "../dist/config/resolve-output.js";
 
 const args = process.argv.slice(2);
@@ -196,6 +197,10 @@ if (args.includes("--io-only")) {
   await printIoRows(128);
   process.exit(0);
 }
+if (args.includes("--crossover-only")) {
+  printCrossoverRows();
+  process.exit(0);
+}
 if (args.includes("--tangents-only")) {
   benchTangents();
   process.exit(0);
@@ -232,3 +237,4 @@ if (useNumpy) {
 await printRealRunRows(realRunSizes, (n) => (threadsArg >= 0 ? threads : defaultThreads([n, n, n])));
 await printAnalyzeRows(128);
 await printIoRows(128);
+printCrossoverRows();
