@@ -6,8 +6,9 @@
 // It ends with the real run against the bare step (scripts/bench-run.mjs): 128³, and 256³ with --large; then
 // psibox analyze of a 128³ snapshot with and without pictures (scripts/bench-analyze.mjs) and the snapshot
 // write and read speed against h5py's read (scripts/bench-io.mjs), and the thread crossover (scripts/bench-threads.mjs).
+// When a python3 with pyFFTW is there, the 3D step against FFTW comes before the real run (scripts/bench-fftw.mjs; --fftw-only: just that).
 // Usage: node scripts/bench.mjs [--large] [--steps N] [--no-numpy] [--threads N] [--fft auto|wasm|js] [--tangents-only] [--real-run-only] [--long-only]
-//   [--analyze-only] [--io-only] [--crossover-only]
+//   [--analyze-only] [--io-only] [--crossover-only] [--fftw-only [--rounds N]]
 // (threads default to the number of cores; the fft backend to auto, and the 3D grids are also run on the other backend)
 import { Grid } from "../dist/grid/grid.js";
 import { makePoissonSolver } from "../dist/fields/poisson.js";
@@ -25,6 +26,8 @@ import { printAnalyzeRows } from "./bench-analyze.mjs";
 import { printIoRows } from "./bench-io.mjs";
 import { printCrossoverRows } from "./bench-threads.mjs";
 import { defaultThreads } from "../dist/config/resolve-output.js";
+import { benchField, writeNpy } from "./bench-field.mjs";
+import { printFftwRows } from "./bench-fftw.mjs";
 
 const args = process.argv.slice(2);
 const large = args.includes("--large");
@@ -41,16 +44,7 @@ const makeStepper = (grid, gravity, t, backend = fft, tangents = 0) => {
     : new SplitStepper(grid, new StaticBackground(), makePoissonSolver(grid, gravity), backend, 1, fields);
 };
 
-function field(grid) {
-  const psi = new Float64Array(2 * grid.size);
-  let s = 12345;
-  for (let i = 0; i < grid.size; i++) {
-    s = (s * 1103515245 + 12345) % 2147483648;
-    const d = 1 + 0.1 * (s / 2147483648 - 0.5);
-    psi[2 * i] = Math.sqrt(100 * d);
-  }
-  return psi;
-}
+const field = benchField;
 
 function bench(cells, gravity = "periodic", t = 1, backend = fft, tangents = 0) {
   const grid = new Grid(cells, cells.map(() => 1));
@@ -86,16 +80,6 @@ function bench(cells, gravity = "periodic", t = 1, backend = fft, tangents = 0) 
 
 const here = path.dirname(fileURLToPath(import.meta.url));
 const useNumpy = !args.includes("--no-numpy") && spawnSync("python3", ["-c", "import numpy"]).status === 0;
-
-function writeNpy(file, shape, data) {
-  let header = `{'descr': '<c16', 'fortran_order': False, 'shape': (${shape.join(", ")}${shape.length === 1 ? "," : ""}), }`;
-  header += " ".repeat((64 - ((10 + header.length + 1) % 64)) % 64) + "\n";
-  const head = Buffer.alloc(10);
-  head.write("\x93NUMPY", 0, "latin1");
-  head[6] = 1;
-  head.writeUInt16LE(header.length, 8);
-  fs.writeFileSync(file, Buffer.concat([head, Buffer.from(header, "latin1"), Buffer.from(data.buffer, data.byteOffset, data.byteLength)]));
-}
 
 /** psibox and NumPy on the same field: ms/step of each and the largest difference after `steps` steps. */
 function compareWithNumpy(shape, t = threads) {
@@ -185,6 +169,12 @@ if (args.includes("--real-run-only")) {
   await printRealRunRows(realRunSizes, (n) => (threadsArg >= 0 ? threads : defaultThreads([n, n, n])));
   process.exit(0);
 }
+const roundsArg = args.indexOf("--rounds");
+const fftwRows = () => printFftwRows(large ? [128, 256] : [128], threads, steps, roundsArg >= 0 ? Number(args[roundsArg + 1]) : 3);
+if (args.includes("--fftw-only")) {
+  await fftwRows();
+  process.exit(0);
+}
 if (args.includes("--long-only")) {
   printLongRows();
   process.exit(0);
@@ -234,6 +224,7 @@ if (useNumpy) {
 } else {
   console.log("(no python3 with NumPy here: the comparison with NumPy is skipped)");
 }
+await fftwRows();
 await printRealRunRows(realRunSizes, (n) => (threadsArg >= 0 ? threads : defaultThreads([n, n, n])));
 await printAnalyzeRows(128);
 await printIoRows(128);

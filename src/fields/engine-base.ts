@@ -5,6 +5,7 @@
  * subclasses' (fields/js-step-engine.ts, fields/wasm-step-engine.ts).
  */
 import type { Triple } from "../grid/grid.js";
+import { outerCount } from "./fft.js";
 import { densityRows, driftRows, gradientNormRows, kickRows, normRows, poissonRows } from "./step-kernels.js";
 import { combineRows, crossDensityRows, overlapRows, tangentSourceRows } from "./tangent-kernels.js";
 import { regionName, regionView, type StepSetup } from "./step-memory.js";
@@ -204,6 +205,28 @@ export abstract class EngineBase implements StepEngine {
 
   combine(field: ComplexGrid, scale: number, re: number, im: number, lo: number, hi: number): void {
     combineRows(this.view("psi"), this.view(field), scale, re, im, this.rowLength, lo, hi);
+  }
+
+  plane(field: ComplexGrid, inverse: boolean, kick: number, potential: RealGrid, density: boolean, contact: number, source: ComplexGrid, lo: number, hi: number): number {
+    const [n0, n1] = this.shape;
+    const blocks = outerCount(this.shape, 1) / n0;
+    let sum = 0;
+    for (let x = lo; x < hi; x++) {
+      if (!inverse) this.rows(field, false, kick, potential, false, contact, source, x * n1, (x + 1) * n1);
+      this.axis(field, 1, inverse, x * blocks, (x + 1) * blocks);
+      if (inverse) sum += this.rows(field, true, 0, potential, density, 0, source, x * n1, (x + 1) * n1);
+    }
+    return sum;
+  }
+
+  realPlane(real: RealGrid, inverse: boolean, lo: number, hi: number): void {
+    const [n0, n1] = this.shape;
+    const blocks = outerCount(this.half, 1) / n0;
+    for (let x = lo; x < hi; x++) {
+      if (!inverse) this.realRows("periodic", real, x * n1, (x + 1) * n1);
+      this.halfAxis("periodic", 1, inverse, x * blocks, (x + 1) * blocks);
+      if (inverse) this.realRowsInverse("periodic", real, x * n1, (x + 1) * n1);
+    }
   }
 
   abstract axis(field: ComplexGrid, axis: number, inverse: boolean, lo: number, hi: number): void;

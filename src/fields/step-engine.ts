@@ -50,6 +50,14 @@ export interface StepEngine {
    * potential ← |field|² afterwards (returns Σ|field|²).
    */
   rows(field: ComplexGrid, inverse: boolean, kick: number, potential: RealGrid, density: boolean, contact: number, source: ComplexGrid, lo: number, hi: number): number;
+  /**
+   * A 3D field's planes [lo, hi) along axis 0, each transformed along its last two axes while it is in cache:
+   * forward, the rows (with the folded kick, as `rows`) and then axis 1; inverse, axis 1 and then the rows (with
+   * the density, as `rows`; returns Σ|field|²).
+   */
+  plane(field: ComplexGrid, inverse: boolean, kick: number, potential: RealGrid, density: boolean, contact: number, source: ComplexGrid, lo: number, hi: number): number;
+  /** The periodic Poisson solve's planes [lo, hi) along axis 0: forward, real rows into the half spectrum and then its axis 1; inverse, the reverse. */
+  realPlane(real: RealGrid, inverse: boolean, lo: number, hi: number): void;
   /** Copy rows of one complex grid to another. */
   copy(from: ComplexGrid, to: ComplexGrid, lo: number, hi: number): void;
   /** Over rows: Σ|ψ|², Σ|ψ|⁴, Σ|ψ|²φ and max |ψ|² into out[0…3]. */

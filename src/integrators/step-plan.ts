@@ -8,7 +8,7 @@
 import { outerCount, PENCIL_BLOCK } from "../fields/fft.js";
 import type { ComplexGrid, RealGrid } from "../fields/step-engine.js";
 import type { StepGeometry, Transform } from "../fields/step-memory.js";
-import { transformOf, type StepTask } from "./step-task.js";
+import { transformsOf, type StepTask } from "./step-task.js";
 
 /** What a pass's summed result is, when the stepper keeps it. */
 export type PassResult = "kinetic" | "mass";
@@ -63,17 +63,17 @@ export class StepPlan {
     const shape = this.geometry.shape;
     const contact = o.contact ?? 0;
     const source = o.source ?? field;
-    const passes: PlannedPass[] = [{ task: { op: "rows", field, inverse: false, kick: o.kick, potential: o.potential, density: false, contact, source }, units: this.rows }];
-    const middle = (inverse: boolean): PlannedPass => ({ task: { op: "axis", field, axis: 1, inverse }, units: outerCount(shape, 1) });
-    if (this.middle) passes.push(middle(false));
+    // 3D: the last two axes plane by plane (each plane in cache for both); else the rows alone
+    const op = this.middle ? "plane" : "rows";
+    const units = this.middle ? shape[0] : this.rows;
+    const passes: PlannedPass[] = [{ task: { op, field, inverse: false, kick: o.kick, potential: o.potential, density: false, contact, source }, units }];
     if (this.outer >= 0) {
       passes.push({ task: { op: "drift-outer", field, phases, axis: this.outer, gradient: o.gradient }, units: outerCount(shape, this.outer), result: "kinetic" });
     } else {
       if (o.gradient) passes.push({ task: { op: "gradient", field }, units: this.rows, result: "kinetic" });
       passes.push({ task: { op: "drift", field, phases }, units: this.rows });
     }
-    if (this.middle) passes.push(middle(true));
-    passes.push({ task: { op: "rows", field, inverse: true, kick: 0, potential: o.potential, density: o.density, contact: 0, source }, units: this.rows, result: o.density ? "mass" : undefined });
+    passes.push({ task: { op, field, inverse: true, kick: 0, potential: o.potential, density: o.density, contact: 0, source }, units, result: o.density ? "mass" : undefined });
     return passes;
   }
 
@@ -121,14 +121,13 @@ export class StepPlan {
 
   private periodicPotential(real: RealGrid): PlannedPass[] {
     const half = this.geometry.half;
-    const halfAxis = (inverse: boolean): PlannedPass => ({ task: { op: "half-axis", target: "periodic", axis: 1, inverse }, units: outerCount(half, 1) });
-    const passes: PlannedPass[] = [{ task: { op: "real-rows", target: "periodic", real }, units: this.rows }];
-    if (this.middle) passes.push(halfAxis(false));
-    if (this.outer >= 0) passes.push({ task: { op: "poisson-outer", axis: this.outer }, units: outerCount(half, this.outer) });
-    else passes.push({ task: { op: "poisson" }, units: this.rows });
-    if (this.middle) passes.push(halfAxis(true));
-    passes.push({ task: { op: "real-rows-inverse", target: "periodic", real }, units: this.rows });
-    return passes;
+    const outer: PlannedPass = this.outer >= 0 ? { task: { op: "poisson-outer", axis: this.outer }, units: outerCount(half, this.outer) } : { task: { op: "poisson" }, units: this.rows };
+    if (this.middle) {
+      // 3D: the real rows and axis 1 plane by plane, as the drift's
+      const plane = (inverse: boolean): PlannedPass => ({ task: { op: "real-plane", real, inverse }, units: half[0] });
+      return [plane(false), outer, plane(true)];
+    }
+    return [{ task: { op: "real-rows", target: "periodic", real }, units: this.rows }, outer, { task: { op: "real-rows-inverse", target: "periodic", real }, units: this.rows }];
   }
 
   /**
@@ -183,6 +182,6 @@ export class StepPlan {
       ...this.potential("phi"),
       ...this.kinetic("psi", "undo"),
     ];
-    return all.map((p) => transformOf(p.task, this.geometry)).filter((t): t is Transform => t !== undefined);
+    return all.flatMap((p) => transformsOf(p.task, this.geometry));
   }
 }

@@ -24,8 +24,10 @@ export type StepTask =
   | { readonly op: "copy"; readonly from: ComplexGrid; readonly to: ComplexGrid }
   | { readonly op: "half-axis"; readonly target: PoissonTarget; readonly axis: number; readonly inverse: boolean }
   | { readonly op: "real-rows" | "real-rows-inverse"; readonly target: PoissonTarget; readonly real: RealGrid }
+  | { readonly op: "real-plane"; readonly real: RealGrid; readonly inverse: boolean }
   | {
-      readonly op: "rows";
+      /** "rows": rows along the last axis; "plane": 3D planes along axis 0, their rows and axis 1 (StepEngine.plane). */
+      readonly op: "rows" | "plane";
       readonly field: ComplexGrid;
       readonly inverse: boolean;
       readonly kick: number;
@@ -113,6 +115,11 @@ function runScalar(engine: StepEngine, t: Exclude<StepTask, { op: "moments" | "o
     case "half-axis":
       engine.halfAxis(t.target, t.axis, t.inverse, lo, hi);
       return 0;
+    case "plane":
+      return engine.plane(t.field, t.inverse, t.kick, t.potential, t.density, t.contact, t.source, lo, hi);
+    case "real-plane":
+      engine.realPlane(t.real, t.inverse, lo, hi);
+      return 0;
     case "drift-outer":
       return engine.driftOuter(t.field, t.phases, t.axis, lo, hi, t.gradient);
     case "poisson-outer":
@@ -178,7 +185,10 @@ function along(shape: readonly number[], axis: number, realRow = 0): Transform {
 export function transformOf(t: StepTask, g: StepGeometry): Transform | undefined {
   switch (t.op) {
     case "rows":
+    case "plane":
       return along(g.shape, 2);
+    case "real-plane":
+      return realRows(g.shape);
     case "axis":
     case "drift-outer":
       return along(g.shape, t.axis);
@@ -212,6 +222,14 @@ export function transformOf(t: StepTask, g: StepGeometry): Transform | undefined
     case "convolve":
       return undefined;
   }
+}
+
+/** Every transform a task runs: a plane pass's second one (axis 1 of the grid or of its half spectrum) with its first. */
+export function transformsOf(t: StepTask, g: StepGeometry): Transform[] {
+  const first = transformOf(t, g);
+  if (t.op === "plane") return [first!, along(g.shape, 1)];
+  if (t.op === "real-plane") return [first!, along(g.half, 1)];
+  return first ? [first] : [];
 }
 
 /** The transform of a long grid's pass: along its columns or rows, of the field's matrix or of the density's half-length one. */
