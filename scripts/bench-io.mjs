@@ -1,6 +1,7 @@
 #!/usr/bin/env node
 // Snapshot write and read speed for a 3D field (default 128³), from the built library, and the same file
-// read by h5py (psi_re and psi_im, as a Python user would) when a python3 with h5py is there.
+// read by h5py (psi_re and psi_im into NumPy, as a Python user would) when a python3 with h5py is there:
+// wall and CPU time of each read, and psibox's over h5py's.
 // Usage: node scripts/bench-io.mjs [cells-per-axis]   (also the last part of npm run bench)
 import { spawnSync } from "node:child_process";
 import { pathToFileURL } from "node:url";
@@ -10,24 +11,48 @@ import path from "node:path";
 import { loadHdf5 } from "../dist/io/h5.js";
 import { readSnapshot, writeSnapshot } from "../dist/io/snapshot.js";
 
-/** Median ms of h5py reading psi_re and psi_im of `file` (3 reads, page cache warm as for psibox), or undefined without h5py. */
-function h5pyReadMs(file) {
-  const script = [
-    "import sys, time, h5py",
-    "ts = []",
-    "for _ in range(3):",
-    "    t0 = time.perf_counter()",
-    "    with h5py.File(sys.argv[1], 'r') as f:",
-    "        re = f['psi_re'][...]; im = f['psi_im'][...]",
-    "    ts.append((time.perf_counter() - t0) * 1000)",
-    "print(sorted(ts)[1])",
-  ].join("\n");
-  for (const python of ["python3", "/usr/bin/python3"]) {
-    const r = spawnSync(python, ["-c", script, file], { encoding: "utf8" });
-    if (r.status === 0) return Number(r.stdout.trim());
+/** A python3 that has h5py: each python3 on PATH in order, then the system's own (a PATH may hold several installs). */
+function pythonWithH5py() {
+  const candidates = [...(process.env.PATH ?? "").split(path.delimiter).filter(Boolean).map((d) => path.join(d, "python3")), "/usr/bin/python3"];
+  for (const exe of new Set(candidates)) {
+    if (fs.existsSync(exe) && spawnSync(exe, ["-c", "import h5py"], { encoding: "utf8" }).status === 0) return exe;
   }
   return undefined;
 }
+
+/**
+ * h5py reading psi_re and psi_im of `file` into NumPy arrays (the components as stored: float64 or float32), three
+ * times in one process with the page cache warm as for psibox, into new arrays (f[name][...]) and into the same two
+ * arrays again (read_direct): the median wall and CPU ms of each (the file's opening included).
+ */
+function h5pyRead(python, file) {
+  const script = [
+    "import sys, time, json, h5py, numpy as np",
+    "def timed(read):",
+    "    ts = []",
+    "    for _ in range(3):",
+    "        t0, c0 = time.perf_counter(), time.process_time()",
+    "        with h5py.File(sys.argv[1], 'r') as f: read(f)",
+    "        ts.append(((time.perf_counter() - t0) * 1000, (time.process_time() - c0) * 1000))",
+    "    return {'wall': sorted(t[0] for t in ts)[1], 'cpu': sorted(t[1] for t in ts)[1]}",
+    "fresh = timed(lambda f: (f['psi_re'][...], f['psi_im'][...]))",
+    "with h5py.File(sys.argv[1], 'r') as f: re, im = f['psi_re'][...], f['psi_im'][...]",
+    "reused = timed(lambda f: (f['psi_re'].read_direct(re), f['psi_im'].read_direct(im)))",
+    "print(json.dumps({'fresh': fresh, 'reused': reused}))",
+  ].join("\n");
+  const r = spawnSync(python, ["-c", script, file], { encoding: "utf8" });
+  return r.status === 0 ? JSON.parse(r.stdout.trim()) : undefined;
+}
+
+/** Wall and CPU ms (all of this process's threads) of `f`. */
+function timed(f) {
+  const c0 = process.cpuUsage();
+  const t0 = performance.now();
+  f();
+  const c = process.cpuUsage(c0);
+  return { wall: performance.now() - t0, cpu: (c.user + c.system) / 1000 };
+}
+
 /** Write and read an n³ snapshot in float64 and float32, three times each, with h5py's read of the same file beside it when it is there. */
 export async function printIoRows(n = 128) {
   await loadHdf5();
@@ -39,24 +64,37 @@ export async function printIoRows(n = 128) {
     massMsun: 1, config: "", configSha256: "",
   };
   const mb = psi.byteLength / 1e6;
-  console.log(`\nsnapshot files of ${n}³ (medians of 3; h5py reads psi_re and psi_im of the same file, as a Python user would):`);
+  const python = pythonWithH5py();
+  const load = os.loadavg().map((l) => l.toFixed(1)).join(", ");
+  console.log(`\nsnapshot files of ${n}³ (medians of 3; load average ${load}). psibox's read ends with ψ as psibox uses it (one interleaved float64 array, float32 widened),`);
+  console.log(`h5py's (${python ?? "no python3 with h5py here: no comparison"}) with psi_re and psi_im as two NumPy arrays as stored; into new memory, and into the arrays of an earlier read`);
+  console.log("(psibox: readSnapshot's `into`; h5py: read_direct). CPU: all threads of the process.");
+  const med = (a) => a.slice().sort((x, y) => x - y)[1];
+  const row = (what, ours, theirs) => {
+    const them = theirs === undefined ? "" : `; h5py ${theirs.wall.toFixed(0)} ms, CPU ${theirs.cpu.toFixed(0)} ms: psibox takes ${(med(ours.wall) / theirs.wall).toFixed(2)}× h5py's time (CPU ${(med(ours.cpu) / theirs.cpu).toFixed(2)}×)`;
+    return `  read ${what}: ${med(ours.wall).toFixed(0)} ms (${(mb / (med(ours.wall) / 1000)).toFixed(0)} MB/s of field), CPU ${med(ours.cpu).toFixed(0)} ms${them}`;
+  };
   try {
     for (const precision of ["float64", "float32"]) {
       const file = path.join(dir, `s-${precision}.h5`);
-      const times = { write: [], read: [] };
+      const write = [];
+      const fresh = { wall: [], cpu: [] };
+      const reused = { wall: [], cpu: [] };
+      let into;
       for (let r = 0; r < 3; r++) {
-        let t0 = performance.now();
-        writeSnapshot(file, { meta, psi }, precision);
-        times.write.push(performance.now() - t0);
-        t0 = performance.now();
-        readSnapshot(file);
-        times.read.push(performance.now() - t0);
+        write.push(timed(() => writeSnapshot(file, { meta, psi }, precision)).wall);
+        const read = timed(() => (into = readSnapshot(file).psi));
+        fresh.wall.push(read.wall);
+        fresh.cpu.push(read.cpu);
+        const again = timed(() => readSnapshot(file, false, into));
+        reused.wall.push(again.wall);
+        reused.cpu.push(again.cpu);
       }
-      const med = (a) => a.sort((x, y) => x - y)[1];
       const size = fs.statSync(file).size / 1e6;
-      const h5py = h5pyReadMs(file);
-      const ratio = h5py === undefined ? " (no python3 with h5py here: no comparison)" : `; h5py reads it at ${(mb / (h5py / 1000)).toFixed(0)} MB/s (psibox's read takes ${(med(times.read) / h5py).toFixed(2)}× h5py's time)`;
-      console.log(`${n}³ ${precision}: ${size.toFixed(0)} MB file; write ${(mb / (med(times.write) / 1000)).toFixed(0)} MB/s of field (with fsync), read ${(mb / (med(times.read) / 1000)).toFixed(0)} MB/s${ratio}`);
+      const h5py = python === undefined ? undefined : h5pyRead(python, file);
+      console.log(`${n}³ ${precision}: ${size.toFixed(0)} MB file; write ${(mb / (med(write) / 1000)).toFixed(0)} MB/s of field (with fsync)`);
+      console.log(row("into new memory", fresh, h5py?.fresh));
+      console.log(row("into reused memory", reused, h5py?.reused));
     }
   } finally {
     fs.rmSync(dir, { recursive: true, force: true });

@@ -6,9 +6,11 @@
  * `slabBytes()`, and the datasets psibox writes are chunked by the same rows,
  * so each call touches whole chunks.
  */
+import fs from "node:fs";
 import { InputError } from "../core/errors.js";
 import { fileName } from "../core/sanitize.js";
 import { h5Module, type Dataset, type Group, type H5File } from "./h5.js";
+import { placeRows, type Piece } from "./h5-layout.js";
 
 /** Bytes of one slab (and chunk) unless set otherwise: 2 MiB, a few rows of a large grid. */
 export const DEFAULT_SLAB_BYTES = 2 << 20;
@@ -74,35 +76,106 @@ export function writeVector(node: H5File | Group, name: string, values: Float64A
   return ds;
 }
 
-/**
- * Read a float dataset slab by slab: `take(r0, r1, slab)` receives rows [r0, r1)
- * (float64 or float32 as stored). Anything else is an InputError naming the file.
- * HDF5 reads every slab into one buffer of its heap, and `slab` is a view of
- * that buffer (no copy): it is valid only inside `take`, which must not call
- * h5wasm (its heap may move).
- */
-export function readSlabs(ds: Dataset, file: string, take: (r0: number, r1: number, slab: Float64Array | Float32Array) => void): void {
-  const shape = ds.shape ?? [];
-  const type = ds.metadata;
-  if (type.type !== 1 || (type.size !== 8 && type.size !== 4)) throw new InputError(`${fileName(file)}: dataset ${ds.path} is not floating point`);
-  if (shape.length === 0) throw new InputError(`${fileName(file)}: dataset ${ds.path} is a scalar, not an array`);
-  const step = slabRows(shape, type.size);
+/** Rows [r0, r1) of rows of `rowBytes` from the file's `pieces` into `into`. */
+function readRows(fd: number, pieces: readonly Piece[], r0: number, r1: number, rowBytes: number, into: Uint8Array): void {
+  for (const p of pieces) {
+    const from = Math.max(r0, p.row);
+    const to = Math.min(r1, p.row + p.rows);
+    for (let done = 0, bytes = (to - from) * rowBytes; done < bytes; ) {
+      const n = fs.readSync(fd, into, (from - r0) * rowBytes + done, bytes - done, p.at + (from - p.row) * rowBytes + done);
+      if (n === 0) throw new RangeError("the file ends inside a dataset");
+      done += n;
+    }
+  }
+}
+
+/** Buffers for slabs read straight from files, kept for the next read (fresh memory costs a page fault per 4 KiB). */
+const scratch: ArrayBuffer[] = [];
+function scratchBuffer(i: number, bytes: number): ArrayBuffer {
+  if ((scratch[i]?.byteLength ?? -1) < bytes) scratch[i] = new ArrayBuffer(bytes);
+  return scratch[i]!;
+}
+
+type Take = (r0: number, r1: number, slabs: (Float64Array | Float32Array)[]) => void;
+
+/** The datasets' slabs read straight from the file (see h5-layout.ts); false, having read nothing, where a layout is not simple. */
+function readDirect(datasets: readonly Dataset[], file: string, shape: readonly number[], size: number, take: Take): boolean {
+  const fd = fs.openSync(file, "r");
+  try {
+    const placed = datasets.map((ds) => (ds.metadata.littleEndian ? placeRows(fd, objectAddress(ds), shape, size) : undefined));
+    if (placed.some((p) => p === undefined)) return false;
+    const step = slabRows(shape, size);
+    const rowValues = shape.slice(1).reduce((p, n) => p * n, 1);
+    const buffers = datasets.map((_, i) => scratchBuffer(i, step * rowValues * size));
+    for (let r0 = 0; r0 < shape[0]!; r0 += step) {
+      const r1 = Math.min(shape[0]!, r0 + step);
+      const values = (r1 - r0) * rowValues;
+      try {
+        placed.forEach((pieces, i) => readRows(fd, pieces!, r0, r1, rowValues * size, new Uint8Array(buffers[i]!, 0, values * size)));
+      } catch (e) {
+        throw new InputError(`${fileName(file)}: cannot read ${datasets.map((d) => d.path).join(", ")} (${(e as Error).message})`);
+      }
+      take(r0, r1, buffers.map((b) => (size === 8 ? new Float64Array(b, 0, values) : new Float32Array(b, 0, values))));
+    }
+    return true;
+  } finally {
+    fs.closeSync(fd);
+  }
+}
+
+/** The file address of a dataset's object header: its HDF5 object reference. */
+function objectAddress(ds: Dataset): number {
+  const ref = Buffer.from(Array.from(ds.create_reference().ref_data as ArrayLike<number>));
+  return ref.length === 8 ? Number(ref.readBigUInt64LE(0)) : -1;
+}
+
+/** The datasets' slabs read through h5wasm, each into a buffer of its heap. */
+function readHeap(datasets: readonly Dataset[], file: string, shape: readonly number[], size: number, take: Take): void {
+  const step = slabRows(shape, size);
   const rowValues = shape.slice(1).reduce((p, n) => p * n, 1);
   const heap = h5Module();
-  const at = heap._malloc(step * rowValues * type.size);
-  if (at === 0) throw new InputError(`${fileName(file)}: no memory in the HDF5 heap for a slab of ${ds.path}`);
+  const at: number[] = [];
   try {
+    for (const ds of datasets) {
+      at.push(heap._malloc(step * rowValues * size));
+      if (at.at(-1) === 0) throw new InputError(`${fileName(file)}: no memory in the HDF5 heap for a slab of ${ds.path}`);
+    }
     const rest = shape.slice(1).map(BigInt);
     const strides = shape.map(() => 1n);
-    for (let r0 = 0; r0 < (shape[0] as number); r0 += step) {
-      const r1 = Math.min(shape[0] as number, r0 + step);
+    for (let r0 = 0; r0 < shape[0]!; r0 += step) {
+      const r1 = Math.min(shape[0]!, r0 + step);
       const values = (r1 - r0) * rowValues;
-      heap.get_dataset_data(ds.file_id, ds.path, [BigInt(r1 - r0), ...rest], [BigInt(r0), ...rest.map(() => 0n)], strides, BigInt(at));
-      take(r0, r1, type.size === 8 ? new Float64Array(heap.HEAPU8.buffer, at, values) : new Float32Array(heap.HEAPU8.buffer, at, values));
+      datasets.forEach((ds, i) => heap.get_dataset_data(ds.file_id, ds.path, [BigInt(r1 - r0), ...rest], [BigInt(r0), ...rest.map(() => 0n)], strides, BigInt(at[i]!)));
+      take(r0, r1, at.map((a) => (size === 8 ? new Float64Array(heap.HEAPU8.buffer, a, values) : new Float32Array(heap.HEAPU8.buffer, a, values))));
     }
   } finally {
-    heap._free(at);
+    for (const a of at) if (a !== 0) heap._free(a);
   }
+}
+
+/**
+ * Read float datasets of one shape and type together, slab by slab: `take(r0,
+ * r1, slabs)` receives rows [r0, r1) of each (float64 or float32 as stored).
+ * Anything else is an InputError naming the file. Contiguous and unfiltered
+ * datasets chunked by rows are read straight from the file into buffers kept
+ * for the next read; others through h5wasm into buffers of its heap. Either
+ * way the slabs are valid only inside `take`, which must not call h5wasm.
+ */
+export function readSlabsTogether(datasets: readonly Dataset[], file: string, take: Take): void {
+  const shape = datasets[0]?.shape ?? [];
+  const type = datasets[0]!.metadata;
+  for (const ds of datasets) {
+    const t = ds.metadata;
+    if (t.type !== 1 || (t.size !== 8 && t.size !== 4)) throw new InputError(`${fileName(file)}: dataset ${ds.path} is not floating point`);
+    if (t.size !== type.size || (ds.shape ?? []).join() !== shape.join()) throw new InputError(`${fileName(file)}: datasets ${datasets.map((d) => d.path).join(", ")} differ in shape or type`);
+    if (shape.length === 0) throw new InputError(`${fileName(file)}: dataset ${ds.path} is a scalar, not an array`);
+  }
+  if (!readDirect(datasets, file, shape, type.size, take)) readHeap(datasets, file, shape, type.size, take);
+}
+
+/** Read one float dataset slab by slab: `take(r0, r1, slab)` receives rows [r0, r1) (float64 or float32 as stored); see readSlabsTogether. */
+export function readSlabs(ds: Dataset, file: string, take: (r0: number, r1: number, slab: Float64Array | Float32Array) => void): void {
+  readSlabsTogether([ds], file, (r0, r1, [slab]) => take(r0, r1, slab!));
 }
 
 /** A whole float dataset as float64, read slab by slab. */
