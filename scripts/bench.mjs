@@ -8,7 +8,7 @@
 // write and read speed against h5py's read (scripts/bench-io.mjs), and the thread crossover (scripts/bench-threads.mjs).
 // When a python3 with pyFFTW is there, the 3D step against FFTW comes before the real run (scripts/bench-fftw.mjs; --fftw-only: just that).
 // Usage: node scripts/bench.mjs [--large] [--steps N] [--no-numpy] [--threads N] [--fft auto|wasm|js] [--tangents-only] [--real-run-only] [--long-only]
-//   [--analyze-only] [--io-only] [--crossover-only] [--fftw-only [--rounds N]]
+//   [--analyze-only] [--io-only] [--crossover-only] [--fftw-only [--rounds N]] [--huge]
 // (threads default to the number of cores; the fft backend to auto, and the 3D grids are also run on the other backend)
 import { Grid } from "../dist/grid/grid.js";
 import { makePoissonSolver } from "../dist/fields/poisson.js";
@@ -25,6 +25,7 @@ import { printRealRunRows } from "./bench-run.mjs";
 import { printAnalyzeRows } from "./bench-analyze.mjs";
 import { printIoRows } from "./bench-io.mjs";
 import { printCrossoverRows } from "./bench-threads.mjs";
+import { printHugeRows } from "./bench-huge.mjs";
 import { defaultThreads } from "../dist/config/resolve-output.js";
 import { benchField, writeNpy } from "./bench-field.mjs";
 import { printFftwRows } from "./bench-fftw.mjs";
@@ -189,6 +190,11 @@ if (args.includes("--io-only")) {
 }
 if (args.includes("--crossover-only")) {
   printCrossoverRows();
+  process.exit(0);
+}
+if (args.includes("--huge")) {
+  // 512³ on several WebAssembly memories beside 256³ (scripts/bench-huge.mjs; about 7 GiB of memory)
+  printHugeRows([256, 512], threads, steps);
   process.exit(0);
 }
 if (args.includes("--tangents-only")) {

@@ -10,6 +10,7 @@ import {
   regionInts,
   regionName,
   regionView,
+  rowCells,
   scratchBytes,
   stepRegions,
   WASM_MAX_BYTES,
@@ -23,6 +24,7 @@ import {
   type Transform,
 } from "./step-memory.js";
 import { fillBitReversal, fillTwiddles, instantiateKernels, kernelModule } from "./wasm-kernels.js";
+import { bankedLayout, needsBanks, type BankLayout } from "./wasm-banks.js";
 
 /** What the tables are filled from. */
 export interface TableInputs {
@@ -74,7 +76,7 @@ export function allocateRegions(backend: FftBackend, g: StepGeometry, table: rea
   } else {
     if (!kernelModule()) throw new Error("the wasm FFT backend is not available");
     const { offsets, total } = wasmLayout(specs);
-    if (total > WASM_MAX_BYTES) throw new RangeError(`the wasm FFT backend needs ${total} bytes, more than a 4 GiB WebAssembly memory`);
+    if (needsBanks(total)) return allocateBanks(g, specs, transforms, tables);
     const pages = Math.ceil(total / WASM_PAGE);
     memory = new WebAssembly.Memory({ initial: pages, maximum: pages, shared: true });
     specs.forEach((s, i) => (regions[s.name] = { offset: offsets[i]!, type: s.type, length: s.length }));
@@ -83,6 +85,32 @@ export function allocateRegions(backend: FftBackend, g: StepGeometry, table: rea
   fillTables(setup, tables);
   if (backend === "wasm") fillKernelTables(setup, transforms);
   return setup;
+}
+
+/** The wasm backend on banks (fields/wasm-banks.ts): the tables filled in the first bank and copied to the others. */
+function allocateBanks(g: StepGeometry, specs: readonly RegionSpec[], transforms: readonly Transform[], tables: TableInputs): StepSetup {
+  const slots = specs.filter((s) => s.name.startsWith("scratch.")).length;
+  const layout = bankedLayout(specs, slots, rowCells(g));
+  if (!layout) throw new RangeError(`the wasm FFT backend cannot place a grid of ${g.shape.join("×")} in a 4 GiB WebAssembly memory`);
+  const banks = layout.sizes.map((bytes) => {
+    if (bytes > WASM_MAX_BYTES) throw new RangeError(`a wasm memory of ${bytes} bytes is more than 4 GiB`);
+    const pages = Math.ceil(bytes / WASM_PAGE);
+    return new WebAssembly.Memory({ initial: pages, maximum: pages, shared: true });
+  });
+  const regions: Record<string, Region> = {};
+  layout.specs.forEach((s, i) => (regions[s.name] = { offset: layout.offsets[i]!, type: s.type, length: s.length, bank: layout.banks[i] }));
+  const setup: StepSetup = { backend: "wasm", geometry: g, regions, memory: banks[0], banks, scratchBytes: scratchBytes(transforms) };
+  fillTables(setup, tables);
+  fillKernelTables(setup, transforms);
+  copySharedBlock(layout, banks);
+  return setup;
+}
+
+/** Copy the block every bank shares (the kernels' constants, tables, scratch) from the first bank to the others. */
+function copySharedBlock(layout: BankLayout, banks: readonly WebAssembly.Memory[]): void {
+  const end = Math.max(...layout.specs.map((s, i) => (layout.banks[i] === undefined ? layout.offsets[i]! + ELEMENT_BYTES[s.type] * s.length : 0)));
+  const first = new Uint8Array(banks[0]!.buffer, 0, end);
+  for (const bank of banks.slice(1)) new Uint8Array(bank.buffer, 0, end).set(first);
 }
 
 function fillTables(setup: StepSetup, tables: TableInputs): void {

@@ -16,6 +16,7 @@ import { outerCount } from "./fft.js";
 import type { StepSetup } from "./step-memory.js";
 import { JsStepEngine } from "./js-step-engine.js";
 import { WasmStepEngine } from "./wasm-step-engine.js";
+import { BankedStepEngine } from "./banked-step-engine.js";
 
 /**
  * A complex grid of the step, by region name: the reference field ψ and its
@@ -114,7 +115,8 @@ export interface StepEngine {
 
 /** The engine for a layout on this thread (`slot` picks the wasm scratch block). */
 export function createEngine(setup: StepSetup, slot: number): StepEngine {
-  return setup.backend === "wasm" ? new WasmStepEngine(setup, slot) : new JsStepEngine(setup);
+  if (setup.backend === "js") return new JsStepEngine(setup);
+  return setup.banks ? new BankedStepEngine(setup, slot) : new WasmStepEngine(setup, slot);
 }
 
 export { JsStepEngine, WasmStepEngine };

@@ -136,6 +136,8 @@ export interface Region {
   readonly length: number;
   /** The region's own buffer (js backend); absent when it lives in the wasm memory. */
   readonly buffer?: SharedArrayBuffer;
+  /** Which of the banked wasm memories holds it (fields/wasm-banks.ts); absent: the one memory, or every bank (tables). */
+  readonly bank?: number;
 }
 
 /** Names of the per-axis tables and kernel tables. */
@@ -262,8 +264,10 @@ export interface StepSetup {
   readonly backend: FftBackend;
   readonly geometry: StepGeometry;
   readonly regions: Readonly<Record<string, Region>>;
-  /** The one memory of the wasm backend. */
+  /** The one memory of the wasm backend (with banks: the first bank). */
   readonly memory?: WebAssembly.Memory;
+  /** Grids too large for one memory: the wasm memories they are spread over (fields/wasm-banks.ts). */
+  readonly banks?: readonly WebAssembly.Memory[];
   /** Bytes of one of a thread's two scratch blocks (wasm). */
   readonly scratchBytes: number;
 }
@@ -279,7 +283,7 @@ export function region(setup: StepSetup, name: string): Region {
 export function regionView(setup: StepSetup, name: string): Float64Array {
   const r = region(setup, name);
   if (r.type === "i32") throw new Error(`region "${name}" holds int32`);
-  const buffer = r.buffer ?? setup.memory?.buffer;
+  const buffer = regionBuffer(setup, r);
   if (!buffer) throw new Error(`region "${name}" has no buffer`);
   return new Float64Array(buffer, r.offset, (ELEMENT_BYTES[r.type] / 8) * r.length);
 }
@@ -287,5 +291,22 @@ export function regionView(setup: StepSetup, name: string): Float64Array {
 /** An Int32Array over an int32 region. */
 export function regionInts(setup: StepSetup, name: string): Int32Array {
   const r = region(setup, name);
-  return new Int32Array(r.buffer ?? setup.memory!.buffer, r.offset, r.length);
+  return new Int32Array(regionBuffer(setup, r)!, r.offset, r.length);
+}
+
+/** The buffer a region lives in: its own, its bank's, or the one wasm memory's. */
+function regionBuffer(setup: StepSetup, r: Region): ArrayBufferLike | undefined {
+  if (r.buffer) return r.buffer;
+  if (r.bank !== undefined) return setup.banks![r.bank]!.buffer;
+  return setup.memory?.buffer;
+}
+
+/** Cells of a row of the step's elementwise passes (the last axis, or a long grid's rows). */
+export function rowCells(g: StepGeometry): number {
+  return g.long ? g.long.n2 : g.shape[2];
+}
+
+/** Whether a region is a grid (a field, a potential, a spectrum, the isolated solve's arrays) rather than a table or scratch. */
+export function isGridRegion(name: string): boolean {
+  return ["psi", "phi", "undo", "spectrum", "aux"].includes(name) || /^(iso|field|undo)\./.test(name);
 }

@@ -11,7 +11,8 @@
 import os from "node:os";
 import { ConfigError } from "../core/errors.js";
 import { Grid, type Triple } from "../grid/grid.js";
-import { ELEMENT_BYTES, defaultPadding, stepGeometry, stepRegions, wasmLayout, type GravityKind } from "../fields/step-memory.js";
+import { ELEMENT_BYTES, defaultPadding, isGridRegion, stepGeometry, stepRegions, type GravityKind } from "../fields/step-memory.js";
+import { wasmStepBytes } from "../fields/wasm-banks.js";
 import { StepPlan } from "../integrators/step-plan.js";
 import { resolveFftBackend, type FftChoice } from "../integrators/fft-backend.js";
 import { ExtraFields, type FieldKind } from "../integrators/extra-fields.js";
@@ -75,10 +76,10 @@ export function estimateMemory(inputs: MemoryInputs): MemoryEstimate {
   const transforms = plan.transforms();
   const backend = resolveFftBackend(inputs.fft, plan, inputs.threads);
   const specs = stepRegions(geometry, transforms, inputs.threads).filter((s) => backend === "wasm" || !s.wasmOnly);
-  const isGrid = (name: string) => ["psi", "phi", "undo", "spectrum", "aux"].includes(name) || /^(iso|field|undo)\./.test(name);
   const bytes = (s: (typeof specs)[number]) => ELEMENT_BYTES[s.type] * s.length;
-  const fields = specs.filter((s) => isGrid(s.name)).reduce((t, s) => t + bytes(s), 0);
-  const stepTotal = backend === "wasm" ? wasmLayout(specs).total : specs.reduce((t, s) => t + bytes(s), 0);
+  const fields = specs.filter((s) => isGridRegion(s.name)).reduce((t, s) => t + bytes(s), 0);
+  // the wasm backend: one memory, or banks (each with its own tables and windows, fields/wasm-banks.ts)
+  const stepTotal = backend === "wasm" ? wasmStepBytes(geometry, transforms, inputs.threads)! : specs.reduce((t, s) => t + bytes(s), 0);
   const padded = geometry.paddedHalf ? geometry.paddedHalf[0] * geometry.paddedHalf[1] * geometry.paddedHalf[2] : 0;
   const scratch = stepTotal - fields + 8 * padded;
   const threads = inputs.threads > 1 ? inputs.threads * THREAD_BYTES : 0;
