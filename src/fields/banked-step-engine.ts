@@ -18,6 +18,14 @@ import type { ComplexGrid, LongRowsMode, PoissonTarget, RealGrid } from "./step-
 import { WasmStepEngine } from "./wasm-step-engine.js";
 import { windowName } from "./wasm-banks.js";
 
+/**
+ * Rows the rows passes hand the kernel at a time: fewer than its block of 16 keep the block in the faster
+ * caches (each row is transformed the same way however many go together). Measured on a loaded 2-core
+ * machine, rows of 512 points, CPU time per cell: 15.3 ns (16 rows), 13.4 (8), 9.2 (4) for the kicked
+ * forward pass, 9.6, 7.9 and 5.4 for the inverse with the density.
+ */
+const ROW_CHUNK = 4;
+
 /** A grid a pass reaches besides the one it runs on: read before, written after. */
 interface Operand {
   readonly name: string;
@@ -146,7 +154,11 @@ export class BankedStepEngine extends EngineBase {
     if (kick !== 0 || density) ops.push(this.real(potential, kick !== 0, density));
     if (kick !== 0 && contact !== 0 && source !== field) ops.push({ name: source, read: true, write: false, rowBytes: 16 * this.row });
     const e = this.on(field);
-    return this.windowed(this.bank(field), ops, lo, hi, (a, b) => e.rows(field, inverse, kick, potential, density, contact, source, a, b));
+    return this.windowed(this.bank(field), ops, lo, hi, (a, b) => {
+      let sum = 0;
+      for (let r = a; r < b; r += ROW_CHUNK) sum += e.rows(field, inverse, kick, potential, density, contact, source, r, Math.min(b, r + ROW_CHUNK));
+      return sum;
+    });
   }
 
   driftOuter(field: ComplexGrid, phases: number, axis: number, lo: number, hi: number, gradient: boolean): number {
