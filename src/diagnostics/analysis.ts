@@ -23,21 +23,27 @@ export interface PowerBin {
   readonly modes: number;
 }
 
+/** ρ̄ = Σ|ψ|²/N over the cells (code density). */
+export function meanDensity(psi: Float64Array): number {
+  let mean = 0;
+  for (let p = 0; p < psi.length; p += 2) mean += psi[p]! ** 2 + psi[p + 1]! ** 2;
+  return mean / (psi.length / 2);
+}
+
 /**
  * P(k) of δ = ρ/ρ̄ − 1 in shells of width k_F (the fundamental of the
  * longest side) out to the grid's corner: P = V ⟨|δ_k|²⟩/N², with the mode
  * count of each shell. By Parseval, Σ_bins P·modes/V is the variance of δ.
- * Uses work grid 0 of `fft`.
+ * Uses work grid `slot` of `fft` (0 unless told), which keeps δ_k afterwards
+ * (for the potential energy and the granules' correlation function).
  */
-export function densityPowerSpectrum(grid: Grid, psi: Float64Array, fft: FieldTransforms = new SimpleTransforms(grid.shape)): PowerBin[] {
+export function densityPowerSpectrum(grid: Grid, psi: Float64Array, fft: FieldTransforms = new SimpleTransforms(grid.shape), slot = 0): PowerBin[] {
   const n = grid.size;
-  const data = fft.work(0);
-  let mean = 0;
-  for (let i = 0; i < n; i++) mean += psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2;
-  mean /= n;
-  for (let i = 0; i < n; i++) {
-    data[2 * i] = (psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2) / mean - 1;
-    data[2 * i + 1] = 0;
+  const data = fft.work(slot);
+  const mean = meanDensity(psi);
+  for (let p = 0; p < psi.length; p += 2) {
+    data[p] = (psi[p]! ** 2 + psi[p + 1]! ** 2) / mean - 1;
+    data[p + 1] = 0;
   }
   fft.forward(data);
   const shells = new Shells(grid, 1);
@@ -66,25 +72,26 @@ export function densityVariance(psi: Float64Array): number {
 /** Histogram of log₁₀(ρ/ρ̄): bin centres and the fraction of cells (volume) in each. */
 export function densityPdf(psi: Float64Array, bins = 40): { log10Contrast: number; volumeFraction: number; massFraction: number }[] {
   const n = psi.length / 2;
-  let mean = 0;
-  for (let i = 0; i < n; i++) mean += psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2;
-  mean /= n;
-  // log₁₀ is monotonic: the range from the extreme contrasts (empty cells count as 1e-30 but do not set the lower end)
-  let minPositive = Infinity;
-  let max = 1e-30;
-  for (let i = 0; i < n; i++) {
-    const r = (psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2) / mean;
-    if (r > 0 && r < minPositive) minPositive = r;
-    if (r > max) max = r;
+  // the range of ρ, then of ρ/ρ̄: dividing by ρ̄ > 0 keeps the order, so the extremes are the same cells'
+  // (log₁₀ is monotonic: empty cells count as 1e-30 but do not set the lower end)
+  let sum = 0;
+  let minRho = Infinity;
+  let maxRho = 0;
+  for (let p = 0; p < psi.length; p += 2) {
+    const rho = psi[p]! ** 2 + psi[p + 1]! ** 2;
+    sum += rho;
+    if (rho > 0 && rho < minRho) minRho = rho;
+    if (rho > maxRho) maxRho = rho;
   }
-  const lo = Math.log10(minPositive);
-  const hi = Math.log10(max);
+  const mean = sum / n;
+  const lo = Math.log10(minRho / mean);
+  const hi = Math.log10(Math.max(maxRho / mean, 1e-30));
   if (!(hi > lo)) return [{ log10Contrast: hi, volumeFraction: 1, massFraction: 1 }];
   const width = (hi - lo) / bins;
   const vol = new Float64Array(bins);
   const mass = new Float64Array(bins);
-  for (let i = 0; i < n; i++) {
-    const r = Math.max((psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2) / mean, 1e-30);
+  for (let p = 0; p < psi.length; p += 2) {
+    const r = Math.max((psi[p]! ** 2 + psi[p + 1]! ** 2) / mean, 1e-30);
     const b = Math.min(bins - 1, Math.max(0, Math.floor((Math.log10(r) - lo) / width)));
     vol[b] = vol[b]! + 1 / n;
     mass[b] = mass[b]! + r / n;

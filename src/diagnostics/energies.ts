@@ -59,6 +59,11 @@ export function kineticEnergy(grid: Grid, psi: Float64Array, a: number, fft: Pic
       }
     }
   }
+  return kineticFromGradient(grid, sum, a);
+}
+
+/** K = (1/(2a²)) ΔV/N Σ_k k²|ψ_k|² from the sum Σ_k k²|ψ_k|² (spectrum-moments.ts gives it). */
+export function kineticFromGradient(grid: Grid, sum: number, a: number): number {
   return (0.5 / (a * a)) * (sum * grid.cellVolume) / grid.size;
 }
 
@@ -98,6 +103,29 @@ export function periodicPotentialEnergy(grid: Grid, psi: Float64Array, a: number
       }
     }
   return (0.5 / a) * (sum / grid.size) * grid.cellVolume;
+}
+
+/**
+ * The same W from the spectrum of the density contrast δ = ρ/ρ̄ − 1 (as the
+ * power spectrum leaves it, densityPowerSpectrum): ρ_k = ρ̄ δ_k for k ≠ 0,
+ * so W = −(ρ̄²/(2a)) (ΔV/N) Σ_{k≠0} |δ_k|²/k² (equal to the above to round-off).
+ */
+export function periodicPotentialFromContrast(grid: Grid, deltaSpectrum: Float64Array, meanDensity: number, a: number): number {
+  const [k0, k1, k2] = [grid.wavenumbers(0), grid.wavenumbers(1), grid.wavenumbers(2)];
+  const [n0, n1] = grid.shape;
+  const acc = new Float64Array(1);
+  for (let i = 0, p = 0; i < n0; i++) for (let j = 0; j < n1; j++, p += 2 * k2.length) inverseK2Row(deltaSpectrum, p, k0[i]! * k0[i]! + k1[j]! * k1[j]!, k2, acc);
+  return (-0.5 / a) * meanDensity * meanDensity * (acc[0]! / grid.size) * grid.cellVolume;
+}
+
+/** One row of Σ_{k≠0} |s_k|²/k²: modes [p, p + 2 n2) at k_a² + k_b² = kab, added into acc[0]. */
+function inverseK2Row(spec: Float64Array, p: number, kab: number, k2: Float64Array, acc: Float64Array): void {
+  let sum = acc[0]!;
+  for (let l = 0; l < k2.length; l++, p += 2) {
+    const kk = kab + k2[l]! * k2[l]!;
+    if (kk > 0) sum += (spec[p]! * spec[p]! + spec[p + 1]! * spec[p + 1]!) / kk;
+  }
+  acc[0] = sum;
 }
 
 /** U = (g/(2a³)) Σ ρ² ΔV from the sum Σρ² = Σ|ψ|⁴ (no ΔV): the contact energy, ρ/a³ being the physical density. */

@@ -19,6 +19,8 @@ import type { Grid } from "../grid/grid.js";
 import { SimpleTransforms, type FieldTransforms } from "../fields/field-transforms.js";
 import { lnGamma } from "../math/special.js";
 import { simulatedAxes } from "./shells.js";
+import { meanDensity } from "./analysis.js";
+import { spectrumMoments, type SpectrumMoments } from "./spectrum-moments.js";
 
 /** Granule statistics (code units; lengths comoving). */
 export interface GranuleStats {
@@ -46,37 +48,52 @@ function gammaPdf(x: number, k: number): number {
   return Math.exp(k * Math.log(k) + (k - 1) * Math.log(x) - k * x - lnGamma(k));
 }
 
-/** PDF, correlation function, correlation length and quasi-particle mass of the granules, at scale factor a (work grids 0 and 1 of `fft`). */
-export function granuleStats(grid: Grid, psi: Float64Array, a: number, fft: FieldTransforms = new SimpleTransforms(grid.shape), pdfMax = 8, pdfBins = 40): GranuleStats {
-  const n = grid.size;
-  const data = fft.work(0);
-  let mean = 0;
-  for (let i = 0; i < n; i++) mean += psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2;
-  mean /= n;
-  const width = pdfMax / pdfBins;
-  const counts = new Float64Array(pdfBins);
+/** What a caller may have measured already: the spectrum of δ = ρ/ρ̄ − 1 (densityPowerSpectrum leaves it in its work grid; it is overwritten) and the moments of ψ's spectrum. */
+export interface GranuleInputs {
+  readonly contrastSpectrum?: Float64Array;
+  readonly moments?: SpectrumMoments;
+}
+
+/** The density PDF's counts in `width` bins of x = ρ/ρ̄ and var(δ); δ into the real parts of `data` when given. */
+function contrastPass(psi: Float64Array, mean: number, width: number, counts: Float64Array, data: Float64Array | undefined): number {
+  const n = psi.length / 2;
   let variance = 0;
   for (let i = 0; i < n; i++) {
     const x = (psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2) / mean;
-    data[2 * i] = x - 1;
-    data[2 * i + 1] = 0;
+    if (data) {
+      data[2 * i] = x - 1;
+      data[2 * i + 1] = 0;
+    }
     variance += (x - 1) ** 2 / n;
     const b = Math.floor(x / width);
-    if (b < pdfBins) counts[b] = counts[b]! + 1;
+    if (b < counts.length) counts[b] = counts[b]! + 1;
   }
+  return variance;
+}
+
+/** PDF, correlation function, correlation length and quasi-particle mass of the granules, at scale factor a (work grids 0 and 1 of `fft`, none with both `known` inputs). */
+export function granuleStats(grid: Grid, psi: Float64Array, a: number, fft: FieldTransforms = new SimpleTransforms(grid.shape), pdfMax = 8, pdfBins = 40, known: GranuleInputs = {}): GranuleStats {
+  const n = grid.size;
+  const data = known.contrastSpectrum ?? fft.work(0);
+  // ψ's spectrum (when its moments are not given) on the other work grid, before `data` holds ξ
+  const moments = known.moments ?? spectrumMomentsOf(grid, psi, fft, data === fft.work(1) ? 0 : 1);
+  const mean = meanDensity(psi);
+  const width = pdfMax / pdfBins;
+  const counts = new Float64Array(pdfBins);
+  const variance = contrastPass(psi, mean, width, counts, known.contrastSpectrum ? undefined : data);
   const shape = 1 / variance;
   const pdf = Array.from({ length: pdfBins }, (_, b) => {
     const lo = b * width;
     return { x: lo + width / 2, pdf: counts[b]! / (n * width), exponential: (Math.exp(-lo) - Math.exp(-lo - width)) / width, gamma: gammaPdf(lo + width / 2, shape) };
   });
   // ξ(r) = IFFT |δ_k|² / N
-  fft.forward(data);
+  if (!known.contrastSpectrum) fft.forward(data);
   for (let i = 0; i < n; i++) {
     data[2 * i] = (data[2 * i]! ** 2 + data[2 * i + 1]! ** 2) / n;
     data[2 * i + 1] = 0;
   }
   fft.inverse(data);
-  const sigma = velocityDispersion(grid, psi, fft, a);
+  const sigma = velocityDispersion(grid, moments, a);
   const predictedLength = 1 / (a * sigma);
   const correlation = shellAverage(grid, data, predictedLength);
   const xi0 = data[0]!;
@@ -97,12 +114,7 @@ export function granuleStats(grid: Grid, psi: Float64Array, a: number, fft: Fiel
     }
   }
   const d = grid.dims;
-  let integral = 0;
-  if (Number.isFinite(correlationLength)) {
-    forEachSeparation(grid, (i, r) => {
-      if (r < 3 * correlationLength) integral += data[2 * i]! * grid.cellVolume;
-    });
-  }
+  const integral = Number.isFinite(correlationLength) ? ballSum(grid, data, 3 * correlationLength) : 0;
   return {
     pdf,
     variance,
@@ -116,47 +128,59 @@ export function granuleStats(grid: Grid, psi: Float64Array, a: number, fft: Fiel
   };
 }
 
-/** 1D velocity dispersion σ = √((⟨k²⟩ − |⟨k⟩|²)/d)/a over |ψ_k|². */
-function velocityDispersion(grid: Grid, psi: Float64Array, fft: FieldTransforms, a: number): number {
-  const spec = fft.work(1);
+/** The moments of ψ's spectrum (transformed in work grid `slot` of `fft`). */
+function spectrumMomentsOf(grid: Grid, psi: Float64Array, fft: FieldTransforms, slot: number): SpectrumMoments {
+  const spec = fft.work(slot);
   spec.set(psi);
   fft.forward(spec);
-  let w = 0;
-  let k2 = 0;
-  let kx1 = 0;
-  let ky1 = 0;
-  let kz1 = 0;
-  const [n0, n1, n2] = grid.shape;
-  const [kx, ky, kz] = [grid.wavenumbers(0), grid.wavenumbers(1), grid.wavenumbers(2)];
-  let p = 0;
-  for (let i = 0; i < n0; i++)
-    for (let j = 0; j < n1; j++)
-      for (let l = 0; l < n2; l++, p += 2) {
-        const m = spec[p]! ** 2 + spec[p + 1]! ** 2;
-        w += m;
-        k2 += (kx[i]! * kx[i]! + ky[j]! * ky[j]! + kz[l]! * kz[l]!) * m;
-        kx1 += kx[i]! * m;
-        ky1 += ky[j]! * m;
-        kz1 += kz[l]! * m;
-      }
-  const mean2 = (kx1 ** 2 + ky1 ** 2 + kz1 ** 2) / (w * w);
-  return Math.sqrt(Math.max(0, k2 / w - mean2) / grid.dims) / a;
+  return spectrumMoments(grid, spec);
 }
 
-/** Visit every cell with its minimum-image distance from the origin. */
-function forEachSeparation(grid: Grid, visit: (i: number, r: number) => void): void {
+/** 1D velocity dispersion σ = √((⟨k²⟩ − |⟨k⟩|²)/d)/a over |ψ_k|². */
+function velocityDispersion(grid: Grid, m: SpectrumMoments, a: number): number {
+  const mean2 = (m.k1[0] ** 2 + m.k1[1] ** 2 + m.k1[2] ** 2) / (m.weight * m.weight);
+  return Math.sqrt(Math.max(0, m.k2 / m.weight - mean2) / grid.dims) / a;
+}
+
+/** Squared minimum-image distances from the origin: per row (a, b) of the first two axes (rows[a * n1 + b]), and per cell along the last axis. */
+function separations(grid: Grid): { rows: Float64Array; last: Float64Array } {
   const [n0, n1, n2] = grid.shape;
   const h = grid.spacing;
-  let i = 0;
+  const rows = new Float64Array(n0 * n1);
   for (let a = 0; a < n0; a++) {
     const x = Math.min(a, n0 - a) * h[0];
     for (let b = 0; b < n1; b++) {
       const y = Math.min(b, n1 - b) * h[1];
-      for (let c = 0; c < n2; c++, i++) {
-        const z = Math.min(c, n2 - c) * h[2];
-        visit(i, Math.sqrt((n0 > 1 ? x * x : 0) + (n1 > 1 ? y * y : 0) + z * z));
-      }
+      rows[a * n1 + b] = (n0 > 1 ? x * x : 0) + (n1 > 1 ? y * y : 0);
     }
+  }
+  return { rows, last: Float64Array.from({ length: n2 }, (_, c) => (Math.min(c, n2 - c) * h[2]) ** 2) };
+}
+
+/** ΔV Σ of the real parts of `data` over the cells at a minimum-image distance below `r` from the origin (in storage order). */
+function ballSum(grid: Grid, data: Float64Array, r: number): number {
+  const { rows, last } = separations(grid);
+  const acc = new Float64Array(1);
+  for (let row = 0; row < rows.length; row++) if (Math.sqrt(rows[row]!) < r) ballRow(data, row * last.length, rows[row]!, last, r, grid.cellVolume, acc);
+  return acc[0]!;
+}
+
+function ballRow(data: Float64Array, i: number, rowR2: number, last: Float64Array, r: number, dv: number, acc: Float64Array): void {
+  let sum = acc[0]!;
+  for (let c = 0; c < last.length; c++, i++) if (Math.sqrt(rowR2 + last[c]!) < r) sum += data[2 * i]! * dv;
+  acc[0] = sum;
+}
+
+/** One row of shellAverage: cells [i, i + n2) into shells of width h (those below `bins`). */
+function shellRow(data: Float64Array, i: number, rowR2: number, last: Float64Array, h: number, s: { sum: Float64Array; rs: Float64Array; cnt: Float64Array }): void {
+  const { sum, rs, cnt } = s;
+  for (let c = 0; c < last.length; c++, i++) {
+    const r = Math.sqrt(rowR2 + last[c]!);
+    const b = Math.floor(r / h + 0.5);
+    if (b >= sum.length) continue;
+    sum[b] = sum[b]! + data[2 * i]!;
+    rs[b] = rs[b]! + r;
+    cnt[b] = cnt[b]! + 1;
   }
 }
 
@@ -166,16 +190,12 @@ function shellAverage(grid: Grid, data: Float64Array, length: number): { r: numb
   const h = Math.min(...axes.map((ax) => grid.spacing[ax]));
   const rMax = Math.min(...axes.map((ax) => grid.extent[ax])) / 2;
   const bins = Math.max(1, Math.floor(rMax / h) + 1);
-  const sum = new Float64Array(bins);
-  const rs = new Float64Array(bins);
-  const cnt = new Float64Array(bins);
-  forEachSeparation(grid, (i, r) => {
-    const b = Math.floor(r / h + 0.5);
-    if (b >= bins) return;
-    sum[b] = sum[b]! + data[2 * i]!;
-    rs[b] = rs[b]! + r;
-    cnt[b] = cnt[b]! + 1;
-  });
+  const [sum, rs, cnt] = [new Float64Array(bins), new Float64Array(bins), new Float64Array(bins)];
+  const { rows, last } = separations(grid);
+  // rows entirely beyond the last shell (by a cell's margin against round-off) add nothing
+  const limit = (bins + 0.5) * h;
+  const shells = { sum, rs, cnt };
+  for (let row = 0; row < rows.length; row++) if (Math.sqrt(rows[row]!) < limit) shellRow(data, row * last.length, rows[row]!, last, h, shells);
   const xi0 = data[0]!;
   const out: { r: number; xi: number; predicted: number; cells: number }[] = [];
   for (let b = 0; b < bins; b++) {

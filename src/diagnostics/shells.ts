@@ -94,16 +94,16 @@ export function modeShells(grid: Grid): ModeShells {
   const shells = new Shells(grid, 0);
   const bins = shells.count < 32767 ? new Int16Array(grid.size) : new Int32Array(grid.size);
   const [n0, n1, n2] = grid.shape;
-  const [k0, k1, k2] = [grid.wavenumbers(0), grid.wavenumbers(1), grid.wavenumbers(2)];
-  let i = 0;
-  for (let a = 0; a < n0; a++)
-    for (let b = 0; b < n1; b++) {
-      const kab = k0[a]! * k0[a]! + k1[b]! * k1[b]!;
-      for (let c = 0; c < n2; c++, i++) bins[i] = shells.addMode(Math.sqrt(kab + k2[c]! * k2[c]!));
-    }
+  const [k0, k1] = [grid.wavenumbers(0), grid.wavenumbers(1)];
+  for (let a = 0, i = 0; a < n0; a++) for (let b = 0; b < n1; b++, i += n2) shellRow(shells, bins, i, k0[a]! * k0[a]! + k1[b]! * k1[b]!, grid.wavenumbers(2));
   const table = { bins, ksum: shells.sumsOfK(), modes: shells.modeCounts() };
   lastTable = { key, table };
   return table;
+}
+
+/** One row of modeShells: the modes [i, i + n2) at k_a² + k_b² = kab. */
+function shellRow(shells: Shells, bins: Int16Array | Int32Array, i: number, kab: number, k2: Float64Array): void {
+  for (let c = 0; c < k2.length; c++, i++) bins[i] = shells.addMode(Math.sqrt(kab + k2[c]! * k2[c]!));
 }
 
 /** The wavenumbers of the spectral derivative along `axis`: k, with the Nyquist index's set to zero. */
@@ -122,26 +122,22 @@ export function derivativeWavenumbers(grid: Grid, axis: 0 | 1 | 2): Float64Array
 export function spectralDerivative(grid: Grid, fft: FieldTransforms, spec: Float64Array, axis: 0 | 1 | 2, out: Float64Array): void {
   const k = derivativeWavenumbers(grid, axis);
   const [n0, n1, n2] = grid.shape;
-  let p = 0;
-  for (let a = 0; a < n0; a++)
-    for (let b = 0; b < n1; b++) {
-      const row = axis === 0 ? k[a]! : axis === 1 ? k[b]! : 0;
-      if (axis === 2) {
-        for (let c = 0; c < n2; c++, p += 2) {
-          const kk = k[c]!;
-          const re = spec[p]!;
-          out[p] = -kk * spec[p + 1]!;
-          out[p + 1] = kk * re;
-        }
-      } else {
-        for (let c = 0; c < n2; c++, p += 2) {
-          const re = spec[p]!;
-          out[p] = -row * spec[p + 1]!;
-          out[p + 1] = row * re;
-        }
-      }
-    }
+  // along the last axis the factor is k[c]; along the others one factor per row (the scale 0 · k[c] adds nothing)
+  const zScale = axis === 2 ? 1 : 0;
+  const kz = derivativeWavenumbers(grid, 2);
+  for (let a = 0, p = 0; a < n0; a++)
+    for (let b = 0; b < n1; b++, p += 2 * n2) derivativeRow(spec, out, p, axis === 0 ? k[a]! : axis === 1 ? k[b]! : 0, zScale, kz);
   fft.inverse(out);
+}
+
+/** One row of the spectral derivative: out ← i (row + zScale k_c) spec over the modes [p, p + 2 n2). */
+function derivativeRow(spec: Float64Array, out: Float64Array, p: number, row: number, zScale: number, kz: Float64Array): void {
+  for (let c = 0; c < kz.length; c++, p += 2) {
+    const kk = row + zScale * kz[c]!;
+    const re = spec[p]!;
+    out[p] = -kk * spec[p + 1]!;
+    out[p + 1] = kk * re;
+  }
 }
 
 /** The simulated internal axes (e.g. [1, 2] in 2D). */

@@ -71,65 +71,88 @@ function bilinearZero(re: readonly number[], im: readonly number[]): [number, nu
   return s >= 0 && s <= 1 && t >= 0 && t <= 1 ? [s, t] : [0.5, 0.5];
 }
 
+/** Where the plaquettes of one orientation are pierced: the cells, their charges and the next cells along the plaquette's two axes. */
+interface Scan {
+  readonly grid: Grid;
+  readonly phase: Float64Array;
+  /** Cell index, charge, index step along the first axis, along the second, per piercing, in storage order. */
+  readonly hits: number[];
+}
+
+/**
+ * Index steps along `axis` from the cells of row (a, b); 0 for the last axis, whose wrap is taken per cell
+ * (a simulated first or second axis has at least two cells, so its step is never 0).
+ */
+function rowStep(grid: Grid, axis: number, a: number, b: number): number {
+  const [n0, n1, n2] = grid.shape;
+  if (axis === 0) return a === n0 - 1 ? -(n0 - 1) * n1 * n2 : n1 * n2;
+  if (axis === 1) return b === n1 - 1 ? -(n1 - 1) * n2 : n2;
+  return 0;
+}
+
+/** One row's plaquettes spanned by steps dp and dq (0: along the last axis, wrapping at its end): the pierced ones into `hits`. */
+function scanRow(s: Scan, i: number, dp: number, dq: number): void {
+  const { phase, hits } = s;
+  const n2 = s.grid.shape[2];
+  for (let c = 0; c < n2; c++, i++) {
+    const d2 = c === n2 - 1 ? -(n2 - 1) : 1;
+    const sp = dp === 0 ? d2 : dp;
+    const sq = dq === 0 ? d2 : dq;
+    const ip = i + sp;
+    const iq = i + sq;
+    const ipq = ip + sq;
+    const w = wrap(phase[ip]! - phase[i]!) + wrap(phase[ipq]! - phase[ip]!) + wrap(phase[iq]! - phase[ipq]!) + wrap(phase[i]! - phase[iq]!);
+    const charge = Math.round(w / (2 * Math.PI));
+    if (charge !== 0) hits.push(i, charge, sp, sq);
+  }
+}
+
+/** The pierced plaquettes spanned by axes pa and qa (cells in storage order). */
+function scanOrientation(s: Scan, pa: number, qa: number): void {
+  const [n0, n1, n2] = s.grid.shape;
+  for (let a = 0, i = 0; a < n0; a++) for (let b = 0; b < n1; b++, i += n2) scanRow(s, i, rowStep(s.grid, pa, a, b), rowStep(s.grid, qa, a, b));
+}
+
+/** The phase of every cell into `out`. */
+function phases(psi: Float64Array, out: Float64Array): void {
+  for (let i = 0; i < out.length; i++) out[i] = Math.atan2(psi[2 * i + 1]!, psi[2 * i]!);
+}
+
 /** Vortices of a 2D or 3D field (throws RangeError for a 1D grid); `scratch`, if given, is a grid of at least one number per cell it may overwrite. */
 export function findVortices(grid: Grid, psi: Float64Array, scratch?: Float64Array): VortexCensus {
   if (grid.dims < 2) throw new RangeError("vortices need a 2D or 3D field");
   const n = grid.size;
   const phase = scratch && scratch.length >= n ? scratch.subarray(0, n) : new Float64Array(n);
-  for (let i = 0; i < n; i++) phase[i] = Math.atan2(psi[2 * i + 1]!, psi[2 * i]!);
-  const [n0, n1, n2] = grid.shape;
-  const stride = [n1 * n2, n2, 1];
+  phases(psi, phase);
+  const [, n1, n2] = grid.shape;
   const axes = simulatedAxes(grid);
   const points: VortexPoint[] = [];
   const projection = new Float64Array(n1 * n2);
-  let positive = 0;
-  let negative = 0;
-  let lineLength = 0;
-  const step = (i: number, ax: number, idx: readonly number[], sign: 1 | -1): number => {
-    const m = grid.shape[ax]!;
-    const j = idx[ax]!;
-    if (sign > 0) return j === m - 1 ? i - (m - 1) * stride[ax]! : i + stride[ax]!;
-    return j === 0 ? i + (m - 1) * stride[ax]! : i - stride[ax]!;
-  };
+  const t = { positive: 0, negative: 0, lineLength: 0 };
   // plaquettes spanned by axes (p, q), normal r (3D) or none (2D)
   const orientations: [number, number, number][] = grid.dims === 2 ? [[1, 2, -1]] : [[1, 2, 0], [2, 0, 1], [0, 1, 2]];
-  const record = (i: number, ip: number, iq: number, ipq: number, charge: number, pa: number, qa: number, normal: number): void => {
-    if (charge > 0) positive += charge;
-    else negative -= charge;
-    const idx = [Math.floor(i / stride[0]!), Math.floor(i / n2) % n1, i % n2];
-    const corners = [i, ip, iq, ipq];
-    const [s, t] = grid.dims === 2 ? bilinearZero(corners.map((c) => psi[2 * c]!), corners.map((c) => psi[2 * c + 1]!)) : [0.5, 0.5];
-    const pos = [idx[0]! * grid.spacing[0], idx[1]! * grid.spacing[1], idx[2]! * grid.spacing[2]];
-    pos[pa] = pos[pa]! + s * grid.spacing[pa]!;
-    pos[qa] = pos[qa]! + t * grid.spacing[qa]!;
-    let length = 0;
-    if (normal >= 0) {
-      length = pierceLength(grid, psi, corners, idx, normal, pa, qa, step);
-      lineLength += length;
-      projection[idx[1]! * n2 + idx[2]!] = projection[idx[1]! * n2 + idx[2]!]! + length;
-    } else {
-      projection[idx[1]! * n2 + idx[2]!] = projection[idx[1]! * n2 + idx[2]!]! + 1;
-    }
-    points.push({ position: axes.map((ax) => pos[ax]!), charge, normal: normal >= 0 ? axes.indexOf(normal as 0 | 1 | 2) : -1, length });
-  };
   for (const [pa, qa, normal] of orientations) {
-    let i = 0;
-    for (let a = 0; a < n0; a++) {
-      const d0 = a === n0 - 1 ? -(n0 - 1) * stride[0]! : stride[0]!;
-      for (let b = 0; b < n1; b++) {
-        const d1 = b === n1 - 1 ? -(n1 - 1) * n2 : n2;
-        for (let c = 0; c < n2; c++, i++) {
-          const d2 = c === n2 - 1 ? -(n2 - 1) : 1;
-          const ip = i + (pa === 0 ? d0 : pa === 1 ? d1 : d2);
-          const iq = i + (qa === 0 ? d0 : qa === 1 ? d1 : d2);
-          const ipq = ip + iq - i;
-          const w = wrap(phase[ip]! - phase[i]!) + wrap(phase[ipq]! - phase[ip]!) + wrap(phase[iq]! - phase[ipq]!) + wrap(phase[i]! - phase[iq]!);
-          const charge = Math.round(w / (2 * Math.PI));
-          if (charge !== 0) record(i, ip, iq, ipq, charge, pa, qa, normal);
-        }
-      }
+    const scan: Scan = { grid, phase, hits: [] };
+    scanOrientation(scan, pa, qa);
+    const h = scan.hits;
+    for (let k = 0; k < h.length; k += 4) {
+      const [i, charge, sp, sq] = [h[k]!, h[k + 1]!, h[k + 2]!, h[k + 3]!];
+      if (charge > 0) t.positive += charge;
+      else t.negative -= charge;
+      const corners = [i, i + sp, i + sq, i + sp + sq] as const;
+      const idx = [Math.floor(i / (n1 * n2)), Math.floor(i / n2) % n1, i % n2] as const;
+      const [s, u] = grid.dims === 2 ? bilinearZero(corners.map((c) => psi[2 * c]!), corners.map((c) => psi[2 * c + 1]!)) : [0.5, 0.5];
+      const pos = [idx[0] * grid.spacing[0], idx[1] * grid.spacing[1], idx[2] * grid.spacing[2]];
+      pos[pa] = pos[pa]! + s * grid.spacing[pa]!;
+      pos[qa] = pos[qa]! + u * grid.spacing[qa]!;
+      const length = normal >= 0 ? pierceLength(grid, psi, corners, idx[normal]!, normal, pa, qa) : 0;
+      t.lineLength += length;
+      const column = idx[1] * n2 + idx[2];
+      projection[column] = projection[column]! + (normal >= 0 ? length : 1);
+      points.push({ position: axes.map((ax) => pos[ax]!), charge, normal: normal >= 0 ? axes.indexOf(normal as 0 | 1 | 2) : -1, length });
     }
   }
+  const { positive, negative, lineLength } = t;
   const measure = grid.volume;
   return {
     dims: grid.dims as 2 | 3,
@@ -143,43 +166,34 @@ export function findVortices(grid: Grid, psi: Float64Array, scratch?: Float64Arr
   };
 }
 
-/** The length a piercing of a face normal to `normal` stands for: 1 / Σ_j |t_j|/Δx_j with t ∝ ∇Re ψ × ∇Im ψ at the face. */
-function pierceLength(
-  grid: Grid,
-  psi: Float64Array,
-  corners: readonly number[],
-  idx: number[],
-  normal: number,
-  pa: number,
-  qa: number,
-  step: (i: number, ax: number, idx: readonly number[], sign: 1 | -1) => number,
-): number {
+/**
+ * The length a piercing of a face normal to `normal` stands for: 1 / Σ_j |t_j|/Δx_j with t ∝ ∇Re ψ × ∇Im ψ
+ * at the face; `j` is the face's index along the normal axis (the same for its four corners).
+ */
+function pierceLength(grid: Grid, psi: Float64Array, corners: readonly number[], j: number, normal: number, pa: number, qa: number): number {
   const h = grid.spacing;
-  const gr = [0, 0, 0];
-  const gi = [0, 0, 0];
+  const g = new Float64Array(6); // ∇Re ψ in [0, 3), ∇Im ψ in [3, 6)
   const [c00, c10, c01, c11] = corners as [number, number, number, number];
   // in-plane derivatives: mean of the two edge differences
-  gr[pa] = (psi[2 * c10]! - psi[2 * c00]! + psi[2 * c11]! - psi[2 * c01]!) / (2 * h[pa]!);
-  gi[pa] = (psi[2 * c10 + 1]! - psi[2 * c00 + 1]! + psi[2 * c11 + 1]! - psi[2 * c01 + 1]!) / (2 * h[pa]!);
-  gr[qa] = (psi[2 * c01]! - psi[2 * c00]! + psi[2 * c11]! - psi[2 * c10]!) / (2 * h[qa]!);
-  gi[qa] = (psi[2 * c01 + 1]! - psi[2 * c00 + 1]! + psi[2 * c11 + 1]! - psi[2 * c10 + 1]!) / (2 * h[qa]!);
-  // normal derivative: centred difference, averaged over the four corners (the index of each corner is shifted to it)
+  g[pa] = (psi[2 * c10]! - psi[2 * c00]! + psi[2 * c11]! - psi[2 * c01]!) / (2 * h[pa]!);
+  g[3 + pa] = (psi[2 * c10 + 1]! - psi[2 * c00 + 1]! + psi[2 * c11 + 1]! - psi[2 * c01 + 1]!) / (2 * h[pa]!);
+  g[qa] = (psi[2 * c01]! - psi[2 * c00]! + psi[2 * c11]! - psi[2 * c10]!) / (2 * h[qa]!);
+  g[3 + qa] = (psi[2 * c01 + 1]! - psi[2 * c00 + 1]! + psi[2 * c11 + 1]! - psi[2 * c10 + 1]!) / (2 * h[qa]!);
+  // normal derivative: centred difference, averaged over the four corners
+  const m = grid.shape[normal]!;
+  const stride = normal === 0 ? grid.shape[1] * grid.shape[2] : normal === 1 ? grid.shape[2] : 1;
+  const up = j === m - 1 ? -(m - 1) * stride : stride;
+  const down = j === 0 ? (m - 1) * stride : -stride;
   let dr = 0;
   let di = 0;
-  const base = [idx[0]!, idx[1]!, idx[2]!];
-  for (const [ds, dq, c] of [[0, 0, c00], [1, 0, c10], [0, 1, c01], [1, 1, c11]] as const) {
-    const at = [...base];
-    at[pa] = (at[pa]! + ds) % grid.shape[pa]!;
-    at[qa] = (at[qa]! + dq) % grid.shape[qa]!;
-    const up = step(c, normal, at, 1);
-    const down = step(c, normal, at, -1);
-    dr += psi[2 * up]! - psi[2 * down]!;
-    di += psi[2 * up + 1]! - psi[2 * down + 1]!;
+  for (const c of corners) {
+    dr += psi[2 * (c + up)]! - psi[2 * (c + down)]!;
+    di += psi[2 * (c + up) + 1]! - psi[2 * (c + down) + 1]!;
   }
-  gr[normal] = dr / (8 * h[normal]!);
-  gi[normal] = di / (8 * h[normal]!);
-  const t = [gr[1]! * gi[2]! - gr[2]! * gi[1]!, gr[2]! * gi[0]! - gr[0]! * gi[2]!, gr[0]! * gi[1]! - gr[1]! * gi[0]!];
-  const norm = Math.hypot(t[0]!, t[1]!, t[2]!);
-  if (norm === 0) return 1 / (1 / h[0]! + 1 / h[1]! + 1 / h[2]!) * 2;
-  return 1 / (Math.abs(t[0]!) / norm / h[0]! + Math.abs(t[1]!) / norm / h[1]! + Math.abs(t[2]!) / norm / h[2]!);
+  g[normal] = dr / (8 * h[normal]!);
+  g[3 + normal] = di / (8 * h[normal]!);
+  const t = [g[1]! * g[5]! - g[2]! * g[4]!, g[2]! * g[3]! - g[0]! * g[5]!, g[0]! * g[4]! - g[1]! * g[3]!] as const;
+  const norm = Math.hypot(t[0], t[1], t[2]);
+  if (norm === 0) return (1 / (1 / h[0]! + 1 / h[1]! + 1 / h[2]!)) * 2;
+  return 1 / (Math.abs(t[0]) / norm / h[0]! + Math.abs(t[1]) / norm / h[1]! + Math.abs(t[2]) / norm / h[2]!);
 }

@@ -10,12 +10,12 @@ import type { LoadedField } from "../simulation/from-snapshot.js";
 import type { FieldTransforms } from "../fields/field-transforms.js";
 import { energySplit, type EnergySplit } from "../diagnostics/energy-split.js";
 import { findVortices, type VortexCensus } from "../diagnostics/vortices.js";
-import { granuleStats, type GranuleStats } from "../diagnostics/granules.js";
-import { defaultHusimiWindow, husimiAt, husimiImage1D, wehrlEntropy } from "../diagnostics/husimi.js";
+import { granuleStats, type GranuleInputs, type GranuleStats } from "../diagnostics/granules.js";
+import { defaultHusimiWindow, husimiImage1D, HusimiSampler, internalPoint, wehrlEntropy } from "../diagnostics/husimi.js";
 import { densestPoints } from "../diagnostics/analysis.js";
 import { M_SUN_KG, PC_M } from "../physics/constants.js";
 import type { FieldDiagnostic } from "./diagnostic-options.js";
-import { csvTable } from "./csv-table.js";
+import { csvTable, csvText, csvValue } from "./csv-table.js";
 
 const KPC = 1e3 * PC_M;
 
@@ -44,7 +44,11 @@ export interface FieldDiagnosticsResult {
   readonly eta?: number;
 }
 
-/** Compute the chosen diagnostics of `field` (the energy split given when measured already) and write their tables into `outDir`. */
+/**
+ * Compute the chosen diagnostics of `field` (the energy split given when measured already) and write their
+ * tables into `outDir`; `granuleInputs` are the granules' inputs measured already (a contrast spectrum in a
+ * work grid of `fft`, which the vortex scan leaves alone: it uses work grid 0).
+ */
 export function fieldDiagnostics(
   field: LoadedField,
   chosen: Set<FieldDiagnostic>,
@@ -53,13 +57,15 @@ export function fieldDiagnostics(
   windowKpc?: number,
   pointsKpc?: readonly (readonly number[])[],
   measuredSplit?: EnergySplit,
+  granuleInputs?: GranuleInputs,
 ): FieldDiagnosticsResult {
   const s = physicalScales(field);
   const summary: Record<string, unknown> = {};
   const out: { -readonly [K in keyof FieldDiagnosticsResult]: FieldDiagnosticsResult[K] } = { summary };
   if (chosen.has("energy-split")) out.split = writeEnergySplit(field, s, outDir, summary, measuredSplit ?? energySplit(field.grid, field.psi, field.scaleFactor, fft));
   if (chosen.has("vortices")) out.vortices = writeVortices(field, s, outDir, summary, fft.work(0));
-  if (chosen.has("granules")) out.granules = writeGranules(field, s, outDir, summary, fft);
+  // a split measured here used the work grids: the contrast spectrum given is gone
+  if (chosen.has("granules")) out.granules = writeGranules(field, s, outDir, summary, fft, chosen.has("energy-split") && !measuredSplit ? undefined : granuleInputs);
   if (chosen.has("husimi")) Object.assign(out, writeHusimi(field, s, outDir, summary, windowKpc, pointsKpc));
   return out;
 }
@@ -88,16 +94,20 @@ function writeVortices(field: LoadedField, s: PhysicalScales, outDir: string, su
   const census = findVortices(field.grid, field.psi, scratch);
   const three = field.grid.dims === 3;
   const header = three ? ["x_kpc", "y_kpc", "z_kpc", "normal_axis", "charge", "length_kpc"] : ["x_kpc", "y_kpc", "charge"];
-  const rows = census.points.map((p) => [...p.position.map((x) => x * s.kpc), ...(three ? [p.normal + 1, p.charge, p.length * s.kpc] : [p.charge])]);
-  writeFileAtomic(path.join(outDir, "vortices.csv"), csvTable(header, rows));
+  // one line per point, written as csvTable writes its rows (no row arrays: a 3D census has many thousands)
+  const lines = census.points.map((p) => {
+    const pos = p.position.map((x) => csvValue(x * s.kpc)).join(",");
+    return three ? `${pos},${csvValue(p.normal + 1)},${csvValue(p.charge)},${csvValue(p.length * s.kpc)}` : `${pos},${csvValue(p.charge)}`;
+  });
+  writeFileAtomic(path.join(outDir, "vortices.csv"), csvText(header, lines));
   summary["vortices"] = three
     ? { piercings: census.points.length, net_charge: census.netCharge, line_length_kpc: census.lineLength * s.kpc, line_length_per_volume_per_kpc2: census.density / s.kpc ** 2 }
     : { count: census.positive + census.negative, positive: census.positive, negative: census.negative, net_charge: census.netCharge, per_area_per_kpc2: census.density / s.kpc ** 2 };
   return census;
 }
 
-function writeGranules(field: LoadedField, s: PhysicalScales, outDir: string, summary: Record<string, unknown>, fft: FieldTransforms): GranuleStats {
-  const g = granuleStats(field.grid, field.psi, field.scaleFactor, fft);
+function writeGranules(field: LoadedField, s: PhysicalScales, outDir: string, summary: Record<string, unknown>, fft: FieldTransforms, inputs?: GranuleInputs): GranuleStats {
+  const g = granuleStats(field.grid, field.psi, field.scaleFactor, fft, undefined, undefined, inputs);
   writeFileAtomic(path.join(outDir, "granule-pdf.csv"), csvTable(["density_contrast", "pdf", "exponential", "gamma"], g.pdf.map((b) => [b.x, b.pdf, b.exponential, b.gamma])));
   writeFileAtomic(path.join(outDir, "granule-correlation.csv"), csvTable(["r_kpc", "xi", "random_phase_xi", "cells"], g.correlation.map((c) => [c.r * s.kpc, c.xi, c.predicted, c.cells])));
   summary["granules"] = {
@@ -150,9 +160,12 @@ function writeHusimi(field: LoadedField, s: PhysicalScales, outDir: string, summ
   }
   const points = pointsKpc?.map((p) => p.map((x) => x / s.kpc)) ?? [densestPoints(grid, psi, 1, 1)[0]!.coords];
   const rows: number[][] = [];
+  // one sampler and one buffer for all points
+  const sampler = new HusimiSampler(grid, eta);
+  const f = new Float64Array(sampler.size);
   const husimiPoints = points.map((point, index) => {
-    const h = husimiAt(grid, psi, point, eta);
-    const speed = speedDistribution(h.cells, h.dk, h.f);
+    sampler.sample(psi, internalPoint(grid, point), f);
+    const speed = speedDistribution(sampler.cells, sampler.dk, f);
     for (const b of speed) rows.push([index + 1, ...point.map((x) => x * s.kpc), b.v * vPerK, (b.F * unit * Math.pow(vPerK, grid.dims)) / vPerK]);
     return { point: point.map((x) => x * s.kpc), speed: speed.map((b) => ({ v: b.v * vPerK, F: (b.F * unit * Math.pow(vPerK, grid.dims)) / vPerK })) };
   });
@@ -167,25 +180,27 @@ function writeHusimi(field: LoadedField, s: PhysicalScales, outDir: string, summ
 function speedDistribution(cells: number[], dk: number[], f: Float64Array): { v: number; F: number }[] {
   const width = Math.min(...dk);
   const cell = dk.reduce((p, v) => p * v, 1);
-  const sums = new Map<number, { k: number; f: number; n: number }>();
-  const d = cells.length;
-  for (let i = 0; i < f.length; i++) {
-    let rest = i;
-    let k2 = 0;
-    for (let ax = d - 1; ax >= 0; ax--) {
-      const m = cells[ax]!;
-      const q = rest % m;
-      rest = Math.floor(rest / m);
-      const kk = (q < m / 2 ? q : q - m) * dk[ax]!;
-      k2 += kk * kk;
-    }
-    const k = Math.sqrt(k2);
+  // three axes, absent leading ones of one cell and no wavenumber; k along each axis in FFT order
+  const [m0, m1, m2] = [...Array<number>(3 - cells.length).fill(1), ...cells] as [number, number, number];
+  const step = [...Array<number>(3 - dk.length).fill(0), ...dk];
+  const ks = [m0, m1, m2].map((m, ax) => Float64Array.from({ length: m }, (_, q) => (q < m / 2 ? q : q - m) * step[ax]!));
+  const kMax = Math.sqrt(ks.reduce((t, k) => t + Math.max(...k.map(Math.abs)) ** 2, 0));
+  const shells = Math.round(kMax / width) + 2;
+  const sums = { k: new Float64Array(shells), f: new Float64Array(shells), n: new Float64Array(shells) };
+  for (let a = 0, i = 0; a < m0; a++) for (let b = 0; b < m1; b++, i += m2) speedRow(f, i, ks[2]!, ks[1]![b]! ** 2, ks[0]![a]! ** 2, width, cell, sums);
+  const out: { v: number; F: number }[] = [];
+  for (let b = 0; b < shells; b++) if (sums.n[b]! > 0) out.push({ v: sums.k[b]! / sums.n[b]!, F: sums.f[b]! / width });
+  return out;
+}
+
+/** One row of speedDistribution: cells [i, i + m2) at squared wavenumbers k1² and k0² along the first two axes. */
+function speedRow(f: Float64Array, i: number, k2: Float64Array, k1sq: number, k0sq: number, width: number, cell: number, sums: { k: Float64Array; f: Float64Array; n: Float64Array }): void {
+  for (let c = 0; c < k2.length; c++, i++) {
+    // |k|² added from the last axis to the first
+    const k = Math.sqrt(k2[c]! * k2[c]! + k1sq + k0sq);
     const b = Math.round(k / width);
-    const e = sums.get(b) ?? { k: 0, f: 0, n: 0 };
-    e.k += k;
-    e.f += f[i]! * cell;
-    e.n += 1;
-    sums.set(b, e);
+    sums.k[b] = sums.k[b]! + k;
+    sums.f[b] = sums.f[b]! + f[i]! * cell;
+    sums.n[b] = sums.n[b]! + 1;
   }
-  return [...sums.entries()].sort((x, y) => x[0] - y[0]).map(([, e]) => ({ v: e.k / e.n, F: e.f / width }));
 }

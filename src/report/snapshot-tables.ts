@@ -9,7 +9,9 @@ import type { Snapshot } from "../io/snapshot.js";
 import type { FieldTransforms } from "../fields/field-transforms.js";
 import { writeFileAtomic } from "../io/atomic.js";
 import { fieldStats, type LoadedField } from "../simulation/from-snapshot.js";
-import { densestPoints, densityPdf, densityPowerSpectrum, fitCoreProfile, kineticSplit, radialProfile, type KineticSplit } from "../diagnostics/analysis.js";
+import { densestPoints, densityPdf, densityPowerSpectrum, fitCoreProfile, kineticSplit, meanDensity, radialProfile, type KineticSplit } from "../diagnostics/analysis.js";
+import { kineticFromGradient, periodicPotentialFromContrast } from "../diagnostics/energies.js";
+import type { SpectrumMoments } from "../diagnostics/spectrum-moments.js";
 import { KG_PER_EV, M_SUN_KG, PC_M } from "../physics/constants.js";
 import { csvTable as csv } from "./csv-table.js";
 import { coreRelationDensity } from "../diagnostics/halo-core.js";
@@ -38,14 +40,24 @@ function powerTable(power: readonly { k: number; power: number; modes: number }[
   );
 }
 
-/** Write one snapshot's tables into `outDir` (created), with the kinetic split when it was measured already; returns its summary (for summary.json, written by the caller) and P(k) in kpc^d. */
+/** What the energy split measured already: the kinetic split and the moments of ψ's spectrum. */
+export interface MeasuredKinetics {
+  readonly kinetic: KineticSplit;
+  readonly moments: SpectrumMoments;
+}
+
+/**
+ * Write one snapshot's tables into `outDir` (created), with the kinetic split when it was measured already;
+ * returns its summary (for summary.json, written by the caller) and P(k) in kpc^d. The spectrum of the
+ * density contrast stays in work grid 1 of `fft` (for the granules).
+ */
 export function snapshotTables(
   file: string,
   snap: Snapshot,
   field: LoadedField,
   outDir: string,
   fft: FieldTransforms,
-  kinetic?: KineticSplit,
+  measured?: MeasuredKinetics,
 ): { summary: Record<string, unknown>; power: { k: number; P: number }[] } {
   const { grid, units, psi } = field;
   const a = field.scaleFactor;
@@ -55,13 +67,15 @@ export function snapshotTables(
   const kms = units.lengthM / units.timeS / 1e3;
   fs.mkdirSync(outDir, { recursive: true });
 
-  const power = densityPowerSpectrum(grid, psi, fft);
+  const power = densityPowerSpectrum(grid, psi, fft, 1);
   writeFileAtomic(path.join(outDir, "power.csv"), powerTable(power, kpcPerCode, grid.dims, snap.meta.background.kind === "lcdm" ? snap.meta.background.hubbleKmSMpc / 100 : undefined));
   const pdf = densityPdf(psi);
   writeFileAtomic(path.join(outDir, "pdf.csv"), csv(["log10_density_contrast", "volume_fraction", "mass_fraction"], pdf.map((p) => [p.log10Contrast, p.volumeFraction, p.massFraction])));
 
-  const stats = fieldStats(field, fft);
-  const split = kinetic ?? kineticSplit(grid, psi, a, fft);
+  // K from ψ's spectrum and the periodic W from δ's, both at hand: no transform of their own
+  const known = measured ? { kinetic: kineticFromGradient(grid, measured.moments.k2, a), periodicPotential: periodicPotentialFromContrast(grid, fft.work(1), meanDensity(psi), a) } : undefined;
+  const stats = fieldStats(field, fft, known);
+  const split = measured?.kinetic ?? kineticSplit(grid, psi, a, fft);
   const peaks = densestPoints(grid, psi, 5, Math.max(4, grid.cells[0]! / 16), fft.work(0));
   const profileRows: (number | string)[][] = [];
   const peakRows = peaks.map((p, i) => {

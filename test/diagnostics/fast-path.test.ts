@@ -6,7 +6,8 @@ import { Grid } from "../../src/grid/grid.js";
 import { ComplexFft } from "../../src/fields/fft.js";
 import { SimpleTransforms } from "../../src/fields/field-transforms.js";
 import { PooledTransforms } from "../../src/integrators/pooled-transforms.js";
-import { densestPoints, densityPowerSpectrum, kineticSplit } from "../../src/diagnostics/analysis.js";
+import { densestPoints, densityPowerSpectrum, kineticSplit, meanDensity } from "../../src/diagnostics/analysis.js";
+import { kineticFromGradient, periodicPotentialFromContrast } from "../../src/diagnostics/energies.js";
 import { findVortices } from "../../src/diagnostics/vortices.js";
 import { energyAndKineticSplit, energySplit } from "../../src/diagnostics/energy-split.js";
 import { granuleStats } from "../../src/diagnostics/granules.js";
@@ -75,6 +76,11 @@ describe.each(cases)("$cells.length-D grid $cells", ({ cells, a }) => {
     expect(worst(densityPowerSpectrum(grid, psi, fast), power, Math.max(...power.map((b) => b.power)))).toBeLessThan(1e-12);
     const granules = granuleStats(grid, psi, a, simple());
     const g = granuleStats(grid, psi, a, fast);
+    // with the inputs analyze has measured already (δ's spectrum from P(k) in work grid 1, the moments from the split): the same numbers bit for bit
+    densityPowerSpectrum(grid, psi, fast, 1);
+    expect(granuleStats(grid, psi, a, fast, undefined, undefined, { contrastSpectrum: fast.work(1), moments: both.moments })).toEqual(g);
+    densityPowerSpectrum(grid, psi, fast, 1);
+    expect(granuleStats(grid, psi, a, fast, undefined, undefined, { contrastSpectrum: fast.work(1) })).toEqual(g);
     expect(worst(g.correlation, granules.correlation, granules.correlation[0]!.xi)).toBeLessThan(1e-12);
     expect(worst(g.pdf, granules.pdf, 1)).toBeLessThan(1e-12);
     for (const key of ["variance", "gammaShape", "correlationLength", "predictedLength", "velocityDispersion", "quasiParticleMass", "predictedQuasiParticleMass"] as const) {
@@ -102,5 +108,14 @@ describe("field energies of a snapshot", () => {
     expect(Math.abs(stats.kineticMsunKm2S2 / reference.kineticMsunKm2S2 - 1)).toBeLessThan(1e-12);
     expect(Math.abs(stats.potentialMsunKm2S2 / reference.potentialMsunKm2S2 - 1)).toBeLessThan(1e-12);
     expect(reference.potentialMsunKm2S2).toBeLessThan(0);
+    // as psibox analyze measures them: K from the energy split's moments of ψ's spectrum, W from the spectrum of δ that P(k) leaves
+    const a = field.scaleFactor;
+    const { moments } = energyAndKineticSplit(field.grid, field.psi, a, fast);
+    densityPowerSpectrum(field.grid, field.psi, fast, 1);
+    const known = { kinetic: kineticFromGradient(field.grid, moments.k2, a), periodicPotential: periodicPotentialFromContrast(field.grid, fast.work(1), meanDensity(field.psi), a) };
+    const measured = fieldStats(field, fast, known);
+    expect(Math.abs(measured.kineticMsunKm2S2 / reference.kineticMsunKm2S2 - 1)).toBeLessThan(1e-12);
+    expect(Math.abs(measured.potentialMsunKm2S2 / reference.potentialMsunKm2S2 - 1)).toBeLessThan(1e-12);
+    expect({ ...measured, kineticMsunKm2S2: 0, potentialMsunKm2S2: 0, totalMsunKm2S2: 0, virialRatio: 0 }).toEqual({ ...reference, kineticMsunKm2S2: 0, potentialMsunKm2S2: 0, totalMsunKm2S2: 0, virialRatio: 0 });
   });
 });
