@@ -49,6 +49,8 @@ export interface ThreadPoolOptions {
   readonly startSeconds?: number;
   /** Seconds a worker may take to pick up a posted range. @default 30 */
   readonly answerSeconds?: number;
+  /** Return from the constructor at once and wait for the workers to start at the first pass (they start while the caller does other work). @default false */
+  readonly deferStart?: boolean;
 }
 
 /** Milliseconds of one slice of a wait, between liveness checks. */
@@ -95,6 +97,8 @@ export class ThreadPool {
   private isClosed = false;
   /** The first failure seen; every later call throws it again. */
   private broken: ThreadError | undefined;
+  /** Milliseconds the workers may take to start, until they have (then undefined). */
+  private startLimitMs: number | undefined;
 
   /** @param size threads in all (at least 2): the main thread and size − 1 workers */
   constructor(size: number, step: StepSetup, options: ThreadPoolOptions = {}) {
@@ -109,8 +113,16 @@ export class ThreadPool {
     const script = options.script ?? defaultWorkerScript();
     if (!fs.existsSync(script)) throw new ThreadError(`the worker thread script ${script} is missing (is psibox built? run npm run build)`);
     this.workers = Array.from({ length: size - 1 }, (_, i) => this.startWorker(script, { step, slot: i + 1, results, control, messages: this.messages }));
+    this.startLimitMs = 1000 * (options.startSeconds ?? 60);
+    if (!options.deferStart) this.started();
+  }
+
+  /** Wait for the workers to start, once (closing the pool if one fails to). */
+  private started(): void {
+    if (this.startLimitMs === undefined) return;
     try {
-      this.awaitStart(1000 * (options.startSeconds ?? 60));
+      this.awaitStart(this.startLimitMs);
+      this.startLimitMs = undefined;
     } catch (e) {
       this.close();
       throw e;
@@ -174,6 +186,7 @@ export class ThreadPool {
    */
   run(count: number, task: StepTask, out: Float64Array): void {
     if (this.isClosed) throw new Error("the thread pool is closed");
+    this.started();
     this.checkAlive();
     clearResults(this.results, this.size);
     const ranges = Array.from({ length: this.size }, (_, i) => [Math.floor((i * count) / this.size), Math.floor(((i + 1) * count) / this.size)] as const);

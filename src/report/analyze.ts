@@ -12,7 +12,7 @@ import { checkOneRun } from "../io/run-identity.js";
 import { RunTracks } from "./halo-track-table.js";
 import { haloFigures } from "./halo-plots.js";
 import { writeFileAtomic } from "../io/atomic.js";
-import { loadField, type LoadedField } from "../simulation/from-snapshot.js";
+import { loadField, snapshotGrid, type LoadedField } from "../simulation/from-snapshot.js";
 import { M_SUN_KG, PC_M } from "../physics/constants.js";
 import { snapshotTables } from "./snapshot-tables.js";
 import { checkHaloRequest, haloTables } from "./halo-tables.js";
@@ -46,7 +46,8 @@ export class AnalysisTransforms {
   of(grid: Grid): PooledTransforms {
     if (this.current && this.current.shape.every((n, i) => n === grid.shape[i])) return this.current;
     this.close();
-    this.current = new PooledTransforms(grid, 2, { threads: defaultThreads(grid.cells) });
+    // the worker threads start while the caller goes on (reading the snapshot): the first transform waits for them
+    this.current = new PooledTransforms(grid, 2, { threads: defaultThreads(grid.cells), pool: { deferStart: true } });
     return this.current;
   }
 
@@ -96,25 +97,21 @@ interface Measured {
 }
 
 /** The tables and the field diagnostics of a snapshot, yielding between them to the figures being drawn; the P(k) figure is started as soon as P(k) is known. */
-async function measure(file: string, snap: Snapshot, field: LoadedField, outDir: string, request: DiagnosticRequest, chosen: Set<FieldDiagnostic>, withPictures: boolean, transforms: AnalysisTransforms | undefined, tracks: RunTracks | undefined): Promise<Measured> {
-  const own = transforms ?? new AnalysisTransforms();
-  try {
-    const fft = own.of(field.grid);
-    // the energy split's transforms give the tables' kinetic split too
-    const both = chosen.has("energy-split") ? energyAndKineticSplit(field.grid, field.psi, field.scaleFactor, fft) : undefined;
-    await tick();
-    const { summary, power } = snapshotTables(file, snap, field, outDir, fft, both?.kinetic);
-    const powerFigure = withPictures ? later(powerFigureOf(file, snap, field, power)) : undefined;
-    await tick();
-    summary["halos"] = haloTables(file, snap, field, outDir, request.halos ?? { definition: "200m" }, tracks, fft.work(0));
-    const species = speciesSummary(snap, field, outDir);
-    if (species) summary["species"] = species;
-    await tick();
-    const diagnostics = fieldDiagnostics(field, chosen, outDir, fft, request.husimiWindowKpc, request.husimiPointsKpc, both?.split);
-    return { summary, diagnostics, ...(powerFigure ? { powerFigure } : {}) };
-  } finally {
-    if (!transforms) own.close();
-  }
+async function measure(file: string, snap: Snapshot, field: LoadedField, outDir: string, request: DiagnosticRequest, chosen: Set<FieldDiagnostic>, withPictures: boolean, transforms: AnalysisTransforms, tracks: RunTracks | undefined): Promise<Measured> {
+  const fft = transforms.of(field.grid);
+  // the energy split's transforms give the tables' kinetic split too
+  const both = chosen.has("energy-split") ? energyAndKineticSplit(field.grid, field.psi, field.scaleFactor, fft) : undefined;
+  await tick();
+  const { summary, power } = snapshotTables(file, snap, field, outDir, fft, both);
+  const powerFigure = withPictures ? later(powerFigureOf(file, snap, field, power)) : undefined;
+  await tick();
+  summary["halos"] = haloTables(file, snap, field, outDir, request.halos ?? { definition: "200m" }, tracks, fft.work(0));
+  const species = speciesSummary(snap, field, outDir);
+  if (species) summary["species"] = species;
+  await tick();
+  // the tables left δ's spectrum in work grid 1 (the halos and peaks use work grid 0)
+  const diagnostics = fieldDiagnostics(field, chosen, outDir, fft, request.husimiWindowKpc, request.husimiPointsKpc, both?.split, { contrastSpectrum: fft.work(1), ...(both ? { moments: both.moments } : {}) });
+  return { summary, diagnostics, ...(powerFigure ? { powerFigure } : {}) };
 }
 
 /** The P(k) figure, with the linear prediction of a cosmological run. */
@@ -135,8 +132,19 @@ export async function analyzeSnapshot(
   transforms?: AnalysisTransforms,
   tracks?: RunTracks,
 ): Promise<SnapshotAnalysis> {
-  // fontconfig answers and the figure workers start while the snapshot is read
+  const own = transforms ?? new AnalysisTransforms();
+  try {
+    return await analyzeWith(file, outDir, withPictures, request, pictures, own, tracks);
+  } finally {
+    if (!transforms) own.close();
+  }
+}
+
+/** analyzeSnapshot on the given transforms. */
+async function analyzeWith(file: string, outDir: string, withPictures: boolean, request: DiagnosticRequest, pictures: PictureOptions, transforms: AnalysisTransforms, tracks: RunTracks | undefined): Promise<SnapshotAnalysis> {
+  // fontconfig answers, the figure workers and the transforms' threads start while the snapshot is read
   if (withPictures) prepareFigures();
+  transforms.of(snapshotGrid(readSnapshotMeta(file)));
   const snap = readSnapshot(file);
   const chosen = checkDiagnostics(request, snap.meta.cells.length, snap.meta.boxSizeKpc, snap.meta.cells, file);
   if (withPictures) checkSliceIndex(pictures, snap.meta.cells, file);

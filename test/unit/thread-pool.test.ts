@@ -61,6 +61,25 @@ describe("a thread pool whose workers fail", () => {
     expect(r.ms).toBeLessThan(15_000);
   });
 
+  it("with deferStart the constructor returns at once and the first pass stops with the message of a script that throws while loading", () => {
+    const broken = path.join(work, "broken-later.mjs");
+    fs.writeFileSync(broken, 'throw new Error("broken on purpose, later");\n');
+    const pool = new ThreadPool(2, setup(), { script: broken, startSeconds: 20, deferStart: true });
+    expect(pool.closed).toBe(false);
+    expect(() => pool.run(2, GOOD, out)).toThrow(/^worker thread 1 did not start: broken on purpose, later$/);
+    expect(pool.closed).toBe(true);
+  });
+
+  it("with deferStart a sound pool runs its passes as one started at once", () => {
+    const pool = new ThreadPool(2, setup(), { deferStart: true });
+    try {
+      pool.run(2, GOOD, out);
+      pool.run(2, GOOD, out);
+    } finally {
+      pool.close();
+    }
+  });
+
   it("passes a worker's exception to the main thread, and keeps failing after it", () => {
     const pool = new ThreadPool(2, setup());
     try {
