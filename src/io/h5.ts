@@ -5,8 +5,7 @@
  * reduced to their last line for messages.
  */
 import fs from "node:fs";
-import path from "node:path";
-import { fsyncFolder, fsyncPath, temporaryPathFor } from "./atomic.js";
+import { commitAtomic, temporaryPathFor } from "./atomic.js";
 import h5wasm, { Dataset, Group, Module as loadedModule, type File as H5File, type FileOptions } from "h5wasm/node";
 import { InputError } from "../core/errors.js";
 import { writeFailure } from "./write-failure.js";
@@ -43,7 +42,8 @@ export function hdf5Reason(e: unknown): string {
 
 /**
  * Write an HDF5 file atomically: build it as a hidden temporary file in the
- * target folder, close, fsync, rename over the target, fsync the folder.
+ * target folder, close, fsync, rename over the target, fsync the folder (at
+ * the end of the writeTogether it is part of, if any).
  * `options.track_order` keeps objects and attributes in creation order. Call loadHdf5() first.
  */
 export function writeHdf5Atomic(finalPath: string, fill: (file: H5File) => void, options: FileOptions = {}): void {
@@ -55,9 +55,6 @@ export function writeHdf5Atomic(finalPath: string, fill: (file: H5File) => void,
     const status = file.close();
     file = undefined;
     if (status < 0) throw new Error("closing the file failed");
-    fsyncPath(tmp);
-    fs.renameSync(tmp, finalPath);
-    fsyncFolder(path.dirname(path.resolve(finalPath)));
   } catch (e) {
     if (file) {
       try {
@@ -73,6 +70,7 @@ export function writeHdf5Atomic(finalPath: string, fill: (file: H5File) => void,
     }
     throw writeFailure(finalPath, e, hdf5Reason(e));
   }
+  commitAtomic(tmp, finalPath);
 }
 
 /** Open an HDF5 file for reading; a missing, truncated or non-HDF5 file is an InputError naming it. */

@@ -11,7 +11,7 @@ import { readSnapshot, readSnapshotMeta, type Snapshot } from "../io/snapshot.js
 import { checkOneRun } from "../io/run-identity.js";
 import { RunTracks } from "./halo-track-table.js";
 import { haloFigures } from "./halo-plots.js";
-import { writeFileAtomic } from "../io/atomic.js";
+import { writeFileAtomic, writeTogether } from "../io/atomic.js";
 import { loadField, snapshotGrid, type LoadedField } from "../simulation/from-snapshot.js";
 import { M_SUN_KG, PC_M } from "../physics/constants.js";
 import { snapshotTables } from "./snapshot-tables.js";
@@ -122,8 +122,16 @@ function powerFigureOf(file: string, snap: Snapshot, field: LoadedField, power: 
   return powerPlot(power.filter((b) => b.P > 1e-12 * maxP), linearPrediction(file, field), "k [1/kpc]", `P(k) [kpc${["", "", "²", "³"][d]}]`, "Density power spectrum", timeCaption(snap));
 }
 
-/** Analyse one snapshot into `outDir` (created), with the field diagnostics of `request` and pictures drawn as `pictures` says. */
-export async function analyzeSnapshot(
+/**
+ * Analyse one snapshot into `outDir` (created), with the field diagnostics of `request` and pictures drawn as
+ * `pictures` says. Its files are made durable together at the end (writeTogether: one round of fsyncs on the
+ * thread pool instead of one per file on the main thread).
+ */
+export function analyzeSnapshot(...args: Parameters<typeof analyzeSnapshotFiles>): Promise<SnapshotAnalysis> {
+  return writeTogether(() => analyzeSnapshotFiles(...args));
+}
+
+async function analyzeSnapshotFiles(
   file: string,
   outDir: string,
   withPictures = true,
