@@ -753,7 +753,7 @@ const LARGE_ANGLE: f64 = 1.0e5;
 // 128-bit constant from immediates inside the loop.
 const CONSTANTS: usize = <usize>CONSTANTS_ADDRESS;
 /** Bytes at CONSTANTS the layout must leave free. */
-export const CONSTANTS_BYTES: i32 = 22 * 16;
+export const CONSTANTS_BYTES: i32 = 18 * 16;
 const K_INV_PIO2: usize = 0;
 const K_PIO2_1: usize = 16;
 const K_PIO2_2: usize = 32;
@@ -761,10 +761,7 @@ const K_PIO2_3: usize = 48;
 const K_S: usize = 64; // S1 … S6 at 64 … 144
 const K_C: usize = 160; // C1 … C6 at 160 … 240
 const K_HALF: usize = 256;
-const K_TWO: usize = 272;
-const K_ONE: usize = 288;
-const K_SIGN: usize = 304;
-const K_CONJ_RE: usize = 320; // (−1, 1)
+const K_ONE: usize = 272;
 
 /** Write the constants table (call once per memory, before any kick). */
 export function initConstants(): void {
@@ -785,10 +782,7 @@ export function initConstants(): void {
   put(K_C + 64, C5);
   put(K_C + 80, C6);
   put(K_HALF, 0.5);
-  put(K_TWO, 2.0);
   put(K_ONE, 1.0);
-  put(K_SIGN, -0.0);
-  v128.store(CONSTANTS + K_CONJ_RE, f64x2(-1.0, 1.0));
 }
 
 @inline function put(at: usize, x: f64): void {
@@ -830,25 +824,25 @@ export function initConstants(): void {
     const hz = f64x2.mul(half, z);
     const w = f64x2.sub(one, hz);
     const cr = f64x2.add(w, f64x2.add(f64x2.sub(f64x2.sub(one, w), hz), f64x2.mul(z2, pc)));
-    // quadrant k mod 4 from the float k: odd k swaps sin and cos; bit 1 of k (of k + 1) negates sin (cos)
-    const two = kc(K_TWO);
-    const h = f64x2.floor(f64x2.mul(k, half));
-    const odd = f64x2.ne(f64x2.mul(h, two), k);
-    const sinNeg = f64x2.ne(f64x2.mul(f64x2.floor(f64x2.mul(h, half)), two), h);
-    const h1 = f64x2.floor(f64x2.mul(f64x2.add(k, one), half));
-    const cosNeg = f64x2.ne(f64x2.mul(f64x2.floor(f64x2.mul(h1, half)), two), h1);
-    const sign = kc(K_SIGN);
-    s = v128.xor(v128.bitselect(cr, sr, odd), v128.and(sinNeg, sign));
-    c = v128.xor(v128.bitselect(sr, cr, odd), v128.and(cosNeg, sign));
+    // quadrant k mod 4 from k as an integer (|k| < 2^17 here): odd k swaps sin and cos; bit 1 of k (of k + 1)
+    // is the sign of sin (cos), shifted to the sign bit
+    const ki = i64x2.extend_low_i32x4_s(i32x4.trunc_sat_f64x2_s_zero(k));
+    const unit = i64x2.splat(1);
+    const bit1 = i64x2.splat(2);
+    const odd = i64x2.neg(v128.and(ki, unit));
+    s = v128.xor(v128.bitselect(cr, sr, odd), i64x2.shl(v128.and(ki, bit1), 62));
+    c = v128.xor(v128.bitselect(sr, cr, odd), i64x2.shl(v128.and(i64x2.add(ki, unit), bit1), 62));
   }
+  // the two cells as (re₀, re₁) and (im₀, im₁): re' = re·c − im·s, im' = im·c + re·s (the products and sums of a
+  // complex multiplication by c + is, so the same numbers as multiplying each cell alone)
   const x0 = v128.load(p);
   const x1 = v128.load(p, 16);
-  const c0 = v128.shuffle<f64>(c, c, 0, 0);
-  const c1 = v128.shuffle<f64>(c, c, 1, 1);
-  const s0 = f64x2.mul(v128.shuffle<f64>(s, s, 0, 0), kc(K_CONJ_RE));
-  const s1 = f64x2.mul(v128.shuffle<f64>(s, s, 1, 1), kc(K_CONJ_RE));
-  v128.store(p, cmul(x0, c0, s0));
-  v128.store(p, cmul(x1, c1, s1), 16);
+  const re = v128.shuffle<f64>(x0, x1, 0, 2);
+  const im = v128.shuffle<f64>(x0, x1, 1, 3);
+  const re2 = f64x2.sub(f64x2.mul(re, c), f64x2.mul(im, s));
+  const im2 = f64x2.add(f64x2.mul(im, c), f64x2.mul(re, s));
+  v128.store(p, v128.shuffle<f64>(re2, im2, 0, 2));
+  v128.store(p, v128.shuffle<f64>(re2, im2, 1, 3), 16);
 }
 
 /**
