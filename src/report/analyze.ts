@@ -24,7 +24,7 @@ import type { DensityPlane } from "./planes.js";
 import { prepareFigures, type Figure } from "./render.js";
 import { checkDiagnostics, type DiagnosticRequest, type FieldDiagnostic } from "./diagnostic-options.js";
 import { fieldDiagnostics, physicalScales } from "./field-diagnostics.js";
-import { diagnosticFigures } from "./diagnostic-plots.js";
+import { diagnosticFigures, splitFigures } from "./diagnostic-plots.js";
 import { PooledTransforms } from "../integrators/pooled-transforms.js";
 import { defaultThreads } from "../config/resolve-output.js";
 import type { Grid } from "../grid/grid.js";
@@ -94,13 +94,17 @@ interface Measured {
   readonly summary: Record<string, unknown>;
   readonly diagnostics: ReturnType<typeof fieldDiagnostics>;
   readonly powerFigure?: Promise<Figure>;
+  /** The energy split's figures, started as soon as it is measured. */
+  readonly splitFigures?: Record<string, Promise<Figure>>;
 }
 
-/** The tables and the field diagnostics of a snapshot, yielding between them to the figures being drawn; the P(k) figure is started as soon as P(k) is known. */
+/** The tables and the field diagnostics of a snapshot, yielding between them to the figures being drawn; the energy split's and P(k)'s figures are started as soon as they are known. */
 async function measure(file: string, snap: Snapshot, field: LoadedField, outDir: string, request: DiagnosticRequest, chosen: Set<FieldDiagnostic>, withPictures: boolean, transforms: AnalysisTransforms, tracks: RunTracks | undefined): Promise<Measured> {
   const fft = transforms.of(field.grid);
   // the energy split's transforms give the tables' kinetic split too
   const both = chosen.has("energy-split") ? energyAndKineticSplit(field.grid, field.psi, field.scaleFactor, fft) : undefined;
+  const split = withPictures && both ? splitFigures(field, both.split, physicalScales(field), timeCaption(snap)) : undefined;
+  if (split) Object.values(split).forEach(later);
   await tick();
   const { summary, power } = snapshotTables(file, snap, field, outDir, fft, both);
   const powerFigure = withPictures ? later(powerFigureOf(file, snap, field, power)) : undefined;
@@ -111,7 +115,7 @@ async function measure(file: string, snap: Snapshot, field: LoadedField, outDir:
   await tick();
   // the tables left δ's spectrum in work grid 1 (the halos and peaks use work grid 0)
   const diagnostics = fieldDiagnostics(field, chosen, outDir, fft, request.husimiWindowKpc, request.husimiPointsKpc, both?.split, { contrastSpectrum: fft.work(1), ...(both ? { moments: both.moments } : {}) });
-  return { summary, diagnostics, ...(powerFigure ? { powerFigure } : {}) };
+  return { summary, diagnostics, ...(powerFigure ? { powerFigure } : {}), ...(split ? { splitFigures: split } : {}) };
 }
 
 /** The P(k) figure, with the linear prediction of a cosmological run. */
@@ -163,14 +167,14 @@ async function analyzeWith(file: string, outDir: string, withPictures: boolean, 
   const { kpcPerCode, densityUnit } = units(field);
   // the density pictures need ψ alone: drawn while the numbers are computed
   const density = withPictures ? later(snapshotPictures(snap, field, kpcPerCode, densityUnit, pictures)) : undefined;
-  const { summary, diagnostics, powerFigure } = await measure(file, snap, field, outDir, request, chosen, withPictures, transforms, tracks);
+  const { summary, diagnostics, powerFigure, splitFigures: split } = await measure(file, snap, field, outDir, request, chosen, withPictures, transforms, tracks);
   Object.assign(summary, diagnostics.summary);
   writeFileAtomic(path.join(outDir, "summary.json"), JSON.stringify(summary, null, 2) + "\n");
   const figures: Record<string, Figure> = {};
   const planes: SnapshotAnalysis["planes"] = {};
   if (density && powerFigure) {
     // drawn together: they share the figure workers
-    const [pics, power, diagnostic] = await Promise.all([density, powerFigure, diagnosticFigures(field, diagnostics, physicalScales(field), timeCaption(snap))]);
+    const [pics, power, diagnostic] = await Promise.all([density, powerFigure, diagnosticFigures(field, diagnostics, physicalScales(field), timeCaption(snap), split)]);
     figures["slice"] = pics.slice;
     if (pics.projection) figures["projection"] = pics.projection;
     if (pics.slicePlane) planes.slice = pics.slicePlane;

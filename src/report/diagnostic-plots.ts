@@ -116,17 +116,22 @@ function speedPlot(points: NonNullable<FieldDiagnosticsResult["husimiPoints"]>, 
   } as TopLevelSpec);
 }
 
-/** Every picture of the field diagnostics, keyed by file name (without .png). */
-export async function diagnosticFigures(field: LoadedField, r: FieldDiagnosticsResult, s: PhysicalScales, caption: string): Promise<Record<string, Figure>> {
-  const figures: Record<string, Promise<Figure>> = {};
+/** The energy split's pictures (energy-spectra, velocity-power): started as soon as the split is measured, before the other diagnostics. */
+export function splitFigures(field: LoadedField, split: NonNullable<FieldDiagnosticsResult["split"]>, s: PhysicalScales, caption: string): Record<string, Promise<Figure>> {
+  const d = field.grid.dims;
+  const vp = split.spectra.map((b) => ({ k: b.k / s.kpc, P: b.velocityPower * s.kms * s.kms * s.kpc ** d }));
+  const peak = Math.max(...vp.map((b) => b.P));
+  return {
+    "energy-spectra": energySpectraPlot(split, s, `kinetic energy spectra, ${caption}`),
+    "velocity-power": powerPlot(vp.filter((b) => b.P > 1e-12 * peak), undefined, "k [1/kpc]", `P_u(k) [(km/s)² kpc${d === 1 ? "" : d === 2 ? "²" : "³"}]`, `power of √(ρ/ρ̄) v, ${caption}`),
+  };
+}
+
+/** Every picture of the field diagnostics, keyed by file name (without .png); `started` holds those begun already (`splitFigures`). */
+export async function diagnosticFigures(field: LoadedField, r: FieldDiagnosticsResult, s: PhysicalScales, caption: string, started: Record<string, Promise<Figure>> = {}): Promise<Record<string, Figure>> {
   const box = field.grid.lengths.map((l) => l * s.kpc);
   const d = field.grid.dims;
-  if (r.split) {
-    figures["energy-spectra"] = energySpectraPlot(r.split, s, `kinetic energy spectra, ${caption}`);
-    const vp = r.split.spectra.map((b) => ({ k: b.k / s.kpc, P: b.velocityPower * s.kms * s.kms * s.kpc ** d }));
-    const peak = Math.max(...vp.map((b) => b.P));
-    figures["velocity-power"] = powerPlot(vp.filter((b) => b.P > 1e-12 * peak), undefined, "k [1/kpc]", `P_u(k) [(km/s)² kpc${d === 1 ? "" : d === 2 ? "²" : "³"}]`, `power of √(ρ/ρ̄) v, ${caption}`);
-  }
+  const figures: Record<string, Promise<Figure>> = { ...(r.split && !started["energy-spectra"] ? splitFigures(field, r.split, s, caption) : {}), ...started };
   if (r.vortices && d === 2) {
     const pts = r.vortices.points.map((p) => ({ x: p.position[0]! * s.kpc, y: p.position[1]! * s.kpc, charge: p.charge > 0 ? "+1" : "−1" }));
     figures["vortices"] = vortexScatter(pts, box, `${r.vortices.positive + r.vortices.negative} vortices, ${caption}`);

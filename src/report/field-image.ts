@@ -6,12 +6,11 @@
  * data) are drawn light grey.
  */
 import type * as vega from "vega";
-import { encodePng } from "./png.js";
+import { blockPng, encodePng } from "./png.js";
 import { colourTable, type ColourMap } from "./colormaps.js";
-import { renderVega, STYLE, PNG_SCALE, type Figure } from "./render.js";
+import { rasterise, vegaSvg, STYLE, PNG_SCALE, type Figure } from "./render.js";
 import type { Plane } from "./planes.js";
-
-const GAP = [225, 225, 225];
+import { RASTER_MARKER } from "./figure-draw.js";
 
 /** The colour range of a picture: `fixed` if given, else [max − decades, max] (or the data's own range if narrower). */
 export function colourRange(values: Float64Array, decades: number, fixed?: readonly [number, number]): [number, number] {
@@ -28,36 +27,47 @@ export function colourRange(values: Float64Array, decades: number, fixed?: reado
   return hi > lo ? [lo, hi] : [lo - 0.5, hi + 0.5];
 }
 
-/** The raster: each cell a block of `zoom` × `zoom` pixels (nearest neighbour), top row = largest vertical coordinate. */
-export async function planePng(plane: Plane, lo: number, hi: number, map: ColourMap, zoom = 1): Promise<Buffer> {
+/** The colour of a cell without data. */
+const GAP = [225, 225, 225] as const;
+
+/** Each cell's RGB, row by row from the top (the largest vertical coordinate), x fastest. */
+export function cellColours(plane: Plane, lo: number, hi: number, map: ColourMap): Uint8Array {
   const lut = colourTable(map);
-  const W = plane.nx * zoom;
-  const H = plane.ny * zoom;
-  const px = new Uint8Array(3 * W * H);
+  const out = new Uint8Array(3 * plane.nx * plane.ny);
   for (let y = 0; y < plane.ny; y++) {
-    // the first pixel row of plane row y, then copied to the block's other rows
-    const top = 3 * (plane.ny - 1 - y) * zoom * W;
-    for (let x = 0; x < plane.nx; x++) {
+    let o = 3 * (plane.ny - 1 - y) * plane.nx;
+    for (let x = 0; x < plane.nx; x++, o += 3) {
       const v = plane.values[y * plane.nx + x]!;
-      const c = Number.isNaN(v) ? -1 : Math.round(255 * Math.min(1, Math.max(0, (v - lo) / (hi - lo))));
-      const [r, g, b] = c < 0 ? GAP : [lut[3 * c]!, lut[3 * c + 1]!, lut[3 * c + 2]!];
-      for (let o = top + 3 * x * zoom, end = o + 3 * zoom; o < end; o += 3) {
-        px[o] = r!;
-        px[o + 1] = g!;
-        px[o + 2] = b!;
+      if (Number.isNaN(v)) {
+        out.set(GAP, o);
+        continue;
       }
+      const c = 3 * Math.round(255 * Math.min(1, Math.max(0, (v - lo) / (hi - lo))));
+      out[o] = lut[c]!;
+      out[o + 1] = lut[c + 1]!;
+      out[o + 2] = lut[c + 2]!;
     }
-    for (let r = 1; r < zoom; r++) px.copyWithin(top + 3 * r * W, top, top + 3 * W);
   }
-  return encodePng(px, W, H, 3);
+  return out;
 }
 
-/** A vertical colour-bar raster (bottom: lowest value). */
-function colourBarPng(map: ColourMap): Promise<Buffer> {
+/** The raster as the SVG embeds it: each cell a block of `zoom` × `zoom` pixels (nearest neighbour), top row = largest vertical coordinate. */
+export function planePng(plane: Plane, lo: number, hi: number, map: ColourMap, zoom = 1): Buffer {
+  return blockPng(cellColours(plane, lo, hi, map), plane.nx, plane.ny, zoom);
+}
+
+const bars = new Map<ColourMap, Buffer>();
+
+/** A vertical colour-bar raster (bottom: lowest value), made once per colour map. */
+function colourBarPng(map: ColourMap): Buffer {
+  const made = bars.get(map);
+  if (made) return made;
   const lut = colourTable(map);
   const px = new Uint8Array(3 * 256);
   for (let row = 0; row < 256; row++) px.set(lut.subarray(3 * (255 - row), 3 * (256 - row)), 3 * row);
-  return encodePng(px, 1, 256, 3);
+  const png = encodePng(px, 1, 256, 3);
+  bars.set(map, png);
+  return png;
 }
 
 export interface FieldFigureOptions {
@@ -80,7 +90,10 @@ const TICKS = { tickCount: 5, labelOverlap: true, encode: { labels: { update: { 
 
 const dataUri = (png: Buffer) => `data:image/png;base64,${png.toString("base64")}`;
 
-/** Render a framed picture of a plane. */
+/**
+ * Render a framed picture of a plane: the figure workers put the cells under the frame and embed them in
+ * the SVG as a PNG of whole pixel blocks (figure-draw.ts); the SVG built here carries a placeholder.
+ */
 export async function fieldFigure(plane: Plane, opts: FieldFigureOptions): Promise<Figure> {
   const [lo, hi] = opts.range;
   const side = opts.size ?? 250;
@@ -88,7 +101,6 @@ export async function fieldFigure(plane: Plane, opts: FieldFigureOptions): Promi
   const w = aspect <= 1 ? side : Math.max(80, Math.round(side / aspect));
   const h = aspect >= 1 ? side : Math.max(80, Math.round(side * aspect));
   const zoom = Math.max(1, Math.ceil((w * PNG_SCALE) / plane.nx), Math.ceil((h * PNG_SCALE) / plane.ny));
-  const [raster, bar] = await Promise.all([planePng(plane, lo, hi, opts.colourMap, Math.min(zoom, 64)), colourBarPng(opts.colourMap)]);
   const image = (url: string, width: vega.SignalRef | number, height: number): vega.Mark => ({
     type: "image",
     encode: { enter: { x: { value: 0 }, y: { value: 0 }, width: typeof width === "number" ? { value: width } : width, height: { value: height }, url: { value: url }, aspect: { value: false }, smooth: { value: false } } },
@@ -107,19 +119,23 @@ export async function fieldFigure(plane: Plane, opts: FieldFigureOptions): Promi
     ],
     axes: [
       { orient: "bottom", scale: "x", title: opts.xTitle, ...TICKS },
-      { orient: "left", scale: "y", title: opts.yTitle, ...TICKS },
+      // no domain line: Vega draws it half a unit inside the image, where the image hid it, and the
+      // figure workers put the cells under everything the SVG draws
+      { orient: "left", scale: "y", title: opts.yTitle, domain: false, ...TICKS },
     ],
     marks: [
-      image(dataUri(raster), w, h),
+      image(RASTER_MARKER, w, h),
       { type: "rect", encode: { enter: { x: { value: 0 }, y: { value: 0 }, width: { value: w }, height: { value: h }, fill: { value: "transparent" }, stroke: { value: "#333" } } } },
       {
         type: "group",
         encode: { enter: { x: { value: w + 14 }, y: { value: 0 }, width: { value: 12 }, height: { value: h } } },
         scales: [{ name: "bar", type: "linear", domain: [lo, hi], range: [h, 0], zero: false, nice: false }],
         axes: [{ orient: "right", scale: "bar", title: opts.legend, titleAngle: 90, titleBaseline: "bottom", titlePadding: 8, ...TICKS }],
-        marks: [image(dataUri(bar), 12, h)],
+        marks: [image(dataUri(colourBarPng(opts.colourMap)), 12, h)],
       },
     ],
   };
-  return renderVega(spec);
+  const { svg, origin } = await vegaSvg(spec);
+  const colours = cellColours(plane, lo, hi, opts.colourMap);
+  return rasterise(svg, PNG_SCALE, { x: origin[0], y: origin[1], width: w, height: h, nx: plane.nx, ny: plane.ny, colours, zoom: Math.min(zoom, 64) });
 }

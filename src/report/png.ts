@@ -1,15 +1,15 @@
 /**
  * PNG encoding of 8-bit RGB or RGBA pixels (W3C PNG specification, 2nd
- * edition), for the rasters that figures embed (a density plane enlarged
- * to whole pixel blocks, a colour bar): the scanlines filtered by "Up"
- * (each byte minus the one above it, so the repeated rows of an enlarged
- * raster become runs of zeros), then deflated by zlib on libuv's thread
- * pool while the main thread goes on.
+ * edition), deflated by zlib where it is called: the rasters that figures
+ * embed (a density plane enlarged to whole pixel blocks, a colour bar),
+ * their scanlines filtered by "Up" (each byte minus the one above it, so
+ * the repeated rows of an enlarged raster become runs of zeros), and the
+ * figures themselves from scanlines laid out by the caller (figure-draw.ts).
  */
 import zlib from "node:zlib";
-import { promisify } from "node:util";
 
-const deflate = promisify(zlib.deflate);
+/** zlib's level for the figures' PNGs: a third of the default level's time, files about a sixth larger. */
+export const FIGURE_LEVEL = 2;
 
 const SIGNATURE = Buffer.from([137, 80, 78, 71, 13, 10, 26, 10]);
 
@@ -52,14 +52,49 @@ function upFiltered(pixels: Uint8Array, line: number, height: number): Buffer {
   return out;
 }
 
-/** A PNG of 8-bit pixels (RGB with 3 channels, RGBA with 4), row by row from the top; compressed on the thread pool. */
-export async function encodePng(pixels: Uint8Array, width: number, height: number, channels: 3 | 4): Promise<Buffer> {
-  if (pixels.length !== channels * width * height) throw new RangeError(`${pixels.length} bytes are not ${width} × ${height} pixels of ${channels} channels`);
+function checkSize(bytes: number, width: number, height: number, channels: 3 | 4): void {
+  if (bytes !== channels * width * height) throw new RangeError(`${bytes} bytes are not ${width} × ${height} pixels of ${channels} channels`);
+}
+
+/** The file around deflated scanlines: signature, IHDR (8-bit RGB or RGBA), IDAT, IEND. */
+function assemble(data: Uint8Array, width: number, height: number, channels: 3 | 4): Buffer {
   const header = Buffer.alloc(13);
   header.writeUInt32BE(width, 0);
   header.writeUInt32BE(height, 4);
   header[8] = 8; // bits per sample
   header[9] = channels === 3 ? 2 : 6; // colour type: truecolour, or truecolour with alpha
-  const data = await deflate(upFiltered(pixels, width * channels, height));
   return Buffer.concat([SIGNATURE, chunk("IHDR", header), chunk("IDAT", data), chunk("IEND", new Uint8Array(0))]);
+}
+
+/** A PNG of 8-bit pixels (RGB with 3 channels, RGBA with 4), row by row from the top, at zlib's default level. */
+export function encodePng(pixels: Uint8Array, width: number, height: number, channels: 3 | 4): Buffer {
+  checkSize(pixels.length, width, height, channels);
+  return pngFile(upFiltered(pixels, width * channels, height), width, height, channels);
+}
+
+/** A PNG of scanlines filtered already (each row: its filter byte, then the row), compressed here at zlib `level` (default: zlib's). */
+export function pngFile(filtered: Uint8Array, width: number, height: number, channels: 3 | 4, level?: number): Buffer {
+  checkSize(filtered.length - height, width, height, channels);
+  return assemble(zlib.deflateSync(filtered, level === undefined ? {} : { level }), width, height, channels);
+}
+
+/**
+ * The cells as a PNG of zoom × zoom pixel blocks. Its scanlines are Up-filtered as `encodePng` filters
+ * the enlarged pixels (the same file, byte for byte), written here without enlarging first: a block's
+ * first row holds its cells minus the cells above, its other rows are zeros.
+ */
+export function blockPng(colours: Uint8Array, nx: number, ny: number, zoom: number): Buffer {
+  const line = 3 * nx * zoom;
+  const filtered = new Uint8Array((line + 1) * ny * zoom);
+  for (let y = 0; y < ny; y++) {
+    const first = (line + 1) * y * zoom;
+    for (let r = 0; r < zoom; r++) filtered[first + r * (line + 1)] = 2;
+    for (let x = 0; x < nx; x++)
+      for (let c = 0; c < 3; c++) {
+        const i = 3 * (y * nx + x) + c;
+        const up = (colours[i]! - (y > 0 ? colours[i - 3 * nx]! : 0)) & 255;
+        for (let o = first + 1 + 3 * x * zoom + c, end = o + 3 * zoom; o < end; o += 3) filtered[o] = up;
+      }
+  }
+  return pngFile(filtered, nx * zoom, ny * zoom, 3);
 }

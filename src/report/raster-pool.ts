@@ -1,39 +1,43 @@
 /**
- * Rasterising SVG to PNG on worker threads: each worker draws with resvg
- * and encodes the PNG itself, so neither step holds the main thread (resvg's
- * asynchronous render runs on libuv's pool, but its PNG encoder runs where it
- * is called, and a 3× figure is several megabytes of pixels). Two workers
- * (one on a single core; each costs memory, and the main thread building the
- * SVGs keeps no more than two busy), started on first use (or early, by
- * `prepareFigures` in render.ts); idle workers do not keep the process alive. If a worker cannot be started
- * the caller falls back to drawing on this thread (`null` from `rasterPool`).
+ * Drawing figures on worker threads (raster-worker.ts, figure-draw.ts):
+ * each worker rasterises with resvg, puts a plane picture's cells in and
+ * encodes the PNG itself, so none of it holds the main thread (a 3× figure
+ * is several megabytes of pixels). Two workers (one on a single core; each
+ * costs memory, and the main thread building the SVGs keeps no more than
+ * two busy), started on first use (or early, by `prepareFigures` in
+ * render.ts); idle workers do not keep the process alive. If a worker
+ * cannot be started the caller falls back to drawing on this thread (`null`
+ * from `rasterPool`).
  */
 import os from "node:os";
-import { createRequire } from "node:module";
+import path from "node:path";
+import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
-import type { ResvgRenderOptions } from "@resvg/resvg-js";
+import type { FigureJob } from "./figure-draw.js";
 
-/** A drawn picture: the PNG file's bytes and its size in pixels. */
+/** A drawn figure: the SVG file's text, the PNG file's bytes and its size in pixels. */
 export interface Raster {
+  readonly svg: string;
   readonly png: Buffer;
   readonly width: number;
   readonly height: number;
 }
 
-// the worker: draw, encode, and send the PNG's bytes back (copied into a transferable buffer)
-const WORKER = `
-const { parentPort, workerData } = require("node:worker_threads");
-const { Resvg } = require(workerData.resvg);
-parentPort.on("message", ({ id, svg, options }) => {
-  try {
-    const image = new Resvg(svg, options).render();
-    const png = Uint8Array.from(image.asPng());
-    parentPort.postMessage({ id, png, width: image.width, height: image.height }, [png.buffer]);
-  } catch (e) {
-    parentPort.postMessage({ id, error: String(e && e.message ? e.message : e) });
-  }
-});
-`;
+/**
+ * resvg's allocator (mimalloc) reads its options from the environment once, when resvg is first
+ * loaded: ask it for large OS pages (where the system allows them; a setting of the user's own stays).
+ * A figure's pixels are several megabytes of fresh memory, and mapping them page by page took a third
+ * to a half of drawing a figure. Call before loading resvg, on any thread.
+ */
+export function resvgAllocatorOptions(): void {
+  process.env["MIMALLOC_ALLOW_LARGE_OS_PAGES"] ??= "1";
+}
+
+/** The worker script: the built report/raster-worker.js (from the sources, as under the tests, the one in dist/). */
+function workerScript(): string {
+  const here = fileURLToPath(import.meta.url);
+  return here.endsWith(".ts") ? path.resolve(path.dirname(here), "../../dist/report/raster-worker.js") : path.join(path.dirname(here), "raster-worker.js");
+}
 
 interface Pending {
   readonly resolve: (r: Raster) => void;
@@ -45,13 +49,13 @@ class Rasteriser {
   private readonly worker: Worker;
   private broken: Error | undefined;
 
-  constructor(resvg: string) {
-    this.worker = new Worker(WORKER, { eval: true, workerData: { resvg } });
-    this.worker.on("message", (m: { id: number; png?: Uint8Array; width: number; height: number; error?: string }) => {
+  constructor() {
+    this.worker = new Worker(workerScript());
+    this.worker.on("message", (m: { id: number; svg: string; png?: Uint8Array; width: number; height: number; error?: string }) => {
       const p = this.pending.get(m.id);
       this.settle(m.id);
       if (!p) return;
-      if (m.png) p.resolve({ png: Buffer.from(m.png.buffer, m.png.byteOffset, m.png.length), width: m.width, height: m.height });
+      if (m.png) p.resolve({ svg: m.svg, png: Buffer.from(m.png.buffer, m.png.byteOffset, m.png.length), width: m.width, height: m.height });
       else p.reject(new Error(`drawing a figure failed: ${m.error}`));
     });
     const fail = (e: Error) => {
@@ -71,12 +75,12 @@ class Rasteriser {
     return this.broken ? Infinity : this.pending.size;
   }
 
-  render(id: number, svg: string, options: ResvgRenderOptions): Promise<Raster> {
+  render(id: number, job: FigureJob): Promise<Raster> {
     if (this.broken) return Promise.reject(this.broken);
     return new Promise((resolve, reject) => {
       if (this.pending.size === 0) this.worker.ref();
       this.pending.set(id, { resolve, reject });
-      this.worker.postMessage({ id, svg, options });
+      this.worker.postMessage({ id, job });
     });
   }
 
@@ -92,13 +96,12 @@ export class RasterPool {
   private next = 0;
 
   constructor(count: number) {
-    const resvg = createRequire(import.meta.url).resolve("@resvg/resvg-js");
-    this.workers = Array.from({ length: count }, () => new Rasteriser(resvg));
+    this.workers = Array.from({ length: count }, () => new Rasteriser());
   }
 
-  render(svg: string, options: ResvgRenderOptions): Promise<Raster> {
+  render(job: FigureJob): Promise<Raster> {
     const worker = this.workers.reduce((best, w) => (w.load < best.load ? w : best));
-    return worker.render(this.next++, svg, options);
+    return worker.render(this.next++, job);
   }
 }
 
@@ -108,6 +111,7 @@ let pool: RasterPool | null | undefined;
 export function rasterPool(): RasterPool | null {
   if (pool !== undefined) return pool;
   try {
+    resvgAllocatorOptions();
     pool = new RasterPool(Math.min(2, Math.max(1, os.availableParallelism?.() ?? os.cpus().length)));
   } catch {
     pool = null;

@@ -22,9 +22,11 @@ import { execFile, execFileSync } from "node:child_process";
 import fs from "node:fs";
 import * as vega from "vega";
 import { compile, type TopLevelSpec } from "vega-lite";
-import { renderAsync, type ResvgRenderOptions } from "@resvg/resvg-js";
+import { createRequire } from "node:module";
+import type { ResvgRenderOptions } from "@resvg/resvg-js";
 import { formatTick } from "../core/format.js";
-import { rasterPool } from "./raster-pool.js";
+import { rasterPool, resvgAllocatorOptions } from "./raster-pool.js";
+import { drawFigure, type FigureJob, type RasterLayer, type ResvgClass } from "./figure-draw.js";
 
 /** A rendered figure. */
 export interface Figure {
@@ -114,19 +116,22 @@ function rasterOptions(scale: number, files: string[] | null): ResvgRenderOption
   return { fitTo: { mode: "zoom", value: scale }, font: { ...font, defaultFontFamily: FONT, sansSerifFamily: FONT }, background: "white" };
 }
 
-/** Rasterise an SVG with the figure font, on the figure workers (or on libuv's thread pool where they cannot start). */
-export async function rasterise(svg: string, scale = PNG_SCALE): Promise<Figure> {
-  const options = rasterOptions(scale, await findFigureFont());
+/** Rasterise an SVG with the figure font (and a plane picture's raster under it), on the figure workers (or on this thread where they cannot start). */
+export async function rasterise(svg: string, scale = PNG_SCALE, raster?: RasterLayer): Promise<Figure> {
+  const job: FigureJob = { svg, options: rasterOptions(scale, await findFigureFont()), ...(raster ? { raster } : {}) };
   const pool = rasterPool();
   if (pool) {
     try {
-      return { svg, ...(await pool.render(svg, options)) };
+      return await pool.render(job);
     } catch {
       // drawn below, where resvg's own error (if the SVG is at fault) reaches the caller
     }
   }
-  const image = await renderAsync(svg, options);
-  return { svg, png: image.asPng(), width: image.width, height: image.height };
+  // loaded here only (after its allocator's options are set), where no worker could draw
+  resvgAllocatorOptions();
+  const { Resvg } = createRequire(import.meta.url)("@resvg/resvg-js") as { Resvg: ResvgClass };
+  const drawn = drawFigure(Resvg, job);
+  return { ...drawn, png: Buffer.from(drawn.png.buffer, drawn.png.byteOffset, drawn.png.length) };
 }
 
 /** Figures drawn together (their rasterising shares the thread pool), awaited into a record in the keys' order; undefined entries are left out. */
@@ -136,13 +141,20 @@ export async function figuresTogether(pending: Readonly<Record<string, Promise<F
   return Object.fromEntries(entries.map(([name], i) => [name, figures[i]!]));
 }
 
-/** Render a Vega spec to SVG and PNG. */
-export async function renderVega(spec: vega.Spec, scale = PNG_SCALE): Promise<Figure> {
+/** A Vega spec's SVG, and where the origin of its marks (the plot area's top-left corner) lies in it, in SVG units. */
+export async function vegaSvg(spec: vega.Spec): Promise<{ svg: string; origin: [number, number] }> {
   registerFormatter();
   const view = new vega.View(vega.parse(spec), { renderer: "none" });
   const svg = await view.toSVG();
+  const [x, y] = view.origin();
+  const pad = view.padding() as { left: number; top: number };
   view.finalize();
-  return rasterise(svg, scale);
+  return { svg, origin: [x + pad.left, y + pad.top] };
+}
+
+/** Render a Vega spec to SVG and PNG. */
+export async function renderVega(spec: vega.Spec, scale = PNG_SCALE): Promise<Figure> {
+  return rasterise((await vegaSvg(spec)).svg, scale);
 }
 
 /** Render a Vega-Lite spec (with the shared style) to SVG and PNG. */

@@ -197,12 +197,47 @@ describe("PNG files", () => {
       for (let col = 0; col < 12; col++) expect(at(col, row)).toEqual(expected(plane.values[(1 - Math.floor(row / 4)) * 3 + Math.floor(col / 4)]!));
   });
 
-  it("of figures come from the workers byte for byte as resvg draws and encodes them on this thread", async () => {
+  it("of figures come from the workers with the pixels resvg draws on this thread (decoded by pngjs)", async () => {
     const { Resvg } = await import("@resvg/resvg-js");
     const { FONT, PNG_SCALE, figureFontFiles, rasterise } = await import("../../src/report/render.js");
+    const { PNG } = await import("pngjs");
     const svg = `<svg xmlns="http://www.w3.org/2000/svg" width="120" height="40"><text x="4" y="22" font-family="${FONT}" font-size="10">log₁₀ Σ</text><circle cx="100" cy="20" r="12" fill="#3b528b"/></svg>`;
     const here = new Resvg(svg, { fitTo: { mode: "zoom", value: PNG_SCALE }, font: { loadSystemFonts: false, fontFiles: figureFontFiles()!, defaultFontFamily: FONT, sansSerifFamily: FONT }, background: "white" }).render();
     const [a, b] = await Promise.all([rasterise(svg), rasterise(svg)]);
-    for (const f of [a, b]) expect(Buffer.compare(f.png, here.asPng())).toBe(0);
+    for (const f of [a, b]) expect(Buffer.compare(Buffer.from(PNG.sync.read(f.png).data), Buffer.from(here.pixels))).toBe(0);
+  });
+
+  it("of plane pictures put the cells under the frame where resvg draws the SVG file's embedded raster", async () => {
+    const { Resvg } = await import("@resvg/resvg-js");
+    const { FONT, PNG_SCALE, figureFontFiles } = await import("../../src/report/render.js");
+    const { fieldFigure, planePng } = await import("../../src/report/field-image.js");
+    const { PNG } = await import("pngjs");
+    // 12 × 10 cells of distinct colours, one without data, drawn 90 × 80 units: at 3 pixels a unit 22.5 × 24
+    // pixels a cell, from an embedded raster of 24 × 24 pixel blocks (zoom ceil(3·80/10) = 24)
+    const plane = { nx: 12, ny: 10, values: Float64Array.from({ length: 120 }, (_, i) => (i === 40 ? NaN : ((i * 37) % 119) / 118)), x0: 0, y0: 0, width: 12, height: 10 };
+    const fig = await fieldFigure(plane, { xTitle: "x", yTitle: "y", legend: "v", title: "cells", range: [0, 1], colourMap: "viridis", size: 90 });
+    expect(fig.svg).toContain(`data:image/png;base64,${planePng(plane, 0, 1, "viridis", 24).toString("base64")}`);
+    expect(fig.svg).toContain('width="90" height="80" preserveAspectRatio="none"');
+    const ours = PNG.sync.read(fig.png);
+    const theirs = new Resvg(fig.svg, { fitTo: { mode: "zoom", value: PNG_SCALE }, font: { loadSystemFonts: false, fontFiles: figureFontFiles()!, defaultFontFamily: FONT, sansSerifFamily: FONT }, background: "white" }).render();
+    expect([ours.width, ours.height]).toEqual([theirs.width, theirs.height]);
+    const drawn = theirs.pixels; // a copy at each read
+    // the same pixels to ±1, except within a pixel of the cells' edges, which resvg blends where the cells here stay
+    // sharp (and the frame's half-covered inner pixel, where the ticks' inner ends, under the raster before, show)
+    const [x0, y0] = /<g fill="none" stroke-miterlimit="10" transform="translate\(([\d.]+),([\d.]+)\)"/.exec(fig.svg)!.slice(1).map((v) => PNG_SCALE * Number(v));
+    const nearEdge = (p: number, origin: number, cell: number) => {
+      const r = (((p + 0.5 - origin) % cell) + cell) % cell;
+      return Math.min(r, cell - r) < 1.5;
+    };
+    let compared = 0;
+    let worst = 0;
+    for (let y = 0; y < ours.height; y++)
+      for (let x = 0; x < ours.width; x++) {
+        if (nearEdge(x, x0!, 22.5) || nearEdge(y, y0!, 24) || x === x0! + 1) continue;
+        compared++;
+        for (let c = 0, i = 4 * (y * ours.width + x); c < 3; c++) worst = Math.max(worst, Math.abs(ours.data[i + c]! - drawn[i + c]!));
+      }
+    expect(worst).toBeLessThanOrEqual(1);
+    expect(compared).toBeGreaterThan(0.75 * ours.width * ours.height);
   });
 });
