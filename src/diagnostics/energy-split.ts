@@ -21,7 +21,7 @@
  */
 import type { Grid } from "../grid/grid.js";
 import { SimpleTransforms, type FieldTransforms } from "../fields/field-transforms.js";
-import { modeShells, Shells, simulatedAxes, spectralDerivative } from "./shells.js";
+import { derivativeAlongAxis, modeShells, Shells, simulatedAxes } from "./shells.js";
 import { kineticFromSums, type KineticSplit } from "./analysis.js";
 import { packRow, ShellPass } from "./split-passes.js";
 import { spectrumMoments, type SpectrumMoments } from "./spectrum-moments.js";
@@ -110,12 +110,9 @@ export function energyAndKineticSplit(grid: Grid, psi: Float64Array, a: number, 
   const flow = new Float64Array(2);
   const jSum: number[] = [];
   simulatedAxes(grid).forEach((ax, j) => {
-    // each axis's derivative in place of the spectrum, transformed again after the first (a grid less memory)
-    if (j > 0) {
-      spec.set(psi);
-      fft.forward(spec);
-    }
-    spectralDerivative(grid, fft, spec, ax, spec);
+    // each axis's derivative from ψ by the transforms along that axis alone, in place of the spectrum
+    spec.set(psi);
+    derivativeAlongAxis(grid, fft, spec, ax);
     flow[1] = 0;
     for (let p = 0; p < spec.length; p += 2 * grid.shape[2]) packRow(psi, spec, p, p + 2 * grid.shape[2], flow);
     jSum.push(flow[1]!);

@@ -18,7 +18,7 @@
  * window (Lieb 1978, Commun. Math. Phys. 62, 35).
  */
 import type { Grid } from "../grid/grid.js";
-import { ComplexFft } from "../fields/fft.js";
+import { SimpleTransforms, type FieldTransforms } from "../fields/field-transforms.js";
 import { simulatedAxes } from "./shells.js";
 
 /** The allowed window widths of a grid: [one cell, 1/16 of the shortest side]. */
@@ -49,10 +49,13 @@ export class HusimiSampler {
   readonly cells: number[];
   private readonly axes: (0 | 1 | 2)[];
   private readonly shape: [number, number, number];
-  private readonly fft: ComplexFft;
-  private readonly buf: Float64Array;
+  private readonly fft: FieldTransforms;
 
-  constructor(private readonly grid: Grid, readonly eta: number) {
+  /**
+   * @param transforms the sub-box's transforms, made from its cells per simulated axis (work grid 0 is used);
+   * by default fft.js on this thread
+   */
+  constructor(private readonly grid: Grid, readonly eta: number, transforms?: (cells: number[]) => FieldTransforms) {
     const { min, max } = husimiWindowRange(grid);
     if (!(eta >= min * (1 - 1e-12)) || !(eta <= max * (1 + 1e-12))) throw new RangeError(`window ${eta} outside [${min}, ${max}]`);
     this.axes = simulatedAxes(grid);
@@ -64,8 +67,7 @@ export class HusimiSampler {
     }
     this.shape = shape;
     this.cells = this.axes.map((ax) => shape[ax]);
-    this.fft = new ComplexFft(shape);
-    this.buf = new Float64Array(2 * shape[0] * shape[1] * shape[2]);
+    this.fft = transforms ? transforms(this.cells) : new SimpleTransforms(shape);
   }
 
   /** Wavevector spacing per simulated axis. */
@@ -75,7 +77,8 @@ export class HusimiSampler {
 
   /** f(x, k) at the point x (internal 3-vector of coordinates; absent axes 0), written into `out` (length of the sub-box). */
   sample(psi: Float64Array, x: readonly number[], out: Float64Array): void {
-    const { grid, shape, buf, eta } = this;
+    const { grid, shape, eta } = this;
+    const buf = this.fft.work(0);
     const [m0, m1, m2] = shape;
     const start: number[] = [0, 0, 0];
     const offsets: Float64Array[] = [];
@@ -99,20 +102,14 @@ export class HusimiSampler {
     }
     const [n0, n1, n2] = grid.shape;
     const wrap = (i: number, n: number) => ((i % n) + n) % n;
-    let p = 0;
-    for (let a = 0; a < m0; a++) {
+    // the sub-box's cells along the last axis, wrapped into the grid once
+    const cells = Int32Array.from({ length: m2 }, (_, c) => wrap(start[2]! + c, n2));
+    for (let a = 0, p = 0; a < m0; a++) {
       const ia = wrap(start[0]! + a, n0);
       const wa = offsets[0]![a]!;
-      for (let b = 0; b < m1; b++) {
+      for (let b = 0; b < m1; b++, p += 2 * m2) {
         const ib = wrap(start[1]! + b, n1);
-        const wab = wa * offsets[1]![b]!;
-        const row = (ia * n1 + ib) * n2;
-        for (let c = 0; c < m2; c++, p += 2) {
-          const q = 2 * (row + wrap(start[2]! + c, n2));
-          const k = wab * offsets[2]![c]! * grid.cellVolume;
-          buf[p] = k * psi[q]!;
-          buf[p + 1] = k * psi[q + 1]!;
-        }
+        windowRow(psi, buf, p, (ia * n1 + ib) * n2, cells, wa * offsets[1]![b]!, offsets[2]!, grid.cellVolume);
       }
     }
     this.fft.forward(buf);
@@ -123,6 +120,16 @@ export class HusimiSampler {
   /** Number of momentum samples per point. */
   get size(): number {
     return this.shape[0] * this.shape[1] * this.shape[2];
+  }
+}
+
+/** One row of the windowed sub-box: buf[p…] ← wab · w_c · ΔV · ψ at the grid cells `row` + cells[c]. */
+function windowRow(psi: Float64Array, buf: Float64Array, p: number, row: number, cells: Int32Array, wab: number, w: Float64Array, dv: number): void {
+  for (let c = 0; c < cells.length; c++, p += 2) {
+    const q = 2 * (row + cells[c]!);
+    const k = wab * w[c]! * dv;
+    buf[p] = k * psi[q]!;
+    buf[p + 1] = k * psi[q + 1]!;
   }
 }
 

@@ -120,6 +120,24 @@ export function derivativeWavenumbers(grid: Grid, axis: 0 | 1 | 2): Float64Array
  * (`out` may be `spec`; both are work grids of `fft`).
  */
 export function spectralDerivative(grid: Grid, fft: FieldTransforms, spec: Float64Array, axis: 0 | 1 | 2, out: Float64Array): void {
+  timesIk(grid, spec, axis, out);
+  fft.inverse(out);
+}
+
+/**
+ * `field` (a work grid of `fft`, holding ψ) ← ∂ψ/∂x_axis by the spectral derivative along that axis alone:
+ * its transform along the axis, i k (zero on the Nyquist index), the inverse along the axis. The same as
+ * spectralDerivative of ψ's whole spectrum to round-off (the transforms along the other axes cancel),
+ * with two axis passes instead of six.
+ */
+export function derivativeAlongAxis(grid: Grid, fft: FieldTransforms, field: Float64Array, axis: 0 | 1 | 2): void {
+  fft.alongAxis(field, axis, false);
+  timesIk(grid, field, axis, field);
+  fft.alongAxis(field, axis, true);
+}
+
+/** out ← i k_axis spec, k_axis the derivative wavenumbers (the Nyquist index's zero), by the index along `axis`. */
+function timesIk(grid: Grid, spec: Float64Array, axis: 0 | 1 | 2, out: Float64Array): void {
   const k = derivativeWavenumbers(grid, axis);
   const [n0, n1, n2] = grid.shape;
   // along the last axis the factor is k[c]; along the others one factor per row (the scale 0 · k[c] adds nothing)
@@ -127,7 +145,6 @@ export function spectralDerivative(grid: Grid, fft: FieldTransforms, spec: Float
   const kz = derivativeWavenumbers(grid, 2);
   for (let a = 0, p = 0; a < n0; a++)
     for (let b = 0; b < n1; b++, p += 2 * n2) derivativeRow(spec, out, p, axis === 0 ? k[a]! : axis === 1 ? k[b]! : 0, zScale, kz);
-  fft.inverse(out);
 }
 
 /** One row of the spectral derivative: out ← i (row + zScale k_c) spec over the modes [p, p + 2 n2). */

@@ -10,7 +10,7 @@
  * F_k = Σ_x f_x e^{−ik·x}, inverse with 1/N, interleaved (re, im).
  */
 import type { Triple } from "../grid/grid.js";
-import { ComplexFft } from "./fft.js";
+import { ComplexFft, outerCount } from "./fft.js";
 
 export interface FieldTransforms {
   readonly shape: Triple;
@@ -20,6 +20,8 @@ export interface FieldTransforms {
   forward(grid: Float64Array): void;
   /** Inverse transform (with 1/N) of a work grid in place. */
   inverse(grid: Float64Array): void;
+  /** The transform along one axis only of a work grid in place (the inverse with 1/n of that axis). */
+  alongAxis(grid: Float64Array, axis: number, inverse: boolean): void;
 }
 
 /** fft.js on this thread; work grids are allocated on first use. */
@@ -44,5 +46,9 @@ export class SimpleTransforms implements FieldTransforms {
 
   inverse(grid: Float64Array): void {
     this.fft.inverse(grid);
+  }
+
+  alongAxis(grid: Float64Array, axis: number, inverse: boolean): void {
+    this.fft.pass(grid, axis, inverse, 0, outerCount(this.shape, axis));
   }
 }

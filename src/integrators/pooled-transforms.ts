@@ -91,6 +91,10 @@ export class PooledTransforms implements FieldTransforms {
     for (let axis = 0; axis < 3; axis++) this.axisPass(field, axis, true);
   }
 
+  alongAxis(grid: Float64Array, axis: number, inverse: boolean): void {
+    this.axisPass(this.nameOf(grid), axis, inverse);
+  }
+
   private axisPass(field: ComplexGrid, axis: number, inverse: boolean): void {
     if (this.shape[axis]! < 2) return;
     const task: StepTask = { op: "axis", field, axis, inverse };

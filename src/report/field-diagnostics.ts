@@ -16,6 +16,8 @@ import { densestPoints } from "../diagnostics/analysis.js";
 import { M_SUN_KG, PC_M } from "../physics/constants.js";
 import type { FieldDiagnostic } from "./diagnostic-options.js";
 import { csvTable, csvText, csvValue } from "./csv-table.js";
+import { PooledTransforms } from "../integrators/pooled-transforms.js";
+import { Grid } from "../grid/grid.js";
 
 const KPC = 1e3 * PC_M;
 
@@ -160,8 +162,8 @@ function writeHusimi(field: LoadedField, s: PhysicalScales, outDir: string, summ
   }
   const points = pointsKpc?.map((p) => p.map((x) => x / s.kpc)) ?? [densestPoints(grid, psi, 1, 1)[0]!.coords];
   const rows: number[][] = [];
-  // one sampler and one buffer for all points
-  const sampler = new HusimiSampler(grid, eta);
+  // one sampler and one buffer for all points; the sub-box transformed by the step's kernels on this thread
+  const sampler = new HusimiSampler(grid, eta, (cells) => new PooledTransforms(new Grid(cells, cells.map(() => 1)), 1, { threads: 1 }));
   const f = new Float64Array(sampler.size);
   const husimiPoints = points.map((point, index) => {
     sampler.sample(psi, internalPoint(grid, point), f);

@@ -3,7 +3,7 @@
 // for both backends and one or two threads: every number agrees to 1e-12 of its scale.
 import { afterAll, describe, expect, it } from "vitest";
 import { Grid } from "../../src/grid/grid.js";
-import { ComplexFft } from "../../src/fields/fft.js";
+import { ComplexFft, outerCount } from "../../src/fields/fft.js";
 import { SimpleTransforms } from "../../src/fields/field-transforms.js";
 import { PooledTransforms } from "../../src/integrators/pooled-transforms.js";
 import { densestPoints, densityPowerSpectrum, kineticSplit, meanDensity } from "../../src/diagnostics/analysis.js";
@@ -11,6 +11,7 @@ import { kineticFromGradient, periodicPotentialFromContrast } from "../../src/di
 import { findVortices } from "../../src/diagnostics/vortices.js";
 import { energyAndKineticSplit, energySplit } from "../../src/diagnostics/energy-split.js";
 import { granuleStats } from "../../src/diagnostics/granules.js";
+import { HusimiSampler, husimiWindowRange } from "../../src/diagnostics/husimi.js";
 import { fieldStats, loadField } from "../../src/simulation/from-snapshot.js";
 import { gaussianComplexField } from "../helpers/random-field.js";
 
@@ -60,6 +61,16 @@ describe.each(cases)("$cells.length-D grid $cells", ({ cells, a }) => {
     expect(worst(w, ref, scale)).toBeLessThan(1e-12);
     fast.inverse(w);
     expect(worst(w, psi, Math.max(...psi.map(Math.abs)))).toBeLessThan(1e-12);
+    // along one axis alone (the energy split's derivatives): fft.js's pass along that axis, and back
+    for (const axis of [0, 1, 2].filter((ax) => grid.shape[ax]! > 1)) {
+      const one = Float64Array.from(psi);
+      new ComplexFft(grid.shape).pass(one, axis, false, 0, outerCount(grid.shape, axis));
+      w.set(psi);
+      fast.alongAxis(w, axis, false);
+      expect(worst(w, one, Math.max(...one.map(Math.abs)))).toBeLessThan(1e-12);
+      fast.alongAxis(w, axis, true);
+      expect(worst(w, psi, Math.max(...psi.map(Math.abs)))).toBeLessThan(1e-12);
+    }
     expect(() => fast.forward(Float64Array.from(psi))).toThrow(/work grids/);
   });
 
@@ -90,6 +101,23 @@ describe.each(cases)("$cells.length-D grid $cells", ({ cells, a }) => {
     // a work grid lent as scratch changes nothing
     expect(densestPoints(grid, psi, 3, 2, fast.work(0))).toEqual(densestPoints(grid, psi, 3, 2));
     if (grid.dims > 1) expect(findVortices(grid, psi, fast.work(1))).toEqual(findVortices(grid, psi));
+  });
+});
+
+describe("the Husimi sampler's sub-box", () => {
+  it.each(["wasm", "js"] as const)("on the step's %s kernels on this thread (as analyze runs it) equals fft.js's samples to 1e-12", (backend) => {
+    const grid = new Grid([32, 16, 16], [1, 0.5, 0.5]);
+    const psi = gaussianComplexField(grid, (k2) => Math.exp(-k2 / 300), 5);
+    const eta = husimiWindowRange(grid).max;
+    const ref = new HusimiSampler(grid, eta);
+    const pooled = new HusimiSampler(grid, eta, (c) => new PooledTransforms(new Grid(c, c.map(() => 1)), 1, { threads: 1, backend }));
+    expect(pooled.cells).toEqual([16, 16, 16]);
+    const [f0, f1] = [new Float64Array(ref.size), new Float64Array(ref.size)];
+    for (const x of [[0.3, 0.1, 0.2], [0.9, 0.45, 0.02]]) {
+      ref.sample(psi, x, f0);
+      pooled.sample(psi, x, f1);
+      expect(worst(f1, f0, Math.max(...f0))).toBeLessThan(1e-12);
+    }
   });
 });
 
