@@ -14,7 +14,7 @@ import path from "node:path";
 import { fileURLToPath, pathToFileURL } from "node:url";
 import { PerformanceObserver } from "node:perf_hooks";
 
-const BOX_KPC = 100;
+export const BOX_KPC = 100;
 /** Husimi points of the benchmark's analysis (kpc) and its window: 4 cells, or the widest the box allows. */
 export const HUSIMI_POINTS_KPC = [[20, 20, 20], [50, 50, 50], [80, 80, 80]];
 export const husimiWindow = (n) => Math.min(4 / n, 1 / 16);
