@@ -2,6 +2,8 @@
 // checked for size and content, the movie is encoded (or its fallback said), bad picture
 // options are refused, and the HTML page is checked in headless Chromium for images that
 // load and text that is neither clipped nor overflowing (bounding boxes through the DOM).
+// The 1D and 2D analyses here leave out the field diagnostics (--diagnostics none): their
+// tables and pictures are checked in analyze-diagnostics.test.ts, and the 3D report here has them.
 import { spawnSync } from "node:child_process";
 import fs from "node:fs";
 import os from "node:os";
@@ -66,7 +68,7 @@ function checkPicture(file: string, minWidth = 900, withSvg = true): void {
 
 describe("psibox analyze: every picture type from real runs", () => {
   it("2D: density, P(k), energies, clocks, frames on one colour range and a movie (PNG and SVG)", () => {
-    const r = psibox(["analyze", "output/jeans", "--movie", "--colormap", "cividis"]);
+    const r = psibox(["analyze", "output/jeans", "--movie", "--colormap", "cividis", "--diagnostics", "none"]);
     expect(r.code, r.stderr).toBe(0);
     const a = path.join(work, "output/jeans/analysis");
     for (const f of ["slice", "power"]) checkPicture(path.join(a, "snap_00002", `${f}.png`));
@@ -76,7 +78,7 @@ describe("psibox analyze: every picture type from real runs", () => {
   });
 
   it("1D: the density on a log axis and the space–time diagram", () => {
-    const r = psibox(["analyze", "output/line"]);
+    const r = psibox(["analyze", "output/line", "--diagnostics", "none"]);
     expect(r.code, r.stderr).toBe(0);
     checkPicture(path.join(work, "output/line/analysis/snap_00003/slice.png"));
     checkPicture(path.join(work, "output/line/analysis/spacetime.png"), 1100);
@@ -112,7 +114,7 @@ describe("psibox analyze: every picture type from real runs", () => {
       // MP4 files open with an ftyp box, WebM with the EBML magic number
       expect(encoder.extension === "mp4" ? movie.subarray(4, 8).toString("latin1") : movie.subarray(0, 4).toString("hex")).toBe(encoder.extension === "mp4" ? "ftyp" : "1a45dfa3");
     }
-    const r = psibox(["analyze", "output/jeans", "--movie", "--out", "no-encoder"], { PSIBOX_FFMPEG: path.join(work, "no-such-ffmpeg") });
+    const r = psibox(["analyze", "output/jeans", "--movie", "--out", "no-encoder", "--diagnostics", "none"], { PSIBOX_FFMPEG: path.join(work, "no-such-ffmpeg") });
     expect(r.code, r.stderr).toBe(0);
     expect(r.stdout).toMatch(/no video encoder found \(ffmpeg with libx264 or libvpx on the PATH\); the movie is the 3 frames in /);
     expect(fs.readdirSync(path.join(work, "no-encoder/frames"))).toHaveLength(3);
@@ -132,7 +134,7 @@ describe("psibox analyze: every picture type from real runs", () => {
       expect(r.code, args.join(" ")).toBe(2);
       expect(r.stderr).toMatch(message);
     }
-    const tables = psibox(["analyze", "output/line", "--no-pictures", "--out", "tables-only"]);
+    const tables = psibox(["analyze", "output/line", "--no-pictures", "--out", "tables-only", "--diagnostics", "none"]);
     expect(tables.stdout).toMatch(/tables \(no pictures\) in tables-only/);
   });
 });
