@@ -38,16 +38,18 @@ function resolveThreads(configured: number | undefined, shape: readonly number[]
 }
 
 /**
- * Threads when none are configured: PSIBOX_THREADS, else the cores from 2^18 cells on (64³, 512²; 2^19
- * in 1D), one thread below, where a second thread costs more than it saves. Measured on an idle 2-core
- * machine, 2 threads against 1 (scripts/bench-threads.mjs): 32³ 1.47–1.49×, 64³ 0.76–1.04×, 128³ 0.52×;
- * 256² 0.84–1.11×, 512² 0.67–0.87×; 1D 2^18 1.53–1.61×, 2^19 0.80×, 2^20 0.78–1.01×.
+ * Threads when none are configured: PSIBOX_THREADS, else the cores from 2^17 cells on in 1D and 2D
+ * (2^17, 256×512) and from 2^18 in 3D (64³), one thread below, where a second thread costs more than it
+ * saves. Measured on an idle 2-core machine with the four-step 1D transform and the 3D plane passes,
+ * 2 threads against 1 (scripts/bench-threads.mjs, one run): 1D 2^14 1.76×, 2^16 0.84×, 2^17 0.75×,
+ * 2^18 0.65×; 128² 1.75×, 256² 0.83×, 512² 0.68×; 32³ 1.59×, 64³ 0.74×, 128³ 0.56×. The thresholds sit
+ * one step above the first gain, since that gain (16–17%) was not there in earlier measurements.
  */
 export function defaultThreads(shape: readonly number[]): number {
   const env = Number(process.env["PSIBOX_THREADS"] ?? NaN);
   if (Number.isInteger(env) && env >= 1) return Math.min(env, 64);
   const cells = shape.reduce((p, n) => p * n, 1);
-  return cells < (shape.length === 1 ? 2 ** 19 : 2 ** 18) ? 1 : os.availableParallelism();
+  return cells < (shape.length === 3 ? 2 ** 18 : 2 ** 17) ? 1 : os.availableParallelism();
 }
 
 /** The [output] section; `span` in code time. */

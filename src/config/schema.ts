@@ -210,7 +210,7 @@ export const integratorSchema = z.strictObject({
   mass_tolerance: z.number().default(1e-8),
   /** Step cap. @default 10000000 */
   max_steps: z.number().int().default(10_000_000),
-  /** Worker threads for the step (1: none). @default the number of cores (1 below 2^18 cells, 64³ or 512²; below 2^19 in 1D) */
+  /** Worker threads for the step (1: none). @default the number of cores (1 below 2^17 cells in 1D and 2D, below 2^18 = 64³ in 3D) */
   threads: z.number().int().optional(),
   /** FFT implementation of the step: "wasm" (WebAssembly SIMD), "js" (fft.js) or "auto" (wasm when the grid fits its 4 GiB memory). @default "auto" */
   fft: z.enum(["auto", "wasm", "js"]).default("auto"),

@@ -47,14 +47,14 @@ describe("config", () => {
     expect(errorOf({ ...base, output: { timeseries_every: 0 } })).toMatch(/^output\.timeseries_every/);
   });
 
-  it("uses the cores from 2^18 cells on (2^19 in 1D) and one thread below, unless told (the crossover measured by scripts/bench-threads.mjs)", () => {
+  it("uses the cores from 2^17 cells on in 1D and 2D (2^18 in 3D) and one thread below, unless told (the crossover measured by scripts/bench-threads.mjs)", () => {
     const threads = (cells: number[]) => resolveRun(checkConfig({ ...base, grid: { cells, box: "10 kpc" } }), "t", "/tmp").integrator.threads;
     const saved = process.env["PSIBOX_THREADS"];
     delete process.env["PSIBOX_THREADS"];
     try {
       const cores = os.availableParallelism();
-      expect([threads([32, 32, 32]), threads([256, 256]), threads([2 ** 18])]).toEqual([1, 1, 1]);
-      expect([threads([64, 64, 64]), threads([512, 512]), threads([2 ** 19])]).toEqual([cores, cores, cores]);
+      expect([threads([32, 32, 32]), threads([64, 64, 32]), threads([256, 256]), threads([2 ** 16])]).toEqual([1, 1, 1, 1]);
+      expect([threads([64, 64, 64]), threads([256, 512]), threads([2 ** 17])]).toEqual([cores, cores, cores]);
       process.env["PSIBOX_THREADS"] = "3";
       expect(threads([32, 32, 32])).toBe(3);
     } finally {

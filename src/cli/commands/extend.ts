@@ -13,7 +13,7 @@ export const extendSpec: CommandSpec<ExtendFlags, [string]> = {
   arguments: [{ name: "dir", help: "the run folder", required: true }],
   options: {
     to: { flags: "--to <end>", help: 'the new end: a duration of the whole run for static runs ("2 Gyr"), a redshift for expanding runs (0)', required: true },
-    threads: { flags: "--threads <n>", help: "worker threads for the step (default: the number of cores; 1 below 2^18 cells, 2^19 in 1D)" },
+    threads: { flags: "--threads <n>", help: "worker threads for the step (default: the number of cores; 1 below 2^17 cells in 1D and 2D, 2^18 in 3D)" },
     quiet: QUIET_OPTION,
   },
   run: async ([dir], flags) =>

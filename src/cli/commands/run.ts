@@ -9,7 +9,7 @@ export const runSpec: CommandSpec<RunFlags, [string | undefined]> = {
   options: {
     set: SET_OPTION,
     resume: { flags: "--resume <dir>", help: "continue a stopped or killed run from its checkpoint" },
-    threads: { flags: "--threads <n>", help: "worker threads for the step (default: the number of cores; 1 below 2^18 cells, 2^19 in 1D)" },
+    threads: { flags: "--threads <n>", help: "worker threads for the step (default: the number of cores; 1 below 2^17 cells in 1D and 2D, 2^18 in 3D)" },
     force: FORCE_OPTION,
     quiet: QUIET_OPTION,
   },
