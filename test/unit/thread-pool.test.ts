@@ -31,13 +31,12 @@ const out = new Float64Array(4);
 const BAD: StepTask = { op: "axis", field: "psi", axis: 5, inverse: false };
 const GOOD: StepTask = { op: "copy", from: "psi", to: "undo" };
 
-/** Milliseconds `f` takes to throw, and what it threw. */
-function timeThrow(f: () => unknown): { ms: number; error: unknown } {
-  const start = Date.now();
+/** What `f` threw (it must throw). */
+function thrown(f: () => unknown): { error: unknown } {
   try {
     f();
   } catch (error) {
-    return { ms: Date.now() - start, error };
+    return { error };
   }
   throw new Error("did not throw");
 }
@@ -45,20 +44,20 @@ function timeThrow(f: () => unknown): { ms: number; error: unknown } {
 describe("a thread pool whose workers fail", () => {
   it("refuses a missing worker script at once, naming the file (also through ThreadedStepper)", () => {
     const missing = path.join(work, "no-such-worker.js");
-    const r = timeThrow(() => new ThreadPool(2, setup(), { script: missing }));
+    const r = thrown(() => new ThreadPool(2, setup(), { script: missing }));
     expect(r.error).toBeInstanceOf(ThreadError);
     expect((r.error as ThreadError).exitCode).toBe(1);
     expect((r.error as Error).message).toMatch(/worker thread script .*no-such-worker\.js is missing/);
-    const viaStepper = timeThrow(() => new ThreadedStepper(grid, new StaticBackground(), makePoissonSolver(grid, "periodic"), 2, "wasm", { script: missing }));
+    const viaStepper = thrown(() => new ThreadedStepper(grid, new StaticBackground(), makePoissonSolver(grid, "periodic"), 2, "wasm", { script: missing }));
     expect((viaStepper.error as Error).message).toMatch(/is missing/);
   });
 
   it("stops the constructor with the message of a script that throws while loading", () => {
     const broken = path.join(work, "broken-worker.mjs");
     fs.writeFileSync(broken, 'throw new Error("broken on purpose");\n');
-    const r = timeThrow(() => new ThreadPool(2, setup(), { script: broken, startSeconds: 20 }));
+    const r = thrown(() => new ThreadPool(2, setup(), { script: broken, startSeconds: 20 }));
+    // the script's own message, not the 20 s start time-out's: the failure is noticed, not waited out
     expect((r.error as Error).message).toBe("worker thread 1 did not start: broken on purpose");
-    expect(r.ms).toBeLessThan(15_000);
   });
 
   it("with deferStart the constructor returns at once and the first pass stops with the message of a script that throws while loading", () => {
@@ -84,7 +83,7 @@ describe("a thread pool whose workers fail", () => {
     const pool = new ThreadPool(2, setup());
     try {
       pool.run(2, GOOD, out);
-      const r = timeThrow(() => pool.run(1, BAD, out));
+      const r = thrown(() => pool.run(1, BAD, out));
       expect(r.error).toBeInstanceOf(ThreadError);
       expect((r.error as Error).message).toMatch(/^worker thread 1 failed: \S/);
       expect((r.error as Error).message).not.toMatch(/\n/);
@@ -109,9 +108,8 @@ describe("a thread pool whose workers fail", () => {
     const pool = new ThreadPool(2, setup(), { answerSeconds: 0.5 });
     try {
       void pool.workers[0]!.terminate();
-      const r = timeThrow(() => pool.run(2, GOOD, out));
+      const r = thrown(() => pool.run(2, GOOD, out));
       expect((r.error as Error).message).toMatch(/^worker thread 1 (did not answer within 0.5 s|exited during the run)/);
-      expect(r.ms).toBeLessThan(10_000);
     } finally {
       pool.close();
     }
