@@ -32,17 +32,27 @@ export function textAttr(node: AttrNode, name: string, value: string): void {
   else node.create_attribute(name, value);
 }
 
+/** Attributes as readers see them: by name, each value as h5wasm gives it (undefined when there is no such attribute). */
+export abstract class AttributeReader {
+  /** The attributes' names. */
+  abstract list(): string[];
+  abstract has(name: string): boolean;
+  abstract value(name: string): unknown;
+}
+
 /**
  * A node's attributes as a reader sees them: the names listed once and each
  * value read once, on demand (h5wasm's `attrs` lists every name again on
  * each access, which made reading a snapshot's metadata cost tens of ms).
  * For reading only: attributes created after it was made are not seen.
  */
-export class Attributes {
+export class Attributes extends AttributeReader {
   private names: Set<string> | undefined;
   private readonly values = new Map<string, unknown>();
 
-  constructor(private readonly node: AttrNode) {}
+  constructor(private readonly node: AttrNode) {
+    super();
+  }
 
   /** The attributes' names, in the file's order. */
   list(): string[] {
@@ -64,9 +74,9 @@ export class Attributes {
 }
 
 /** Where attributes are read from: a node, or its attributes read once. */
-export type AttrSource = AttrNode | Attributes;
+export type AttrSource = AttrNode | AttributeReader;
 
-const attributes = (source: AttrSource): Attributes => (source instanceof Attributes ? source : new Attributes(source));
+const attributes = (source: AttrSource): AttributeReader => (source instanceof AttributeReader ? source : new Attributes(source));
 
 function attr(source: AttrSource, name: string, file: string): unknown {
   const a = attributes(source);

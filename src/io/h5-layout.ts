@@ -8,80 +8,13 @@
  * or one chunked by whole rows along its first axis, with no filters, no
  * external storage and every chunk written; anything else is `undefined` and the caller reads through h5wasm.
  */
-import fs from "node:fs";
+import { MSG, address, bytesAt, headerMessages, superblock } from "./h5-file.js";
 
 /** Rows [row, row + rows) of the dataset start at byte `at` of the file, one after another. */
 export interface Piece {
   readonly row: number;
   readonly rows: number;
   readonly at: number;
-}
-
-const MSG = { datatype: 0x03, layout: 0x08, filters: 0x0b, external: 0x07, continuation: 0x10 } as const;
-/** The undefined address (all bits set). */
-const UNDEFINED = 0xffffffffffffffffn;
-
-function bytesAt(fd: number, at: number, length: number): Buffer {
-  const b = Buffer.alloc(length);
-  if (fs.readSync(fd, b, 0, length, at) !== length) throw new RangeError(`short read at ${at}`);
-  return b;
-}
-
-const address = (b: Buffer, at: number): number => {
-  const a = b.readBigUInt64LE(at);
-  if (a === UNDEFINED || a > BigInt(Number.MAX_SAFE_INTEGER)) throw new RangeError("undefined address");
-  return Number(a);
-};
-
-/** The base address of a file whose superblock is at byte 0 with 8-byte offsets and lengths (else an error). */
-function baseAddress(fd: number): number {
-  const b = bytesAt(fd, 0, 48);
-  if (b.toString("latin1", 0, 8) !== "\x89HDF\r\n\x1a\n") throw new RangeError("no superblock at byte 0");
-  const version = b[8]!;
-  if (version >= 2) {
-    if (b[9] !== 8 || b[10] !== 8) throw new RangeError("offsets or lengths not of 8 bytes");
-    return address(b, 12);
-  }
-  if (b[13] !== 8 || b[14] !== 8) throw new RangeError("offsets or lengths not of 8 bytes");
-  return address(b, version === 0 ? 24 : 28);
-}
-
-/** The messages (type, data) of an object header (version 1 or 2) and of its continuation blocks. */
-function headerMessages(fd: number, base: number, at: number): { type: number; data: Buffer }[] {
-  const out: { type: number; data: Buffer }[] = [];
-  const head = bytesAt(fd, base + at, 24);
-  const v2 = head.toString("latin1", 0, 4) === "OHDR";
-  let blocks: [number, number][];
-  if (v2) {
-    const flags = head[5]!;
-    const start = 6 + (flags & 0x20 ? 16 : 0) + (flags & 0x10 ? 4 : 0);
-    const sizeBytes = 1 << (flags & 3);
-    const size = Number(head.readUIntLE(start, sizeBytes));
-    blocks = [[base + at + start + sizeBytes, size]];
-  } else {
-    if (head[0] !== 1) throw new RangeError("unknown object header version");
-    blocks = [[base + at + 16, head.readUInt32LE(8)]];
-  }
-  for (let i = 0; i < blocks.length; i++) {
-    const [from, length] = blocks[i]!;
-    const block = bytesAt(fd, from, length);
-    const creationOrder = v2 ? head[5]! & 0x04 : 0;
-    const headerSize = v2 ? 4 + (creationOrder ? 2 : 0) : 8;
-    // a version-2 continuation block starts with "OCHK" and ends with a checksum; version 1 has neither
-    let p = v2 && i > 0 ? 4 : 0;
-    const end = v2 ? length - (i > 0 ? 4 : 0) : length;
-    while (p + headerSize <= end) {
-      const type = v2 ? block[p]! : block.readUInt16LE(p);
-      const size = v2 ? block.readUInt16LE(p + 1) : block.readUInt16LE(p + 2);
-      const flags = v2 ? block[p + 3]! : block[p + 4]!;
-      const data = block.subarray(p + headerSize, p + headerSize + size);
-      if (flags & 0x02 && (type === MSG.layout || type === MSG.filters || type === MSG.datatype)) throw new RangeError("shared message");
-      if (type === MSG.continuation) blocks.push([base + address(data, 0), Number(data.readBigUInt64LE(8))]);
-      else out.push({ type, data });
-      p += headerSize + size;
-    }
-  }
-  return out;
 }
 
 /** The chunks' addresses of a version-1 B-tree of raw data chunks, by their first-axis offset. */
@@ -121,7 +54,7 @@ function chunkedPieces(fd: number, base: number, btree: number, shape: readonly 
 }
 
 /** The pieces a layout message describes, for a dataset of `shape` and values of `valueBytes`. */
-function layoutPieces(fd: number, base: number, data: Buffer, shape: readonly number[], valueBytes: number): Piece[] {
+export function layoutPieces(fd: number, base: number, data: Buffer, shape: readonly number[], valueBytes: number): Piece[] {
   const version = data[0]!;
   const kind = data[1]!;
   if ((version !== 3 && version !== 4) || kind === 0 || kind > 2) throw new RangeError("layout not placed");
@@ -144,7 +77,7 @@ function layoutPieces(fd: number, base: number, data: Buffer, shape: readonly nu
 export function placeRows(fd: number, header: number, shape: readonly number[], valueBytes: number): Piece[] | undefined {
   if (shape.length === 0 || shape.some((n) => n === 0)) return undefined;
   try {
-    const base = baseAddress(fd);
+    const { base } = superblock(fd);
     const messages = headerMessages(fd, base, header);
     if (messages.some((m) => m.type === MSG.filters || m.type === MSG.external)) return undefined;
     const layout = messages.filter((m) => m.type === MSG.layout);

@@ -96,7 +96,27 @@ function scratchBuffer(i: number, bytes: number): ArrayBuffer {
   return scratch[i]!;
 }
 
-type Take = (r0: number, r1: number, slabs: (Float64Array | Float32Array)[]) => void;
+export type Take = (r0: number, r1: number, slabs: (Float64Array | Float32Array)[]) => void;
+
+/**
+ * Datasets of one shape and value size read slab by slab from the file's `pieces` (one list per dataset) into buffers
+ * kept for the next read; `paths` name them in errors.
+ */
+export function readPieces(fd: number, file: string, paths: readonly string[], pieces: readonly (readonly Piece[])[], shape: readonly number[], size: number, take: Take): void {
+  const step = slabRows(shape, size);
+  const rowValues = shape.slice(1).reduce((p, n) => p * n, 1);
+  const buffers = pieces.map((_, i) => scratchBuffer(i, step * rowValues * size));
+  for (let r0 = 0; r0 < shape[0]!; r0 += step) {
+    const r1 = Math.min(shape[0]!, r0 + step);
+    const values = (r1 - r0) * rowValues;
+    try {
+      pieces.forEach((p, i) => readRows(fd, p, r0, r1, rowValues * size, new Uint8Array(buffers[i]!, 0, values * size)));
+    } catch (e) {
+      throw new InputError(`${fileName(file)}: cannot read ${paths.join(", ")} (${(e as Error).message})`);
+    }
+    take(r0, r1, buffers.map((b) => (size === 8 ? new Float64Array(b, 0, values) : new Float32Array(b, 0, values))));
+  }
+}
 
 /** The datasets' slabs read straight from the file (see h5-layout.ts); false, having read nothing, where a layout is not simple. */
 function readDirect(datasets: readonly Dataset[], file: string, shape: readonly number[], size: number, take: Take): boolean {
@@ -104,19 +124,7 @@ function readDirect(datasets: readonly Dataset[], file: string, shape: readonly 
   try {
     const placed = datasets.map((ds) => (ds.metadata.littleEndian ? placeRows(fd, objectAddress(ds), shape, size) : undefined));
     if (placed.some((p) => p === undefined)) return false;
-    const step = slabRows(shape, size);
-    const rowValues = shape.slice(1).reduce((p, n) => p * n, 1);
-    const buffers = datasets.map((_, i) => scratchBuffer(i, step * rowValues * size));
-    for (let r0 = 0; r0 < shape[0]!; r0 += step) {
-      const r1 = Math.min(shape[0]!, r0 + step);
-      const values = (r1 - r0) * rowValues;
-      try {
-        placed.forEach((pieces, i) => readRows(fd, pieces!, r0, r1, rowValues * size, new Uint8Array(buffers[i]!, 0, values * size)));
-      } catch (e) {
-        throw new InputError(`${fileName(file)}: cannot read ${datasets.map((d) => d.path).join(", ")} (${(e as Error).message})`);
-      }
-      take(r0, r1, buffers.map((b) => (size === 8 ? new Float64Array(b, 0, values) : new Float32Array(b, 0, values))));
-    }
+    readPieces(fd, file, datasets.map((d) => d.path), placed as Piece[][], shape, size, take);
     return true;
   } finally {
     fs.closeSync(fd);

@@ -6,10 +6,13 @@
  */
 import { InputError } from "../core/errors.js";
 import { Dataset, Group, hdf5Reason, openHdf5, type H5File } from "./h5.js";
-import { Attributes, hasAttr, numberOf, numbersOf, stringOf } from "./h5-attrs.js";
+import { Attributes, hasAttr, numberOf, numbersOf, stringOf, type AttrSource } from "./h5-attrs.js";
+import { interleaved } from "./psi-interleave.js";
 import { readFloat64, readSlabsTogether } from "./slabs.js";
-import { PSI_IM, PSI_RE, SNAPSHOT_FORMAT, SNAPSHOT_VERSION, SPECIES_ATTRS, STATE, V1, speciesVariables } from "./snapshot-layout.js";
-import type { CheckpointState, Snapshot, SnapshotBackground, SnapshotMeta, SpeciesMeta } from "./snapshot.js";
+import { readNative } from "./snapshot-native.js";
+import { layoutVersion, readMeta } from "./snapshot-meta.js";
+import { PSI_IM, PSI_RE, STATE, V1, speciesVariables } from "./snapshot-layout.js";
+import type { CheckpointState, Snapshot, SnapshotMeta } from "./snapshot.js";
 
 function dataset(f: H5File, name: string, file: string, what: string): Dataset {
   const ds = f.get(name);
@@ -29,83 +32,21 @@ function readPsiV1(f: H5File, cells: readonly number[], file: string): Float64Ar
   return readFloat64(ds, file);
 }
 
-/** ψ[2(base + i)] = re[i], ψ[2(base + i) + 1] = im[i] (one pass, monomorphic for the optimiser). */
-function interleave64(psi: Float64Array, base: number, re: Float64Array, im: Float64Array): void {
-  for (let i = 0, p = 2 * base; i < re.length; i++, p += 2) {
-    psi[p] = re[i]!;
-    psi[p + 1] = im[i]!;
-  }
-}
-
-/** The same from float32 slabs, each value widened exactly. */
-function interleave32(psi: Float64Array, base: number, re: Float32Array, im: Float32Array): void {
-  for (let i = 0, p = 2 * base; i < re.length; i++, p += 2) {
-    psi[p] = re[i]!;
-    psi[p + 1] = im[i]!;
-  }
-}
-
 /** Version 2: ψ as psi_re and psi_im (or a later species' pair) over the grid's dimensions, interleaved slab by slab. */
 function readPsiV2(f: H5File, cells: readonly number[], file: string, names: readonly string[] = [PSI_RE, PSI_IM], into?: Float64Array): Float64Array {
   const re = dataset(f, names[0]!, file, "the snapshot has no field");
   const im = dataset(f, names[1]!, file, "the snapshot has no field");
   checkShape(re, cells, file);
   checkShape(im, cells, file);
-  const rowCells = cells.slice(1).reduce((p, n) => p * n, 1);
-  const length = 2 * rowCells * (cells[0] as number);
-  const psi = into?.length === length ? into : new Float64Array(length);
-  readSlabsTogether([re, im], file, (r0, _r1, [a, b]) => {
-    if (a instanceof Float64Array && b instanceof Float64Array) interleave64(psi, r0 * rowCells, a, b);
-    else interleave32(psi, r0 * rowCells, a as Float32Array, b as Float32Array);
-  });
-  return psi;
+  return interleaved(cells, (take) => readSlabsTogether([re, im], file, take), into);
 }
 
-/** The metadata, from the root's attributes `f` (read once each) and the grid's (version 1: /grid's). */
-function readMeta(h5: H5File, f: Attributes, version: number, file: string): SnapshotMeta {
-  const node = version === 1 ? h5.get(V1.grid) : h5;
+/** The attributes that hold the grid: the root's (version 2) or /grid's (version 1). */
+function gridAttributes(h5: H5File, root: Attributes, version: number, file: string): AttrSource {
+  if (version !== 1) return root;
+  const node = h5.get(V1.grid);
   if (!(node instanceof Group)) throw new InputError(`${file}: not a psibox snapshot (no /${V1.grid} group)`);
-  const gridNode = version === 1 ? new Attributes(node) : f;
-  const bgKind = stringOf(f, "background", file);
-  const background: SnapshotBackground =
-    bgKind === "lcdm"
-      ? { kind: "lcdm", hubbleKmSMpc: numberOf(f, "hubble", file), omegaMatter: numberOf(f, "omega_matter", file), omegaRadiation: numberOf(f, "omega_radiation", file) }
-      : { kind: "static" };
-  return {
-    kind: stringOf(f, "kind", file) === "checkpoint" ? "checkpoint" : "snapshot",
-    software: stringOf(f, "software", file),
-    step: numberOf(f, "step", file),
-    time: numberOf(f, "time", file),
-    timeUnit: stringOf(f, "time_units", file),
-    scaleFactor: numberOf(f, "scale_factor", file),
-    redshift: hasAttr(f, "redshift") ? numberOf(f, "redshift", file) : null,
-    cells: numbersOf(gridNode, "cells", file),
-    boxSizeKpc: numbersOf(gridNode, "box_size", file),
-    particleMassEv: numberOf(f, "particle_mass", file),
-    gravity: stringOf(f, "gravity", file),
-    // files written before the first field's contact interaction was recorded lack it (the config text has it)
-    ...(hasAttr(f, "scattering_length") ? { scatteringLengthM: numberOf(f, "scattering_length", file) } : {}),
-    background,
-    massMsun: numberOf(f, "mass", file),
-    config: stringOf(f, "config", file),
-    configSha256: stringOf(f, "config_sha256", file),
-    ...speciesOf(f, file),
-  };
-}
-
-/** The species of a file of several (none: a file of one). */
-function speciesOf(f: Attributes, file: string): { species?: SpeciesMeta[] } {
-  if (!hasAttr(f, SPECIES_ATTRS.names)) return {};
-  const names = stringOf(f, SPECIES_ATTRS.names, file).split(" ").filter((n) => n !== "");
-  const masses = numbersOf(f, SPECIES_ATTRS.particleMass, file);
-  const totals = numbersOf(f, SPECIES_ATTRS.mass, file);
-  if (masses.length !== names.length || totals.length !== names.length) {
-    throw new InputError(`${file}: the attributes ${SPECIES_ATTRS.particleMass} and ${SPECIES_ATTRS.mass} need one value per species (${names.length})`);
-  }
-  // files written before the species' contact interactions were recorded lack their scattering lengths
-  const lengths = hasAttr(f, SPECIES_ATTRS.scatteringLength) ? numbersOf(f, SPECIES_ATTRS.scatteringLength, file) : undefined;
-  if (lengths && lengths.length !== names.length) throw new InputError(`${file}: the attribute ${SPECIES_ATTRS.scatteringLength} needs one value per species (${names.length})`);
-  return { species: names.map((name, i) => ({ name, particleMassEv: masses[i]!, massMsun: totals[i]!, ...(lengths ? { scatteringLengthM: lengths[i]! } : {}) })) };
+  return new Attributes(node);
 }
 
 /** The fields of the species after the first. */
@@ -166,15 +107,6 @@ function pluginStates(f: H5File, g: Attributes, file: string): { plugins?: Recor
   return Object.keys(plugins).length ? { plugins } : {};
 }
 
-/** The layout version of an open file; an InputError when it is not a psibox snapshot psibox can read. */
-function layoutVersion(f: Attributes, file: string): number {
-  const format = f.value("format");
-  if (format !== SNAPSHOT_FORMAT) throw new InputError(`${file}: not a psibox snapshot (no "format" attribute "${SNAPSHOT_FORMAT}")`);
-  const version = numberOf(f, "format_version", file);
-  if (version > SNAPSHOT_VERSION) throw new InputError(`${file}: snapshot format version ${version} is newer than this psibox reads (${SNAPSHOT_VERSION})`);
-  return version;
-}
-
 /** Open `file`, read what `read` takes from it, close it; HDF5 failures become an InputError naming the file. */
 function withFile<T>(file: string, read: (f: H5File, version: number, root: Attributes) => T): T {
   const f = openHdf5(file);
@@ -195,8 +127,13 @@ function withFile<T>(file: string, read: (f: H5File, version: number, root: Attr
  * reusing memory saves a page fault per 4 KiB of ψ and leaves no grid behind for the garbage collector).
  */
 export function readSnapshot(file: string, withState = false, into?: Float64Array): Snapshot {
+  return (withState ? undefined : readNative(file, true, into)) ?? readThroughHdf5(file, withState, into);
+}
+
+/** readSnapshot through h5wasm alone (what it falls back to: tests and benchmarks compare both). */
+export function readThroughHdf5(file: string, withState = false, into?: Float64Array): Snapshot {
   return withFile(file, (f, version, root) => {
-    const meta = readMeta(f, root, version, file);
+    const meta = readMeta(gridAttributes(f, root, version, file), root, file);
     const psi = version === 1 ? readPsiV1(f, meta.cells, file) : readPsiV2(f, meta.cells, file, [PSI_RE, PSI_IM], into);
     const species = version === 1 ? {} : readSpeciesPsi(f, meta, file);
     return withState ? { meta, psi, ...species, state: readState(f, file) } : { meta, psi, ...species };
@@ -205,10 +142,12 @@ export function readSnapshot(file: string, withState = false, into?: Float64Arra
 
 /** A checkpoint's metadata and exact state, without its field for readers (what a resume needs). */
 export function readCheckpoint(file: string): { readonly meta: SnapshotMeta; readonly state: CheckpointState } {
-  return withFile(file, (f, version, root) => ({ meta: readMeta(f, root, version, file), state: readState(f, file) }));
+  return withFile(file, (f, version, root) => ({ meta: readMeta(gridAttributes(f, root, version, file), root, file), state: readState(f, file) }));
 }
 
 /** Only the metadata of a psibox snapshot (the field is not read). */
 export function readSnapshotMeta(file: string): SnapshotMeta {
-  return withFile(file, (f, version, root) => readMeta(f, root, version, file));
+  const native = readNative(file, false);
+  if (native) return native.meta;
+  return withFile(file, (f, version, root) => readMeta(gridAttributes(f, root, version, file), root, file));
 }
