@@ -240,9 +240,10 @@ export async function analyzeRun(runDir: string, outDir: string, options: RunAna
   }
   if (files.length) tracks.write(outDir, identity);
   if (!pictures) return { snapshots, figures: {}, tracks };
-  const firstSnap: Snapshot | undefined = files[0] ? readSnapshot(files[0]) : undefined;
-  const run = await runFigures(runDir, outDir, snapshots, files, firstSnap, { frames: options.frames === true, movie: options.movie === true, pictures: pictureOptions });
-  if (firstSnap) Object.assign(run.figures, await haloFigures(tracks, firstSnap.meta));
+  // the run's figures need the first snapshot's metadata only
+  const first = files[0] ? readSnapshotMeta(files[0]) : undefined;
+  const run = await runFigures(runDir, outDir, snapshots, files, first, { frames: options.frames === true, movie: options.movie === true, pictures: pictureOptions });
+  if (first) Object.assign(run.figures, await haloFigures(tracks, first));
   for (const [name, fig] of Object.entries(run.figures)) writeFigure(outDir, name, fig);
   if (options.frames || options.movie) {
     // 1D runs: the Husimi x–v image over the snapshots, as a second set of frames

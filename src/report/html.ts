@@ -8,7 +8,7 @@ import fs from "node:fs";
 import path from "node:path";
 import { InputError } from "../core/errors.js";
 import { formatNumber, formatQuantity } from "../core/format.js";
-import { readSnapshot } from "../io/snapshot.js";
+import { readSnapshotMeta } from "../io/snapshot.js";
 import { analyzeRun, type RunAnalysisOptions } from "./analyze.js";
 import { diagnosticsSection } from "./diagnostics-section.js";
 import { haloSection } from "./halo-section.js";
@@ -40,7 +40,7 @@ function overview(s: RunSummary, runDir: string, firstFile: string | undefined):
   const status = s.status === "completed" ? "completed" : `stopped (${s.reason ?? "no reason recorded"})`;
   let setup = "";
   if (firstFile) {
-    const m = readSnapshot(firstFile).meta;
+    const m = readSnapshotMeta(firstFile);
     const bg = m.background.kind === "lcdm" ? `flat ΛCDM (H₀ = ${formatNumber(m.background.hubbleKmSMpc, 4)} km/s/Mpc, Ω_m = ${formatNumber(m.background.omegaMatter, 4)}), comoving box` : "static box";
     const unit = axisUnit(Math.max(...m.boxSizeKpc));
     setup = `<p>${m.cells.length}D grid of ${m.cells.join(" × ")} cells, box ${m.boxSizeKpc.map((b) => formatNumber(b * unit.perKpc, 4)).join(" × ")} ${unit.name}, ${m.gravity} gravity, ${bg}; particle mass ${formatQuantity(m.particleMassEv, "eV")}.</p>`;
@@ -118,7 +118,7 @@ export async function writeReport(runDir: string, outFile?: string, options: Run
   const analysis = await analyzeRun(runDir, path.join(runDir, "analysis"), { ...options, pictures: true });
   const first = analysis.snapshots[0];
   const last = analysis.snapshots.at(-1);
-  const dims = first ? readSnapshot(first.file).meta.cells.length : 0;
+  const dims = first ? readSnapshotMeta(first.file).cells.length : 0;
   const target = clocks?.squeezing_db_target ?? -10;
   const clockSection = clocks
     ? `<p>For the whole-box condensate mode of N = ${formatNumber(clocks.particles_N)} particles, counted from the start of the run (squeezing target ${formatNumber(target)} dB). ${esc(modeSentence(clocks))}</p>

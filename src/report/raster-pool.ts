@@ -2,12 +2,15 @@
  * Drawing figures on worker threads (raster-worker.ts, figure-draw.ts):
  * each worker rasterises with resvg, puts a plane picture's cells in and
  * encodes the PNG itself, so none of it holds the main thread (a 3× figure
- * is several megabytes of pixels). Two workers (one on a single core; each
- * costs memory, and the main thread building the SVGs keeps no more than
- * two busy), started on first use (or early, by `prepareFigures` in
- * render.ts); idle workers do not keep the process alive. If a worker
- * cannot be started the caller falls back to drawing on this thread (`null`
- * from `rasterPool`).
+ * is several megabytes of pixels). One worker, started on first use (or
+ * early, by `prepareFigures` in render.ts): beside the main thread, which
+ * computes the numbers and builds the SVGs, and the transforms' thread, it
+ * keeps two cores busy, and a second worker cost more CPU time (its start,
+ * a second copy of resvg's working memory) and memory than it saved; many
+ * figures of the same kind (a movie's frames) ask for a second worker
+ * (`rasterPool(2)`, never more than the cores). Idle workers do not keep
+ * the process alive. If a worker cannot be started the caller falls back to
+ * drawing on this thread (`null` from `rasterPool`).
  */
 import os from "node:os";
 import path from "node:path";
@@ -99,6 +102,11 @@ export class RasterPool {
     this.workers = Array.from({ length: count }, () => new Rasteriser());
   }
 
+  /** Start workers up to `count`. */
+  widen(count: number): void {
+    while (this.workers.length < count) this.workers.push(new Rasteriser());
+  }
+
   render(job: FigureJob): Promise<Raster> {
     const worker = this.workers.reduce((best, w) => (w.load < best.load ? w : best));
     return worker.render(this.next++, job);
@@ -107,14 +115,16 @@ export class RasterPool {
 
 let pool: RasterPool | null | undefined;
 
-/** The process's figure workers (started on first call; null where workers cannot start). */
-export function rasterPool(): RasterPool | null {
-  if (pool !== undefined) return pool;
+/** The process's figure workers, at least `workers` of them where the machine has the cores (started on first call; null where workers cannot start). */
+export function rasterPool(workers = 1): RasterPool | null {
+  const count = Math.min(workers, Math.max(1, os.availableParallelism?.() ?? os.cpus().length));
   try {
-    resvgAllocatorOptions();
-    pool = new RasterPool(Math.min(2, Math.max(1, os.availableParallelism?.() ?? os.cpus().length)));
+    if (pool === undefined) {
+      resvgAllocatorOptions();
+      pool = new RasterPool(count);
+    } else pool?.widen(count);
   } catch {
-    pool = null;
+    pool ??= null;
   }
   return pool;
 }

@@ -14,9 +14,10 @@
  *
  * Rasterising and PNG encoding run on worker threads (raster-pool.ts), so
  * figures requested together (Promise.all) are drawn on all cores while the
- * main thread builds the next SVG. Only the figure font's own files are
- * loaded, found once per process through fontconfig; without fontconfig, or
- * without the font, every system font is loaded (slower, same pictures).
+ * main thread builds the next SVG. Only the figure font's regular and bold
+ * faces are loaded, found once per process through fontconfig; without
+ * fontconfig, or without the font, every system font is loaded (slower,
+ * same pictures).
  */
 import { execFile, execFileSync } from "node:child_process";
 import fs from "node:fs";
@@ -73,18 +74,36 @@ export const STYLE = {
 let fontFiles: string[] | null | undefined;
 let fontLookup: Promise<string[] | null> | undefined;
 
-/** The existing files of fontconfig's answer, sorted; null when none. */
-function listedFiles(listed: string): string[] | null {
-  const files = listed.split("\n").map((l) => l.trim().replace(/:$/, "")).filter((f) => f.length > 0 && fs.existsSync(f));
-  return files.length > 0 ? files.sort() : null;
+/** fontconfig's listing of the figure font's faces: file, weight, width and slant, one face a line. */
+const FC_ARGS = ["--format", "%{file}\t%{weight}\t%{width}\t%{slant}\n", FONT];
+/** fontconfig's weights of the figures' two styles (regular, bold), its upright slant and its normal width. */
+const REGULAR = 80;
+const BOLD = 200;
+
+/**
+ * The files of the faces the figures use (upright, normal width: the regular and the bold, each the listed weight
+ * nearest to it), sorted; every listed file where none is upright and of normal width; null when none exists.
+ * resvg reads every file it is given for each figure: the two faces instead of the family's nine.
+ */
+export function figureFaces(listed: string): string[] | null {
+  const faces = listed
+    .split("\n")
+    .map((l) => l.split("\t"))
+    .filter((f) => f.length === 4 && f[0]!.length > 0 && fs.existsSync(f[0]!))
+    .map(([file, weight, width, slant]) => ({ file: file!, weight: Number(weight), upright: Number(slant) === 0 && Number(width) === 100 }));
+  if (faces.length === 0) return null;
+  const upright = faces.filter((f) => f.upright);
+  if (upright.length === 0) return [...new Set(faces.map((f) => f.file))].sort();
+  const nearest = (w: number) => upright.reduce((best, f) => (Math.abs(f.weight - w) < Math.abs(best.weight - w) ? f : best)).file;
+  return [...new Set([nearest(REGULAR), nearest(BOLD)])].sort();
 }
 
-/** The figure font's files (all its styles), asked of fontconfig once; null when it cannot say. */
+/** The figure font's files (its regular and bold faces), asked of fontconfig once; null when it cannot say. */
 export function figureFontFiles(): string[] | null {
   if (fontFiles !== undefined) return fontFiles;
   fontFiles = null;
   try {
-    fontFiles = listedFiles(execFileSync("fc-list", [FONT, "file"], { encoding: "utf8", timeout: 10_000, stdio: ["ignore", "pipe", "ignore"] }));
+    fontFiles = figureFaces(execFileSync("fc-list", FC_ARGS, { encoding: "utf8", timeout: 10_000, stdio: ["ignore", "pipe", "ignore"] }));
   } catch {
     // no fontconfig: resvg loads the system's fonts itself
   }
@@ -95,9 +114,9 @@ export function figureFontFiles(): string[] | null {
 export function findFigureFont(): Promise<string[] | null> {
   if (fontFiles !== undefined) return Promise.resolve(fontFiles);
   fontLookup ??= new Promise((resolve) => {
-    execFile("fc-list", [FONT, "file"], { encoding: "utf8", timeout: 10_000 }, (error, stdout) => {
+    execFile("fc-list", FC_ARGS, { encoding: "utf8", timeout: 10_000 }, (error, stdout) => {
       // a synchronous ask meanwhile has settled it already
-      if (fontFiles === undefined) fontFiles = error ? null : listedFiles(stdout);
+      if (fontFiles === undefined) fontFiles = error ? null : figureFaces(stdout);
       resolve(fontFiles);
     });
   });

@@ -7,8 +7,9 @@
  */
 import fs from "node:fs";
 import path from "node:path";
-import type { Snapshot } from "../io/snapshot.js";
+import type { SnapshotMeta } from "../io/snapshot.js";
 import { readSnapshot } from "../io/snapshot.js";
+import { rasterPool } from "./raster-pool.js";
 import { writeFileAtomic } from "../io/atomic.js";
 import { unitInSI } from "../physics/units.js";
 import { formatNumber } from "../core/format.js";
@@ -87,10 +88,12 @@ async function inGroups(count: number, draw: (i: number) => Promise<void>): Prom
 }
 
 /** Frames of the whole run on one colour range; returns how many were written. */
-async function writeFrames(snapshots: readonly SnapshotLike[], files: readonly string[], frameDir: string, first: Snapshot, opts: PictureOptions): Promise<number> {
+async function writeFrames(snapshots: readonly SnapshotLike[], files: readonly string[], frameDir: string, first: SnapshotMeta, opts: PictureOptions): Promise<number> {
   fs.mkdirSync(frameDir, { recursive: true });
+  // many figures of one kind: a second figure worker draws beside the first
+  rasterPool(2);
   for (const f of fs.readdirSync(frameDir)) if (/^frame_\d{5}\.png$/.test(f)) fs.rmSync(path.join(frameDir, f));
-  const dims = first.meta.cells.length;
+  const dims = first.cells.length;
   const frame = (i: number) => path.join(frameDir, `frame_${String(i).padStart(5, "0")}.png`);
   if (dims === 1) {
     const profiles = files.map((f) => {
@@ -110,7 +113,7 @@ async function writeFrames(snapshots: readonly SnapshotLike[], files: readonly s
   const fixed = dims === 3 ? opts.columnRange : opts.densityRange;
   const range = fixed ? ([fixed[0], fixed[1]] as const) : colourRange(Float64Array.of(hi - opts.decades, hi), opts.decades);
   const p0 = pick(snapshots[0]!);
-  const unit = axisUnit(Math.max(...first.meta.boxSizeKpc)).name;
+  const unit = axisUnit(Math.max(...first.boxSizeKpc)).name;
   await inGroups(snapshots.length, async (i) => {
     const s = snapshots[i]!;
     const plane = pick(s);
@@ -132,7 +135,7 @@ async function writeFrames(snapshots: readonly SnapshotLike[], files: readonly s
 }
 
 /** Make the run's figures (and frames and movie when asked). */
-export async function runFigures(runDir: string, outDir: string, snapshots: readonly SnapshotLike[], files: readonly string[], first: Snapshot | undefined, opts: { frames: boolean; movie: boolean; pictures: PictureOptions }): Promise<RunOutputs> {
+export async function runFigures(runDir: string, outDir: string, snapshots: readonly SnapshotLike[], files: readonly string[], first: SnapshotMeta | undefined, opts: { frames: boolean; movie: boolean; pictures: PictureOptions }): Promise<RunOutputs> {
   const pending: Record<string, Promise<Figure>> = {};
   const series = readSeries(path.join(runDir, "timeseries.csv"));
   if (series) {
@@ -146,12 +149,12 @@ export async function runFigures(runDir: string, outDir: string, snapshots: read
     const marks = "lyapunov_integral" in series.rows[0]! || "depleted_N" in series.rows[0]! ? breakdownMarks(runDir, Number(series.rows[0]![series.tCol]), series.unit) : undefined;
     if (marks) pending["breakdown"] = breakdownPlot(series.rows, series.tCol, tTitle, marks);
   }
-  if (first && first.meta.cells.length === 1 && files.length > 1) {
+  if (first && first.cells.length === 1 && files.length > 1) {
     const rows = files.map((f) => {
       const s = readSnapshot(f);
       return { t: s.meta.time, logRho: Float64Array.from({ length: s.meta.cells[0]! }, (_, i) => Math.log10(Math.max(s.psi[2 * i]! ** 2 + s.psi[2 * i + 1]! ** 2, 1e-300))) };
     });
-    pending["spacetime"] = spacetimeFigure(rows, first.meta.boxSizeKpc[0]!, first.meta.timeUnit, { colourMap: opts.pictures.colourMap, decades: opts.pictures.decades, ...(opts.pictures.densityRange ? { range: opts.pictures.densityRange } : {}) });
+    pending["spacetime"] = spacetimeFigure(rows, first.boxSizeKpc[0]!, first.timeUnit, { colourMap: opts.pictures.colourMap, decades: opts.pictures.decades, ...(opts.pictures.densityRange ? { range: opts.pictures.densityRange } : {}) });
   }
   // drawn together: their rasterising shares the thread pool
   const figures = await figuresTogether(pending);

@@ -1,5 +1,6 @@
 // The pure pieces behind psibox's pictures: planes, colour ranges, log ticks, the cut of the
 // linear spectrum, space–time bands, picture options and the conservation drifts.
+import path from "node:path";
 import { describe, expect, it } from "vitest";
 import { Grid } from "../../src/grid/grid.js";
 import { densityPlane, planeAxes } from "../../src/report/planes.js";
@@ -165,6 +166,30 @@ describe("the figure font", () => {
     let ink = 0;
     for (let i = 0; i < own.data.length; i += 4) if (own.data[i]! < 128) ink++;
     expect(ink).toBeGreaterThan(500);
+  });
+});
+
+describe("the figure font's faces", () => {
+  it("are the upright regular and bold of normal width, from fontconfig's listing (file, weight, width, slant)", async () => {
+    const { figureFaces, figureFontFiles } = await import("../../src/report/render.js");
+    // fontconfig's scales (its documentation): weight 80 regular, 200 bold, 40 extra light; width 100 normal, 87 semi-condensed; slant 0 roman, 110 oblique
+    const real = figureFontFiles()!;
+    const dir = path.dirname(real[0]!);
+    const line = (file: string, weight: number, width: number, slant: number) => `${path.join(dir, file)}\t${weight}\t${width}\t${slant}`;
+    const bold = real.find((f) => /Bold/.test(path.basename(f)));
+    const regular = real.find((f) => f !== bold)!;
+    expect(real.length).toBe(2);
+    const listing = [
+      line(path.basename(regular), 80, 87, 0),
+      line(path.basename(regular), 80, 100, 110),
+      line(path.basename(bold!), 200, 100, 0),
+      line(path.basename(regular), 80, 100, 0),
+      line("no-such-face.ttf", 80, 100, 0),
+    ].join("\n");
+    expect(figureFaces(listing)).toEqual([bold, regular].sort());
+    // where nothing upright of normal width is listed: every listed file; nothing at all: null
+    expect(figureFaces(line(path.basename(regular), 80, 87, 110))).toEqual([regular]);
+    expect(figureFaces("")).toBeNull();
   });
 });
 
