@@ -45,12 +45,12 @@ export const LAYOUT_TWIDDLE_STRIDE: i32 = TWIDDLE_STRIDE;
 
 /** Quarter length h of the first twiddled radix-4 stage, after the first stage. */
 @inline function firstTwiddledH(n: i32): i32 {
-  return ctz<i32>(n) & 1 ? 2 : 4;
+  return ctz<i32>(n) & 1 ? (n >= 8 ? 8 : 2) : 4;
 }
 
 /** Address of the twiddles of the first twiddled stage (an even log2 n skips the h = 1 stage's entry). */
 @inline function firstTwiddles(n: i32, tw: usize): usize {
-  return ctz<i32>(n) & 1 ? tw : tw + <usize>TWIDDLE_STRIDE;
+  return ctz<i32>(n) & 1 ? (n >= 8 ? tw + <usize>(2 * TWIDDLE_STRIDE) : tw) : tw + <usize>TWIDDLE_STRIDE;
 }
 
 /** The twiddle-free radix-4 butterfly of four rows (natural residues 0, 2, 1, 3 in x0…x3), results to q0…q3. */
@@ -69,8 +69,12 @@ export const LAYOUT_TWIDDLE_STRIDE: i32 = TWIDDLE_STRIDE;
  * Gather `count` pencils (point j of pencil b at src + j·pointStride + b·pencilStride)
  * into buf in bit-reversed point order, doing the first stage on the way.
  */
-function gatherFirst(src: usize, pointStride: i32, pencilStride: i32, n: i32, count: i32, buf: usize, pitch: i32, rev: usize, rot: v128): void {
+function gatherFirst(src: usize, pointStride: i32, pencilStride: i32, n: i32, count: i32, buf: usize, pitch: i32, rev: usize, rot: v128, tw: usize): void {
   const one = f64x2.splat(1.0);
+  if (ctz<i32>(n) & 1 && n >= 8) {
+    firstTwoStages(src, pointStride, pencilStride, n, count, buf, pitch, rev, rot, tw);
+    return;
+  }
   if (ctz<i32>(n) & 1) {
     for (let t: i32 = 0; t < n; t += 2) {
       const s0 = src + <usize>(load<i32>(rev + (<usize>t << 2)) * pointStride);
@@ -106,8 +110,12 @@ function gatherFirst(src: usize, pointStride: i32, pencilStride: i32, n: i32, co
 }
 
 /** The first stage in place, for data already in bit-reversed order in buf. */
-function firstStage(buf: usize, n: i32, pitch: i32, count: i32, rot: v128): void {
+function firstStage(buf: usize, n: i32, pitch: i32, count: i32, rot: v128, tw: usize): void {
   const one = f64x2.splat(1.0);
+  if (ctz<i32>(n) & 1 && n >= 8) {
+    firstTwoStages(buf, 0, 16, n, count, buf, pitch, 0, rot, tw);
+    return;
+  }
   if (ctz<i32>(n) & 1) {
     for (let t: i32 = 0; t < n; t += 2) {
       const d0 = buf + <usize>(t * pitch);
@@ -211,8 +219,8 @@ function stagesInBuf(buf: usize, n: i32, pitch: i32, count: i32, tw: usize, inve
 /** All stages after the first, the last one writing to memory (times `scale`). */
 function stagesToMemory(buf: usize, n: i32, pitch: i32, count: i32, tw: usize, inverse: bool, dst: usize, pointStride: i32, pencilStride: i32, scale: f64): void {
   const rot = rotation(inverse);
-  if (n <= 4) {
-    // the first stage was the whole transform
+  if (firstTwiddledH(n) >= n) {
+    // the first stage (or the fused first two) was the whole transform
     scatter(dst, pointStride, pencilStride, n, count, buf, pitch, scale);
     return;
   }
@@ -227,19 +235,19 @@ function stagesToMemory(buf: usize, n: i32, pitch: i32, count: i32, tw: usize, i
 
 /** Transform `count` pencils from memory into buf (natural order). */
 function transformToBuf(src: usize, pointStride: i32, pencilStride: i32, n: i32, count: i32, buf: usize, pitch: i32, rev: usize, tw: usize, inverse: bool): void {
-  gatherFirst(src, pointStride, pencilStride, n, count, buf, pitch, rev, rotation(inverse));
+  gatherFirst(src, pointStride, pencilStride, n, count, buf, pitch, rev, rotation(inverse), tw);
   stagesInBuf(buf, n, pitch, count, tw, inverse);
 }
 
 /** Transform `count` pencils in memory in place (times `scale`). */
 function transformInPlace(data: usize, pointStride: i32, pencilStride: i32, n: i32, count: i32, buf: usize, pitch: i32, rev: usize, tw: usize, inverse: bool, scale: f64): void {
-  gatherFirst(data, pointStride, pencilStride, n, count, buf, pitch, rev, rotation(inverse));
+  gatherFirst(data, pointStride, pencilStride, n, count, buf, pitch, rev, rotation(inverse), tw);
   stagesToMemory(buf, n, pitch, count, tw, inverse, data, pointStride, pencilStride, scale);
 }
 
 /** Transform bit-reversed data in buf and write it to memory (times `scale`). */
 function transformBufToMemory(buf: usize, n: i32, pitch: i32, count: i32, tw: usize, inverse: bool, dst: usize, pointStride: i32, pencilStride: i32, scale: f64): void {
-  firstStage(buf, n, pitch, count, rotation(inverse));
+  firstStage(buf, n, pitch, count, rotation(inverse), tw);
   stagesToMemory(buf, n, pitch, count, tw, inverse, dst, pointStride, pencilStride, scale);
 }
 
@@ -498,14 +506,14 @@ function rowsCopy(p: usize, n2: i32, count: i32, buf: usize, pitch: i32, rev: us
 function rowsToBuf(p: usize, n: i32, count: i32, buf: usize, rev: usize, tw: usize, inverse: bool): void {
   const pitch = count << 4;
   rowsCopy(p, n, count, buf, pitch, rev, false, 1.0, 0, 0, 0, 0);
-  firstStage(buf, n, pitch, count, rotation(inverse));
+  firstStage(buf, n, pitch, count, rotation(inverse), tw);
   stagesInBuf(buf, n, pitch, count, tw, inverse);
 }
 
 /** Transform bit-reversed data in buf and write it to `count` rows of n points at p (times `scale`), each row written whole. */
 function bufToRows(buf: usize, p: usize, n: i32, count: i32, tw: usize, inverse: bool, scale: f64): void {
   const pitch = count << 4;
-  firstStage(buf, n, pitch, count, rotation(inverse));
+  firstStage(buf, n, pitch, count, rotation(inverse), tw);
   stagesInBuf(buf, n, pitch, count, tw, inverse);
   rowsCopy(p, n, count, buf, pitch, 0, true, scale, 0, 0, 0, 0);
 }
@@ -924,4 +932,69 @@ export function moments(psi: usize, phi: usize, lo: i32, hi: i32, out: usize): v
   store<f64>(out, Math.max(f64x2.extract_lane(rhoMax, 0), f64x2.extract_lane(rhoMax, 1)), 24);
   store<f64>(out, Math.min(f64x2.extract_lane(phiMin, 0), f64x2.extract_lane(phiMin, 1)), 32);
   store<f64>(out, Math.max(f64x2.extract_lane(phiMax, 0), f64x2.extract_lane(phiMax, 1)), 40);
+}
+
+// For an odd log2 n ≥ 3 the first stage is radix 2 and the next one radix 4 of quarter length 2: both
+// touch only the eight rows 8s … 8s+7 of a block, so they run fused, in registers, one pass over buf fewer.
+// Each value goes through exactly the additions and products of the two stages one after the other (the
+// twiddles of the second, k = 1, hoisted), so the result is the same bit for bit.
+
+/** Radix 2 on the pairs (a0, a1) … (e0, e1), then radix 4 (h = 2) on the eight results, stored to rows d … d + 7·pitch. */
+@inline function radix2Then4(
+  a0: v128, a1: v128, b0: v128, b1: v128, c0: v128, c1: v128, e0: v128, e1: v128, rot: v128, d: usize, pitch: usize,
+  w1r: v128, w1i: v128, w2r: v128, w2i: v128, w3r: v128, w3i: v128, one: v128,
+): void {
+  const r0 = f64x2.add(a0, a1);
+  const r1 = f64x2.sub(a0, a1);
+  const r2 = f64x2.add(b0, b1);
+  const r3 = f64x2.sub(b0, b1);
+  const r4 = f64x2.add(c0, c1);
+  const r5 = f64x2.sub(c0, c1);
+  const r6 = f64x2.add(e0, e1);
+  const r7 = f64x2.sub(e0, e1);
+  plainRadix4(r0, r2, r4, r6, rot, d, d + 2 * pitch, d + 4 * pitch, d + 6 * pitch, one);
+  const t2 = cmul(r3, w2r, w2i);
+  const t1 = cmul(r5, w1r, w1i);
+  const t3 = cmul(r7, w3r, w3i);
+  plainRadix4(r1, t2, t1, t3, rot, d + pitch, d + 3 * pitch, d + 5 * pitch, d + 7 * pitch, one);
+}
+
+/**
+ * The first two stages for an odd log2 n ≥ 3 (tw: the transform's twiddle table): with a bit-reversal
+ * permutation `rev`, gathered from memory as gatherFirst gathers; with rev = 0, in place on bit-reversed rows
+ * already in buf (src = buf, pencilStride = 16), as firstStage.
+ */
+function firstTwoStages(src: usize, pointStride: i32, pencilStride: i32, n: i32, count: i32, buf: usize, pitch: i32, rev: usize, rot: v128, tw: usize): void {
+  const one = f64x2.splat(1.0);
+  const tk = tw + <usize>TWIDDLE_STRIDE;
+  const w1r = v128.load(tk);
+  const w1i = v128.load(tk, 16);
+  const w2r = v128.load(tk, 32);
+  const w2i = v128.load(tk, 48);
+  const w3r = v128.load(tk, 64);
+  const w3i = v128.load(tk, 80);
+  const p = <usize>pitch;
+  // the radix-2 stage pairs rows t + 2i and t + 2i + 1: points rev[t + 2i] and rev[t + 2i] + n/2, or neighbouring rows
+  const half = rev ? <usize>((n >> 1) * pointStride) : p;
+  for (let t: i32 = 0; t < n; t += 8) {
+    const d = buf + <usize>(t * pitch);
+    let s0 = d;
+    let s1 = d + 2 * p;
+    let s2 = d + 4 * p;
+    let s3 = d + 6 * p;
+    if (rev) {
+      s0 = src + <usize>(load<i32>(rev + (<usize>t << 2)) * pointStride);
+      s1 = src + <usize>(load<i32>(rev + (<usize>(t + 2) << 2)) * pointStride);
+      s2 = src + <usize>(load<i32>(rev + (<usize>(t + 4) << 2)) * pointStride);
+      s3 = src + <usize>(load<i32>(rev + (<usize>(t + 6) << 2)) * pointStride);
+    }
+    for (let b: i32 = 0; b < count; b++) {
+      const o = <usize>(b * pencilStride);
+      radix2Then4(
+        v128.load(s0 + o), v128.load(s0 + half + o), v128.load(s1 + o), v128.load(s1 + half + o),
+        v128.load(s2 + o), v128.load(s2 + half + o), v128.load(s3 + o), v128.load(s3 + half + o),
+        rot, d + (<usize>b << 4), p, w1r, w1i, w2r, w2i, w3r, w3i, one,
+      );
+    }
+  }
 }
