@@ -71,70 +71,88 @@ function bilinearZero(re: readonly number[], im: readonly number[]): [number, nu
   return s >= 0 && s <= 1 && t >= 0 && t <= 1 ? [s, t] : [0.5, 0.5];
 }
 
-/** Where the plaquettes of one orientation are pierced: the cells, their charges and the next cells along the plaquette's two axes. */
-interface Scan {
-  readonly grid: Grid;
-  readonly phase: Float64Array;
-  /** Cell index, charge, index step along the first axis, along the second, per piercing, in storage order. */
-  readonly hits: number[];
+/** The plaquettes' orientations: spanned by axes (p, q), normal r (3D) or none (2D). */
+function orientationsOf(grid: Grid): [number, number, number][] {
+  return grid.dims === 2 ? [[1, 2, -1]] : [[1, 2, 0], [2, 0, 1], [0, 1, 2]];
 }
 
 /**
  * Index steps along `axis` from the cells of row (a, b); 0 for the last axis, whose wrap is taken per cell
- * (a simulated first or second axis has at least two cells, so its step is never 0).
+ * (a simulated first or second axis has at least two cells, so its step is never 0). `local`: the steps in the
+ * scan's two planes (plane a, then plane a + 1 whatever a is), where a step along the first axis never wraps.
  */
-function rowStep(grid: Grid, axis: number, a: number, b: number): number {
+function rowStep(grid: Grid, axis: number, a: number, b: number, local: boolean): number {
   const [n0, n1, n2] = grid.shape;
-  if (axis === 0) return a === n0 - 1 ? -(n0 - 1) * n1 * n2 : n1 * n2;
+  if (axis === 0) return a === n0 - 1 && !local ? -(n0 - 1) * n1 * n2 : n1 * n2;
   if (axis === 1) return b === n1 - 1 ? -(n1 - 1) * n2 : n2;
   return 0;
 }
 
-/** One row's plaquettes spanned by steps dp and dq (0: along the last axis, wrapping at its end): the pierced ones into `hits`. */
-function scanRow(s: Scan, i: number, dp: number, dq: number): void {
-  const { phase, hits } = s;
-  const n2 = s.grid.shape[2];
-  for (let c = 0; c < n2; c++, i++) {
+/**
+ * One row's plaquettes spanned by steps (dp, dq) in the phase planes, (gp, gq) in the grid (0: along the last
+ * axis, wrapping at its end), from cell `li` of the planes, cell `gi` of the grid: the pierced ones into `hits`
+ * as (cell, charge, grid step p, grid step q).
+ */
+function scanRow(phase: Float64Array, hits: number[], n2: number, li: number, gi: number, dp: number, dq: number, gp: number, gq: number): void {
+  for (let c = 0; c < n2; c++, li++, gi++) {
     const d2 = c === n2 - 1 ? -(n2 - 1) : 1;
     const sp = dp === 0 ? d2 : dp;
     const sq = dq === 0 ? d2 : dq;
-    const ip = i + sp;
-    const iq = i + sq;
+    const ip = li + sp;
+    const iq = li + sq;
     const ipq = ip + sq;
-    const w = wrap(phase[ip]! - phase[i]!) + wrap(phase[ipq]! - phase[ip]!) + wrap(phase[iq]! - phase[ipq]!) + wrap(phase[i]! - phase[iq]!);
+    const w = wrap(phase[ip]! - phase[li]!) + wrap(phase[ipq]! - phase[ip]!) + wrap(phase[iq]! - phase[ipq]!) + wrap(phase[li]! - phase[iq]!);
     const charge = Math.round(w / (2 * Math.PI));
-    if (charge !== 0) hits.push(i, charge, sp, sq);
+    if (charge !== 0) hits.push(gi, charge, gp === 0 ? d2 : gp, gq === 0 ? d2 : gq);
   }
 }
 
-/** The pierced plaquettes spanned by axes pa and qa (cells in storage order). */
-function scanOrientation(s: Scan, pa: number, qa: number): void {
-  const [n0, n1, n2] = s.grid.shape;
-  for (let a = 0, i = 0; a < n0; a++) for (let b = 0; b < n1; b++, i += n2) scanRow(s, i, rowStep(s.grid, pa, a, b), rowStep(s.grid, qa, a, b));
+/** The phase of cells [from, from + count) of ψ into `out` from index `at`. */
+function phases(psi: Float64Array, from: number, count: number, out: Float64Array, at: number): void {
+  for (let i = 0; i < count; i++, at++) out[at] = Math.atan2(psi[2 * (from + i) + 1]!, psi[2 * (from + i)]!);
 }
 
-/** The phase of every cell into `out`. */
-function phases(psi: Float64Array, out: Float64Array): void {
-  for (let i = 0; i < out.length; i++) out[i] = Math.atan2(psi[2 * i + 1]!, psi[2 * i]!);
+/**
+ * The pierced plaquettes of each orientation (orientationsOf), each list in storage order, found plane by plane
+ * along the first axis with the phases of two planes at a time (plane a and the next, periodic): no grid-sized
+ * scratch, each cell's phase computed once (the first plane's twice).
+ */
+function scanPlanes(grid: Grid, psi: Float64Array): number[][] {
+  const [n0, n1, n2] = grid.shape;
+  const plane = n1 * n2;
+  const three = grid.dims === 3;
+  const phase = new Float64Array(three ? 2 * plane : plane);
+  const orientations = orientationsOf(grid);
+  const hits = orientations.map((): number[] => []);
+  phases(psi, 0, plane, phase, 0);
+  for (let a = 0; a < n0; a++) {
+    if (three) phases(psi, ((a + 1) % n0) * plane, plane, phase, plane);
+    orientations.forEach(([pa, qa], o) => {
+      for (let b = 0; b < n1; b++) {
+        const [dp, dq] = [rowStep(grid, pa, a, b, true), rowStep(grid, qa, a, b, true)];
+        scanRow(phase, hits[o]!, n2, b * n2, a * plane + b * n2, dp, dq, rowStep(grid, pa, a, b, false), rowStep(grid, qa, a, b, false));
+      }
+    });
+    if (three) phase.copyWithin(0, plane, 2 * plane);
+  }
+  return hits;
 }
 
-/** Vortices of a 2D or 3D field (throws RangeError for a 1D grid); `scratch`, if given, is a grid of at least one number per cell it may overwrite. */
-export function findVortices(grid: Grid, psi: Float64Array, scratch?: Float64Array): VortexCensus {
+/** Receives each vortex (2D) or piercing (3D): its position along the internal axes (all three; code lengths; reused between calls), charge, normal (the simulated axis' index, −1 in 2D) and length. */
+export type VortexSink = (position: Float64Array, charge: number, normal: number, length: number) => void;
+
+/** The census of a 2D or 3D field with its points handed to `sink` one by one (in the order findVortices lists them) instead of kept. */
+export function scanVortices(grid: Grid, psi: Float64Array, sink: VortexSink): Omit<VortexCensus, "points"> {
   if (grid.dims < 2) throw new RangeError("vortices need a 2D or 3D field");
-  const n = grid.size;
-  const phase = scratch && scratch.length >= n ? scratch.subarray(0, n) : new Float64Array(n);
-  phases(psi, phase);
   const [, n1, n2] = grid.shape;
   const axes = simulatedAxes(grid);
-  const points: VortexPoint[] = [];
   const projection = new Float64Array(n1 * n2);
   const t = { positive: 0, negative: 0, lineLength: 0 };
-  // plaquettes spanned by axes (p, q), normal r (3D) or none (2D)
-  const orientations: [number, number, number][] = grid.dims === 2 ? [[1, 2, -1]] : [[1, 2, 0], [2, 0, 1], [0, 1, 2]];
-  for (const [pa, qa, normal] of orientations) {
-    const scan: Scan = { grid, phase, hits: [] };
-    scanOrientation(scan, pa, qa);
-    const h = scan.hits;
+  const found = scanPlanes(grid, psi);
+  const pos = new Float64Array(3);
+  orientationsOf(grid).forEach(([pa, qa, normal], o) => {
+    const h = found[o]!;
+    const normalIndex = normal >= 0 ? axes.indexOf(normal as 0 | 1 | 2) : -1;
     for (let k = 0; k < h.length; k += 4) {
       const [i, charge, sp, sq] = [h[k]!, h[k + 1]!, h[k + 2]!, h[k + 3]!];
       if (charge > 0) t.positive += charge;
@@ -142,28 +160,27 @@ export function findVortices(grid: Grid, psi: Float64Array, scratch?: Float64Arr
       const corners = [i, i + sp, i + sq, i + sp + sq] as const;
       const idx = [Math.floor(i / (n1 * n2)), Math.floor(i / n2) % n1, i % n2] as const;
       const [s, u] = grid.dims === 2 ? bilinearZero(corners.map((c) => psi[2 * c]!), corners.map((c) => psi[2 * c + 1]!)) : [0.5, 0.5];
-      const pos = [idx[0] * grid.spacing[0], idx[1] * grid.spacing[1], idx[2] * grid.spacing[2]];
+      for (let ax = 0; ax < 3; ax++) pos[ax] = idx[ax]! * grid.spacing[ax]!;
       pos[pa] = pos[pa]! + s * grid.spacing[pa]!;
       pos[qa] = pos[qa]! + u * grid.spacing[qa]!;
       const length = normal >= 0 ? pierceLength(grid, psi, corners, idx[normal]!, normal, pa, qa) : 0;
       t.lineLength += length;
       const column = idx[1] * n2 + idx[2];
       projection[column] = projection[column]! + (normal >= 0 ? length : 1);
-      points.push({ position: axes.map((ax) => pos[ax]!), charge, normal: normal >= 0 ? axes.indexOf(normal as 0 | 1 | 2) : -1, length });
+      sink(pos, charge, normalIndex, length);
     }
-  }
+  });
   const { positive, negative, lineLength } = t;
   const measure = grid.volume;
-  return {
-    dims: grid.dims as 2 | 3,
-    points,
-    positive,
-    negative,
-    netCharge: positive - negative,
-    density: grid.dims === 2 ? (positive + negative) / measure : lineLength / measure,
-    lineLength,
-    projection,
-  };
+  return { dims: grid.dims as 2 | 3, positive, negative, netCharge: positive - negative, density: grid.dims === 2 ? (positive + negative) / measure : lineLength / measure, lineLength, projection };
+}
+
+/** Vortices of a 2D or 3D field (throws RangeError for a 1D grid). */
+export function findVortices(grid: Grid, psi: Float64Array): VortexCensus {
+  const axes = simulatedAxes(grid);
+  const points: VortexPoint[] = [];
+  const census = scanVortices(grid, psi, (pos, charge, normal, length) => points.push({ position: axes.map((ax) => pos[ax]!), charge, normal, length }));
+  return { ...census, points };
 }
 
 /**

@@ -25,37 +25,13 @@ import { prepareFigures, type Figure } from "./render.js";
 import { checkDiagnostics, type DiagnosticRequest, type FieldDiagnostic } from "./diagnostic-options.js";
 import { fieldDiagnostics, physicalScales } from "./field-diagnostics.js";
 import { diagnosticFigures, splitFigures } from "./diagnostic-plots.js";
-import { PooledTransforms } from "../integrators/pooled-transforms.js";
-import { defaultThreads } from "../config/resolve-output.js";
-import type { Grid } from "../grid/grid.js";
+import { AnalysisTransforms } from "./analysis-transforms.js";
 import { energyAndKineticSplit } from "../diagnostics/energy-split.js";
 import { speciesSummary } from "./species-summary.js";
 
+export { AnalysisTransforms } from "./analysis-transforms.js";
+
 const KPC = 1e3 * PC_M;
-
-/**
- * The diagnostics' transforms of the snapshots being analysed: the step
- * engine's kernels on the default threads, with the two work grids the
- * energy split, the kinetic split and the granules need (also the scratch
- * of the densest points, halos and vortices), made once per grid shape and
- * reused.
- */
-export class AnalysisTransforms {
-  private current: PooledTransforms | undefined;
-
-  of(grid: Grid): PooledTransforms {
-    if (this.current && this.current.shape.every((n, i) => n === grid.shape[i])) return this.current;
-    this.close();
-    // the worker threads start while the caller goes on (reading the snapshot): the first transform waits for them
-    this.current = new PooledTransforms(grid, 2, { threads: defaultThreads(grid.cells), pool: { deferStart: true } });
-    return this.current;
-  }
-
-  close(): void {
-    this.current?.close();
-    this.current = undefined;
-  }
-}
 
 /** What analysing one snapshot produced. */
 export interface SnapshotAnalysis {
@@ -101,6 +77,9 @@ interface Measured {
 /** The tables and the field diagnostics of a snapshot, yielding between them to the figures being drawn; the energy split's and P(k)'s figures are started as soon as they are known. */
 async function measure(file: string, snap: Snapshot, field: LoadedField, outDir: string, request: DiagnosticRequest, chosen: Set<FieldDiagnostic>, withPictures: boolean, transforms: AnalysisTransforms, tracks: RunTracks | undefined): Promise<Measured> {
   const fft = transforms.of(field.grid);
+  // the vortex scan reads ψ on a thread of its own while this one computes the rest (on a grid the cores pay for)
+  const vortexJob = chosen.has("vortices") ? transforms.vortices(field.grid, field.psi, physicalScales(field).kpc) : undefined;
+  if (vortexJob) later(vortexJob);
   // the energy split's transforms give the tables' kinetic split too
   const both = chosen.has("energy-split") ? energyAndKineticSplit(field.grid, field.psi, field.scaleFactor, fft) : undefined;
   const split = withPictures && both ? splitFigures(field, both.split, physicalScales(field), timeCaption(snap)) : undefined;
@@ -114,7 +93,8 @@ async function measure(file: string, snap: Snapshot, field: LoadedField, outDir:
   if (species) summary["species"] = species;
   await tick();
   // the tables left δ's spectrum in work grid 1 (the halos and peaks use work grid 0)
-  const diagnostics = fieldDiagnostics(field, chosen, outDir, fft, request.husimiWindowKpc, request.husimiPointsKpc, both?.split, { contrastSpectrum: fft.work(1), ...(both ? { moments: both.moments } : {}) });
+  const vortices = vortexJob ? await vortexJob : undefined;
+  const diagnostics = fieldDiagnostics(field, chosen, outDir, fft, request.husimiWindowKpc, request.husimiPointsKpc, both?.split, { contrastSpectrum: fft.work(1), ...(both ? { moments: both.moments } : {}) }, vortices);
   return { summary, diagnostics, ...(powerFigure ? { powerFigure } : {}), ...(split ? { splitFigures: split } : {}) };
 }
 
@@ -144,7 +124,7 @@ async function analyzeSnapshotFiles(
   transforms?: AnalysisTransforms,
   tracks?: RunTracks,
 ): Promise<SnapshotAnalysis> {
-  const own = transforms ?? new AnalysisTransforms();
+  const own = transforms ?? new AnalysisTransforms(true);
   try {
     return await analyzeWith(file, outDir, withPictures, request, pictures, own, tracks);
   } finally {
@@ -156,8 +136,7 @@ async function analyzeSnapshotFiles(
 async function analyzeWith(file: string, outDir: string, withPictures: boolean, request: DiagnosticRequest, pictures: PictureOptions, transforms: AnalysisTransforms, tracks: RunTracks | undefined): Promise<SnapshotAnalysis> {
   // fontconfig answers, the figure workers and the transforms' threads start while the snapshot is read
   if (withPictures) prepareFigures();
-  transforms.of(snapshotGrid(readSnapshotMeta(file)));
-  const snap = readSnapshot(file);
+  const snap = readSnapshot(file, false, transforms.psiOf(snapshotGrid(readSnapshotMeta(file))));
   const chosen = checkDiagnostics(request, snap.meta.cells.length, snap.meta.boxSizeKpc, snap.meta.cells, file);
   if (withPictures) checkSliceIndex(pictures, snap.meta.cells, file);
   checkHaloRequest(request.halos ?? { definition: "200m" }, snap, file);

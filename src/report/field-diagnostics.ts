@@ -9,13 +9,13 @@ import { writeFileAtomic } from "../io/atomic.js";
 import type { LoadedField } from "../simulation/from-snapshot.js";
 import type { FieldTransforms } from "../fields/field-transforms.js";
 import { energySplit, type EnergySplit } from "../diagnostics/energy-split.js";
-import { findVortices, type VortexCensus } from "../diagnostics/vortices.js";
+import { vortexTable, type VortexReport, type VortexTable } from "./vortex-table.js";
 import { granuleStats, type GranuleInputs, type GranuleStats } from "../diagnostics/granules.js";
 import { defaultHusimiWindow, husimiImage1D, HusimiSampler, internalPoint, wehrlEntropy } from "../diagnostics/husimi.js";
 import { densestPoints } from "../diagnostics/analysis.js";
 import { M_SUN_KG, PC_M } from "../physics/constants.js";
 import type { FieldDiagnostic } from "./diagnostic-options.js";
-import { csvTable, csvText, csvValue } from "./csv-table.js";
+import { csvTable } from "./csv-table.js";
 import { PooledTransforms } from "../integrators/pooled-transforms.js";
 import { Grid } from "../grid/grid.js";
 
@@ -38,7 +38,7 @@ export function physicalScales(field: LoadedField): PhysicalScales {
 export interface FieldDiagnosticsResult {
   readonly summary: Record<string, unknown>;
   readonly split?: ReturnType<typeof energySplit>;
-  readonly vortices?: VortexCensus;
+  readonly vortices?: VortexReport;
   readonly granules?: GranuleStats;
   /** 1D: the x–v image (log₁₀ f over x and v); 2D/3D: speed distributions at the points. */
   readonly husimiImage?: { x: Float64Array; v: Float64Array; log10f: Float64Array; vMax: number };
@@ -49,7 +49,7 @@ export interface FieldDiagnosticsResult {
 /**
  * Compute the chosen diagnostics of `field` (the energy split given when measured already) and write their
  * tables into `outDir`; `granuleInputs` are the granules' inputs measured already (a contrast spectrum in a
- * work grid of `fft`, which the vortex scan leaves alone: it uses work grid 0).
+ * work grid of `fft`), `vortices` the census measured already (on a worker thread: vortex-table.ts).
  */
 export function fieldDiagnostics(
   field: LoadedField,
@@ -60,12 +60,13 @@ export function fieldDiagnostics(
   pointsKpc?: readonly (readonly number[])[],
   measuredSplit?: EnergySplit,
   granuleInputs?: GranuleInputs,
+  vortices?: VortexTable,
 ): FieldDiagnosticsResult {
   const s = physicalScales(field);
   const summary: Record<string, unknown> = {};
   const out: { -readonly [K in keyof FieldDiagnosticsResult]: FieldDiagnosticsResult[K] } = { summary };
   if (chosen.has("energy-split")) out.split = writeEnergySplit(field, s, outDir, summary, measuredSplit ?? energySplit(field.grid, field.psi, field.scaleFactor, fft));
-  if (chosen.has("vortices")) out.vortices = writeVortices(field, s, outDir, summary, fft.work(0));
+  if (chosen.has("vortices")) out.vortices = writeVortices(field, s, outDir, summary, vortices ?? vortexTable(field.grid, field.psi, s.kpc));
   // a split measured here used the work grids: the contrast spectrum given is gone
   if (chosen.has("granules")) out.granules = writeGranules(field, s, outDir, summary, fft, chosen.has("energy-split") && !measuredSplit ? undefined : granuleInputs);
   if (chosen.has("husimi")) Object.assign(out, writeHusimi(field, s, outDir, summary, windowKpc, pointsKpc));
@@ -92,19 +93,13 @@ function writeEnergySplit(field: LoadedField, s: PhysicalScales, outDir: string,
   return split;
 }
 
-function writeVortices(field: LoadedField, s: PhysicalScales, outDir: string, summary: Record<string, unknown>, scratch: Float64Array): VortexCensus {
-  const census = findVortices(field.grid, field.psi, scratch);
-  const three = field.grid.dims === 3;
-  const header = three ? ["x_kpc", "y_kpc", "z_kpc", "normal_axis", "charge", "length_kpc"] : ["x_kpc", "y_kpc", "charge"];
-  // one line per point, written as csvTable writes its rows (no row arrays: a 3D census has many thousands)
-  const lines = census.points.map((p) => {
-    const pos = p.position.map((x) => csvValue(x * s.kpc)).join(",");
-    return three ? `${pos},${csvValue(p.normal + 1)},${csvValue(p.charge)},${csvValue(p.length * s.kpc)}` : `${pos},${csvValue(p.charge)}`;
-  });
-  writeFileAtomic(path.join(outDir, "vortices.csv"), csvText(header, lines));
-  summary["vortices"] = three
-    ? { piercings: census.points.length, net_charge: census.netCharge, line_length_kpc: census.lineLength * s.kpc, line_length_per_volume_per_kpc2: census.density / s.kpc ** 2 }
-    : { count: census.positive + census.negative, positive: census.positive, negative: census.negative, net_charge: census.netCharge, per_area_per_kpc2: census.density / s.kpc ** 2 };
+function writeVortices(field: LoadedField, s: PhysicalScales, outDir: string, summary: Record<string, unknown>, table: VortexTable): VortexReport {
+  const census = table.report;
+  writeFileAtomic(path.join(outDir, "vortices.csv"), table.csv);
+  summary["vortices"] =
+    field.grid.dims === 3
+      ? { piercings: census.piercings, net_charge: census.netCharge, line_length_kpc: census.lineLength * s.kpc, line_length_per_volume_per_kpc2: census.density / s.kpc ** 2 }
+      : { count: census.positive + census.negative, positive: census.positive, negative: census.negative, net_charge: census.netCharge, per_area_per_kpc2: census.density / s.kpc ** 2 };
   return census;
 }
 

@@ -8,7 +8,6 @@ import { SimpleTransforms } from "../../src/fields/field-transforms.js";
 import { PooledTransforms } from "../../src/integrators/pooled-transforms.js";
 import { densestPoints, densityPowerSpectrum, kineticSplit, meanDensity } from "../../src/diagnostics/analysis.js";
 import { kineticFromGradient, periodicPotentialFromContrast } from "../../src/diagnostics/energies.js";
-import { findVortices } from "../../src/diagnostics/vortices.js";
 import { energyAndKineticSplit, energySplit } from "../../src/diagnostics/energy-split.js";
 import { granuleStats } from "../../src/diagnostics/granules.js";
 import { HusimiSampler, husimiWindowRange } from "../../src/diagnostics/husimi.js";
@@ -100,7 +99,6 @@ describe.each(cases)("$cells.length-D grid $cells", ({ cells, a }) => {
  
     // a work grid lent as scratch changes nothing
     expect(densestPoints(grid, psi, 3, 2, fast.work(0))).toEqual(densestPoints(grid, psi, 3, 2));
-    if (grid.dims > 1) expect(findVortices(grid, psi, fast.work(1))).toEqual(findVortices(grid, psi));
   });
 });
 

@@ -63,6 +63,37 @@ describe("planted vortices", () => {
     expect(census.netCharge).toBe(0);
   });
 
+  it("the plane-by-plane scan lists exactly the plaquettes whose phase winding is nonzero, in order (a direct count over every plaquette, computed independently)", () => {
+    for (const [cells, lengths] of [[[16, 8, 32], [1, 0.6, 1.6]], [[16, 32], [1, 1.8]]] as const) {
+      const grid = new Grid([...cells], [...lengths]);
+      const psi = gaussianComplexField(grid, (k2) => Math.exp(-k2 / 200), 7);
+      const [n0, n1, n2] = grid.shape;
+      const phase = (a: number, b: number, c: number) => {
+        const i = ((a % n0) * n1 + (b % n1)) * n2 + (c % n2);
+        return Math.atan2(psi[2 * i + 1]!, psi[2 * i]!);
+      };
+      const wrap = (d: number) => d - 2 * Math.PI * Math.round(d / (2 * Math.PI));
+      const expected: string[] = [];
+      const orientations = grid.dims === 2 ? [[1, 2, -1]] : [[1, 2, 0], [2, 0, 1], [0, 1, 2]];
+      for (const [p, q, normal] of orientations)
+        for (let a = 0; a < n0; a++)
+          for (let b = 0; b < n1; b++)
+            for (let c = 0; c < n2; c++) {
+              const at = [a, b, c];
+              const step = (x: number[], ax: number) => x.map((v, k) => (k === ax ? v + 1 : v));
+              const corners = [at, step(at, p!), step(step(at, p!), q!), step(at, q!)].map((x) => phase(x[0]!, x[1]!, x[2]!));
+              const w = corners.reduce((sum, f, k) => sum + wrap(corners[(k + 1) % 4]! - f), 0);
+              const charge = Math.round(w / (2 * Math.PI));
+              if (charge !== 0) expected.push(`${grid.dims === 2 ? [b, c] : at} ${normal} ${charge}`);
+            }
+      const census = findVortices(grid, psi);
+      const axes = grid.dims === 2 ? [1, 2] : [0, 1, 2];
+      const found = census.points.map((pt) => `${pt.position.map((x, k) => Math.floor(x / grid.spacing[axes[k]!]!))} ${pt.normal < 0 ? -1 : axes[pt.normal]} ${pt.charge}`);
+      expect(expected.length).toBeGreaterThan(10);
+      expect(found).toEqual(expected);
+    }
+  });
+
   it("1D fields are refused", () => {
     expect(() => findVortices(new Grid([16], [1]), new Float64Array(32))).toThrow(RangeError);
   });

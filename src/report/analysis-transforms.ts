@@ -1,0 +1,71 @@
+/**
+ * What `psibox analyze` computes the numbers of its snapshots on, made once
+ * per grid shape and reused for every snapshot of a run (no grid is
+ * allocated per snapshot): the step engine's kernels on the default threads
+ * with the two work grids the energy split, the kinetic split and the
+ * granules need (also the scratch of the densest points and halos), and a
+ * third grid that ψ is read into, all in the step's shared memory; and the
+ * helper thread (analysis-helper.ts), which touches those grids' pages while
+ * the first snapshot is read (ψ's from its end, the work grids after) and
+ * takes the vortex census beside the main thread.
+ */
+import type { Grid } from "../grid/grid.js";
+import { PooledTransforms } from "../integrators/pooled-transforms.js";
+import { defaultThreads } from "../config/resolve-output.js";
+import { touchRangeOf } from "../fields/page-touch.js";
+import { AnalysisHelper } from "./analysis-helper.js";
+import { vortexJobOf, type VortexTable } from "./vortex-table.js";
+
+/** Which work grid holds ψ (the diagnostics use 0 and 1). */
+const PSI_GRID = 2;
+
+export class AnalysisTransforms {
+  private current: PooledTransforms | undefined;
+  private helperThread: AnalysisHelper | undefined;
+
+  /** @param single one snapshot only: the helper thread ends after its census (its memory is given back before the pictures are drawn) */
+  constructor(private readonly single = false) {}
+
+  /** The transforms of `grid`'s shape (made when the shape is new). */
+  of(grid: Grid): PooledTransforms {
+    if (this.current && this.current.shape.every((n, i) => n === grid.shape[i])) return this.current;
+    this.current?.close();
+    // the worker threads start while the caller goes on (reading the snapshot): the first transform waits for them
+    const fft = new PooledTransforms(grid, 3, { threads: defaultThreads(grid.cells), pool: { deferStart: true } });
+    this.current = fft;
+    void this.helper(grid)?.touch([touchRangeOf(fft.work(PSI_GRID), true), touchRangeOf(fft.work(0)), touchRangeOf(fft.work(1))]);
+    return fft;
+  }
+
+  /** The grid of `grid`'s shape that ψ is read into (in shared memory: other threads can read it). */
+  psiOf(grid: Grid): Float64Array {
+    return this.of(grid).work(PSI_GRID);
+  }
+
+  /** The helper thread, on a grid large enough for the cores to pay (where the step too uses them), else undefined. */
+  private helper(grid: Grid): AnalysisHelper | undefined {
+    if (defaultThreads(grid.cells) < 2) return undefined;
+    this.helperThread ??= new AnalysisHelper();
+    return this.helperThread;
+  }
+
+  /** The vortex census of ψ on the helper thread, or undefined where there is none or ψ is not in shared memory (the caller computes it then). */
+  vortices(grid: Grid, psi: Float64Array, kpc: number): Promise<VortexTable> | undefined {
+    const job = vortexJobOf(grid, psi, kpc);
+    const helper = this.helper(grid);
+    if (!job || !helper) return undefined;
+    const census = helper.vortices(job);
+    return this.single ? census.finally(() => this.closeHelper()) : census;
+  }
+
+  private closeHelper(): void {
+    this.helperThread?.close();
+    this.helperThread = undefined;
+  }
+
+  close(): void {
+    this.current?.close();
+    this.current = undefined;
+    this.closeHelper();
+  }
+}
