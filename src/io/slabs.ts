@@ -98,15 +98,28 @@ function scratchBuffer(i: number, bytes: number): ArrayBuffer {
 
 export type Take = (r0: number, r1: number, slabs: (Float64Array | Float32Array)[]) => void;
 
+/** Which slabs a reader takes: slabs of `step` rows, the next one's index from `claim` (−1: none left); several threads may share them. */
+export interface SlabClaims {
+  readonly step: number;
+  readonly claim: () => number;
+}
+
+/** Slabs of `step` rows one after another (a reader alone). */
+export function inOrder(step: number): SlabClaims {
+  let next = 0;
+  return { step, claim: () => next++ };
+}
+
 /**
  * Datasets of one shape and value size read slab by slab from the file's `pieces` (one list per dataset) into buffers
- * kept for the next read; `paths` name them in errors.
+ * kept for the next read, the slabs that `claims` hands out (default: all, in order); `paths` name them in errors.
  */
-export function readPieces(fd: number, file: string, paths: readonly string[], pieces: readonly (readonly Piece[])[], shape: readonly number[], size: number, take: Take): void {
-  const step = slabRows(shape, size);
+export function readPieces(fd: number, file: string, paths: readonly string[], pieces: readonly (readonly Piece[])[], shape: readonly number[], size: number, take: Take, claims = inOrder(slabRows(shape, size))): void {
+  const step = claims.step;
   const rowValues = shape.slice(1).reduce((p, n) => p * n, 1);
   const buffers = pieces.map((_, i) => scratchBuffer(i, step * rowValues * size));
-  for (let r0 = 0; r0 < shape[0]!; r0 += step) {
+  for (let k = claims.claim(); k >= 0 && k * step < shape[0]!; k = claims.claim()) {
+    const r0 = k * step;
     const r1 = Math.min(shape[0]!, r0 + step);
     const values = (r1 - r0) * rowValues;
     try {

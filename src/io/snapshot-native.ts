@@ -9,19 +9,20 @@
  */
 import fs from "node:fs";
 import { NativeRoot } from "./h5-native.js";
-import { interleaved } from "./psi-interleave.js";
-import { readPieces } from "./slabs.js";
+import { newPsi, readIntoPsi } from "./shared-read.js";
 import { layoutVersion, readMeta } from "./snapshot-meta.js";
 import { PSI_IM, PSI_RE, speciesVariables } from "./snapshot-layout.js";
 import type { Snapshot, SnapshotMeta } from "./snapshot.js";
 
-/** ψ of the variables `names` (real, imaginary), each of the grid's shape. */
+/** ψ of the variables `names` (real, imaginary), each of the grid's shape, into `into` when it has ψ's length. */
 function readPsi(fd: number, root: NativeRoot, meta: SnapshotMeta, file: string, names: readonly string[], into?: Float64Array): Float64Array {
   const parts = names.map((n) => root.dataset(n));
   const cells = meta.cells.join("×");
   if (parts.some((p) => p.shape.join("×") !== cells || p.size !== parts[0]!.size)) throw new RangeError("ψ's parts differ from the grid");
-  const paths = parts.map((p) => p.path);
-  return interleaved(meta.cells, (take) => readPieces(fd, file, paths, parts.map((p) => p.pieces), parts[0]!.shape, parts[0]!.size, take), into);
+  const length = 2 * meta.cells.reduce((p, n) => p * n, 1);
+  const psi = into?.length === length ? into : newPsi(length);
+  readIntoPsi(fd, file, parts.map((p) => p.path), parts.map((p) => p.pieces), parts[0]!.shape, parts[0]!.size, psi);
+  return psi;
 }
 
 /**
