@@ -112,6 +112,9 @@ export async function printAnalyzeRows(n = 128, repeat = 3) {
       const peak = median(xs.map((x) => x.rssMB));
       console.log(`${label.padEnd(16)} ${median(xs.map((x) => x.wall)).toFixed(2).padStart(7)} ${median(xs.map((x) => x.process)).toFixed(2).padStart(17)} ${median(xs.map((x) => x.cpu)).toFixed(2).padStart(19)} ${median(xs.map((x) => x.main)).toFixed(2).padStart(13)} ${median(xs.map((x) => x.gc)).toFixed(2).padStart(6)} ${peak.toFixed(0).padStart(9)}   ${((peak - base) / grid).toFixed(1)} of ${grid.toFixed(0)} MiB`);
     }
+    // the pictures' own cost: the medians with them less those without
+    const cost = (key, digits) => (median(runs.pictures.map((x) => x[key])) - median(runs.tables.map((x) => x[key]))).toFixed(digits);
+    console.log(`the pictures' cost: ${cost("wall", 2)} s wall, ${cost("cpu", 2)} s CPU over all threads, ${cost("main", 2)} s main thread, ${(Number(cost("rssMB", 1)) / grid).toFixed(1)} complex grids of peak memory`);
     console.log(`(baseline: ${base.toFixed(0)} MB, node with psibox's modules and HDF5 loaded; the goal: under 1 s with pictures, within 5 complex grids)`);
   } finally {
     fs.rmSync(dir, { recursive: true, force: true });

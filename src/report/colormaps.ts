@@ -4,9 +4,10 @@
  * monotonically, so a picture reads the same in grey): viridis, magma,
  * inferno and plasma (van der Walt & Smith, designed for matplotlib 2.0)
  * and cividis (Nuñez, Anderton & Renslow 2018, also readable with
- * red–green colour blindness). The tables come from Vega's schemes.
+ * red–green colour blindness). The tables come from Vega's schemes
+ * (vega-scale alone: the main thread does not load the rest of Vega).
  */
-import * as vega from "vega";
+import { scheme } from "vega-scale";
 import { InputError } from "../core/errors.js";
 
 export const COLOUR_MAPS = ["viridis", "magma", "inferno", "plasma", "cividis"] as const;
@@ -32,7 +33,7 @@ const tables = new Map<ColourMap, Uint8Array>();
 export function colourTable(name: ColourMap): Uint8Array {
   const cached = tables.get(name);
   if (cached) return cached;
-  const interp = vega.scheme(name) as (t: number) => string;
+  const interp = scheme(name) as (t: number) => string;
   const lut = new Uint8Array(256 * 3);
   for (let i = 0; i < 256; i++) lut.set(parseColour(interp(i / 255)), 3 * i);
   tables.set(name, lut);

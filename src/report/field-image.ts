@@ -8,7 +8,7 @@
 import type * as vega from "vega";
 import { blockPng, encodePng } from "./png.js";
 import { colourTable, type ColourMap } from "./colormaps.js";
-import { rasterise, vegaSvg, STYLE, PNG_SCALE, type Figure } from "./render.js";
+import { rasterise, STYLE, PNG_SCALE, type Figure } from "./render.js";
 import type { Plane } from "./planes.js";
 import { RASTER_MARKER } from "./figure-draw.js";
 
@@ -135,7 +135,6 @@ export async function fieldFigure(plane: Plane, opts: FieldFigureOptions): Promi
       },
     ],
   };
-  const { svg, origin } = await vegaSvg(spec);
   const colours = cellColours(plane, lo, hi, opts.colourMap);
-  return rasterise(svg, PNG_SCALE, { x: origin[0], y: origin[1], width: w, height: h, nx: plane.nx, ny: plane.ny, colours, zoom: Math.min(zoom, 64) });
+  return rasterise({ spec }, PNG_SCALE, { width: w, height: h, nx: plane.nx, ny: plane.ny, colours, zoom: Math.min(zoom, 64) });
 }

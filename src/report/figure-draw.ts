@@ -1,7 +1,8 @@
 /**
  * Drawing one figure into its files' bytes, on a figure worker (or on the
- * main thread where none can start): resvg rasterises the SVG and encodes
- * the PNG.
+ * main thread where none can start): Vega turns a specification into the
+ * SVG (vega-svg.ts, loaded with the first one), resvg rasterises the SVG
+ * and encodes the PNG.
  *
  * A plane picture's raster is not drawn by resvg: the SVG carries a
  * placeholder image, which is left out of the rasterised SVG; its cells are
@@ -12,15 +13,15 @@
  * gets the enlarged raster as an embedded PNG in the placeholder's place.
  */
 import type { ResvgRenderOptions } from "@resvg/resvg-js";
+import type * as vega from "vega";
+import type { TopLevelSpec } from "vega-lite";
 import { blockPng, FIGURE_LEVEL, pngFile } from "./png.js";
 
 /** The placeholder address of a plane picture's image (a data address that Vega keeps as it is). */
 export const RASTER_MARKER = "data:image/png;base64,cHNpYm94LXJhc3Rlcg==";
 
-/** A plane picture's raster: its rectangle in SVG units, its cells' colours (RGB, top row first) and the zoom of the embedded PNG. */
+/** A plane picture's raster: its size in SVG units (its top-left corner is the origin of the Vega spec's marks), its cells' colours (RGB, top row first) and the zoom of the embedded PNG. */
 export interface RasterLayer {
-  readonly x: number;
-  readonly y: number;
   readonly width: number;
   readonly height: number;
   readonly nx: number;
@@ -29,12 +30,14 @@ export interface RasterLayer {
   readonly zoom: number;
 }
 
-/** What a worker is sent: the SVG, resvg's options (zoom, fonts, white background) and a plane picture's raster. */
-export interface FigureJob {
-  readonly svg: string;
+/** What a figure is drawn from: its SVG, or a Vega spec, or a Vega-Lite spec (given the shared style). */
+export type FigureSource = { readonly svg: string } | { readonly spec: vega.Spec } | { readonly vegaLite: TopLevelSpec };
+
+/** What a worker is sent: the figure, resvg's options (zoom, fonts, white background) and a plane picture's raster (with a Vega spec only). */
+export type FigureJob = FigureSource & {
   readonly options: ResvgRenderOptions;
   readonly raster?: RasterLayer;
-}
+};
 
 /** The figure's files: the SVG and the PNG's bytes, and the PNG's size in pixels. */
 export interface DrawnFigure {
@@ -56,21 +59,29 @@ function frameOnly(svg: string): string {
   return svg.replace(IMAGE, "").replace(BACKGROUND, "$1");
 }
 
+/** The figure's SVG and the origin of its marks (a Vega spec's plot area; [0, 0] for an SVG given as it is). */
+async function figureSvg(source: FigureSource): Promise<{ svg: string; origin: [number, number] }> {
+  if ("svg" in source) return { svg: source.svg, origin: [0, 0] };
+  const { vegaOfLite, vegaSvg } = await import("./vega-svg.js");
+  return vegaSvg("spec" in source ? source.spec : vegaOfLite(source.vegaLite));
+}
+
 /** Draw a figure: rasterise and encode (resvg's own encoder), or for a plane picture put its cells under the frame, encode the PNG here and fill the SVG's raster in. */
-export function drawFigure(Resvg: ResvgClass, job: FigureJob): DrawnFigure {
+export async function drawFigure(Resvg: ResvgClass, job: FigureJob): Promise<DrawnFigure> {
+  const { svg, origin } = await figureSvg(job);
   const raster = job.raster;
   if (!raster) {
-    const image = new Resvg(job.svg, job.options).render();
-    return { svg: job.svg, png: image.asPng(), width: image.width, height: image.height };
+    const image = new Resvg(svg, job.options).render();
+    return { svg, png: image.asPng(), width: image.width, height: image.height };
   }
-  const image = new Resvg(frameOnly(job.svg), { ...job.options, background: undefined }).render();
+  const image = new Resvg(frameOnly(svg), { ...job.options, background: undefined }).render();
   const { width, height } = image;
   const scale = job.options.fitTo?.mode === "zoom" ? job.options.fitTo.value : 1;
   const px = image.pixels;
-  layOver(px, width, height, underlay(raster, scale));
+  layOver(px, width, height, underlay(raster, origin, scale));
   const png = pngFile(scanlines(px, width, height), width, height, 4, FIGURE_LEVEL);
   const embedded = `data:image/png;base64,${blockPng(raster.colours, raster.nx, raster.ny, raster.zoom).toString("base64")}`;
-  return { svg: job.svg.replace(RASTER_MARKER, embedded), png, width, height };
+  return { svg: svg.replace(RASTER_MARKER, embedded), png, width, height };
 }
 
 /** Where the cells go in pixels: the rectangle, and for each pixel column and row the offset of its cell's colour. */
@@ -88,10 +99,10 @@ function cellOf(n: number, cells: number, zoom: number): Int32Array {
   return Int32Array.from({ length: n }, (_, i) => Math.min(cells - 1, Math.floor(Math.floor(((i + 0.5) * src) / n) / zoom)));
 }
 
-function underlay(r: RasterLayer, scale: number): Underlay {
-  const [x0, y0] = [Math.round(r.x * scale), Math.round(r.y * scale)];
-  const w = Math.round((r.x + r.width) * scale) - x0;
-  const h = Math.round((r.y + r.height) * scale) - y0;
+function underlay(r: RasterLayer, [x, y]: readonly [number, number], scale: number): Underlay {
+  const [x0, y0] = [Math.round(x * scale), Math.round(y * scale)];
+  const w = Math.round((x + r.width) * scale) - x0;
+  const h = Math.round((y + r.height) * scale) - y0;
   const columns = cellOf(w, r.nx, r.zoom).map((c) => 3 * c);
   const rows = cellOf(h, r.ny, r.zoom).map((c) => 3 * r.nx * c);
   return { x0, y0, columns, rows, colours: r.colours };

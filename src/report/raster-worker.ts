@@ -1,7 +1,8 @@
 /**
  * A figure worker (started by raster-pool.ts): draws each figure it is
- * sent with resvg (figure-draw.ts) and sends back the SVG and the PNG's
- * bytes, or the error's message.
+ * sent with Vega and resvg (figure-draw.ts) and sends back the SVG and the
+ * PNG's bytes, or the error's message. Vega is loaded as the worker starts
+ * (while the main thread reads a snapshot), not with the first figure.
  *
  * resvg's rendered pixels and parsed SVG live outside the JavaScript heap,
  * freed only when their JavaScript handles are collected; the worker's heap
@@ -18,6 +19,7 @@ import { parentPort } from "node:worker_threads";
 import { drawFigure, type FigureJob, type ResvgClass } from "./figure-draw.js";
 
 const { Resvg } = createRequire(import.meta.url)("@resvg/resvg-js") as { Resvg: ResvgClass };
+await import("./vega-svg.js");
 
 /** This thread's garbage collector, or nothing where V8 does not give it. */
 function collector(): (() => void) | undefined {
@@ -33,9 +35,10 @@ function collector(): (() => void) | undefined {
 
 const collect = collector();
 
-parentPort!.on("message", ({ id, job }: { id: number; job: FigureJob }) => {
+/** Draw one figure and send it back (figures are drawn one at a time, in the order they came). */
+async function draw(id: number, job: FigureJob): Promise<void> {
   try {
-    const drawn = drawFigure(Resvg, job);
+    const drawn = await drawFigure(Resvg, job);
     // a copy of its own: the encoder's buffer may be a slice of a shared pool
     const png = Uint8Array.from(drawn.png);
     parentPort!.postMessage({ id, svg: drawn.svg, png, width: drawn.width, height: drawn.height }, [png.buffer]);
@@ -44,4 +47,9 @@ parentPort!.on("message", ({ id, job }: { id: number; job: FigureJob }) => {
   }
   // resvg's memory is given back by the handles' finalizers, which run after this turn
   collect?.();
+}
+
+let queue = Promise.resolve();
+parentPort!.on("message", ({ id, job }: { id: number; job: FigureJob }) => {
+  queue = queue.then(() => draw(id, job));
 });

@@ -8,26 +8,27 @@
  * of one column of a two-column paper (8.6 cm) prints its text at about
  * 7–8 pt, and one on a slide at half its width reads from the back row.
  * PNGs are rendered at 3 pixels per SVG unit (about 300 dpi at column
- * width); the SVG is kept as the vector version. Tick labels go through
- * psibox's number formatter (registered as the Vega expression function
- * `psiboxTick`).
+ * width); the SVG is kept as the vector version (vega-svg.ts, with the
+ * look of figure-style.ts).
  *
- * Rasterising and PNG encoding run on worker threads (raster-pool.ts), so
- * figures requested together (Promise.all) are drawn on all cores while the
- * main thread builds the next SVG. Only the figure font's regular and bold
+ * The figures are drawn on a worker thread (raster-pool.ts): the main
+ * thread builds the specifications and sends them; the worker turns them
+ * into SVG with Vega, rasterises and encodes the PNG, so the main thread
+ * never loads Vega while a worker can start, and figures requested
+ * together (Promise.all) are drawn while the main thread computes. Only the figure font's regular and bold
  * faces are loaded, found once per process through fontconfig; without
  * fontconfig, or without the font, every system font is loaded (slower,
  * same pictures).
  */
 import { execFile, execFileSync } from "node:child_process";
 import fs from "node:fs";
-import * as vega from "vega";
-import { compile, type TopLevelSpec } from "vega-lite";
 import { createRequire } from "node:module";
+import type * as vega from "vega";
+import type { TopLevelSpec } from "vega-lite";
 import type { ResvgRenderOptions } from "@resvg/resvg-js";
-import { formatTick } from "../core/format.js";
 import { rasterPool, resvgAllocatorOptions } from "./raster-pool.js";
-import { drawFigure, type FigureJob, type RasterLayer, type ResvgClass } from "./figure-draw.js";
+import type { FigureJob, FigureSource, RasterLayer, ResvgClass } from "./figure-draw.js";
+import { FONT, PNG_SCALE } from "./figure-style.js";
 
 /** A rendered figure. */
 export interface Figure {
@@ -37,39 +38,7 @@ export interface Figure {
   readonly height: number;
 }
 
-export const FONT = "DejaVu Sans";
-/** PNG pixels per SVG unit. */
-export const PNG_SCALE = 3;
-
-let registered = false;
-function registerFormatter(): void {
-  if (registered) return;
-  vega.expressionFunction("psiboxTick", (x: unknown) => (typeof x === "number" ? formatTick(x) : String(x)));
-  registered = true;
-}
-
-/** The shared look: fonts, sizes, formatted ticks. Used as Vega-Lite `config` and merged into Vega specs. */
-export const STYLE = {
-  font: FONT,
-  title: { font: FONT, subtitleFont: FONT, fontSize: 11, fontWeight: "bold", subtitleFontSize: 10, anchor: "start", offset: 6 },
-  axis: {
-    labelFont: FONT,
-    titleFont: FONT,
-    labelFontSize: 10,
-    titleFontSize: 11,
-    titleFontWeight: "normal",
-    labelExpr: "psiboxTick(datum.value)",
-    labelOverlap: true,
-    labelFlush: false,
-    tickCount: 5,
-    grid: false,
-    domainColor: "#333",
-    tickColor: "#333",
-  },
-  legend: { labelFont: FONT, titleFont: FONT, labelFontSize: 10, titleFontSize: 10, titleFontWeight: "normal", labelLimit: 300, titleLimit: 400 },
-  text: { font: FONT },
-  view: { stroke: "#333" },
-} as const;
+export { FONT, PNG_SCALE, STYLE } from "./figure-style.js";
 
 let fontFiles: string[] | null | undefined;
 let fontLookup: Promise<string[] | null> | undefined;
@@ -135,9 +104,10 @@ function rasterOptions(scale: number, files: string[] | null): ResvgRenderOption
   return { fitTo: { mode: "zoom", value: scale }, font: { ...font, defaultFontFamily: FONT, sansSerifFamily: FONT }, background: "white" };
 }
 
-/** Rasterise an SVG with the figure font (and a plane picture's raster under it), on the figure workers (or on this thread where they cannot start). */
-export async function rasterise(svg: string, scale = PNG_SCALE, raster?: RasterLayer): Promise<Figure> {
-  const job: FigureJob = { svg, options: rasterOptions(scale, await findFigureFont()), ...(raster ? { raster } : {}) };
+/** Draw a figure (an SVG, or a Vega or Vega-Lite spec) with the figure font, and a plane picture's raster under it, on the figure workers (or on this thread where they cannot start). */
+export async function rasterise(source: string | FigureSource, scale = PNG_SCALE, raster?: RasterLayer): Promise<Figure> {
+  const from = typeof source === "string" ? { svg: source } : source;
+  const job: FigureJob = { ...from, options: rasterOptions(scale, await findFigureFont()), ...(raster ? { raster } : {}) };
   const pool = rasterPool();
   if (pool) {
     try {
@@ -146,10 +116,11 @@ export async function rasterise(svg: string, scale = PNG_SCALE, raster?: RasterL
       // drawn below, where resvg's own error (if the SVG is at fault) reaches the caller
     }
   }
-  // loaded here only (after its allocator's options are set), where no worker could draw
+  // loaded here only (resvg after its allocator's options are set; Vega with the drawing), where no worker could draw
   resvgAllocatorOptions();
   const { Resvg } = createRequire(import.meta.url)("@resvg/resvg-js") as { Resvg: ResvgClass };
-  const drawn = drawFigure(Resvg, job);
+  const { drawFigure } = await import("./figure-draw.js");
+  const drawn = await drawFigure(Resvg, job);
   return { ...drawn, png: Buffer.from(drawn.png.buffer, drawn.png.byteOffset, drawn.png.length) };
 }
 
@@ -160,25 +131,12 @@ export async function figuresTogether(pending: Readonly<Record<string, Promise<F
   return Object.fromEntries(entries.map(([name], i) => [name, figures[i]!]));
 }
 
-/** A Vega spec's SVG, and where the origin of its marks (the plot area's top-left corner) lies in it, in SVG units. */
-export async function vegaSvg(spec: vega.Spec): Promise<{ svg: string; origin: [number, number] }> {
-  registerFormatter();
-  const view = new vega.View(vega.parse(spec), { renderer: "none" });
-  const svg = await view.toSVG();
-  const [x, y] = view.origin();
-  const pad = view.padding() as { left: number; top: number };
-  view.finalize();
-  return { svg, origin: [x + pad.left, y + pad.top] };
-}
-
 /** Render a Vega spec to SVG and PNG. */
-export async function renderVega(spec: vega.Spec, scale = PNG_SCALE): Promise<Figure> {
-  return rasterise((await vegaSvg(spec)).svg, scale);
+export function renderVega(spec: vega.Spec, scale = PNG_SCALE): Promise<Figure> {
+  return rasterise({ spec }, scale);
 }
 
 /** Render a Vega-Lite spec (with the shared style) to SVG and PNG. */
-export async function renderVegaLite(spec: TopLevelSpec, scale = PNG_SCALE): Promise<Figure> {
-  registerFormatter();
-  const styled = { ...spec, config: { ...STYLE, ...((spec as { config?: object }).config ?? {}) } } as TopLevelSpec;
-  return renderVega(compile(styled).spec, scale);
+export function renderVegaLite(spec: TopLevelSpec, scale = PNG_SCALE): Promise<Figure> {
+  return rasterise({ vegaLite: spec }, scale);
 }

@@ -232,6 +232,19 @@ describe("PNG files", () => {
     for (const f of [a, b]) expect(Buffer.compare(Buffer.from(PNG.sync.read(f.png).data), Buffer.from(here.pixels))).toBe(0);
   });
 
+  it("of Vega-Lite figures are the same whether the worker or this thread draws them", async () => {
+    const { Resvg } = await import("@resvg/resvg-js");
+    const { FONT, PNG_SCALE, figureFontFiles, renderVegaLite } = await import("../../src/report/render.js");
+    const { drawFigure } = await import("../../src/report/figure-draw.js");
+    const spec = { data: { values: [1, 2, 3, 4].map((k) => ({ k, P: 10 ** -k })) }, mark: "line", encoding: { x: { field: "k", type: "quantitative" }, y: { field: "P", type: "quantitative", scale: { type: "log" } } } } as const;
+    const options = { fitTo: { mode: "zoom", value: PNG_SCALE }, font: { loadSystemFonts: false, fontFiles: figureFontFiles()!, defaultFontFamily: FONT, sansSerifFamily: FONT }, background: "white" } as const;
+    const [there, here] = await Promise.all([renderVegaLite(spec), drawFigure(Resvg, { vegaLite: spec, options })]);
+    expect(there.svg).toBe(here.svg);
+    expect(Buffer.compare(there.png, Buffer.from(here.png))).toBe(0);
+    // the ticks went through psibox's formatter on the worker too: 10⁻⁴ as a power of ten (Vega's own says 0.0001)
+    expect(there.svg).toContain(">10⁻⁴</text>");
+  });
+
   it("of plane pictures put the cells under the frame where resvg draws the SVG file's embedded raster", async () => {
     const { Resvg } = await import("@resvg/resvg-js");
     const { FONT, PNG_SCALE, figureFontFiles } = await import("../../src/report/render.js");
