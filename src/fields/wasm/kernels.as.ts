@@ -53,16 +53,27 @@ export const LAYOUT_TWIDDLE_STRIDE: i32 = TWIDDLE_STRIDE;
   return ctz<i32>(n) & 1 ? (n >= 8 ? tw + <usize>(2 * TWIDDLE_STRIDE) : tw) : tw + <usize>TWIDDLE_STRIDE;
 }
 
-/** The twiddle-free radix-4 butterfly of four rows (natural residues 0, 2, 1, 3 in x0…x3), results to q0…q3. */
-@inline function plainRadix4(x0: v128, x1: v128, x2: v128, x3: v128, rot: v128, q0: usize, q1: usize, q2: usize, q3: usize, sc: v128): void {
+/**
+ * The twiddle-free radix-4 butterfly of four rows (natural residues 0, 2, 1, 3 in x0…x3), results to q0…q3,
+ * times `sc` when `scaled` (a constant at each call, so unscaled stages carry no multiplication by 1).
+ * ×(∓i) is a swap and the sign mask `rot` flipping one lane: the same bits as multiplying by (±1, ∓1).
+ */
+@inline function plainRadix4(x0: v128, x1: v128, x2: v128, x3: v128, rot: v128, q0: usize, q1: usize, q2: usize, q3: usize, sc: v128, scaled: bool): void {
   const u0 = f64x2.add(x0, x1);
   const u1 = f64x2.sub(x0, x1);
   const v0 = f64x2.add(x2, x3);
-  const v1 = f64x2.mul(swap(f64x2.sub(x2, x3)), rot);
-  v128.store(q0, f64x2.mul(f64x2.add(u0, v0), sc));
-  v128.store(q2, f64x2.mul(f64x2.sub(u0, v0), sc));
-  v128.store(q1, f64x2.mul(f64x2.add(u1, v1), sc));
-  v128.store(q3, f64x2.mul(f64x2.sub(u1, v1), sc));
+  const v1 = v128.xor(swap(f64x2.sub(x2, x3)), rot);
+  if (scaled) {
+    v128.store(q0, f64x2.mul(f64x2.add(u0, v0), sc));
+    v128.store(q2, f64x2.mul(f64x2.sub(u0, v0), sc));
+    v128.store(q1, f64x2.mul(f64x2.add(u1, v1), sc));
+    v128.store(q3, f64x2.mul(f64x2.sub(u1, v1), sc));
+  } else {
+    v128.store(q0, f64x2.add(u0, v0));
+    v128.store(q2, f64x2.sub(u0, v0));
+    v128.store(q1, f64x2.add(u1, v1));
+    v128.store(q3, f64x2.sub(u1, v1));
+  }
 }
 
 /**
@@ -104,7 +115,7 @@ function gatherFirst(src: usize, pointStride: i32, pencilStride: i32, n: i32, co
     for (let b: i32 = 0; b < count; b++) {
       const o = <usize>(b * pencilStride);
       const q = <usize>b << 4;
-      plainRadix4(v128.load(s0 + o), v128.load(s1 + o), v128.load(s2 + o), v128.load(s3 + o), rot, d0 + q, d1 + q, d2 + q, d3 + q, one);
+      plainRadix4(v128.load(s0 + o), v128.load(s1 + o), v128.load(s2 + o), v128.load(s3 + o), rot, d0 + q, d1 + q, d2 + q, d3 + q, one, false);
     }
   }
 }
@@ -137,7 +148,7 @@ function firstStage(buf: usize, n: i32, pitch: i32, count: i32, rot: v128, tw: u
     const d3 = d2 + <usize>pitch;
     for (let b: i32 = 0; b < count; b++) {
       const q = <usize>b << 4;
-      plainRadix4(v128.load(d0 + q), v128.load(d1 + q), v128.load(d2 + q), v128.load(d3 + q), rot, d0 + q, d1 + q, d2 + q, d3 + q, one);
+      plainRadix4(v128.load(d0 + q), v128.load(d1 + q), v128.load(d2 + q), v128.load(d3 + q), rot, d0 + q, d1 + q, d2 + q, d3 + q, one, false);
     }
   }
 }
@@ -145,11 +156,11 @@ function firstStage(buf: usize, n: i32, pitch: i32, count: i32, rot: v128, tw: u
 /**
  * One radix-4 stage of quarter length h on buf, twiddles at t. Output rows go
  * back to buf, or with `dst` ≠ 0 (the last stage, h = n/4) to point j of each
- * pencil at dst + j·pointStride + b·pencilStride, times `scale`.
+ * pencil at dst + j·pointStride + b·pencilStride, times `scale` when `scaled`.
  */
 @inline function stage(
   buf: usize, n: i32, pitch: i32, count: i32, t: usize, h: i32, rot: v128,
-  dst: usize, pointStride: i32, pencilStride: i32, scale: f64,
+  dst: usize, pointStride: i32, pencilStride: i32, scale: f64, scaled: bool,
 ): void {
   const q = <usize>(h * pitch);
   const sc = f64x2.splat(scale);
@@ -176,7 +187,7 @@ function firstStage(buf: usize, n: i32, pitch: i32, count: i32, rot: v128, tw: u
         for (let b: i32 = 0; b < count; b++) {
           const i = <usize>b << 4;
           const j = <usize>b * step;
-          plainRadix4(v128.load(p0 + i), v128.load(p1 + i), v128.load(p2 + i), v128.load(p3 + i), rot, o0 + j, o1 + j, o2 + j, o3 + j, sc);
+          plainRadix4(v128.load(p0 + i), v128.load(p1 + i), v128.load(p2 + i), v128.load(p3 + i), rot, o0 + j, o1 + j, o2 + j, o3 + j, sc, scaled);
         }
         continue;
       }
@@ -195,15 +206,15 @@ function firstStage(buf: usize, n: i32, pitch: i32, count: i32, rot: v128, tw: u
         const t2 = cmul(v128.load(p1 + i), w2r, w2i);
         const t1 = cmul(v128.load(p2 + i), w1r, w1i);
         const t3 = cmul(v128.load(p3 + i), w3r, w3i);
-        plainRadix4(x0, t2, t1, t3, rot, o0 + j, o1 + j, o2 + j, o3 + j, sc);
+        plainRadix4(x0, t2, t1, t3, rot, o0 + j, o1 + j, o2 + j, o3 + j, sc, scaled);
       }
     }
   }
 }
 
 @inline function rotation(inverse: bool): v128 {
-  // ×(−i) forward, ×(+i) inverse: (re, im) → (±im, ∓re)
-  return inverse ? f64x2(-1.0, 1.0) : f64x2(1.0, -1.0);
+  // ×(−i) forward, ×(+i) inverse: (re, im) → (±im, ∓re), the swapped pair's sign flipped in lane 0 (inverse) or 1
+  return inverse ? f64x2(-0.0, 0.0) : f64x2(0.0, -0.0);
 }
 
 /** All stages after the first on buf (result in natural order in buf). */
@@ -211,7 +222,7 @@ function stagesInBuf(buf: usize, n: i32, pitch: i32, count: i32, tw: usize, inve
   const rot = rotation(inverse);
   let t = firstTwiddles(n, tw);
   for (let h = firstTwiddledH(n); h < n; h <<= 2) {
-    stage(buf, n, pitch, count, t, h, rot, 0, 0, 0, 1.0);
+    stage(buf, n, pitch, count, t, h, rot, 0, 0, 0, 1.0, false);
     t += <usize>(h * TWIDDLE_STRIDE);
   }
 }
@@ -227,10 +238,12 @@ function stagesToMemory(buf: usize, n: i32, pitch: i32, count: i32, tw: usize, i
   let t = firstTwiddles(n, tw);
   let h = firstTwiddledH(n);
   for (; 4 * h < n; h <<= 2) {
-    stage(buf, n, pitch, count, t, h, rot, 0, 0, 0, 1.0);
+    stage(buf, n, pitch, count, t, h, rot, 0, 0, 0, 1.0, false);
     t += <usize>(h * TWIDDLE_STRIDE);
   }
-  stage(buf, n, pitch, count, t, h, rot, dst, pointStride, pencilStride, scale);
+  // a forward transform's scale is 1: its last stage without the multiplications
+  if (scale == 1.0) stage(buf, n, pitch, count, t, h, rot, dst, pointStride, pencilStride, scale, false);
+  else stage(buf, n, pitch, count, t, h, rot, dst, pointStride, pencilStride, scale, true);
 }
 
 /** Transform `count` pencils from memory into buf (natural order). */
@@ -272,7 +285,18 @@ const LONG_BLOCK: i32 = 8;
 const LONG_ROW: i32 = 1024;
 
 /**
- * FFT of rows [lo, hi) along the last axis, BLOCK rows at a time (LONG_BLOCK from LONG_ROW points on). With
+ * Rows of n points a rows pass transforms together: LONG_BLOCK from LONG_ROW on, else a scratch block of
+ * about 32 KiB (BLOCK rows of up to 128 points, 8 of 256, 4 of 512). Rows a power of two apart fall
+ * into few sets of a core's first-level cache; more of them at once thrash it (measured: rows of 256
+ * points took 1.9 times as long 16 at a time as 8 at a time, rows of 512 points 2.3 times as long as 4).
+ * Rows never mix, so the block size changes no result.
+ */
+@inline function rowsBlock(n: i32): i32 {
+  return n >= LONG_ROW ? LONG_BLOCK : min(BLOCK, max(4, 2048 / n));
+}
+
+/**
+ * FFT of rows [lo, hi) along the last axis, rowsBlock(n2) rows at a time. With
  * `kickFactor` non-zero the rows are first multiplied by e^{−iK(φ + g|s|²)}
  * (the step's opening kick, while the block is in cache; see `kick`); with `density` set, φ ← |ψ|²
  * of the transformed rows is written afterwards and Σ|ψ|² returned.
@@ -283,7 +307,7 @@ export function rowsPass(
 ): f64 {
   let sum = f64x2.splat(0);
   const long = n2 >= LONG_ROW;
-  const block = long ? LONG_BLOCK : BLOCK;
+  const block = rowsBlock(n2);
   for (let r = lo; r < hi; r += block) {
     const count = min(block, hi - r);
     const p = data + (<usize>(r * n2) << 4);
@@ -669,7 +693,7 @@ export function realRows(input: usize, out: usize, n2: i32, lo: i32, hi: i32, bu
   const half = f64x2.splat(0.5);
   const conj = f64x2(1.0, -1.0);
   const long = m >= LONG_ROW;
-  const block = long ? LONG_BLOCK : BLOCK;
+  const block = rowsBlock(m);
   for (let r = lo; r < hi; r += block) {
     const count = min(block, hi - r);
     const pitch = count << 4;
@@ -702,7 +726,7 @@ export function realRowsInverse(spec: usize, out: usize, n2: i32, lo: i32, hi: i
   const half = f64x2.splat(0.5);
   const conj = f64x2(1.0, -1.0);
   const long = m >= LONG_ROW;
-  const block = long ? LONG_BLOCK : BLOCK;
+  const block = rowsBlock(m);
   for (let r = lo; r < hi; r += block) {
     const count = min(block, hi - r);
     const pitch = count << 4;
@@ -952,11 +976,11 @@ export function moments(psi: usize, phi: usize, lo: i32, hi: i32, out: usize): v
   const r5 = f64x2.sub(c0, c1);
   const r6 = f64x2.add(e0, e1);
   const r7 = f64x2.sub(e0, e1);
-  plainRadix4(r0, r2, r4, r6, rot, d, d + 2 * pitch, d + 4 * pitch, d + 6 * pitch, one);
+  plainRadix4(r0, r2, r4, r6, rot, d, d + 2 * pitch, d + 4 * pitch, d + 6 * pitch, one, false);
   const t2 = cmul(r3, w2r, w2i);
   const t1 = cmul(r5, w1r, w1i);
   const t3 = cmul(r7, w3r, w3i);
-  plainRadix4(r1, t2, t1, t3, rot, d + pitch, d + 3 * pitch, d + 5 * pitch, d + 7 * pitch, one);
+  plainRadix4(r1, t2, t1, t3, rot, d + pitch, d + 3 * pitch, d + 5 * pitch, d + 7 * pitch, one, false);
 }
 
 /**
