@@ -211,10 +211,11 @@ export abstract class EngineBase implements StepEngine {
     const [n0, n1] = this.shape;
     const blocks = outerCount(this.shape, 1) / n0;
     let sum = 0;
+    // rows first both ways: the plane is read from memory row by row, and axis 1 finds it in cache
     for (let x = lo; x < hi; x++) {
-      if (!inverse) this.rows(field, false, kick, potential, false, contact, source, x * n1, (x + 1) * n1);
+      this.rows(field, inverse, inverse ? 0 : kick, potential, false, contact, source, x * n1, (x + 1) * n1);
       this.axis(field, 1, inverse, x * blocks, (x + 1) * blocks);
-      if (inverse) sum += this.rows(field, true, 0, potential, density, 0, source, x * n1, (x + 1) * n1);
+      if (density) sum += this.density(field, potential, false, x * n1, (x + 1) * n1);
     }
     return sum;
   }
