@@ -61,8 +61,9 @@ describe("WebAssembly kernels", () => {
   });
 
   // Reference: Math.sin and Math.cos, fdlibm's algorithms in V8, within 1 ulp of the exact value (from memory).
-  // The kernel follows fdlibm's reduction and polynomials, so it stays within 2 ulp of them, relative to each
-  // value (not an absolute bound, which is loose for small angles), and sin is odd and cos even, bit for bit.
+  // The kernel reduces the angle as fdlibm does (by π/64 instead of π/2) and adds short Taylor corrections to a
+  // table value, so it stays within 2 ulp of them, relative to each value (not an absolute bound, which is
+  // loose for small angles), and sin is odd and cos even, bit for bit.
   it("are within 2 ulp of Math.sin and Math.cos on negative angles, relative to each value, and exactly odd and even", () => {
     const count = 20000;
     const memory = new WebAssembly.Memory({ initial: 8, maximum: 8, shared: true });
@@ -90,5 +91,26 @@ describe("WebAssembly kernels", () => {
       for (let i = 0; i < count; i++) if (out[2 * i] !== negative[2 * i] || out[2 * i + 1] !== -negative[2 * i + 1]!) asymmetric++;
       expect(asymmetric, `angles of ±${scale}`).toBe(0);
     }
+  });
+
+  it("are within 2 ulp of Math.sin and Math.cos next to the table's angles and the zeros of sin and cos", () => {
+    const count = 4000;
+    const memory = new WebAssembly.Memory({ initial: 8, maximum: 8, shared: true });
+    const k = instantiateKernels(kernelModule()!, memory);
+    k.initConstants();
+    const anglesAt = WASM_RESERVED_BYTES;
+    const outAt = anglesAt + 8 * count;
+    const angles = new Float64Array(memory.buffer, anglesAt, count);
+    const out = new Float64Array(memory.buffer, outAt, 2 * count);
+    const ulp = (x: number) => 2 ** (Math.max(Math.floor(Math.log2(Math.abs(x))), -1022) - 52);
+    // j·π/128 (half of the table's step, so both table angles and the midpoints between them), a few ulp and 1e-9 off
+    for (let i = 0; i < count; i++) angles[i] = ((i >> 2) * Math.PI) / 128 + [0, 4e-16, -1e-9, 1e-9][i & 3]! * (1 + (i >> 2) / 64);
+    k.sinCos(anglesAt, outAt, count);
+    let worst = 0;
+    for (let i = 0; i < count; i++) {
+      const x = angles[i]!;
+      worst = Math.max(worst, Math.abs(out[2 * i]! - Math.cos(x)) / ulp(Math.cos(x)), Math.abs(out[2 * i + 1]! - Math.sin(x)) / ulp(Math.sin(x)));
+    }
+    expect(worst).toBeLessThanOrEqual(2);
   });
 });

@@ -753,68 +753,93 @@ export function realRowsInverse(spec: usize, out: usize, n2: i32, lo: i32, hi: i
 }
 
 
-// sin and cos of two angles at once: reduction by k = nearest(x·2/π) with
-// π/2 split in three parts (Cody & Waite), then the minimax polynomials of
-// fdlibm's __kernel_sin and __kernel_cos on |r| ≤ π/4, and the quadrant k mod
-// 4 selecting and negating. Angles beyond 1e5 in magnitude go through the
-// scalar library functions instead (the three-part split is exact only for
-// moderate k). The module must not carry static data (the memory is all
-// JavaScript's), so the library functions come from the host.
+// sin and cos of two angles at once, from a table and short polynomials: for x = |angle|,
+// k = nearest(x / (π/64)) and r = x − k·π/64 with π/64 split in four parts (Cody & Waite; fdlibm's
+// parts of π/2 divided by 32, exact), so |r| ≤ π/128, accurate to its last bits next to the zeros of sin and cos; then with (C, S) = (cos, sin)(kπ/64) from a table
+// of 128 entries (one turn) and the Taylor polynomials sin r = r + r³(−1/3! + r²/5! − r⁴/7!) and
+// cos r − 1 = −r²/2 + r⁴(1/4! − r²/6! + r⁴/8!) (next terms below 1e-18 of the value on |r| ≤ π/128):
+// sin x = S + (C sin r + S (cos r − 1)), cos x = C + (C (cos r − 1) − S sin r), the small correction added
+// last to the table value, so the result is within about an ulp. sin takes the angle's sign, so sin is odd
+// and cos even bit for bit. Angles beyond 3e4 in magnitude go through the scalar library functions
+// instead (the parts' products with k are exact only for k < 2^20). The module must not carry static data
+// (the memory is all JavaScript's), so the table is written by initConstants from the host's sin and cos.
 @external("env", "sin") declare function hostSin(x: f64): f64;
 @external("env", "cos") declare function hostCos(x: f64): f64;
 const PIO2_1: f64 = 1.57079632673412561417e+00;
 const PIO2_2: f64 = 6.07710050630396597660e-11;
 const PIO2_3: f64 = 2.02226624871116645580e-21;
-const INV_PIO2: f64 = 6.36619772367581382433e-01;
-const S1: f64 = -1.66666666666666324348e-01;
-const S2: f64 = 8.33333333332248946124e-03;
-const S3: f64 = -1.98412698298579493134e-04;
-const S4: f64 = 2.75573137070700676789e-06;
-const S5: f64 = -2.50507602534068634195e-08;
-const S6: f64 = 1.58969099521155010221e-10;
-const C1: f64 = 4.16666666666666019037e-02;
-const C2: f64 = -1.38888888888741095749e-03;
-const C3: f64 = 2.48015872894767294178e-05;
-const C4: f64 = -2.75573143513906633035e-07;
-const C5: f64 = 2.08757232129817482790e-09;
-const C6: f64 = -1.13596475577881948265e-11;
-const LARGE_ANGLE: f64 = 1.0e5;
+const PIO2_3T: f64 = 8.47842766036889956997e-32;
+/** Table entries per turn (a power of two): the table's step is π/64. */
+const TURN: i32 = 128;
+const LARGE_ANGLE: f64 = 3.0e4;
 
-// The polynomial's constants as (c, c) vectors at a fixed address, written
-// once by initConstants(): loading them is cheaper than rebuilding each
-// 128-bit constant from immediates inside the loop.
+// The constants as (c, c) vectors at a fixed address, then the table of (cos, sin)(jπ/64), j < TURN, all
+// written once by initConstants(): loading them is cheaper than rebuilding each 128-bit constant from
+// immediates inside the loop.
 const CONSTANTS: usize = <usize>CONSTANTS_ADDRESS;
+const K_INV_STEP: usize = 0;
+const K_STEP_1: usize = 16;
+const K_STEP_2: usize = 32;
+const K_STEP_3: usize = 48;
+const K_S: usize = 64; // −1/3!, 1/5!, −1/7! at 64, 80, 96
+const K_C: usize = 112; // 1/4!, −1/6!, 1/8! at 112, 128, 144
+const K_HALF: usize = 160;
+const K_SIGN: usize = 176;
+const K_INDEX: usize = 192;
+const K_STEP_4: usize = 208;
+const K_TABLE: usize = 256;
 /** Bytes at CONSTANTS the layout must leave free. */
-export const CONSTANTS_BYTES: i32 = 18 * 16;
-const K_INV_PIO2: usize = 0;
-const K_PIO2_1: usize = 16;
-const K_PIO2_2: usize = 32;
-const K_PIO2_3: usize = 48;
-const K_S: usize = 64; // S1 … S6 at 64 … 144
-const K_C: usize = 160; // C1 … C6 at 160 … 240
-const K_HALF: usize = 256;
-const K_ONE: usize = 272;
+export const CONSTANTS_BYTES: i32 = <i32>K_TABLE + TURN * 16;
 
-/** Write the constants table (call once per memory, before any kick). */
+/** Write the constants and the table (call once per memory, before any kick). */
 export function initConstants(): void {
-  put(K_INV_PIO2, INV_PIO2);
-  put(K_PIO2_1, PIO2_1);
-  put(K_PIO2_2, PIO2_2);
-  put(K_PIO2_3, PIO2_3);
-  put(K_S, S1);
-  put(K_S + 16, S2);
-  put(K_S + 32, S3);
-  put(K_S + 48, S4);
-  put(K_S + 64, S5);
-  put(K_S + 80, S6);
-  put(K_C, C1);
-  put(K_C + 16, C2);
-  put(K_C + 32, C3);
-  put(K_C + 48, C4);
-  put(K_C + 64, C5);
-  put(K_C + 80, C6);
+  const step = 1.0 / <f64>(TURN >> 2); // π/64 = (π/2)/32, so the parts of π/2 times this power of two
+  put(K_INV_STEP, <f64>(TURN >> 2) / (PIO2_1 + PIO2_2));
+  put(K_STEP_1, PIO2_1 * step);
+  put(K_STEP_2, PIO2_2 * step);
+  put(K_STEP_3, PIO2_3 * step);
+  put(K_STEP_4, PIO2_3T * step);
+  put(K_S, -1.0 / 6.0);
+  put(K_S + 16, 1.0 / 120.0);
+  put(K_S + 32, -1.0 / 5040.0);
+  put(K_C, 1.0 / 24.0);
+  put(K_C + 16, -1.0 / 720.0);
+  put(K_C + 32, 1.0 / 40320.0);
   put(K_HALF, 0.5);
-  put(K_ONE, 1.0);
+  v128.store(CONSTANTS + K_SIGN, i64x2.splat(0x8000000000000000));
+  v128.store(CONSTANTS + K_INDEX, i32x4.splat(TURN - 1));
+  fillTable(step);
+}
+
+/**
+ * The table: the first eighth of a turn from the host's sin and cos at j·π/64 with the angle's rounding
+ * error as a first-order correction, the rest by the exact symmetries (quarter turns exactly 0 and ±1).
+ */
+function fillTable(step: f64): void {
+  const quarter = TURN >> 2;
+  for (let j: i32 = 0; j <= quarter; j++) {
+    // beyond an eighth of a turn, cos and sin of the angle mirrored at π/4
+    const m = 2 * j <= quarter ? j : quarter - j;
+    const a = <f64>m * (PIO2_1 * step); // exact: PIO2_1 has 33 significant bits
+    const b = <f64>m * (PIO2_2 * step);
+    const hi = a + b;
+    const lo = (a - hi) + b;
+    const sm = hostSin(hi) + hostCos(hi) * lo;
+    const cm = hostCos(hi) - hostSin(hi) * lo;
+    if (m == j) tableEntry(j, cm, sm);
+    else tableEntry(j, sm, cm);
+  }
+  for (let j: i32 = quarter + 1; j < TURN; j++) {
+    // a quarter turn on: (cos, sin) → (−sin, cos)
+    const prev = CONSTANTS + K_TABLE + (<usize>(j - quarter) << 4);
+    tableEntry(j, -load<f64>(prev, 8), load<f64>(prev));
+  }
+}
+
+@inline function tableEntry(j: i32, c: f64, s: f64): void {
+  const at = CONSTANTS + K_TABLE + (<usize>j << 4);
+  store<f64>(at, c);
+  store<f64>(at, s, 8);
 }
 
 @inline function put(at: usize, x: f64): void {
@@ -835,35 +860,24 @@ export function initConstants(): void {
     s = f64x2(hostSin(a0), hostSin(a1));
     c = f64x2(hostCos(a0), hostCos(a1));
   } else {
-    const k = f64x2.nearest(f64x2.mul(angle, kc(K_INV_PIO2)));
-    const r = f64x2.sub(f64x2.sub(f64x2.sub(angle, f64x2.mul(k, kc(K_PIO2_1))), f64x2.mul(k, kc(K_PIO2_2))), f64x2.mul(k, kc(K_PIO2_3)));
+    const x = f64x2.abs(angle);
+    const k = f64x2.nearest(f64x2.mul(x, kc(K_INV_STEP)));
+    const r3 = f64x2.sub(f64x2.sub(f64x2.sub(x, f64x2.mul(k, kc(K_STEP_1))), f64x2.mul(k, kc(K_STEP_2))), f64x2.mul(k, kc(K_STEP_3)));
+    const r = f64x2.sub(r3, f64x2.mul(k, kc(K_STEP_4)));
     const z = f64x2.mul(r, r);
-    // Estrin's scheme: short dependency chains, so consecutive cells overlap in the pipeline
     const z2 = f64x2.mul(z, z);
-    const z4 = f64x2.mul(z2, z2);
-    const ps = f64x2.add(
-      f64x2.add(f64x2.add(kc(K_S), f64x2.mul(z, kc(K_S + 16))), f64x2.mul(z2, f64x2.add(kc(K_S + 32), f64x2.mul(z, kc(K_S + 48))))),
-      f64x2.mul(z4, f64x2.add(kc(K_S + 64), f64x2.mul(z, kc(K_S + 80)))),
-    );
-    const pc = f64x2.add(
-      f64x2.add(f64x2.add(kc(K_C), f64x2.mul(z, kc(K_C + 16))), f64x2.mul(z2, f64x2.add(kc(K_C + 32), f64x2.mul(z, kc(K_C + 48))))),
-      f64x2.mul(z4, f64x2.add(kc(K_C + 64), f64x2.mul(z, kc(K_C + 80)))),
-    );
+    const ps = f64x2.add(f64x2.add(kc(K_S), f64x2.mul(z, kc(K_S + 16))), f64x2.mul(z2, kc(K_S + 32)));
+    const pc = f64x2.add(f64x2.add(kc(K_C), f64x2.mul(z, kc(K_C + 16))), f64x2.mul(z2, kc(K_C + 32)));
     const sr = f64x2.add(r, f64x2.mul(f64x2.mul(r, z), ps));
-    // cos r = w + ((1 − w) − z/2 + z²·pc) with w = 1 − z/2 (fdlibm's way of keeping the low bits)
-    const one = kc(K_ONE);
-    const half = kc(K_HALF);
-    const hz = f64x2.mul(half, z);
-    const w = f64x2.sub(one, hz);
-    const cr = f64x2.add(w, f64x2.add(f64x2.sub(f64x2.sub(one, w), hz), f64x2.mul(z2, pc)));
-    // quadrant k mod 4 from k as an integer (|k| < 2^17 here): odd k swaps sin and cos; bit 1 of k (of k + 1)
-    // is the sign of sin (cos), shifted to the sign bit
-    const ki = i64x2.extend_low_i32x4_s(i32x4.trunc_sat_f64x2_s_zero(k));
-    const unit = i64x2.splat(1);
-    const bit1 = i64x2.splat(2);
-    const odd = i64x2.neg(v128.and(ki, unit));
-    s = v128.xor(v128.bitselect(cr, sr, odd), i64x2.shl(v128.and(ki, bit1), 62));
-    c = v128.xor(v128.bitselect(sr, cr, odd), i64x2.shl(v128.and(i64x2.add(ki, unit), bit1), 62));
+    const cm = f64x2.sub(f64x2.mul(z2, pc), f64x2.mul(z, kc(K_HALF)));
+    // the table entries of k mod TURN (k < 2^21 here, so the integer conversion is exact)
+    const j = i32x4.shl(v128.and(i32x4.trunc_sat_f64x2_s_zero(k), kc(K_INDEX)), 4);
+    const e0 = v128.load(CONSTANTS + K_TABLE + <usize>i32x4.extract_lane(j, 0));
+    const e1 = v128.load(CONSTANTS + K_TABLE + <usize>i32x4.extract_lane(j, 1));
+    const ct = v128.shuffle<f64>(e0, e1, 0, 2);
+    const st = v128.shuffle<f64>(e0, e1, 1, 3);
+    s = v128.xor(f64x2.add(st, f64x2.add(f64x2.mul(ct, sr), f64x2.mul(st, cm))), v128.and(angle, kc(K_SIGN)));
+    c = f64x2.add(ct, f64x2.sub(f64x2.mul(ct, cm), f64x2.mul(st, sr)));
   }
   // the two cells as (re₀, re₁) and (im₀, im₁): re' = re·c − im·s, im' = im·c + re·s (the products and sums of a
   // complex multiplication by c + is, so the same numbers as multiplying each cell alone)

@@ -13,7 +13,7 @@ export const BLOCK = 16;
 export const CONSTANTS_ADDRESS = 64;
 
 /** Bytes at the start of the memory left to the kernels; the step's regions start here. */
-export const RESERVED_BYTES = 512;
+export const RESERVED_BYTES = 4096;
 
 /** Bytes of twiddles per butterfly index of a radix-4 stage: six v128, (wʲ re, wʲ re) and (−wʲ im, wʲ im) for j = k, 2k, 3k. */
 export const TWIDDLE_STRIDE = 96;
