@@ -26,6 +26,19 @@ function sections(bytes: Uint8Array): number[] {
   return ids;
 }
 
+/** Kernels in a fresh memory with room for `count` angles and their (cos, sin) pairs. */
+function sinCosScratch(count: number) {
+  const memory = new WebAssembly.Memory({ initial: 8, maximum: 8, shared: true });
+  const k = instantiateKernels(kernelModule()!, memory);
+  k.initConstants();
+  const anglesAt = WASM_RESERVED_BYTES;
+  const outAt = anglesAt + 8 * count;
+  return { k, anglesAt, outAt, angles: new Float64Array(memory.buffer, anglesAt, count), out: new Float64Array(memory.buffer, outAt, 2 * count) };
+}
+
+/** One unit in the last place of x (subnormals included). */
+const ulp = (x: number) => 2 ** (Math.max(Math.floor(Math.log2(Math.abs(x))), -1022) - 52);
+
 describe("WebAssembly kernels", () => {
   it("carry no data segment and keep their constants inside the reserved bytes", () => {
     const file = new URL("../../dist/fields/wasm/kernels.wasm", import.meta.url);
@@ -66,14 +79,7 @@ describe("WebAssembly kernels", () => {
   // loose for small angles), and sin is odd and cos even, bit for bit.
   it("are within 2 ulp of Math.sin and Math.cos on negative angles, relative to each value, and exactly odd and even", () => {
     const count = 20000;
-    const memory = new WebAssembly.Memory({ initial: 8, maximum: 8, shared: true });
-    const k = instantiateKernels(kernelModule()!, memory);
-    k.initConstants();
-    const anglesAt = WASM_RESERVED_BYTES;
-    const outAt = anglesAt + 8 * count;
-    const angles = new Float64Array(memory.buffer, anglesAt, count);
-    const out = new Float64Array(memory.buffer, outAt, 2 * count);
-    const ulp = (x: number) => 2 ** (Math.max(Math.floor(Math.log2(Math.abs(x))), -1022) - 52);
+    const { k, anglesAt, outAt, angles, out } = sinCosScratch(count);
     const rnd = seededRandom(11);
     for (const scale of [1e-300, 1e-9, 1e-3, 0.5, Math.PI, 30, 1e4, 1e5, 3e5, 1e9]) {
       for (let i = 0; i < count; i++) angles[i] = -scale * (0.5 + 0.5 * Math.abs(rnd()));
@@ -95,14 +101,7 @@ describe("WebAssembly kernels", () => {
 
   it("are within 2 ulp of Math.sin and Math.cos next to the table's angles and the zeros of sin and cos", () => {
     const count = 4000;
-    const memory = new WebAssembly.Memory({ initial: 8, maximum: 8, shared: true });
-    const k = instantiateKernels(kernelModule()!, memory);
-    k.initConstants();
-    const anglesAt = WASM_RESERVED_BYTES;
-    const outAt = anglesAt + 8 * count;
-    const angles = new Float64Array(memory.buffer, anglesAt, count);
-    const out = new Float64Array(memory.buffer, outAt, 2 * count);
-    const ulp = (x: number) => 2 ** (Math.max(Math.floor(Math.log2(Math.abs(x))), -1022) - 52);
+    const { k, anglesAt, outAt, angles, out } = sinCosScratch(count);
     // j·π/128 (half of the table's step, so both table angles and the midpoints between them), a few ulp and 1e-9 off
     for (let i = 0; i < count; i++) angles[i] = ((i >> 2) * Math.PI) / 128 + [0, 4e-16, -1e-9, 1e-9][i & 3]! * (1 + (i >> 2) / 64);
     k.sinCos(anglesAt, outAt, count);
