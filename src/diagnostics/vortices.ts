@@ -150,6 +150,9 @@ export function scanVortices(grid: Grid, psi: Float64Array, sink: VortexSink): O
   const t = { positive: 0, negative: 0, lineLength: 0 };
   const found = scanPlanes(grid, psi);
   const pos = new Float64Array(3);
+  // one set of scratch for all the points (a census of many thousand piercings allocates nothing per point)
+  const corners = new Int32Array(4);
+  const idx = new Int32Array(3);
   orientationsOf(grid).forEach(([pa, qa, normal], o) => {
     const h = found[o]!;
     const normalIndex = normal >= 0 ? axes.indexOf(normal as 0 | 1 | 2) : -1;
@@ -157,15 +160,21 @@ export function scanVortices(grid: Grid, psi: Float64Array, sink: VortexSink): O
       const [i, charge, sp, sq] = [h[k]!, h[k + 1]!, h[k + 2]!, h[k + 3]!];
       if (charge > 0) t.positive += charge;
       else t.negative -= charge;
-      const corners = [i, i + sp, i + sq, i + sp + sq] as const;
-      const idx = [Math.floor(i / (n1 * n2)), Math.floor(i / n2) % n1, i % n2] as const;
-      const [s, u] = grid.dims === 2 ? bilinearZero(corners.map((c) => psi[2 * c]!), corners.map((c) => psi[2 * c + 1]!)) : [0.5, 0.5];
+      // the plaquette's corners [i, i + sp, i + sq, i + sp + sq] and its cell's index along each axis
+      corners[0] = i;
+      corners[1] = i + sp;
+      corners[2] = i + sq;
+      corners[3] = i + sp + sq;
+      idx[0] = Math.floor(i / (n1 * n2));
+      idx[1] = Math.floor(i / n2) % n1;
+      idx[2] = i % n2;
+      const [s, u] = grid.dims === 2 ? bilinearZero(Array.from(corners, (c) => psi[2 * c]!), Array.from(corners, (c) => psi[2 * c + 1]!)) : CENTRE;
       for (let ax = 0; ax < 3; ax++) pos[ax] = idx[ax]! * grid.spacing[ax]!;
       pos[pa] = pos[pa]! + s * grid.spacing[pa]!;
       pos[qa] = pos[qa]! + u * grid.spacing[qa]!;
       const length = normal >= 0 ? pierceLength(grid, psi, corners, idx[normal]!, normal, pa, qa) : 0;
       t.lineLength += length;
-      const column = idx[1] * n2 + idx[2];
+      const column = idx[1]! * n2 + idx[2]!;
       projection[column] = projection[column]! + (normal >= 0 ? length : 1);
       sink(pos, charge, normalIndex, length);
     }
@@ -174,6 +183,9 @@ export function scanVortices(grid: Grid, psi: Float64Array, sink: VortexSink): O
   const measure = grid.volume;
   return { dims: grid.dims as 2 | 3, positive, negative, netCharge: positive - negative, density: grid.dims === 2 ? (positive + negative) / measure : lineLength / measure, lineLength, projection };
 }
+
+/** A 3D piercing's position within its plaquette: the centre. */
+const CENTRE: readonly [number, number] = [0.5, 0.5];
 
 /** Vortices of a 2D or 3D field (throws RangeError for a 1D grid). */
 export function findVortices(grid: Grid, psi: Float64Array): VortexCensus {
@@ -187,10 +199,10 @@ export function findVortices(grid: Grid, psi: Float64Array): VortexCensus {
  * The length a piercing of a face normal to `normal` stands for: 1 / Σ_j |t_j|/Δx_j with t ∝ ∇Re ψ × ∇Im ψ
  * at the face; `j` is the face's index along the normal axis (the same for its four corners).
  */
-function pierceLength(grid: Grid, psi: Float64Array, corners: readonly number[], j: number, normal: number, pa: number, qa: number): number {
+function pierceLength(grid: Grid, psi: Float64Array, corners: Int32Array, j: number, normal: number, pa: number, qa: number): number {
   const h = grid.spacing;
-  const g = new Float64Array(6); // ∇Re ψ in [0, 3), ∇Im ψ in [3, 6)
-  const [c00, c10, c01, c11] = corners as [number, number, number, number];
+  const g = GRADIENTS; // ∇Re ψ in [0, 3), ∇Im ψ in [3, 6)
+  const [c00, c10, c01, c11] = [corners[0]!, corners[1]!, corners[2]!, corners[3]!];
   // in-plane derivatives: mean of the two edge differences
   g[pa] = (psi[2 * c10]! - psi[2 * c00]! + psi[2 * c11]! - psi[2 * c01]!) / (2 * h[pa]!);
   g[3 + pa] = (psi[2 * c10 + 1]! - psi[2 * c00 + 1]! + psi[2 * c11 + 1]! - psi[2 * c01 + 1]!) / (2 * h[pa]!);
@@ -203,14 +215,20 @@ function pierceLength(grid: Grid, psi: Float64Array, corners: readonly number[],
   const down = j === 0 ? (m - 1) * stride : -stride;
   let dr = 0;
   let di = 0;
-  for (const c of corners) {
+  for (let q = 0; q < 4; q++) {
+    const c = corners[q]!;
     dr += psi[2 * (c + up)]! - psi[2 * (c + down)]!;
     di += psi[2 * (c + up) + 1]! - psi[2 * (c + down) + 1]!;
   }
   g[normal] = dr / (8 * h[normal]!);
   g[3 + normal] = di / (8 * h[normal]!);
-  const t = [g[1]! * g[5]! - g[2]! * g[4]!, g[2]! * g[3]! - g[0]! * g[5]!, g[0]! * g[4]! - g[1]! * g[3]!] as const;
-  const norm = Math.hypot(t[0], t[1], t[2]);
+  const t0 = g[1]! * g[5]! - g[2]! * g[4]!;
+  const t1 = g[2]! * g[3]! - g[0]! * g[5]!;
+  const t2 = g[0]! * g[4]! - g[1]! * g[3]!;
+  const norm = Math.hypot(t0, t1, t2);
   if (norm === 0) return (1 / (1 / h[0]! + 1 / h[1]! + 1 / h[2]!)) * 2;
-  return 1 / (Math.abs(t[0]) / norm / h[0]! + Math.abs(t[1]) / norm / h[1]! + Math.abs(t[2]) / norm / h[2]!);
+  return 1 / (Math.abs(t0) / norm / h[0]! + Math.abs(t1) / norm / h[1]! + Math.abs(t2) / norm / h[2]!);
 }
+
+/** pierceLength's gradients (every entry written before it is read: the scratch of one call at a time). */
+const GRADIENTS = new Float64Array(6);

@@ -21,7 +21,7 @@ async function answer(m: HelperRequest): Promise<void> {
     }
     const { vortexTableOf } = await import("./vortex-table.js");
     const table = vortexTableOf(m.job);
-    parentPort!.postMessage({ id: m.id, table }, [table.report.projection.buffer as ArrayBuffer]);
+    parentPort!.postMessage({ id: m.id, table }, [table.report.projection.buffer as ArrayBuffer, table.csv.buffer as ArrayBuffer]);
   } catch (e) {
     parentPort!.postMessage({ id: m.id, error: (e as Error).message });
   }

@@ -1,43 +1,48 @@
 /**
  * The vortex census of a snapshot as the report keeps it: vortices.csv's
- * text and the census's totals and projection (the points themselves only in
+ * bytes and the census's totals and projection (the points themselves only in
  * 2D, where the picture marks them; a 3D census's many thousand piercings
  * live in the CSV only). Computed on this thread, or from a `VortexJob` on
  * the analysis's helper thread (analysis-helper.ts) while this thread
  * computes the other diagnostics: it reads ψ where it is, in shared memory,
- * and hands back the text and the totals.
+ * and hands back the bytes and the totals.
  */
 import { Grid } from "../grid/grid.js";
 import { scanVortices, type VortexCensus, type VortexPoint } from "../diagnostics/vortices.js";
 import { simulatedAxes } from "../diagnostics/shells.js";
-import { csvText, csvValue } from "./csv-table.js";
+import { CsvBytes } from "./csv-table.js";
 
 /** A census without its points (3D) or with them (2D), and how many there are. */
 export type VortexReport = Omit<VortexCensus, "points"> & { readonly points: readonly VortexPoint[]; readonly piercings: number };
 
-/** vortices.csv's text and the census it was written from. */
+/** vortices.csv's bytes (the text as csvTable writes it) and the census it was written from. */
 export interface VortexTable {
   readonly report: VortexReport;
-  readonly csv: string;
+  readonly csv: Uint8Array;
 }
 
 /** The census of ψ and its table, positions and lengths in kpc (`kpc`: kpc per code length). */
 export function vortexTable(grid: Grid, psi: Float64Array, kpc: number): VortexTable {
   const three = grid.dims === 3;
-  const header = three ? ["x_kpc", "y_kpc", "z_kpc", "normal_axis", "charge", "length_kpc"] : ["x_kpc", "y_kpc", "charge"];
+  const table = new CsvBytes(three ? ["x_kpc", "y_kpc", "z_kpc", "normal_axis", "charge", "length_kpc"] : ["x_kpc", "y_kpc", "charge"]);
   const axes = simulatedAxes(grid);
-  // one line per point, written as csvTable writes its rows; the points are kept in 2D only (a 3D census has many thousands)
-  const lines: string[] = [];
+  // one row per point; the points are kept in 2D only (a 3D census has many thousands)
   const points: VortexPoint[] = [];
   const census = scanVortices(grid, psi, (pos, charge, normal, length) => {
-    if (three) lines.push(`${csvValue(pos[0]! * kpc)},${csvValue(pos[1]! * kpc)},${csvValue(pos[2]! * kpc)},${csvValue(normal + 1)},${csvValue(charge)},${csvValue(length * kpc)}`);
-    else {
+    if (three) {
+      for (let ax = 0; ax < 3; ax++) table.value(pos[ax]! * kpc);
+      table.value(normal + 1);
+      table.value(charge);
+      table.value(length * kpc);
+    } else {
       const position = axes.map((ax) => pos[ax]!);
-      lines.push(`${csvValue(position[0]! * kpc)},${csvValue(position[1]! * kpc)},${csvValue(charge)}`);
+      for (const x of position) table.value(x * kpc);
+      table.value(charge);
       points.push({ position, charge, normal, length });
     }
+    table.endRow();
   });
-  return { report: { ...census, points, piercings: lines.length }, csv: csvText(header, lines) };
+  return { report: { ...census, points, piercings: table.rows }, csv: table.finish() };
 }
 
 /** What the worker is given: the grid, where ψ lies, and kpc per code length. */
