@@ -21,24 +21,28 @@ function pythonWithH5py() {
   return undefined;
 }
 
+/** Reads into new memory timed per precision (each after a write of the file), and reads into reused memory (a few ms each: more of them). */
+const FRESH = 3;
+const REUSED = 9;
+
 /**
- * h5py reading psi_re and psi_im of `file` into NumPy arrays (the components as stored: float64 or float32), three
- * times in one process with the page cache warm as for psibox, into new arrays (f[name][...]) and into the same two
- * arrays again (read_direct): the median wall and CPU ms of each (the file's opening included).
+ * h5py reading psi_re and psi_im of `file` into NumPy arrays (the components as stored: float64 or float32) in one
+ * process with the page cache warm as for psibox, FRESH times into new arrays (f[name][...]) and REUSED times into the
+ * same two arrays again (read_direct): the median wall and CPU ms of each (the file's opening included).
  */
 function h5pyRead(python, file) {
   const script = [
     "import sys, time, json, h5py, numpy as np",
-    "def timed(read):",
+    "def timed(read, times):",
     "    ts = []",
-    "    for _ in range(3):",
+    "    for _ in range(times):",
     "        t0, c0 = time.perf_counter(), time.process_time()",
     "        with h5py.File(sys.argv[1], 'r') as f: read(f)",
     "        ts.append(((time.perf_counter() - t0) * 1000, (time.process_time() - c0) * 1000))",
-    "    return {'wall': sorted(t[0] for t in ts)[1], 'cpu': sorted(t[1] for t in ts)[1]}",
-    "fresh = timed(lambda f: (f['psi_re'][...], f['psi_im'][...]))",
+    "    return {'wall': sorted(t[0] for t in ts)[times // 2], 'cpu': sorted(t[1] for t in ts)[times // 2]}",
+    `fresh = timed(lambda f: (f['psi_re'][...], f['psi_im'][...]), ${FRESH})`,
     "with h5py.File(sys.argv[1], 'r') as f: re, im = f['psi_re'][...], f['psi_im'][...]",
-    "reused = timed(lambda f: (f['psi_re'].read_direct(re), f['psi_im'].read_direct(im)))",
+    `reused = timed(lambda f: (f['psi_re'].read_direct(re), f['psi_im'].read_direct(im)), ${REUSED})`,
     "print(json.dumps({'fresh': fresh, 'reused': reused}))",
   ].join("\n");
   const r = spawnSync(python, ["-c", script, file], { encoding: "utf8" });
@@ -54,7 +58,7 @@ function timed(f) {
   return { wall: performance.now() - t0, cpu: (c.user + c.system) / 1000 };
 }
 
-/** Write and read an n³ snapshot in float64 and float32, three times each, with h5py's read of the same file beside it when it is there. */
+/** Write and read an n³ snapshot in float64 and float32 (FRESH rounds of a write, a read into new memory and REUSED/FRESH reads into its array), with h5py's reads of the same file beside them when it is there. */
 export async function printIoRows(n = 128) {
   await loadHdf5();
   // the reading thread that the first large read of a process starts, started here so that every timed read has it
@@ -69,11 +73,11 @@ export async function printIoRows(n = 128) {
   const mb = psi.byteLength / 1e6;
   const python = pythonWithH5py();
   const load = os.loadavg().map((l) => l.toFixed(1)).join(", ");
-  console.log(`\nsnapshot files of ${n}³ (medians of 3; load average ${load}). psibox's read ends with ψ as psibox uses it (one interleaved float64 array, float32 widened),`);
+  console.log(`\nsnapshot files of ${n}³ (medians of ${FRESH} reads into new memory and ${REUSED} into reused memory; load average ${load}). psibox's read ends with ψ as psibox uses it (one interleaved float64 array, float32 widened),`);
   console.log(`h5py's (${python ?? "no python3 with h5py here: no comparison"}) with psi_re and psi_im as two NumPy arrays as stored; into new memory, and into the arrays of an earlier read`);
   console.log("(psibox: readSnapshot's `into`; h5py: read_direct). CPU: all threads of the process. psibox reads on two threads (its reading");
   console.log("thread, which the first large read of a process starts, is started before the timed reads).");
-  const med = (a) => a.slice().sort((x, y) => x - y)[1];
+  const med = (a) => a.slice().sort((x, y) => x - y)[a.length >> 1];
   const row = (what, ours, theirs) => {
     const them = theirs === undefined ? "" : `; h5py ${theirs.wall.toFixed(0)} ms, CPU ${theirs.cpu.toFixed(0)} ms: psibox takes ${(med(ours.wall) / theirs.wall).toFixed(2)}× h5py's time (CPU ${(med(ours.cpu) / theirs.cpu).toFixed(2)}×)`;
     return `  read ${what}: ${med(ours.wall).toFixed(0)} ms (${(mb / (med(ours.wall) / 1000)).toFixed(0)} MB/s of field), CPU ${med(ours.cpu).toFixed(0)} ms${them}`;
@@ -85,14 +89,16 @@ export async function printIoRows(n = 128) {
       const fresh = { wall: [], cpu: [] };
       const reused = { wall: [], cpu: [] };
       let into;
-      for (let r = 0; r < 3; r++) {
+      for (let r = 0; r < FRESH; r++) {
         write.push(timed(() => writeSnapshot(file, { meta, psi }, precision)).wall);
         const read = timed(() => (into = readSnapshot(file).psi));
         fresh.wall.push(read.wall);
         fresh.cpu.push(read.cpu);
-        const again = timed(() => readSnapshot(file, false, into));
-        reused.wall.push(again.wall);
-        reused.cpu.push(again.cpu);
+        for (let k = 0; k < REUSED / FRESH; k++) {
+          const again = timed(() => readSnapshot(file, false, into));
+          reused.wall.push(again.wall);
+          reused.cpu.push(again.cpu);
+        }
       }
       const size = fs.statSync(file).size / 1e6;
       const h5py = python === undefined ? undefined : h5pyRead(python, file);

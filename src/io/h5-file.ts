@@ -30,11 +30,46 @@ export interface Message {
   readonly data: Buffer;
 }
 
-/** `length` bytes from byte `at` of the file (an error when the file is shorter). */
+/** `length` bytes from byte `at` of the file (an error when the file is shorter); small ones from the cached blocks of withBlocks. */
 export function bytesAt(fd: number, at: number, length: number): Buffer {
+  if (cache?.fd === fd && length <= BLOCK_BYTES && Math.floor(at / BLOCK_BYTES) === Math.floor((at + length - 1) / BLOCK_BYTES)) {
+    const start = at % BLOCK_BYTES;
+    const block = cachedBlock(fd, at - start);
+    if (block.length < start + length) throw new RangeError(`short read at ${at}`);
+    return block.subarray(start, start + length);
+  }
   const b = Buffer.alloc(length);
   if (fs.readSync(fd, b, 0, length, at) !== length) throw new RangeError(`short read at ${at}`);
   return b;
+}
+
+/**
+ * Small reads of a file's structures go through blocks of this size, each read once while withBlocks runs: a
+ * snapshot's metadata takes dozens of small reads (a fractal heap's root entries again and again) from a few blocks.
+ */
+const BLOCK_BYTES = 4096;
+let cache: { readonly fd: number; readonly blocks: Map<number, Buffer> } | undefined;
+
+/** The block of the file at `at` (a multiple of BLOCK_BYTES), shorter at the file's end. */
+function cachedBlock(fd: number, at: number): Buffer {
+  let block = cache!.blocks.get(at);
+  if (!block) {
+    const b = Buffer.alloc(BLOCK_BYTES);
+    block = b.subarray(0, fs.readSync(fd, b, 0, BLOCK_BYTES, at));
+    cache!.blocks.set(at, block);
+  }
+  return block;
+}
+
+/** `read()` with small reads of `fd` served from blocks read once (the file must not change meanwhile). */
+export function withBlocks<T>(fd: number, read: () => T): T {
+  const outer = cache;
+  cache = { fd, blocks: new Map() };
+  try {
+    return read();
+  } finally {
+    cache = outer;
+  }
 }
 
 /** The 8-byte address at `at` of `b` (an error for the undefined address). */

@@ -5,14 +5,13 @@
  */
 import fs from "node:fs";
 import { parentPort } from "node:worker_threads";
-import { intoPsi } from "./psi-interleave.js";
-import { DONE, FAILED, settle, sharedClaims, type ReadJob } from "./shared-read.js";
+import { DONE, FAILED, psiReading, settle, sharedClaims, type ReadJob } from "./shared-read.js";
 import { readPieces } from "./slabs.js";
 
 function help(job: ReadJob): void {
   const words = new Int32Array(job.control);
   const slabs = Math.ceil(job.shape[0]! / job.step);
-  const take = intoPsi(new Float64Array(job.psi, job.psiOffset, job.psiLength), job.psiLength / 2 / job.shape[0]!);
+  const { buffers, take } = psiReading(new Float64Array(job.psi, job.psiOffset, job.psiLength), job.wasm, job.psiLength / 2 / job.shape[0]!, job.step, job.size, 1);
   let current = -1;
   const claims = sharedClaims(words, job.step, slabs);
   let fd: number | undefined;
@@ -22,7 +21,7 @@ function help(job: ReadJob): void {
     readPieces(fd, job.file, job.paths, job.pieces, job.shape, job.size, (r0, r1, s) => {
       take(r0, r1, s);
       settle(words, r0 / job.step, DONE);
-    }, { step: job.step, claim });
+    }, { step: job.step, claim }, buffers);
   } catch {
     if (current >= 0) settle(words, current, FAILED);
   } finally {

@@ -16,7 +16,8 @@ import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
 import type { Piece } from "./h5-layout.js";
 import { intoPsi } from "./psi-interleave.js";
-import { inOrder, readPieces, slabRows, type SlabClaims } from "./slabs.js";
+import { newWasmPsi, psiMemoryOf, wasmReading, type PsiMemory } from "./psi-wasm.js";
+import { inOrder, readPieces, readRowsAtOnce, type ReadBuffers, type SlabClaims, type Take } from "./slabs.js";
 
 /** Fields of at least this many bytes of ψ are read on two threads unless set otherwise (smaller ones are faster alone). */
 export const SHARED_READ_BYTES = 8 << 20;
@@ -45,6 +46,8 @@ export interface ReadJob {
   readonly psiOffset: number;
   readonly psiLength: number;
   readonly control: SharedArrayBuffer;
+  /** The WebAssembly memory ψ lies in, when it does (the helper reads into its own buffers there). */
+  readonly wasm?: PsiMemory;
 }
 
 /** Slabs of `step` rows handed out from the shared counter of `words` until `slabs` are taken. */
@@ -99,11 +102,19 @@ export async function stopReadHelper(): Promise<void> {
   if (w) await w.terminate();
 }
 
-/** New memory for a ψ of `length` values: shared when a large read can share it with the helper (which it then starts). */
-export function newPsi(length: number): Float64Array {
+/**
+ * New memory for a ψ of `length` values in rows of `rowValues` cells: for a large read, shared memory (the helper
+ * started to share the read), in a WebAssembly memory of its own where one can be made (see psi-wasm.ts).
+ */
+export function newPsi(length: number, rowValues: number): Float64Array {
   if (8 * length < sharedBytes) return new Float64Array(length);
   startReadHelper();
-  return helper ? new Float64Array(new SharedArrayBuffer(8 * length)) : new Float64Array(length);
+  return newWasmPsi(length, rowValues) ?? (helper ? new Float64Array(new SharedArrayBuffer(8 * length)) : new Float64Array(length));
+}
+
+/** What reading thread `slot` reads ψ's rows with: the kernel and buffers of ψ's WebAssembly memory, or the JavaScript loop and the thread's own buffers. */
+export function psiReading(psi: Float64Array, at: PsiMemory | undefined, rowValues: number, step: number, size: number, slot: number): { buffers?: ReadBuffers; take: Take } {
+  return (at && wasmReading(at, psi, rowValues, step, size, slot)) ?? { take: intoPsi(psi, rowValues) };
 }
 
 /**
@@ -113,25 +124,26 @@ export function newPsi(length: number): Float64Array {
  */
 export function readIntoPsi(fd: number, file: string, paths: readonly string[], pieces: readonly (readonly Piece[])[], shape: readonly number[], size: number, psi: Float64Array): void {
   const rowCells = psi.length / 2 / shape[0]!;
-  const take = intoPsi(psi, rowCells);
+  const step = readRowsAtOnce(shape, size);
+  const wasm = psiMemoryOf(psi);
+  const { buffers, take } = psiReading(psi, wasm, rowCells, step, size, 0);
   if (!(psi.buffer instanceof SharedArrayBuffer) || psi.byteLength < sharedBytes || !helper) {
-    readPieces(fd, file, paths, pieces, shape, size, take);
+    readPieces(fd, file, paths, pieces, shape, size, take, inOrder(step), buffers);
     return;
   }
-  const step = slabRows(shape, size);
   const slabs = Math.ceil(shape[0]! / step);
   const words = new Int32Array(new SharedArrayBuffer(4 * (1 + slabs)));
-  const job: ReadJob = { file, paths, pieces, shape, size, step, psi: psi.buffer, psiOffset: psi.byteOffset, psiLength: psi.length, control: words.buffer as SharedArrayBuffer };
+  const job: ReadJob = { file, paths, pieces, shape, size, step, psi: psi.buffer, psiOffset: psi.byteOffset, psiLength: psi.length, control: words.buffer as SharedArrayBuffer, ...(wasm ? { wasm } : {}) };
   helper.postMessage(job);
   const mine = (r0: number, r1: number, s: (Float64Array | Float32Array)[]): void => {
     take(r0, r1, s);
     settle(words, r0 / step, DONE);
   };
-  readPieces(fd, file, paths, pieces, shape, size, mine, sharedClaims(words, step, slabs));
+  readPieces(fd, file, paths, pieces, shape, size, mine, sharedClaims(words, step, slabs), buffers);
   // the helper's slabs: each waited for; one it failed, or did not finish in time, is read here (the same values)
   for (let k = 0; k < slabs; k++) {
     if (Atomics.load(words, 1 + k) === PENDING) Atomics.wait(words, 1 + k, PENDING, WAIT_MS);
-    if (Atomics.load(words, 1 + k) !== DONE) readPieces(fd, file, paths, pieces, shape, size, take, only(k, step));
+    if (Atomics.load(words, 1 + k) !== DONE) readPieces(fd, file, paths, pieces, shape, size, take, only(k, step), buffers);
   }
 }
 

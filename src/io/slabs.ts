@@ -33,6 +33,20 @@ export function slabRows(shape: readonly number[], bytesPerValue: number): numbe
   return Math.max(1, Math.min(shape[0] as number, Math.floor(slab / (rowValues * bytesPerValue))));
 }
 
+/**
+ * Bytes of each dataset's rows read at once straight from a file (at most a slab): the buffers stay in a core's
+ * second-level cache until they are copied into ψ, two reading threads share a field in many small turns, and the
+ * buffers in ψ's WebAssembly memory (psi-wasm.ts) are little fresh memory. A 128³ read on one thread took the same
+ * time with 256 KiB as with 2 MiB, and longer with 64 KiB (more system calls; measured on a shared machine).
+ */
+export const READ_BYTES = 256 << 10;
+
+/** Rows along the first axis read at once from a file (see READ_BYTES), for a dataset of `shape` with values of `bytesPerValue`. */
+export function readRowsAtOnce(shape: readonly number[], bytesPerValue: number): number {
+  const rowValues = shape.slice(1).reduce((p, n) => p * n, 1);
+  return Math.max(1, Math.min(shape[0] as number, Math.floor(Math.min(slab, READ_BYTES) / (rowValues * bytesPerValue))));
+}
+
 /** The hyperslab of rows [r0, r1) of a dataset of `rank` axes. */
 function rows(r0: number, r1: number, rank: number): [number, number][] {
   return [[r0, r1], ...Array.from({ length: rank - 1 }, () => [] as unknown as [number, number])];
@@ -110,24 +124,28 @@ export function inOrder(step: number): SlabClaims {
   return { step, claim: () => next++ };
 }
 
+/** Where each dataset's rows are read to: a buffer and the byte offset in it (room for a claim's rows of each). */
+export type ReadBuffers = readonly { readonly buffer: ArrayBufferLike; readonly byteOffset: number }[];
+
 /**
- * Datasets of one shape and value size read slab by slab from the file's `pieces` (one list per dataset) into buffers
- * kept for the next read, the slabs that `claims` hands out (default: all, in order); `paths` name them in errors.
+ * Datasets of one shape and value size read slab by slab from the file's `pieces` (one list per dataset) into
+ * `buffers` (default: buffers kept for the next read), the slabs that `claims` hands out (default: all, in order);
+ * `paths` name them in errors.
  */
-export function readPieces(fd: number, file: string, paths: readonly string[], pieces: readonly (readonly Piece[])[], shape: readonly number[], size: number, take: Take, claims = inOrder(slabRows(shape, size))): void {
+export function readPieces(fd: number, file: string, paths: readonly string[], pieces: readonly (readonly Piece[])[], shape: readonly number[], size: number, take: Take, claims = inOrder(readRowsAtOnce(shape, size)), buffers?: ReadBuffers): void {
   const step = claims.step;
   const rowValues = shape.slice(1).reduce((p, n) => p * n, 1);
-  const buffers = pieces.map((_, i) => scratchBuffer(i, step * rowValues * size));
+  const to = buffers ?? pieces.map((_, i) => ({ buffer: scratchBuffer(i, step * rowValues * size), byteOffset: 0 }));
   for (let k = claims.claim(); k >= 0 && k * step < shape[0]!; k = claims.claim()) {
     const r0 = k * step;
     const r1 = Math.min(shape[0]!, r0 + step);
     const values = (r1 - r0) * rowValues;
     try {
-      pieces.forEach((p, i) => readRows(fd, p, r0, r1, rowValues * size, new Uint8Array(buffers[i]!, 0, values * size)));
+      pieces.forEach((p, i) => readRows(fd, p, r0, r1, rowValues * size, new Uint8Array(to[i]!.buffer, to[i]!.byteOffset, values * size)));
     } catch (e) {
       throw new InputError(`${fileName(file)}: cannot read ${paths.join(", ")} (${(e as Error).message})`);
     }
-    take(r0, r1, buffers.map((b) => (size === 8 ? new Float64Array(b, 0, values) : new Float32Array(b, 0, values))));
+    take(r0, r1, to.map((b) => (size === 8 ? new Float64Array(b.buffer, b.byteOffset, values) : new Float32Array(b.buffer, b.byteOffset, values))));
   }
 }
 

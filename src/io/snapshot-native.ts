@@ -8,6 +8,7 @@
  * nothing, and is read through h5wasm with the same values.
  */
 import fs from "node:fs";
+import { withBlocks } from "./h5-file.js";
 import { NativeRoot } from "./h5-native.js";
 import { newPsi, readIntoPsi } from "./shared-read.js";
 import { layoutVersion, readMeta } from "./snapshot-meta.js";
@@ -20,7 +21,7 @@ function readPsi(fd: number, root: NativeRoot, meta: SnapshotMeta, file: string,
   const cells = meta.cells.join("×");
   if (parts.some((p) => p.shape.join("×") !== cells || p.size !== parts[0]!.size)) throw new RangeError("ψ's parts differ from the grid");
   const length = 2 * meta.cells.reduce((p, n) => p * n, 1);
-  const psi = into?.length === length ? into : newPsi(length);
+  const psi = into?.length === length ? into : newPsi(length, length / 2 / meta.cells[0]!);
   readIntoPsi(fd, file, parts.map((p) => p.path), parts.map((p) => p.pieces), parts[0]!.shape, parts[0]!.size, psi);
   return psi;
 }
@@ -39,13 +40,15 @@ export function readNative(file: string, field: boolean, into?: Float64Array): S
     return undefined;
   }
   try {
-    const root = new NativeRoot(fd);
-    if (layoutVersion(root.attributes, file) !== 2) return undefined;
-    const meta = readMeta(root.attributes, root.attributes, file);
-    if (!field) return { meta };
-    const psi = readPsi(fd, root, meta, file, [PSI_RE, PSI_IM], into);
-    const later = (meta.species ?? []).slice(1);
-    return later.length ? { meta, psi, speciesPsi: later.map((s) => readPsi(fd, root, meta, file, speciesVariables(s.name))) } : { meta, psi };
+    return withBlocks(fd, () => {
+      const root = new NativeRoot(fd);
+      if (layoutVersion(root.attributes, file) !== 2) return undefined;
+      const meta = readMeta(root.attributes, root.attributes, file);
+      if (!field) return { meta };
+      const psi = readPsi(fd, root, meta, file, [PSI_RE, PSI_IM], into);
+      const later = (meta.species ?? []).slice(1);
+      return later.length ? { meta, psi, speciesPsi: later.map((s) => readPsi(fd, root, meta, file, speciesVariables(s.name))) } : { meta, psi };
+    });
   } catch {
     return undefined;
   } finally {
