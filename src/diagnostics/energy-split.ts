@@ -21,9 +21,10 @@
  */
 import type { Grid } from "../grid/grid.js";
 import { SimpleTransforms, type FieldTransforms } from "../fields/field-transforms.js";
-import { derivativeAlongAxis, modeShells, Shells, simulatedAxes } from "./shells.js";
+import { derivativeWavenumbers, modeShells, Shells, simulatedAxes } from "./shells.js";
 import { kineticFromSums, type KineticSplit } from "./analysis.js";
-import { packRow, ShellPass } from "./split-passes.js";
+import { SHELL_TOTALS, shellSumsLength, type ShellData } from "./split-passes.js";
+import { addBlockSums, rowBlocks, runHere, sharedFloats, type SplitRunner, type SplitTask } from "./split-tasks.js";
 import { spectrumMoments, type SpectrumMoments } from "./spectrum-moments.js";
 
 /** One shell of the energy spectra (code units). */
@@ -88,15 +89,67 @@ function massOf(psi: Float64Array): number {
   return mass;
 }
 
+/** Transforms that run the split's passes on threads of their own (integrators/pooled-transforms.ts). */
+export interface SplitThreads {
+  runSplit(blocks: number, task: SplitTask): void;
+}
+
+/** Where the split's passes run: on the transforms' threads when they have them and ψ is in shared memory (a message shares it), else here. */
+function runnerOf(fft: FieldTransforms, psi: Float64Array): SplitRunner {
+  const threads = fft as Partial<SplitThreads>;
+  if (typeof threads.runSplit !== "function" || !(psi.buffer instanceof SharedArrayBuffer)) return runHere;
+  return (blocks, task) => threads.runSplit!(blocks, task);
+}
+
+/** The shell passes' data of `grid` at factors per mode (perMode for the energies, velocityPerMode for the velocity power); k·W into `div`. */
+function shellData(grid: Grid, count: number, div: Float64Array, perMode: number, velocityPerMode: number): ShellData {
+  const [n0, n1, n2] = grid.shape;
+  const [k0, k1, k2] = [grid.wavenumbers(0), grid.wavenumbers(1), grid.wavenumbers(2)];
+  return { shape: [n0, n1, n2], k0, k1, k2, bins: modeShells(grid).bins, count, perMode, velocityPerMode, div, nyquist: sharedFloats((n0 + n1) * (n2 + 2)) };
+}
+
+/**
+ * The derivative of ψ along each axis packed into u + i w and transformed, each into the shells: the sums of
+ * the shell passes (split-passes.ts: totals, then four series per shell), Σ j²/ρ, and Σ j per axis.
+ */
+function shellSums(grid: Grid, psi: Float64Array, spec: Float64Array, data: ShellData, fft: FieldTransforms, run: SplitRunner): { total: Float64Array; bulk2: number; jSum: number[] } {
+  const at = rowBlocks(grid.shape);
+  const length = shellSumsLength(data.count);
+  const [sums, packSums] = [sharedFloats(at.blocks * length), sharedFloats(2 * at.blocks)];
+  const [total, flow] = [new Float64Array(length), new Float64Array(2)];
+  const jSum: number[] = [];
+  const kz = derivativeWavenumbers(grid, 2);
+  simulatedAxes(grid).forEach((axis, j) => {
+    // each axis's derivative from ψ by the transforms along that axis alone, in place of the spectrum
+    run(at.blocks, { kind: "copy", at, from: psi, to: spec });
+    fft.alongAxis(spec, axis, false);
+    run(at.blocks, { kind: "ik", at, z: spec, n1: grid.shape[1], axis, k: derivativeWavenumbers(grid, axis), kz });
+    fft.alongAxis(spec, axis, true);
+    flow[1] = 0;
+    run(at.blocks, { kind: "pack", at, psi, z: spec, sums: packSums });
+    addBlockSums(packSums, at.blocks, 2, flow);
+    jSum.push(flow[1]!);
+    fft.forward(spec);
+    run(at.blocks, { kind: "shells", at, data, z: spec, axis, first: j === 0, sums });
+    addBlockSums(sums, at.blocks, length, total);
+  });
+  run(at.blocks, { kind: "compressible", at, data, sums });
+  addBlockSums(sums, at.blocks, length, total);
+  return { total, bulk2: flow[0]!, jSum };
+}
+
 /**
  * The energy split and, from the same transforms, the bulk-flow / quantum
  * split of `kineticSplit` (analysis.ts; the same numbers) and the moments of
- * ψ's spectrum (spectrum-moments.ts). Work grids 0 and 1 of `fft`.
+ * ψ's spectrum (spectrum-moments.ts). Work grids 0 and 1 of `fft`. The passes
+ * over the grid run on the transforms' threads where they have them
+ * (SplitThreads), with the same result bit for bit on any number of threads.
  */
 export function energyAndKineticSplit(grid: Grid, psi: Float64Array, a: number, fft: FieldTransforms): { split: EnergySplit; kinetic: KineticSplit; moments: SpectrumMoments } {
   const n = grid.size;
+  const run = runnerOf(fft, psi);
   const spec = fft.work(0);
-  spec.set(psi);
+  run(rowBlocks(grid.shape).blocks, { kind: "copy", at: rowBlocks(grid.shape), from: psi, to: spec });
   fft.forward(spec);
   const mass = massOf(psi);
   const perMode = (0.5 / (a * a)) * (grid.cellVolume / n);
@@ -105,27 +158,13 @@ export function energyAndKineticSplit(grid: Grid, psi: Float64Array, a: number, 
   const shells = new Shells(grid, 4);
   shells.countModes(modeShells(grid));
   const velocityPerMode = grid.volume / (n * n) / (a * a * (mass / n));
-  const pass = new ShellPass(grid, modeShells(grid).bins, shells.series(0), shells.series(1), shells.series(2), shells.series(3), perMode, velocityPerMode);
-  const div = fft.work(1);
-  const flow = new Float64Array(2);
-  const jSum: number[] = [];
-  simulatedAxes(grid).forEach((ax, j) => {
-    // each axis's derivative from ψ by the transforms along that axis alone, in place of the spectrum
-    spec.set(psi);
-    derivativeAlongAxis(grid, fft, spec, ax);
-    flow[1] = 0;
-    for (let p = 0; p < spec.length; p += 2 * grid.shape[2]) packRow(psi, spec, p, p + 2 * grid.shape[2], flow);
-    jSum.push(flow[1]!);
-    fft.forward(spec);
-    pass.addAxis(spec, ax, div, j === 0);
-  });
-  pass.takeCompressible(div);
-  const t = pass.totals;
+  const { total: t, bulk2, jSum } = shellSums(grid, psi, spec, shellData(grid, shells.count, fft.work(1), perMode, velocityPerMode), fft, run);
+  for (let i = 0; i < 4; i++) shells.series(i).set(t.subarray(SHELL_TOTALS + i * shells.count, SHELL_TOTALS + (i + 1) * shells.count));
   const [quantum, incompressible, compressible, uniformFlow, zeroMode] = [t[0]!, t[1]!, t[2]!, t[3]!, t[4]!];
   const spectra = shells.rows().map((r) => ({ k: r.k, quantum: r.sums[0]!, incompressible: r.sums[1]!, compressible: r.sums[2]!, velocityPower: r.sums[3]! / r.modes, modes: r.modes }));
   return {
     split: { kinetic: quantum + incompressible + compressible + unresolved, quantum, incompressible, compressible, unresolved, uniformFlow, zeroMode, spectra },
-    kinetic: kineticFromSums(grid, a, { gradient: moments.k2, bulk2: flow[0]!, jSum, mass }),
+    kinetic: kineticFromSums(grid, a, { gradient: moments.k2, bulk2, jSum, mass }),
     moments,
   };
 }

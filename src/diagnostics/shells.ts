@@ -92,7 +92,8 @@ export function modeShells(grid: Grid): ModeShells {
   if (lastTable?.key === key) return lastTable.table;
   lastTable = undefined;
   const shells = new Shells(grid, 0);
-  const bins = shells.count < 32767 ? new Int16Array(grid.size) : new Int32Array(grid.size);
+  // on shared memory: the energy split's passes read it on the step's threads
+  const bins = shells.count < 32767 ? new Int16Array(new SharedArrayBuffer(2 * grid.size)) : new Int32Array(new SharedArrayBuffer(4 * grid.size));
   const [n0, n1, n2] = grid.shape;
   const [k0, k1] = [grid.wavenumbers(0), grid.wavenumbers(1)];
   for (let a = 0, i = 0; a < n0; a++) for (let b = 0; b < n1; b++, i += n2) shellRow(shells, bins, i, k0[a]! * k0[a]! + k1[b]! * k1[b]!, grid.wavenumbers(2));
@@ -124,18 +125,6 @@ export function spectralDerivative(grid: Grid, fft: FieldTransforms, spec: Float
   fft.inverse(out);
 }
 
-/**
- * `field` (a work grid of `fft`, holding ψ) ← ∂ψ/∂x_axis by the spectral derivative along that axis alone:
- * its transform along the axis, i k (zero on the Nyquist index), the inverse along the axis. The same as
- * spectralDerivative of ψ's whole spectrum to round-off (the transforms along the other axes cancel),
- * with two axis passes instead of six.
- */
-export function derivativeAlongAxis(grid: Grid, fft: FieldTransforms, field: Float64Array, axis: 0 | 1 | 2): void {
-  fft.alongAxis(field, axis, false);
-  timesIk(grid, field, axis, field);
-  fft.alongAxis(field, axis, true);
-}
-
 /** out ← i k_axis spec, k_axis the derivative wavenumbers (the Nyquist index's zero), by the index along `axis`. */
 function timesIk(grid: Grid, spec: Float64Array, axis: 0 | 1 | 2, out: Float64Array): void {
   const k = derivativeWavenumbers(grid, axis);
@@ -148,7 +137,7 @@ function timesIk(grid: Grid, spec: Float64Array, axis: 0 | 1 | 2, out: Float64Ar
 }
 
 /** One row of the spectral derivative: out ← i (row + zScale k_c) spec over the modes [p, p + 2 n2). */
-function derivativeRow(spec: Float64Array, out: Float64Array, p: number, row: number, zScale: number, kz: Float64Array): void {
+export function derivativeRow(spec: Float64Array, out: Float64Array, p: number, row: number, zScale: number, kz: Float64Array): void {
   for (let c = 0; c < kz.length; c++, p += 2) {
     const kk = row + zScale * kz[c]!;
     const re = spec[p]!;

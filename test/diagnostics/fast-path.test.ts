@@ -79,6 +79,12 @@ describe.each(cases)("$cells.length-D grid $cells", ({ cells, a }) => {
     const split = energySplit(grid, psi, a, simple());
     const both = energyAndKineticSplit(grid, psi, a, fast);
     expect(worst(both.split, split, split.kinetic)).toBeLessThan(1e-12);
+    // ψ in shared memory, as analyze reads it: the split's passes run on the pool's threads, with the same numbers bit for bit, every time
+    const shared = new Float64Array(new SharedArrayBuffer(psi.byteLength));
+    shared.set(psi);
+    const threaded = energyAndKineticSplit(grid, shared, a, fast);
+    expect(threaded).toStrictEqual(both);
+    expect(energyAndKineticSplit(grid, shared, a, fast)).toStrictEqual(threaded);
     const kinetic = kineticSplit(grid, psi, a, simple());
     expect(worst(both.kinetic, kinetic, kinetic.kinetic)).toBeLessThan(1e-12);
     expect(worst(kineticSplit(grid, psi, a, fast), kinetic, kinetic.kinetic)).toBeLessThan(1e-12);
