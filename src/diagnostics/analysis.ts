@@ -15,6 +15,13 @@ import { SimpleTransforms, type FieldTransforms } from "../fields/field-transfor
 import { modeShells, Shells, simulatedAxes, spectralDerivative } from "./shells.js";
 
 export { densestPoints, radialProfile } from "./peaks.js";
+import { runHere, type BlockRunner } from "./block-tasks.js";
+import { densityPdf as pdfOn } from "./density-pdf.js";
+
+/** Histogram of log₁₀(ρ/ρ̄): bin centres and the fraction of cells (volume) and of mass in each (density-pdf.ts; on this thread unless `run` says). */
+export function densityPdf(psi: Float64Array, bins = 40, run: BlockRunner = runHere): { log10Contrast: number; volumeFraction: number; massFraction: number }[] {
+  return pdfOn(psi, bins, run);
+}
 
 /** One bin of a power spectrum (code units: k in 1/ℓ, P in ℓ^d). */
 export interface PowerBin {
@@ -67,36 +74,6 @@ export function densityVariance(psi: Float64Array): number {
   let v = 0;
   for (let i = 0; i < n; i++) v += ((psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2) / mean - 1) ** 2;
   return v / n;
-}
-
-/** Histogram of log₁₀(ρ/ρ̄): bin centres and the fraction of cells (volume) in each. */
-export function densityPdf(psi: Float64Array, bins = 40): { log10Contrast: number; volumeFraction: number; massFraction: number }[] {
-  const n = psi.length / 2;
-  // the range of ρ, then of ρ/ρ̄: dividing by ρ̄ > 0 keeps the order, so the extremes are the same cells'
-  // (log₁₀ is monotonic: empty cells count as 1e-30 but do not set the lower end)
-  let sum = 0;
-  let minRho = Infinity;
-  let maxRho = 0;
-  for (let p = 0; p < psi.length; p += 2) {
-    const rho = psi[p]! ** 2 + psi[p + 1]! ** 2;
-    sum += rho;
-    if (rho > 0 && rho < minRho) minRho = rho;
-    if (rho > maxRho) maxRho = rho;
-  }
-  const mean = sum / n;
-  const lo = Math.log10(minRho / mean);
-  const hi = Math.log10(Math.max(maxRho / mean, 1e-30));
-  if (!(hi > lo)) return [{ log10Contrast: hi, volumeFraction: 1, massFraction: 1 }];
-  const width = (hi - lo) / bins;
-  const vol = new Float64Array(bins);
-  const mass = new Float64Array(bins);
-  for (let p = 0; p < psi.length; p += 2) {
-    const r = Math.max((psi[p]! ** 2 + psi[p + 1]! ** 2) / mean, 1e-30);
-    const b = Math.min(bins - 1, Math.max(0, Math.floor((Math.log10(r) - lo) / width)));
-    vol[b] = vol[b]! + 1 / n;
-    mass[b] = mass[b]! + r / n;
-  }
-  return Array.from({ length: bins }, (_, b) => ({ log10Contrast: lo + (b + 0.5) * width, volumeFraction: vol[b]!, massFraction: mass[b]! }));
 }
 
 /** The kinetic energy split, and velocity statistics (code units). */

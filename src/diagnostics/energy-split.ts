@@ -24,7 +24,8 @@ import { SimpleTransforms, type FieldTransforms } from "../fields/field-transfor
 import { derivativeWavenumbers, modeShells, Shells, simulatedAxes } from "./shells.js";
 import { kineticFromSums, type KineticSplit } from "./analysis.js";
 import { SHELL_TOTALS, shellSumsLength, type ShellData } from "./split-passes.js";
-import { addBlockSums, rowBlocks, runHere, sharedFloats, type SplitRunner, type SplitTask } from "./split-tasks.js";
+import { addBlockSums, rowBlocks, sharedFloats } from "./row-blocks.js";
+import { runnerOf, type BlockRunner } from "./block-tasks.js";
 import { spectrumMoments, type SpectrumMoments } from "./spectrum-moments.js";
 
 /** One shell of the energy spectra (code units). */
@@ -89,18 +90,6 @@ function massOf(psi: Float64Array): number {
   return mass;
 }
 
-/** Transforms that run the split's passes on threads of their own (integrators/pooled-transforms.ts). */
-export interface SplitThreads {
-  runSplit(blocks: number, task: SplitTask): void;
-}
-
-/** Where the split's passes run: on the transforms' threads when they have them and ψ is in shared memory (a message shares it), else here. */
-function runnerOf(fft: FieldTransforms, psi: Float64Array): SplitRunner {
-  const threads = fft as Partial<SplitThreads>;
-  if (typeof threads.runSplit !== "function" || !(psi.buffer instanceof SharedArrayBuffer)) return runHere;
-  return (blocks, task) => threads.runSplit!(blocks, task);
-}
-
 /** The shell passes' data of `grid` at factors per mode (perMode for the energies, velocityPerMode for the velocity power); k·W into `div`. */
 function shellData(grid: Grid, count: number, div: Float64Array, perMode: number, velocityPerMode: number): ShellData {
   const [n0, n1, n2] = grid.shape;
@@ -112,7 +101,7 @@ function shellData(grid: Grid, count: number, div: Float64Array, perMode: number
  * The derivative of ψ along each axis packed into u + i w and transformed, each into the shells: the sums of
  * the shell passes (split-passes.ts: totals, then four series per shell), Σ j²/ρ, and Σ j per axis.
  */
-function shellSums(grid: Grid, psi: Float64Array, spec: Float64Array, data: ShellData, fft: FieldTransforms, run: SplitRunner): { total: Float64Array; bulk2: number; jSum: number[] } {
+function shellSums(grid: Grid, psi: Float64Array, spec: Float64Array, data: ShellData, fft: FieldTransforms, run: BlockRunner): { total: Float64Array; bulk2: number; jSum: number[] } {
   const at = rowBlocks(grid.shape);
   const length = shellSumsLength(data.count);
   const [sums, packSums] = [sharedFloats(at.blocks * length), sharedFloats(2 * at.blocks)];
@@ -143,7 +132,7 @@ function shellSums(grid: Grid, psi: Float64Array, spec: Float64Array, data: Shel
  * split of `kineticSplit` (analysis.ts; the same numbers) and the moments of
  * ψ's spectrum (spectrum-moments.ts). Work grids 0 and 1 of `fft`. The passes
  * over the grid run on the transforms' threads where they have them
- * (SplitThreads), with the same result bit for bit on any number of threads.
+ * (block-tasks.ts), with the same result bit for bit on any number of threads.
  */
 export function energyAndKineticSplit(grid: Grid, psi: Float64Array, a: number, fft: FieldTransforms): { split: EnergySplit; kinetic: KineticSplit; moments: SpectrumMoments } {
   const n = grid.size;

@@ -1,29 +1,13 @@
 /**
- * The energy split's passes as plain tasks over blocks of rows, so that the
- * step's thread pool can run them (integrators/step-task.ts, op "split") as
- * well as this thread. A grid's rows (n0 n1 rows of the last axis) fall into
- * a fixed number of blocks whatever the thread count; each block sums into
- * its own slots of a shared array, and the caller adds the blocks' sums in
- * block order: the result is the same bit for bit on any number of threads.
- * The typed arrays of a task are on shared memory where it goes to another
- * thread (a message shares them; the small wavenumber tables are copied).
+ * The energy split's passes as plain tasks over blocks of rows
+ * (row-blocks.ts), so that the step's thread pool can run them
+ * (block-tasks.ts) as well as this thread. The typed arrays of a task are on
+ * shared memory where it goes to another thread (a message shares them; the
+ * small wavenumber tables are copied).
  */
 import { axisRow, compressibleRow, nyquistRow, packRow, shellSumsLength, type ShellData } from "./split-passes.js";
 import { derivativeRow } from "./shells.js";
-
-/** Rows of the last axis and how many blocks they fall into (the same on any number of threads). */
-export interface RowBlocks {
-  readonly rows: number;
-  readonly blocks: number;
-  /** Length of the last axis. */
-  readonly n2: number;
-}
-
-/** The blocks of a shape's rows: at most 64, so that the sums stay small and two threads share the work evenly. */
-export function rowBlocks(shape: readonly [number, number, number]): RowBlocks {
-  const rows = shape[0] * shape[1];
-  return { rows, blocks: Math.min(rows, 64), n2: shape[2] };
-}
+import { blockRows, type RowBlocks } from "./row-blocks.js";
 
 /** One pass of the split over blocks [lo, hi). */
 export type SplitTask =
@@ -38,12 +22,7 @@ export type SplitTask =
   /** compressibleRow over the rows; block u's sums as for "shells". */
   | { readonly kind: "compressible"; readonly at: RowBlocks; readonly data: ShellData; readonly sums: Float64Array };
 
-/** The rows [first, end) of block u. */
-function blockRows(at: RowBlocks, u: number): [number, number] {
-  return [Math.floor((u * at.rows) / at.blocks), Math.floor(((u + 1) * at.rows) / at.blocks)];
-}
-
-/** Run a task over blocks [lo, hi). */
+/** Run a split task over blocks [lo, hi). */
 export function runSplitTask(t: SplitTask, lo: number, hi: number): void {
   for (let u = lo; u < hi; u++) {
     const [first, end] = blockRows(t.at, u);
@@ -85,20 +64,3 @@ function compressibleRows(d: ShellData, first: number, end: number, sums: Float6
     compressibleRow(d, r, d.k0[a]! * d.k0[a]! + d.k1[b]! * d.k1[b]!, nyquistRow(d, a, b), sums, at);
   }
 }
-
-/** Add the blocks' sums (`length` entries each) into `total`, block by block in order; `sums` is zeroed for the next pass. */
-export function addBlockSums(sums: Float64Array, blocks: number, length: number, total: Float64Array): void {
-  for (let u = 0; u < blocks; u++) for (let i = 0; i < length; i++) total[i] = total[i]! + sums[u * length + i]!;
-  sums.fill(0);
-}
-
-/** A zeroed Float64Array on shared memory (other threads can write it). */
-export function sharedFloats(length: number): Float64Array {
-  return new Float64Array(new SharedArrayBuffer(8 * length));
-}
-
-/** Runs a split task over all of a grid's blocks: on the step's threads, or here. */
-export type SplitRunner = (blocks: number, task: SplitTask) => void;
-
-/** The runner of this thread alone. */
-export const runHere: SplitRunner = (blocks, task) => runSplitTask(task, 0, blocks);

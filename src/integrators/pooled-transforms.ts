@@ -15,8 +15,7 @@ import { regionView, stepGeometry, transformRegions, WASM_MAX_BYTES, wasmLayout,
 import { kernelModule } from "../fields/wasm-kernels.js";
 import { RESULT_LENGTH, runTask, transformOf, type StepTask } from "./step-task.js";
 import { ThreadPool, type ThreadPoolOptions } from "./thread-pool.js";
-import type { SplitThreads } from "../diagnostics/energy-split.js";
-import type { SplitTask } from "../diagnostics/split-tasks.js";
+import type { BlockTask, BlockThreads } from "../diagnostics/block-tasks.js";
 
 /** What a pooled transform set is built with. */
 export interface PooledOptions {
@@ -41,7 +40,7 @@ function chooseBackend(shape: Triple, grids: number, threads: number, choice: Ff
 }
 
 /** Work grids in the step's memory, transformed by the step engine's passes on a pool of threads. */
-export class PooledTransforms implements FieldTransforms, SplitThreads {
+export class PooledTransforms implements FieldTransforms, BlockThreads {
   readonly shape: Triple;
   readonly backend: FftBackend;
   readonly threads: number;
@@ -105,9 +104,9 @@ export class PooledTransforms implements FieldTransforms, SplitThreads {
     else runTask(this.engine, task, 0, units, this.result);
   }
 
-  /** A pass of the energy split over `blocks` (diagnostics/energy-split.ts SplitThreads), split across the threads as a transform's units are. */
-  runSplit(blocks: number, task: SplitTask): void {
-    const step: StepTask = { op: "split", task };
+  /** A diagnostics' pass over `blocks` (diagnostics/block-tasks.ts), split across the threads as a transform's units are. */
+  runBlocks(blocks: number, task: BlockTask): void {
+    const step: StepTask = { op: "blocks", task };
     if (this.pool) this.pool.run(blocks, step, this.result);
     else runTask(this.engine, step, 0, blocks, this.result);
   }

@@ -6,7 +6,7 @@
  */
 import type { ComplexGrid, LongRowsMode, PoissonTarget, RealGrid, StepEngine } from "../fields/step-engine.js";
 import { isRealGrid, type StepGeometry, type Transform } from "../fields/step-memory.js";
-import { runSplitTask, type SplitTask } from "../diagnostics/split-tasks.js";
+import { runBlockTask, type BlockTask } from "../diagnostics/block-tasks.js";
 
 /** One pass of the step, without its unit range. */
 export type StepTask =
@@ -53,8 +53,8 @@ export type StepTask =
   | { readonly op: "overlap"; readonly field: ComplexGrid }
   | { readonly op: "combine"; readonly field: ComplexGrid; readonly scale: number; readonly re: number; readonly im: number }
   | { readonly op: "poisson" | "isolated-zero" | "convolve" }
-  /** A pass of the energy split over blocks of rows (diagnostics/split-tasks.ts), on the pool's threads; no engine, no transform. */
-  | { readonly op: "split"; readonly task: SplitTask };
+  /** A diagnostics' pass over blocks of rows (diagnostics/block-tasks.ts), on the pool's threads; no engine, no transform. */
+  | { readonly op: "blocks"; readonly task: BlockTask };
 
 /** Length of a task's result vector: sums in entries 0–2, maxima in entries 3 and 5, a minimum in entry 4. */
 export const RESULT_LENGTH = 6;
@@ -166,8 +166,8 @@ function runScalar(engine: StepEngine, t: Exclude<StepTask, { op: "moments" | "o
     case "long-pairs":
       engine.longPairs(t.real, lo, hi);
       return 0;
-    case "split":
-      runSplitTask(t.task, lo, hi);
+    case "blocks":
+      runBlockTask(t.task, lo, hi);
       return 0;
   }
 }
@@ -226,7 +226,7 @@ export function transformOf(t: StepTask, g: StepGeometry): Transform | undefined
     case "poisson":
     case "isolated-zero":
     case "convolve":
-    case "split":
+    case "blocks":
       return undefined;
   }
 }

@@ -15,6 +15,7 @@ import type { SpectrumMoments } from "../diagnostics/spectrum-moments.js";
 import { KG_PER_EV, M_SUN_KG, PC_M } from "../physics/constants.js";
 import { csvTable as csv } from "./csv-table.js";
 import { coreRelationDensity } from "../diagnostics/halo-core.js";
+import { runnerOf } from "../diagnostics/block-tasks.js";
 
 const KPC = 1e3 * PC_M;
 
@@ -69,7 +70,7 @@ export function snapshotTables(
 
   const power = densityPowerSpectrum(grid, psi, fft, 1);
   writeFileAtomic(path.join(outDir, "power.csv"), powerTable(power, kpcPerCode, grid.dims, snap.meta.background.kind === "lcdm" ? snap.meta.background.hubbleKmSMpc / 100 : undefined));
-  const pdf = densityPdf(psi);
+  const pdf = densityPdf(psi, 40, runnerOf(fft, psi));
   writeFileAtomic(path.join(outDir, "pdf.csv"), csv(["log10_density_contrast", "volume_fraction", "mass_fraction"], pdf.map((p) => [p.log10Contrast, p.volumeFraction, p.massFraction])));
 
   // K from ψ's spectrum and the periodic W from δ's, both at hand: no transform of their own

@@ -6,7 +6,8 @@ import { Grid } from "../../src/grid/grid.js";
 import { ComplexFft, outerCount } from "../../src/fields/fft.js";
 import { SimpleTransforms } from "../../src/fields/field-transforms.js";
 import { PooledTransforms } from "../../src/integrators/pooled-transforms.js";
-import { densestPoints, densityPowerSpectrum, kineticSplit, meanDensity } from "../../src/diagnostics/analysis.js";
+import { densestPoints, densityPdf, densityPowerSpectrum, kineticSplit, meanDensity } from "../../src/diagnostics/analysis.js";
+import { runnerOf } from "../../src/diagnostics/block-tasks.js";
 import { kineticFromGradient, periodicPotentialFromContrast } from "../../src/diagnostics/energies.js";
 import { energyAndKineticSplit, energySplit } from "../../src/diagnostics/energy-split.js";
 import { granuleStats } from "../../src/diagnostics/granules.js";
@@ -85,6 +86,7 @@ describe.each(cases)("$cells.length-D grid $cells", ({ cells, a }) => {
     const threaded = energyAndKineticSplit(grid, shared, a, fast);
     expect(threaded).toStrictEqual(both);
     expect(energyAndKineticSplit(grid, shared, a, fast)).toStrictEqual(threaded);
+    expect(densityPdf(shared, 40, runnerOf(fast, shared))).toStrictEqual(densityPdf(psi));
     const kinetic = kineticSplit(grid, psi, a, simple());
     expect(worst(both.kinetic, kinetic, kinetic.kinetic)).toBeLessThan(1e-12);
     expect(worst(kineticSplit(grid, psi, a, fast), kinetic, kinetic.kinetic)).toBeLessThan(1e-12);

@@ -1,0 +1,57 @@
+// The density PDF (histogram of log₁₀ ρ/ρ̄ by volume and by mass) against a direct count computed independently
+// (each cell's bin found by comparing ρ/ρ̄ with the bin edges 10^edge, no logarithm per cell), and its passes run
+// block by block in any order giving the same numbers.
+import { describe, expect, it } from "vitest";
+import { densityPdf } from "../../src/diagnostics/analysis.js";
+import { runBlockTask, type BlockRunner } from "../../src/diagnostics/block-tasks.js";
+
+/** ψ of `cells` cells with ρ spread over four decades (a few cells empty), from a fixed seed. */
+function field(cells: number): Float64Array {
+  let seed = 7;
+  const rand = () => ((seed = (Math.imul(seed, 1664525) + 1013904223) >>> 0) + 0.5) / 4294967296;
+  const psi = new Float64Array(2 * cells);
+  for (let i = 0; i < cells; i++) {
+    if (i % 97 === 5) continue;
+    const amp = Math.sqrt(10 ** (4 * rand() - 2));
+    const phase = 2 * Math.PI * rand();
+    [psi[2 * i], psi[2 * i + 1]] = [amp * Math.cos(phase), amp * Math.sin(phase)];
+  }
+  return psi;
+}
+
+describe("the density PDF", () => {
+  const cells = 5000;
+  const psi = field(cells);
+  const pdf = densityPdf(psi, 40);
+
+  it("equals a direct count of the cells between the bin edges (computed independently); volume and mass fractions each sum to 1", () => {
+    const rho = Array.from({ length: cells }, (_, i) => psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2);
+    const mean = rho.reduce((s, r) => s + r, 0) / cells;
+    const width = pdf[1]!.log10Contrast - pdf[0]!.log10Contrast;
+    const edges = pdf.map((b) => 10 ** (b.log10Contrast - width / 2));
+    expect(Math.log10(Math.min(...rho.filter((r) => r > 0)) / mean)).toBeCloseTo(pdf[0]!.log10Contrast - width / 2, 12);
+    const volume = new Array<number>(40).fill(0);
+    const mass = new Array<number>(40).fill(0);
+    for (const r of rho) {
+      const x = r / mean;
+      // the last edge at or below x (empty cells in the first bin, the largest in the last)
+      let b = 0;
+      while (b + 1 < 40 && edges[b + 1]! <= x) b++;
+      volume[b]! += 1 / cells;
+      mass[b]! += x / cells;
+    }
+    pdf.forEach((bin, b) => {
+      expect(bin.volumeFraction).toBeCloseTo(volume[b]!, 12);
+      expect(bin.massFraction).toBeCloseTo(mass[b]!, 12);
+    });
+    expect(pdf.reduce((s, b) => s + b.volumeFraction, 0)).toBeCloseTo(1, 12);
+    expect(pdf.reduce((s, b) => s + b.massFraction, 0)).toBeCloseTo(1, 12);
+  });
+
+  it("gives the same numbers bit for bit when its blocks run in another order (as on several threads)", () => {
+    const backwards: BlockRunner = (blocks, task) => {
+      for (let u = blocks - 1; u >= 0; u--) runBlockTask(task, u, u + 1);
+    };
+    expect(densityPdf(psi, 40, backwards)).toStrictEqual(pdf);
+  });
+});
