@@ -96,15 +96,21 @@ export function modeShells(grid: Grid): ModeShells {
   const bins = shells.count < 32767 ? new Int16Array(new SharedArrayBuffer(2 * grid.size)) : new Int32Array(new SharedArrayBuffer(4 * grid.size));
   const [n0, n1, n2] = grid.shape;
   const [k0, k1] = [grid.wavenumbers(0), grid.wavenumbers(1)];
-  for (let a = 0, i = 0; a < n0; a++) for (let b = 0; b < n1; b++, i += n2) shellRow(shells, bins, i, k0[a]! * k0[a]! + k1[b]! * k1[b]!, grid.wavenumbers(2));
+  const k2 = grid.wavenumbers(2);
+  // |k| of a row's modes: c and n2 − c have the same k² (FFT order: k_c = −k_(n2−c) exactly), so half the square roots do
+  const mirrored = k2.every((k, c) => c === 0 || k * k === k2[n2 - c]! * k2[n2 - c]!);
+  const row = new Float64Array(n2);
+  for (let a = 0, i = 0; a < n0; a++) for (let b = 0; b < n1; b++, i += n2) shellRow(shells, bins, i, k0[a]! * k0[a]! + k1[b]! * k1[b]!, k2, mirrored ? (n2 >> 1) + 1 : n2, row);
   const table = { bins, ksum: shells.sumsOfK(), modes: shells.modeCounts() };
   lastTable = { key, table };
   return table;
 }
 
-/** One row of modeShells: the modes [i, i + n2) at k_a² + k_b² = kab. */
-function shellRow(shells: Shells, bins: Int16Array | Int32Array, i: number, kab: number, k2: Float64Array): void {
-  for (let c = 0; c < k2.length; c++, i++) bins[i] = shells.addMode(Math.sqrt(kab + k2[c]! * k2[c]!));
+/** One row of modeShells: the modes [i, i + n2) at k_a² + k_b² = kab, |k| of the first `own` computed (into `row`), the others' taken from their mirrors n2 − c; counted in storage order. */
+function shellRow(shells: Shells, bins: Int16Array | Int32Array, i: number, kab: number, k2: Float64Array, own: number, row: Float64Array): void {
+  const n2 = k2.length;
+  for (let c = 0; c < own; c++) row[c] = Math.sqrt(kab + k2[c]! * k2[c]!);
+  for (let c = 0; c < n2; c++, i++) bins[i] = shells.addMode(row[c < own ? c : n2 - c]!);
 }
 
 /** The wavenumbers of the spectral derivative along `axis`: k, with the Nyquist index's set to zero. */

@@ -77,12 +77,11 @@ export function nyquistRow(d: ShellData, a: number, b: number): number {
  * W_−k = conj W_k: only the modes 0 ≤ c ≤ n2/2 are visited, those with 0 < c < n2/2 counted twice (for their
  * mirrors, in the row starting at `mirror`). On the Nyquist rows of the first two axes a mode's wavenumber
  * along that axis is its mirror's too, so k·W of the mirror is no mirror of k·W: those rows keep the mirrors'
- * k·W in `nyquist` (from e). k = [row's k_axis, the mirror row's, the last axis's scale].
+ * k·W in `nyquist` (from e). kRow: the row's k_axis, kMirror: the mirror row's; zScale: 1 along the last axis, else 0.
  */
-export function axisRow(d: ShellData, z: Float64Array, r: number, mirror: number, k: readonly number[], e: number, first: boolean, s: Float64Array, at: number): void {
+export function axisRow(d: ShellData, z: Float64Array, r: number, mirror: number, kRow: number, kMirror: number, zScale: number, e: number, first: boolean, s: Float64Array, at: number): void {
   const { k2, bins, count, perMode, velocityPerMode, div, nyquist } = d;
   const [n2, half] = [k2.length, k2.length / 2];
-  const [kRow, kMirror, zScale] = k as [number, number, number];
   const [sq, sw, sv] = [at + SHELL_TOTALS, at + SHELL_TOTALS + count, at + SHELL_TOTALS + 3 * count];
   let [quantum, incompressible] = [s[at]!, s[at + 1]!];
   const onNyquist = e >= 0;

@@ -53,7 +53,7 @@ function shellRows(t: Extract<SplitTask, { kind: "shells" }>, first: number, end
     const [ma, mb] = [a === 0 ? 0 : n0 - a, b === 0 ? 0 : n1 - b];
     const kRow = t.axis === 0 ? d.k0[a]! : t.axis === 1 ? d.k1[b]! : 0;
     const kMirror = t.axis === 0 ? d.k0[ma]! : t.axis === 1 ? d.k1[mb]! : 0;
-    axisRow(d, t.z, r, 2 * (ma * n1 + mb) * n2, [kRow, kMirror, zScale], nyquistRow(d, a, b), t.first, t.sums, at);
+    axisRow(d, t.z, r, 2 * (ma * n1 + mb) * n2, kRow, kMirror, zScale, nyquistRow(d, a, b), t.first, t.sums, at);
   }
 }
 
