@@ -66,9 +66,10 @@ export function shellSumsLength(count: number): number {
 
 /** Where row (a, b) keeps its mirrors' k·W in `nyquist`, or −1 when it is no Nyquist row. */
 export function nyquistRow(d: ShellData, a: number, b: number): number {
-  const [n0, n1, n2] = d.shape;
+  const n0 = d.shape[0];
+  const n1 = d.shape[1];
   const row = n0 > 1 && a === n0 / 2 ? b : n1 > 1 && b === n1 / 2 ? n1 + a : -1;
-  return row < 0 ? -1 : row * (n2 + 2);
+  return row < 0 ? -1 : row * (d.shape[2] + 2);
 }
 
 /**
@@ -81,9 +82,13 @@ export function nyquistRow(d: ShellData, a: number, b: number): number {
  */
 export function axisRow(d: ShellData, z: Float64Array, r: number, mirror: number, kRow: number, kMirror: number, zScale: number, e: number, first: boolean, s: Float64Array, at: number): void {
   const { k2, bins, count, perMode, velocityPerMode, div, nyquist } = d;
-  const [n2, half] = [k2.length, k2.length / 2];
-  const [sq, sw, sv] = [at + SHELL_TOTALS, at + SHELL_TOTALS + count, at + SHELL_TOTALS + 3 * count];
-  let [quantum, incompressible] = [s[at]!, s[at + 1]!];
+  const n2 = k2.length;
+  const half = n2 / 2;
+  const sq = at + SHELL_TOTALS;
+  const sw = sq + count;
+  const sv = sq + 3 * count;
+  let quantum = s[at]!;
+  let incompressible = s[at + 1]!;
   const onNyquist = e >= 0;
   for (let c = 0, p = 2 * r * n2, h = 2 * r * (half + 1); c <= half; c++, p += 2, h += 2, e += 2) {
     const m = mirror + (c === 0 ? 0 : 2 * (n2 - c));
@@ -116,7 +121,8 @@ export function axisRow(d: ShellData, z: Float64Array, r: number, mirror: number
     s[sw + bin] = s[sw + bin]! + ww * perMode;
     s[sv + bin] = s[sv + bin]! + ww * velocityPerMode;
   }
-  [s[at], s[at + 1]] = [quantum, incompressible];
+  s[at] = quantum;
+  s[at + 1] = incompressible;
 }
 
 /**
@@ -126,7 +132,8 @@ export function axisRow(d: ShellData, z: Float64Array, r: number, mirror: number
 export function compressibleRow(d: ShellData, r: number, kab: number, e: number, s: Float64Array, at: number): void {
   const { k2, bins, count, perMode, div, nyquist } = d;
   const half = k2.length / 2;
-  const [sw, sc] = [at + SHELL_TOTALS + count, at + SHELL_TOTALS + 2 * count];
+  const sw = at + SHELL_TOTALS + count;
+  const sc = sw + count;
   let compressible = s[at + 2]!;
   let incompressible = s[at + 1]!;
   const onNyquist = e >= 0;

@@ -39,18 +39,23 @@ function ikRows(t: Extract<SplitTask, { kind: "ik" }>, first: number, end: numbe
   // along the last axis the factor is k[c]; along the others one factor per row (the scale 0 · k[c] adds nothing)
   const zScale = t.axis === 2 ? 1 : 0;
   for (let r = first; r < end; r++) {
-    const [a, b] = [Math.floor(r / t.n1), r % t.n1];
+    const a = Math.floor(r / t.n1);
+    const b = r % t.n1;
     derivativeRow(t.z, t.z, 2 * r * t.at.n2, t.axis === 0 ? t.k[a]! : t.axis === 1 ? t.k[b]! : 0, zScale, t.kz);
   }
 }
 
 function shellRows(t: Extract<SplitTask, { kind: "shells" }>, first: number, end: number, at: number): void {
   const d = t.data;
-  const [n0, n1, n2] = d.shape;
+  const n0 = d.shape[0];
+  const n1 = d.shape[1];
+  const n2 = d.shape[2];
   const zScale = t.axis === 2 ? 1 : 0;
   for (let r = first; r < end; r++) {
-    const [a, b] = [Math.floor(r / n1), r % n1];
-    const [ma, mb] = [a === 0 ? 0 : n0 - a, b === 0 ? 0 : n1 - b];
+    const a = Math.floor(r / n1);
+    const b = r % n1;
+    const ma = a === 0 ? 0 : n0 - a;
+    const mb = b === 0 ? 0 : n1 - b;
     const kRow = t.axis === 0 ? d.k0[a]! : t.axis === 1 ? d.k1[b]! : 0;
     const kMirror = t.axis === 0 ? d.k0[ma]! : t.axis === 1 ? d.k1[mb]! : 0;
     axisRow(d, t.z, r, 2 * (ma * n1 + mb) * n2, kRow, kMirror, zScale, nyquistRow(d, a, b), t.first, t.sums, at);
@@ -60,7 +65,8 @@ function shellRows(t: Extract<SplitTask, { kind: "shells" }>, first: number, end
 function compressibleRows(d: ShellData, first: number, end: number, sums: Float64Array, at: number): void {
   const n1 = d.shape[1];
   for (let r = first; r < end; r++) {
-    const [a, b] = [Math.floor(r / n1), r % n1];
+    const a = Math.floor(r / n1);
+    const b = r % n1;
     compressibleRow(d, r, d.k0[a]! * d.k0[a]! + d.k1[b]! * d.k1[b]!, nyquistRow(d, a, b), sums, at);
   }
 }
