@@ -104,3 +104,39 @@ export function cellIndices(grid: Grid, cell: number): number[] {
   const st = strides(grid);
   return st.map((s, a) => Math.floor(cell / s) % grid.cells[a]!);
 }
+
+/** One storage row of ψ (n cells from complex index p) added into the plane at o, o + step, …: each cell's |ψ|²·unit; `top` keeps the largest |ψ|² seen and its cell (the first, in storage order, of equals). */
+function addRow(psi: Float64Array, p: number, n: number, values: Float64Array, o: number, step: number, unit: number, top: Float64Array): void {
+  for (let c = 0; c < n; c++, o += step) {
+    const r = psi[2 * (p + c)]! ** 2 + psi[2 * (p + c) + 1]! ** 2;
+    values[o] = values[o]! + r * unit;
+    if (r > top[0]!) {
+      top[0] = r;
+      top[1] = p + c;
+    }
+  }
+}
+
+/**
+ * The projection of a 3D field's density |ψ|²·`unit` along `normal`, the same plane as `densityPlane` makes of it
+ * (each column summed in the same order, bit for bit), in one pass over ψ in storage order; and the densest cell
+ * (its storage index, the first of equals), found on the way.
+ */
+export function columnDensity(grid: Grid, psi: Float64Array, unit: number, normal: number, lengthUnit: number): { plane: DensityPlane; densest: number } {
+  if (grid.dims !== 3) throw new Error("columnDensity needs a 3D grid");
+  const [n0, n1, n2] = grid.cells as [number, number, number];
+  const { across, up } = planeAxes(3, normal);
+  const nx = grid.cells[across]!;
+  const values = new Float64Array(nx * grid.cells[up]!);
+  const top = Float64Array.of(-Infinity, 0);
+  // the third storage axis runs along the columns (normal 2) or up the plane
+  const step = normal === 2 ? 0 : nx;
+  for (let a0 = 0; a0 < n0; a0++)
+    for (let a1 = 0; a1 < n1; a1++) addRow(psi, (a0 * n1 + a1) * n2, n2, values, normal === 2 ? a0 + nx * a1 : normal === 1 ? a0 : a1, step, unit, top);
+  const dz = (grid.lengths[normal]! / grid.cells[normal]!) * lengthUnit;
+  for (let i = 0; i < values.length; i++) values[i] = values[i]! * dz;
+  const dx = grid.lengths[across]! / nx;
+  const dy = grid.lengths[up]! / grid.cells[up]!;
+  const plane = { nx, ny: grid.cells[up]!, values, x0: -0.5 * dx * lengthUnit, y0: -0.5 * dy * lengthUnit, width: grid.lengths[across]! * lengthUnit, height: grid.lengths[up]! * lengthUnit, across, up, normal, index: null };
+  return { plane, densest: top[1]! };
+}

@@ -15,8 +15,16 @@ const SIGNATURE = Buffer.from([137, 80, 78, 71, 13, 10, 26, 10]);
 
 let crcTable: Int32Array | undefined;
 
-/** CRC-32 of a chunk's type and data (ISO 3309, as in the specification's sample code). */
+/** zlib's own CRC-32 (Node.js from 20.15), where there is one. */
+const zlibCrc = (zlib as { crc32?: (data: Uint8Array) => number }).crc32;
+
+/** CRC-32 of a chunk's type and data (ISO 3309): zlib's where Node.js has it, else `tableCrc32`. */
 function crc32(bytes: Uint8Array): number {
+  return zlibCrc ? zlibCrc(bytes) : tableCrc32(bytes);
+}
+
+/** CRC-32 as in the PNG specification's sample code (a table of 256 words). */
+export function tableCrc32(bytes: Uint8Array): number {
   if (!crcTable) {
     crcTable = new Int32Array(256);
     for (let n = 0; n < 256; n++) {
@@ -78,14 +86,20 @@ export function pngFile(filtered: Uint8Array, width: number, height: number, cha
   return assemble(zlib.deflateSync(filtered, level === undefined ? {} : { level }), width, height, channels);
 }
 
+let blocks = new Uint8Array(0);
+
 /**
  * The cells as a PNG of zoom × zoom pixel blocks. Its scanlines are Up-filtered as `encodePng` filters
  * the enlarged pixels (the same file, byte for byte), written here without enlarging first: a block's
- * first row holds its cells minus the cells above, its other rows are zeros.
+ * first row holds its cells minus the cells above, its other rows are zeros. The scanlines go in a buffer
+ * reused from call to call (fresh memory costs a page fault per page; memory touched already does not).
  */
 export function blockPng(colours: Uint8Array, nx: number, ny: number, zoom: number): Buffer {
   const line = 3 * nx * zoom;
-  const filtered = new Uint8Array((line + 1) * ny * zoom);
+  const size = (line + 1) * ny * zoom;
+  if (blocks.length < size) blocks = new Uint8Array(size);
+  const filtered = blocks.subarray(0, size);
+  filtered.fill(0);
   for (let y = 0; y < ny; y++) {
     const first = (line + 1) * y * zoom;
     for (let r = 0; r < zoom; r++) filtered[first + r * (line + 1)] = 2;

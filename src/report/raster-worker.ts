@@ -8,26 +8,32 @@
  * freed only when their JavaScript handles are collected; the worker's heap
  * is small, so without help that happens rarely and every figure's
  * megabytes of pixels are fresh memory (more resident memory, and a page
- * fault per page touched). After each figure the worker collects its own
- * heap (a few milliseconds), so the next figure's drawing reuses the memory
- * the last one freed.
+ * fault per page touched). After each figure the worker collects its young
+ * objects, so the next figure's drawing reuses the memory the last one
+ * freed. It asks fontconfig for the figure font's files as it starts.
  */
 import { createRequire } from "node:module";
 import v8 from "node:v8";
 import vm from "node:vm";
 import { parentPort } from "node:worker_threads";
 import { drawFigure, type FigureJob, type ResvgClass } from "./figure-draw.js";
+import { findFigureFont } from "./figure-font.js";
 
+// the figure font's two faces, asked of fontconfig while this thread loads resvg and Vega
+const fonts = findFigureFont();
 const { Resvg } = createRequire(import.meta.url)("@resvg/resvg-js") as { Resvg: ResvgClass };
 await import("./vega-svg.js");
 
-/** This thread's garbage collector, or nothing where V8 does not give it. */
+/**
+ * This thread's collector of young objects, or nothing where V8 does not give it: resvg's handles are made and
+ * dropped within one figure, so a minor collection (a millisecond or two) finds them; a full one cost about 20 ms.
+ */
 function collector(): (() => void) | undefined {
   try {
     // the flag takes effect for contexts made after it: one made here has the gc function
     v8.setFlagsFromString("--expose-gc");
     const gc: unknown = vm.runInNewContext("gc");
-    return typeof gc === "function" ? (gc as () => void) : undefined;
+    return typeof gc === "function" ? () => (gc as (o: { type: string }) => void)({ type: "minor" }) : undefined;
   } catch {
     return undefined;
   }
@@ -38,9 +44,10 @@ const collect = collector();
 /** Draw one figure and send it back (figures are drawn one at a time, in the order they came). */
 async function draw(id: number, job: FigureJob): Promise<void> {
   try {
-    const drawn = await drawFigure(Resvg, job);
-    // a copy of its own: the encoder's buffer may be a slice of a shared pool
-    const png = Uint8Array.from(drawn.png);
+    const drawn = await drawFigure(Resvg, job, await fonts);
+    // sent by transfer: a buffer of its own as it is, a copy where it is a slice of a shared pool
+    const own = drawn.png.buffer instanceof ArrayBuffer && drawn.png.byteOffset === 0 && drawn.png.byteLength === drawn.png.buffer.byteLength;
+    const png = own ? (drawn.png as Uint8Array<ArrayBuffer>) : new Uint8Array(drawn.png);
     parentPort!.postMessage({ id, svg: drawn.svg, png, width: drawn.width, height: drawn.height }, [png.buffer]);
   } catch (e) {
     parentPort!.postMessage({ id, error: e instanceof Error ? e.message : String(e) });

@@ -12,23 +12,19 @@
  * look of figure-style.ts).
  *
  * The figures are drawn on a worker thread (raster-pool.ts): the main
- * thread builds the specifications and sends them; the worker turns them
- * into SVG with Vega, rasterises and encodes the PNG, so the main thread
- * never loads Vega while a worker can start, and figures requested
- * together (Promise.all) are drawn while the main thread computes. Only the figure font's regular and bold
- * faces are loaded, found once per process through fontconfig; without
- * fontconfig, or without the font, every system font is loaded (slower,
- * same pictures).
+ * thread builds the specifications and hands each to the worker as it is
+ * requested; the worker turns them into SVG with Vega, rasterises and
+ * encodes the PNG, so the main thread never loads Vega while a worker can
+ * start, and figures are drawn while the main thread computes. Only the
+ * figure font's regular and bold faces are loaded (figure-font.ts).
  */
-import { execFile, execFileSync } from "node:child_process";
-import fs from "node:fs";
 import { createRequire } from "node:module";
 import type * as vega from "vega";
 import type { TopLevelSpec } from "vega-lite";
-import type { ResvgRenderOptions } from "@resvg/resvg-js";
 import { rasterPool, resvgAllocatorOptions } from "./raster-pool.js";
 import type { FigureJob, FigureSource, RasterLayer, ResvgClass } from "./figure-draw.js";
-import { FONT, PNG_SCALE } from "./figure-style.js";
+import { PNG_SCALE } from "./figure-style.js";
+import { figureFontFiles } from "./figure-font.js";
 
 /** A rendered figure. */
 export interface Figure {
@@ -39,88 +35,32 @@ export interface Figure {
 }
 
 export { FONT, PNG_SCALE, STYLE } from "./figure-style.js";
+export { figureFaces, figureFontFiles } from "./figure-font.js";
 
-let fontFiles: string[] | null | undefined;
-let fontLookup: Promise<string[] | null> | undefined;
-
-/** fontconfig's listing of the figure font's faces: file, weight, width and slant, one face a line. */
-const FC_ARGS = ["--format", "%{file}\t%{weight}\t%{width}\t%{slant}\n", FONT];
-/** fontconfig's weights of the figures' two styles (regular, bold), its upright slant and its normal width. */
-const REGULAR = 80;
-const BOLD = 200;
-
-/**
- * The files of the faces the figures use (upright, normal width: the regular and the bold, each the listed weight
- * nearest to it), sorted; every listed file where none is upright and of normal width; null when none exists.
- * resvg reads every file it is given for each figure: the two faces instead of the family's nine.
- */
-export function figureFaces(listed: string): string[] | null {
-  const faces = listed
-    .split("\n")
-    .map((l) => l.split("\t"))
-    .filter((f) => f.length === 4 && f[0]!.length > 0 && fs.existsSync(f[0]!))
-    .map(([file, weight, width, slant]) => ({ file: file!, weight: Number(weight), upright: Number(slant) === 0 && Number(width) === 100 }));
-  if (faces.length === 0) return null;
-  const upright = faces.filter((f) => f.upright);
-  if (upright.length === 0) return [...new Set(faces.map((f) => f.file))].sort();
-  const nearest = (w: number) => upright.reduce((best, f) => (Math.abs(f.weight - w) < Math.abs(best.weight - w) ? f : best)).file;
-  return [...new Set([nearest(REGULAR), nearest(BOLD)])].sort();
-}
-
-/** The figure font's files (its regular and bold faces), asked of fontconfig once; null when it cannot say. */
-export function figureFontFiles(): string[] | null {
-  if (fontFiles !== undefined) return fontFiles;
-  fontFiles = null;
-  try {
-    fontFiles = figureFaces(execFileSync("fc-list", FC_ARGS, { encoding: "utf8", timeout: 10_000, stdio: ["ignore", "pipe", "ignore"] }));
-  } catch {
-    // no fontconfig: resvg loads the system's fonts itself
-  }
-  return fontFiles;
-}
-
-/** The same answer, asked in the background (start it early: `psibox analyze` asks before reading a snapshot). */
-export function findFigureFont(): Promise<string[] | null> {
-  if (fontFiles !== undefined) return Promise.resolve(fontFiles);
-  fontLookup ??= new Promise((resolve) => {
-    execFile("fc-list", FC_ARGS, { encoding: "utf8", timeout: 10_000 }, (error, stdout) => {
-      // a synchronous ask meanwhile has settled it already
-      if (fontFiles === undefined) fontFiles = error ? null : figureFaces(stdout);
-      resolve(fontFiles);
-    });
-  });
-  return fontLookup;
-}
-
-/** Get ready to draw: ask for the figure font and start the figure workers, in the background (while a snapshot is read). */
+/** Get ready to draw: start the figure workers in the background (while a snapshot is read); each asks fontconfig for the figure font as it starts. */
 export function prepareFigures(): void {
-  void findFigureFont();
   rasterPool();
 }
 
-/** Options of resvg: the zoom, the figure font and a white background. */
-function rasterOptions(scale: number, files: string[] | null): ResvgRenderOptions {
-  const font = files ? { loadSystemFonts: false, fontFiles: files } : { loadSystemFonts: true };
-  return { fitTo: { mode: "zoom", value: scale }, font: { ...font, defaultFontFamily: FONT, sansSerifFamily: FONT }, background: "white" };
+/**
+ * Draw a figure (an SVG, or a Vega or Vega-Lite spec) with the figure font, and a plane picture's raster under it, on
+ * the figure workers (or on this thread where they cannot start). The job is handed to a worker at once, during
+ * this call: a figure requested before a long computation is drawn beside it.
+ */
+export function rasterise(source: string | FigureSource, scale = PNG_SCALE, raster?: RasterLayer): Promise<Figure> {
+  const from = typeof source === "string" ? { svg: source } : source;
+  const job: FigureJob = { ...from, scale, ...(raster ? { raster } : {}) };
+  const pool = rasterPool();
+  // drawn here where no worker can, or where the worker failed: resvg's own error (if the SVG is at fault) then reaches the caller
+  return pool ? pool.render(job).catch(() => drawHere(job)) : drawHere(job);
 }
 
-/** Draw a figure (an SVG, or a Vega or Vega-Lite spec) with the figure font, and a plane picture's raster under it, on the figure workers (or on this thread where they cannot start). */
-export async function rasterise(source: string | FigureSource, scale = PNG_SCALE, raster?: RasterLayer): Promise<Figure> {
-  const from = typeof source === "string" ? { svg: source } : source;
-  const job: FigureJob = { ...from, options: rasterOptions(scale, await findFigureFont()), ...(raster ? { raster } : {}) };
-  const pool = rasterPool();
-  if (pool) {
-    try {
-      return await pool.render(job);
-    } catch {
-      // drawn below, where resvg's own error (if the SVG is at fault) reaches the caller
-    }
-  }
-  // loaded here only (resvg after its allocator's options are set; Vega with the drawing), where no worker could draw
+/** Draw a figure on this thread (resvg loaded here only, after its allocator's options are set; Vega with the drawing). */
+async function drawHere(job: FigureJob): Promise<Figure> {
   resvgAllocatorOptions();
   const { Resvg } = createRequire(import.meta.url)("@resvg/resvg-js") as { Resvg: ResvgClass };
   const { drawFigure } = await import("./figure-draw.js");
-  const drawn = await drawFigure(Resvg, job);
+  const drawn = await drawFigure(Resvg, job, figureFontFiles());
   return { ...drawn, png: Buffer.from(drawn.png.buffer, drawn.png.byteOffset, drawn.png.length) };
 }
 

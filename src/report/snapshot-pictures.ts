@@ -8,9 +8,8 @@
  */
 import type { Snapshot } from "../io/snapshot.js";
 import type { LoadedField } from "../simulation/from-snapshot.js";
-import { densestPoints } from "../diagnostics/analysis.js";
 import { formatNumber } from "../core/format.js";
-import { AXIS_NAMES, cellIndices, densityPlane, type DensityPlane } from "./planes.js";
+import { AXIS_NAMES, cellIndices, columnDensity, densityPlane, type DensityPlane } from "./planes.js";
 import { colourRange, fieldFigure } from "./field-image.js";
 import { densityLinePlot } from "./plots.js";
 import type { PictureOptions } from "./picture-options.js";
@@ -48,13 +47,6 @@ export interface SnapshotPictures {
   readonly projectionPlane?: DensityPlane;
 }
 
-/** The cell a 3D slice passes through: the option's, else the densest cell's. */
-function sliceCell(field: LoadedField, options: PictureOptions): number {
-  if (options.sliceIndex !== undefined) return options.sliceIndex;
-  const peak = densestPoints(field.grid, field.psi, 1, 1)[0]!;
-  return cellIndices(field.grid, peak.index)[options.normal]!;
-}
-
 /** Draw a snapshot's density pictures. `densityUnit` converts |ψ|² in code units to Msun/kpc³, `kpcPerCode` code lengths to kpc. */
 export async function snapshotPictures(snap: Snapshot, field: LoadedField, kpcPerCode: number, densityUnit: number, options: PictureOptions): Promise<SnapshotPictures> {
   const { grid, psi } = field;
@@ -68,7 +60,9 @@ export async function snapshotPictures(snap: Snapshot, field: LoadedField, kpcPe
   const unit = axisUnit(Math.max(...grid.lengths) * kpcPerCode);
   const lengthUnit = kpcPerCode * unit.perKpc;
   const normal = grid.dims === 3 ? options.normal : null;
-  const index = normal === null ? null : sliceCell(field, options);
+  // 3D: the column density first, in one pass over ψ that finds the densest cell too (the slice's, unless told)
+  const projected = normal === null ? undefined : columnDensity(grid, psi, densityUnit, normal, lengthUnit);
+  const index = normal === null ? null : (options.sliceIndex ?? cellIndices(grid, projected!.densest)[normal]!);
   const slicePlane = densityPlane(grid, rho, "slice", { normal, index }, lengthUnit);
   const title = (p: DensityPlane, what: string) =>
     p.normal === null ? what : `${what}, ${p.index !== null ? `${AXIS_NAMES[p.normal]} = ${formatNumber(p.index * (grid.lengths[p.normal]! / grid.cells[p.normal]!) * lengthUnit)} ${unit.name}` : `along ${AXIS_NAMES[p.normal]}`}`;
@@ -82,9 +76,9 @@ export async function snapshotPictures(snap: Snapshot, field: LoadedField, kpcPe
     );
   };
   const slice = draw(slicePlane, grid.dims === 3 ? "density slice" : "density", "log₁₀ ρ [Msun/kpc³]", options.densityRange);
-  if (grid.dims !== 3) return { slice: await slice, slicePlane };
+  if (!projected) return { slice: await slice, slicePlane };
   // column density in Msun/kpc² whatever the axis unit
-  const projPlane = densityPlane(grid, rho, "projection", { normal, index: null }, lengthUnit);
+  const projPlane = projected.plane;
   const kpcPerAxis = 1 / unit.perKpc;
   const column = { ...projPlane, values: projPlane.values.map((v) => v * kpcPerAxis) };
   // drawn together: the two rasterise at once

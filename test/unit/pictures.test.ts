@@ -30,6 +30,27 @@ describe("density planes", () => {
   });
 });
 
+describe("the column density in one pass", () => {
+  it("is the projection densityPlane sums, bit for bit, along each axis, and finds the densest cell (the first of equals)", async () => {
+    const { columnDensity } = await import("../../src/report/planes.js");
+    const { densestPoints } = await import("../../src/diagnostics/peaks.js");
+    const g = new Grid([8, 16, 4], [3, 2.5, 1]);
+    const psi = Float64Array.from({ length: 2 * g.size }, (_, i) => Math.sin(1.7 * i + 0.3) * (1 + (i % 7)));
+    // two cells of the largest density: the first in storage order is the one
+    psi.set([40, -3], 2 * 17);
+    psi.set([40, -3], 2 * 95);
+    const unit = 1.37;
+    for (const normal of [0, 1, 2]) {
+      const { plane, densest } = columnDensity(g, psi, unit, normal, 0.7);
+      const reference = densityPlane(g, (c) => (psi[2 * c]! ** 2 + psi[2 * c + 1]! ** 2) * unit, "projection", { normal, index: null }, 0.7);
+      expect(plane).toEqual(reference);
+      expect(Buffer.compare(Buffer.from(plane.values.buffer), Buffer.from(reference.values.buffer))).toBe(0);
+      expect(densest).toBe(17);
+      expect(densestPoints(g, psi, 1, 1)[0]!.index).toBe(17);
+    }
+  });
+});
+
 describe("colour ranges and ticks", () => {
   it("clip to the stated decades below the maximum, or keep a narrower range, or take a fixed one", () => {
     expect(colourRange(Float64Array.of(-17, 3, 8), 5)).toEqual([3, 8]);
@@ -194,6 +215,15 @@ describe("the figure font's faces", () => {
 });
 
 describe("PNG files", () => {
+  it("carry CRC-32s as the specification's sample code computes them: 0xCBF43926 for \"123456789\" (the check value of CRC-32/ISO-HDLC), zlib's where Node.js has it", async () => {
+    const { tableCrc32 } = await import("../../src/report/png.js");
+    const zlib = await import("node:zlib");
+    expect(tableCrc32(Buffer.from("123456789"))).toBe(0xcbf43926);
+    const bytes = Uint8Array.from({ length: 5000 }, (_, i) => (i * 7919) & 255);
+    const native = (zlib as { crc32?: (d: Uint8Array) => number }).crc32;
+    if (native) expect(tableCrc32(bytes)).toBe(native(bytes));
+  });
+
   it("of embedded rasters decode to the same pixels in pngjs (an independent PNG reader), RGB and RGBA", async () => {
     const { encodePng } = await import("../../src/report/png.js");
     const { PNG } = await import("pngjs");
@@ -236,11 +266,14 @@ describe("PNG files", () => {
     const { Resvg } = await import("@resvg/resvg-js");
     const { FONT, PNG_SCALE, figureFontFiles, renderVegaLite } = await import("../../src/report/render.js");
     const { drawFigure } = await import("../../src/report/figure-draw.js");
+    const { PNG } = await import("pngjs");
     const spec = { data: { values: [1, 2, 3, 4].map((k) => ({ k, P: 10 ** -k })) }, mark: "line", encoding: { x: { field: "k", type: "quantitative" }, y: { field: "P", type: "quantitative", scale: { type: "log" } } } } as const;
-    const options = { fitTo: { mode: "zoom", value: PNG_SCALE }, font: { loadSystemFonts: false, fontFiles: figureFontFiles()!, defaultFontFamily: FONT, sansSerifFamily: FONT }, background: "white" } as const;
-    const [there, here] = await Promise.all([renderVegaLite(spec), drawFigure(Resvg, { vegaLite: spec, options })]);
+    const [there, here] = await Promise.all([renderVegaLite(spec), drawFigure(Resvg, { vegaLite: spec, scale: PNG_SCALE }, figureFontFiles())]);
     expect(there.svg).toBe(here.svg);
     expect(Buffer.compare(there.png, Buffer.from(here.png))).toBe(0);
+    // and the pixels are resvg's own drawing of that SVG (decoded by pngjs)
+    const options = { fitTo: { mode: "zoom", value: PNG_SCALE }, font: { loadSystemFonts: false, fontFiles: figureFontFiles()!, defaultFontFamily: FONT, sansSerifFamily: FONT }, background: "white" } as const;
+    expect(Buffer.compare(Buffer.from(PNG.sync.read(there.png).data), Buffer.from(new Resvg(there.svg, options).render().pixels))).toBe(0);
     // the ticks went through psibox's formatter on the worker too: 10⁻⁴ as a power of ten (Vega's own says 0.0001)
     expect(there.svg).toContain(">10⁻⁴</text>");
   });

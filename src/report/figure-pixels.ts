@@ -1,0 +1,110 @@
+/**
+ * A figure's pixels into a PNG's scanlines: resvg's premultiplied RGBA
+ * pixels laid, in place, over white, and inside a plane picture's rectangle
+ * over its cells (source-over: colour + (1 − alpha)·what is under it),
+ * every pixel ending opaque; then the rows copied behind their filter bytes
+ * (0, none: at a fast zlib level, filtering a figure's large flat areas
+ * gains little) into a buffer reused from figure to figure (fresh memory
+ * costs a page fault per page; memory touched already does not). Pixels
+ * are read and written whole, as 32-bit words (R in the lowest byte: the
+ * platform's byte order, checked once), where most of them are copied or
+ * left as they are.
+ */
+
+/** A plane picture's cells in the pixels: the rectangle, and for each of its pixel columns and rows the index of its cell. */
+export interface Underlay {
+  readonly x0: number;
+  readonly y0: number;
+  readonly columns: Int32Array;
+  readonly rows: Int32Array;
+  /** The cells' RGB, top row first. */
+  readonly colours: Uint8Array;
+}
+
+/** Pixel (i + ½) of n samples the enlarged raster at (i + ½)·N/n, N = cells·zoom (nearest neighbour), whose block is its cell. */
+function cellOf(n: number, cells: number, zoom: number): Int32Array {
+  const src = cells * zoom;
+  return Int32Array.from({ length: n }, (_, i) => Math.min(cells - 1, Math.floor(Math.floor(((i + 0.5) * src) / n) / zoom)));
+}
+
+/** Where a raster of nx × ny cells (`zoom` pixels a cell in its embedded PNG) drawn `width` × `height` SVG units at `origin` falls in pixels at `scale` pixels a unit. */
+export function underlay(r: { readonly width: number; readonly height: number; readonly nx: number; readonly ny: number; readonly colours: Uint8Array; readonly zoom: number }, [x, y]: readonly [number, number], scale: number): Underlay {
+  const [x0, y0] = [Math.round(x * scale), Math.round(y * scale)];
+  const w = Math.round((x + r.width) * scale) - x0;
+  const h = Math.round((y + r.height) * scale) - y0;
+  const columns = cellOf(w, r.nx, r.zoom);
+  const rows = cellOf(h, r.ny, r.zoom).map((c) => r.nx * c);
+  return { x0, y0, columns, rows, colours: r.colours };
+}
+
+const LITTLE_ENDIAN = new Uint8Array(Uint32Array.of(1).buffer)[0] === 1;
+const OPAQUE = 0xff000000;
+
+/** A colour as a pixel word: R, G, B, A = 255 from the lowest byte up. */
+const word = (r: number, g: number, b: number) => (OPAQUE | (b << 16) | (g << 8) | r) >>> 0;
+
+/** A premultiplied pixel word over an opaque colour (r, g, b), as the bytes: c + round(colour·(255 − a)/255). */
+function over(v: number, r: number, g: number, b: number): number {
+  const k = 255 - (v >>> 24);
+  return word((v & 255) + Math.round((r * k) / 255), ((v >>> 8) & 255) + Math.round((g * k) / 255), ((v >>> 16) & 255) + Math.round((b * k) / 255));
+}
+
+/** Pixels from … to − 1 of a row of words over white (c + 255 − a, which is c + round(255·(255 − a)/255) exactly). */
+function rowOverWhite(p: Uint32Array, from: number, to: number): void {
+  for (let i = from; i < to; i++) {
+    const v = p[i]!;
+    if (v >>> 24 !== 255) p[i] = over(v, 255, 255, 255);
+  }
+}
+
+/** The underlay's pixel columns of one row (starting at word `i`, the rectangle's left edge), over the cells of the row starting at cell `cellRow`; `cells` holds each cell's pixel word. */
+function rowOverCells(p: Uint32Array, i: number, columns: Int32Array, from: number, to: number, cells: Uint32Array, cellRow: number): void {
+  for (let x = from; x < to; x++) {
+    const v = p[i + x]!;
+    const a = v >>> 24;
+    if (a === 255) continue;
+    const c = cells[cellRow + columns[x]!]!;
+    p[i + x] = a === 0 ? c : over(v, c & 255, (c >>> 8) & 255, (c >>> 16) & 255);
+  }
+}
+
+/** Each cell's colour as an opaque pixel word. */
+function cellWords(colours: Uint8Array): Uint32Array {
+  const out = new Uint32Array(colours.length / 3);
+  for (let c = 0; c < out.length; c++) out[c] = word(colours[3 * c]!, colours[3 * c + 1]!, colours[3 * c + 2]!);
+  return out;
+}
+
+/** Lay `width` × `height` premultiplied RGBA pixels, in place, over white and inside the underlay's rectangle over its cells; every pixel ends opaque. */
+export function layOver(px: Uint8Array, width: number, height: number, under?: Underlay): void {
+  if (!LITTLE_ENDIAN || px.byteOffset % 4 !== 0) throw new Error("figure pixels must be 32-bit aligned words on a little-endian machine");
+  const p = new Uint32Array(px.buffer, px.byteOffset, width * height);
+  const cells = under ? cellWords(under.colours) : new Uint32Array(0);
+  for (let y = 0; y < height; y++) {
+    const r = under ? y - under.y0 : -1;
+    if (!under || r < 0 || r >= under.rows.length) {
+      rowOverWhite(p, width * y, width * (y + 1));
+      continue;
+    }
+    const x0 = Math.max(0, Math.min(width, under.x0));
+    const x1 = Math.max(x0, Math.min(width, under.x0 + under.columns.length));
+    rowOverWhite(p, width * y, width * y + x0);
+    rowOverCells(p, width * y + under.x0, under.columns, x0 - under.x0, x1 - under.x0, cells, under.rows[r]!);
+    rowOverWhite(p, width * y + x1, width * (y + 1));
+  }
+}
+
+let scratch = new Uint8Array(0);
+
+/** The PNG's scanlines of RGBA pixels (filter 0), valid until the next call. */
+export function scanlines(px: Uint8Array, width: number, height: number): Uint8Array {
+  const line = 4 * width;
+  const size = (line + 1) * height;
+  if (scratch.length < size) scratch = new Uint8Array(size);
+  const out = scratch.subarray(0, size);
+  for (let y = 0; y < height; y++) {
+    out[(line + 1) * y] = 0;
+    out.set(px.subarray(line * y, line * (y + 1)), (line + 1) * y + 1);
+  }
+  return out;
+}
