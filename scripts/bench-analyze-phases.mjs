@@ -51,7 +51,7 @@ async function child(file, out, n) {
   phase("halos", () => haloTables(file, snap, field, out, { definition: "200m" }, undefined, fft.work(0)));
   const chosen = new Set(["energy-split", "vortices", "granules", "husimi"]);
   const vortices = await vortexJob;
-  phase("field diagnostics", () => fieldDiagnostics(field, chosen, out, fft, husimiWindow(n) * BOX_KPC, HUSIMI_POINTS_KPC, both.split, { contrastSpectrum: fft.work(1), moments: both.moments }, vortices));
+  phase("field diagnostics", () => fieldDiagnostics(field, chosen, out, fft, husimiWindow(n) * BOX_KPC, HUSIMI_POINTS_KPC, both.split, { contrastSpectrum: fft.work(1), moments: both.moments, meanDensity: both.meanDensity }, vortices));
   const cpu = process.cpuUsage(c0);
   at.close();
   t["all threads"] = (cpu.user + cpu.system) / 1000;

@@ -42,12 +42,12 @@ export function meanDensity(psi: Float64Array): number {
  * longest side) out to the grid's corner: P = V ⟨|δ_k|²⟩/N², with the mode
  * count of each shell. By Parseval, Σ_bins P·modes/V is the variance of δ.
  * Uses work grid `slot` of `fft` (0 unless told), which keeps δ_k afterwards
- * (for the potential energy and the granules' correlation function).
+ * (for the potential energy and the granules' correlation function); `mean`
+ * is ρ̄ when known already (as meanDensity gives it).
  */
-export function densityPowerSpectrum(grid: Grid, psi: Float64Array, fft: FieldTransforms = new SimpleTransforms(grid.shape), slot = 0): PowerBin[] {
+export function densityPowerSpectrum(grid: Grid, psi: Float64Array, fft: FieldTransforms = new SimpleTransforms(grid.shape), slot = 0, mean = meanDensity(psi)): PowerBin[] {
   const n = grid.size;
   const data = fft.work(slot);
-  const mean = meanDensity(psi);
   for (let p = 0; p < psi.length; p += 2) {
     data[p] = (psi[p]! ** 2 + psi[p + 1]! ** 2) / mean - 1;
     data[p + 1] = 0;

@@ -130,11 +130,12 @@ function shellSums(grid: Grid, psi: Float64Array, spec: Float64Array, data: Shel
 /**
  * The energy split and, from the same transforms, the bulk-flow / quantum
  * split of `kineticSplit` (analysis.ts; the same numbers) and the moments of
- * ψ's spectrum (spectrum-moments.ts). Work grids 0 and 1 of `fft`. The passes
+ * ψ's spectrum (spectrum-moments.ts), and ρ̄ (analysis.ts meanDensity, the
+ * same number). Work grids 0 and 1 of `fft`. The passes
  * over the grid run on the transforms' threads where they have them
  * (block-tasks.ts), with the same result bit for bit on any number of threads.
  */
-export function energyAndKineticSplit(grid: Grid, psi: Float64Array, a: number, fft: FieldTransforms): { split: EnergySplit; kinetic: KineticSplit; moments: SpectrumMoments } {
+export function energyAndKineticSplit(grid: Grid, psi: Float64Array, a: number, fft: FieldTransforms): { split: EnergySplit; kinetic: KineticSplit; moments: SpectrumMoments; meanDensity: number } {
   const n = grid.size;
   const run = runnerOf(fft, psi);
   const spec = fft.work(0);
@@ -155,5 +156,7 @@ export function energyAndKineticSplit(grid: Grid, psi: Float64Array, a: number, 
     split: { kinetic: quantum + incompressible + compressible + unresolved, quantum, incompressible, compressible, unresolved, uniformFlow, zeroMode, spectra },
     kinetic: kineticFromSums(grid, a, { gradient: moments.k2, bulk2, jSum, mass }),
     moments,
+    // Σ|ψ|² over the cells in storage order, divided as meanDensity divides it: the same number
+    meanDensity: mass / n,
   };
 }

@@ -48,10 +48,11 @@ function gammaPdf(x: number, k: number): number {
   return Math.exp(k * Math.log(k) + (k - 1) * Math.log(x) - k * x - lnGamma(k));
 }
 
-/** What a caller may have measured already: the spectrum of δ = ρ/ρ̄ − 1 (densityPowerSpectrum leaves it in its work grid; it is overwritten) and the moments of ψ's spectrum. */
+/** What a caller may have measured already: the spectrum of δ = ρ/ρ̄ − 1 (densityPowerSpectrum leaves it in its work grid; it is overwritten), the moments of ψ's spectrum and ρ̄ (as meanDensity gives it). */
 export interface GranuleInputs {
   readonly contrastSpectrum?: Float64Array;
   readonly moments?: SpectrumMoments;
+  readonly meanDensity?: number;
 }
 
 /** The density PDF's counts in `width` bins of x = ρ/ρ̄ and var(δ); δ into the real parts of `data` when given. */
@@ -77,7 +78,7 @@ export function granuleStats(grid: Grid, psi: Float64Array, a: number, fft: Fiel
   const data = known.contrastSpectrum ?? fft.work(0);
   // ψ's spectrum (when its moments are not given) on the other work grid, before `data` holds ξ
   const moments = known.moments ?? spectrumMomentsOf(grid, psi, fft, data === fft.work(1) ? 0 : 1);
-  const mean = meanDensity(psi);
+  const mean = known.meanDensity ?? meanDensity(psi);
   const width = pdfMax / pdfBins;
   const counts = new Float64Array(pdfBins);
   const variance = contrastPass(psi, mean, width, counts, known.contrastSpectrum ? undefined : data);

@@ -94,7 +94,7 @@ async function measure(file: string, snap: Snapshot, field: LoadedField, outDir:
   await tick();
   // the tables left δ's spectrum in work grid 1 (the halos and peaks use work grid 0)
   const vortices = vortexJob ? await vortexJob : undefined;
-  const diagnostics = fieldDiagnostics(field, chosen, outDir, fft, request.husimiWindowKpc, request.husimiPointsKpc, both?.split, { contrastSpectrum: fft.work(1), ...(both ? { moments: both.moments } : {}) }, vortices);
+  const diagnostics = fieldDiagnostics(field, chosen, outDir, fft, request.husimiWindowKpc, request.husimiPointsKpc, both?.split, { contrastSpectrum: fft.work(1), ...(both ? { moments: both.moments, meanDensity: both.meanDensity } : {}) }, vortices);
   return { summary, diagnostics, ...(powerFigure ? { powerFigure } : {}), ...(split ? { splitFigures: split } : {}) };
 }
 

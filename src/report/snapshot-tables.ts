@@ -41,10 +41,11 @@ function powerTable(power: readonly { k: number; power: number; modes: number }[
   );
 }
 
-/** What the energy split measured already: the kinetic split and the moments of ψ's spectrum. */
+/** What the energy split measured already: the kinetic split, the moments of ψ's spectrum and ρ̄. */
 export interface MeasuredKinetics {
   readonly kinetic: KineticSplit;
   readonly moments: SpectrumMoments;
+  readonly meanDensity: number;
 }
 
 /**
@@ -68,13 +69,14 @@ export function snapshotTables(
   const kms = units.lengthM / units.timeS / 1e3;
   fs.mkdirSync(outDir, { recursive: true });
 
-  const power = densityPowerSpectrum(grid, psi, fft, 1);
+  const mean = measured?.meanDensity ?? meanDensity(psi);
+  const power = densityPowerSpectrum(grid, psi, fft, 1, mean);
   writeFileAtomic(path.join(outDir, "power.csv"), powerTable(power, kpcPerCode, grid.dims, snap.meta.background.kind === "lcdm" ? snap.meta.background.hubbleKmSMpc / 100 : undefined));
   const pdf = densityPdf(psi, 40, runnerOf(fft, psi));
   writeFileAtomic(path.join(outDir, "pdf.csv"), csv(["log10_density_contrast", "volume_fraction", "mass_fraction"], pdf.map((p) => [p.log10Contrast, p.volumeFraction, p.massFraction])));
 
   // K from ψ's spectrum and the periodic W from δ's, both at hand: no transform of their own
-  const known = measured ? { kinetic: kineticFromGradient(grid, measured.moments.k2, a), periodicPotential: periodicPotentialFromContrast(grid, fft.work(1), meanDensity(psi), a) } : undefined;
+  const known = measured ? { kinetic: kineticFromGradient(grid, measured.moments.k2, a), periodicPotential: periodicPotentialFromContrast(grid, fft.work(1), mean, a) } : undefined;
   const stats = fieldStats(field, fft, known);
   const split = measured?.kinetic ?? kineticSplit(grid, psi, a, fft);
   const peaks = densestPoints(grid, psi, 5, Math.max(4, grid.cells[0]! / 16), fft.work(0));

@@ -97,6 +97,10 @@ describe.each(cases)("$cells.length-D grid $cells", ({ cells, a }) => {
     // with the inputs analyze has measured already (δ's spectrum from P(k) in work grid 1, the moments from the split): the same numbers bit for bit
     densityPowerSpectrum(grid, psi, fast, 1);
     expect(granuleStats(grid, psi, a, fast, undefined, undefined, { contrastSpectrum: fast.work(1), moments: both.moments })).toEqual(g);
+    // ρ̄ from the split's Σ|ψ|²: meanDensity's number, and the granules and P(k) given it the same
+    expect(both.meanDensity).toBe(meanDensity(psi));
+    densityPowerSpectrum(grid, psi, fast, 1, both.meanDensity);
+    expect(granuleStats(grid, psi, a, fast, undefined, undefined, { contrastSpectrum: fast.work(1), moments: both.moments, meanDensity: both.meanDensity })).toEqual(g);
     densityPowerSpectrum(grid, psi, fast, 1);
     expect(granuleStats(grid, psi, a, fast, undefined, undefined, { contrastSpectrum: fast.work(1) })).toEqual(g);
     expect(worst(g.correlation, granules.correlation, granules.correlation[0]!.xi)).toBeLessThan(1e-12);
