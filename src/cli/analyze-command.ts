@@ -5,6 +5,7 @@ import { InputError } from "../core/errors.js";
 import { loadHdf5 } from "../io/h5.js";
 import { analyzeRun, analyzeSnapshot, checkRunSnapshots, runSnapshots } from "../report/analyze.js";
 import { writeReport } from "../report/html.js";
+import { prepareFigures } from "../report/render.js";
 import { pictureOptions, type PictureFlags } from "../report/picture-options.js";
 import { formatDuration } from "../core/format.js";
 import { TextReporter } from "./progress.js";
@@ -77,6 +78,8 @@ export async function analyzeCommand(paths: readonly string[], flags: AnalyzeFla
     if (flags.movie && !dir) throw new InputError(`--movie: needs a run folder with at least two snapshots; ${p} is a file`);
     if (flags.movie && runFolder(p).length < 2) throw new InputError(`--movie: needs at least two snapshots; ${p} has ${runFolder(p).length}`);
   }
+  // the figure worker starts (loads its modules, asks fontconfig) while HDF5 is loaded here
+  if (flags.pictures) prepareFigures();
   await loadHdf5();
   // halos are followed through a run's snapshots: refuse a folder that mixes runs before anything is written
   for (const p of paths) if (fs.statSync(p).isDirectory() && fs.existsSync(path.join(p, "snapshots"))) checkRunSnapshots(p);
@@ -112,6 +115,7 @@ export async function reportCommand(runDir: string, flags: PictureFlags & { out?
     process.stdout.write(`wrote ${await writeEnsembleReport(runDir, flags.out)}\n`);
     return 0;
   }
+  prepareFigures();
   await loadHdf5();
   if (fs.existsSync(path.join(runDir, "snapshots"))) checkRunSnapshots(runDir);
   recordIfInside(runDir, path.join(runDir, "analysis"), true);

@@ -56,9 +56,6 @@ function units(field: LoadedField): { kpcPerCode: number; densityUnit: number } 
   return { kpcPerCode: u.lengthM / KPC, densityUnit: u.massKg / u.lengthM ** 3 / (M_SUN_KG / KPC ** 3) };
 }
 
-/** A turn of the event loop: figures started earlier take their next step (an SVG built, a raster handed to a worker). */
-const tick = (): Promise<void> => new Promise((resolve) => setImmediate(resolve));
-
 /** A promise awaited later: marked handled now, so that a failure elsewhere first does not leave it unhandled. */
 function later<T>(p: Promise<T>): Promise<T> {
   p.catch(() => undefined);
@@ -74,7 +71,7 @@ interface Measured {
   readonly splitFigures?: Record<string, Promise<Figure>>;
 }
 
-/** The tables and the field diagnostics of a snapshot, yielding between them to the figures being drawn; the energy split's and P(k)'s figures are started as soon as they are known. */
+/** The tables and the field diagnostics of a snapshot; the energy split's and P(k)'s figures are handed to the figure worker as soon as they are known, and drawn while the rest is computed. */
 async function measure(file: string, snap: Snapshot, field: LoadedField, outDir: string, request: DiagnosticRequest, chosen: Set<FieldDiagnostic>, withPictures: boolean, transforms: AnalysisTransforms, tracks: RunTracks | undefined): Promise<Measured> {
   const fft = transforms.of(field.grid);
   // the vortex scan reads ψ on a thread of its own while this one computes the rest (on a grid the cores pay for)
@@ -84,14 +81,11 @@ async function measure(file: string, snap: Snapshot, field: LoadedField, outDir:
   const both = chosen.has("energy-split") ? energyAndKineticSplit(field.grid, field.psi, field.scaleFactor, fft) : undefined;
   const split = withPictures && both ? splitFigures(field, both.split, physicalScales(field), timeCaption(snap)) : undefined;
   if (split) Object.values(split).forEach(later);
-  await tick();
   const { summary, power } = snapshotTables(file, snap, field, outDir, fft, both);
   const powerFigure = withPictures ? later(powerFigureOf(file, snap, field, power)) : undefined;
-  await tick();
   summary["halos"] = haloTables(file, snap, field, outDir, request.halos ?? { definition: "200m" }, tracks, fft.work(0));
   const species = speciesSummary(snap, field, outDir);
   if (species) summary["species"] = species;
-  await tick();
   // the tables left δ's spectrum in work grid 1 (the halos and peaks use work grid 0)
   const vortices = vortexJob ? await vortexJob : undefined;
   const diagnostics = fieldDiagnostics(field, chosen, outDir, fft, request.husimiWindowKpc, request.husimiPointsKpc, both?.split, { contrastSpectrum: fft.work(1), ...(both ? { moments: both.moments, meanDensity: both.meanDensity } : {}) }, vortices);
