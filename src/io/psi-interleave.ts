@@ -3,7 +3,7 @@
  * slabs of its real and imaginary parts as stored (float64, or float32
  * widened exactly), in one pass.
  */
-import type { Take } from "./slabs.js";
+import type { Take } from "./row-read.js";
 
 /**
  * ψ[2(base + i)] = re[i], ψ[2(base + i) + 1] = im[i], four values a turn; float32 values are widened exactly (V8 keeps

@@ -10,7 +10,7 @@
  */
 import fs from "node:fs";
 import { fileURLToPath } from "node:url";
-import { READ_BYTES, type ReadBuffers, type Take } from "./slabs.js";
+import { READ_BYTES, type ReadBuffers, type Take } from "./row-read.js";
 
 /** A memory holding ψ: where reading thread `slot`'s buffer for part `i` starts is `HEAD + (2 slot + i) partBytes`. */
 export interface PsiMemory {
@@ -73,6 +73,23 @@ export function psiMemoryOf(psi: Float64Array): PsiMemory | undefined {
   return memories.get(psi.buffer);
 }
 
+/** The kernel's instances on the memories of this thread (a reading thread gets a new memory object with each job). */
+const instances = new WeakMap<WebAssembly.Memory, Kernels>();
+
+/** The kernel on `memory` (made once per memory object), or undefined where it cannot be made. */
+function kernelsOn(module: WebAssembly.Module, memory: WebAssembly.Memory): Kernels | undefined {
+  let k = instances.get(memory);
+  if (!k) {
+    try {
+      k = new WebAssembly.Instance(module, { env: { memory } }).exports as unknown as Kernels;
+    } catch {
+      return undefined;
+    }
+    instances.set(memory, k);
+  }
+  return k;
+}
+
 /**
  * What reading thread `slot` reads ψ's rows with (rows of `rowValues` cells, `step` at a time, values of `size`
  * bytes) when ψ lies in `at`: the buffers in that memory and the kernel taking them into ψ; undefined where the
@@ -81,12 +98,8 @@ export function psiMemoryOf(psi: Float64Array): PsiMemory | undefined {
 export function wasmReading(at: PsiMemory, psi: Float64Array, rowValues: number, step: number, size: number, slot: number): { buffers: ReadBuffers; take: Take } | undefined {
   const module = kernelModule();
   if (!module || step * rowValues * size > at.partBytes) return undefined;
-  let k: Kernels;
-  try {
-    k = new WebAssembly.Instance(module, { env: { memory: at.memory } }).exports as unknown as Kernels;
-  } catch {
-    return undefined;
-  }
+  const k = kernelsOn(module, at.memory);
+  if (!k) return undefined;
   const buffer = at.memory.buffer;
   const buffers = [0, 1].map((i) => ({ buffer, byteOffset: HEAD + (2 * slot + i) * at.partBytes }));
   const into = size === 8 ? k.interleave64 : k.interleave32;

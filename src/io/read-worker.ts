@@ -6,7 +6,7 @@
 import fs from "node:fs";
 import { parentPort } from "node:worker_threads";
 import { DONE, FAILED, psiReading, settle, sharedClaims, type ReadJob } from "./shared-read.js";
-import { readPieces } from "./slabs.js";
+import { readPieces } from "./row-read.js";
 
 function help(job: ReadJob): void {
   const words = new Int32Array(job.control);

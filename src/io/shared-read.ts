@@ -17,7 +17,7 @@ import { Worker } from "node:worker_threads";
 import type { Piece } from "./h5-layout.js";
 import { intoPsi } from "./psi-interleave.js";
 import { newWasmPsi, psiMemoryOf, wasmReading, type PsiMemory } from "./psi-wasm.js";
-import { inOrder, readPieces, readRowsAtOnce, type ReadBuffers, type SlabClaims, type Take } from "./slabs.js";
+import { inOrder, readPieces, readRowsAtOnce, type ReadBuffers, type SlabClaims, type Take } from "./row-read.js";
 
 /** Fields of at least this many bytes of ψ are read on two threads unless set otherwise (smaller ones are faster alone). */
 export const SHARED_READ_BYTES = 8 << 20;
@@ -92,6 +92,11 @@ export function startReadHelper(): void {
   w.on("error", gone);
   w.on("exit", gone);
   helper = w;
+}
+
+/** Start the helper thread ahead of a read of ψ on a grid of `cells` when that read will be shared (it is then up sooner). */
+export function prepareRead(cells: readonly number[]): void {
+  if (16 * cells.reduce((p, n) => p * n, 1) >= sharedBytes) startReadHelper();
 }
 
 /** Stop the helper thread (tests; a later large read starts another). */

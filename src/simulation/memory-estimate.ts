@@ -16,7 +16,7 @@ import { wasmStepBytes } from "../fields/wasm-banks.js";
 import { StepPlan } from "../integrators/step-plan.js";
 import { resolveFftBackend, type FftChoice } from "../integrators/fft-backend.js";
 import { ExtraFields, type FieldKind } from "../integrators/extra-fields.js";
-import { slabBytes } from "../io/slabs.js";
+import { slabBytes } from "../io/row-read.js";
 import { addressSpaceLimit } from "../core/system-limits.js";
 
 const MiB = 2 ** 20;

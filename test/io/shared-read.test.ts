@@ -12,7 +12,7 @@ import { loadHdf5 } from "../../src/io/h5.js";
 import { NativeRoot } from "../../src/io/h5-native.js";
 import { DONE, FAILED, PENDING, readIntoPsi, setSharedReadBytes, startReadHelper, stopReadHelper, type ReadJob } from "../../src/io/shared-read.js";
 import { newWasmPsi, psiMemoryOf, wasmReading, type PsiMemory } from "../../src/io/psi-wasm.js";
-import { setSlabBytes } from "../../src/io/slabs.js";
+import { setSlabBytes } from "../../src/io/row-read.js";
 import { readSnapshot, writeSnapshot, type SnapshotMeta } from "../../src/io/snapshot.js";
 import { readThroughHdf5 } from "../../src/io/snapshot-read.js";
 import { seededRandom } from "../helpers/fields.js";

@@ -7,7 +7,7 @@ import path from "node:path";
 import { afterAll, afterEach, beforeAll, describe, expect, it } from "vitest";
 import { loadHdf5, openHdf5, Dataset } from "../../src/io/h5.js";
 import { readCheckpoint, readSnapshot, writeSnapshot, type Snapshot } from "../../src/io/snapshot.js";
-import { setSlabBytes, slabRows } from "../../src/io/slabs.js";
+import { setSlabBytes, slabRows } from "../../src/io/row-read.js";
 import { seededRandom } from "../helpers/fields.js";
 
 let dir: string;
