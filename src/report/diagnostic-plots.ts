@@ -1,119 +1,101 @@
 /** Pictures of the field diagnostics: energy spectra, vortices, granules and the Husimi distribution. */
-import type { TopLevelSpec } from "vega-lite";
-import { figuresTogether, renderVegaLite, type Figure } from "./render.js";
+import { figuresTogether, renderChart, type Figure } from "./render.js";
+import { categoryColours } from "./chart/palette.js";
+import type { Series } from "./chart/chart.js";
 import { colourRange, fieldFigure } from "./field-image.js";
 import { powerPlot } from "./plots.js";
 import { rangedFigure } from "./phase-space-figure.js";
 import type { FieldDiagnosticsResult, PhysicalScales } from "./field-diagnostics.js";
 import type { LoadedField } from "../simulation/from-snapshot.js";
 
-const SCHEMA = "https://vega.github.io/schema/vega-lite/v5.json";
+/** Named series of one colour scale: each name's colour, and its legend entries in sorted order. */
+function named(names: Iterable<string>): { colour: (n: string) => string; entries: { label: string; colour: string }[] } {
+  const colours = categoryColours(names);
+  return { colour: (n) => colours.get(n)!, entries: [...colours].map(([label, colour]) => ({ label, colour })) };
+}
+
+/** Rows grouped by a key into series, in the order the keys first appear. */
+function groups<R>(rows: readonly R[], key: (r: R) => string): Map<string, R[]> {
+  const out = new Map<string, R[]>();
+  for (const r of rows) (out.get(key(r)) ?? out.set(key(r), []).get(key(r))!).push(r);
+  return out;
+}
 
 /** Shell spectra of the three kinetic parts, log–log. */
 function energySpectraPlot(split: NonNullable<FieldDiagnosticsResult["split"]>, s: PhysicalScales, caption: string): Promise<Figure> {
-  const rows = split.spectra.flatMap((b) =>
-    (
-      [
-        ["quantum", b.quantum],
-        ["incompressible", b.incompressible],
-        ["compressible", b.compressible],
-      ] as const
-    ).map(([part, e]) => ({ k: b.k / s.kpc, E: e * s.energy, part })),
-  );
+  const parts = ["quantum", "incompressible", "compressible"] as const;
+  const rows = split.spectra.flatMap((b) => parts.map((part) => ({ k: b.k / s.kpc, E: b[part] * s.energy, part })));
   const peak = Math.max(...rows.map((r) => r.E));
-  return renderVegaLite({
-    $schema: SCHEMA,
+  const shown = groups(rows.filter((r) => r.E > 1e-12 * peak), (r) => r.part);
+  // the parts with something to show, in the legend and in the colours
+  const { colour, entries } = named(shown.keys());
+  const series: Series[] = [...shown].map(([part, rs]) => ({ name: part, colour: colour(part), x: rs.map((r) => r.k), y: rs.map((r) => r.E), mark: "line-points", size: 12 }));
+  return renderChart({
     title: caption,
-    width: 420,
-    height: 260,
-    data: { values: rows.filter((r) => r.E > 1e-12 * peak) },
-    mark: { type: "line", point: { size: 12 } },
-    encoding: {
-      x: { field: "k", type: "quantitative", scale: { type: "log" }, title: "k [1/kpc]" },
-      y: { field: "E", type: "quantitative", scale: { type: "log" }, title: "energy per shell [Msun (km/s)²]" },
-      color: { field: "part", type: "nominal", title: null },
-    },
-  } as TopLevelSpec);
+    panels: [{ width: 420, height: 260, x: { title: "k [1/kpc]", log: true }, y: { title: "energy per shell [Msun (km/s)²]", log: true }, series }],
+    legend: { orient: "right", entries, symbol: "circle", outline: true },
+  });
 }
 
 /** 2D vortex positions coloured by charge, over the box. */
 function vortexScatter(points: { x: number; y: number; charge: string }[], box: readonly number[], caption: string): Promise<Figure> {
-  return renderVegaLite({
-    $schema: SCHEMA,
+  const charges = [
+    ["+1", "#c0392b"],
+    ["−1", "#2471a3"],
+  ] as const;
+  const series: Series[] = charges.map(([charge, colour]) => {
+    const pts = points.filter((p) => p.charge === charge);
+    return { name: charge, colour, x: pts.map((p) => p.x), y: pts.map((p) => p.y), mark: "points", size: 14 };
+  });
+  return renderChart({
     title: caption,
-    width: 360,
-    height: Math.round((360 * box[1]!) / box[0]!),
-    data: { values: points },
-    mark: { type: "point", filled: true, size: 14 },
-    encoding: {
-      x: { field: "x", type: "quantitative", scale: { domain: [0, box[0]!], nice: false }, title: "x [kpc]" },
-      y: { field: "y", type: "quantitative", scale: { domain: [0, box[1]!], nice: false }, title: "y [kpc]" },
-      color: { field: "charge", type: "nominal", scale: { domain: ["+1", "−1"], range: ["#c0392b", "#2471a3"] }, title: "charge" },
-    },
-  } as TopLevelSpec);
+    panels: [{ width: 360, height: Math.round((360 * box[1]!) / box[0]!), x: { title: "x [kpc]", domain: [0, box[0]!], nice: false }, y: { title: "y [kpc]", domain: [0, box[1]!], nice: false }, series }],
+    legend: { orient: "right", title: "charge", entries: charges.map(([label, colour]) => ({ label, colour })), symbol: "circle", opacity: 0.7 },
+  });
 }
 
 /** The density PDF against the exponential and Gamma laws, and ξ(r) against the random-phase law. */
 function granulePlot(g: NonNullable<FieldDiagnosticsResult["granules"]>, s: PhysicalScales, caption: string): Promise<Figure> {
-  const pdf = g.pdf.flatMap((b) => [
-    { x: b.x, p: b.pdf, law: "measured" },
-    { x: b.x, p: b.exponential, law: "exponential (random phase)" },
-    { x: b.x, p: b.gamma, law: `Gamma, shape ${g.gammaShape.toPrecision(3)}` },
-  ]);
-  const xi = g.correlation.flatMap((c) => [
-    { r: c.r * s.kpc, xi: c.xi, law: "measured" },
-    { r: c.r * s.kpc, xi: c.predicted, law: "random phase, ħ/(m a σ)" },
-  ]);
-  return renderVegaLite({
-    $schema: SCHEMA,
+  const [measured, exponential, gamma, phase] = ["measured", "exponential (random phase)", `Gamma, shape ${g.gammaShape.toPrecision(3)}`, "random phase, ħ/(m a σ)"];
+  const { colour, entries } = named([measured, exponential, gamma, phase]);
+  const pdf = g.pdf.filter((b) => b.pdf > 0);
+  const law = (name: string, rows: { x: number; p: number }[], mark: Series["mark"]): Series => {
+    const shown = rows.filter((r) => r.p > 0);
+    return { name, colour: colour(name), x: shown.map((r) => r.x), y: shown.map((r) => r.p), mark, size: 20 };
+  };
+  const reach = 6 * (Number.isFinite(g.correlationLength) ? g.correlationLength : g.predictedLength) * s.kpc;
+  const xi = g.correlation.filter((c) => c.r * s.kpc <= reach);
+  const xiSeries = (name: string, value: (c: (typeof xi)[number]) => number): Series => ({ name, colour: colour(name), x: xi.map((c) => c.r * s.kpc), y: xi.map(value), mark: "line" });
+  return renderChart({
     title: caption,
-    vconcat: [
+    panels: [
       {
         width: 420,
         height: 180,
-        data: { values: pdf.filter((r) => r.p > 0) },
-        encoding: {
-          x: { field: "x", type: "quantitative", title: "ρ/ρ̄" },
-          y: { field: "p", type: "quantitative", scale: { type: "log" }, title: "PDF" },
-          color: { field: "law", type: "nominal", title: null, legend: { labelLimit: 400 } },
-        },
-        layer: [
-          { transform: [{ filter: "datum.law === 'measured'" }], mark: { type: "point", filled: true, size: 20 } },
-          { transform: [{ filter: "datum.law !== 'measured'" }], mark: { type: "line" } },
-        ],
+        x: { title: "ρ/ρ̄" },
+        y: { title: "PDF", log: true },
+        series: [law(measured, pdf.map((b) => ({ x: b.x, p: b.pdf })), "points"), law(exponential, g.pdf.map((b) => ({ x: b.x, p: b.exponential })), "line"), law(gamma, g.pdf.map((b) => ({ x: b.x, p: b.gamma })), "line")],
       },
-      {
-        width: 420,
-        height: 180,
-        data: { values: xi.filter((r) => r.r <= 6 * (Number.isFinite(g.correlationLength) ? g.correlationLength : g.predictedLength) * s.kpc) },
-        mark: { type: "line" },
-        encoding: {
-          x: { field: "r", type: "quantitative", title: "r [kpc]" },
-          y: { field: "xi", type: "quantitative", title: "ξ(r) = ⟨δ(x)δ(x+r)⟩" },
-          color: { field: "law", type: "nominal", title: null, legend: { labelLimit: 400 } },
-        },
-      },
+      { width: 420, height: 180, x: { title: "r [kpc]" }, y: { title: "ξ(r) = ⟨δ(x)δ(x+r)⟩" }, series: [xiSeries(measured, (c) => c.xi), xiSeries(phase, (c) => c.predicted)] },
     ],
-  } as TopLevelSpec);
+    legend: { orient: "right", entries, symbol: "circle", outline: true, opacity: 0.7 },
+  });
 }
 
 /** Speed distributions of the Husimi function at the chosen points. */
 function speedPlot(points: NonNullable<FieldDiagnosticsResult["husimiPoints"]>, d: number, caption: string): Promise<Figure> {
   const peak = Math.max(...points.flatMap((p) => p.speed.map((b) => b.F)));
-  const rows = points.flatMap((p, i) => p.speed.filter((b) => b.F > 1e-4 * peak).map((b) => ({ v: b.v, F: b.F, point: `${i + 1}: (${p.point.map((x) => x.toPrecision(3)).join(", ")}) kpc` })));
-  return renderVegaLite({
-    $schema: SCHEMA,
+  const label = (p: (typeof points)[number], i: number) => `${i + 1}: (${p.point.map((x) => x.toPrecision(3)).join(", ")}) kpc`;
+  const { colour, entries } = named(points.map(label));
+  const series: Series[] = points.map((p, i) => {
+    const shown = p.speed.filter((b) => b.F > 1e-4 * peak);
+    return { name: label(p, i), colour: colour(label(p, i)), x: shown.map((b) => b.v), y: shown.map((b) => b.F), mark: "line" };
+  });
+  return renderChart({
     title: caption,
-    width: 420,
-    height: 240,
-    data: { values: rows },
-    mark: { type: "line" },
-    encoding: {
-      x: { field: "v", type: "quantitative", title: "speed |v| [km/s]" },
-      y: { field: "F", type: "quantitative", title: `F(|v|) [Msun/(kpc${d === 2 ? "²" : "³"} km/s)]` },
-      color: { field: "point", type: "nominal", title: null, legend: { labelLimit: 400 } },
-    },
-  } as TopLevelSpec);
+    panels: [{ width: 420, height: 240, x: { title: "speed |v| [km/s]" }, y: { title: `F(|v|) [Msun/(kpc${d === 2 ? "²" : "³"} km/s)]` }, series }],
+    legend: { orient: "right", entries, symbol: "line" },
+  });
 }
 
 /** The energy split's pictures (energy-spectra, velocity-power): started as soon as the split is measured, before the other diagnostics. */

@@ -1,14 +1,15 @@
 /**
  * Pictures of a plane of values (log₁₀ density, column density, or a
- * space–time diagram): the raster in a Vega frame with axes in physical
- * units, a colour bar with its own titled axis beside it, and a title.
+ * space–time diagram): the raster in a frame with axes in physical units,
+ * a colour bar with its own titled axis beside it, and a title (psibox's
+ * chart writer, chart/image-area.ts).
  * Values outside the colour range are clipped to its ends; NaN cells (no
  * data) are drawn light grey.
  */
-import type * as vega from "vega";
 import { blockPng, encodePng } from "./png.js";
 import { colourTable, type ColourMap } from "./colormaps.js";
-import { rasterise, STYLE, PNG_SCALE, type Figure } from "./render.js";
+import { rasterise, PNG_SCALE, type Figure } from "./render.js";
+import type { ChartSpec } from "./chart/chart.js";
 import type { Plane } from "./planes.js";
 import { RASTER_MARKER } from "./figure-draw.js";
 
@@ -85,14 +86,11 @@ export interface FieldFigureOptions {
   readonly aspect?: number;
 }
 
-/** Vega axes: about five ticks, labelled by psibox's formatter, overlapping labels dropped. */
-const TICKS = { tickCount: 5, labelOverlap: true, encode: { labels: { update: { text: { signal: "psiboxTick(datum.value)" } } } } } as const;
-
 const dataUri = (png: Buffer) => `data:image/png;base64,${png.toString("base64")}`;
 
 /**
  * Render a framed picture of a plane: the figure workers put the cells under the frame and embed them in
- * the SVG as a PNG of whole pixel blocks (figure-draw.ts); the SVG built here carries a placeholder.
+ * the SVG as a PNG of whole pixel blocks (figure-draw.ts); the chart drawn here carries a placeholder.
  */
 export async function fieldFigure(plane: Plane, opts: FieldFigureOptions): Promise<Figure> {
   const [lo, hi] = opts.range;
@@ -101,40 +99,19 @@ export async function fieldFigure(plane: Plane, opts: FieldFigureOptions): Promi
   const w = aspect <= 1 ? side : Math.max(80, Math.round(side / aspect));
   const h = aspect >= 1 ? side : Math.max(80, Math.round(side * aspect));
   const zoom = Math.max(1, Math.ceil((w * PNG_SCALE) / plane.nx), Math.ceil((h * PNG_SCALE) / plane.ny));
-  const image = (url: string, width: vega.SignalRef | number, height: number): vega.Mark => ({
-    type: "image",
-    encode: { enter: { x: { value: 0 }, y: { value: 0 }, width: typeof width === "number" ? { value: width } : width, height: { value: height }, url: { value: url }, aspect: { value: false }, smooth: { value: false } } },
-  });
-  const spec: vega.Spec = {
-    width: w,
-    height: h,
-    padding: 6,
-    autosize: "pad",
-    background: "white",
-    config: { ...STYLE, axis: { ...STYLE.axis }, title: { ...STYLE.title } } as vega.Config,
-    title: { text: opts.title, ...(opts.subtitle ? { subtitle: opts.subtitle } : {}) },
-    scales: [
-      { name: "x", type: "linear", domain: [plane.x0, plane.x0 + plane.width], range: "width", zero: false, nice: false },
-      { name: "y", type: "linear", domain: [plane.y0, plane.y0 + plane.height], range: "height", zero: false, nice: false },
-    ],
-    axes: [
-      { orient: "bottom", scale: "x", title: opts.xTitle, ...TICKS },
-      // no domain line: Vega draws it half a unit inside the image, where the image hid it, and the
-      // figure workers put the cells under everything the SVG draws
-      { orient: "left", scale: "y", title: opts.yTitle, domain: false, ...TICKS },
-    ],
-    marks: [
-      image(RASTER_MARKER, w, h),
-      { type: "rect", encode: { enter: { x: { value: 0 }, y: { value: 0 }, width: { value: w }, height: { value: h }, fill: { value: "transparent" }, stroke: { value: "#333" } } } },
-      {
-        type: "group",
-        encode: { enter: { x: { value: w + 14 }, y: { value: 0 }, width: { value: 12 }, height: { value: h } } },
-        scales: [{ name: "bar", type: "linear", domain: [lo, hi], range: [h, 0], zero: false, nice: false }],
-        axes: [{ orient: "right", scale: "bar", title: opts.legend, titleAngle: 90, titleBaseline: "bottom", titlePadding: 8, ...TICKS }],
-        marks: [image(dataUri(colourBarPng(opts.colourMap)), 12, h)],
-      },
-    ],
+  const chart: ChartSpec = {
+    title: opts.title,
+    ...(opts.subtitle ? { subtitle: opts.subtitle } : {}),
+    margin: 6,
+    image: {
+      width: w,
+      height: h,
+      x: { title: opts.xTitle, domain: [plane.x0, plane.x0 + plane.width] },
+      y: { title: opts.yTitle, domain: [plane.y0, plane.y0 + plane.height] },
+      href: RASTER_MARKER,
+      bar: { title: opts.legend, domain: [lo, hi], href: dataUri(colourBarPng(opts.colourMap)) },
+    },
   };
   const colours = cellColours(plane, lo, hi, opts.colourMap);
-  return rasterise({ spec }, PNG_SCALE, { width: w, height: h, nx: plane.nx, ny: plane.ny, colours, zoom: Math.min(zoom, 64) });
+  return rasterise({ chart }, PNG_SCALE, { width: w, height: h, nx: plane.nx, ny: plane.ny, colours, zoom: Math.min(zoom, 64) });
 }

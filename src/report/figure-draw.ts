@@ -1,7 +1,9 @@
 /**
  * Drawing one figure into its files' bytes, on a figure worker (or on the
- * main thread where none can start): Vega turns a specification into the
- * SVG (vega-svg.ts, loaded with the first one) and resvg rasterises it.
+ * main thread where none can start): psibox's chart writer (chart/chart.ts)
+ * or, for the figures still specified for it, Vega (vega-svg.ts, loaded
+ * with the first such figure only) turns the figure into SVG, and resvg
+ * rasterises it.
  *
  * A plane picture's raster is not drawn by resvg: the SVG carries a
  * placeholder image, which is left out of the rasterised SVG; its cells are
@@ -19,11 +21,12 @@ import type { TopLevelSpec } from "vega-lite";
 import { blockPng, FIGURE_LEVEL, pngFile } from "./png.js";
 import { rasterOptions } from "./figure-font.js";
 import { layOver, scanlines, underlay } from "./figure-pixels.js";
+import { chartSvg, type ChartSpec } from "./chart/chart.js";
 
 /** The placeholder address of a plane picture's image (a data address that Vega keeps as it is). */
 export const RASTER_MARKER = "data:image/png;base64,cHNpYm94LXJhc3Rlcg==";
 
-/** A plane picture's raster: its size in SVG units (its top-left corner is the origin of the Vega spec's marks), its cells' colours (RGB, top row first) and the zoom of the embedded PNG. */
+/** A plane picture's raster: its size in SVG units (its top-left corner is the origin of the chart's or Vega spec's plot area), its cells' colours (RGB, top row first) and the zoom of the embedded PNG. */
 export interface RasterLayer {
   readonly width: number;
   readonly height: number;
@@ -33,10 +36,10 @@ export interface RasterLayer {
   readonly zoom: number;
 }
 
-/** What a figure is drawn from: its SVG, or a Vega spec, or a Vega-Lite spec (given the shared style). */
-export type FigureSource = { readonly svg: string } | { readonly spec: vega.Spec } | { readonly vegaLite: TopLevelSpec };
+/** What a figure is drawn from: its SVG, or a chart (psibox's chart writer), or a Vega spec, or a Vega-Lite spec (given the shared style). */
+export type FigureSource = { readonly svg: string } | { readonly chart: ChartSpec } | { readonly spec: vega.Spec } | { readonly vegaLite: TopLevelSpec };
 
-/** What a worker is sent: the figure, its zoom (PNG pixels per SVG unit) and a plane picture's raster (with a Vega spec only). */
+/** What a worker is sent: the figure, its zoom (PNG pixels per SVG unit) and a plane picture's raster (with a chart or a Vega spec only). */
 export type FigureJob = FigureSource & {
   readonly scale: number;
   readonly raster?: RasterLayer;
@@ -62,9 +65,10 @@ function frameOnly(svg: string): string {
   return svg.replace(IMAGE, "").replace(BACKGROUND, "$1");
 }
 
-/** The figure's SVG and the origin of its marks (a Vega spec's plot area; [0, 0] for an SVG given as it is). */
+/** The figure's SVG and the origin of its plot area (a chart's or a Vega spec's; [0, 0] for an SVG given as it is). */
 async function figureSvg(source: FigureSource): Promise<{ svg: string; origin: [number, number] }> {
   if ("svg" in source) return { svg: source.svg, origin: [0, 0] };
+  if ("chart" in source) return chartSvg(source.chart);
   const { vegaOfLite, vegaSvg } = await import("./vega-svg.js");
   return vegaSvg("spec" in source ? source.spec : vegaOfLite(source.vegaLite));
 }

@@ -1,16 +1,19 @@
 /**
- * Line and point plots as Vega-Lite figures: the power spectrum, a 1D
- * density profile, and the helpers the run-level plots share (log-axis
- * ticks, scaled linear axes).
+ * Line and point plots: the power spectrum and a 1D density profile (drawn
+ * by psibox's chart writer), and the helpers the run-level plots share
+ * (log-axis ticks, scaled linear axes).
  */
-import type { TopLevelSpec } from "vega-lite";
 import { axisExponent, scaledUnit } from "../core/format.js";
-import { renderVegaLite, type Figure } from "./render.js";
+import { renderChart, type Figure } from "./render.js";
+import type { Series } from "./chart/chart.js";
 
 export type Row = Record<string, number | string>;
 export const SCHEMA = "https://vega.github.io/schema/vega-lite/v5.json";
 /** Plot area of a single panel, SVG units. */
 export const PANEL = { width: 300, height: 190 } as const;
+/** Colours of a measurement and of a prediction beside it. */
+const MEASURED = "#1f5fa8";
+const PREDICTED = "#d1495b";
 
 /** Tick values for a log axis over [lo, hi]: whole decades (every few when there are many), or 1-2-5 steps inside one or two decades. */
 export function logTicks(lo: number, hi: number): number[] {
@@ -61,31 +64,25 @@ export function cutAtFirstZero(rows: { k: number; P: number }[]): { k: number; P
 /** P(k) measured (points) and, when given, the linear prediction (dashed line), log–log. */
 export function powerPlot(measured: { k: number; P: number }[], linear: { k: number; P: number }[] | undefined, kTitle: string, pTitle: string, title: string, subtitle = ""): Promise<Figure> {
   const lin = linear ? cutAtFirstZero(linear) : [];
-  const ks = [...measured.map((r) => r.k), ...lin.map((r) => r.k)];
-  const Ps = [...measured.map((r) => r.P), ...lin.map((r) => r.P)];
-  const xa = logAxis(ks);
-  const ya = logAxis(Ps);
-  const x = { field: "k", type: "quantitative", scale: { type: "log", domain: xa.domain, nice: false }, axis: { values: xa.values }, title: kTitle };
-  const y = { field: "P", type: "quantitative", scale: { type: "log", domain: ya.domain, nice: false }, axis: { values: ya.values }, title: pTitle };
-  const names = lin.length ? ["measured", "linear theory"] : ["measured"];
-  const colour = { type: "nominal", title: null, scale: { domain: names, range: ["#1f5fa8", "#d1495b"].slice(0, names.length) }, legend: { orient: "top", direction: "horizontal" } };
-  const layers: object[] = [{ data: { values: measured }, mark: { type: "point", filled: true, size: 22 }, encoding: { x, y, color: { datum: "measured", ...colour } } }];
-  if (lin.length) layers.push({ data: { values: lin }, mark: { type: "line", strokeDash: [6, 3], strokeWidth: 1.5 }, encoding: { x, y, color: { datum: "linear theory", ...colour } } });
-  return renderVegaLite({ $schema: SCHEMA, title: subtitle ? { text: title, subtitle } : title, ...PANEL, layer: layers } as TopLevelSpec);
+  const xa = logAxis([...measured.map((r) => r.k), ...lin.map((r) => r.k)]);
+  const ya = logAxis([...measured.map((r) => r.P), ...lin.map((r) => r.P)]);
+  const series: Series[] = [{ name: "measured", colour: MEASURED, x: measured.map((r) => r.k), y: measured.map((r) => r.P), mark: "points", size: 22 }];
+  if (lin.length) series.push({ name: "linear theory", colour: PREDICTED, x: lin.map((r) => r.k), y: lin.map((r) => r.P), mark: "line", width: 1.5, dash: [6, 3] });
+  return renderChart({
+    title,
+    ...(subtitle ? { subtitle } : {}),
+    panels: [{ ...PANEL, x: { title: kTitle, log: true, ...xa, nice: false }, y: { title: pTitle, log: true, ...ya, nice: false }, series }],
+    legend: { orient: "top", entries: series.map((s) => ({ label: s.name!, colour: s.colour })), symbol: "circle", outline: lin.length > 0, opacity: 0.7 },
+  });
 }
 
 /** A 1D density profile on a log axis (its decades cover `domainValues`, default the profile's own). */
 export function densityLinePlot(rows: { x: number; rho: number }[], xTitle: string, yTitle: string, title: string, subtitle: string, domainValues?: number[]): Promise<Figure> {
   const ya = logAxis(domainValues ?? rows.map((r) => r.rho));
-  return renderVegaLite({
-    $schema: SCHEMA,
-    title: { text: title, subtitle },
-    ...PANEL,
-    data: { values: rows.filter((r) => r.rho > 0) },
-    mark: { type: "line", strokeWidth: 1.5, color: "#1f5fa8" },
-    encoding: {
-      x: { field: "x", type: "quantitative", title: xTitle, scale: { nice: false, zero: false } },
-      y: { field: "rho", type: "quantitative", title: yTitle, scale: { type: "log", domain: ya.domain, nice: false }, axis: { values: ya.values } },
-    },
-  } as TopLevelSpec);
+  const shown = rows.filter((r) => r.rho > 0);
+  return renderChart({
+    title,
+    subtitle,
+    panels: [{ ...PANEL, x: { title: xTitle, nice: false, zero: false }, y: { title: yTitle, log: true, ...ya, nice: false }, series: [{ colour: MEASURED, x: shown.map((r) => r.x), y: shown.map((r) => r.rho), mark: "line", width: 1.5 }] }],
+  });
 }

@@ -1,8 +1,9 @@
 /**
  * A figure worker (started by raster-pool.ts): draws each figure it is
- * sent with Vega and resvg (figure-draw.ts) and sends back the SVG and the
- * PNG's bytes, or the error's message. Vega is loaded as the worker starts
- * (while the main thread reads a snapshot), not with the first figure.
+ * sent (figure-draw.ts: psibox's chart writer, or Vega for the figures
+ * still specified for it, and resvg) and sends back the SVG and the PNG's
+ * bytes, or the error's message. Vega is loaded only with the first figure
+ * that needs it: the figures of `psibox analyze` do not.
  *
  * resvg's rendered pixels and parsed SVG live outside the JavaScript heap,
  * freed only when their JavaScript handles are collected; the worker's heap
@@ -19,10 +20,9 @@ import { parentPort } from "node:worker_threads";
 import { drawFigure, type FigureJob, type ResvgClass } from "./figure-draw.js";
 import { findFigureFont } from "./figure-font.js";
 
-// the figure font's two faces, asked of fontconfig while this thread loads resvg and Vega
+// the figure font's two faces, asked of fontconfig while this thread loads resvg
 const fonts = findFigureFont();
 const { Resvg } = createRequire(import.meta.url)("@resvg/resvg-js") as { Resvg: ResvgClass };
-await import("./vega-svg.js");
 
 /**
  * This thread's collector of young objects, or nothing where V8 does not give it: resvg's handles are made and

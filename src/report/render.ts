@@ -1,6 +1,7 @@
 /**
- * Rendering figures: Vega and Vega-Lite specifications rendered to SVG in
- * Node (no browser, no canvas), then rasterised to PNG with resvg.
+ * Rendering figures: psibox's charts (chart/chart.ts) or Vega and Vega-Lite
+ * specifications rendered to SVG in Node (no browser, no canvas), then
+ * rasterised to PNG with resvg.
  *
  * One style for every figure: DejaVu Sans (it has the Unicode math glyphs
  * the labels use: ⟨⟩, ₁₀, ², −, ∫, λ, χ), 10 px tick labels and 11 px
@@ -8,15 +9,16 @@
  * of one column of a two-column paper (8.6 cm) prints its text at about
  * 7–8 pt, and one on a slide at half its width reads from the back row.
  * PNGs are rendered at 3 pixels per SVG unit (about 300 dpi at column
- * width); the SVG is kept as the vector version (vega-svg.ts, with the
- * look of figure-style.ts).
+ * width); the SVG is kept as the vector version (chart/ or vega-svg.ts,
+ * with the look of figure-style.ts).
  *
  * The figures are drawn on a worker thread (raster-pool.ts): the main
- * thread builds the specifications and hands each to the worker as it is
- * requested; the worker turns them into SVG with Vega, rasterises and
- * encodes the PNG, so the main thread never loads Vega while a worker can
- * start, and figures are drawn while the main thread computes. Only the
- * figure font's regular and bold faces are loaded (figure-font.ts).
+ * thread builds the figures' descriptions (charts, or Vega specifications
+ * for the run, halo and ensemble figures) and hands each to the worker as
+ * it is requested; the worker turns them into SVG, rasterises and encodes
+ * the PNG, so the main thread never loads Vega while a worker can start,
+ * and figures are drawn while the main thread computes. Only the figure
+ * font's regular and bold faces are loaded (figure-font.ts).
  */
 import { createRequire } from "node:module";
 import type * as vega from "vega";
@@ -25,6 +27,7 @@ import { rasterPool, resvgAllocatorOptions } from "./raster-pool.js";
 import type { FigureJob, FigureSource, RasterLayer, ResvgClass } from "./figure-draw.js";
 import { PNG_SCALE } from "./figure-style.js";
 import { figureFontFiles } from "./figure-font.js";
+import type { ChartSpec } from "./chart/chart.js";
 
 /** A rendered figure. */
 export interface Figure {
@@ -43,7 +46,7 @@ export function prepareFigures(): void {
 }
 
 /**
- * Draw a figure (an SVG, or a Vega or Vega-Lite spec) with the figure font, and a plane picture's raster under it, on
+ * Draw a figure (an SVG, a chart, or a Vega or Vega-Lite spec) with the figure font, and a plane picture's raster under it, on
  * the figure workers (or on this thread where they cannot start). The job is handed to a worker at once, during
  * this call: a figure requested before a long computation is drawn beside it.
  */
@@ -69,6 +72,11 @@ export async function figuresTogether(pending: Readonly<Record<string, Promise<F
   const entries = Object.entries(pending).filter((e): e is [string, Promise<Figure>] => e[1] !== undefined);
   const figures = await Promise.all(entries.map(([, f]) => f));
   return Object.fromEntries(entries.map(([name], i) => [name, figures[i]!]));
+}
+
+/** Render a chart (psibox's chart writer) to SVG and PNG. */
+export function renderChart(chart: ChartSpec, scale = PNG_SCALE): Promise<Figure> {
+  return rasterise({ chart }, scale);
 }
 
 /** Render a Vega spec to SVG and PNG. */

@@ -37,16 +37,16 @@ beforeAll(() => {
 });
 afterAll(() => fs.rmSync(work, { recursive: true, force: true }));
 
-/** Pairs (value, SVG position) of an axis's ticks, read from Vega's SVG. */
+/** Pairs (value, SVG position) of an axis's labelled ticks, read from the figure's SVG (psibox's chart writer). */
 function axisTicks(svg: string, which: "X" | "Y", title: string): { value: number; at: number }[] {
-  const start = svg.indexOf(`aria-label="${which}-axis titled '${title}'`);
-  expect(start, `axis ${title}`).toBeGreaterThan(0);
-  const chunk = svg.slice(start, svg.indexOf("role-axis-title", start));
-  const [, gx, gy] = /<g transform="translate\(([-\d.e]+),([-\d.e]+)\)">/.exec(chunk)!.map(Number) as [number, number, number];
-  const ticks = [...chunk.slice(0, chunk.indexOf("role-axis-label")).matchAll(/<line transform="translate\(([-\d.e]+),([-\d.e]+)\)"/g)].map((m) => (which === "X" ? gx + Number(m[1]) : gy + Number(m[2])));
-  const labels = [...chunk.slice(chunk.indexOf("role-axis-label")).matchAll(/>([^<>]+)<\/text>/g)].map((m) => Number(m[1]!.replace("−", "-")));
-  expect(labels.length).toBe(ticks.length);
-  return labels.map((value, i) => ({ value, at: ticks[i]! })).filter((t) => Number.isFinite(t.value));
+  const axes = [...svg.matchAll(/<g class="axis (bottom|left|right)" transform="translate\(([-\d.e]+),([-\d.e]+)\)">(.*?)<\/g>/g)];
+  const axis = axes.find((m) => (m[1] === "bottom") === (which === "X") && m[4]!.includes(`>${title}</text>`));
+  expect(axis, `axis ${title}`).toBeDefined();
+  const [gx, gy] = [Number(axis![2]), Number(axis![3])];
+  // a bottom axis's label is centred on its tick; a left one's middle baseline puts its y 3 units below it (10-unit labels)
+  const labels = [...axis![4]!.matchAll(/<text class="tick" x="([-\d.e]+)" y="([-\d.e]+)"[^>]*>([^<]+)<\/text>/g)];
+  expect(labels.length).toBeGreaterThan(1);
+  return labels.map((m) => ({ value: Number(m[3]!.replace("−", "-")), at: which === "X" ? gx + Number(m[1]) : gy + Number(m[2]) - 3 })).filter((t) => Number.isFinite(t.value));
 }
 
 /** Inverse of the axis: SVG position → value, by a least-squares line through the ticks. */
@@ -62,7 +62,7 @@ function invert(ticks: { value: number; at: number }[]): (at: number) => number 
 function brightest(pngFile: string, svg: string): { x: number; y: number } {
   const png = PNG.sync.read(fs.readFileSync(pngFile));
   const [, ox, oy] = /<g fill="none" stroke-miterlimit="10" transform="translate\(([-\d.]+),([-\d.]+)\)">/.exec(svg)!.map(Number) as [number, number, number];
-  const [, pw, ph] = /<path class="background" aria-hidden="true" d="M0,0h([\d.]+)v([\d.]+)h/.exec(svg)!.map(Number) as [number, number, number];
+  const [, pw, ph] = /<image [^>]*width="([\d.]+)" height="([\d.]+)"/.exec(svg)!.map(Number) as [number, number, number];
   const scale = png.width / Number(/<svg[^>]* width="([\d.]+)"/.exec(svg)![1]);
   let best = Infinity;
   let sx = 0;
