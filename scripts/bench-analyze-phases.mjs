@@ -39,13 +39,9 @@ async function child(file, out, n) {
   const { readSnapshotMeta } = await import("../dist/io/snapshot.js");
   const { snapshotGrid } = await import("../dist/simulation/from-snapshot.js");
   const { physicalScales } = await import("../dist/report/field-diagnostics.js");
-  const { prepareRead } = await import("../dist/io/shared-read.js");
-  // as analyze does: the reading thread started first, ψ read into the transforms' shared grid (its pages touched
-  // meanwhile on the helper thread)
-  const meta = readSnapshotMeta(file);
-  prepareRead(meta.cells);
+  // as analyze does: ψ read into the transforms' shared grid (its pages touched meanwhile on the helper thread)
   const at = new AnalysisTransforms();
-  const snap = phase("read", () => readSnapshot(file, false, at.psiOf(snapshotGrid(meta))));
+  const snap = phase("read", () => readSnapshot(file, false, at.psiOf(snapshotGrid(readSnapshotMeta(file)))));
   const field = loadField(snap, true);
   const fft = at.of(field.grid);
   // the vortex census on the helper thread, beside the phases below (as analyze runs it)

@@ -94,11 +94,6 @@ export function startReadHelper(): void {
   helper = w;
 }
 
-/** Start the helper thread ahead of a read of ψ on a grid of `cells` when that read will be shared (it is then up sooner). */
-export function prepareRead(cells: readonly number[]): void {
-  if (16 * cells.reduce((p, n) => p * n, 1) >= sharedBytes) startReadHelper();
-}
-
 /** Stop the helper thread (tests; a later large read starts another). */
 export async function stopReadHelper(): Promise<void> {
   const w = helper;

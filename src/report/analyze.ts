@@ -9,7 +9,6 @@ import fs from "node:fs";
 import path from "node:path";
 import { readSnapshot, readSnapshotMeta, type Snapshot } from "../io/snapshot.js";
 import { checkOneRun } from "../io/run-identity.js";
-import { prepareRead, stopReadHelper } from "../io/shared-read.js";
 import { RunTracks } from "./halo-track-table.js";
 import { haloFigures } from "./halo-plots.js";
 import { writeFileAtomic, writeTogether } from "../io/atomic.js";
@@ -121,22 +120,17 @@ async function analyzeSnapshotFiles(
 ): Promise<SnapshotAnalysis> {
   const own = transforms ?? new AnalysisTransforms(true);
   try {
-    return await analyzeWith(file, outDir, withPictures, request, pictures, own, tracks, !transforms);
+    return await analyzeWith(file, outDir, withPictures, request, pictures, own, tracks);
   } finally {
     if (!transforms) own.close();
   }
 }
 
-/** analyzeSnapshot on the given transforms; `alone`: the only snapshot of this analysis (no later read needs the reading thread). */
-async function analyzeWith(file: string, outDir: string, withPictures: boolean, request: DiagnosticRequest, pictures: PictureOptions, transforms: AnalysisTransforms, tracks: RunTracks | undefined, alone: boolean): Promise<SnapshotAnalysis> {
-  const meta = readSnapshotMeta(file);
-  // the reading thread, which shares a large ψ's read with this one, first: it starts while the rest is prepared
-  prepareRead(meta.cells);
+/** analyzeSnapshot on the given transforms. */
+async function analyzeWith(file: string, outDir: string, withPictures: boolean, request: DiagnosticRequest, pictures: PictureOptions, transforms: AnalysisTransforms, tracks: RunTracks | undefined): Promise<SnapshotAnalysis> {
   // fontconfig answers, the figure workers and the transforms' threads start while the snapshot is read
   if (withPictures) prepareFigures();
-  const snap = readSnapshot(file, false, transforms.psiOf(snapshotGrid(meta)));
-  // its memory is given back before the numbers and pictures need theirs
-  if (alone) void stopReadHelper();
+  const snap = readSnapshot(file, false, transforms.psiOf(snapshotGrid(readSnapshotMeta(file))));
   const chosen = checkDiagnostics(request, snap.meta.cells.length, snap.meta.boxSizeKpc, snap.meta.cells, file);
   if (withPictures) checkSliceIndex(pictures, snap.meta.cells, file);
   checkHaloRequest(request.halos ?? { definition: "200m" }, snap, file);
