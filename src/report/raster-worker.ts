@@ -13,16 +13,16 @@
  * objects, so the next figure's drawing reuses the memory the last one
  * freed. It asks fontconfig for the figure font's files as it starts.
  */
-import { createRequire } from "node:module";
 import v8 from "node:v8";
 import vm from "node:vm";
 import { parentPort } from "node:worker_threads";
-import { drawFigure, type FigureJob, type ResvgClass } from "./figure-draw.js";
+import { drawFigure, type FigureJob } from "./figure-draw.js";
 import { findFigureFont } from "./figure-font.js";
+import { resvgClass } from "./resvg-binding.js";
 
 // the figure font's two faces, asked of fontconfig while this thread loads resvg
 const fonts = findFigureFont();
-const { Resvg } = createRequire(import.meta.url)("@resvg/resvg-js") as { Resvg: ResvgClass };
+const Resvg = resvgClass();
 
 /**
  * This thread's collector of young objects, or nothing where V8 does not give it: resvg's handles are made and

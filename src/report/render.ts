@@ -20,11 +20,11 @@
  * and figures are drawn while the main thread computes. Only the figure
  * font's regular and bold faces are loaded (figure-font.ts).
  */
-import { createRequire } from "node:module";
 import type * as vega from "vega";
 import type { TopLevelSpec } from "vega-lite";
 import { rasterPool, resvgAllocatorOptions } from "./raster-pool.js";
-import type { FigureJob, FigureSource, RasterLayer, ResvgClass } from "./figure-draw.js";
+import { resvgClass } from "./resvg-binding.js";
+import type { FigureJob, FigureSource, RasterLayer } from "./figure-draw.js";
 import { PNG_SCALE } from "./figure-style.js";
 import { figureFontFiles } from "./figure-font.js";
 import type { ChartSpec } from "./chart/chart.js";
@@ -61,9 +61,8 @@ export function rasterise(source: string | FigureSource, scale = PNG_SCALE, rast
 /** Draw a figure on this thread (resvg loaded here only, after its allocator's options are set; Vega with the drawing). */
 async function drawHere(job: FigureJob): Promise<Figure> {
   resvgAllocatorOptions();
-  const { Resvg } = createRequire(import.meta.url)("@resvg/resvg-js") as { Resvg: ResvgClass };
   const { drawFigure } = await import("./figure-draw.js");
-  const drawn = await drawFigure(Resvg, job, figureFontFiles());
+  const drawn = await drawFigure(resvgClass(), job, figureFontFiles());
   return { ...drawn, png: Buffer.from(drawn.png.buffer, drawn.png.byteOffset, drawn.png.length) };
 }
 
