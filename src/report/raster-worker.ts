@@ -52,8 +52,10 @@ async function draw(id: number, job: FigureJob): Promise<void> {
   } catch (e) {
     parentPort!.postMessage({ id, error: e instanceof Error ? e.message : String(e) });
   }
-  // resvg's memory is given back by the handles' finalizers, which run after this turn
+  // resvg's memory is given back by the handles' finalizers, queued by the collection and run in a later turn of the
+  // event loop: the next figure (queued already as a promise) waits for that turn, so that it reuses the memory
   collect?.();
+  await new Promise((settled) => setImmediate(settled));
 }
 
 let queue = Promise.resolve();
