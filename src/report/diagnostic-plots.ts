@@ -109,23 +109,28 @@ export function splitFigures(field: LoadedField, split: NonNullable<FieldDiagnos
   };
 }
 
-/** Every picture of the field diagnostics, keyed by file name (without .png); `started` holds those begun already (`splitFigures`). */
+/** The vortices' picture: positions coloured by charge (2D), or the line length projected along x (3D). Started as soon as the census is known (`diagnosticFigures` draws it otherwise). */
+export function vortexFigure(field: LoadedField, vortices: NonNullable<FieldDiagnosticsResult["vortices"]>, s: PhysicalScales, caption: string): Promise<Figure> {
+  const box = field.grid.lengths.map((l) => l * s.kpc);
+  if (field.grid.dims === 2) {
+    const pts = vortices.points.map((p) => ({ x: p.position[0]! * s.kpc, y: p.position[1]! * s.kpc, charge: p.charge > 0 ? "+1" : "−1" }));
+    return vortexScatter(pts, box, `${vortices.positive + vortices.negative} vortices, ${caption}`);
+  }
+  const [, n1, n2] = field.grid.shape;
+  const area = field.grid.spacing[1] * field.grid.spacing[2] * s.kpc * s.kpc;
+  const values = Float64Array.from(vortices.projection, (v) => (v * s.kpc) / area);
+  return fieldFigure(
+    { nx: n2, ny: n1, values, x0: 0, y0: 0, width: box[2]!, height: box[1]! },
+    { xTitle: "z [kpc]", yTitle: "y [kpc]", legend: "line length / area [1/kpc]", title: "Vortex lines projected along x", subtitle: caption, range: colourRange(values, Infinity), colourMap: "viridis" },
+  );
+}
+
+/** Every picture of the field diagnostics, keyed by file name (without .png); `started` holds those begun already (`splitFigures`, `vortexFigure`). */
 export async function diagnosticFigures(field: LoadedField, r: FieldDiagnosticsResult, s: PhysicalScales, caption: string, started: Record<string, Promise<Figure>> = {}): Promise<Record<string, Figure>> {
   const box = field.grid.lengths.map((l) => l * s.kpc);
   const d = field.grid.dims;
   const figures: Record<string, Promise<Figure>> = { ...(r.split && !started["energy-spectra"] ? splitFigures(field, r.split, s, caption) : {}), ...started };
-  if (r.vortices && d === 2) {
-    const pts = r.vortices.points.map((p) => ({ x: p.position[0]! * s.kpc, y: p.position[1]! * s.kpc, charge: p.charge > 0 ? "+1" : "−1" }));
-    figures["vortices"] = vortexScatter(pts, box, `${r.vortices.positive + r.vortices.negative} vortices, ${caption}`);
-  } else if (r.vortices) {
-    const [, n1, n2] = field.grid.shape;
-    const area = field.grid.spacing[1] * field.grid.spacing[2] * s.kpc * s.kpc;
-    const values = Float64Array.from(r.vortices.projection, (v) => (v * s.kpc) / area);
-    figures["vortices"] = fieldFigure(
-      { nx: n2, ny: n1, values, x0: 0, y0: 0, width: box[2]!, height: box[1]! },
-      { xTitle: "z [kpc]", yTitle: "y [kpc]", legend: "line length / area [1/kpc]", title: "Vortex lines projected along x", subtitle: caption, range: colourRange(values, Infinity), colourMap: "viridis" },
-    );
-  }
+  if (r.vortices && !started["vortices"]) figures["vortices"] = vortexFigure(field, r.vortices, s, caption);
   if (r.granules) figures["granules"] = granulePlot(r.granules, s, `granules, ${caption}`);
   if (r.husimiImage) {
     const im = r.husimiImage;
