@@ -24,7 +24,7 @@ import type { DensityPlane } from "./planes.js";
 import { prepareFigures, type Figure } from "./render.js";
 import { checkDiagnostics, type DiagnosticRequest, type FieldDiagnostic } from "./diagnostic-options.js";
 import { fieldDiagnostics, physicalScales } from "./field-diagnostics.js";
-import { diagnosticFigures, splitFigures } from "./diagnostic-plots.js";
+import { diagnosticFigures, splitFigures, vortexFigure } from "./diagnostic-plots.js";
 import { AnalysisTransforms } from "./analysis-transforms.js";
 import { energyAndKineticSplit } from "../diagnostics/energy-split.js";
 import { speciesSummary } from "./species-summary.js";
@@ -67,7 +67,7 @@ interface Measured {
   readonly summary: Record<string, unknown>;
   readonly diagnostics: ReturnType<typeof fieldDiagnostics>;
   readonly powerFigure?: Promise<Figure>;
-  /** The energy split's figures, started as soon as it is measured. */
+  /** The energy split's and the vortices' figures, each started as soon as its numbers are known. */
   readonly splitFigures?: Record<string, Promise<Figure>>;
 }
 
@@ -88,8 +88,11 @@ async function measure(file: string, snap: Snapshot, field: LoadedField, outDir:
   if (species) summary["species"] = species;
   // the tables left δ's spectrum in work grid 1 (the halos and peaks use work grid 0)
   const vortices = vortexJob ? await vortexJob : undefined;
+  // its picture is drawn while the granules and the Husimi distribution are measured
+  const vortexPicture = withPictures && vortices ? later(vortexFigure(field, vortices.report, physicalScales(field), timeCaption(snap))) : undefined;
   const diagnostics = fieldDiagnostics(field, chosen, outDir, fft, request.husimiWindowKpc, request.husimiPointsKpc, both?.split, { contrastSpectrum: fft.work(1), ...(both ? { moments: both.moments, meanDensity: both.meanDensity } : {}) }, vortices);
-  return { summary, diagnostics, ...(powerFigure ? { powerFigure } : {}), ...(split ? { splitFigures: split } : {}) };
+  const started = { ...split, ...(vortexPicture ? { vortices: vortexPicture } : {}) };
+  return { summary, diagnostics, ...(powerFigure ? { powerFigure } : {}), splitFigures: started };
 }
 
 /** The P(k) figure, with the linear prediction of a cosmological run. */
