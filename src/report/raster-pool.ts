@@ -26,16 +26,6 @@ export interface Raster {
   readonly height: number;
 }
 
-/**
- * resvg's allocator (mimalloc) reads its options from the environment once, when resvg is first
- * loaded: ask it for large OS pages (where the system allows them; a setting of the user's own stays).
- * A figure's pixels are several megabytes of fresh memory, and mapping them page by page took a third
- * to a half of drawing a figure. Call before loading resvg, on any thread.
- */
-export function resvgAllocatorOptions(): void {
-  process.env["MIMALLOC_ALLOW_LARGE_OS_PAGES"] ??= "1";
-}
-
 /** The worker script: the built report/raster-worker.js (from the sources, as under the tests, the one in dist/). */
 function workerScript(): string {
   const here = fileURLToPath(import.meta.url);
@@ -119,10 +109,8 @@ let pool: RasterPool | null | undefined;
 export function rasterPool(workers = 1): RasterPool | null {
   const count = Math.min(workers, Math.max(1, os.availableParallelism?.() ?? os.cpus().length));
   try {
-    if (pool === undefined) {
-      resvgAllocatorOptions();
-      pool = new RasterPool(count);
-    } else pool?.widen(count);
+    if (pool === undefined) pool = new RasterPool(count);
+    else pool?.widen(count);
   } catch {
     pool ??= null;
   }

@@ -10,8 +10,12 @@
  * is small, so without help that happens rarely and every figure's
  * megabytes of pixels are fresh memory (more resident memory, and a page
  * fault per page touched). After each figure the worker collects its young
- * objects, so the next figure's drawing reuses the memory the last one
- * freed. It asks fontconfig for the figure font's files as it starts.
+ * objects and lets the finalizers run before it starts the next figure, so
+ * the next figure's drawing reuses the memory the last one freed. resvg's
+ * allocator (mimalloc) keeps its default pages: asked for large ones
+ * (2 MiB), each first touch of one could cost the kernel tens of
+ * milliseconds of compaction on a busy machine, and resident memory grew in
+ * 2 MiB steps. It asks fontconfig for the figure font's files as it starts.
  */
 import v8 from "node:v8";
 import vm from "node:vm";

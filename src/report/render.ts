@@ -22,7 +22,7 @@
  */
 import type * as vega from "vega";
 import type { TopLevelSpec } from "vega-lite";
-import { rasterPool, resvgAllocatorOptions } from "./raster-pool.js";
+import { rasterPool } from "./raster-pool.js";
 import { resvgClass } from "./resvg-binding.js";
 import type { FigureJob, FigureSource, RasterLayer } from "./figure-draw.js";
 import { PNG_SCALE } from "./figure-style.js";
@@ -58,9 +58,8 @@ export function rasterise(source: string | FigureSource, scale = PNG_SCALE, rast
   return pool ? pool.render(job).catch(() => drawHere(job)) : drawHere(job);
 }
 
-/** Draw a figure on this thread (resvg loaded here only, after its allocator's options are set; Vega with the drawing). */
+/** Draw a figure on this thread (resvg loaded here only; Vega with the drawing). */
 async function drawHere(job: FigureJob): Promise<Figure> {
-  resvgAllocatorOptions();
   const { drawFigure } = await import("./figure-draw.js");
   const drawn = await drawFigure(resvgClass(), job, figureFontFiles());
   return { ...drawn, png: Buffer.from(drawn.png.buffer, drawn.png.byteOffset, drawn.png.length) };
