@@ -111,8 +111,8 @@ export class PooledTransforms implements FieldTransforms, BlockThreads {
     else runTask(this.engine, step, 0, blocks, this.result);
   }
 
-  /** Stop the worker threads (the work grids stay readable). */
-  close(): void {
-    this.pool?.close();
+  /** Stop the worker threads (the work grids stay readable); resolves when they have exited. */
+  close(): Promise<void> {
+    return this.pool?.close() ?? Promise.resolve();
   }
 }

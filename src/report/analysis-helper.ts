@@ -74,8 +74,9 @@ export class AnalysisHelper {
     return a.table;
   }
 
-  close(): void {
+  /** Stop the thread; resolves when it has exited. */
+  close(): Promise<void> {
     this.broken ??= new Error("the analysis's helper thread was closed");
-    void this.worker.terminate();
+    return this.worker.terminate().then(() => undefined);
   }
 }

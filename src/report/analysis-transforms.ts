@@ -7,8 +7,12 @@
  * third grid that ψ is read into, all in the step's shared memory; and the
  * helper thread (analysis-helper.ts), which touches those grids' pages while
  * the first snapshot is read (ψ's from its end, the work grids after) and
- * takes the vortex census beside the main thread.
+ * takes the vortex census beside the main thread. The analysis of a single
+ * snapshot gives all of it back as soon as its numbers are known
+ * (`numbersDone`), before the last figures are drawn.
  */
+import v8 from "node:v8";
+import vm from "node:vm";
 import type { Grid } from "../grid/grid.js";
 import { PooledTransforms } from "../integrators/pooled-transforms.js";
 import { defaultThreads } from "../config/resolve-output.js";
@@ -29,7 +33,7 @@ export class AnalysisTransforms {
   /** The transforms of `grid`'s shape (made when the shape is new). */
   of(grid: Grid): PooledTransforms {
     if (this.current && this.current.shape.every((n, i) => n === grid.shape[i])) return this.current;
-    this.current?.close();
+    void this.current?.close();
     // the worker threads start while the caller goes on (reading the snapshot): the first transform waits for them
     const fft = new PooledTransforms(grid, 3, { threads: defaultThreads(grid.cells), pool: { deferStart: true } });
     this.current = fft;
@@ -58,14 +62,40 @@ export class AnalysisTransforms {
     return this.single ? census.finally(() => this.closeHelper()) : census;
   }
 
-  private closeHelper(): void {
-    this.helperThread?.close();
+  private closeHelper(): Promise<void> {
+    const helper = this.helperThread;
     this.helperThread = undefined;
+    return helper?.close() ?? Promise.resolve();
   }
 
-  close(): void {
-    this.current?.close();
+  /** Stop the threads; resolves when they have exited. */
+  close(): Promise<void> {
+    const current = this.current;
     this.current = undefined;
-    this.closeHelper();
+    return Promise.all([current?.close(), this.closeHelper()]).then(() => undefined);
   }
+
+  /**
+   * Called when a snapshot's numbers are known. One snapshot's analysis (single) needs neither the grids nor
+   * the threads any more: they are stopped and, once `lastReader` (what still reads ψ) has settled and the
+   * caller holds no view of the grids, the
+   * memory they share is unmapped by a collection now rather than at the engine's leisure (the process would
+   * otherwise keep the grids to its end, while the last figures are drawn). A run's analysis keeps them.
+   */
+  async numbersDone(lastReader?: Promise<unknown>): Promise<void> {
+    if (!this.single) return;
+    await Promise.all([this.close(), lastReader]);
+    collectGarbage();
+  }
+}
+
+let collector: (() => void) | undefined;
+
+/** A full garbage collection of this thread's heap (the engine's `gc`, exposed once). */
+function collectGarbage(): void {
+  if (!collector) {
+    v8.setFlagsFromString("--expose-gc");
+    collector = vm.runInNewContext("gc") as () => void;
+  }
+  collector();
 }
