@@ -3,7 +3,9 @@
  * per grid shape and reused for every snapshot of a run (no grid is
  * allocated per snapshot): the step engine's kernels on the default threads
  * with the two work grids the energy split, the kinetic split and the
- * granules need (also the scratch of the densest points and halos), and a
+ * granules need (also the scratch of the densest points and halos; with the
+ * energy split measured, only the first half of work grid 1 is ever
+ * touched, so only that half takes memory), and a
  * third grid that ψ is read into, all in the step's shared memory; and the
  * helper thread (analysis-helper.ts), which touches those grids' pages while
  * the first snapshot is read (ψ's from its end, the work grids after) and
@@ -17,6 +19,7 @@ import type { Grid } from "../grid/grid.js";
 import { PooledTransforms } from "../integrators/pooled-transforms.js";
 import { defaultThreads } from "../config/resolve-output.js";
 import { touchRangeOf } from "../fields/page-touch.js";
+import { halfSpaceLength } from "../diagnostics/split-passes.js";
 import { AnalysisHelper } from "./analysis-helper.js";
 import { vortexJobOf, type VortexTable } from "./vortex-table.js";
 
@@ -37,7 +40,8 @@ export class AnalysisTransforms {
     // the worker threads start while the caller goes on (reading the snapshot): the first transform waits for them
     const fft = new PooledTransforms(grid, 3, { threads: defaultThreads(grid.cells), pool: { deferStart: true } });
     this.current = fft;
-    void this.helper(grid)?.touch([touchRangeOf(fft.work(PSI_GRID), true), touchRangeOf(fft.work(0)), touchRangeOf(fft.work(1))]);
+    // of work grid 1 only the half the energy split, the densest points and the halos use: the rest stays untouched
+    void this.helper(grid)?.touch([touchRangeOf(fft.work(PSI_GRID), true), touchRangeOf(fft.work(0)), touchRangeOf(fft.work(1).subarray(0, halfSpaceLength(grid.shape)))]);
     return fft;
   }
 

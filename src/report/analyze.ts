@@ -27,6 +27,7 @@ import { fieldDiagnostics, physicalScales } from "./field-diagnostics.js";
 import { diagnosticFigures, splitFigures } from "./diagnostic-plots.js";
 import { AnalysisTransforms } from "./analysis-transforms.js";
 import { energyAndKineticSplit } from "../diagnostics/energy-split.js";
+import { granuleStats, type GranuleStats } from "../diagnostics/granules.js";
 import { speciesSummary } from "./species-summary.js";
 
 export { AnalysisTransforms } from "./analysis-transforms.js";
@@ -81,14 +82,18 @@ async function measure(file: string, snap: Snapshot, field: LoadedField, outDir:
   const both = chosen.has("energy-split") ? energyAndKineticSplit(field.grid, field.psi, field.scaleFactor, fft) : undefined;
   const split = withPictures && both ? splitFigures(field, both.split, physicalScales(field), timeCaption(snap)) : undefined;
   if (split) Object.values(split).forEach(later);
-  const { summary, power } = snapshotTables(file, snap, field, outDir, fft, both);
+  // the granules from δ's spectrum while P(k) leaves it in work grid 0 (with ψ's moments and ρ̄ from the split)
+  let granules: GranuleStats | undefined;
+  const inputs = both ? { moments: both.moments, meanDensity: both.meanDensity } : {};
+  const contrast = chosen.has("granules") ? (spectrum: Float64Array) => (granules = granuleStats(field.grid, field.psi, field.scaleFactor, fft, undefined, undefined, { contrastSpectrum: spectrum, ...inputs })) : undefined;
+  const { summary, power } = snapshotTables(file, snap, field, outDir, fft, both, contrast);
   const powerFigure = withPictures ? later(powerFigureOf(file, snap, field, power)) : undefined;
-  summary["halos"] = haloTables(file, snap, field, outDir, request.halos ?? { definition: "200m" }, tracks, fft.work(0));
+  // the halos' scratch: the first half of work grid 1, as the densest points' (snapshot-tables.ts)
+  summary["halos"] = haloTables(file, snap, field, outDir, request.halos ?? { definition: "200m" }, tracks, fft.work(1));
   const species = speciesSummary(snap, field, outDir);
   if (species) summary["species"] = species;
-  // the tables left δ's spectrum in work grid 1 (the halos and peaks use work grid 0)
   const vortices = vortexJob ? await vortexJob : undefined;
-  const diagnostics = fieldDiagnostics(field, chosen, outDir, fft, request.husimiWindowKpc, request.husimiPointsKpc, both?.split, { contrastSpectrum: fft.work(1), ...(both ? { moments: both.moments, meanDensity: both.meanDensity } : {}) }, vortices);
+  const diagnostics = fieldDiagnostics(field, chosen, outDir, fft, request.husimiWindowKpc, request.husimiPointsKpc, both?.split, granules, vortices);
   return { summary, diagnostics, ...(powerFigure ? { powerFigure } : {}), ...(split ? { splitFigures: split } : {}) };
 }
 
