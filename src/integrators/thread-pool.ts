@@ -241,7 +241,13 @@ export class ThreadPool {
   close(): Promise<void> {
     if (this.isClosed) return this.exited;
     this.isClosed = true;
-    this.exited = Promise.all(this.workers.map((w) => w.terminate())).then(() => undefined);
+    // ref'd until they exit: a caller awaiting their exit keeps the process alive that long (they are unref'd while they work)
+    this.exited = Promise.all(
+      this.workers.map((w) => {
+        w.ref();
+        return w.terminate();
+      }),
+    ).then(() => undefined);
     return this.exited;
   }
 }
