@@ -79,6 +79,11 @@ export class AnalysisTransforms {
     return Promise.all([current?.close(), this.closeHelper()]).then(() => undefined);
   }
 
+  /** Called when a snapshot's last pass on the pool's threads is done: one snapshot's analysis stops them now (the grids stay; a later pass would run on this thread), a run's keeps them. */
+  poolDone(): void {
+    if (this.single) void this.current?.close();
+  }
+
   /**
    * Called when a snapshot's numbers are known. One snapshot's analysis (single) needs neither the grids nor
    * the threads any more: they are stopped and, once `lastReader` (what still reads ψ) has settled and the

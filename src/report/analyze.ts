@@ -87,6 +87,8 @@ async function measure(file: string, snap: Snapshot, field: LoadedField, outDir:
   const inputs = both ? { moments: both.moments, meanDensity: both.meanDensity } : {};
   const contrast = chosen.has("granules") ? (spectrum: Float64Array) => (granules = granuleStats(field.grid, field.psi, field.scaleFactor, fft, undefined, undefined, { contrastSpectrum: spectrum, ...inputs })) : undefined;
   const { summary, power } = snapshotTables(file, snap, field, outDir, fft, both, contrast);
+  // the halos, the census and the rest run on this thread and the helper's: the pool's thread is given back
+  transforms.poolDone();
   const powerFigure = withPictures ? later(powerFigureOf(file, snap, field, power)) : undefined;
   // the halos' scratch: the first half of work grid 1, as the densest points' (snapshot-tables.ts)
   summary["halos"] = haloTables(file, snap, field, outDir, request.halos ?? { definition: "200m" }, tracks, fft.work(1));
