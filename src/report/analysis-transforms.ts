@@ -89,14 +89,19 @@ export class AnalysisTransforms {
    * the threads any more: they are stopped and, once `lastReader` (what still reads ψ) has settled and the
    * caller holds no view of the grids, the
    * memory they share is unmapped by a collection now rather than at the engine's leisure (the process would
-   * otherwise keep the grids to its end, while the last figures are drawn). A run's analysis keeps them.
+   * otherwise keep the grids to its end, while the last figures are drawn); small grids are left to the engine
+   * (a full collection costs about 15 ms). A run's analysis keeps them.
    */
   async numbersDone(lastReader?: Promise<unknown>): Promise<void> {
     if (!this.single) return;
+    const bytes = 16 * (this.current?.shape.reduce((p, n) => p * n, 1) ?? 0);
     await Promise.all([this.close(), lastReader]);
-    collectGarbage();
+    if (bytes >= COLLECT_BYTES) collectGarbage();
   }
 }
+
+/** Grids of at least this many bytes (a complex grid of 64³) are unmapped by a collection when given back. */
+const COLLECT_BYTES = 16 * 64 ** 3;
 
 let collector: (() => void) | undefined;
 
