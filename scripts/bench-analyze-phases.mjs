@@ -1,7 +1,7 @@
 #!/usr/bin/env node
 // The numbers of psibox analyze, phase by phase: the main thread's CPU time (Linux: /proc/thread-self/schedstat,
 // in ns) of reading the snapshot, the energy split, the snapshot tables (P(k), PDF, field statistics, densest
-// points), the halos and the field diagnostics (vortices, granules, Husimi points), each analysis in a process of
+// points, and the granules from δ's spectrum), the halos and the field diagnostics (vortices, Husimi points), each analysis in a process of
 // its own on the benchmark's random-phase snapshot (scripts/bench-analyze.mjs), run as analyze.ts runs them.
 // CPU time of the main thread is the analysis's critical path and barely depends on other work on the machine.
 // The vortex census runs on the analysis's helper thread beside the phases (its CPU time is in "all threads").
@@ -27,6 +27,7 @@ async function child(file, out, n) {
   const { snapshotTables } = await import("../dist/report/snapshot-tables.js");
   const { haloTables } = await import("../dist/report/halo-tables.js");
   const { fieldDiagnostics } = await import("../dist/report/field-diagnostics.js");
+  const { granuleStats } = await import("../dist/diagnostics/granules.js");
   const t = {};
   const c0 = process.cpuUsage();
   const phase = (name, f) => {
@@ -47,11 +48,13 @@ async function child(file, out, n) {
   // the vortex census on the helper thread, beside the phases below (as analyze runs it)
   const vortexJob = at.vortices(field.grid, field.psi, physicalScales(field).kpc);
   const both = phase("energy split", () => energyAndKineticSplit(field.grid, field.psi, field.scaleFactor, fft));
-  phase("tables", () => snapshotTables(file, snap, field, out, fft, both));
-  phase("halos", () => haloTables(file, snap, field, out, { definition: "200m" }, undefined, fft.work(0)));
+  let granules;
+  const contrast = (spectrum) => (granules = granuleStats(field.grid, field.psi, field.scaleFactor, fft, undefined, undefined, { contrastSpectrum: spectrum, moments: both.moments, meanDensity: both.meanDensity }));
+  phase("tables", () => snapshotTables(file, snap, field, out, fft, both, contrast));
+  phase("halos", () => haloTables(file, snap, field, out, { definition: "200m" }, undefined, fft.work(1)));
   const chosen = new Set(["energy-split", "vortices", "granules", "husimi"]);
   const vortices = await vortexJob;
-  phase("field diagnostics", () => fieldDiagnostics(field, chosen, out, fft, husimiWindow(n) * BOX_KPC, HUSIMI_POINTS_KPC, both.split, { contrastSpectrum: fft.work(1), moments: both.moments, meanDensity: both.meanDensity }, vortices));
+  phase("field diagnostics", () => fieldDiagnostics(field, chosen, out, fft, husimiWindow(n) * BOX_KPC, HUSIMI_POINTS_KPC, both.split, granules, vortices));
   const cpu = process.cpuUsage(c0);
   at.close();
   t["all threads"] = (cpu.user + cpu.system) / 1000;

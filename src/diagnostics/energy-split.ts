@@ -23,7 +23,7 @@ import type { Grid } from "../grid/grid.js";
 import { SimpleTransforms, type FieldTransforms } from "../fields/field-transforms.js";
 import { derivativeWavenumbers, modeShells, Shells, simulatedAxes } from "./shells.js";
 import { kineticFromSums, type KineticSplit } from "./analysis.js";
-import { SHELL_TOTALS, shellSumsLength, type ShellData } from "./split-passes.js";
+import { halfSpaceLength, SHELL_TOTALS, shellSumsLength, type ShellData } from "./split-passes.js";
 import { addBlockSums, rowBlocks, sharedFloats } from "./row-blocks.js";
 import { runnerOf, type BlockRunner } from "./block-tasks.js";
 import { spectrumMoments, type SpectrumMoments } from "./spectrum-moments.js";
@@ -77,7 +77,7 @@ function nyquistEnergy(grid: Grid, spec: Float64Array, perMode: number): number 
 
 /**
  * Quantum, incompressible and compressible kinetic energy and their shell
- * spectra, at scale factor a. Uses work grids 0 and 1 of `fft`.
+ * spectra, at scale factor a. Uses work grid 0 of `fft` and the first half of work grid 1.
  */
 export function energySplit(grid: Grid, psi: Float64Array, a: number, fft: FieldTransforms = new SimpleTransforms(grid.shape)): EnergySplit {
   return energyAndKineticSplit(grid, psi, a, fft).split;
@@ -131,7 +131,8 @@ function shellSums(grid: Grid, psi: Float64Array, spec: Float64Array, data: Shel
  * The energy split and, from the same transforms, the bulk-flow / quantum
  * split of `kineticSplit` (analysis.ts; the same numbers) and the moments of
  * ψ's spectrum (spectrum-moments.ts), and ρ̄ (analysis.ts meanDensity, the
- * same number). Work grids 0 and 1 of `fft`. The passes
+ * same number). Work grid 0 of `fft` and the first half of work grid 1
+ * (halfSpaceLength numbers). The passes
  * over the grid run on the transforms' threads where they have them
  * (block-tasks.ts), with the same result bit for bit on any number of threads.
  */
@@ -148,7 +149,9 @@ export function energyAndKineticSplit(grid: Grid, psi: Float64Array, a: number, 
   const shells = new Shells(grid, 4);
   shells.countModes(modeShells(grid));
   const velocityPerMode = grid.volume / (n * n) / (a * a * (mass / n));
-  const { total: t, bulk2, jSum } = shellSums(grid, psi, spec, shellData(grid, shells.count, fft.work(1), perMode, velocityPerMode), fft, run);
+  // k·W in the first half of work grid 1 (its other half is never touched)
+  const div = fft.work(1).subarray(0, halfSpaceLength(grid.shape));
+  const { total: t, bulk2, jSum } = shellSums(grid, psi, spec, shellData(grid, shells.count, div, perMode, velocityPerMode), fft, run);
   for (let i = 0; i < 4; i++) shells.series(i).set(t.subarray(SHELL_TOTALS + i * shells.count, SHELL_TOTALS + (i + 1) * shells.count));
   const [quantum, incompressible, compressible, uniformFlow, zeroMode] = [t[0]!, t[1]!, t[2]!, t[3]!, t[4]!];
   const spectra = shells.rows().map((r) => ({ k: r.k, quantum: r.sums[0]!, incompressible: r.sums[1]!, compressible: r.sums[2]!, velocityPower: r.sums[3]! / r.modes, modes: r.modes }));

@@ -56,6 +56,11 @@ export interface ShellData {
   readonly nyquist: Float64Array;
 }
 
+/** The numbers of `div`: the half space of a shape, rows of n2/2 + 1 complex modes (at least one number per cell). */
+export function halfSpaceLength(shape: readonly [number, number, number]): number {
+  return 2 * shape[0] * shape[1] * (Math.floor(shape[2] / 2) + 1);
+}
+
 /** A block's sums in the shell passes: [0] quantum, [1] Σ|W|² (incompressible until the compressible part is taken out), [2] compressible, [3] uniform flow, [4] zero mode, then per shell the quantum, incompressible and compressible energy and the velocity power. */
 export const SHELL_TOTALS = 5;
 

@@ -100,19 +100,19 @@ export class PooledTransforms implements FieldTransforms, BlockThreads {
     if (this.shape[axis]! < 2) return;
     const task: StepTask = { op: "axis", field, axis, inverse };
     const units = outerCount(this.shape, axis);
-    if (this.pool) this.pool.run(units, task, this.result);
+    if (this.pool && !this.pool.closed) this.pool.run(units, task, this.result);
     else runTask(this.engine, task, 0, units, this.result);
   }
 
   /** A diagnostics' pass over `blocks` (diagnostics/block-tasks.ts), split across the threads as a transform's units are. */
   runBlocks(blocks: number, task: BlockTask): void {
     const step: StepTask = { op: "blocks", task };
-    if (this.pool) this.pool.run(blocks, step, this.result);
+    if (this.pool && !this.pool.closed) this.pool.run(blocks, step, this.result);
     else runTask(this.engine, step, 0, blocks, this.result);
   }
 
-  /** Stop the worker threads (the work grids stay readable). */
-  close(): void {
-    this.pool?.close();
+  /** Stop the worker threads (the work grids stay readable, and later passes run on this thread); resolves when they have exited. */
+  close(): Promise<void> {
+    return this.pool?.close() ?? Promise.resolve();
   }
 }

@@ -95,6 +95,7 @@ export class ThreadPool {
   private readonly results: Float64Array;
   private readonly answerMs: number;
   private isClosed = false;
+  private exited: Promise<void> = Promise.resolve();
   /** The first failure seen; every later call throws it again. */
   private broken: ThreadError | undefined;
   /** Milliseconds the workers may take to start, until they have (then undefined). */
@@ -124,7 +125,7 @@ export class ThreadPool {
       this.awaitStart(this.startLimitMs);
       this.startLimitMs = undefined;
     } catch (e) {
-      this.close();
+      void this.close();
       throw e;
     }
   }
@@ -236,10 +237,17 @@ export class ThreadPool {
     return this.isClosed;
   }
 
-  /** Stop the workers. */
-  close(): void {
-    if (this.isClosed) return;
+  /** Stop the workers; resolves when they have exited (their share of the step's memory is given back then). */
+  close(): Promise<void> {
+    if (this.isClosed) return this.exited;
     this.isClosed = true;
-    for (const w of this.workers) void w.terminate();
+    // ref'd until they exit: a caller awaiting their exit keeps the process alive that long (they are unref'd while they work)
+    this.exited = Promise.all(
+      this.workers.map((w) => {
+        w.ref();
+        return w.terminate();
+      }),
+    ).then(() => undefined);
+    return this.exited;
   }
 }

@@ -27,6 +27,7 @@ export class AnalysisHelper {
   private readonly pending = new Map<number, { resolve: (a: Answer) => void; reject: (e: Error) => void }>();
   private next = 1;
   private broken: Error | undefined;
+  private closing = false;
 
   constructor() {
     // a small young generation: the census's short-lived strings are collected early instead of growing the heap
@@ -57,7 +58,8 @@ export class AnalysisHelper {
       this.worker.ref();
       this.worker.postMessage({ ...request, id } as HelperRequest);
     }).finally(() => {
-      if (this.pending.size === 0) this.worker.unref();
+      // idle: unref'd, unless it is closing (then it stays ref'd until it exits)
+      if (this.pending.size === 0 && !this.closing) this.worker.unref();
     }) as Promise<Answer>;
   }
 
@@ -74,8 +76,12 @@ export class AnalysisHelper {
     return a.table;
   }
 
-  close(): void {
+  /** Stop the thread; resolves when it has exited. */
+  close(): Promise<void> {
     this.broken ??= new Error("the analysis's helper thread was closed");
-    void this.worker.terminate();
+    // ref'd until it exits: a caller awaiting its exit keeps the process alive that long
+    this.closing = true;
+    this.worker.ref();
+    return this.worker.terminate().then(() => undefined);
   }
 }

@@ -3,16 +3,23 @@
  * per grid shape and reused for every snapshot of a run (no grid is
  * allocated per snapshot): the step engine's kernels on the default threads
  * with the two work grids the energy split, the kinetic split and the
- * granules need (also the scratch of the densest points and halos), and a
+ * granules need (also the scratch of the densest points and halos; with the
+ * energy split measured, only the first half of work grid 1 is ever
+ * touched, so only that half takes memory), and a
  * third grid that ψ is read into, all in the step's shared memory; and the
  * helper thread (analysis-helper.ts), which touches those grids' pages while
  * the first snapshot is read (ψ's from its end, the work grids after) and
- * takes the vortex census beside the main thread.
+ * takes the vortex census beside the main thread. The analysis of a single
+ * snapshot gives all of it back as soon as its numbers are known
+ * (`numbersDone`), before the last figures are drawn.
  */
+import v8 from "node:v8";
+import vm from "node:vm";
 import type { Grid } from "../grid/grid.js";
 import { PooledTransforms } from "../integrators/pooled-transforms.js";
 import { defaultThreads } from "../config/resolve-output.js";
 import { touchRangeOf } from "../fields/page-touch.js";
+import { halfSpaceLength } from "../diagnostics/split-passes.js";
 import { AnalysisHelper } from "./analysis-helper.js";
 import { vortexJobOf, type VortexTable } from "./vortex-table.js";
 
@@ -29,11 +36,12 @@ export class AnalysisTransforms {
   /** The transforms of `grid`'s shape (made when the shape is new). */
   of(grid: Grid): PooledTransforms {
     if (this.current && this.current.shape.every((n, i) => n === grid.shape[i])) return this.current;
-    this.current?.close();
+    void this.current?.close();
     // the worker threads start while the caller goes on (reading the snapshot): the first transform waits for them
     const fft = new PooledTransforms(grid, 3, { threads: defaultThreads(grid.cells), pool: { deferStart: true } });
     this.current = fft;
-    void this.helper(grid)?.touch([touchRangeOf(fft.work(PSI_GRID), true), touchRangeOf(fft.work(0)), touchRangeOf(fft.work(1))]);
+    // of work grid 1 only the half the energy split, the densest points and the halos use: the rest stays untouched
+    void this.helper(grid)?.touch([touchRangeOf(fft.work(PSI_GRID), true), touchRangeOf(fft.work(0)), touchRangeOf(fft.work(1).subarray(0, halfSpaceLength(grid.shape)))]);
     return fft;
   }
 
@@ -58,14 +66,50 @@ export class AnalysisTransforms {
     return this.single ? census.finally(() => this.closeHelper()) : census;
   }
 
-  private closeHelper(): void {
-    this.helperThread?.close();
+  private closeHelper(): Promise<void> {
+    const helper = this.helperThread;
     this.helperThread = undefined;
+    return helper?.close() ?? Promise.resolve();
   }
 
-  close(): void {
-    this.current?.close();
+  /** Stop the threads; resolves when they have exited. */
+  close(): Promise<void> {
+    const current = this.current;
     this.current = undefined;
-    this.closeHelper();
+    return Promise.all([current?.close(), this.closeHelper()]).then(() => undefined);
   }
+
+  /** Called when a snapshot's last pass on the pool's threads is done: one snapshot's analysis stops them now (the grids stay; a later pass would run on this thread), a run's keeps them. */
+  poolDone(): void {
+    if (this.single) void this.current?.close();
+  }
+
+  /**
+   * Called when a snapshot's numbers are known. One snapshot's analysis (single) needs neither the grids nor
+   * the threads any more: they are stopped and, once `lastReader` (what still reads ψ) has settled and the
+   * caller holds no view of the grids, the
+   * memory they share is unmapped by a collection now rather than at the engine's leisure (the process would
+   * otherwise keep the grids to its end, while the last figures are drawn); small grids are left to the engine
+   * (a full collection costs about 15 ms). A run's analysis keeps them.
+   */
+  async numbersDone(lastReader?: Promise<unknown>): Promise<void> {
+    if (!this.single) return;
+    const bytes = 16 * (this.current?.shape.reduce((p, n) => p * n, 1) ?? 0);
+    await Promise.all([this.close(), lastReader]);
+    if (bytes >= COLLECT_BYTES) collectGarbage();
+  }
+}
+
+/** Grids of at least this many bytes (a complex grid of 64³) are unmapped by a collection when given back. */
+const COLLECT_BYTES = 16 * 64 ** 3;
+
+let collector: (() => void) | undefined;
+
+/** A full garbage collection of this thread's heap (the engine's `gc`, exposed once). */
+function collectGarbage(): void {
+  if (!collector) {
+    v8.setFlagsFromString("--expose-gc");
+    collector = vm.runInNewContext("gc") as () => void;
+  }
+  collector();
 }

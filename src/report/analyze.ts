@@ -27,6 +27,7 @@ import { fieldDiagnostics, physicalScales } from "./field-diagnostics.js";
 import { diagnosticFigures, splitFigures, vortexFigure } from "./diagnostic-plots.js";
 import { AnalysisTransforms } from "./analysis-transforms.js";
 import { energyAndKineticSplit } from "../diagnostics/energy-split.js";
+import { granuleStats, type GranuleStats } from "../diagnostics/granules.js";
 import { speciesSummary } from "./species-summary.js";
 
 export { AnalysisTransforms } from "./analysis-transforms.js";
@@ -81,16 +82,22 @@ async function measure(file: string, snap: Snapshot, field: LoadedField, outDir:
   const both = chosen.has("energy-split") ? energyAndKineticSplit(field.grid, field.psi, field.scaleFactor, fft) : undefined;
   const split = withPictures && both ? splitFigures(field, both.split, physicalScales(field), timeCaption(snap)) : undefined;
   if (split) Object.values(split).forEach(later);
-  const { summary, power } = snapshotTables(file, snap, field, outDir, fft, both);
+  // the granules from δ's spectrum while P(k) leaves it in work grid 0 (with ψ's moments and ρ̄ from the split)
+  let granules: GranuleStats | undefined;
+  const inputs = both ? { moments: both.moments, meanDensity: both.meanDensity } : {};
+  const contrast = chosen.has("granules") ? (spectrum: Float64Array) => (granules = granuleStats(field.grid, field.psi, field.scaleFactor, fft, undefined, undefined, { contrastSpectrum: spectrum, ...inputs })) : undefined;
+  const { summary, power } = snapshotTables(file, snap, field, outDir, fft, both, contrast);
+  // the halos, the census and the rest run on this thread and the helper's: the pool's thread is given back
+  transforms.poolDone();
   const powerFigure = withPictures ? later(powerFigureOf(file, snap, field, power)) : undefined;
-  summary["halos"] = haloTables(file, snap, field, outDir, request.halos ?? { definition: "200m" }, tracks, fft.work(0));
+  // the halos' scratch: the first half of work grid 1, as the densest points' (snapshot-tables.ts)
+  summary["halos"] = haloTables(file, snap, field, outDir, request.halos ?? { definition: "200m" }, tracks, fft.work(1));
   const species = speciesSummary(snap, field, outDir);
   if (species) summary["species"] = species;
-  // the tables left δ's spectrum in work grid 1 (the halos and peaks use work grid 0)
   const vortices = vortexJob ? await vortexJob : undefined;
   // its picture is drawn while the granules and the Husimi distribution are measured
   const vortexPicture = withPictures && vortices ? later(vortexFigure(field, vortices.report, physicalScales(field), timeCaption(snap))) : undefined;
-  const diagnostics = fieldDiagnostics(field, chosen, outDir, fft, request.husimiWindowKpc, request.husimiPointsKpc, both?.split, { contrastSpectrum: fft.work(1), ...(both ? { moments: both.moments, meanDensity: both.meanDensity } : {}) }, vortices);
+  const diagnostics = fieldDiagnostics(field, chosen, outDir, fft, request.husimiWindowKpc, request.husimiPointsKpc, both?.split, granules, vortices);
   const started = { ...split, ...(vortexPicture ? { vortices: vortexPicture } : {}) };
   return { summary, diagnostics, ...(powerFigure ? { powerFigure } : {}), splitFigures: started };
 }
@@ -125,12 +132,46 @@ async function analyzeSnapshotFiles(
   try {
     return await analyzeWith(file, outDir, withPictures, request, pictures, own, tracks);
   } finally {
-    if (!transforms) own.close();
+    if (!transforms) await own.close();
   }
+}
+
+/** What a snapshot's numbers leave for the rest of its analysis: no view of ψ or of the transforms' grids. */
+interface SnapshotNumbers {
+  readonly summary: Record<string, unknown>;
+  readonly time: number;
+  readonly caption: string;
+  /** The figures, requested already (with pictures). */
+  readonly figures?: {
+    readonly density: ReturnType<typeof snapshotPictures>;
+    readonly power: Promise<Figure>;
+    readonly diagnostic: ReturnType<typeof diagnosticFigures>;
+  };
 }
 
 /** analyzeSnapshot on the given transforms. */
 async function analyzeWith(file: string, outDir: string, withPictures: boolean, request: DiagnosticRequest, pictures: PictureOptions, transforms: AnalysisTransforms, tracks: RunTracks | undefined): Promise<SnapshotAnalysis> {
+  const { summary, time, caption, figures: drawn } = await snapshotNumbers(file, outDir, withPictures, request, pictures, transforms, tracks);
+  // the density pictures are the last to read ψ: once they are drawn, one snapshot's grids are given back (a run's kept)
+  await transforms.numbersDone(drawn?.density.catch(() => undefined));
+  const figures: Record<string, Figure> = {};
+  const planes: SnapshotAnalysis["planes"] = {};
+  if (drawn) {
+    // drawn together: they share the figure workers
+    const [pics, power, diagnostic] = await Promise.all([drawn.density, drawn.power, drawn.diagnostic]);
+    figures["slice"] = pics.slice;
+    if (pics.projection) figures["projection"] = pics.projection;
+    if (pics.slicePlane) planes.slice = pics.slicePlane;
+    if (pics.projectionPlane) planes.projection = pics.projectionPlane;
+    figures["power"] = power;
+    Object.assign(figures, diagnostic);
+    for (const [name, fig] of Object.entries(figures)) writeFigure(outDir, name, fig);
+  }
+  return { file, dir: outDir, summary, figures, planes, time, caption };
+}
+
+/** Read a snapshot, compute its numbers, write its tables and summary.json, and request its figures. */
+async function snapshotNumbers(file: string, outDir: string, withPictures: boolean, request: DiagnosticRequest, pictures: PictureOptions, transforms: AnalysisTransforms, tracks: RunTracks | undefined): Promise<SnapshotNumbers> {
   // fontconfig answers, the figure workers and the transforms' threads start while the snapshot is read
   if (withPictures) prepareFigures();
   const snap = readSnapshot(file, false, transforms.psiOf(snapshotGrid(readSnapshotMeta(file))));
@@ -146,20 +187,12 @@ async function analyzeWith(file: string, outDir: string, withPictures: boolean, 
   const { summary, diagnostics, powerFigure, splitFigures: split } = await measure(file, snap, field, outDir, request, chosen, withPictures, transforms, tracks);
   Object.assign(summary, diagnostics.summary);
   writeFileAtomic(path.join(outDir, "summary.json"), JSON.stringify(summary, null, 2) + "\n");
-  const figures: Record<string, Figure> = {};
-  const planes: SnapshotAnalysis["planes"] = {};
-  if (density && powerFigure) {
-    // drawn together: they share the figure workers
-    const [pics, power, diagnostic] = await Promise.all([density, powerFigure, diagnosticFigures(field, diagnostics, physicalScales(field), timeCaption(snap), split)]);
-    figures["slice"] = pics.slice;
-    if (pics.projection) figures["projection"] = pics.projection;
-    if (pics.slicePlane) planes.slice = pics.slicePlane;
-    if (pics.projectionPlane) planes.projection = pics.projectionPlane;
-    figures["power"] = power;
-    Object.assign(figures, diagnostic);
-    for (const [name, fig] of Object.entries(figures)) writeFigure(outDir, name, fig);
-  }
-  return { file, dir: outDir, summary, figures, planes, time: snap.meta.time, caption: timeCaption(snap) };
+  const caption = timeCaption(snap);
+  const numbers = { summary, time: snap.meta.time, caption };
+  if (!density || !powerFigure) return numbers;
+  // the diagnostics' figures need the grid, not ψ (a field without it, so that their drawing holds no view of it)
+  const diagnostic = later(diagnosticFigures({ ...field, psi: new Float64Array(0) }, diagnostics, physicalScales(field), caption, split));
+  return { ...numbers, figures: { density, power: powerFigure, diagnostic } };
 }
 
 /** The linear prediction for a cosmological run: its initial-power.csv (beside snapshots/) scaled by D(a)²/D(1)². */
@@ -212,7 +245,7 @@ export async function analyzeRun(runDir: string, outDir: string, options: RunAna
       options.onSnapshot?.(snapshots.length, files.length);
     }
   } finally {
-    transforms.close();
+    await transforms.close();
   }
   if (files.length) tracks.write(outDir, identity);
   if (!pictures) return { snapshots, figures: {}, tracks };

@@ -10,7 +10,7 @@ import type { LoadedField } from "../simulation/from-snapshot.js";
 import type { FieldTransforms } from "../fields/field-transforms.js";
 import { energySplit, type EnergySplit } from "../diagnostics/energy-split.js";
 import { vortexTable, type VortexReport, type VortexTable } from "./vortex-table.js";
-import { granuleStats, type GranuleInputs, type GranuleStats } from "../diagnostics/granules.js";
+import { granuleStats, type GranuleStats } from "../diagnostics/granules.js";
 import { defaultHusimiWindow, husimiImage1D, HusimiSampler, internalPoint, wehrlEntropy } from "../diagnostics/husimi.js";
 import { densestPoints } from "../diagnostics/analysis.js";
 import { M_SUN_KG, PC_M } from "../physics/constants.js";
@@ -48,8 +48,8 @@ export interface FieldDiagnosticsResult {
 
 /**
  * Compute the chosen diagnostics of `field` (the energy split given when measured already) and write their
- * tables into `outDir`; `granuleInputs` are the granules' inputs measured already (a contrast spectrum in a
- * work grid of `fft`), `vortices` the census measured already (on a worker thread: vortex-table.ts).
+ * tables into `outDir`; `granules` and `vortices` are those measured already (the granules from the density
+ * contrast's spectrum that P(k) leaves, the census on a worker thread: vortex-table.ts).
  */
 export function fieldDiagnostics(
   field: LoadedField,
@@ -59,7 +59,7 @@ export function fieldDiagnostics(
   windowKpc?: number,
   pointsKpc?: readonly (readonly number[])[],
   measuredSplit?: EnergySplit,
-  granuleInputs?: GranuleInputs,
+  granules?: GranuleStats,
   vortices?: VortexTable,
 ): FieldDiagnosticsResult {
   const s = physicalScales(field);
@@ -67,8 +67,7 @@ export function fieldDiagnostics(
   const out: { -readonly [K in keyof FieldDiagnosticsResult]: FieldDiagnosticsResult[K] } = { summary };
   if (chosen.has("energy-split")) out.split = writeEnergySplit(field, s, outDir, summary, measuredSplit ?? energySplit(field.grid, field.psi, field.scaleFactor, fft));
   if (chosen.has("vortices")) out.vortices = writeVortices(field, s, outDir, summary, vortices ?? vortexTable(field.grid, field.psi, s.kpc));
-  // a split measured here used the work grids: the contrast spectrum given is gone
-  if (chosen.has("granules")) out.granules = writeGranules(field, s, outDir, summary, fft, chosen.has("energy-split") && !measuredSplit ? undefined : granuleInputs);
+  if (chosen.has("granules")) out.granules = writeGranules(s, outDir, summary, granules ?? granuleStats(field.grid, field.psi, field.scaleFactor, fft));
   if (chosen.has("husimi")) Object.assign(out, writeHusimi(field, s, outDir, summary, windowKpc, pointsKpc));
   return out;
 }
@@ -103,8 +102,7 @@ function writeVortices(field: LoadedField, s: PhysicalScales, outDir: string, su
   return census;
 }
 
-function writeGranules(field: LoadedField, s: PhysicalScales, outDir: string, summary: Record<string, unknown>, fft: FieldTransforms, inputs?: GranuleInputs): GranuleStats {
-  const g = granuleStats(field.grid, field.psi, field.scaleFactor, fft, undefined, undefined, inputs);
+function writeGranules(s: PhysicalScales, outDir: string, summary: Record<string, unknown>, g: GranuleStats): GranuleStats {
   writeFileAtomic(path.join(outDir, "granule-pdf.csv"), csvTable(["density_contrast", "pdf", "exponential", "gamma"], g.pdf.map((b) => [b.x, b.pdf, b.exponential, b.gamma])));
   writeFileAtomic(path.join(outDir, "granule-correlation.csv"), csvTable(["r_kpc", "xi", "random_phase_xi", "cells"], g.correlation.map((c) => [c.r * s.kpc, c.xi, c.predicted, c.cells])));
   summary["granules"] = {

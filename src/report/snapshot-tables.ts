@@ -50,8 +50,11 @@ export interface MeasuredKinetics {
 
 /**
  * Write one snapshot's tables into `outDir` (created), with the kinetic split when it was measured already;
- * returns its summary (for summary.json, written by the caller) and P(k) in kpc^d. The spectrum of the
- * density contrast stays in work grid 1 of `fft` (for the granules).
+ * returns its summary (for summary.json, written by the caller) and P(k) in kpc^d. `withContrast` is handed
+ * the spectrum of the density contrast in work grid 0 of `fft` right after P(k), before the grids are
+ * reused (the granules' input); the densest points take the first half of work grid 1 as their scratch, the
+ * part the energy split uses (energy-split.ts), so that a grid's other half is never touched when the split
+ * was measured.
  */
 export function snapshotTables(
   file: string,
@@ -60,6 +63,7 @@ export function snapshotTables(
   outDir: string,
   fft: FieldTransforms,
   measured?: MeasuredKinetics,
+  withContrast?: (spectrum: Float64Array) => void,
 ): { summary: Record<string, unknown>; power: { k: number; P: number }[] } {
   const { grid, units, psi } = field;
   const a = field.scaleFactor;
@@ -70,16 +74,17 @@ export function snapshotTables(
   fs.mkdirSync(outDir, { recursive: true });
 
   const mean = measured?.meanDensity ?? meanDensity(psi);
-  const power = densityPowerSpectrum(grid, psi, fft, 1, mean);
+  const power = densityPowerSpectrum(grid, psi, fft, 0, mean);
   writeFileAtomic(path.join(outDir, "power.csv"), powerTable(power, kpcPerCode, grid.dims, snap.meta.background.kind === "lcdm" ? snap.meta.background.hubbleKmSMpc / 100 : undefined));
   const pdf = densityPdf(psi, 40, runnerOf(fft, psi));
   writeFileAtomic(path.join(outDir, "pdf.csv"), csv(["log10_density_contrast", "volume_fraction", "mass_fraction"], pdf.map((p) => [p.log10Contrast, p.volumeFraction, p.massFraction])));
 
   // K from ψ's spectrum and the periodic W from δ's, both at hand: no transform of their own
-  const known = measured ? { kinetic: kineticFromGradient(grid, measured.moments.k2, a), periodicPotential: periodicPotentialFromContrast(grid, fft.work(1), mean, a) } : undefined;
+  const known = measured ? { kinetic: kineticFromGradient(grid, measured.moments.k2, a), periodicPotential: periodicPotentialFromContrast(grid, fft.work(0), mean, a) } : undefined;
+  withContrast?.(fft.work(0));
   const stats = fieldStats(field, fft, known);
   const split = measured?.kinetic ?? kineticSplit(grid, psi, a, fft);
-  const peaks = densestPoints(grid, psi, 5, Math.max(4, grid.cells[0]! / 16), fft.work(0));
+  const peaks = densestPoints(grid, psi, 5, Math.max(4, grid.cells[0]! / 16), fft.work(1));
   const profileRows: (number | string)[][] = [];
   const peakRows = peaks.map((p, i) => {
     const rMax = Math.min(...grid.lengths) / 4;

@@ -4,6 +4,15 @@
 import { describe, expect, it } from "vitest";
 import { densityPdf } from "../../src/diagnostics/analysis.js";
 import { runBlockTask, type BlockRunner } from "../../src/diagnostics/block-tasks.js";
+import { binEdges, runPdfTask } from "../../src/diagnostics/density-pdf.js";
+
+/** The double just below x > 0 (its bits less one). */
+function below(x: number): number {
+  const v = new DataView(new ArrayBuffer(8));
+  v.setFloat64(0, x);
+  v.setBigUint64(0, v.getBigUint64(0) - 1n);
+  return v.getFloat64(0);
+}
 
 /** ψ of `cells` cells with ρ spread over four decades (a few cells empty), from a fixed seed. */
 function field(cells: number): Float64Array {
@@ -53,5 +62,30 @@ describe("the density PDF", () => {
       for (let u = blocks - 1; u >= 0; u--) runBlockTask(task, u, u + 1);
     };
     expect(densityPdf(psi, 40, backwards)).toStrictEqual(pdf);
+  });
+
+  it("finds each bin's lower edge where floor((log₁₀ r − lo)/width) steps, to the last double (the formula evaluated here with Math.log10, independently)", () => {
+    for (const [lo, width, bins] of [[-3.7, 0.15, 40], [-0.01, 0.0005, 40], [-12, 0.7, 30], [0.2, 1e-7, 8]] as const) {
+      const bin = (r: number) => Math.min(bins - 1, Math.max(0, Math.floor((Math.log10(r) - lo) / width)));
+      const edges = binEdges(lo, width, bins);
+      for (let j = 1; j < bins; j++) {
+        expect(bin(edges[j]!)).toBeGreaterThanOrEqual(j);
+        expect(bin(below(edges[j]!))).toBeLessThan(j);
+      }
+    }
+  });
+
+  it("bins cells on and next to the edges as the formula does (evaluated here with Math.log10)", () => {
+    const [lo, width, bins] = [-2.3, 0.11, 40];
+    const edges = binEdges(lo, width, bins);
+    const bin = (r: number) => Math.min(bins - 1, Math.max(0, Math.floor((Math.log10(Math.max(r, 1e-30)) - lo) / width)));
+    for (let j = 1; j < bins; j++) {
+      const re = Math.sqrt(edges[j]!);
+      for (const x of [re, below(re), below(below(re)), re * (1 + 2e-16), re * (1 + 1e-12), re * (1 - 1e-12)]) {
+        const sums = new Float64Array(2 * bins);
+        runPdfTask({ kind: "pdf-histogram", at: { rows: 1, blocks: 1, n2: 1 }, psi: Float64Array.of(x, 0), sums, mean: 1, lo, width, bins, edges }, 0, 1);
+        expect(sums.findIndex((v) => v > 0)).toBe(bin(x * x));
+      }
+    }
   });
 });

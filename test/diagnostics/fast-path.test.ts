@@ -72,6 +72,16 @@ describe.each(cases)("$cells.length-D grid $cells", ({ cells, a }) => {
       expect(worst(w, psi, Math.max(...psi.map(Math.abs)))).toBeLessThan(1e-12);
     }
     expect(() => fast.forward(Float64Array.from(psi))).toThrow(/work grids/);
+    // with its threads stopped, a transform and a block pass run on this thread: the same bits (fft.js's to 1e-12)
+    w.set(psi);
+    fast.forward(w);
+    const pooled = Float64Array.from(w);
+    const pdf = densityPdf(psi, 40, runnerOf(fast, w));
+    void fast.close();
+    w.set(psi);
+    fast.forward(w);
+    expect(w).toStrictEqual(pooled);
+    expect(densityPdf(psi, 40, runnerOf(fast, w))).toStrictEqual(pdf);
   });
 
   it.each(variants)("$backend backend, $threads thread(s): energy split, kinetic split, P(k), granules and field energies agree to 1e-12 (on the two work grids analyze has)", ({ backend, threads }) => {
