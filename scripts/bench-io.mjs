@@ -23,7 +23,7 @@ function pythonWithH5py() {
 
 /** Reads into new memory timed per precision (each after a write of the file), and reads into reused memory (a few ms each: more of them). */
 const FRESH = 3;
-const REUSED = 9;
+const REUSED = 30;
 
 /**
  * h5py reading psi_re and psi_im of `file` into NumPy arrays (the components as stored: float64 or float32) in one
@@ -78,9 +78,11 @@ export async function printIoRows(n = 128) {
   console.log("(psibox: readSnapshot's `into`; h5py: read_direct). CPU: all threads of the process. psibox reads on two threads (its reading");
   console.log("thread, which the first large read of a process starts, is started before the timed reads).");
   const med = (a) => a.slice().sort((x, y) => x - y)[a.length >> 1];
+  // a read into reused memory takes a few ms: two decimals
+  const ms = (t) => t.toFixed(t < 10 ? 2 : 0);
   const row = (what, ours, theirs) => {
-    const them = theirs === undefined ? "" : `; h5py ${theirs.wall.toFixed(0)} ms, CPU ${theirs.cpu.toFixed(0)} ms: psibox takes ${(med(ours.wall) / theirs.wall).toFixed(2)}× h5py's time (CPU ${(med(ours.cpu) / theirs.cpu).toFixed(2)}×)`;
-    return `  read ${what}: ${med(ours.wall).toFixed(0)} ms (${(mb / (med(ours.wall) / 1000)).toFixed(0)} MB/s of field), CPU ${med(ours.cpu).toFixed(0)} ms${them}`;
+    const them = theirs === undefined ? "" : `; h5py ${ms(theirs.wall)} ms, CPU ${ms(theirs.cpu)} ms: psibox takes ${(med(ours.wall) / theirs.wall).toFixed(2)}× h5py's time (CPU ${(med(ours.cpu) / theirs.cpu).toFixed(2)}×)`;
+    return `  read ${what}: ${ms(med(ours.wall))} ms (${(mb / (med(ours.wall) / 1000)).toFixed(0)} MB/s of field), CPU ${ms(med(ours.cpu))} ms${them}`;
   };
   try {
     for (const precision of ["float64", "float32"]) {
