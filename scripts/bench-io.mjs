@@ -23,14 +23,15 @@ function pythonWithH5py() {
 
 /** Reads into new memory timed per precision (each after a write of the file), and reads into reused memory (a few ms each: more of them). */
 const FRESH = 3;
-const REUSED = 9;
+const REUSED = 30;
 
 /**
  * h5py reading psi_re and psi_im of `file` into NumPy arrays (the components as stored: float64 or float32) in one
- * process with the page cache warm as for psibox, FRESH times into new arrays (f[name][...]) and REUSED times into the
- * same two arrays again (read_direct): the median wall and CPU ms of each (the file's opening included).
+ * process with the page cache warm as for psibox, `fresh` times into new arrays (f[name][...]) and `reused` times into
+ * the same two arrays again (read_direct, after one read that makes them): the wall and CPU ms of each read (the
+ * file's opening included).
  */
-function h5pyRead(python, file) {
+function h5pyRead(python, file, fresh, reused) {
   const script = [
     "import sys, time, json, h5py, numpy as np",
     "def timed(read, times):",
@@ -39,10 +40,10 @@ function h5pyRead(python, file) {
     "        t0, c0 = time.perf_counter(), time.process_time()",
     "        with h5py.File(sys.argv[1], 'r') as f: read(f)",
     "        ts.append(((time.perf_counter() - t0) * 1000, (time.process_time() - c0) * 1000))",
-    "    return {'wall': sorted(t[0] for t in ts)[times // 2], 'cpu': sorted(t[1] for t in ts)[times // 2]}",
-    `fresh = timed(lambda f: (f['psi_re'][...], f['psi_im'][...]), ${FRESH})`,
+    "    return {'wall': [t[0] for t in ts], 'cpu': [t[1] for t in ts]}",
+    `fresh = timed(lambda f: (f['psi_re'][...], f['psi_im'][...]), ${fresh})`,
     "with h5py.File(sys.argv[1], 'r') as f: re, im = f['psi_re'][...], f['psi_im'][...]",
-    `reused = timed(lambda f: (f['psi_re'].read_direct(re), f['psi_im'].read_direct(im)), ${REUSED})`,
+    `reused = timed(lambda f: (f['psi_re'].read_direct(re), f['psi_im'].read_direct(im)), ${reused})`,
     "print(json.dumps({'fresh': fresh, 'reused': reused}))",
   ].join("\n");
   const r = spawnSync(python, ["-c", script, file], { encoding: "utf8" });
@@ -76,11 +77,14 @@ export async function printIoRows(n = 128) {
   console.log(`\nsnapshot files of ${n}³ (medians of ${FRESH} reads into new memory and ${REUSED} into reused memory; load average ${load}). psibox's read ends with ψ as psibox uses it (one interleaved float64 array, float32 widened),`);
   console.log(`h5py's (${python ?? "no python3 with h5py here: no comparison"}) with psi_re and psi_im as two NumPy arrays as stored; into new memory, and into the arrays of an earlier read`);
   console.log("(psibox: readSnapshot's `into`; h5py: read_direct). CPU: all threads of the process. psibox reads on two threads (its reading");
-  console.log("thread, which the first large read of a process starts, is started before the timed reads).");
+  console.log("thread, which the first large read of a process starts, is started before the timed reads). h5py's reads into reused memory");
+  console.log(`are taken in turn with psibox's (${FRESH} processes of ${REUSED / FRESH}, each after psibox's ${REUSED / FRESH}), its reads into new memory in one process after them.`);
   const med = (a) => a.slice().sort((x, y) => x - y)[a.length >> 1];
+  // a read into reused memory takes a few ms: two decimals
+  const ms = (t) => t.toFixed(t < 10 ? 2 : 0);
   const row = (what, ours, theirs) => {
-    const them = theirs === undefined ? "" : `; h5py ${theirs.wall.toFixed(0)} ms, CPU ${theirs.cpu.toFixed(0)} ms: psibox takes ${(med(ours.wall) / theirs.wall).toFixed(2)}× h5py's time (CPU ${(med(ours.cpu) / theirs.cpu).toFixed(2)}×)`;
-    return `  read ${what}: ${med(ours.wall).toFixed(0)} ms (${(mb / (med(ours.wall) / 1000)).toFixed(0)} MB/s of field), CPU ${med(ours.cpu).toFixed(0)} ms${them}`;
+    const them = theirs === undefined ? "" : `; h5py ${ms(med(theirs.wall))} ms, CPU ${ms(med(theirs.cpu))} ms: psibox takes ${(med(ours.wall) / med(theirs.wall)).toFixed(2)}× h5py's time (CPU ${(med(ours.cpu) / med(theirs.cpu)).toFixed(2)}×)`;
+    return `  read ${what}: ${ms(med(ours.wall))} ms (${(mb / (med(ours.wall) / 1000)).toFixed(0)} MB/s of field), CPU ${ms(med(ours.cpu))} ms${them}`;
   };
   try {
     for (const precision of ["float64", "float32"]) {
@@ -88,6 +92,8 @@ export async function printIoRows(n = 128) {
       const write = [];
       const fresh = { wall: [], cpu: [] };
       const reused = { wall: [], cpu: [] };
+      // h5py's reads into reused memory in turn with psibox's (the load of a shared machine changes within a run)
+      const theirs = python === undefined ? undefined : { wall: [], cpu: [] };
       let into;
       for (let r = 0; r < FRESH; r++) {
         write.push(timed(() => writeSnapshot(file, { meta, psi }, precision)).wall);
@@ -99,12 +105,15 @@ export async function printIoRows(n = 128) {
           reused.wall.push(again.wall);
           reused.cpu.push(again.cpu);
         }
+        const their = theirs && h5pyRead(python, file, 0, REUSED / FRESH);
+        theirs?.wall.push(...(their?.reused.wall ?? []));
+        theirs?.cpu.push(...(their?.reused.cpu ?? []));
       }
       const size = fs.statSync(file).size / 1e6;
-      const h5py = python === undefined ? undefined : h5pyRead(python, file);
+      const h5py = python === undefined ? undefined : h5pyRead(python, file, FRESH, 0);
       console.log(`${n}³ ${precision}: ${size.toFixed(0)} MB file; write ${(mb / (med(write) / 1000)).toFixed(0)} MB/s of field (with fsync)`);
       console.log(row("into new memory", fresh, h5py?.fresh));
-      console.log(row("into reused memory", reused, h5py?.reused));
+      console.log(row("into reused memory", reused, theirs?.wall.length ? theirs : undefined));
     }
   } finally {
     fs.rmSync(dir, { recursive: true, force: true });

@@ -40,6 +40,7 @@ export function bytesAt(fd: number, at: number, length: number): Buffer {
   }
   const b = Buffer.alloc(length);
   if (fs.readSync(fd, b, 0, length, at) !== length) throw new RangeError(`short read at ${at}`);
+  if (cache?.fd === fd) cache.direct.push({ at, length, data: b });
   return b;
 }
 
@@ -48,7 +49,14 @@ export function bytesAt(fd: number, at: number, length: number): Buffer {
  * snapshot's metadata takes dozens of small reads (a fractal heap's root entries again and again) from a few blocks.
  */
 const BLOCK_BYTES = 4096;
-let cache: { readonly fd: number; readonly blocks: Map<number, Buffer> } | undefined;
+let cache: { readonly fd: number; readonly blocks: Map<number, Buffer>; readonly direct: ReadRange[] } | undefined;
+
+/** A read of a file's structures: `length` bytes asked for at byte `at`, and the bytes it gave. */
+export interface ReadRange {
+  readonly at: number;
+  readonly length: number;
+  readonly data: Buffer;
+}
 
 /** The block of the file at `at` (a multiple of BLOCK_BYTES), shorter at the file's end. */
 function cachedBlock(fd: number, at: number): Buffer {
@@ -63,10 +71,17 @@ function cachedBlock(fd: number, at: number): Buffer {
 
 /** `read()` with small reads of `fd` served from blocks read once (the file must not change meanwhile). */
 export function withBlocks<T>(fd: number, read: () => T): T {
+  return withReads(fd, read).value;
+}
+
+/** What `read()` gives (as withBlocks) and every read of the file it made: what it depends on of the file. */
+export function withReads<T>(fd: number, read: () => T): { value: T; reads: ReadRange[] } {
   const outer = cache;
-  cache = { fd, blocks: new Map() };
+  const mine = { fd, blocks: new Map<number, Buffer>(), direct: [] as ReadRange[] };
+  cache = mine;
   try {
-    return read();
+    const value = read();
+    return { value, reads: [...[...mine.blocks].map(([at, data]) => ({ at, length: BLOCK_BYTES, data })), ...mine.direct] };
   } finally {
     cache = outer;
   }
