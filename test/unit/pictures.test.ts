@@ -237,6 +237,35 @@ describe("PNG files", () => {
     }
   });
 
+  it("written band by band decode in pngjs (an independent PNG reader) to the pixels written, and deflate to the same bytes as zlib's one-shot deflate of all the scanlines", async () => {
+    const { bandedPng } = await import("../../src/report/png.js");
+    const { PNG } = await import("pngjs");
+    const zlib = await import("node:zlib");
+    // 700 RGBA pixels a row: about 93 rows a band, so 250 rows make three bands, the last one short
+    for (const channels of [3, 4] as const) {
+      const [w, h] = [700, 250];
+      const px = Uint8Array.from({ length: channels * w * h }, (_, i) => ((i >> 6) * 7919 + (i % 17)) & 255);
+      const line = channels * w;
+      const scanlines = new Uint8Array((line + 1) * h);
+      for (let y = 0; y < h; y++) scanlines.set(px.subarray(line * y, line * (y + 1)), (line + 1) * y + 1);
+      const bands: number[] = [];
+      const png = await bandedPng(w, h, channels, 2, (out, y, rows) => {
+        bands.push(rows);
+        out.set(scanlines.subarray((line + 1) * y, (line + 1) * (y + rows)));
+      });
+      expect(bands.length).toBeGreaterThan(2);
+      expect(bands.reduce((a, b) => a + b)).toBe(h);
+      const back = PNG.sync.read(png);
+      expect([back.width, back.height]).toEqual([w, h]);
+      const rgba = Uint8Array.from({ length: 4 * w * h }, (_, i) => (i % 4 === 3 && channels === 3 ? 255 : px[channels * (i >> 2) + (i % 4)]!));
+      expect(Buffer.compare(Buffer.from(back.data), Buffer.from(rgba))).toBe(0);
+      // the IDAT chunk's data (after signature 8, IHDR 25, length and type 8) is zlib's deflate of the whole scanlines
+      const idat = zlib.deflateSync(scanlines, { level: 2 });
+      expect(png.readUInt32BE(33)).toBe(idat.length);
+      expect(Buffer.compare(png.subarray(41, 41 + idat.length), idat)).toBe(0);
+    }
+  });
+
   it("of a density plane show its cells as blocks of the zoom, the top row at the largest vertical coordinate", async () => {
     const { planePng } = await import("../../src/report/field-image.js");
     const { colourTable } = await import("../../src/report/colormaps.js");
