@@ -84,6 +84,6 @@ export async function drawFigure(Resvg: ResvgClass, job: FigureJob, fonts: strin
   const px = image.pixels;
   const png = await bandedPng(width, height, 4, FIGURE_LEVEL, figureScanlines(px, width, raster ? underlay(raster, origin, job.scale) : undefined));
   if (!raster) return { svg, png, width, height };
-  const embedded = `data:image/png;base64,${blockPng(raster.colours, raster.nx, raster.ny, raster.zoom).toString("base64")}`;
+  const embedded = `data:image/png;base64,${(await blockPng(raster.colours, raster.nx, raster.ny, raster.zoom)).toString("base64")}`;
   return { svg: svg.replace(RASTER_MARKER, embedded), png, width, height };
 }

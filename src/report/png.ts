@@ -122,29 +122,26 @@ export async function bandedPng(width: number, height: number, channels: 3 | 4, 
   return assemble(Buffer.concat(parts), width, height, channels);
 }
 
-let blocks = new Uint8Array(0);
-
 /**
  * The cells as a PNG of zoom × zoom pixel blocks. Its scanlines are Up-filtered as `encodePng` filters
- * the enlarged pixels (the same file, byte for byte), written here without enlarging first: a block's
- * first row holds its cells minus the cells above, its other rows are zeros. The scanlines go in a buffer
- * reused from call to call (fresh memory costs a page fault per page; memory touched already does not).
+ * the enlarged pixels (the same file, byte for byte), written here band by band without enlarging first:
+ * a block's first row holds its cells minus the cells above, its other rows are zeros.
  */
-export function blockPng(colours: Uint8Array, nx: number, ny: number, zoom: number): Buffer {
+export function blockPng(colours: Uint8Array, nx: number, ny: number, zoom: number): Promise<Buffer> {
   const line = 3 * nx * zoom;
-  const size = (line + 1) * ny * zoom;
-  if (blocks.length < size) blocks = new Uint8Array(size);
-  const filtered = blocks.subarray(0, size);
-  filtered.fill(0);
-  for (let y = 0; y < ny; y++) {
-    const first = (line + 1) * y * zoom;
-    for (let r = 0; r < zoom; r++) filtered[first + r * (line + 1)] = 2;
-    for (let x = 0; x < nx; x++)
-      for (let c = 0; c < 3; c++) {
-        const i = 3 * (y * nx + x) + c;
-        const up = (colours[i]! - (y > 0 ? colours[i - 3 * nx]! : 0)) & 255;
-        for (let o = first + 1 + 3 * x * zoom + c, end = o + 3 * zoom; o < end; o += 3) filtered[o] = up;
-      }
-  }
-  return pngFile(filtered, nx * zoom, ny * zoom, 3);
+  return bandedPng(nx * zoom, ny * zoom, 3, zlib.constants.Z_DEFAULT_COMPRESSION, (out, y0, rows) => {
+    out.fill(0);
+    for (let row = y0; row < y0 + rows; row++) {
+      const o = (line + 1) * (row - y0);
+      out[o] = 2;
+      if (row % zoom !== 0) continue;
+      const y = row / zoom;
+      for (let x = 0; x < nx; x++)
+        for (let c = 0; c < 3; c++) {
+          const i = 3 * (y * nx + x) + c;
+          const up = (colours[i]! - (y > 0 ? colours[i - 3 * nx]! : 0)) & 255;
+          for (let p = o + 1 + 3 * x * zoom + c, end = p + 3 * zoom; p < end; p += 3) out[p] = up;
+        }
+    }
+  });
 }

@@ -281,6 +281,22 @@ describe("PNG files", () => {
       for (let col = 0; col < 12; col++) expect(at(col, row)).toEqual(expected(plane.values[(1 - Math.floor(row / 4)) * 3 + Math.floor(col / 4)]!));
   });
 
+  it("of a raster of many bands decode in pngjs (an independent PNG reader) to zoom × zoom blocks of its cells, band edges inside blocks", async () => {
+    const { blockPng } = await import("../../src/report/png.js");
+    const { PNG } = await import("pngjs");
+    // 128 × 96 cells at zoom 5: 640-pixel rows, about 136 rows a band (not a multiple of 5)
+    const [nx, ny, zoom] = [128, 96, 5];
+    const colours = Uint8Array.from({ length: 3 * nx * ny }, (_, i) => (i * 2654435761) >>> 24);
+    const png = PNG.sync.read(await blockPng(colours, nx, ny, zoom));
+    expect([png.width, png.height]).toEqual([nx * zoom, ny * zoom]);
+    for (let row = 0; row < ny * zoom; row++)
+      for (let col = 0; col < nx * zoom; col++) {
+        const cell = 3 * (Math.floor(row / zoom) * nx + Math.floor(col / zoom));
+        const o = 4 * (row * nx * zoom + col);
+        if (png.data[o] !== colours[cell] || png.data[o + 1] !== colours[cell + 1] || png.data[o + 2] !== colours[cell + 2]) throw new Error(`pixel (${col}, ${row}) differs`);
+      }
+  });
+
   it("of figures come from the workers with the pixels resvg draws on this thread (decoded by pngjs)", async () => {
     const { Resvg } = await import("@resvg/resvg-js");
     const { FONT, PNG_SCALE, figureFontFiles, rasterise } = await import("../../src/report/render.js");
@@ -316,7 +332,7 @@ describe("PNG files", () => {
     // pixels a cell, from an embedded raster of 24 × 24 pixel blocks (zoom ceil(3·80/10) = 24)
     const plane = { nx: 12, ny: 10, values: Float64Array.from({ length: 120 }, (_, i) => (i === 40 ? NaN : ((i * 37) % 119) / 118)), x0: 0, y0: 0, width: 12, height: 10 };
     const fig = await fieldFigure(plane, { xTitle: "x", yTitle: "y", legend: "v", title: "cells", range: [0, 1], colourMap: "viridis", size: 90 });
-    expect(fig.svg).toContain(`data:image/png;base64,${planePng(plane, 0, 1, "viridis", 24).toString("base64")}`);
+    expect(fig.svg).toContain(`data:image/png;base64,${(await planePng(plane, 0, 1, "viridis", 24)).toString("base64")}`);
     expect(fig.svg).toContain('width="90" height="80" preserveAspectRatio="none"');
     const ours = PNG.sync.read(fig.png);
     const theirs = new Resvg(fig.svg, { fitTo: { mode: "zoom", value: PNG_SCALE }, font: { loadSystemFonts: false, fontFiles: figureFontFiles()!, defaultFontFamily: FONT, sansSerifFamily: FONT }, background: "white" }).render();
