@@ -53,7 +53,7 @@ export function cellColours(plane: Plane, lo: number, hi: number, map: ColourMap
 }
 
 /** The raster as the SVG embeds it: each cell a block of `zoom` × `zoom` pixels (nearest neighbour), top row = largest vertical coordinate. */
-export function planePng(plane: Plane, lo: number, hi: number, map: ColourMap, zoom = 1): Buffer {
+export function planePng(plane: Plane, lo: number, hi: number, map: ColourMap, zoom = 1): Promise<Buffer> {
   return blockPng(cellColours(plane, lo, hi, map), plane.nx, plane.ny, zoom);
 }
 

@@ -12,15 +12,15 @@
  * in (the SVG asks for pixelated scaling; resvg blended a pixel between
  * cells; figure-pixels.ts). The SVG file gets the enlarged raster as an
  * embedded PNG in the placeholder's place. Every figure's PNG is encoded
- * here at a fast zlib level (resvg's own encoder took several times as
- * long for files of about the same size).
+ * here, band by band, at a fast zlib level (resvg's own encoder took
+ * several times as long for files of about the same size).
  */
 import type { ResvgRenderOptions } from "@resvg/resvg-js";
 import type * as vega from "vega";
 import type { TopLevelSpec } from "vega-lite";
-import { blockPng, FIGURE_LEVEL, pngFile } from "./png.js";
+import { bandedPng, blockPng, FIGURE_LEVEL } from "./png.js";
 import { rasterOptions } from "./figure-font.js";
-import { layOver, scanlines, underlay } from "./figure-pixels.js";
+import { figureScanlines, underlay } from "./figure-pixels.js";
 import { chartSvg, type ChartSpec } from "./chart/chart.js";
 
 /** The placeholder address of a plane picture's image (a data address that Vega keeps as it is). */
@@ -82,9 +82,8 @@ export async function drawFigure(Resvg: ResvgClass, job: FigureJob, fonts: strin
   const { width, height } = image;
   // a copy of resvg's pixels at each read: changed in place here
   const px = image.pixels;
-  layOver(px, width, height, raster ? underlay(raster, origin, job.scale) : undefined);
-  const png = pngFile(scanlines(px, width, height), width, height, 4, FIGURE_LEVEL);
+  const png = await bandedPng(width, height, 4, FIGURE_LEVEL, figureScanlines(px, width, raster ? underlay(raster, origin, job.scale) : undefined));
   if (!raster) return { svg, png, width, height };
-  const embedded = `data:image/png;base64,${blockPng(raster.colours, raster.nx, raster.ny, raster.zoom).toString("base64")}`;
+  const embedded = `data:image/png;base64,${(await blockPng(raster.colours, raster.nx, raster.ny, raster.zoom)).toString("base64")}`;
   return { svg: svg.replace(RASTER_MARKER, embedded), png, width, height };
 }

@@ -4,12 +4,14 @@
  * over its cells (source-over: colour + (1 − alpha)·what is under it),
  * every pixel ending opaque; then the rows copied behind their filter bytes
  * (0, none: at a fast zlib level, filtering a figure's large flat areas
- * gains little) into a buffer reused from figure to figure (fresh memory
- * costs a page fault per page; memory touched already does not). Pixels
- * are read and written whole, as 32-bit words (R in the lowest byte: the
- * platform's byte order, checked once), where most of them are copied or
- * left as they are.
+ * gains little). Both are done a band of rows at a time, as the PNG
+ * encoder asks for its next band (png.ts), so the band is still in the
+ * cache when it is copied and a figure's whole scanlines are never held.
+ * Pixels are read and written whole, as 32-bit words (R in the lowest
+ * byte: the platform's byte order, checked once), where most of them are
+ * copied or left as they are.
  */
+import type { ScanlineWriter } from "./png.js";
 
 /** A plane picture's cells in the pixels: the rectangle, and for each of its pixel columns and rows the index of its cell. */
 export interface Underlay {
@@ -75,36 +77,29 @@ function cellWords(colours: Uint8Array): Uint32Array {
   return out;
 }
 
-/** Lay `width` × `height` premultiplied RGBA pixels, in place, over white and inside the underlay's rectangle over its cells; every pixel ends opaque. */
-export function layOver(px: Uint8Array, width: number, height: number, under?: Underlay): void {
+/** A figure's PNG scanlines from resvg's premultiplied RGBA pixels `px`, band by band: each band's rows laid, in place, over white and inside the underlay's rectangle over its cells (every pixel ends opaque), then written behind filter byte 0. */
+export function figureScanlines(px: Uint8Array, width: number, under?: Underlay): ScanlineWriter {
   if (!LITTLE_ENDIAN || px.byteOffset % 4 !== 0) throw new Error("figure pixels must be 32-bit aligned words on a little-endian machine");
-  const p = new Uint32Array(px.buffer, px.byteOffset, width * height);
+  const p = new Uint32Array(px.buffer, px.byteOffset, px.length >> 2);
   const cells = under ? cellWords(under.colours) : new Uint32Array(0);
-  for (let y = 0; y < height; y++) {
-    const r = under ? y - under.y0 : -1;
-    if (!under || r < 0 || r >= under.rows.length) {
-      rowOverWhite(p, width * y, width * (y + 1));
-      continue;
+  const line = 4 * width;
+  return (out, y0, rows) => {
+    for (let y = y0; y < y0 + rows; y++) {
+      layOverRow(p, width, y, under, cells);
+      const o = (line + 1) * (y - y0);
+      out[o] = 0;
+      out.set(px.subarray(line * y, line * (y + 1)), o + 1);
     }
-    const x0 = Math.max(0, Math.min(width, under.x0));
-    const x1 = Math.max(x0, Math.min(width, under.x0 + under.columns.length));
-    rowOverWhite(p, width * y, width * y + x0);
-    rowOverCells(p, width * y + under.x0, under.columns, x0 - under.x0, x1 - under.x0, cells, under.rows[r]!);
-    rowOverWhite(p, width * y + x1, width * (y + 1));
-  }
+  };
 }
 
-let scratch = new Uint8Array(0);
-
-/** The PNG's scanlines of RGBA pixels (filter 0), valid until the next call. */
-export function scanlines(px: Uint8Array, width: number, height: number): Uint8Array {
-  const line = 4 * width;
-  const size = (line + 1) * height;
-  if (scratch.length < size) scratch = new Uint8Array(size);
-  const out = scratch.subarray(0, size);
-  for (let y = 0; y < height; y++) {
-    out[(line + 1) * y] = 0;
-    out.set(px.subarray(line * y, line * (y + 1)), (line + 1) * y + 1);
-  }
-  return out;
+/** Row y of the pixel words over white and inside the underlay's rectangle over its cells (`cells`: each cell's pixel word). */
+function layOverRow(p: Uint32Array, width: number, y: number, under: Underlay | undefined, cells: Uint32Array): void {
+  const r = under ? y - under.y0 : -1;
+  if (!under || r < 0 || r >= under.rows.length) return rowOverWhite(p, width * y, width * (y + 1));
+  const x0 = Math.max(0, Math.min(width, under.x0));
+  const x1 = Math.max(x0, Math.min(width, under.x0 + under.columns.length));
+  rowOverWhite(p, width * y, width * y + x0);
+  rowOverCells(p, width * y + under.x0, under.columns, x0 - under.x0, x1 - under.x0, cells, under.rows[r]!);
+  rowOverWhite(p, width * y + x1, width * (y + 1));
 }

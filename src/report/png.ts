@@ -4,8 +4,14 @@
  * embed (a density plane enlarged to whole pixel blocks, a colour bar),
  * their scanlines filtered by "Up" (each byte minus the one above it, so
  * the repeated rows of an enlarged raster become runs of zeros), and the
- * figures themselves from scanlines laid out by the caller (figure-draw.ts).
+ * figures themselves band by band (`bandedPng`): the caller writes a band
+ * of scanlines at a time into one of two buffers of about 256 kB, and
+ * zlib's stream deflates it on libuv's thread pool while the next band is
+ * written, so a figure's whole scanlines (megabytes) are never held. The
+ * stream keeps its window across the bands: the file is the same, byte for
+ * byte, as deflating all the scanlines at once.
  */
+import { once } from "node:events";
 import zlib from "node:zlib";
 
 /** zlib's level for the figures' PNGs: a third of the default level's time, files about a sixth larger. */
@@ -86,29 +92,56 @@ export function pngFile(filtered: Uint8Array, width: number, height: number, cha
   return assemble(zlib.deflateSync(filtered, level === undefined ? {} : { level }), width, height, channels);
 }
 
-let blocks = new Uint8Array(0);
+/** Writes the filtered scanlines of `rows` rows from row `y` into `out` (each its filter byte, then the row's bytes). */
+export type ScanlineWriter = (out: Uint8Array, y: number, rows: number) => void;
+
+/** Bytes of scanlines in a band (whole rows; at least one row). */
+const BAND_BYTES = 1 << 18;
+
+/** A PNG of `width` × `height` 8-bit pixels (RGB with 3 channels, RGBA with 4), its scanlines written band by band by `write` and deflated at zlib `level` as they come. */
+export async function bandedPng(width: number, height: number, channels: 3 | 4, level: number, write: ScanlineWriter): Promise<Buffer> {
+  const line = channels * width + 1;
+  const rows = Math.max(1, Math.floor(BAND_BYTES / line));
+  const deflate = zlib.createDeflate({ level });
+  const parts: Buffer[] = [];
+  deflate.on("data", (b: Buffer) => parts.push(b));
+  const done = once(deflate, "end");
+  done.catch(() => undefined); // awaited below: a failure is thrown there
+  // two bands: one written here while zlib deflates the other; a band is written again once zlib has read it
+  const bands = [new Uint8Array(rows * line), new Uint8Array(rows * line)];
+  const read: Promise<unknown>[] = [Promise.resolve(), Promise.resolve()];
+  for (let y = 0, k = 0; y < height; y += rows, k ^= 1) {
+    await read[k];
+    const n = Math.min(rows, height - y);
+    const band = bands[k]!.subarray(0, n * line);
+    write(band, y, n);
+    read[k] = new Promise((settled) => deflate.write(band, settled));
+  }
+  deflate.end();
+  await done;
+  return assemble(Buffer.concat(parts), width, height, channels);
+}
 
 /**
  * The cells as a PNG of zoom × zoom pixel blocks. Its scanlines are Up-filtered as `encodePng` filters
- * the enlarged pixels (the same file, byte for byte), written here without enlarging first: a block's
- * first row holds its cells minus the cells above, its other rows are zeros. The scanlines go in a buffer
- * reused from call to call (fresh memory costs a page fault per page; memory touched already does not).
+ * the enlarged pixels (the same file, byte for byte), written here band by band without enlarging first:
+ * a block's first row holds its cells minus the cells above, its other rows are zeros.
  */
-export function blockPng(colours: Uint8Array, nx: number, ny: number, zoom: number): Buffer {
+export function blockPng(colours: Uint8Array, nx: number, ny: number, zoom: number): Promise<Buffer> {
   const line = 3 * nx * zoom;
-  const size = (line + 1) * ny * zoom;
-  if (blocks.length < size) blocks = new Uint8Array(size);
-  const filtered = blocks.subarray(0, size);
-  filtered.fill(0);
-  for (let y = 0; y < ny; y++) {
-    const first = (line + 1) * y * zoom;
-    for (let r = 0; r < zoom; r++) filtered[first + r * (line + 1)] = 2;
-    for (let x = 0; x < nx; x++)
-      for (let c = 0; c < 3; c++) {
-        const i = 3 * (y * nx + x) + c;
-        const up = (colours[i]! - (y > 0 ? colours[i - 3 * nx]! : 0)) & 255;
-        for (let o = first + 1 + 3 * x * zoom + c, end = o + 3 * zoom; o < end; o += 3) filtered[o] = up;
-      }
-  }
-  return pngFile(filtered, nx * zoom, ny * zoom, 3);
+  return bandedPng(nx * zoom, ny * zoom, 3, zlib.constants.Z_DEFAULT_COMPRESSION, (out, y0, rows) => {
+    out.fill(0);
+    for (let row = y0; row < y0 + rows; row++) {
+      const o = (line + 1) * (row - y0);
+      out[o] = 2;
+      if (row % zoom !== 0) continue;
+      const y = row / zoom;
+      for (let x = 0; x < nx; x++)
+        for (let c = 0; c < 3; c++) {
+          const i = 3 * (y * nx + x) + c;
+          const up = (colours[i]! - (y > 0 ? colours[i - 3 * nx]! : 0)) & 255;
+          for (let p = o + 1 + 3 * x * zoom + c, end = p + 3 * zoom; p < end; p += 3) out[p] = up;
+        }
+    }
+  });
 }

@@ -237,6 +237,35 @@ describe("PNG files", () => {
     }
   });
 
+  it("written band by band decode in pngjs (an independent PNG reader) to the pixels written, and deflate to the same bytes as zlib's one-shot deflate of all the scanlines", async () => {
+    const { bandedPng } = await import("../../src/report/png.js");
+    const { PNG } = await import("pngjs");
+    const zlib = await import("node:zlib");
+    // 700 RGBA pixels a row: about 93 rows a band, so 250 rows make three bands, the last one short
+    for (const channels of [3, 4] as const) {
+      const [w, h] = [700, 250];
+      const px = Uint8Array.from({ length: channels * w * h }, (_, i) => ((i >> 6) * 7919 + (i % 17)) & 255);
+      const line = channels * w;
+      const scanlines = new Uint8Array((line + 1) * h);
+      for (let y = 0; y < h; y++) scanlines.set(px.subarray(line * y, line * (y + 1)), (line + 1) * y + 1);
+      const bands: number[] = [];
+      const png = await bandedPng(w, h, channels, 2, (out, y, rows) => {
+        bands.push(rows);
+        out.set(scanlines.subarray((line + 1) * y, (line + 1) * (y + rows)));
+      });
+      expect(bands.length).toBeGreaterThan(2);
+      expect(bands.reduce((a, b) => a + b)).toBe(h);
+      const back = PNG.sync.read(png);
+      expect([back.width, back.height]).toEqual([w, h]);
+      const rgba = Uint8Array.from({ length: 4 * w * h }, (_, i) => (i % 4 === 3 && channels === 3 ? 255 : px[channels * (i >> 2) + (i % 4)]!));
+      expect(Buffer.compare(Buffer.from(back.data), Buffer.from(rgba))).toBe(0);
+      // the IDAT chunk's data (after signature 8, IHDR 25, length and type 8) is zlib's deflate of the whole scanlines
+      const idat = zlib.deflateSync(scanlines, { level: 2 });
+      expect(png.readUInt32BE(33)).toBe(idat.length);
+      expect(Buffer.compare(png.subarray(41, 41 + idat.length), idat)).toBe(0);
+    }
+  });
+
   it("of a density plane show its cells as blocks of the zoom, the top row at the largest vertical coordinate", async () => {
     const { planePng } = await import("../../src/report/field-image.js");
     const { colourTable } = await import("../../src/report/colormaps.js");
@@ -250,6 +279,22 @@ describe("PNG files", () => {
     const expected = (v: number) => (Number.isNaN(v) ? [225, 225, 225] : Array.from(lut.subarray(3 * Math.round(255 * Math.min(1, v)), 3 * Math.round(255 * Math.min(1, v)) + 3)));
     for (let row = 0; row < 8; row++)
       for (let col = 0; col < 12; col++) expect(at(col, row)).toEqual(expected(plane.values[(1 - Math.floor(row / 4)) * 3 + Math.floor(col / 4)]!));
+  });
+
+  it("of a raster of many bands decode in pngjs (an independent PNG reader) to zoom × zoom blocks of its cells, band edges inside blocks", async () => {
+    const { blockPng } = await import("../../src/report/png.js");
+    const { PNG } = await import("pngjs");
+    // 128 × 96 cells at zoom 5: 640-pixel rows, about 136 rows a band (not a multiple of 5)
+    const [nx, ny, zoom] = [128, 96, 5];
+    const colours = Uint8Array.from({ length: 3 * nx * ny }, (_, i) => (i * 2654435761) >>> 24);
+    const png = PNG.sync.read(await blockPng(colours, nx, ny, zoom));
+    expect([png.width, png.height]).toEqual([nx * zoom, ny * zoom]);
+    for (let row = 0; row < ny * zoom; row++)
+      for (let col = 0; col < nx * zoom; col++) {
+        const cell = 3 * (Math.floor(row / zoom) * nx + Math.floor(col / zoom));
+        const o = 4 * (row * nx * zoom + col);
+        if (png.data[o] !== colours[cell] || png.data[o + 1] !== colours[cell + 1] || png.data[o + 2] !== colours[cell + 2]) throw new Error(`pixel (${col}, ${row}) differs`);
+      }
   });
 
   it("of figures come from the workers with the pixels resvg draws on this thread (decoded by pngjs)", async () => {
@@ -287,7 +332,7 @@ describe("PNG files", () => {
     // pixels a cell, from an embedded raster of 24 × 24 pixel blocks (zoom ceil(3·80/10) = 24)
     const plane = { nx: 12, ny: 10, values: Float64Array.from({ length: 120 }, (_, i) => (i === 40 ? NaN : ((i * 37) % 119) / 118)), x0: 0, y0: 0, width: 12, height: 10 };
     const fig = await fieldFigure(plane, { xTitle: "x", yTitle: "y", legend: "v", title: "cells", range: [0, 1], colourMap: "viridis", size: 90 });
-    expect(fig.svg).toContain(`data:image/png;base64,${planePng(plane, 0, 1, "viridis", 24).toString("base64")}`);
+    expect(fig.svg).toContain(`data:image/png;base64,${(await planePng(plane, 0, 1, "viridis", 24)).toString("base64")}`);
     expect(fig.svg).toContain('width="90" height="80" preserveAspectRatio="none"');
     const ours = PNG.sync.read(fig.png);
     const theirs = new Resvg(fig.svg, { fitTo: { mode: "zoom", value: PNG_SCALE }, font: { loadSystemFonts: false, fontFiles: figureFontFiles()!, defaultFontFamily: FONT, sansSerifFamily: FONT }, background: "white" }).render();
