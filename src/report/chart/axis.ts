@@ -2,7 +2,9 @@
  * One axis of a chart: ticks (whole units, drawn half a unit in so that
  * they stay crisp), labels through psibox's tick formatter, the axis line
  * and the title. Labels that would overlap are thinned, every other one
- * at a time, keeping at least the first and the last. The layout box
+ * at a time, keeping at least the first and the last; a log axis labels
+ * its powers of ten (with 2 and 5 times them where only two decades
+ * show), its other ticks shorter and unlabelled. The layout box
  * (ticks, labels, title) tells the chart how much room the axis takes.
  */
 import { formatTick } from "../../core/format.js";
@@ -13,6 +15,7 @@ export type Orient = "bottom" | "left" | "right";
 
 export const AXIS_COLOUR = "#333";
 const TICK = 5;
+const MINOR_TICK = 3;
 const LABEL_PAD = 2;
 const LABEL = 10;
 const TITLE = 11;
@@ -54,6 +57,27 @@ function thinLabels(all: readonly Label[]): Label[] {
   return kept;
 }
 
+/** A log axis's tick value by rank: 0 for a power of ten, 1 for twice or five times one, 2 for the other minor ticks. */
+function logRank(v: number): number {
+  const m = Math.round(v / 10 ** Math.floor(Math.log10(v) + 1e-9));
+  return m === 1 ? 0 : m === 2 || m === 5 ? 1 : 2;
+}
+
+/**
+ * The labels of a log axis: the powers of ten where three or more fall on it (thinned as any labels), with
+ * twice and five times each where only two do and those fit; otherwise (less than a decade) as a linear axis's.
+ */
+function logLabels(all: readonly Label[], values: readonly number[]): Label[] {
+  const ranked = (r: number) => all.filter((_, i) => logRank(values[i]!) <= r);
+  const decades = ranked(0);
+  if (decades.length >= 3) return thinLabels(decades);
+  if (decades.length === 2) {
+    const more = ranked(1);
+    return anyOverlap(more) ? decades : more;
+  }
+  return thinLabels(all);
+}
+
 function labelStyle(orient: Orient): TextStyle {
   return orient === "bottom" ? { size: LABEL, anchor: "middle", baseline: "top" } : { size: LABEL, anchor: orient === "left" ? "end" : "start", baseline: "middle" };
 }
@@ -64,13 +88,12 @@ export function axisSvg(axis: AxisSpec, s: Scale, orient: Orient, at: number, le
   const across = orient === "bottom";
   const values = axisTicks(axis, s);
   const style = labelStyle(orient);
-  const labels = thinLabels(
-    values.map((v) => {
-      const p = position(s, v);
-      const text = formatTick(v);
-      return { text, at: p, box: across ? textBox(p, TICK + LABEL_PAD, text, style) : textBox(sign * (TICK + LABEL_PAD), p, text, style) };
-    }),
-  );
+  const all = values.map((v) => {
+    const p = position(s, v);
+    const text = formatTick(v);
+    return { text, at: p, box: across ? textBox(p, TICK + LABEL_PAD, text, style) : textBox(sign * (TICK + LABEL_PAD), p, text, style) };
+  });
+  const labels = s.log ? logLabels(all, values) : thinLabels(all);
   const box = emptyBox();
   for (const l of labels) unite(box, l.box);
   // the ticks' and labels' extent away from the plot, then the title beyond it
@@ -80,9 +103,13 @@ export function axisSvg(axis: AxisSpec, s: Scale, orient: Orient, at: number, le
   const [tx, ty] = across ? [length / 2, extent + place.padding] : [sign * (extent + place.padding), length / 2];
   if (axis.title) unite(box, textBox(tx, ty, axis.title, titleStyle));
   const [ox, oy] = across ? [0, at] : [at, 0];
+  // a log axis's unlabelled ticks are minor ones, shorter
+  const labelled = new Set(labels.map((l) => l.at));
   const ticks = values.map((v) => {
-    const p = Math.round(position(s, v));
-    return across ? `M${p},0v${TICK}` : `M0,${p}h${sign * TICK}`;
+    const at = position(s, v);
+    const p = Math.round(at);
+    const size = s.log && !labelled.has(at) ? MINOR_TICK : TICK;
+    return across ? `M${p},0v${size}` : `M0,${p}h${sign * size}`;
   });
   const line = axis.line === false ? "" : across ? `<path d="M0,0h${num(length)}" stroke="${AXIS_COLOUR}"/>` : `<path d="M0,0v${num(length)}" stroke="${AXIS_COLOUR}"/>`;
   const svg =
