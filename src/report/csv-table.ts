@@ -1,6 +1,8 @@
-/** One CSV value: integers as they are, other numbers to 8 significant digits, strings as they are. */
+import { PRECISION8_ROOM, precision8, writePrecision8 } from "./csv-number.js";
+
+/** One CSV value: integers as they are, other numbers to 8 significant digits (as toPrecision(8)), strings as they are. */
 export function csvValue(v: number | string): string {
-  return typeof v === "number" ? (Number.isInteger(v) ? String(v) : v.toPrecision(8)) : v;
+  return typeof v === "number" ? (Number.isInteger(v) ? String(v) : precision8(v)) : v;
 }
 
 /** CSV text of a header and rows (values as csvValue writes them). */
@@ -41,10 +43,17 @@ export class CsvBytes {
     this.room(2);
     this.bytes[this.length++] = this.first ? 10 : 44; // "\n" ends the line before, "," separates
     this.first = false;
-    if (Number.isInteger(v) && v > -10 && v < 10) {
-      if (v < 0) this.bytes[this.length++] = 45; // "-"
-      this.bytes[this.length++] = 48 + Math.abs(v); // String(v) of a one-digit integer (−0 too: "0")
-    } else this.text(csvValue(v));
+    if (Number.isInteger(v)) {
+      if (v > -10 && v < 10) {
+        if (v < 0) this.bytes[this.length++] = 45; // "-"
+        this.bytes[this.length++] = 48 + Math.abs(v); // String(v) of a one-digit integer (−0 too: "0")
+      } else this.text(String(v));
+      return;
+    }
+    this.room(PRECISION8_ROOM);
+    const end = writePrecision8(this.bytes, this.length, v);
+    if (end >= 0) this.length = end;
+    else this.text(v.toPrecision(8));
   }
 
   endRow(): void {
