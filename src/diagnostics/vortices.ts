@@ -16,6 +16,7 @@
  */
 import type { Grid } from "../grid/grid.js";
 import { simulatedAxes } from "./shells.js";
+import { orientationsOf, scanPlanes } from "./vortex-scan.js";
 
 /** One vortex of a 2D field, or one piercing of a plaquette by a vortex line in 3D. */
 export interface VortexPoint {
@@ -44,10 +45,6 @@ export interface VortexCensus {
   readonly projection: Float64Array;
 }
 
-function wrap(d: number): number {
-  return d > Math.PI ? d - 2 * Math.PI : d <= -Math.PI ? d + 2 * Math.PI : d;
-}
-
 /** The zero of the bilinear interpolant of four corner values (s, t ∈ [0, 1]), by Newton's method from the centre. */
 function bilinearZero(re: readonly number[], im: readonly number[]): [number, number] {
   // f(s,t) = f00 (1−s)(1−t) + f10 s(1−t) + f01 (1−s) t + f11 s t, corners ordered [00, 10, 01, 11]
@@ -69,73 +66,6 @@ function bilinearZero(re: readonly number[], im: readonly number[]): [number, nu
     if (Math.abs(stepS) + Math.abs(stepT) < 1e-12) break;
   }
   return s >= 0 && s <= 1 && t >= 0 && t <= 1 ? [s, t] : [0.5, 0.5];
-}
-
-/** The plaquettes' orientations: spanned by axes (p, q), normal r (3D) or none (2D). */
-function orientationsOf(grid: Grid): [number, number, number][] {
-  return grid.dims === 2 ? [[1, 2, -1]] : [[1, 2, 0], [2, 0, 1], [0, 1, 2]];
-}
-
-/**
- * Index steps along `axis` from the cells of row (a, b); 0 for the last axis, whose wrap is taken per cell
- * (a simulated first or second axis has at least two cells, so its step is never 0). `local`: the steps in the
- * scan's two planes (plane a, then plane a + 1 whatever a is), where a step along the first axis never wraps.
- */
-function rowStep(grid: Grid, axis: number, a: number, b: number, local: boolean): number {
-  const [n0, n1, n2] = grid.shape;
-  if (axis === 0) return a === n0 - 1 && !local ? -(n0 - 1) * n1 * n2 : n1 * n2;
-  if (axis === 1) return b === n1 - 1 ? -(n1 - 1) * n2 : n2;
-  return 0;
-}
-
-/**
- * One row's plaquettes spanned by steps (dp, dq) in the phase planes, (gp, gq) in the grid (0: along the last
- * axis, wrapping at its end), from cell `li` of the planes, cell `gi` of the grid: the pierced ones into `hits`
- * as (cell, charge, grid step p, grid step q).
- */
-function scanRow(phase: Float64Array, hits: number[], n2: number, li: number, gi: number, dp: number, dq: number, gp: number, gq: number): void {
-  for (let c = 0; c < n2; c++, li++, gi++) {
-    const d2 = c === n2 - 1 ? -(n2 - 1) : 1;
-    const sp = dp === 0 ? d2 : dp;
-    const sq = dq === 0 ? d2 : dq;
-    const ip = li + sp;
-    const iq = li + sq;
-    const ipq = ip + sq;
-    const w = wrap(phase[ip]! - phase[li]!) + wrap(phase[ipq]! - phase[ip]!) + wrap(phase[iq]! - phase[ipq]!) + wrap(phase[li]! - phase[iq]!);
-    const charge = Math.round(w / (2 * Math.PI));
-    if (charge !== 0) hits.push(gi, charge, gp === 0 ? d2 : gp, gq === 0 ? d2 : gq);
-  }
-}
-
-/** The phase of cells [from, from + count) of ψ into `out` from index `at`. */
-function phases(psi: Float64Array, from: number, count: number, out: Float64Array, at: number): void {
-  for (let i = 0; i < count; i++, at++) out[at] = Math.atan2(psi[2 * (from + i) + 1]!, psi[2 * (from + i)]!);
-}
-
-/**
- * The pierced plaquettes of each orientation (orientationsOf), each list in storage order, found plane by plane
- * along the first axis with the phases of two planes at a time (plane a and the next, periodic): no grid-sized
- * scratch, each cell's phase computed once (the first plane's twice).
- */
-function scanPlanes(grid: Grid, psi: Float64Array): number[][] {
-  const [n0, n1, n2] = grid.shape;
-  const plane = n1 * n2;
-  const three = grid.dims === 3;
-  const phase = new Float64Array(three ? 2 * plane : plane);
-  const orientations = orientationsOf(grid);
-  const hits = orientations.map((): number[] => []);
-  phases(psi, 0, plane, phase, 0);
-  for (let a = 0; a < n0; a++) {
-    if (three) phases(psi, ((a + 1) % n0) * plane, plane, phase, plane);
-    orientations.forEach(([pa, qa], o) => {
-      for (let b = 0; b < n1; b++) {
-        const [dp, dq] = [rowStep(grid, pa, a, b, true), rowStep(grid, qa, a, b, true)];
-        scanRow(phase, hits[o]!, n2, b * n2, a * plane + b * n2, dp, dq, rowStep(grid, pa, a, b, false), rowStep(grid, qa, a, b, false));
-      }
-    });
-    if (three) phase.copyWithin(0, plane, 2 * plane);
-  }
-  return hits;
 }
 
 /** Receives each vortex (2D) or piercing (3D): its position along the internal axes (all three; code lengths; reused between calls), charge, normal (the simulated axis' index, −1 in 2D) and length. */
