@@ -1,16 +1,13 @@
 /**
  * The analysis's helper thread (its script: analysis-worker.ts), one for a
- * whole `psibox analyze`: it first touches the pages of the grids the
- * analysis will use while the main thread reads the snapshot
- * (fields/page-touch.ts), then takes each snapshot's vortex census
- * (vortex-table.ts) while the main thread computes the other numbers. A
- * census that fails rejects with a one-line reason; a touch never does (it
- * only saves time).
+ * whole `psibox analyze`: it starts while the main thread reads the first
+ * snapshot and takes each snapshot's vortex census (vortex-table.ts) while
+ * the main thread computes the other numbers. A census that fails rejects
+ * with a one-line reason.
  */
 import path from "node:path";
 import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
-import type { TouchRange } from "../fields/page-touch.js";
 import type { HelperRequest, HelperTask } from "./analysis-worker.js";
 import type { VortexJob, VortexTable } from "./vortex-table.js";
 
@@ -61,12 +58,6 @@ export class AnalysisHelper {
       // idle: unref'd, unless it is closing (then it stays ref'd until it exits)
       if (this.pending.size === 0 && !this.closing) this.worker.unref();
     }) as Promise<Answer>;
-  }
-
-  /** Touch the ranges' pages on the helper thread; resolves when done, or at once if the thread failed (never rejects). */
-  touch(ranges: readonly (TouchRange | undefined)[]): Promise<void> {
-    const given = ranges.filter((r): r is TouchRange => r !== undefined);
-    return given.length ? this.ask({ op: "touch", ranges: given }).then(() => undefined, () => undefined) : Promise.resolve();
   }
 
   /** The vortex census of a job on the helper thread. */

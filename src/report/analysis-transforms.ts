@@ -7,9 +7,8 @@
  * energy split measured, only the first half of work grid 1 is ever
  * touched, so only that half takes memory), and a
  * third grid that ψ is read into, all in the step's shared memory; and the
- * helper thread (analysis-helper.ts), which touches those grids' pages while
- * the first snapshot is read (ψ's from its end, the work grids after) and
- * takes the vortex census beside the main thread. The analysis of a single
+ * helper thread (analysis-helper.ts), which starts while the first snapshot
+ * is read and takes the vortex census beside the main thread. The analysis of a single
  * snapshot gives all of it back as soon as its numbers are known
  * (`numbersDone`), before the last figures are drawn.
  */
@@ -18,8 +17,6 @@ import vm from "node:vm";
 import type { Grid } from "../grid/grid.js";
 import { PooledTransforms } from "../integrators/pooled-transforms.js";
 import { defaultThreads } from "../config/resolve-output.js";
-import { touchRangeOf } from "../fields/page-touch.js";
-import { halfSpaceLength } from "../diagnostics/split-passes.js";
 import { AnalysisHelper } from "./analysis-helper.js";
 import { vortexJobOf, type VortexTable } from "./vortex-table.js";
 
@@ -40,8 +37,8 @@ export class AnalysisTransforms {
     // the worker threads start while the caller goes on (reading the snapshot): the first transform waits for them
     const fft = new PooledTransforms(grid, 3, { threads: defaultThreads(grid.cells), pool: { deferStart: true } });
     this.current = fft;
-    // of work grid 1 only the half the energy split, the densest points and the halos use: the rest stays untouched
-    void this.helper(grid)?.touch([touchRangeOf(fft.work(PSI_GRID), true), touchRangeOf(fft.work(0)), touchRangeOf(fft.work(1).subarray(0, halfSpaceLength(grid.shape)))]);
+    // the helper thread starts now too, ready for the census once ψ is read
+    this.helper(grid);
     return fft;
   }
 

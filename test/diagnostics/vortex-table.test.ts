@@ -1,13 +1,11 @@
 // The vortex table as psibox analyze writes it: on the analysis's helper thread (ψ read from shared memory) the same
-// bytes and totals as on this thread, the bytes those of the text as findVortices' points written row by row; and the helper's
-// first touch of shared memory leaves every value as it was.
+// bytes and totals as on this thread, the bytes those of the text as findVortices' points written row by row.
 import { afterAll, describe, expect, it } from "vitest";
 import { Grid } from "../../src/grid/grid.js";
 import { findVortices } from "../../src/diagnostics/vortices.js";
 import { csvTable } from "../../src/report/csv-table.js";
 import { vortexJobOf, vortexTable } from "../../src/report/vortex-table.js";
 import { AnalysisHelper } from "../../src/report/analysis-helper.js";
-import { touchRangeOf } from "../../src/fields/page-touch.js";
 import { gaussianComplexField } from "../helpers/random-field.js";
 
 const helper = new AnalysisHelper();
@@ -47,15 +45,5 @@ describe("the vortex table", () => {
   it("needs ψ in shared memory to go to another thread", () => {
     const grid = new Grid([8, 8, 8], [1, 1, 1]);
     expect(vortexJobOf(grid, new Float64Array(2 * grid.size), 1)).toBeUndefined();
-  });
-});
-
-describe("the helper's first touch", () => {
-  it("leaves every value of shared memory as it was, upward and downward", async () => {
-    const values = new Float64Array(new SharedArrayBuffer(8 * 40_000));
-    for (let i = 0; i < values.length; i++) values[i] = Math.sin(i) * 1e300;
-    const before = Float64Array.from(values);
-    await helper.touch([touchRangeOf(values.subarray(1000), true), touchRangeOf(values.subarray(0, 20_000)), touchRangeOf(new Float64Array(4))]);
-    expect(values.every((v, i) => Object.is(v, before[i]))).toBe(true);
   });
 });
