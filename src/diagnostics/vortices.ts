@@ -77,39 +77,42 @@ export function scanVortices(grid: Grid, psi: Float64Array, sink: VortexSink): O
   const [, n1, n2] = grid.shape;
   const axes = simulatedAxes(grid);
   const projection = new Float64Array(n1 * n2);
-  const t = { positive: 0, negative: 0, lineLength: 0 };
+  let [positive, negative, lineLength] = [0, 0, 0];
   const found = scanPlanes(grid, psi);
   const pos = new Float64Array(3);
   // one set of scratch for all the points (a census of many thousand piercings allocates nothing per point)
   const corners = new Int32Array(4);
   const idx = new Int32Array(3);
-  orientationsOf(grid).forEach(([pa, qa, normal], o) => {
-    const h = found[o]!;
+  const h = grid.spacing;
+  const orientations = orientationsOf(grid);
+  for (let o = 0; o < orientations.length; o++) {
+    const [pa, qa, normal] = orientations[o]!;
+    const list = found[o]!;
     const normalIndex = normal >= 0 ? axes.indexOf(normal as 0 | 1 | 2) : -1;
-    for (let k = 0; k < h.length; k += 4) {
-      const [i, charge, sp, sq] = [h[k]!, h[k + 1]!, h[k + 2]!, h[k + 3]!];
-      if (charge > 0) t.positive += charge;
-      else t.negative -= charge;
+    for (let k = 0; k < list.length; k += 4) {
+      const i = list[k]!;
+      const charge = list[k + 1]!;
+      if (charge > 0) positive += charge;
+      else negative -= charge;
       // the plaquette's corners [i, i + sp, i + sq, i + sp + sq] and its cell's index along each axis
       corners[0] = i;
-      corners[1] = i + sp;
-      corners[2] = i + sq;
-      corners[3] = i + sp + sq;
+      corners[1] = i + list[k + 2]!;
+      corners[2] = i + list[k + 3]!;
+      corners[3] = corners[1]! + list[k + 3]!;
       idx[0] = Math.floor(i / (n1 * n2));
       idx[1] = Math.floor(i / n2) % n1;
       idx[2] = i % n2;
       const [s, u] = grid.dims === 2 ? bilinearZero(Array.from(corners, (c) => psi[2 * c]!), Array.from(corners, (c) => psi[2 * c + 1]!)) : CENTRE;
-      for (let ax = 0; ax < 3; ax++) pos[ax] = idx[ax]! * grid.spacing[ax]!;
-      pos[pa] = pos[pa]! + s * grid.spacing[pa]!;
-      pos[qa] = pos[qa]! + u * grid.spacing[qa]!;
+      for (let ax = 0; ax < 3; ax++) pos[ax] = idx[ax]! * h[ax]!;
+      pos[pa] = pos[pa]! + s * h[pa]!;
+      pos[qa] = pos[qa]! + u * h[qa]!;
       const length = normal >= 0 ? pierceLength(grid, psi, corners, idx[normal]!, normal, pa, qa) : 0;
-      t.lineLength += length;
+      lineLength += length;
       const column = idx[1]! * n2 + idx[2]!;
       projection[column] = projection[column]! + (normal >= 0 ? length : 1);
       sink(pos, charge, normalIndex, length);
     }
-  });
-  const { positive, negative, lineLength } = t;
+  }
   const measure = grid.volume;
   return { dims: grid.dims as 2 | 3, positive, negative, netCharge: positive - negative, density: grid.dims === 2 ? (positive + negative) / measure : lineLength / measure, lineLength, projection };
 }
@@ -132,7 +135,10 @@ export function findVortices(grid: Grid, psi: Float64Array): VortexCensus {
 function pierceLength(grid: Grid, psi: Float64Array, corners: Int32Array, j: number, normal: number, pa: number, qa: number): number {
   const h = grid.spacing;
   const g = GRADIENTS; // ∇Re ψ in [0, 3), ∇Im ψ in [3, 6)
-  const [c00, c10, c01, c11] = [corners[0]!, corners[1]!, corners[2]!, corners[3]!];
+  const c00 = corners[0]!;
+  const c10 = corners[1]!;
+  const c01 = corners[2]!;
+  const c11 = corners[3]!;
   // in-plane derivatives: mean of the two edge differences
   g[pa] = (psi[2 * c10]! - psi[2 * c00]! + psi[2 * c11]! - psi[2 * c01]!) / (2 * h[pa]!);
   g[3 + pa] = (psi[2 * c10 + 1]! - psi[2 * c00 + 1]! + psi[2 * c11 + 1]! - psi[2 * c01 + 1]!) / (2 * h[pa]!);
