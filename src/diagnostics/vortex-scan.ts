@@ -30,7 +30,9 @@ export function orientationsOf(grid: Grid): [number, number, number][] {
  * scan's two planes (plane a, then plane a + 1 whatever a is), where a step along the first axis never wraps.
  */
 function rowStep(grid: Grid, axis: number, a: number, b: number, local: boolean): number {
-  const [n0, n1, n2] = grid.shape;
+  const n0 = grid.shape[0];
+  const n1 = grid.shape[1];
+  const n2 = grid.shape[2];
   if (axis === 0) return a === n0 - 1 && !local ? -(n0 - 1) * n1 * n2 : n1 * n2;
   if (axis === 1) return b === n1 - 1 ? -(n1 - 1) * n2 : n2;
   return 0;
@@ -144,7 +146,9 @@ function plaquetteRow(psi: Float64Array, word: Uint16Array, hits: number[][], n2
     const w1 = word[li + s1]!;
     const w2 = word[li + d2]!;
     const w0 = word[li + s0]!;
-    const [x0, x1, x2] = [w & 15, (w >> 4) & 15, w >> 8];
+    const x0 = w & 15;
+    const x1 = (w >> 4) & 15;
+    const x2 = w >> 8;
     // Σ of the loop's quarter-turns (the codes' offsets cancel) of (1, 2), (2, 0), (0, 1): zero unless pierced
     const t12 = x1 + (w1 >> 8) - ((w2 >> 4) & 15) - x2;
     const t20 = x2 + (w2 & 15) - (w0 >> 8) - x0;

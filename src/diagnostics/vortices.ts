@@ -89,6 +89,8 @@ export function scanVortices(grid: Grid, psi: Float64Array, sink: VortexSink): O
     const [pa, qa, normal] = orientations[o]!;
     const list = found[o]!;
     const normalIndex = normal >= 0 ? axes.indexOf(normal as 0 | 1 | 2) : -1;
+    // index steps along the normal (3D)
+    const stride = normal === 0 ? n1 * n2 : normal === 1 ? n2 : 1;
     for (let k = 0; k < list.length; k += 4) {
       const i = list[k]!;
       const charge = list[k + 1]!;
@@ -102,11 +104,18 @@ export function scanVortices(grid: Grid, psi: Float64Array, sink: VortexSink): O
       idx[0] = Math.floor(i / (n1 * n2));
       idx[1] = Math.floor(i / n2) % n1;
       idx[2] = i % n2;
-      const [s, u] = grid.dims === 2 ? bilinearZero(Array.from(corners, (c) => psi[2 * c]!), Array.from(corners, (c) => psi[2 * c + 1]!)) : CENTRE;
+      // 3D: the plaquette's centre; 2D: the zero of ψ's bilinear interpolant
+      let s = 0.5;
+      let u = 0.5;
+      if (grid.dims === 2) {
+        const zero = bilinearZero(Array.from(corners, (c) => psi[2 * c]!), Array.from(corners, (c) => psi[2 * c + 1]!));
+        s = zero[0];
+        u = zero[1];
+      }
       for (let ax = 0; ax < 3; ax++) pos[ax] = idx[ax]! * h[ax]!;
       pos[pa] = pos[pa]! + s * h[pa]!;
       pos[qa] = pos[qa]! + u * h[qa]!;
-      const length = normal >= 0 ? pierceLength(grid, psi, corners, idx[normal]!, normal, pa, qa) : 0;
+      const length = normal >= 0 ? pierceLength(grid, psi, corners, idx[normal]!, normal, stride, pa, qa) : 0;
       lineLength += length;
       const column = idx[1]! * n2 + idx[2]!;
       projection[column] = projection[column]! + (normal >= 0 ? length : 1);
@@ -116,9 +125,6 @@ export function scanVortices(grid: Grid, psi: Float64Array, sink: VortexSink): O
   const measure = grid.volume;
   return { dims: grid.dims as 2 | 3, positive, negative, netCharge: positive - negative, density: grid.dims === 2 ? (positive + negative) / measure : lineLength / measure, lineLength, projection };
 }
-
-/** A 3D piercing's position within its plaquette: the centre. */
-const CENTRE: readonly [number, number] = [0.5, 0.5];
 
 /** Vortices of a 2D or 3D field (throws RangeError for a 1D grid). */
 export function findVortices(grid: Grid, psi: Float64Array): VortexCensus {
@@ -130,9 +136,9 @@ export function findVortices(grid: Grid, psi: Float64Array): VortexCensus {
 
 /**
  * The length a piercing of a face normal to `normal` stands for: 1 / Σ_j |t_j|/Δx_j with t ∝ ∇Re ψ × ∇Im ψ
- * at the face; `j` is the face's index along the normal axis (the same for its four corners).
+ * at the face; `j` is the face's index along the normal axis (the same for its four corners), `stride` the index step along it.
  */
-function pierceLength(grid: Grid, psi: Float64Array, corners: Int32Array, j: number, normal: number, pa: number, qa: number): number {
+function pierceLength(grid: Grid, psi: Float64Array, corners: Int32Array, j: number, normal: number, stride: number, pa: number, qa: number): number {
   const h = grid.spacing;
   const g = GRADIENTS; // ∇Re ψ in [0, 3), ∇Im ψ in [3, 6)
   const c00 = corners[0]!;
@@ -146,9 +152,9 @@ function pierceLength(grid: Grid, psi: Float64Array, corners: Int32Array, j: num
   g[3 + qa] = (psi[2 * c01 + 1]! - psi[2 * c00 + 1]! + psi[2 * c11 + 1]! - psi[2 * c10 + 1]!) / (2 * h[qa]!);
   // normal derivative: centred difference, averaged over the four corners
   const m = grid.shape[normal]!;
-  const stride = normal === 0 ? grid.shape[1] * grid.shape[2] : normal === 1 ? grid.shape[2] : 1;
-  const up = j === m - 1 ? -(m - 1) * stride : stride;
-  const down = j === 0 ? (m - 1) * stride : -stride;
+  // the next and previous face along the normal, periodic (as index arithmetic: no branch first taken at the grid's end)
+  const up = (((j + 1) % m) - j) * stride;
+  const down = (((j + m - 1) % m) - j) * stride;
   let dr = 0;
   let di = 0;
   for (let q = 0; q < 4; q++) {
