@@ -122,15 +122,21 @@ function phaseCharge(psi: Float64Array, i0: number, ip: number, ipq: number, iq:
   return Math.round(w / (2 * Math.PI));
 }
 
+/** Numbers per pierced plaquette in scanPlanes' lists: cell, charge, grid step p, grid step q, length. */
+export const HIT = 5;
+
+/** The length a piercing of the plaquette at cell i spanned by grid steps tp, tq of orientation o stands for, measured while its planes are in cache. */
+export type PiercingLength = (i: number, tp: number, tq: number, o: number) => number;
+
 /**
- * The plaquette at cell i spanned by grid steps tp, tq, given its loop's four edge codes (0 → p, p → pq, then back
- * from pq to q and from q to 0, the last two as stored from q and from 0): into `hits` if it winds.
+ * The plaquette at cell i of orientation o spanned by grid steps tp, tq, given its loop's four edge codes (0 → p,
+ * p → pq, then back from pq to q and from q to 0, the last two as stored from q and from 0): into `hits` if it winds.
  */
-function plaquette(psi: Float64Array, hits: number[], i: number, tp: number, tq: number, e0: number, e1: number, e2: number, e3: number): void {
+function plaquette(psi: Float64Array, hits: number[], length: PiercingLength | undefined, o: number, i: number, tp: number, tq: number, e0: number, e1: number, e2: number, e3: number): void {
   const turns = e0 + e1 - e2 - e3;
   const sure = ((e0 | e1 | e2 | e3) & UNSURE) === 0 && (turns & 3) === 0;
   const charge = sure ? turns / 4 : phaseCharge(psi, i, i + tp, i + tp + tq, i + tq);
-  if (charge !== 0) hits.push(i, charge, tp, tq);
+  if (charge !== 0) hits.push(i, charge, tp, tq, length ? length(i, tp, tq, o) : 0);
 }
 
 /**
@@ -138,7 +144,7 @@ function plaquette(psi: Float64Array, hits: number[], i: number, tp: number, tq:
  * gi) those spanned by axes (1, 2), (2, 0) and (0, 1), with steps s1 along axis 1, 1 along axis 2 (wrapping at the
  * row's end) and s0 (planes) or g0 (grid) along axis 0; in 2D the first only (no axis-0 codes: s0 = 0).
  */
-function plaquetteRow(psi: Float64Array, word: Uint16Array, hits: number[][], n2: number, li: number, gi: number, s1: number, s0: number, g0: number): void {
+function plaquetteRow(psi: Float64Array, word: Uint16Array, hits: number[][], length: PiercingLength | undefined, n2: number, li: number, gi: number, s1: number, s0: number, g0: number): void {
   const three = hits.length === 3;
   for (let c = 0; c < n2; c++, li++, gi++) {
     const d2 = c === n2 - 1 ? -(n2 - 1) : 1;
@@ -154,19 +160,19 @@ function plaquetteRow(psi: Float64Array, word: Uint16Array, hits: number[][], n2
     const t20 = x2 + (w2 & 15) - (w0 >> 8) - x0;
     const t01 = x0 + ((w0 >> 4) & 15) - (w1 & 15) - x1;
     if ((t12 | t20 | t01 | ((w | w1 | w2 | w0) & 0x888)) === 0) continue;
-    plaquette(psi, hits[0]!, gi, s1, d2, x1, w1 >> 8, (w2 >> 4) & 15, x2);
+    plaquette(psi, hits[0]!, length, 0, gi, s1, d2, x1, w1 >> 8, (w2 >> 4) & 15, x2);
     if (!three) continue;
-    plaquette(psi, hits[1]!, gi, d2, g0, x2, w2 & 15, w0 >> 8, x0);
-    plaquette(psi, hits[2]!, gi, g0, s1, x0, (w0 >> 4) & 15, w1 & 15, x1);
+    plaquette(psi, hits[1]!, length, 1, gi, d2, g0, x2, w2 & 15, w0 >> 8, x0);
+    plaquette(psi, hits[2]!, length, 2, gi, g0, s1, x0, (w0 >> 4) & 15, w1 & 15, x1);
   }
 }
 
 /**
  * The pierced plaquettes of each orientation (orientationsOf), each list in storage order as (cell, charge, grid
- * step p, grid step q), four numbers each: plane by plane along the first axis, with the quarters and edge codes
- * of two planes at a time (plane a and the next, periodic).
+ * step p, grid step q, length), HIT numbers each (the length by `length`, 0 without): plane by plane along the first
+ * axis, with the quarters and edge codes of two planes at a time (plane a and the next, periodic).
  */
-export function scanPlanes(grid: Grid, psi: Float64Array): number[][] {
+export function scanPlanes(grid: Grid, psi: Float64Array, length?: PiercingLength): number[][] {
   const [n0, n1, n2] = grid.shape;
   const plane = n1 * n2;
   const three = grid.dims === 3;
@@ -186,7 +192,7 @@ export function scanPlanes(grid: Grid, psi: Float64Array): number[][] {
       edges((a + 1) % n0, plane);
       for (let b = 0; b < n1; b++) rowEdges0(psi, quarter, word, n2, b * n2, (a * n1 + b) * n2, plane, g0);
     }
-    for (let b = 0; b < n1; b++) plaquetteRow(psi, word, hits, n2, b * n2, (a * n1 + b) * n2, rowStep(grid, 1, a, b, true), three ? plane : 0, g0);
+    for (let b = 0; b < n1; b++) plaquetteRow(psi, word, hits, length, n2, b * n2, (a * n1 + b) * n2, rowStep(grid, 1, a, b, true), three ? plane : 0, g0);
     if (three) for (const m of [quarter, word]) m.copyWithin(0, plane, 2 * plane);
   }
   return hits;

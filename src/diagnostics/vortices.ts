@@ -16,7 +16,7 @@
  */
 import type { Grid } from "../grid/grid.js";
 import { simulatedAxes } from "./shells.js";
-import { orientationsOf, scanPlanes } from "./vortex-scan.js";
+import { HIT, orientationsOf, scanPlanes, type PiercingLength } from "./vortex-scan.js";
 
 /** One vortex of a 2D field, or one piercing of a plaquette by a vortex line in 3D. */
 export interface VortexPoint {
@@ -78,36 +78,31 @@ export function scanVortices(grid: Grid, psi: Float64Array, sink: VortexSink): O
   const axes = simulatedAxes(grid);
   const projection = new Float64Array(n1 * n2);
   let [positive, negative, lineLength] = [0, 0, 0];
-  const found = scanPlanes(grid, psi);
+  const orientations = orientationsOf(grid);
+  // 3D: each piercing's length, taken during the scan while its planes are in cache
+  const found = scanPlanes(grid, psi, grid.dims === 3 ? piercingLengths(grid, psi, orientations) : undefined);
   const pos = new Float64Array(3);
   // one set of scratch for all the points (a census of many thousand piercings allocates nothing per point)
   const corners = new Int32Array(4);
   const idx = new Int32Array(3);
   const h = grid.spacing;
-  const orientations = orientationsOf(grid);
   for (let o = 0; o < orientations.length; o++) {
     const [pa, qa, normal] = orientations[o]!;
     const list = found[o]!;
     const normalIndex = normal >= 0 ? axes.indexOf(normal as 0 | 1 | 2) : -1;
-    // index steps along the normal (3D)
-    const stride = normal === 0 ? n1 * n2 : normal === 1 ? n2 : 1;
-    for (let k = 0; k < list.length; k += 4) {
+    for (let k = 0; k < list.length; k += HIT) {
       const i = list[k]!;
       const charge = list[k + 1]!;
       if (charge > 0) positive += charge;
       else negative -= charge;
-      // the plaquette's corners [i, i + sp, i + sq, i + sp + sq] and its cell's index along each axis
-      corners[0] = i;
-      corners[1] = i + list[k + 2]!;
-      corners[2] = i + list[k + 3]!;
-      corners[3] = corners[1]! + list[k + 3]!;
       idx[0] = Math.floor(i / (n1 * n2));
       idx[1] = Math.floor(i / n2) % n1;
       idx[2] = i % n2;
-      // 3D: the plaquette's centre; 2D: the zero of ψ's bilinear interpolant
+      // 3D: the plaquette's centre; 2D: the zero of ψ's bilinear interpolant over its corners [i, i + sp, i + sq, i + sp + sq]
       let s = 0.5;
       let u = 0.5;
       if (grid.dims === 2) {
+        plaquetteCorners(corners, i, list[k + 2]!, list[k + 3]!);
         const zero = bilinearZero(Array.from(corners, (c) => psi[2 * c]!), Array.from(corners, (c) => psi[2 * c + 1]!));
         s = zero[0];
         u = zero[1];
@@ -115,7 +110,7 @@ export function scanVortices(grid: Grid, psi: Float64Array, sink: VortexSink): O
       for (let ax = 0; ax < 3; ax++) pos[ax] = idx[ax]! * h[ax]!;
       pos[pa] = pos[pa]! + s * h[pa]!;
       pos[qa] = pos[qa]! + u * h[qa]!;
-      const length = normal >= 0 ? pierceLength(grid, psi, corners, idx[normal]!, normal, stride, pa, qa) : 0;
+      const length = list[k + 4]!;
       lineLength += length;
       const column = idx[1]! * n2 + idx[2]!;
       projection[column] = projection[column]! + (normal >= 0 ? length : 1);
@@ -124,6 +119,29 @@ export function scanVortices(grid: Grid, psi: Float64Array, sink: VortexSink): O
   }
   const measure = grid.volume;
   return { dims: grid.dims as 2 | 3, positive, negative, netCharge: positive - negative, density: grid.dims === 2 ? (positive + negative) / measure : lineLength / measure, lineLength, projection };
+}
+
+/** A plaquette's corners [i, i + sp, i + sq, i + sp + sq] into `out`. */
+function plaquetteCorners(out: Int32Array, i: number, sp: number, sq: number): void {
+  out[0] = i;
+  out[1] = i + sp;
+  out[2] = i + sq;
+  out[3] = i + sp + sq;
+}
+
+/** A 3D census's piercing lengths for the scan (pierceLength of each pierced plaquette; its own scratch). */
+function piercingLengths(grid: Grid, psi: Float64Array, orientations: readonly (readonly number[])[]): PiercingLength {
+  const [, n1, n2] = grid.shape;
+  const corners = new Int32Array(4);
+  // per orientation: the axes spanning it and its normal; per axis the index step
+  const [pa, qa, normal] = [0, 1, 2].map((k) => Int32Array.from(orientations, (o) => o[k]!)) as [Int32Array, Int32Array, Int32Array];
+  const strides = [n1 * n2, n2, 1];
+  return (i, tp, tq, o) => {
+    plaquetteCorners(corners, i, tp, tq);
+    const r = normal[o]!;
+    const j = r === 0 ? Math.floor(i / (n1 * n2)) : r === 1 ? Math.floor(i / n2) % n1 : i % n2;
+    return pierceLength(grid, psi, corners, j, r, strides[r]!, pa[o]!, qa[o]!);
+  };
 }
 
 /** Vortices of a 2D or 3D field (throws RangeError for a 1D grid). */

@@ -2,7 +2,7 @@
 import { describe, expect, it } from "vitest";
 import { Grid } from "../../src/grid/grid.js";
 import { findVortices } from "../../src/diagnostics/vortices.js";
-import { orientationsOf, scanPlanes } from "../../src/diagnostics/vortex-scan.js";
+import { HIT, orientationsOf, scanPlanes } from "../../src/diagnostics/vortex-scan.js";
 import { fillComplex } from "../helpers/fields.js";
 import { gaussianComplexField, meanK2 } from "../helpers/random-field.js";
 
@@ -100,7 +100,7 @@ describe("planted vortices", () => {
     const orientations = orientationsOf(grid);
     return scanPlanes(grid, psi).flatMap((hits, o) => {
       const rows: string[] = [];
-      for (let k = 0; k < hits.length; k += 4) {
+      for (let k = 0; k < hits.length; k += HIT) {
         const i = hits[k]!;
         const at = [Math.floor(i / (n1 * n2)), Math.floor(i / n2) % n1, i % n2];
         rows.push(`${grid.dims === 2 ? at.slice(1) : at} ${orientations[o]![2]} ${hits[k + 1]}`);
