@@ -20,6 +20,7 @@ import { PooledTransforms } from "../integrators/pooled-transforms.js";
 import { defaultThreads } from "../config/resolve-output.js";
 import { touchRangeOf } from "../fields/page-touch.js";
 import { halfSpaceLength } from "../diagnostics/split-passes.js";
+import { blockTablesLength } from "../diagnostics/block-tables.js";
 import { AnalysisHelper } from "./analysis-helper.js";
 import { vortexJobOf, type VortexTable } from "./vortex-table.js";
 
@@ -38,7 +39,7 @@ export class AnalysisTransforms {
     if (this.current && this.current.shape.every((n, i) => n === grid.shape[i])) return this.current;
     void this.current?.close();
     // the worker threads start while the caller goes on (reading the snapshot): the first transform waits for them
-    const fft = new PooledTransforms(grid, 3, { threads: defaultThreads(grid.cells), pool: { deferStart: true } });
+    const fft = new PooledTransforms(grid, 3, { threads: defaultThreads(grid.cells), pool: { deferStart: true }, tables: blockTablesLength(grid) });
     this.current = fft;
     // of work grid 1 only the half the energy split, the densest points and the halos use: the rest stays untouched
     void this.helper(grid)?.touch([touchRangeOf(fft.work(PSI_GRID), true), touchRangeOf(fft.work(0)), touchRangeOf(fft.work(1).subarray(0, halfSpaceLength(grid.shape)))]);

@@ -9,6 +9,7 @@ import type { Snapshot } from "../io/snapshot.js";
 import type { FieldTransforms } from "../fields/field-transforms.js";
 import { writeFileAtomic } from "../io/atomic.js";
 import { fieldStats, type LoadedField } from "../simulation/from-snapshot.js";
+import { blockTablesOf } from "../diagnostics/block-tables.js";
 import { densestPoints, densityPdf, densityPowerSpectrum, fitCoreProfile, kineticSplit, meanDensity, radialProfile, type KineticSplit } from "../diagnostics/analysis.js";
 import { kineticFromGradient, periodicPotentialFromContrast } from "../diagnostics/energies.js";
 import type { SpectrumMoments } from "../diagnostics/spectrum-moments.js";
@@ -76,7 +77,7 @@ export function snapshotTables(
   const mean = measured?.meanDensity ?? meanDensity(psi);
   const power = densityPowerSpectrum(grid, psi, fft, 0, mean);
   writeFileAtomic(path.join(outDir, "power.csv"), powerTable(power, kpcPerCode, grid.dims, snap.meta.background.kind === "lcdm" ? snap.meta.background.hubbleKmSMpc / 100 : undefined));
-  const pdf = densityPdf(psi, 40, runnerOf(fft, psi));
+  const pdf = densityPdf(psi, 40, runnerOf(fft, psi), blockTablesOf(fft, grid, psi));
   writeFileAtomic(path.join(outDir, "pdf.csv"), csv(["log10_density_contrast", "volume_fraction", "mass_fraction"], pdf.map((p) => [p.log10Contrast, p.volumeFraction, p.massFraction])));
 
   // K from ψ's spectrum and the periodic W from δ's, both at hand: no transform of their own

@@ -1,0 +1,115 @@
+/**
+ * The diagnostics' WebAssembly passes (wasm/field-passes.as.ts,
+ * compiled by the build) on a shared memory: loading the module once,
+ * one instance per memory and thread, and calls that take views of that
+ * memory (their byte offsets are the addresses the passes use). Each pass
+ * computes what its JavaScript version computes, in the same order, so the
+ * two give the same bits (tested).
+ */
+import fs from "node:fs";
+import { fileURLToPath } from "node:url";
+
+interface Exports {
+  shellTable(bins: number, ksum: number, modes: number, k0: number, k1: number, k2: number, n0: number, n1: number, n2: number, kF: number, count: number, row: number): void;
+  ikRows(z: number, k: number, kz: number, n1: number, n2: number, axis: number, first: number, end: number): void;
+  packCells(psi: number, z: number, from: number, to: number, acc: number): void;
+  shellRows(
+    z: number, div: number, nyq: number, bins: number, k0: number, k1: number, k2: number, n0: number, n1: number, n2: number, count: number,
+    perMode: number, velocityPerMode: number, axis: number, first: number, s: number, from: number, end: number,
+  ): void;
+  compressibleRows(div: number, nyq: number, bins: number, k0: number, k1: number, k2: number, n0: number, n1: number, n2: number, count: number, perMode: number, s: number, from: number, end: number): void;
+  contrastCells(psi: number, out: number, mean: number, from: number, to: number): void;
+  powerRows(data: number, bins: number, n2: number, perMode: number, sums: number, from: number, end: number): void;
+  histogramCells(psi: number, sums: number, edges: number, n: number, mean: number, lo: number, width: number, bins: number, margin: number, from: number, to: number): void;
+}
+
+/** Where the compiled module is: beside the transform kernels when built, in dist/ when running from the sources (tests). */
+function modulePath(): string {
+  const built = fileURLToPath(new URL("./wasm/field-passes.wasm", import.meta.url));
+  if (fs.existsSync(built)) return built;
+  return fileURLToPath(new URL("../../dist/fields/wasm/field-passes.wasm", import.meta.url));
+}
+
+let compiled: WebAssembly.Module | null | undefined;
+
+/** The compiled module, or null when it is missing (the passes then run in JavaScript). */
+function passModule(): WebAssembly.Module | null {
+  if (compiled === undefined) {
+    try {
+      compiled = new WebAssembly.Module(fs.readFileSync(modulePath()));
+    } catch {
+      compiled = null;
+    }
+  }
+  return compiled;
+}
+
+/** A view's address in its memory. */
+const at = (a: ArrayBufferView): number => a.byteOffset;
+
+/** The passes on one memory; every array given must be a view of that memory. */
+export class FieldKernels {
+  private constructor(private readonly k: Exports) {}
+
+  private static readonly instances = new WeakMap<WebAssembly.Memory, FieldKernels>();
+
+  /** The passes on `memory` (one instance per memory in this thread), or undefined without the module. */
+  static of(memory: WebAssembly.Memory): FieldKernels | undefined {
+    let kernels = FieldKernels.instances.get(memory);
+    if (!kernels) {
+      const module = passModule();
+      if (!module) return undefined;
+      const instance = new WebAssembly.Instance(module, { env: { memory, log10: Math.log10 } });
+      kernels = new FieldKernels(instance.exports as unknown as Exports);
+      FieldKernels.instances.set(memory, kernels);
+    }
+    return kernels;
+  }
+
+  /** The shells of the half space into `t.bins`, Σ|k| and the mode counts (zeroed before) into `t.ksum`, `t.modes`; `row` is scratch of n2/2 + 1. */
+  shellTable(
+    t: { bins: Int16Array; ksum: Float64Array; modes: Float64Array; k: readonly Float64Array[]; count: number },
+    shape: readonly [number, number, number],
+    kF: number,
+    row: Float64Array,
+  ): void {
+    this.k.shellTable(at(t.bins), at(t.ksum), at(t.modes), at(t.k[0]!), at(t.k[1]!), at(t.k[2]!), shape[0], shape[1], shape[2], kF, t.count, at(row));
+  }
+
+  ikRows(z: Float64Array, k: Float64Array, kz: Float64Array, n1: number, n2: number, axis: number, first: number, end: number): void {
+    this.k.ikRows(at(z), at(k), at(kz), n1, n2, axis, first, end);
+  }
+
+  /** Cells [from, to); the two sums at acc[accAt], acc[accAt + 1]. */
+  packCells(psi: Float64Array, z: Float64Array, from: number, to: number, acc: Float64Array, accAt: number): void {
+    this.k.packCells(at(psi), at(z), from, to, at(acc) + 8 * accAt);
+  }
+
+  shellRows(
+    d: { shape: readonly [number, number, number]; k0: Float64Array; k1: Float64Array; k2: Float64Array; bins: Int16Array | Int32Array; count: number; perMode: number; velocityPerMode: number; div: Float64Array; nyquist: Float64Array },
+    z: Float64Array, axis: number, first: boolean, s: Float64Array, sAt: number, from: number, end: number,
+  ): void {
+    const [n0, n1, n2] = d.shape;
+    this.k.shellRows(at(z), at(d.div), at(d.nyquist), at(d.bins), at(d.k0), at(d.k1), at(d.k2), n0, n1, n2, d.count, d.perMode, d.velocityPerMode, axis, first ? 1 : 0, at(s) + 8 * sAt, from, end);
+  }
+
+  compressibleRows(
+    d: { shape: readonly [number, number, number]; k0: Float64Array; k1: Float64Array; k2: Float64Array; bins: Int16Array | Int32Array; count: number; perMode: number; div: Float64Array; nyquist: Float64Array },
+    s: Float64Array, sAt: number, from: number, end: number,
+  ): void {
+    const [n0, n1, n2] = d.shape;
+    this.k.compressibleRows(at(d.div), at(d.nyquist), at(d.bins), at(d.k0), at(d.k1), at(d.k2), n0, n1, n2, d.count, d.perMode, at(s) + 8 * sAt, from, end);
+  }
+
+  contrastCells(psi: Float64Array, out: Float64Array, mean: number, from: number, to: number): void {
+    this.k.contrastCells(at(psi), at(out), mean, from, to);
+  }
+
+  powerRows(data: Float64Array, bins: Int16Array, n2: number, perMode: number, sums: Float64Array, from: number, end: number): void {
+    this.k.powerRows(at(data), at(bins), n2, perMode, at(sums), from, end);
+  }
+
+  histogramCells(psi: Float64Array, sums: Float64Array, sAt: number, edges: Float64Array, n: number, mean: number, lo: number, width: number, bins: number, margin: number, from: number, to: number): void {
+    this.k.histogramCells(at(psi), at(sums) + 8 * sAt, at(edges), n, mean, lo, width, bins, margin, from, to);
+  }
+}

@@ -1,0 +1,291 @@
+// The diagnostics' passes over a grid (diagnostics/split-passes.ts, density-pdf.ts, the power spectrum's
+// shells) in WebAssembly, on the transforms' shared memory: the same arithmetic in the same order as their
+// JavaScript versions, cell by cell and sum by sum (no fused multiply-add, IEEE doubles on both sides), so the
+// results are the same bits. Compiled by `npm run build:wasm` to dist/fields/wasm/field-passes.wasm; every
+// argument named as an array is a byte address, every count and index an element count. The layout of the
+// tables these passes read (wavenumbers, shells, block sums) is declared in diagnostics/block-tables.ts.
+
+// log10 of the host (the density PDF's bin of a contrast close to a bin edge is decided by the defining formula)
+@external("env", "log10")
+declare function hostLog10(x: f64): f64;
+
+@inline function f(at: usize, i: i32): f64 {
+  return load<f64>(at + (<usize>i << 3));
+}
+
+@inline function setF(at: usize, i: i32, v: f64): void {
+  store<f64>(at + (<usize>i << 3), v);
+}
+
+@inline function addF(at: usize, i: i32, v: f64): void {
+  const p = at + (<usize>i << 3);
+  store<f64>(p, load<f64>(p) + v);
+}
+
+@inline function bin16(at: usize, i: i32): i32 {
+  return <i32>load<i16>(at + (<usize>i << 1));
+}
+
+/** JavaScript's Math.round of x ≥ 0: the nearer integer, a tie upwards (x − ⌊x⌋ is exact). */
+@inline function roundUp(x: f64): f64 {
+  const r = Math.floor(x);
+  return x - r >= 0.5 ? r + 1 : r;
+}
+
+/**
+ * The shells of the half space (shells.ts modeShells): for rows (a, b) and 0 ≤ c ≤ n2/2 the shell of
+ * |k| = √(k_a² + k_b² + k_c²) into the int16 table `bins` (rows of n2/2 + 1), −1 for k = 0; and Σ|k| and the mode
+ * count of each shell over every mode in storage order (c and n2 − c share k², so |k| of c > n2/2 is its mirror's).
+ */
+export function shellTable(bins: usize, ksum: usize, modes: usize, k0: usize, k1: usize, k2: usize, n0: i32, n1: i32, n2: i32, kF: f64, count: i32, row: usize): void {
+  const half = n2 >> 1;
+  const last = <f64>(count - 1);
+  for (let a = 0, r = 0; a < n0; a++) {
+    for (let b = 0; b < n1; b++, r++) {
+      const kab = f(k0, a) * f(k0, a) + f(k1, b) * f(k1, b);
+      const at = bins + (<usize>(r * (half + 1)) << 1);
+      for (let c = 0; c <= half; c++) {
+        const k = Math.sqrt(kab + f(k2, c) * f(k2, c));
+        setF(row, c, k);
+        const shell = k == 0 ? -1 : <i32>Math.min(last, Math.max(0, roundUp(k / kF) - 1));
+        store<i16>(at + (<usize>c << 1), <i16>shell);
+      }
+      for (let c = 0; c < n2; c++) {
+        const m = c <= half ? c : n2 - c;
+        const shell = <i32>load<i16>(at + (<usize>m << 1));
+        if (shell < 0) continue;
+        addF(ksum, shell, f(row, m));
+        addF(modes, shell, 1);
+      }
+    }
+  }
+}
+
+/** z ← i (row + zScale k_c) z over rows [first, end) of n2 modes: one row's derivative factor per row (axis 0: k0[a], axis 1: k1[b], axis 2: 0 and zScale 1). */
+export function ikRows(z: usize, k: usize, kz: usize, n1: i32, n2: i32, axis: i32, first: i32, end: i32): void {
+  const zScale: f64 = axis == 2 ? 1 : 0;
+  for (let r = first; r < end; r++) {
+    const a = r / n1;
+    const b = r % n1;
+    const row = axis == 0 ? f(k, a) : axis == 1 ? f(k, b) : 0;
+    let p = z + (<usize>(r * n2) << 4);
+    for (let c = 0; c < n2; c++, p += 16) {
+      const kk = row + zScale * f(kz, c);
+      const re = load<f64>(p);
+      store<f64>(p, -kk * load<f64>(p, 8));
+      store<f64>(p, kk * re, 8);
+    }
+  }
+}
+
+/** z ← u + i w over cells [from, to) from ψ and the derivative in z (split-passes.ts packRow); Σ j²/ρ and Σ j added into acc[0], acc[1]. */
+export function packCells(psi: usize, z: usize, from: i32, to: i32, acc: usize): void {
+  let bulk2 = load<f64>(acc);
+  let js = load<f64>(acc, 8);
+  for (let i = from; i < to; i++) {
+    const q = psi + (<usize>i << 4);
+    const p = z + (<usize>i << 4);
+    const re = load<f64>(q);
+    const im = load<f64>(q, 8);
+    const gr = load<f64>(p);
+    const gi = load<f64>(p, 8);
+    const rho = re * re + im * im;
+    const j = re * gi - im * gr;
+    if (rho > 0) bulk2 += (j * j) / rho;
+    js += j;
+    if (rho > 1e-300) {
+      const s = Math.sqrt(rho);
+      store<f64>(p, (re * gr + im * gi) / s);
+      store<f64>(p, j / s, 8);
+    } else {
+      store<f64>(p, Math.sqrt(gr * gr + gi * gi));
+      store<f64>(p, 0.0, 8);
+    }
+  }
+  store<f64>(acc, bulk2);
+  store<f64>(acc, js, 8);
+}
+
+/** Where row (a, b) keeps its mirrors' k·W in the Nyquist rows' table (split-passes.ts nyquistRow), or −1. */
+@inline function nyquistRow(n0: i32, n1: i32, n2: i32, a: i32, b: i32): i32 {
+  const row = n0 > 1 && 2 * a == n0 ? b : n1 > 1 && 2 * b == n1 ? n1 + a : -1;
+  return row < 0 ? -1 : row * (n2 + 2);
+}
+
+// The shell passes' totals in a block's sums (split-passes.ts SHELL_TOTALS and the order of its entries).
+const TOTALS = 5;
+
+/**
+ * split-passes.ts axisRow over rows [first, end) of one axis's packed transform z: the block's sums at `s`
+ * (the totals, then per shell the quantum, incompressible and compressible energy and the velocity power),
+ * k_axis W into `div` (assigned when `first`, else added), the Nyquist rows' mirrors into `nyq`.
+ */
+export function shellRows(
+  z: usize, div: usize, nyq: usize, bins: usize, k0: usize, k1: usize, k2: usize, n0: i32, n1: i32, n2: i32, count: i32,
+  perMode: f64, velocityPerMode: f64, axis: i32, first: i32, s: usize, from: i32, end: i32,
+): void {
+  const half = n2 >> 1;
+  const zScale: f64 = axis == 2 ? 1 : 0;
+  const sq = TOTALS;
+  const sw = sq + count;
+  const sv = sq + 3 * count;
+  let quantum = f(s, 0);
+  let incompressible = f(s, 1);
+  for (let r = from; r < end; r++) {
+    const a = r / n1;
+    const b = r % n1;
+    const ma = a == 0 ? 0 : n0 - a;
+    const mb = b == 0 ? 0 : n1 - b;
+    const kRow = axis == 0 ? f(k0, a) : axis == 1 ? f(k1, b) : 0;
+    const kMirror = axis == 0 ? f(k0, ma) : axis == 1 ? f(k1, mb) : 0;
+    let e = nyquistRow(n0, n1, n2, a, b);
+    const onNyquist = e >= 0;
+    const mirror = 2 * (ma * n1 + mb) * n2;
+    const row = z + (<usize>(r * n2) << 4);
+    const binRow = r * (half + 1);
+    for (let c = 0, h = 2 * r * (half + 1); c <= half; c++, h += 2, e += 2) {
+      const p = row + (<usize>c << 4);
+      const m = z + (<usize>(mirror + (c == 0 ? 0 : 2 * (n2 - c))) << 3);
+      const zr = load<f64>(p);
+      const zi = load<f64>(p, 8);
+      const mr = load<f64>(m);
+      const mi = load<f64>(m, 8);
+      const ur = 0.5 * (zr + mr);
+      const ui = 0.5 * (zi - mi);
+      const wr = 0.5 * (zi + mi);
+      const wi = -0.5 * (zr - mr);
+      const kj = kRow + zScale * f(k2, c);
+      if (first) {
+        setF(div, h, kj * wr);
+        setF(div, h + 1, kj * wi);
+      } else {
+        setF(div, h, f(div, h) + kj * wr);
+        setF(div, h + 1, f(div, h + 1) + kj * wi);
+      }
+      const weight: f64 = c == 0 || c == half ? 1 : 2;
+      if (onNyquist && weight == 2) {
+        const km = kMirror + zScale * f(k2, n2 - c);
+        if (first) {
+          setF(nyq, e, km * wr);
+          setF(nyq, e + 1, -(km * wi));
+        } else {
+          setF(nyq, e, f(nyq, e) + km * wr);
+          setF(nyq, e + 1, f(nyq, e + 1) - km * wi);
+        }
+      }
+      const eq = weight * (ur * ur + ui * ui) * perMode;
+      const ww = weight * (wr * wr + wi * wi);
+      quantum += eq;
+      incompressible += ww * perMode;
+      const shell = bin16(bins, binRow + c);
+      if (shell < 0) {
+        addF(s, 3, ww * perMode);
+        addF(s, 4, eq + ww * perMode);
+        continue;
+      }
+      addF(s, sq + shell, eq);
+      addF(s, sw + shell, ww * perMode);
+      addF(s, sv + shell, ww * velocityPerMode);
+    }
+  }
+  setF(s, 0, quantum);
+  setF(s, 1, incompressible);
+}
+
+/** split-passes.ts compressibleRow over rows [from, end): |k̂·W|² from `div` (and `nyq` on the Nyquist rows) into the block's sums at `s`. */
+export function compressibleRows(
+  div: usize, nyq: usize, bins: usize, k0: usize, k1: usize, k2: usize, n0: i32, n1: i32, n2: i32, count: i32, perMode: f64, s: usize, from: i32, end: i32,
+): void {
+  const half = n2 >> 1;
+  const sw = TOTALS + count;
+  const sc = sw + count;
+  let compressible = f(s, 2);
+  let incompressible = f(s, 1);
+  for (let r = from; r < end; r++) {
+    const a = r / n1;
+    const b = r % n1;
+    const kab = f(k0, a) * f(k0, a) + f(k1, b) * f(k1, b);
+    let e = nyquistRow(n0, n1, n2, a, b);
+    const onNyquist = e >= 0;
+    const binRow = r * (half + 1);
+    for (let c = 0, h = 2 * r * (half + 1); c <= half; c++, h += 2, e += 2) {
+      const kk = kab + f(k2, c) * f(k2, c);
+      if (kk == 0) continue;
+      const dr = f(div, h);
+      const di = f(div, h + 1);
+      const own = dr * dr + di * di;
+      let mirror: f64 = 0;
+      if (c != 0 && c != half) {
+        if (onNyquist) {
+          const nr = f(nyq, e);
+          const ni = f(nyq, e + 1);
+          mirror = nr * nr + ni * ni;
+        } else mirror = own;
+      }
+      const ec = ((own + mirror) / kk) * perMode;
+      compressible += ec;
+      incompressible -= ec;
+      const shell = bin16(bins, binRow + c);
+      addF(s, sc + shell, ec);
+      addF(s, sw + shell, -ec);
+    }
+  }
+  setF(s, 2, compressible);
+  setF(s, 1, incompressible);
+}
+
+/** δ = |ψ|²/ρ̄ − 1 (imaginary part 0) over cells [from, to), for the power spectrum (analysis.ts). */
+export function contrastCells(psi: usize, out: usize, mean: f64, from: i32, to: i32): void {
+  for (let i = from; i < to; i++) {
+    const q = psi + (<usize>i << 4);
+    const re = load<f64>(q);
+    const im = load<f64>(q, 8);
+    store<f64>(out + (<usize>i << 4), (re * re + im * im) / mean - 1);
+    store<f64>(out + (<usize>i << 4), 0.0, 8);
+  }
+}
+
+/** Σ perMode |δ_k|² per shell over rows [from, end) of the spectrum, in storage order (c > n2/2 takes the shell of n2 − c). */
+export function powerRows(data: usize, bins: usize, n2: i32, perMode: f64, sums: usize, from: i32, end: i32): void {
+  const half = n2 >> 1;
+  for (let r = from; r < end; r++) {
+    const binRow = r * (half + 1);
+    const row = data + (<usize>(r * n2) << 4);
+    for (let c = 0; c < n2; c++) {
+      const shell = bin16(bins, binRow + (c <= half ? c : n2 - c));
+      if (shell < 0) continue;
+      const re = load<f64>(row + (<usize>c << 4));
+      const im = load<f64>(row + (<usize>c << 4), 8);
+      addF(sums, shell, perMode * (re * re + im * im));
+    }
+  }
+}
+
+/** log₂ of a positive double to within 0.09 from its exponent and leading mantissa bits (density-pdf.ts roughLog2). */
+@inline function roughLog2(r: f64): f64 {
+  const high = <u32>(reinterpret<u64>(r) >> 32);
+  return <f64>(<i32>(high >>> 20) - 1023) + <f64>(high & 0xfffff) / <f64>0x100000;
+}
+
+/** The defining bin of contrast r (density-pdf.ts binOf). */
+@inline function binOf(r: f64, lo: f64, width: f64, bins: i32): i32 {
+  return <i32>Math.min(<f64>(bins - 1), Math.max(0, Math.floor((hostLog10(r) - lo) / width)));
+}
+
+/** density-pdf.ts histogramCells over cells [from, to): volume and mass fractions per bin into sums (bins each), bins found by `edges`. */
+export function histogramCells(psi: usize, sums: usize, edges: usize, n: f64, mean: f64, lo: f64, width: f64, bins: i32, margin: f64, from: i32, to: i32): void {
+  const perLog2 = Math.LOG10E * Math.LN2;
+  const top = <f64>(bins - 1);
+  for (let i = from; i < to; i++) {
+    const q = psi + (<usize>i << 4);
+    const re = load<f64>(q);
+    const im = load<f64>(q, 8);
+    const r = Math.max((re * re + im * im) / mean, 1e-30);
+    let b = <i32>Math.min(top, Math.max(0, Math.floor((roughLog2(r) * perLog2 - lo) / width)));
+    while (b < bins - 1 && r >= f(edges, b + 1)) b++;
+    while (r < f(edges, b)) b--;
+    if (r < f(edges, b) * (1 + margin) || r >= f(edges, b + 1) * (1 - margin)) b = binOf(r, lo, width, bins);
+    addF(sums, b, 1 / n);
+    addF(sums, bins + b, r / n);
+  }
+}
