@@ -25,8 +25,10 @@ export function runPdfTask(t: PdfTask & OnMemory, lo: number, hi: number, kernel
   const k = t.wasm ? kernels : undefined;
   for (let u = lo; u < hi; u++) {
     const [first, end] = blockRows(t.at, u);
-    if (t.kind === "pdf-range") rangeCells(t.psi, 2 * first, 2 * end, t.sums, 3 * u);
-    else if (k) k.histogramCells(t.psi, t.sums, 2 * t.bins * u, t.edges, t.psi.length / 2, t.mean, t.lo, t.width, t.bins, EDGE_MARGIN, first, end);
+    if (t.kind === "pdf-range") {
+      if (k) k.rangeCells(t.psi, first, end, t.sums, 3 * u);
+      else rangeCells(t.psi, 2 * first, 2 * end, t.sums, 3 * u);
+    } else if (k) k.histogramCells(t.psi, t.sums, 2 * t.bins * u, t.edges, t.psi.length / 2, t.mean, t.lo, t.width, t.bins, EDGE_MARGIN, first, end);
     else histogramCells(t, 2 * first, 2 * end, 2 * t.bins * u);
   }
 }
@@ -115,8 +117,8 @@ export function densityPdf(psi: Float64Array, bins = 40, run: BlockRunner, table
   const at = cellBlocks(psi);
   // the range of ρ, then of ρ/ρ̄: dividing by ρ̄ > 0 keeps the order, so the extremes are the same cells'
   // (log₁₀ is monotonic: empty cells count as 1e-30 but do not set the lower end)
-  const range = sharedFloats(3 * at.blocks);
-  run(at.blocks, { kind: "pdf-range", at, psi, sums: range });
+  const range = tables ? tables.sums.subarray(0, 3 * at.blocks) : sharedFloats(3 * at.blocks);
+  run(at.blocks, { kind: "pdf-range", at, psi, sums: range, wasm: tables !== undefined });
   let [sum, minRho, maxRho] = [0, Infinity, 0];
   for (let u = 0; u < at.blocks; u++) [sum, minRho, maxRho] = [sum + range[3 * u]!, Math.min(minRho, range[3 * u + 1]!), Math.max(maxRho, range[3 * u + 2]!)];
   const mean = sum / n;
@@ -125,6 +127,7 @@ export function densityPdf(psi: Float64Array, bins = 40, run: BlockRunner, table
   if (!(hi > lo)) return [{ log10Contrast: hi, volumeFraction: 1, massFraction: 1 }];
   const width = (hi - lo) / bins;
   const wasm = tables !== undefined && bins <= PDF_MAX_BINS;
+  // (the range's sums are read: the histogram's take their place)
   const sums = wasm ? tables.sums.subarray(0, 2 * bins * at.blocks).fill(0) : sharedFloats(2 * bins * at.blocks);
   const edges = binEdges(lo, width, bins);
   if (wasm) tables.edges.set(edges);

@@ -153,12 +153,12 @@ export function energyAndKineticSplit(grid: Grid, psi: Float64Array, a: number, 
   const spec = fft.work(0);
   run(rowBlocks(grid.shape).blocks, { kind: "copy", at: rowBlocks(grid.shape), from: psi, to: spec });
   fft.forward(spec);
-  const mass = massOf(psi);
+  const tables = blockTablesOf(fft, grid, psi, spec);
+  const mass = tables ? tables.kernels.massCells(psi, 0, n) : massOf(psi);
   const perMode = (0.5 / (a * a)) * (grid.cellVolume / n);
   const unresolved = nyquistEnergy(grid, spec, perMode);
-  const moments = spectrumMoments(grid, spec);
+  const moments = spectrumMoments(grid, spec, tables);
   const shells = new Shells(grid, 4);
-  const tables = blockTablesOf(fft, grid, psi, spec);
   shells.countModes(tables ?? modeShells(grid));
   const velocityPerMode = grid.volume / (n * n) / (a * a * (mass / n));
   // k·W in the first half of work grid 1 (its other half is never touched)

@@ -261,10 +261,18 @@ export function powerRows(data: usize, bins: usize, n2: i32, perMode: f64, sums:
   }
 }
 
-/** log₂ of a positive double to within 0.09 from its exponent and leading mantissa bits (density-pdf.ts roughLog2). */
-@inline function roughLog2(r: f64): f64 {
-  const high = <u32>(reinterpret<u64>(r) >> 32);
-  return <f64>(<i32>(high >>> 20) - 1023) + <f64>(high & 0xfffff) / <f64>0x100000;
+/**
+ * log₂ of a positive normal double to about 1e-6: its exponent, and log₂(1 + m) of its mantissa by
+ * 2 atanh(s)/ln 2 with s = m/(2 + m) ≤ 1/3 (four terms of the series). Only a first guess of a bin, which the
+ * comparisons with the edges then correct: a closer guess saves their mispredicted branches.
+ */
+@inline function nearLog2(r: f64): f64 {
+  const bits = reinterpret<u64>(r);
+  const m = reinterpret<f64>((bits & 0x000fffffffffffff) | 0x3ff0000000000000) - 1;
+  const s = m / (2 + m);
+  const s2 = s * s;
+  const ln = 2 * s * (1 + s2 * (1.0 / 3 + s2 * (1.0 / 5 + s2 * (1.0 / 7))));
+  return <f64>(<i32>(bits >> 52) - 1023) + ln * Math.LOG2E;
 }
 
 /** The defining bin of contrast r (density-pdf.ts binOf). */
@@ -272,20 +280,87 @@ export function powerRows(data: usize, bins: usize, n2: i32, perMode: f64, sums:
   return <i32>Math.min(<f64>(bins - 1), Math.max(0, Math.floor((hostLog10(r) - lo) / width)));
 }
 
-/** density-pdf.ts histogramCells over cells [from, to): volume and mass fractions per bin into sums (bins each), bins found by `edges`. */
+/**
+ * density-pdf.ts histogramCells over cells [from, to): volume and mass fractions per bin into sums (bins each),
+ * bins found by `edges` (the same bins whatever the first guess). 1/n is the same double as there; r/n is r
+ * times it when n is a power of two (then exact: the same double).
+ */
 export function histogramCells(psi: usize, sums: usize, edges: usize, n: f64, mean: f64, lo: f64, width: f64, bins: i32, margin: f64, from: i32, to: i32): void {
   const perLog2 = Math.LOG10E * Math.LN2;
   const top = <f64>(bins - 1);
+  const inv = 1 / n;
+  const exact = (reinterpret<u64>(n) & 0x000fffffffffffff) == 0;
   for (let i = from; i < to; i++) {
     const q = psi + (<usize>i << 4);
     const re = load<f64>(q);
     const im = load<f64>(q, 8);
     const r = Math.max((re * re + im * im) / mean, 1e-30);
-    let b = <i32>Math.min(top, Math.max(0, Math.floor((roughLog2(r) * perLog2 - lo) / width)));
+    let b = <i32>Math.min(top, Math.max(0, Math.floor((nearLog2(r) * perLog2 - lo) / width)));
     while (b < bins - 1 && r >= f(edges, b + 1)) b++;
     while (r < f(edges, b)) b--;
     if (r < f(edges, b) * (1 + margin) || r >= f(edges, b + 1) * (1 - margin)) b = binOf(r, lo, width, bins);
-    addF(sums, b, 1 / n);
-    addF(sums, bins + b, r / n);
+    addF(sums, b, inv);
+    addF(sums, bins + b, exact ? r * inv : r / n);
   }
+}
+
+/** Block sums of the density PDF's range pass (density-pdf.ts rangeCells) over cells [from, to): Σρ, the least ρ > 0 and the largest ρ into out[0…2]. */
+export function rangeCells(psi: usize, from: i32, to: i32, out: usize): void {
+  let sum: f64 = 0;
+  let minRho = Infinity;
+  let maxRho: f64 = 0;
+  for (let i = from; i < to; i++) {
+    const q = psi + (<usize>i << 4);
+    const re = load<f64>(q);
+    const im = load<f64>(q, 8);
+    const rho = re * re + im * im;
+    sum += rho;
+    if (rho > 0 && rho < minRho) minRho = rho;
+    if (rho > maxRho) maxRho = rho;
+  }
+  setF(out, 0, sum);
+  setF(out, 1, minRho);
+  setF(out, 2, maxRho);
+}
+
+/** Σ|ψ|² over cells [from, to) in storage order (energy-split.ts massOf). */
+export function massCells(psi: usize, from: i32, to: i32): f64 {
+  let mass: f64 = 0;
+  for (let i = from; i < to; i++) {
+    const re = load<f64>(psi + (<usize>i << 4));
+    const im = load<f64>(psi + (<usize>i << 4), 8);
+    mass += re * re + im * im;
+  }
+  return mass;
+}
+
+/** spectrum-moments.ts over rows [from, end) of a spectrum: Σ m, Σ k² m, Σ kx m, Σ ky m, Σ kz m with m = |ψ_k|², added into acc[0…4] in storage order. */
+export function momentRows(spec: usize, k0: usize, k1: usize, k2: usize, n1: i32, n2: i32, from: i32, end: i32, acc: usize): void {
+  let w = f(acc, 0);
+  let kk = f(acc, 1);
+  let x1 = f(acc, 2);
+  let y1 = f(acc, 3);
+  let z1 = f(acc, 4);
+  for (let r = from; r < end; r++) {
+    const kx = f(k0, r / n1);
+    const ky = f(k1, r % n1);
+    const kab = kx * kx + ky * ky;
+    const row = spec + (<usize>(r * n2) << 4);
+    for (let c = 0; c < n2; c++) {
+      const re = load<f64>(row + (<usize>c << 4));
+      const im = load<f64>(row + (<usize>c << 4), 8);
+      const m = re * re + im * im;
+      const kz = f(k2, c);
+      w += m;
+      kk += (kab + kz * kz) * m;
+      x1 += kx * m;
+      y1 += ky * m;
+      z1 += kz * m;
+    }
+  }
+  setF(acc, 0, w);
+  setF(acc, 1, kk);
+  setF(acc, 2, x1);
+  setF(acc, 3, y1);
+  setF(acc, 4, z1);
 }
