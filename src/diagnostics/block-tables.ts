@@ -5,7 +5,8 @@
  * blocks' sums, the Nyquist rows' mirrors of the energy split, the
  * wavenumbers of each axis (as the grid has them, and the derivative's with
  * the Nyquist index's zero), the shells' Σ|k| and mode counts, the density
- * PDF's bin edges and the shell of every mode of the half space (int16, rows
+ * PDF's bin edges, room for the granules' separations and the shell of every
+ * mode of the half space (int16, rows
  * of n2/2 + 1; a mode with c > n2/2 has the shell of n2 − c). The shells are
  * filled once per grid shape and extent.
  */
@@ -31,6 +32,7 @@ interface Layout {
   readonly modes: number;
   readonly edges: number;
   readonly row: number;
+  readonly separations: number;
   /** The shells of the half space, int16 from this double on. */
   readonly bins: number;
   readonly length: number;
@@ -52,8 +54,9 @@ function layoutOf(shape: readonly [number, number, number], count: number): Layo
   const modes = take(count);
   const edges = take(PDF_MAX_BINS + 1);
   const row = take(Math.floor(n2 / 2) + 1);
+  const separations = take(n0 * n1 + n2);
   const bins = take(Math.ceil((n0 * n1 * (Math.floor(n2 / 2) + 1)) / 4));
-  return { sums, nyquist, k, d, ksum, modes, edges, row, bins, length: top };
+  return { sums, nyquist, k, d, ksum, modes, edges, row, separations, bins, length: top };
 }
 
 /** Whether the WebAssembly passes take a grid of this shape: every axis even or absent, the last simulated, shells within int16. */
@@ -83,6 +86,8 @@ export interface BlockTables {
   readonly edges: Float64Array;
   /** The shell of each mode of the half space (rows of n2/2 + 1). */
   readonly bins: Int16Array;
+  /** Room for a distance of each row of the first two axes (n0 n1) and of each cell along the last (n2): the granules' separations. */
+  readonly separations: Float64Array;
 }
 
 /** Anything that may hold a tables region and the kernels to run on it (integrators/pooled-transforms.ts). */
@@ -118,6 +123,7 @@ export function blockTablesOf(owner: unknown, grid: Grid, ...fields: Float64Arra
     ksum: view(at.ksum, count),
     modes: view(at.modes, count),
     edges: view(at.edges, PDF_MAX_BINS + 1),
+    separations: view(at.separations, n0 * n1 + n2),
     bins: new Int16Array(region.buffer, region.byteOffset + 8 * at.bins, n0 * n1 * (Math.floor(n2 / 2) + 1)),
   };
   for (let axis = 0; axis < 3; axis++) {

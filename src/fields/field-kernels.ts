@@ -25,6 +25,9 @@ interface Exports {
   rangeCells(psi: number, from: number, to: number, out: number): void;
   massCells(psi: number, from: number, to: number): number;
   momentRows(spec: number, k0: number, k1: number, k2: number, n1: number, n2: number, from: number, end: number, acc: number): void;
+  contrastCounts(psi: number, mean: number, width: number, counts: number, bins: number, data: number, n: number): number;
+  powerCells(data: number, n: number): void;
+  distanceShells(data: number, rows: number, last: number, count: number, n2: number, h: number, limit: number, sum: number, rs: number, cnt: number, bins: number): void;
 }
 
 /** Where the compiled module is: beside the transform kernels when built, in dist/ when running from the sources (tests). */
@@ -137,6 +140,21 @@ export class FieldKernels {
   /** The moments of a spectrum's rows [from, end) (k0, k1, k2 the grid's wavenumbers) added into acc[0…4]. */
   momentRows(spec: Float64Array, k: readonly Float64Array[], shape: readonly [number, number, number], from: number, end: number, acc: Float64Array): void {
     this.k.momentRows(at(spec), at(k[0]!), at(k[1]!), at(k[2]!), shape[1], shape[2], from, end, at(acc));
+  }
+
+  /** x = |ψ|²/ρ̄ of every cell counted in `counts` (bins of `width`), δ = x − 1 into `data` when given; returns var(δ). */
+  contrastCounts(psi: Float64Array, mean: number, width: number, counts: Float64Array, data: Float64Array | undefined): number {
+    return this.k.contrastCounts(at(psi), mean, width, at(counts), counts.length, data ? at(data) : 0, psi.length / 2);
+  }
+
+  /** data ← |data|²/n (real), every cell. */
+  powerCells(data: Float64Array): void {
+    this.k.powerCells(at(data), data.length / 2);
+  }
+
+  /** The real parts of `data` in shells of width h by √(rows[r] + last[c]) (rows at or beyond `limit` skipped) into sum, rs, cnt (their length: the shells). */
+  distanceShells(data: Float64Array, rows: Float64Array, last: Float64Array, h: number, limit: number, sum: Float64Array, rs: Float64Array, cnt: Float64Array): void {
+    this.k.distanceShells(at(data), at(rows), at(last), rows.length, last.length, h, limit, at(sum), at(rs), at(cnt), sum.length);
   }
 
   histogramCells(psi: Float64Array, sums: Float64Array, sAt: number, edges: Float64Array, n: number, mean: number, lo: number, width: number, bins: number, margin: number, from: number, to: number): void {

@@ -171,7 +171,7 @@ describe("field energies of a snapshot", () => {
 });
 
 describe("the passes in WebAssembly (the tables analyze gives the transforms, ψ in their third work grid)", () => {
-  it.each(cases)("$cells: energy split, P(k) and the PDF are the same bits as the passes in JavaScript, on 1 and 2 threads, every time", ({ cells, a }) => {
+  it.each(cases)("$cells: energy split, P(k), the PDF and the granules are the same bits as the passes in JavaScript, on 1 and 2 threads, every time", ({ cells, a }) => {
     const grid = new Grid([...cells], cells.map((_, i) => 1 + 0.25 * i));
     const psi = gaussianComplexField(grid, (k2) => Math.exp(-k2 / 300), 7);
     for (let i = 0; i < grid.size; i++) psi[2 * i] = psi[2 * i]! + 0.5;
@@ -181,7 +181,11 @@ describe("the passes in WebAssembly (the tables analyze gives the transforms, ψ
       const both = energyAndKineticSplit(grid, on, a, fft);
       const power = densityPowerSpectrum(grid, on, fft, 0, both.meanDensity);
       const pdf = densityPdf(on, 40, runnerOf(fft, on), blockTablesOf(fft, grid, on));
-      return { both, power, pdf, wasm: blockTablesOf(fft, grid, on) !== undefined };
+      // as analyze measures the granules: from δ's spectrum that P(k) leaves, with the split's moments and ρ̄
+      const granules = granuleStats(grid, on, a, fft, undefined, undefined, { contrastSpectrum: fft.work(0), moments: both.moments, meanDensity: both.meanDensity });
+      // and on their own (δ and ψ's spectrum transformed here)
+      const alone = granuleStats(grid, on, a, fft);
+      return { both, power, pdf, granules, alone, wasm: blockTablesOf(fft, grid, on) !== undefined };
     };
     const plain = new PooledTransforms(grid, 3, { threads: 1, backend: "wasm" });
     opened.push(plain);

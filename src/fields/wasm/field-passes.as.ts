@@ -364,3 +364,60 @@ export function momentRows(spec: usize, k0: usize, k1: usize, k2: usize, n1: i32
   setF(acc, 3, y1);
   setF(acc, 4, z1);
 }
+
+/**
+ * granules.ts contrastPass over cells [0, n): x = |ψ|²/ρ̄ counted in bins of `width` (those below `bins`, into
+ * `counts`), δ = x − 1 into the real parts of `data` unless it is 0; returns Σ δ²/n in storage order.
+ */
+export function contrastCounts(psi: usize, mean: f64, width: f64, counts: usize, bins: i32, data: usize, n: i32): f64 {
+  const cells = <f64>n;
+  let variance: f64 = 0;
+  for (let i = 0; i < n; i++) {
+    const q = psi + (<usize>i << 4);
+    const re = load<f64>(q);
+    const im = load<f64>(q, 8);
+    const x = (re * re + im * im) / mean;
+    if (data) {
+      store<f64>(data + (<usize>i << 4), x - 1);
+      store<f64>(data + (<usize>i << 4), 0.0, 8);
+    }
+    variance += ((x - 1) * (x - 1)) / cells;
+    const b = Math.floor(x / width);
+    if (b < <f64>bins) addF(counts, <i32>b, 1);
+  }
+  return variance;
+}
+
+/** data ← |data|²/n with imaginary part 0, over cells [0, n) (the power whose inverse transform is ξ). */
+export function powerCells(data: usize, n: i32): void {
+  const cells = <f64>n;
+  for (let i = 0; i < n; i++) {
+    const p = data + (<usize>i << 4);
+    const re = load<f64>(p);
+    const im = load<f64>(p, 8);
+    store<f64>(p, (re * re + im * im) / cells);
+    store<f64>(p, 0.0, 8);
+  }
+}
+
+/**
+ * granules.ts shellAverage's rows: the real parts of `data` in shells of width h by the minimum-image distance
+ * √(rows[r] + last[c]) (rows beyond `limit` skipped), Σ value, Σ r and the count per shell below `bins` into
+ * sum, rs, cnt; in storage order.
+ */
+export function distanceShells(data: usize, rows: usize, last: usize, count: i32, n2: i32, h: f64, limit: f64, sum: usize, rs: usize, cnt: usize, bins: i32): void {
+  for (let row = 0; row < count; row++) {
+    const rowR2 = f(rows, row);
+    if (!(Math.sqrt(rowR2) < limit)) continue;
+    const at = data + (<usize>(row * n2) << 4);
+    for (let c = 0; c < n2; c++) {
+      const r = Math.sqrt(rowR2 + f(last, c));
+      const b = Math.floor(r / h + 0.5);
+      if (b >= <f64>bins) continue;
+      const i = <i32>b;
+      addF(sum, i, load<f64>(at + (<usize>c << 4)));
+      addF(rs, i, r);
+      addF(cnt, i, 1);
+    }
+  }
+}
