@@ -56,8 +56,8 @@ export interface EnergySplit {
   readonly spectra: EnergyShell[];
 }
 
-/** The energy of the Nyquist planes' derivative, Σ over the modes with k_i = π/Δx of k_i²|ψ_k|² (summed per axis), times `perMode`. */
-function nyquistEnergy(grid: Grid, spec: Float64Array, perMode: number): number {
+/** The energy of the Nyquist planes' derivative, Σ over the modes with k_i = π/Δx of k_i²|ψ_k|² (summed per axis), times `perMode` (in WebAssembly with `tables`). */
+function nyquistEnergy(grid: Grid, spec: Float64Array, perMode: number, tables: BlockTables | undefined): number {
   const [n0, n1, n2] = grid.shape;
   let sum = 0;
   for (const ax of simulatedAxes(grid)) {
@@ -66,6 +66,10 @@ function nyquistEnergy(grid: Grid, spec: Float64Array, perMode: number): number 
     lo[ax] = grid.shape[ax] / 2;
     hi[ax] = lo[ax]! + 1;
     const k = grid.wavenumbers(ax)[lo[ax]!]!;
+    if (tables) {
+      sum = tables.kernels.nyquistPlane(spec, grid.shape, ax, k, perMode, sum);
+      continue;
+    }
     for (let a = lo[0]!; a < hi[0]!; a++)
       for (let b = lo[1]!; b < hi[1]!; b++)
         for (let c = lo[2]!; c < hi[2]!; c++) {
@@ -156,7 +160,7 @@ export function energyAndKineticSplit(grid: Grid, psi: Float64Array, a: number, 
   const tables = blockTablesOf(fft, grid, psi, spec);
   const mass = tables ? tables.kernels.massCells(psi, 0, n) : massOf(psi);
   const perMode = (0.5 / (a * a)) * (grid.cellVolume / n);
-  const unresolved = nyquistEnergy(grid, spec, perMode);
+  const unresolved = nyquistEnergy(grid, spec, perMode, tables);
   const moments = spectrumMoments(grid, spec, tables);
   const shells = new Shells(grid, 4);
   shells.countModes(tables ?? modeShells(grid));

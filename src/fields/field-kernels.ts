@@ -27,6 +27,10 @@ interface Exports {
   momentRows(spec: number, k0: number, k1: number, k2: number, n1: number, n2: number, from: number, end: number, acc: number): void;
   contrastCounts(psi: number, mean: number, width: number, counts: number, bins: number, data: number, n: number): number;
   powerCells(data: number, n: number): void;
+  nyquistPlane(spec: number, n0: number, n1: number, n2: number, axis: number, k: number, perMode: number, sum: number): number;
+  densityCells(psi: number, rho: number, n: number): void;
+  peakRows(rho: number, n0: number, n1: number, n2: number, from: number, out: number, cap: number): number;
+  radialCells(psi: number, n1: number, n2: number, la: number, na: number, lb: number, nb: number, lc: number, nc: number, h: number, bins: number, sum: number, rs: number, cnt: number): void;
   distanceShells(data: number, rows: number, last: number, count: number, n2: number, h: number, limit: number, sum: number, rs: number, cnt: number, bins: number): void;
 }
 
@@ -145,6 +149,46 @@ export class FieldKernels {
   /** x = |ψ|²/ρ̄ of every cell counted in `counts` (bins of `width`), δ = x − 1 into `data` when given; returns var(δ). */
   contrastCounts(psi: Float64Array, mean: number, width: number, counts: Float64Array, data: Float64Array | undefined): number {
     return this.k.contrastCounts(at(psi), mean, width, at(counts), counts.length, data ? at(data) : 0, psi.length / 2);
+  }
+
+  /** sum + Σ k² |spec|² perMode over the modes with index n_axis/2 along `axis` (the Nyquist plane; n_axis even), in storage order. */
+  nyquistPlane(spec: Float64Array, shape: readonly [number, number, number], axis: number, k: number, perMode: number, sum: number): number {
+    return this.k.nyquistPlane(at(spec), shape[0], shape[1], shape[2], axis, k, perMode, sum);
+  }
+
+  /** ρ = |ψ|² of every cell of ψ into rho. */
+  densityCells(psi: Float64Array, rho: Float64Array): void {
+    this.k.densityCells(at(psi), at(rho), rho.length);
+  }
+
+  /**
+   * The local maxima of ρ (no neighbour along a simulated axis exceeds them, periodic) in storage order, found a
+   * few rows at a time into `room` (an array of this memory of more than n2 / 2 numbers).
+   */
+  peakCandidates(rho: Float64Array, shape: readonly [number, number, number], room: Float64Array): Int32Array {
+    const [n0, n1, n2] = shape;
+    const list = new Int32Array(room.buffer, room.byteOffset, 2 * room.length);
+    const found: Int32Array[] = [];
+    let total = 0;
+    for (let row = 0; row < n0 * n1; ) {
+      row = this.k.peakRows(at(rho), n0, n1, n2, row, at(room), list.length - 1);
+      const count = list[0]!;
+      found.push(list.slice(1, 1 + count));
+      total += count;
+    }
+    const out = new Int32Array(total);
+    let p = 0;
+    for (const part of found) {
+      out.set(part, p);
+      p += part.length;
+    }
+    return out;
+  }
+
+  /** radialCells over index lists (each: its indices, then their squared distances), shells of width h into sum, rs, cnt (their length: the shells). */
+  radialCells(psi: Float64Array, shape: readonly [number, number, number], lists: readonly Float64Array[], h: number, sum: Float64Array, rs: Float64Array, cnt: Float64Array): void {
+    const [la, lb, lc] = lists as [Float64Array, Float64Array, Float64Array];
+    this.k.radialCells(at(psi), shape[1], shape[2], at(la), la.length / 2, at(lb), lb.length / 2, at(lc), lc.length / 2, h, sum.length, at(sum), at(rs), at(cnt));
   }
 
   /** data ← |data|²/n (real), every cell. */

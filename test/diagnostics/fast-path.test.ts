@@ -6,7 +6,7 @@ import { Grid } from "../../src/grid/grid.js";
 import { ComplexFft, outerCount } from "../../src/fields/fft.js";
 import { SimpleTransforms } from "../../src/fields/field-transforms.js";
 import { PooledTransforms } from "../../src/integrators/pooled-transforms.js";
-import { densestPoints, densityPdf, densityPowerSpectrum, kineticSplit, meanDensity } from "../../src/diagnostics/analysis.js";
+import { densestPoints, densityPdf, densityPowerSpectrum, kineticSplit, meanDensity, radialProfile } from "../../src/diagnostics/analysis.js";
 import { runnerOf } from "../../src/diagnostics/block-tasks.js";
 import { kineticFromGradient, periodicPotentialFromContrast } from "../../src/diagnostics/energies.js";
 import { energyAndKineticSplit, energySplit } from "../../src/diagnostics/energy-split.js";
@@ -171,7 +171,7 @@ describe("field energies of a snapshot", () => {
 });
 
 describe("the passes in WebAssembly (the tables analyze gives the transforms, ψ in their third work grid)", () => {
-  it.each(cases)("$cells: energy split, P(k), the PDF and the granules are the same bits as the passes in JavaScript, on 1 and 2 threads, every time", ({ cells, a }) => {
+  it.each(cases)("$cells: energy split, P(k), the PDF, the granules, the densest points and their profiles are the same bits as the passes in JavaScript, on 1 and 2 threads, every time", ({ cells, a }) => {
     const grid = new Grid([...cells], cells.map((_, i) => 1 + 0.25 * i));
     const psi = gaussianComplexField(grid, (k2) => Math.exp(-k2 / 300), 7);
     for (let i = 0; i < grid.size; i++) psi[2 * i] = psi[2 * i]! + 0.5;
@@ -185,7 +185,11 @@ describe("the passes in WebAssembly (the tables analyze gives the transforms, ψ
       const granules = granuleStats(grid, on, a, fft, undefined, undefined, { contrastSpectrum: fft.work(0), moments: both.moments, meanDensity: both.meanDensity });
       // and on their own (δ and ψ's spectrum transformed here)
       const alone = granuleStats(grid, on, a, fft);
-      return { both, power, pdf, granules, alone, wasm: blockTablesOf(fft, grid, on) !== undefined };
+      // the densest points (work grid 1 their scratch) and the profiles around them
+      const tables = blockTablesOf(fft, grid, on);
+      const peaks = densestPoints(grid, on, 5, 2, fft.work(1), tables);
+      const profiles = peaks.map((p) => radialProfile(grid, on, p.coords, Math.min(...grid.lengths) / 4, tables));
+      return { both, power, pdf, granules, alone, peaks, profiles, wasm: tables !== undefined };
     };
     const plain = new PooledTransforms(grid, 3, { threads: 1, backend: "wasm" });
     opened.push(plain);
@@ -238,5 +242,29 @@ describe("the passes in WebAssembly (the tables analyze gives the transforms, ψ
     expect(Math.abs(s.kinetic / kinetic - 1)).toBeLessThan(1e-12);
     expect(Math.abs(s.quantum) / kinetic).toBeLessThan(1e-12);
     expect(Math.abs(s.incompressible / kinetic - 1)).toBeLessThan(1e-12);
+  });
+});
+
+describe("the local maxima in WebAssembly", () => {
+  it("found a few rows at a time into a small room are every cell no neighbour exceeds (checked cell by cell here), in storage order", () => {
+    const grid = new Grid([8, 16, 32], [1, 1, 1]);
+    const fast = new PooledTransforms(grid, 3, { threads: 1, backend: "wasm", tables: blockTablesLength(grid) });
+    opened.push(fast);
+    const tables = blockTablesOf(fast, grid)!;
+    const psi = gaussianComplexField(grid, (k2) => Math.exp(-k2 / 100), 11);
+    const rho = fast.work(1).subarray(0, grid.size);
+    for (let i = 0; i < grid.size; i++) rho[i] = Math.round(4 * (psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2)) / 4;
+    const [n0, n1, n2] = grid.shape;
+    const expected: number[] = [];
+    for (let a = 0; a < n0; a++)
+      for (let b = 0; b < n1; b++)
+        for (let c = 0; c < n2; c++) {
+          const v = rho[(a * n1 + b) * n2 + c]!;
+          const at = (x: number, y: number, z: number) => rho[(((x + n0) % n0) * n1 + ((y + n1) % n1)) * n2 + ((z + n2) % n2)]!;
+          if ([at(a + 1, b, c), at(a - 1, b, c), at(a, b + 1, c), at(a, b - 1, c), at(a, b, c + 1), at(a, b, c - 1)].every((u) => u <= v)) expected.push((a * n1 + b) * n2 + c);
+        }
+    // rounded densities: ties between neighbours, which both count
+    expect(expected.length).toBeGreaterThan(40);
+    for (const room of [tables.sums.subarray(0, 17), tables.sums.subarray(0, 40), tables.sums]) expect(Array.from(tables.kernels.peakCandidates(rho, grid.shape, room))).toEqual(expected);
   });
 });

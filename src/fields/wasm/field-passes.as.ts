@@ -421,3 +421,87 @@ export function distanceShells(data: usize, rows: usize, last: usize, count: i32
     }
   }
 }
+
+/** energy-split.ts nyquistEnergy's plane of one axis: sum + Σ k² |spec|² perMode over the modes with index n_axis/2 along `axis`, in storage order. */
+export function nyquistPlane(spec: usize, n0: i32, n1: i32, n2: i32, axis: i32, k: f64, perMode: f64, sum: f64): f64 {
+  const a0 = axis == 0 ? n0 >> 1 : 0;
+  const a1 = axis == 0 ? a0 + 1 : n0;
+  const b0 = axis == 1 ? n1 >> 1 : 0;
+  const b1 = axis == 1 ? b0 + 1 : n1;
+  const c0 = axis == 2 ? n2 >> 1 : 0;
+  const c1 = axis == 2 ? c0 + 1 : n2;
+  for (let a = a0; a < a1; a++)
+    for (let b = b0; b < b1; b++)
+      for (let c = c0; c < c1; c++) {
+        const p = spec + (<usize>((a * n1 + b) * n2 + c) << 4);
+        const re = load<f64>(p);
+        const im = load<f64>(p, 8);
+        sum += k * k * (re * re + im * im) * perMode;
+      }
+  return sum;
+}
+
+/** ρ = |ψ|² of cells [0, n) into `rho` (peaks.ts densityGrid). */
+export function densityCells(psi: usize, rho: usize, n: i32): void {
+  for (let i = 0; i < n; i++) {
+    const re = load<f64>(psi + (<usize>i << 4));
+    const im = load<f64>(psi + (<usize>i << 4), 8);
+    setF(rho, i, re * re + im * im);
+  }
+}
+
+/**
+ * peaks.ts peakCandidates over rows [from, n0 n1) of ρ: the cells no neighbour along a simulated axis (periodic)
+ * exceeds, in storage order, into the int32 list `out` (its count first) while a whole row still fits within
+ * `cap` entries; returns the row to go on from (n0 n1 when done).
+ */
+export function peakRows(rho: usize, n0: i32, n1: i32, n2: i32, from: i32, out: usize, cap: i32): i32 {
+  const s0 = n1 * n2;
+  let count = 0;
+  let r = from;
+  for (; r < n0 * n1 && count + n2 <= cap; r++) {
+    const a = r / n1;
+    const b = r % n1;
+    const up0 = a == n0 - 1 ? -(n0 - 1) * s0 : s0;
+    const down0 = a == 0 ? (n0 - 1) * s0 : -s0;
+    const up1 = b == n1 - 1 ? -(n1 - 1) * n2 : n2;
+    const down1 = b == 0 ? (n1 - 1) * n2 : -n2;
+    for (let c = 0, i = r * n2; c < n2; c++, i++) {
+      const v = f(rho, i);
+      const up2 = c == n2 - 1 ? -(n2 - 1) : 1;
+      const down2 = c == 0 ? n2 - 1 : -1;
+      if (n2 > 1 && (f(rho, i + up2) > v || f(rho, i + down2) > v)) continue;
+      if (n1 > 1 && (f(rho, i + up1) > v || f(rho, i + down1) > v)) continue;
+      if (n0 > 1 && (f(rho, i + up0) > v || f(rho, i + down0) > v)) continue;
+      store<i32>(out + (<usize>(1 + count) << 2), i);
+      count++;
+    }
+  }
+  store<i32>(out, count);
+  return r;
+}
+
+/**
+ * peaks.ts radialProfile's sums: for the cells (A[ia], B[ib], C[ic]) of the index lists (each list: indices,
+ * then squared distances, as doubles), r = √(dA + dB + dC) in shells of width h below `bins`: Σρ, Σr and the
+ * count into sum, rs, cnt, in the lists' order.
+ */
+export function radialCells(psi: usize, n1: i32, n2: i32, la: usize, na: i32, lb: usize, nb: i32, lc: usize, nc: i32, h: f64, bins: i32, sum: usize, rs: usize, cnt: usize): void {
+  for (let ia = 0; ia < na; ia++)
+    for (let ib = 0; ib < nb; ib++) {
+      const row = (<i32>f(la, ia) * n1 + <i32>f(lb, ib)) * n2;
+      const dab = f(la, na + ia) + f(lb, nb + ib);
+      for (let ic = 0; ic < nc; ic++) {
+        const r = Math.sqrt(dab + f(lc, nc + ic));
+        const bin = Math.floor(r / h + 0.5);
+        if (bin >= <f64>bins) continue;
+        const i = <i32>bin;
+        const p = psi + (<usize>(row + <i32>f(lc, ic)) << 4);
+        const re = load<f64>(p);
+        const im = load<f64>(p, 8);
+        setF(sum, i, f(sum, i) + re * re + im * im);
+        addF(rs, i, r);
+        addF(cnt, i, 1);
+      }
+    }
+}
