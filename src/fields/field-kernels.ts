@@ -44,20 +44,22 @@ function modulePath(): string {
 let compiled: WebAssembly.Module | null | undefined;
 
 /**
- * The compiled module, or null when it is missing (the passes then run in JavaScript). It is compiled by the
- * optimising compiler at once (about 2 ms of CPU for this small module): most passes are one call over a whole
- * grid, and a call begun in the baseline code stays there to its end (4-6 times slower: 8 ms against 1.3 ms
- * for Σ|ψ|² over 2²¹ cells).
+ * The compiled module, or null when it is missing (the passes then run in JavaScript). Every function is
+ * compiled by the optimising compiler at once (about 11 ms of CPU on the compiler's threads, 6 ms of wall
+ * time): most passes are one call over a whole grid, and a call begun in the baseline code stays there to its
+ * end (4-6 times slower: 7-8 ms against 1.3 ms for Σ|ψ|² over 2²¹ cells), while compiling each function
+ * optimised at its first call costs that call a few ms (the module is compiled once per process: other
+ * threads get the same code).
  */
 function passModule(): WebAssembly.Module | null {
   if (compiled === undefined) {
     try {
       const bytes = fs.readFileSync(modulePath());
-      v8.setFlagsFromString("--no-liftoff");
+      v8.setFlagsFromString("--no-liftoff --no-wasm-lazy-compilation");
       try {
         compiled = new WebAssembly.Module(bytes);
       } finally {
-        v8.setFlagsFromString("--liftoff");
+        v8.setFlagsFromString("--liftoff --wasm-lazy-compilation");
       }
     } catch {
       compiled = null;

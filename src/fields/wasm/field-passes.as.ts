@@ -78,11 +78,43 @@ export function ikRows(z: usize, k: usize, kz: usize, n1: i32, n2: i32, axis: i3
   }
 }
 
-/** z ← u + i w over cells [from, to) from ψ and the derivative in z (split-passes.ts packRow); Σ j²/ρ and Σ j added into acc[0], acc[1]. */
+/**
+ * z ← u + i w over cells [from, to) from ψ and the derivative in z (split-passes.ts packRow); Σ j²/ρ and Σ j
+ * added into acc[0], acc[1]. Two cells a turn in the lanes of 128-bit vectors (each lane's arithmetic is the
+ * scalar's), their sums added cell by cell in order.
+ */
 export function packCells(psi: usize, z: usize, from: i32, to: i32, acc: usize): void {
   let bulk2 = load<f64>(acc);
   let js = load<f64>(acc, 8);
-  for (let i = from; i < to; i++) {
+  const zero = f64x2.splat(0);
+  const tiny = f64x2.splat(1e-300);
+  const pairs = from + ((to - from) & ~1);
+  for (let i = from; i < pairs; i += 2) {
+    const q = psi + (<usize>i << 4);
+    const p = z + (<usize>i << 4);
+    const a0 = v128.load(q);
+    const a1 = v128.load(q, 16);
+    const g0 = v128.load(p);
+    const g1 = v128.load(p, 16);
+    const re = v128.shuffle<f64>(a0, a1, 0, 2);
+    const im = v128.shuffle<f64>(a0, a1, 1, 3);
+    const gr = v128.shuffle<f64>(g0, g1, 0, 2);
+    const gi = v128.shuffle<f64>(g0, g1, 1, 3);
+    const rho = f64x2.add(f64x2.mul(re, re), f64x2.mul(im, im));
+    const j = f64x2.sub(f64x2.mul(re, gi), f64x2.mul(im, gr));
+    const flow = v128.bitselect(f64x2.div(f64x2.mul(j, j), rho), zero, f64x2.gt(rho, zero));
+    bulk2 += f64x2.extract_lane(flow, 0);
+    bulk2 += f64x2.extract_lane(flow, 1);
+    js += f64x2.extract_lane(j, 0);
+    js += f64x2.extract_lane(j, 1);
+    const s = f64x2.sqrt(rho);
+    const dense = f64x2.gt(rho, tiny);
+    const u = v128.bitselect(f64x2.div(f64x2.add(f64x2.mul(re, gr), f64x2.mul(im, gi)), s), f64x2.sqrt(f64x2.add(f64x2.mul(gr, gr), f64x2.mul(gi, gi))), dense);
+    const w = v128.bitselect(f64x2.div(j, s), zero, dense);
+    v128.store(p, v128.shuffle<f64>(u, w, 0, 2));
+    v128.store(p, v128.shuffle<f64>(u, w, 1, 3), 16);
+  }
+  for (let i = pairs; i < to; i++) {
     const q = psi + (<usize>i << 4);
     const p = z + (<usize>i << 4);
     const re = load<f64>(q);
