@@ -29,6 +29,7 @@ interface Exports {
   powerCells(data: number, n: number): void;
   nyquistPlane(spec: number, n0: number, n1: number, n2: number, axis: number, k: number, perMode: number, sum: number): number;
   densityCells(psi: number, rho: number, n: number): void;
+  inverseK2Rows(spec: number, k0: number, k1: number, k2: number, n1: number, n2: number, from: number, end: number, sum: number): number;
   peakRows(rho: number, n0: number, n1: number, n2: number, from: number, out: number, cap: number): number;
   radialCells(psi: number, n1: number, n2: number, la: number, na: number, lb: number, nb: number, lc: number, nc: number, h: number, bins: number, sum: number, rs: number, cnt: number): void;
   distanceShells(data: number, rows: number, last: number, count: number, n2: number, h: number, limit: number, sum: number, rs: number, cnt: number, bins: number): void;
@@ -156,6 +157,11 @@ export class FieldKernels {
   /** sum + Σ k² |spec|² perMode over the modes with index n_axis/2 along `axis` (the Nyquist plane; n_axis even), in storage order. */
   nyquistPlane(spec: Float64Array, shape: readonly [number, number, number], axis: number, k: number, perMode: number, sum: number): number {
     return this.k.nyquistPlane(at(spec), shape[0], shape[1], shape[2], axis, k, perMode, sum);
+  }
+
+  /** Σ_{k≠0} |spec_k|²/k² over a spectrum's rows [from, end) (k the grid's wavenumbers), in storage order. */
+  inverseK2Rows(spec: Float64Array, k: readonly Float64Array[], shape: readonly [number, number, number], from: number, end: number): number {
+    return this.k.inverseK2Rows(at(spec), at(k[0]!), at(k[1]!), at(k[2]!), shape[1], shape[2], from, end, 0);
   }
 
   /** ρ = |ψ|² of every cell of ψ into rho. */

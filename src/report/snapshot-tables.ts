@@ -82,7 +82,7 @@ export function snapshotTables(
   writeFileAtomic(path.join(outDir, "pdf.csv"), csv(["log10_density_contrast", "volume_fraction", "mass_fraction"], pdf.map((p) => [p.log10Contrast, p.volumeFraction, p.massFraction])));
 
   // K from ψ's spectrum and the periodic W from δ's, both at hand: no transform of their own
-  const known = measured ? { kinetic: kineticFromGradient(grid, measured.moments.k2, a), periodicPotential: periodicPotentialFromContrast(grid, fft.work(0), mean, a) } : undefined;
+  const known = measured ? { kinetic: kineticFromGradient(grid, measured.moments.k2, a), periodicPotential: periodicPotentialFromContrast(grid, fft.work(0), mean, a, tables) } : undefined;
   withContrast?.(fft.work(0));
   const stats = fieldStats(field, fft, known);
   const split = measured?.kinetic ?? kineticSplit(grid, psi, a, fft);

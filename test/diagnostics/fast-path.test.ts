@@ -171,7 +171,7 @@ describe("field energies of a snapshot", () => {
 });
 
 describe("the passes in WebAssembly (the tables analyze gives the transforms, ψ in their third work grid)", () => {
-  it.each(cases)("$cells: energy split, P(k), the PDF, the granules, the densest points and their profiles are the same bits as the passes in JavaScript, on 1 and 2 threads, every time", ({ cells, a }) => {
+  it.each(cases)("$cells: energy split, P(k), the PDF, the periodic W, the granules, the densest points and their profiles are the same bits as the passes in JavaScript, on 1 and 2 threads, every time", ({ cells, a }) => {
     const grid = new Grid([...cells], cells.map((_, i) => 1 + 0.25 * i));
     const psi = gaussianComplexField(grid, (k2) => Math.exp(-k2 / 300), 7);
     for (let i = 0; i < grid.size; i++) psi[2 * i] = psi[2 * i]! + 0.5;
@@ -181,6 +181,8 @@ describe("the passes in WebAssembly (the tables analyze gives the transforms, ψ
       const both = energyAndKineticSplit(grid, on, a, fft);
       const power = densityPowerSpectrum(grid, on, fft, 0, both.meanDensity);
       const pdf = densityPdf(on, 40, runnerOf(fft, on), blockTablesOf(fft, grid, on));
+      // the periodic W from δ's spectrum that P(k) leaves
+      const potential = periodicPotentialFromContrast(grid, fft.work(0), both.meanDensity, a, blockTablesOf(fft, grid, on));
       // as analyze measures the granules: from δ's spectrum that P(k) leaves, with the split's moments and ρ̄
       const granules = granuleStats(grid, on, a, fft, undefined, undefined, { contrastSpectrum: fft.work(0), moments: both.moments, meanDensity: both.meanDensity });
       // and on their own (δ and ψ's spectrum transformed here)
@@ -189,7 +191,7 @@ describe("the passes in WebAssembly (the tables analyze gives the transforms, ψ
       const tables = blockTablesOf(fft, grid, on);
       const peaks = densestPoints(grid, on, 5, 2, fft.work(1), tables);
       const profiles = peaks.map((p) => radialProfile(grid, on, p.coords, Math.min(...grid.lengths) / 4, tables));
-      return { both, power, pdf, granules, alone, peaks, profiles, wasm: tables !== undefined };
+      return { both, power, pdf, potential, granules, alone, peaks, profiles, wasm: tables !== undefined };
     };
     const plain = new PooledTransforms(grid, 3, { threads: 1, backend: "wasm" });
     opened.push(plain);

@@ -539,3 +539,23 @@ export function radialCells(psi: usize, n1: i32, n2: i32, la: usize, na: i32, lb
       }
     }
 }
+
+/** energies.ts inverseK2Row over rows [from, end) of a spectrum: sum + Σ_{k≠0} |s_k|²/k² in storage order. */
+export function inverseK2Rows(spec: usize, k0: usize, k1: usize, k2: usize, n1: i32, n2: i32, from: i32, end: i32, sum: f64): f64 {
+  for (let r = from; r < end; r++) {
+    const ka = f(k0, r / n1);
+    const kb = f(k1, r % n1);
+    const kab = ka * ka + kb * kb;
+    const row = spec + (<usize>(r * n2) << 4);
+    for (let c = 0; c < n2; c++) {
+      const kc = f(k2, c);
+      const kk = kab + kc * kc;
+      if (kk > 0) {
+        const re = load<f64>(row + (<usize>c << 4));
+        const im = load<f64>(row + (<usize>c << 4), 8);
+        sum += (re * re + im * im) / kk;
+      }
+    }
+  }
+  return sum;
+}
