@@ -22,42 +22,36 @@ export const PDF_MAX_BINS = 255;
 /** Doubles at the start that say which grid's shells the table holds: shape and extent. */
 const HEADER = 6;
 
-/** Where each table starts (doubles from the region's start). */
-interface Layout {
-  readonly sums: number;
-  readonly nyquist: number;
-  readonly k: readonly [number, number, number];
-  readonly d: readonly [number, number, number];
-  readonly ksum: number;
-  readonly modes: number;
-  readonly edges: number;
-  readonly row: number;
-  readonly separations: number;
-  /** The shells of the half space, int16 from this double on. */
-  readonly bins: number;
-  readonly length: number;
-}
-
-function layoutOf(shape: readonly [number, number, number], count: number): Layout {
+/**
+ * The tables' layout, declared once: each table taken in turn from the region (at its length, rounded up to
+ * an even count), as views of `region` when given; without one, only the length.
+ */
+function carve(shape: readonly [number, number, number], count: number, region?: Float64Array): { length: number; views: Omit<BlockTables, "kernels" | "count"> | undefined } {
   const [n0, n1, n2] = shape;
+  const halfRows = n0 * n1 * (Math.floor(n2 / 2) + 1);
   let top = HEADER;
-  const take = (n: number): number => {
+  const take = (n: number): Float64Array => {
     const at = top;
     top += n + (n & 1);
-    return at;
+    return region ? region.subarray(at, at + n) : EMPTY;
   };
   const sums = take(MAX_BLOCKS * Math.max(shellSumsLength(count), 2 * PDF_MAX_BINS));
   const nyquist = take((n0 + n1) * (n2 + 2));
   const k = [take(n0), take(n1), take(n2)] as const;
   const d = [take(n0), take(n1), take(n2)] as const;
-  const ksum = take(count);
-  const modes = take(count);
+  const [ksum, modes] = [take(count), take(count)];
   const edges = take(PDF_MAX_BINS + 1);
   const row = take(Math.floor(n2 / 2) + 1);
   const separations = take(n0 * n1 + n2);
-  const bins = take(Math.ceil((n0 * n1 * (Math.floor(n2 / 2) + 1)) / 4));
-  return { sums, nyquist, k, d, ksum, modes, edges, row, separations, bins, length: top };
+  // the shells of the half space: int16, four to a double
+  const binsAt = top;
+  take(Math.ceil(halfRows / 4));
+  if (!region) return { length: top, views: undefined };
+  const bins = new Int16Array(region.buffer, region.byteOffset + 8 * binsAt, halfRows);
+  return { length: top, views: { sums, nyquist, k, d, ksum, modes, edges, row, separations, bins } };
 }
+
+const EMPTY = new Float64Array(0);
 
 /** Whether the WebAssembly passes take a grid of this shape: every axis even or absent, the last simulated, shells within int16. */
 function fits(grid: Grid, count: number): boolean {
@@ -68,7 +62,7 @@ function fits(grid: Grid, count: number): boolean {
 /** Doubles of the tables region for `grid` (0 when the passes do not take it). */
 export function blockTablesLength(grid: Grid): number {
   const count = new Shells(grid, 0).count;
-  return fits(grid, count) ? layoutOf(grid.shape, count).length : 0;
+  return fits(grid, count) ? carve(grid.shape, count).length : 0;
 }
 
 /** The tables of one grid as views of the region, with the kernels that run on its memory. */
@@ -88,6 +82,8 @@ export interface BlockTables {
   readonly bins: Int16Array;
   /** Room for a distance of each row of the first two axes (n0 n1) and of each cell along the last (n2): the granules' separations. */
   readonly separations: Float64Array;
+  /** Scratch of the shells' table: n2/2 + 1 numbers. */
+  readonly row: Float64Array;
 }
 
 /** Anything that may hold a tables region and the kernels to run on it (integrators/pooled-transforms.ts). */
@@ -105,27 +101,11 @@ export function blockTablesOf(owner: unknown, grid: Grid, ...fields: Float64Arra
   if (!held || fields.some((f) => f.buffer !== held.region.buffer)) return undefined;
   const count = new Shells(grid, 0).count;
   if (!fits(grid, count)) return undefined;
-  const at = layoutOf(grid.shape, count);
   const { region, kernels } = held;
-  if (region.length < at.length) return undefined;
-  const view = (from: number, length: number): Float64Array => region.subarray(from, from + length);
-  const [n0, n1, n2] = grid.shape;
-  const lengths = [n0, n1, n2] as const;
-  const k = lengths.map((n, axis) => view(at.k[axis]!, n)) as unknown as [Float64Array, Float64Array, Float64Array];
-  const d = lengths.map((n, axis) => view(at.d[axis]!, n)) as unknown as [Float64Array, Float64Array, Float64Array];
-  const tables: BlockTables = {
-    kernels,
-    count,
-    sums: view(at.sums, at.nyquist - at.sums),
-    nyquist: view(at.nyquist, (n0 + n1) * (n2 + 2)),
-    k,
-    d,
-    ksum: view(at.ksum, count),
-    modes: view(at.modes, count),
-    edges: view(at.edges, PDF_MAX_BINS + 1),
-    separations: view(at.separations, n0 * n1 + n2),
-    bins: new Int16Array(region.buffer, region.byteOffset + 8 * at.bins, n0 * n1 * (Math.floor(n2 / 2) + 1)),
-  };
+  if (region.length < carve(grid.shape, count).length) return undefined;
+  const tables: BlockTables = { kernels, count, ...carve(grid.shape, count, region).views! };
+  const { k, d } = tables;
+  const lengths = grid.shape;
   for (let axis = 0; axis < 3; axis++) {
     const kk = grid.wavenumbers(axis as 0 | 1 | 2);
     k[axis]!.set(kk);
@@ -138,7 +118,7 @@ export function blockTablesOf(owner: unknown, grid: Grid, ...fields: Float64Arra
     tables.ksum.fill(0);
     tables.modes.fill(0);
     const shells = new Shells(grid, 0);
-    kernels.shellTable(tables, grid.shape, shells.kF, view(at.row, Math.floor(n2 / 2) + 1));
+    kernels.shellTable(tables, grid.shape, shells.kF, tables.row);
     key.forEach((v, i) => (region[i] = v));
   }
   return tables;
