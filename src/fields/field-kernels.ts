@@ -17,7 +17,7 @@ interface Exports {
   shellRows(
     z: number, div: number, nyq: number, bins: number, k0: number, k1: number, k2: number, n0: number, n1: number, n2: number, count: number,
     perMode: number, velocityPerMode: number, axis: number, first: number, s: number, from: number, end: number,
-  ): void;
+  ): number;
   compressibleRows(div: number, nyq: number, bins: number, k0: number, k1: number, k2: number, n0: number, n1: number, n2: number, count: number, perMode: number, s: number, from: number, end: number): void;
   contrastCells(psi: number, out: number, mean: number, from: number, to: number): void;
   powerRows(data: number, bins: number, n2: number, perMode: number, sums: number, from: number, end: number): void;
