@@ -12,7 +12,7 @@
  */
 import type { Grid } from "../grid/grid.js";
 import { Shells } from "./shells.js";
-import { shellSumsLength } from "./split-passes.js";
+import { nyquistRows, shellSumsLength } from "./split-passes.js";
 import { MAX_BLOCKS } from "./row-blocks.js";
 import type { FieldKernels } from "../fields/field-kernels.js";
 
@@ -36,7 +36,7 @@ function carve(shape: readonly [number, number, number], count: number, region?:
     return region ? region.subarray(at, at + n) : EMPTY;
   };
   const sums = take(MAX_BLOCKS * Math.max(shellSumsLength(count), 2 * PDF_MAX_BINS));
-  const nyquist = take((n0 + n1) * (n2 + 2));
+  const nyquist = take(nyquistRows(shape) * (n2 + 2));
   const k = [take(n0), take(n1), take(n2)] as const;
   const d = [take(n0), take(n1), take(n2)] as const;
   const [ksum, modes] = [take(count), take(count)];

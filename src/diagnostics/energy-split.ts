@@ -23,7 +23,7 @@ import type { Grid } from "../grid/grid.js";
 import { SimpleTransforms, type FieldTransforms } from "../fields/field-transforms.js";
 import { derivativeWavenumbers, modeShells, Shells, simulatedAxes } from "./shells.js";
 import { kineticFromSums, type KineticSplit } from "./analysis.js";
-import { halfSpaceLength, SHELL_TOTALS, shellSumsLength, type ShellData } from "./split-passes.js";
+import { halfSpaceLength, nyquistRows, SHELL_TOTALS, shellSumsLength, type ShellData } from "./split-passes.js";
 import { addBlockSums, rowBlocks, sharedFloats } from "./row-blocks.js";
 import { runnerOf, type BlockRunner } from "./block-tasks.js";
 import { spectrumMoments, type SpectrumMoments } from "./spectrum-moments.js";
@@ -106,7 +106,7 @@ function shellData(grid: Grid, count: number, div: Float64Array, perMode: number
     return { shape: [n0, n1, n2], k0, k1, k2, bins: tables.bins, binRow: Math.floor(n2 / 2) + 1, count, perMode, velocityPerMode, div, nyquist: tables.nyquist };
   }
   const [k0, k1, k2] = [grid.wavenumbers(0), grid.wavenumbers(1), grid.wavenumbers(2)];
-  return { shape: [n0, n1, n2], k0, k1, k2, bins: modeShells(grid).bins, binRow: n2, count, perMode, velocityPerMode, div, nyquist: sharedFloats((n0 + n1) * (n2 + 2)) };
+  return { shape: [n0, n1, n2], k0, k1, k2, bins: modeShells(grid).bins, binRow: n2, count, perMode, velocityPerMode, div, nyquist: sharedFloats(nyquistRows(grid.shape) * (n2 + 2)) };
 }
 
 /**

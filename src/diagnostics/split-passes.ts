@@ -71,11 +71,19 @@ export function shellSumsLength(count: number): number {
   return SHELL_TOTALS + 4 * count;
 }
 
-/** Where row (a, b) keeps its mirrors' k·W in `nyquist`, or −1 when it is no Nyquist row. */
+/**
+ * Rows of the mirrors' k·W a shape's Nyquist rows keep (nyquistRow): one for each b where a = n0/2 (a simulated
+ * first axis), then one for each a where b = n1/2 (a simulated second axis); rows of n2 + 2 numbers.
+ */
+export function nyquistRows(shape: readonly [number, number, number]): number {
+  return (shape[0] > 1 ? shape[1] : 0) + (shape[1] > 1 ? shape[0] : 0);
+}
+
+/** Where row (a, b) keeps its mirrors' k·W in `nyquist` (nyquistRows rows of n2 + 2), or −1 when it is no Nyquist row. */
 export function nyquistRow(d: ShellData, a: number, b: number): number {
   const n0 = d.shape[0];
   const n1 = d.shape[1];
-  const row = n0 > 1 && a === n0 / 2 ? b : n1 > 1 && b === n1 / 2 ? n1 + a : -1;
+  const row = n0 > 1 && a === n0 / 2 ? b : n1 > 1 && b === n1 / 2 ? (n0 > 1 ? n1 : 0) + a : -1;
   return row < 0 ? -1 : row * (d.shape[2] + 2);
 }
 

@@ -140,7 +140,7 @@ export function packCells(psi: usize, z: usize, from: i32, to: i32, acc: usize):
 
 /** Where row (a, b) keeps its mirrors' k·W in the Nyquist rows' table (split-passes.ts nyquistRow), or −1. */
 @inline function nyquistRow(n0: i32, n1: i32, n2: i32, a: i32, b: i32): i32 {
-  const row = n0 > 1 && 2 * a == n0 ? b : n1 > 1 && 2 * b == n1 ? n1 + a : -1;
+  const row = n0 > 1 && 2 * a == n0 ? b : n1 > 1 && 2 * b == n1 ? (n0 > 1 ? n1 : 0) + a : -1;
   return row < 0 ? -1 : row * (n2 + 2);
 }
 
