@@ -17,10 +17,11 @@ import { modeShells, Shells, simulatedAxes, spectralDerivative } from "./shells.
 export { densestPoints, radialProfile } from "./peaks.js";
 import { runHere, type BlockRunner } from "./block-tasks.js";
 import { densityPdf as pdfOn } from "./density-pdf.js";
+import { blockTablesOf, type BlockTables } from "./block-tables.js";
 
-/** Histogram of log₁₀(ρ/ρ̄): bin centres and the fraction of cells (volume) and of mass in each (density-pdf.ts; on this thread unless `run` says). */
-export function densityPdf(psi: Float64Array, bins = 40, run: BlockRunner = runHere): { log10Contrast: number; volumeFraction: number; massFraction: number }[] {
-  return pdfOn(psi, bins, run);
+/** Histogram of log₁₀(ρ/ρ̄): bin centres and the fraction of cells (volume) and of mass in each (density-pdf.ts; on this thread unless `run` says; in WebAssembly with `tables` of ψ's memory). */
+export function densityPdf(psi: Float64Array, bins = 40, run: BlockRunner = runHere, tables?: BlockTables): { log10Contrast: number; volumeFraction: number; massFraction: number }[] {
+  return pdfOn(psi, bins, run, tables?.sums.buffer === psi.buffer ? tables : undefined);
 }
 
 /** One bin of a power spectrum (code units: k in 1/ℓ, P in ℓ^d). */
@@ -48,19 +49,32 @@ export function meanDensity(psi: Float64Array): number {
 export function densityPowerSpectrum(grid: Grid, psi: Float64Array, fft: FieldTransforms = new SimpleTransforms(grid.shape), slot = 0, mean = meanDensity(psi)): PowerBin[] {
   const n = grid.size;
   const data = fft.work(slot);
-  for (let p = 0; p < psi.length; p += 2) {
-    data[p] = (psi[p]! ** 2 + psi[p + 1]! ** 2) / mean - 1;
-    data[p + 1] = 0;
+  // in WebAssembly when ψ and the work grid are in the memory of the transforms' tables (the same arithmetic)
+  const tables = blockTablesOf(fft, grid, psi, data);
+  if (tables) tables.kernels.contrastCells(psi, data, mean, 0, n);
+  else {
+    for (let p = 0; p < psi.length; p += 2) {
+      data[p] = (psi[p]! ** 2 + psi[p + 1]! ** 2) / mean - 1;
+      data[p + 1] = 0;
+    }
   }
   fft.forward(data);
   const shells = new Shells(grid, 1);
-  const { bins } = modeShells(grid);
-  shells.countModes(modeShells(grid));
+  const table = tables ?? modeShells(grid);
+  shells.countModes(table);
   const sums = shells.series(0);
   const perMode = grid.volume / (n * n);
-  for (let i = 0, p = 0; i < n; i++, p += 2) {
-    const bin = bins[i]!;
-    if (bin >= 0) sums[bin] = sums[bin]! + perMode * (data[p]! ** 2 + data[p + 1]! ** 2);
+  if (tables) {
+    // the shells' sums in the tables' memory, then copied out
+    const into = tables.sums.subarray(0, shells.count).fill(0);
+    tables.kernels.powerRows(data, tables.bins, grid.shape[2], perMode, into, 0, grid.shape[0] * grid.shape[1]);
+    sums.set(into);
+  } else {
+    const { bins } = table;
+    for (let i = 0, p = 0; i < n; i++, p += 2) {
+      const bin = bins[i]!;
+      if (bin >= 0) sums[bin] = sums[bin]! + perMode * (data[p]! ** 2 + data[p + 1]! ** 2);
+    }
   }
   return shells.rows().map((r) => ({ k: r.k, power: r.sums[0]! / r.modes, modes: r.modes }));
 }

@@ -4,15 +4,17 @@
  * thread: the energy split's (split-tasks.ts) and the density PDF's
  * (density-pdf.ts).
  */
-import { runSplitTask, type SplitTask } from "./split-tasks.js";
+import { runSplitTask, type OnMemory, type SplitTask } from "./split-tasks.js";
 import { runPdfTask, type PdfTask } from "./density-pdf.js";
+import { FieldKernels } from "../fields/field-kernels.js";
 
-export type BlockTask = SplitTask | PdfTask;
+export type BlockTask = (SplitTask | PdfTask) & OnMemory;
 
-/** Run a task over blocks [lo, hi). */
-export function runBlockTask(t: BlockTask, lo: number, hi: number): void {
-  if (t.kind === "pdf-range" || t.kind === "pdf-histogram") runPdfTask(t, lo, hi);
-  else runSplitTask(t, lo, hi);
+/** Run a task over blocks [lo, hi); `memory`: the transforms' WebAssembly memory as this thread has it, where a task marked `wasm` runs its passes. */
+export function runBlockTask(t: BlockTask, lo: number, hi: number, memory?: WebAssembly.Memory): void {
+  const kernels = t.wasm && memory ? FieldKernels.of(memory) : undefined;
+  if (t.kind === "pdf-range" || t.kind === "pdf-histogram") runPdfTask(t, lo, hi, kernels);
+  else runSplitTask(t, lo, hi, kernels);
 }
 
 /** Runs a task over all of a grid's blocks: on the step's threads, or here. */

@@ -7,8 +7,11 @@
  * by comparing its contrast with the bins' edges (binEdges: where the
  * defining formula steps, to the last double), not by a logarithm per cell.
  */
-import { addBlockSums, blockRows, sharedFloats, type RowBlocks } from "./row-blocks.js";
+import { addBlockSums, blockRows, MAX_BLOCKS, sharedFloats, type RowBlocks } from "./row-blocks.js";
 import type { BlockRunner } from "./block-tasks.js";
+import type { OnMemory } from "./split-tasks.js";
+import { PDF_MAX_BINS, type BlockTables } from "./block-tables.js";
+import type { FieldKernels } from "../fields/field-kernels.js";
 
 /** A pass of the PDF over blocks of cells of ψ. */
 export type PdfTask =
@@ -17,11 +20,15 @@ export type PdfTask =
   /** Block u's volume and mass fractions per bin into sums[2 bins u …] (volume, then mass); `edges` from binEdges. */
   | { readonly kind: "pdf-histogram"; readonly at: RowBlocks; readonly psi: Float64Array; readonly sums: Float64Array; readonly mean: number; readonly lo: number; readonly width: number; readonly bins: number; readonly edges: Float64Array };
 
-/** Run a PDF task over blocks [lo, hi). */
-export function runPdfTask(t: PdfTask, lo: number, hi: number): void {
+/** Run a PDF task over blocks [lo, hi) (the histogram by `kernels` when the task is marked for them). */
+export function runPdfTask(t: PdfTask & OnMemory, lo: number, hi: number, kernels?: FieldKernels): void {
+  const k = t.wasm ? kernels : undefined;
   for (let u = lo; u < hi; u++) {
     const [first, end] = blockRows(t.at, u);
-    if (t.kind === "pdf-range") rangeCells(t.psi, 2 * first, 2 * end, t.sums, 3 * u);
+    if (t.kind === "pdf-range") {
+      if (k) k.rangeCells(t.psi, first, end, t.sums, 3 * u);
+      else rangeCells(t.psi, 2 * first, 2 * end, t.sums, 3 * u);
+    } else if (k) k.histogramCells(t.psi, t.sums, 2 * t.bins * u, t.edges, t.psi.length / 2, t.mean, t.lo, t.width, t.bins, EDGE_MARGIN, first, end);
     else histogramCells(t, 2 * first, 2 * end, 2 * t.bins * u);
   }
 }
@@ -98,17 +105,20 @@ function histogramCells(t: Extract<PdfTask, { kind: "pdf-histogram" }>, p: numbe
 /** The cells of ψ as blocks (one cell a row). */
 function cellBlocks(psi: Float64Array): RowBlocks {
   const cells = psi.length / 2;
-  return { rows: cells, blocks: Math.min(cells, 64), n2: 1 };
+  return { rows: cells, blocks: Math.min(cells, MAX_BLOCKS), n2: 1 };
 }
 
-/** Histogram of log₁₀(ρ/ρ̄): bin centres and the fraction of cells (volume) and of mass in each; the passes on `run`'s threads. */
-export function densityPdf(psi: Float64Array, bins = 40, run: BlockRunner): { log10Contrast: number; volumeFraction: number; massFraction: number }[] {
+/**
+ * Histogram of log₁₀(ρ/ρ̄): bin centres and the fraction of cells (volume) and of mass in each; the passes on
+ * `run`'s threads, the histogram's in WebAssembly when `tables` are given (ψ in their memory).
+ */
+export function densityPdf(psi: Float64Array, bins = 40, run: BlockRunner, tables?: BlockTables): { log10Contrast: number; volumeFraction: number; massFraction: number }[] {
   const n = psi.length / 2;
   const at = cellBlocks(psi);
   // the range of ρ, then of ρ/ρ̄: dividing by ρ̄ > 0 keeps the order, so the extremes are the same cells'
   // (log₁₀ is monotonic: empty cells count as 1e-30 but do not set the lower end)
-  const range = sharedFloats(3 * at.blocks);
-  run(at.blocks, { kind: "pdf-range", at, psi, sums: range });
+  const range = tables ? tables.sums.subarray(0, 3 * at.blocks) : sharedFloats(3 * at.blocks);
+  run(at.blocks, { kind: "pdf-range", at, psi, sums: range, wasm: tables !== undefined });
   let [sum, minRho, maxRho] = [0, Infinity, 0];
   for (let u = 0; u < at.blocks; u++) [sum, minRho, maxRho] = [sum + range[3 * u]!, Math.min(minRho, range[3 * u + 1]!), Math.max(maxRho, range[3 * u + 2]!)];
   const mean = sum / n;
@@ -116,8 +126,12 @@ export function densityPdf(psi: Float64Array, bins = 40, run: BlockRunner): { lo
   const hi = Math.log10(Math.max(maxRho / mean, 1e-30));
   if (!(hi > lo)) return [{ log10Contrast: hi, volumeFraction: 1, massFraction: 1 }];
   const width = (hi - lo) / bins;
-  const sums = sharedFloats(2 * bins * at.blocks);
-  run(at.blocks, { kind: "pdf-histogram", at, psi, sums, mean, lo, width, bins, edges: binEdges(lo, width, bins) });
+  const wasm = tables !== undefined && bins <= PDF_MAX_BINS;
+  // (the range's sums are read: the histogram's take their place)
+  const sums = wasm ? tables.sums.subarray(0, 2 * bins * at.blocks).fill(0) : sharedFloats(2 * bins * at.blocks);
+  const edges = binEdges(lo, width, bins);
+  if (wasm) tables.edges.set(edges);
+  run(at.blocks, { kind: "pdf-histogram", at, psi, sums, mean, lo, width, bins, edges: wasm ? tables.edges.subarray(0, bins + 1) : edges, wasm });
   const total = new Float64Array(2 * bins);
   addBlockSums(sums, at.blocks, 2 * bins, total);
   return Array.from({ length: bins }, (_, b) => ({ log10Contrast: lo + (b + 0.5) * width, volumeFraction: total[b]!, massFraction: total[bins + b]! }));

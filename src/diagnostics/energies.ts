@@ -10,6 +10,7 @@
  * and W ∝ a⁻¹ give theirs: see the README).
  * K is evaluated spectrally (Parseval): ∫|∇ψ|² dV = ΔV/N Σ_k k² |ψ_k|².
  */
+import type { BlockTables } from "./block-tables.js";
 import type { Grid } from "../grid/grid.js";
 import type { FieldTransforms } from "../fields/field-transforms.js";
 
@@ -108,13 +109,15 @@ export function periodicPotentialEnergy(grid: Grid, psi: Float64Array, a: number
 /**
  * The same W from the spectrum of the density contrast δ = ρ/ρ̄ − 1 (as the
  * power spectrum leaves it, densityPowerSpectrum): ρ_k = ρ̄ δ_k for k ≠ 0,
- * so W = −(ρ̄²/(2a)) (ΔV/N) Σ_{k≠0} |δ_k|²/k² (equal to the above to round-off).
+ * so W = −(ρ̄²/(2a)) (ΔV/N) Σ_{k≠0} |δ_k|²/k² (equal to the above to round-off). The sum in WebAssembly with
+ * `tables` (block-tables.ts) of the spectrum's memory (the same number).
  */
-export function periodicPotentialFromContrast(grid: Grid, deltaSpectrum: Float64Array, meanDensity: number, a: number): number {
+export function periodicPotentialFromContrast(grid: Grid, deltaSpectrum: Float64Array, meanDensity: number, a: number, tables?: BlockTables): number {
   const [k0, k1, k2] = [grid.wavenumbers(0), grid.wavenumbers(1), grid.wavenumbers(2)];
   const [n0, n1] = grid.shape;
   const acc = new Float64Array(1);
-  for (let i = 0, p = 0; i < n0; i++) for (let j = 0; j < n1; j++, p += 2 * k2.length) inverseK2Row(deltaSpectrum, p, k0[i]! * k0[i]! + k1[j]! * k1[j]!, k2, acc);
+  if (tables?.sums.buffer === deltaSpectrum.buffer) acc[0] = tables.kernels.inverseK2Rows(deltaSpectrum, tables.k, grid.shape, 0, n0 * n1);
+  else for (let i = 0, p = 0; i < n0; i++) for (let j = 0; j < n1; j++, p += 2 * k2.length) inverseK2Row(deltaSpectrum, p, k0[i]! * k0[i]! + k1[j]! * k1[j]!, k2, acc);
   return (-0.5 / a) * meanDensity * meanDensity * (acc[0]! / grid.size) * grid.cellVolume;
 }
 

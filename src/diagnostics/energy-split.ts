@@ -23,10 +23,11 @@ import type { Grid } from "../grid/grid.js";
 import { SimpleTransforms, type FieldTransforms } from "../fields/field-transforms.js";
 import { derivativeWavenumbers, modeShells, Shells, simulatedAxes } from "./shells.js";
 import { kineticFromSums, type KineticSplit } from "./analysis.js";
-import { halfSpaceLength, SHELL_TOTALS, shellSumsLength, type ShellData } from "./split-passes.js";
+import { halfSpaceLength, nyquistRows, SHELL_TOTALS, shellSumsLength, type ShellData } from "./split-passes.js";
 import { addBlockSums, rowBlocks, sharedFloats } from "./row-blocks.js";
 import { runnerOf, type BlockRunner } from "./block-tasks.js";
 import { spectrumMoments, type SpectrumMoments } from "./spectrum-moments.js";
+import { blockTablesOf, type BlockTables } from "./block-tables.js";
 
 /** One shell of the energy spectra (code units). */
 export interface EnergyShell {
@@ -55,8 +56,8 @@ export interface EnergySplit {
   readonly spectra: EnergyShell[];
 }
 
-/** The energy of the Nyquist planes' derivative, Σ over the modes with k_i = π/Δx of k_i²|ψ_k|² (summed per axis), times `perMode`. */
-function nyquistEnergy(grid: Grid, spec: Float64Array, perMode: number): number {
+/** The energy of the Nyquist planes' derivative, Σ over the modes with k_i = π/Δx of k_i²|ψ_k|² (summed per axis), times `perMode` (in WebAssembly with `tables`). */
+function nyquistEnergy(grid: Grid, spec: Float64Array, perMode: number, tables: BlockTables | undefined): number {
   const [n0, n1, n2] = grid.shape;
   let sum = 0;
   for (const ax of simulatedAxes(grid)) {
@@ -65,6 +66,10 @@ function nyquistEnergy(grid: Grid, spec: Float64Array, perMode: number): number 
     lo[ax] = grid.shape[ax] / 2;
     hi[ax] = lo[ax]! + 1;
     const k = grid.wavenumbers(ax)[lo[ax]!]!;
+    if (tables) {
+      sum = tables.kernels.nyquistPlane(spec, grid.shape, ax, k, perMode, sum);
+      continue;
+    }
     for (let a = lo[0]!; a < hi[0]!; a++)
       for (let b = lo[1]!; b < hi[1]!; b++)
         for (let c = lo[2]!; c < hi[2]!; c++) {
@@ -90,40 +95,50 @@ function massOf(psi: Float64Array): number {
   return mass;
 }
 
-/** The shell passes' data of `grid` at factors per mode (perMode for the energies, velocityPerMode for the velocity power); k·W into `div`. */
-function shellData(grid: Grid, count: number, div: Float64Array, perMode: number, velocityPerMode: number): ShellData {
+/**
+ * The shell passes' data of `grid` at factors per mode (perMode for the energies, velocityPerMode for the velocity
+ * power); k·W into `div`. With `tables` (block-tables.ts) everything is in their memory, else on the JavaScript heap.
+ */
+function shellData(grid: Grid, count: number, div: Float64Array, perMode: number, velocityPerMode: number, tables: BlockTables | undefined): ShellData {
   const [n0, n1, n2] = grid.shape;
+  if (tables) {
+    const [k0, k1, k2] = tables.k;
+    return { shape: [n0, n1, n2], k0, k1, k2, bins: tables.bins, binRow: Math.floor(n2 / 2) + 1, count, perMode, velocityPerMode, div, nyquist: tables.nyquist };
+  }
   const [k0, k1, k2] = [grid.wavenumbers(0), grid.wavenumbers(1), grid.wavenumbers(2)];
-  return { shape: [n0, n1, n2], k0, k1, k2, bins: modeShells(grid).bins, count, perMode, velocityPerMode, div, nyquist: sharedFloats((n0 + n1) * (n2 + 2)) };
+  return { shape: [n0, n1, n2], k0, k1, k2, bins: modeShells(grid).bins, binRow: n2, count, perMode, velocityPerMode, div, nyquist: sharedFloats(nyquistRows(grid.shape) * (n2 + 2)) };
 }
 
 /**
  * The derivative of ψ along each axis packed into u + i w and transformed, each into the shells: the sums of
  * the shell passes (split-passes.ts: totals, then four series per shell), Σ j²/ρ, and Σ j per axis.
  */
-function shellSums(grid: Grid, psi: Float64Array, spec: Float64Array, data: ShellData, fft: FieldTransforms, run: BlockRunner): { total: Float64Array; bulk2: number; jSum: number[] } {
+function shellSums(grid: Grid, psi: Float64Array, spec: Float64Array, data: ShellData, fft: FieldTransforms, run: BlockRunner, tables: BlockTables | undefined): { total: Float64Array; bulk2: number; jSum: number[] } {
   const at = rowBlocks(grid.shape);
   const length = shellSumsLength(data.count);
-  const [sums, packSums] = [sharedFloats(at.blocks * length), sharedFloats(2 * at.blocks)];
+  const wasm = tables !== undefined;
+  // the shells' sums and the packing's in one array (the packing's after the shells')
+  const sums = wasm ? tables.sums.subarray(0, at.blocks * (length + 2)).fill(0) : sharedFloats(at.blocks * (length + 2));
+  const [shellSums, packSums] = [sums.subarray(0, at.blocks * length), sums.subarray(at.blocks * length)];
   const [total, flow] = [new Float64Array(length), new Float64Array(2)];
   const jSum: number[] = [];
-  const kz = derivativeWavenumbers(grid, 2);
+  const kz = wasm ? tables.d[2] : derivativeWavenumbers(grid, 2);
   simulatedAxes(grid).forEach((axis, j) => {
     // each axis's derivative from ψ by the transforms along that axis alone, in place of the spectrum
     run(at.blocks, { kind: "copy", at, from: psi, to: spec });
     fft.alongAxis(spec, axis, false);
-    run(at.blocks, { kind: "ik", at, z: spec, n1: grid.shape[1], axis, k: derivativeWavenumbers(grid, axis), kz });
+    run(at.blocks, { kind: "ik", at, z: spec, n1: grid.shape[1], axis, k: wasm ? tables.d[axis] : derivativeWavenumbers(grid, axis), kz, wasm });
     fft.alongAxis(spec, axis, true);
     flow[1] = 0;
-    run(at.blocks, { kind: "pack", at, psi, z: spec, sums: packSums });
+    run(at.blocks, { kind: "pack", at, psi, z: spec, sums: packSums, wasm });
     addBlockSums(packSums, at.blocks, 2, flow);
     jSum.push(flow[1]!);
     fft.forward(spec);
-    run(at.blocks, { kind: "shells", at, data, z: spec, axis, first: j === 0, sums });
-    addBlockSums(sums, at.blocks, length, total);
+    run(at.blocks, { kind: "shells", at, data, z: spec, axis, first: j === 0, sums: shellSums, wasm });
+    addBlockSums(shellSums, at.blocks, length, total);
   });
-  run(at.blocks, { kind: "compressible", at, data, sums });
-  addBlockSums(sums, at.blocks, length, total);
+  run(at.blocks, { kind: "compressible", at, data, sums: shellSums, wasm });
+  addBlockSums(shellSums, at.blocks, length, total);
   return { total, bulk2: flow[0]!, jSum };
 }
 
@@ -142,16 +157,17 @@ export function energyAndKineticSplit(grid: Grid, psi: Float64Array, a: number, 
   const spec = fft.work(0);
   run(rowBlocks(grid.shape).blocks, { kind: "copy", at: rowBlocks(grid.shape), from: psi, to: spec });
   fft.forward(spec);
-  const mass = massOf(psi);
+  const tables = blockTablesOf(fft, grid, psi, spec);
+  const mass = tables ? tables.kernels.massCells(psi, 0, n) : massOf(psi);
   const perMode = (0.5 / (a * a)) * (grid.cellVolume / n);
-  const unresolved = nyquistEnergy(grid, spec, perMode);
-  const moments = spectrumMoments(grid, spec);
+  const unresolved = nyquistEnergy(grid, spec, perMode, tables);
+  const moments = spectrumMoments(grid, spec, tables);
   const shells = new Shells(grid, 4);
-  shells.countModes(modeShells(grid));
+  shells.countModes(tables ?? modeShells(grid));
   const velocityPerMode = grid.volume / (n * n) / (a * a * (mass / n));
   // k·W in the first half of work grid 1 (its other half is never touched)
   const div = fft.work(1).subarray(0, halfSpaceLength(grid.shape));
-  const { total: t, bulk2, jSum } = shellSums(grid, psi, spec, shellData(grid, shells.count, div, perMode, velocityPerMode), fft, run);
+  const { total: t, bulk2, jSum } = shellSums(grid, psi, spec, shellData(grid, shells.count, div, perMode, velocityPerMode, tables), fft, run, tables);
   for (let i = 0; i < 4; i++) shells.series(i).set(t.subarray(SHELL_TOTALS + i * shells.count, SHELL_TOTALS + (i + 1) * shells.count));
   const [quantum, incompressible, compressible, uniformFlow, zeroMode] = [t[0]!, t[1]!, t[2]!, t[3]!, t[4]!];
   const spectra = shells.rows().map((r) => ({ k: r.k, quantum: r.sums[0]!, incompressible: r.sums[1]!, compressible: r.sums[2]!, velocityPower: r.sums[3]! / r.modes, modes: r.modes }));

@@ -21,6 +21,7 @@ import { lnGamma } from "../math/special.js";
 import { simulatedAxes } from "./shells.js";
 import { meanDensity } from "./analysis.js";
 import { spectrumMoments, type SpectrumMoments } from "./spectrum-moments.js";
+import { blockTablesOf, type BlockTables } from "./block-tables.js";
 
 /** Granule statistics (code units; lengths comoving). */
 export interface GranuleStats {
@@ -80,8 +81,11 @@ export function granuleStats(grid: Grid, psi: Float64Array, a: number, fft: Fiel
   const moments = known.moments ?? spectrumMomentsOf(grid, psi, fft, data === fft.work(1) ? 0 : 1);
   const mean = known.meanDensity ?? meanDensity(psi);
   const width = pdfMax / pdfBins;
-  const counts = new Float64Array(pdfBins);
-  const variance = contrastPass(psi, mean, width, counts, known.contrastSpectrum ? undefined : data);
+  // in WebAssembly with ψ and `data` in the memory of the transforms' tables (the same arithmetic)
+  const tables = granuleTables(grid, blockTablesOf(fft, grid, psi, data), pdfBins);
+  const counts = tables ? tables.sums.subarray(0, pdfBins).fill(0) : new Float64Array(pdfBins);
+  const into = known.contrastSpectrum ? undefined : data;
+  const variance = tables ? tables.kernels.contrastCounts(psi, mean, width, counts, into) : contrastPass(psi, mean, width, counts, into);
   const shape = 1 / variance;
   const pdf = Array.from({ length: pdfBins }, (_, b) => {
     const lo = b * width;
@@ -89,14 +93,17 @@ export function granuleStats(grid: Grid, psi: Float64Array, a: number, fft: Fiel
   });
   // ξ(r) = IFFT |δ_k|² / N
   if (!known.contrastSpectrum) fft.forward(data);
-  for (let i = 0; i < n; i++) {
-    data[2 * i] = (data[2 * i]! ** 2 + data[2 * i + 1]! ** 2) / n;
-    data[2 * i + 1] = 0;
+  if (tables) tables.kernels.powerCells(data);
+  else {
+    for (let i = 0; i < n; i++) {
+      data[2 * i] = (data[2 * i]! ** 2 + data[2 * i + 1]! ** 2) / n;
+      data[2 * i + 1] = 0;
+    }
   }
   fft.inverse(data);
   const sigma = velocityDispersion(grid, moments, a);
   const predictedLength = 1 / (a * sigma);
-  const correlation = shellAverage(grid, data, predictedLength);
+  const correlation = shellAverage(grid, data, predictedLength, tables);
   const xi0 = data[0]!;
   let correlationLength = NaN;
   for (let j = 1; j < correlation.length; j++) {
@@ -143,11 +150,11 @@ function velocityDispersion(grid: Grid, m: SpectrumMoments, a: number): number {
   return Math.sqrt(Math.max(0, m.k2 / m.weight - mean2) / grid.dims) / a;
 }
 
-/** Squared minimum-image distances from the origin: per row (a, b) of the first two axes (rows[a * n1 + b]), and per cell along the last axis. */
-function separations(grid: Grid): { rows: Float64Array; last: Float64Array } {
+/** Squared minimum-image distances from the origin: per row (a, b) of the first two axes (rows[a * n1 + b]), and per cell along the last axis (into `room` when given: n0 n1 + n2 numbers). */
+function separations(grid: Grid, room?: Float64Array): { rows: Float64Array; last: Float64Array } {
   const [n0, n1, n2] = grid.shape;
   const h = grid.spacing;
-  const rows = new Float64Array(n0 * n1);
+  const rows = room ? room.subarray(0, n0 * n1) : new Float64Array(n0 * n1);
   for (let a = 0; a < n0; a++) {
     const x = Math.min(a, n0 - a) * h[0];
     for (let b = 0; b < n1; b++) {
@@ -155,7 +162,9 @@ function separations(grid: Grid): { rows: Float64Array; last: Float64Array } {
       rows[a * n1 + b] = (n0 > 1 ? x * x : 0) + (n1 > 1 ? y * y : 0);
     }
   }
-  return { rows, last: Float64Array.from({ length: n2 }, (_, c) => (Math.min(c, n2 - c) * h[2]) ** 2) };
+  const last = room ? room.subarray(n0 * n1, n0 * n1 + n2) : new Float64Array(n2);
+  for (let c = 0; c < n2; c++) last[c] = (Math.min(c, n2 - c) * h[2]) ** 2;
+  return { rows, last };
 }
 
 /** ΔV Σ of the real parts of `data` over the cells at a minimum-image distance below `r` from the origin (in storage order). */
@@ -185,18 +194,33 @@ function shellRow(data: Float64Array, i: number, rowR2: number, last: Float64Arr
   }
 }
 
-/** Shells of one cell (the smallest spacing) of a real field stored in the real parts of `data`, out to half the shortest side. */
-function shellAverage(grid: Grid, data: Float64Array, length: number): { r: number; xi: number; predicted: number; cells: number }[] {
+/** The tables of the granules' passes in WebAssembly: with room in their sums for the PDF's counts and three series of the correlation's shells. */
+function granuleTables(grid: Grid, tables: BlockTables | undefined, pdfBins: number): BlockTables | undefined {
+  return tables && Math.max(pdfBins, 3 * correlationShells(grid)) <= tables.sums.length ? tables : undefined;
+}
+
+/** The correlation function's shells: one cell (the smallest spacing) wide, out to half the shortest side. */
+function correlationShells(grid: Grid): number {
   const axes = simulatedAxes(grid);
   const h = Math.min(...axes.map((ax) => grid.spacing[ax]));
   const rMax = Math.min(...axes.map((ax) => grid.extent[ax])) / 2;
-  const bins = Math.max(1, Math.floor(rMax / h) + 1);
-  const [sum, rs, cnt] = [new Float64Array(bins), new Float64Array(bins), new Float64Array(bins)];
-  const { rows, last } = separations(grid);
+  return Math.max(1, Math.floor(rMax / h) + 1);
+}
+
+/** Shells of one cell (the smallest spacing) of a real field stored in the real parts of `data`, out to half the shortest side (in WebAssembly with `tables`). */
+function shellAverage(grid: Grid, data: Float64Array, length: number, tables: BlockTables | undefined): { r: number; xi: number; predicted: number; cells: number }[] {
+  const h = Math.min(...simulatedAxes(grid).map((ax) => grid.spacing[ax]));
+  const bins = correlationShells(grid);
+  const room = tables ? tables.sums.subarray(0, 3 * bins).fill(0) : new Float64Array(3 * bins);
+  const [sum, rs, cnt] = [room.subarray(0, bins), room.subarray(bins, 2 * bins), room.subarray(2 * bins)];
+  const { rows, last } = separations(grid, tables?.separations);
   // rows entirely beyond the last shell (by a cell's margin against round-off) add nothing
   const limit = (bins + 0.5) * h;
-  const shells = { sum, rs, cnt };
-  for (let row = 0; row < rows.length; row++) if (Math.sqrt(rows[row]!) < limit) shellRow(data, row * last.length, rows[row]!, last, h, shells);
+  if (tables) tables.kernels.distanceShells(data, rows, last, h, limit, sum, rs, cnt);
+  else {
+    const shells = { sum, rs, cnt };
+    for (let row = 0; row < rows.length; row++) if (Math.sqrt(rows[row]!) < limit) shellRow(data, row * last.length, rows[row]!, last, h, shells);
+  }
   const xi0 = data[0]!;
   const out: { r: number; xi: number; predicted: number; cells: number }[] = [];
   for (let b = 0; b < bins; b++) {

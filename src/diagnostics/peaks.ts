@@ -5,6 +5,7 @@
  * with minimum-image distances.
  */
 import type { Grid } from "../grid/grid.js";
+import type { BlockTables } from "./block-tables.js";
 
 /** A max-heap of cell indices ordered by ρ descending, then index ascending (the order of a stable sort by ρ). */
 class PeakHeap {
@@ -95,8 +96,12 @@ export function densityGrid(psi: Float64Array, n: number, scratch?: Float64Array
   return rho;
 }
 
-/** The `count` densest local maxima at least `minSeparation` cells apart (indices and densities); `scratch`, if given, is a grid of at least one number per cell it may overwrite. */
-export function densestPoints(grid: Grid, psi: Float64Array, count: number, minSeparation: number, scratch?: Float64Array): { index: number; coords: number[]; density: number }[] {
+/**
+ * The `count` densest local maxima at least `minSeparation` cells apart (indices and densities); `scratch`, if
+ * given, is a grid of at least one number per cell it may overwrite. With `tables` (block-tables.ts) whose memory
+ * holds ψ and the scratch, ρ and the local maxima are found in WebAssembly (the same cells).
+ */
+export function densestPoints(grid: Grid, psi: Float64Array, count: number, minSeparation: number, scratch?: Float64Array, tables?: BlockTables): { index: number; coords: number[]; density: number }[] {
   const [, n1, n2] = grid.shape;
   const cell = (i: number) => [Math.floor(i / (n1 * n2)), Math.floor(i / n2) % n1, i % n2];
   const coordsOf = (ci: number[]) => [grid.coordinate(0, ci[0]!), grid.coordinate(1, ci[1]!), grid.coordinate(2, ci[2]!)].slice(3 - grid.dims);
@@ -106,8 +111,11 @@ export function densestPoints(grid: Grid, psi: Float64Array, count: number, minS
     return [{ index: top.cell, coords: coordsOf(cell(top.cell)), density: top.rho }];
   }
   const n = grid.size;
-  const rho = densityGrid(psi, n, scratch);
-  const heap = new PeakHeap(rho, peakCandidates(grid, rho));
+  const room = tables?.sums;
+  const wasm = tables && scratch && scratch.length >= n && [psi, scratch].every((a) => a.buffer === room!.buffer) && 2 * room!.length > grid.shape[2] + 1;
+  const rho = wasm ? scratch.subarray(0, n) : densityGrid(psi, n, scratch);
+  if (wasm) tables.kernels.densityCells(psi, rho);
+  const heap = new PeakHeap(rho, wasm ? tables.kernels.peakCandidates(rho, grid.shape, room!) : peakCandidates(grid, rho));
   const chosen: { index: number; coords: number[]; density: number }[] = [];
   for (let i = heap.pop(); i >= 0 && chosen.length < count; i = heap.pop()) {
     const ci = cell(i);
@@ -147,16 +155,37 @@ function nearIndices(grid: Grid, center: readonly number[], reach: number): { id
   });
 }
 
-/** Spherical (circular in 2D) shell averages of ρ around a centre, minimum-image distances, shells of one cell. */
-export function radialProfile(grid: Grid, psi: Float64Array, center: readonly number[], rMax: number): { r: number; density: number; cells: number }[] {
+/** Spherical (circular in 2D) shell averages of ρ around a centre, minimum-image distances, shells of one cell (the sums in WebAssembly with `tables` of ψ's memory). */
+export function radialProfile(grid: Grid, psi: Float64Array, center: readonly number[], rMax: number, tables?: BlockTables): { r: number; density: number; cells: number }[] {
   const h = Math.min(...grid.spacing.slice(3 - grid.dims));
   const bins = Math.max(1, Math.ceil(rMax / h));
-  const sum = new Float64Array(bins);
-  const rs = new Float64Array(bins);
-  const cnt = new Float64Array(bins);
   const [, n1, n2] = grid.shape;
   // a cell in bin b < bins has r < (bins − ½) h, so every distance along an axis is below bins·h
   const [A, B, C] = nearIndices(grid, center, bins * h);
+  const listed = 2 * (A!.idx.length + B!.idx.length + C!.idx.length);
+  const wasm = tables && psi.buffer === tables.sums.buffer && 3 * bins + listed <= tables.sums.length ? tables : undefined;
+  const room = wasm ? wasm.sums.subarray(0, 3 * bins + listed).fill(0) : new Float64Array(3 * bins);
+  const [sum, rs, cnt] = [room.subarray(0, bins), room.subarray(bins, 2 * bins), room.subarray(2 * bins, 3 * bins)];
+  if (wasm) {
+    // each axis's list: its indices, then their squared distances
+    let at = 3 * bins;
+    const lists = [A!, B!, C!].map((l) => {
+      const list = room.subarray(at, at + 2 * l.idx.length);
+      list.set(l.idx);
+      list.set(l.d2, l.idx.length);
+      at += list.length;
+      return list;
+    });
+    wasm.kernels.radialCells(psi, grid.shape, lists, h, sum, rs, cnt);
+  } else radialSums(psi, n1, n2, [A!, B!, C!], h, sum, rs, cnt);
+  const out: { r: number; density: number; cells: number }[] = [];
+  for (let i = 0; i < bins; i++) if (cnt[i]! > 0) out.push({ r: rs[i]! / cnt[i]!, density: sum[i]! / cnt[i]!, cells: cnt[i]! });
+  return out;
+}
+
+/** radialProfile's sums over the cells of the index lists A × B × C: Σρ, Σr and the count per shell of width h. */
+function radialSums(psi: Float64Array, n1: number, n2: number, [A, B, C]: { idx: number[]; d2: number[] }[], h: number, sum: Float64Array, rs: Float64Array, cnt: Float64Array): void {
+  const bins = sum.length;
   for (let ia = 0; ia < A!.idx.length; ia++)
     for (let ib = 0; ib < B!.idx.length; ib++) {
       const row = (A!.idx[ia]! * n1 + B!.idx[ib]!) * n2;
@@ -171,7 +200,4 @@ export function radialProfile(grid: Grid, psi: Float64Array, center: readonly nu
         cnt[bin] = cnt[bin]! + 1;
       }
     }
-  const out: { r: number; density: number; cells: number }[] = [];
-  for (let i = 0; i < bins; i++) if (cnt[i]! > 0) out.push({ r: rs[i]! / cnt[i]!, density: sum[i]! / cnt[i]!, cells: cnt[i]! });
-  return out;
 }

@@ -14,10 +14,13 @@ export interface RowBlocks {
   readonly n2: number;
 }
 
-/** The blocks of a shape's rows: at most 64, so that the sums stay small and two threads share the work evenly. */
+/** The most blocks a pass has: few enough for the sums to stay small, enough for two threads to share the work evenly. */
+export const MAX_BLOCKS = 64;
+
+/** The blocks of a shape's rows (MAX_BLOCKS, or one a row when there are fewer rows). */
 export function rowBlocks(shape: readonly [number, number, number]): RowBlocks {
   const rows = shape[0] * shape[1];
-  return { rows, blocks: Math.min(rows, 64), n2: shape[2] };
+  return { rows, blocks: Math.min(rows, MAX_BLOCKS), n2: shape[2] };
 }
 
 /** The rows [first, end) of block u. */

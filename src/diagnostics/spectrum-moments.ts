@@ -6,6 +6,7 @@
  * dispersion share them.
  */
 import type { Grid } from "../grid/grid.js";
+import type { BlockTables } from "./block-tables.js";
 
 /** Σ|ψ_k|², Σ k²|ψ_k|² (full k², Nyquist included) and Σ k_i |ψ_k|² for i = 0, 1, 2. */
 export interface SpectrumMoments {
@@ -14,15 +15,18 @@ export interface SpectrumMoments {
   readonly k1: readonly [number, number, number];
 }
 
-/** The moments of the spectrum `spec` (interleaved complex, storage order, k as the grid's wavenumbers). */
-export function spectrumMoments(grid: Grid, spec: Float64Array): SpectrumMoments {
+/** The moments of the spectrum `spec` (interleaved complex, storage order, k as the grid's wavenumbers); in WebAssembly with `tables` of spec's memory (the same sums). */
+export function spectrumMoments(grid: Grid, spec: Float64Array, tables?: BlockTables): SpectrumMoments {
   const [n0, n1] = grid.shape;
-  const [kx, ky] = [grid.wavenumbers(0), grid.wavenumbers(1)];
   // [Σ m, Σ k² m, Σ kx m, Σ ky m, Σ kz m]
-  const acc = new Float64Array(5);
-  const n2 = grid.shape[2];
-  for (let i = 0, p = 0; i < n0; i++)
-    for (let j = 0; j < n1; j++, p += 2 * n2) momentsRow(grid.wavenumbers(2), spec, p, kx[i]!, ky[j]!, acc);
+  const acc = tables ? tables.sums.subarray(0, 5).fill(0) : new Float64Array(5);
+  if (tables) tables.kernels.momentRows(spec, tables.k, grid.shape, 0, n0 * n1, acc);
+  else {
+    const [kx, ky] = [grid.wavenumbers(0), grid.wavenumbers(1)];
+    const n2 = grid.shape[2];
+    for (let i = 0, p = 0; i < n0; i++)
+      for (let j = 0; j < n1; j++, p += 2 * n2) momentsRow(grid.wavenumbers(2), spec, p, kx[i]!, ky[j]!, acc);
+  }
   return { weight: acc[0]!, k2: acc[1]!, k1: [acc[2]!, acc[3]!, acc[4]!] };
 }
 

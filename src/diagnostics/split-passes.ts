@@ -46,7 +46,9 @@ export interface ShellData {
   readonly k0: Float64Array;
   readonly k1: Float64Array;
   readonly k2: Float64Array;
+  /** The shell of mode (r, c) at bins[r binRow + c]: a table of every mode (binRow = n2) or of the half space (n2/2 + 1). */
   readonly bins: Int16Array | Int32Array;
+  readonly binRow: number;
   /** Shells. */
   readonly count: number;
   readonly perMode: number;
@@ -69,11 +71,19 @@ export function shellSumsLength(count: number): number {
   return SHELL_TOTALS + 4 * count;
 }
 
-/** Where row (a, b) keeps its mirrors' k·W in `nyquist`, or −1 when it is no Nyquist row. */
+/**
+ * Rows of the mirrors' k·W a shape's Nyquist rows keep (nyquistRow): one for each b where a = n0/2 (a simulated
+ * first axis), then one for each a where b = n1/2 (a simulated second axis); rows of n2 + 2 numbers.
+ */
+export function nyquistRows(shape: readonly [number, number, number]): number {
+  return (shape[0] > 1 ? shape[1] : 0) + (shape[1] > 1 ? shape[0] : 0);
+}
+
+/** Where row (a, b) keeps its mirrors' k·W in `nyquist` (nyquistRows rows of n2 + 2), or −1 when it is no Nyquist row. */
 export function nyquistRow(d: ShellData, a: number, b: number): number {
   const n0 = d.shape[0];
   const n1 = d.shape[1];
-  const row = n0 > 1 && a === n0 / 2 ? b : n1 > 1 && b === n1 / 2 ? n1 + a : -1;
+  const row = n0 > 1 && a === n0 / 2 ? b : n1 > 1 && b === n1 / 2 ? (n0 > 1 ? n1 : 0) + a : -1;
   return row < 0 ? -1 : row * (d.shape[2] + 2);
 }
 
@@ -86,9 +96,10 @@ export function nyquistRow(d: ShellData, a: number, b: number): number {
  * k·W in `nyquist` (from e). kRow: the row's k_axis, kMirror: the mirror row's; zScale: 1 along the last axis, else 0.
  */
 export function axisRow(d: ShellData, z: Float64Array, r: number, mirror: number, kRow: number, kMirror: number, zScale: number, e: number, first: boolean, s: Float64Array, at: number): void {
-  const { k2, bins, count, perMode, velocityPerMode, div, nyquist } = d;
+  const { k2, bins, binRow, count, perMode, velocityPerMode, div, nyquist } = d;
   const n2 = k2.length;
   const half = n2 / 2;
+  const binAt = r * binRow;
   const sq = at + SHELL_TOTALS;
   const sw = sq + count;
   const sv = sq + 3 * count;
@@ -115,7 +126,7 @@ export function axisRow(d: ShellData, z: Float64Array, r: number, mirror: number
     const ww = weight * (wr * wr + wi * wi);
     quantum += eq;
     incompressible += ww * perMode;
-    const bin = bins[p >> 1]!;
+    const bin = bins[binAt + c]!;
     if (bin < 0) {
       // k = 0: the uniform flow and the zero mode, in no shell
       s[at + 3] = s[at + 3]! + ww * perMode;
@@ -135,14 +146,14 @@ export function axisRow(d: ShellData, z: Float64Array, r: number, mirror: number
  * kab = k_a² + k_b²: counted in the shells of `s` (from `at`), and moved out of the incompressible part.
  */
 export function compressibleRow(d: ShellData, r: number, kab: number, e: number, s: Float64Array, at: number): void {
-  const { k2, bins, count, perMode, div, nyquist } = d;
+  const { k2, bins, binRow, count, perMode, div, nyquist } = d;
   const half = k2.length / 2;
   const sw = at + SHELL_TOTALS + count;
   const sc = sw + count;
   let compressible = s[at + 2]!;
   let incompressible = s[at + 1]!;
   const onNyquist = e >= 0;
-  for (let c = 0, i = r * k2.length, h = 2 * r * (half + 1); c <= half; c++, i++, h += 2, e += 2) {
+  for (let c = 0, i = r * binRow, h = 2 * r * (half + 1); c <= half; c++, i++, h += 2, e += 2) {
     const kk = kab + k2[c]! * k2[c]!;
     if (kk === 0) continue;
     const own = div[h]! * div[h]! + div[h + 1]! * div[h + 1]!;

@@ -3,11 +3,14 @@
  * (row-blocks.ts), so that the step's thread pool can run them
  * (block-tasks.ts) as well as this thread. The typed arrays of a task are on
  * shared memory where it goes to another thread (a message shares them; the
- * small wavenumber tables are copied).
+ * small wavenumber tables are copied). A task marked `wasm` has every array
+ * in the transforms' WebAssembly memory (block-tables.ts): its passes run
+ * there (fields/field-kernels.ts), with the same bits as in JavaScript.
  */
 import { axisRow, compressibleRow, nyquistRow, packRow, shellSumsLength, type ShellData } from "./split-passes.js";
 import { derivativeRow } from "./shells.js";
 import { blockRows, type RowBlocks } from "./row-blocks.js";
+import type { FieldKernels } from "../fields/field-kernels.js";
 
 /** One pass of the split over blocks [lo, hi). */
 export type SplitTask =
@@ -22,15 +25,26 @@ export type SplitTask =
   /** compressibleRow over the rows; block u's sums as for "shells". */
   | { readonly kind: "compressible"; readonly at: RowBlocks; readonly data: ShellData; readonly sums: Float64Array };
 
-/** Run a split task over blocks [lo, hi). */
-export function runSplitTask(t: SplitTask, lo: number, hi: number): void {
+/** Whether a task's arrays are all in the transforms' WebAssembly memory (set where it is made). */
+export type OnMemory = { readonly wasm?: boolean };
+
+/** Run a split task over blocks [lo, hi): by `kernels` (the passes on this thread's instance of the memory) when the task is marked for them. */
+export function runSplitTask(t: SplitTask & OnMemory, lo: number, hi: number, kernels?: FieldKernels): void {
+  const k = t.wasm ? kernels : undefined;
   for (let u = lo; u < hi; u++) {
     const [first, end] = blockRows(t.at, u);
     const row = 2 * t.at.n2;
     if (t.kind === "copy") t.to.set(t.from.subarray(first * row, end * row), first * row);
-    else if (t.kind === "pack") for (let r = first; r < end; r++) packRow(t.psi, t.z, r * row, (r + 1) * row, t.sums, 2 * u);
-    else if (t.kind === "ik") ikRows(t, first, end);
-    else if (t.kind === "shells") shellRows(t, first, end, u * shellSumsLength(t.data.count));
+    else if (t.kind === "pack") {
+      if (k) k.packCells(t.psi, t.z, first * t.at.n2, end * t.at.n2, t.sums, 2 * u);
+      else for (let r = first; r < end; r++) packRow(t.psi, t.z, r * row, (r + 1) * row, t.sums, 2 * u);
+    } else if (t.kind === "ik") {
+      if (k) k.ikRows(t.z, t.k, t.kz, t.n1, t.at.n2, t.axis, first, end);
+      else ikRows(t, first, end);
+    } else if (t.kind === "shells") {
+      if (k) k.shellRows(t.data, t.z, t.axis, t.first, t.sums, u * shellSumsLength(t.data.count), first, end);
+      else shellRows(t, first, end, u * shellSumsLength(t.data.count));
+    } else if (k) k.compressibleRows(t.data, t.sums, u * shellSumsLength(t.data.count), first, end);
     else compressibleRows(t.data, first, end, t.sums, u * shellSumsLength(t.data.count));
   }
 }

@@ -39,6 +39,8 @@ export type LongRowsMode = "forward" | "inverse" | "drift";
 export type PoissonTarget = "periodic" | "isolated";
 
 export interface StepEngine {
+  /** The one WebAssembly memory of this engine's regions (the wasm backend on one memory), where the diagnostics' passes can run too. */
+  readonly memory?: WebAssembly.Memory;
   /** field ← e^{−i·factor·(potential + contact·|source|²)} field over rows (source: the field itself, or a tangent's ψ). */
   kick(field: ComplexGrid, potential: RealGrid, factor: number, contact: number, source: ComplexGrid, lo: number, hi: number): void;
   /** Phase set `set`: (cos, sin)(−½ k² D) per index of every axis, D = `factor`. */

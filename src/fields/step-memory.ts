@@ -157,6 +157,8 @@ export const regionName = {
   longTwiddles: "long.tw",
   /** A thread's two scratch blocks. */
   scratch: (slot: number) => `scratch.${slot}`,
+  /** The diagnostics' tables beside their work grids (diagnostics/block-tables.ts lays them out). */
+  fieldTables: "field.tables",
 } as const;
 
 /** Table lengths along an axis of n cells: rounded up to even (the kernels work on pairs). */
@@ -227,14 +229,16 @@ function kernelRegions(transforms: readonly Transform[], slots: number): RegionS
 /**
  * The memory of whole-grid transforms without a step (the diagnostics'
  * work grids, integrators/pooled-transforms.ts): `grids` complex grids
- * named as extra fields ("field.1" …), the k² tables the engines read, and
- * the kernels' regions for `transforms`.
+ * named as extra fields ("field.1" …), the k² tables the engines read,
+ * `tables` doubles for the diagnostics' passes in WebAssembly (wasm only),
+ * and the kernels' regions for `transforms`.
  */
-export function transformRegions(g: StepGeometry, grids: number, transforms: readonly Transform[], slots: number): RegionSpec[] {
+export function transformRegions(g: StepGeometry, grids: number, transforms: readonly Transform[], slots: number, tables = 0): RegionSpec[] {
   const size = g.shape[0] * g.shape[1] * g.shape[2];
   const out: RegionSpec[] = [];
   for (let i = 1; i <= grids; i++) out.push({ name: `field.${i}`, type: "complex", length: size });
   for (let axis = 0; axis < 3; axis++) out.push({ name: regionName.kSquared(axis), type: "f64", length: even(g.shape[axis]!) });
+  if (tables > 0) out.push({ name: regionName.fieldTables, type: "f64", length: tables, wasmOnly: true });
   return [...out, ...kernelRegions(transforms, slots)];
 }
 

@@ -36,6 +36,10 @@ export class WasmStepEngine extends EngineBase {
     this.buf2 = this.buf + setup.scratchBytes;
   }
 
+  get memory(): WebAssembly.Memory | undefined {
+    return this.setup.memory;
+  }
+
   /** Byte address of a region. */
   private at(name: string): number {
     return region(this.setup, name).offset;

@@ -11,8 +11,9 @@ import type { Grid } from "../grid/grid.js";
 import type { FieldTransforms } from "../fields/field-transforms.js";
 import { allocateRegions } from "../fields/step-allocate.js";
 import { createEngine, outerCount, type ComplexGrid, type StepEngine } from "../fields/step-engine.js";
-import { regionView, stepGeometry, transformRegions, WASM_MAX_BYTES, wasmLayout, type FftBackend, type StepSetup, type Transform } from "../fields/step-memory.js";
+import { regionName, regionView, stepGeometry, transformRegions, WASM_MAX_BYTES, wasmLayout, type FftBackend, type StepSetup, type Transform } from "../fields/step-memory.js";
 import { kernelModule } from "../fields/wasm-kernels.js";
+import { FieldKernels } from "../fields/field-kernels.js";
 import { RESULT_LENGTH, runTask, transformOf, type StepTask } from "./step-task.js";
 import { ThreadPool, type ThreadPoolOptions } from "./thread-pool.js";
 import type { BlockTask, BlockThreads } from "../diagnostics/block-tasks.js";
@@ -24,6 +25,8 @@ export interface PooledOptions {
   /** "auto": the kernels when they load and the grids fit a 4 GiB memory, else fft.js. */
   readonly backend?: FftBackend | "auto";
   readonly pool?: ThreadPoolOptions;
+  /** Doubles of a region for the diagnostics' passes in WebAssembly (diagnostics/block-tables.ts blockTablesLength; wasm backend only). */
+  readonly tables?: number;
 }
 
 /** The transforms along each simulated axis of a shape. */
@@ -33,9 +36,9 @@ function axisTransforms(shape: Triple): Transform[] {
 }
 
 /** The backend for `grids` work grids of `shape` on `threads` threads. */
-function chooseBackend(shape: Triple, grids: number, threads: number, choice: FftBackend | "auto"): FftBackend {
+function chooseBackend(shape: Triple, grids: number, threads: number, choice: FftBackend | "auto", tables: number): FftBackend {
   if (choice !== "auto") return choice;
-  const specs = transformRegions(stepGeometry(shape, "none"), grids, axisTransforms(shape), threads);
+  const specs = transformRegions(stepGeometry(shape, "none"), grids, axisTransforms(shape), threads, tables);
   return kernelModule() !== null && wasmLayout(specs).total <= WASM_MAX_BYTES ? "wasm" : "js";
 }
 
@@ -55,14 +58,22 @@ export class PooledTransforms implements FieldTransforms, BlockThreads {
     const shape = grid.shape;
     this.shape = shape;
     this.threads = Math.max(1, options.threads);
-    this.backend = chooseBackend(shape, grids, this.threads, options.backend ?? "auto");
+    this.backend = chooseBackend(shape, grids, this.threads, options.backend ?? "auto", options.tables ?? 0);
     const g = stepGeometry(shape, "none");
     const transforms = axisTransforms(shape);
     const kSquared = ([0, 1, 2] as const).map((ax) => Float64Array.from(grid.wavenumbers(ax), (k) => k * k));
-    this.setup = allocateRegions(this.backend, g, transformRegions(g, grids, transforms, this.threads), transforms, { kSquared });
+    this.setup = allocateRegions(this.backend, g, transformRegions(g, grids, transforms, this.threads, options.tables ?? 0), transforms, { kSquared });
     this.views = Array.from({ length: grids }, (_, i) => regionView(this.setup, this.name(i)));
     this.engine = createEngine(this.setup, 0);
     this.pool = this.threads > 1 ? new ThreadPool(this.threads, this.setup, options.pool) : undefined;
+  }
+
+  /** The diagnostics' tables region and the passes on its memory (diagnostics/block-tables.ts), when this memory has them. */
+  blockTables(): { region: Float64Array; kernels: FieldKernels } | undefined {
+    const memory = this.engine.memory;
+    if (!memory || !this.setup.regions[regionName.fieldTables]) return undefined;
+    const kernels = FieldKernels.of(memory);
+    return kernels ? { region: regionView(this.setup, regionName.fieldTables), kernels } : undefined;
   }
 
   private name(i: number): ComplexGrid {

@@ -167,7 +167,7 @@ function runScalar(engine: StepEngine, t: Exclude<StepTask, { op: "moments" | "o
       engine.longPairs(t.real, lo, hi);
       return 0;
     case "blocks":
-      runBlockTask(t.task, lo, hi);
+      runBlockTask(t.task, lo, hi, engine.memory);
       return 0;
   }
 }

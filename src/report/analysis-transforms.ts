@@ -17,6 +17,7 @@ import vm from "node:vm";
 import type { Grid } from "../grid/grid.js";
 import { PooledTransforms } from "../integrators/pooled-transforms.js";
 import { defaultThreads } from "../config/resolve-output.js";
+import { blockTablesLength } from "../diagnostics/block-tables.js";
 import { AnalysisHelper } from "./analysis-helper.js";
 import { vortexJobOf, type VortexTable } from "./vortex-table.js";
 
@@ -35,7 +36,7 @@ export class AnalysisTransforms {
     if (this.current && this.current.shape.every((n, i) => n === grid.shape[i])) return this.current;
     void this.current?.close();
     // the worker threads start while the caller goes on (reading the snapshot): the first transform waits for them
-    const fft = new PooledTransforms(grid, 3, { threads: defaultThreads(grid.cells), pool: { deferStart: true } });
+    const fft = new PooledTransforms(grid, 3, { threads: defaultThreads(grid.cells), pool: { deferStart: true }, tables: blockTablesLength(grid) });
     this.current = fft;
     // the helper thread starts now too, ready for the census once ψ is read
     this.helper(grid);

@@ -9,6 +9,7 @@ import type { Snapshot } from "../io/snapshot.js";
 import type { FieldTransforms } from "../fields/field-transforms.js";
 import { writeFileAtomic } from "../io/atomic.js";
 import { fieldStats, type LoadedField } from "../simulation/from-snapshot.js";
+import { blockTablesOf } from "../diagnostics/block-tables.js";
 import { densestPoints, densityPdf, densityPowerSpectrum, fitCoreProfile, kineticSplit, meanDensity, radialProfile, type KineticSplit } from "../diagnostics/analysis.js";
 import { kineticFromGradient, periodicPotentialFromContrast } from "../diagnostics/energies.js";
 import type { SpectrumMoments } from "../diagnostics/spectrum-moments.js";
@@ -76,19 +77,20 @@ export function snapshotTables(
   const mean = measured?.meanDensity ?? meanDensity(psi);
   const power = densityPowerSpectrum(grid, psi, fft, 0, mean);
   writeFileAtomic(path.join(outDir, "power.csv"), powerTable(power, kpcPerCode, grid.dims, snap.meta.background.kind === "lcdm" ? snap.meta.background.hubbleKmSMpc / 100 : undefined));
-  const pdf = densityPdf(psi, 40, runnerOf(fft, psi));
+  const tables = blockTablesOf(fft, grid, psi);
+  const pdf = densityPdf(psi, 40, runnerOf(fft, psi), tables);
   writeFileAtomic(path.join(outDir, "pdf.csv"), csv(["log10_density_contrast", "volume_fraction", "mass_fraction"], pdf.map((p) => [p.log10Contrast, p.volumeFraction, p.massFraction])));
 
   // K from ψ's spectrum and the periodic W from δ's, both at hand: no transform of their own
-  const known = measured ? { kinetic: kineticFromGradient(grid, measured.moments.k2, a), periodicPotential: periodicPotentialFromContrast(grid, fft.work(0), mean, a) } : undefined;
+  const known = measured ? { kinetic: kineticFromGradient(grid, measured.moments.k2, a), periodicPotential: periodicPotentialFromContrast(grid, fft.work(0), mean, a, tables) } : undefined;
   withContrast?.(fft.work(0));
   const stats = fieldStats(field, fft, known);
   const split = measured?.kinetic ?? kineticSplit(grid, psi, a, fft);
-  const peaks = densestPoints(grid, psi, 5, Math.max(4, grid.cells[0]! / 16), fft.work(1));
+  const peaks = densestPoints(grid, psi, 5, Math.max(4, grid.cells[0]! / 16), fft.work(1), tables);
   const profileRows: (number | string)[][] = [];
   const peakRows = peaks.map((p, i) => {
     const rMax = Math.min(...grid.lengths) / 4;
-    const profile = radialProfile(grid, psi, p.coords, rMax);
+    const profile = radialProfile(grid, psi, p.coords, rMax, tables);
     for (const q of profile) profileRows.push([i + 1, q.r * kpcPerCode, q.density * densityUnit, q.cells]);
     let fit: { rhoC: number; rC: number; rms: number } | undefined;
     if (grid.dims === 3) {

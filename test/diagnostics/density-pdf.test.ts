@@ -4,6 +4,7 @@
 import { describe, expect, it } from "vitest";
 import { densityPdf } from "../../src/diagnostics/analysis.js";
 import { runBlockTask, type BlockRunner } from "../../src/diagnostics/block-tasks.js";
+import { FieldKernels } from "../../src/fields/field-kernels.js";
 import { binEdges, runPdfTask } from "../../src/diagnostics/density-pdf.js";
 
 /** The double just below x > 0 (its bits less one). */
@@ -87,5 +88,30 @@ describe("the density PDF", () => {
         expect(sums.findIndex((v) => v > 0)).toBe(bin(x * x));
       }
     }
+  });
+
+  it("in WebAssembly (fields/field-kernels.ts) bins cells on and next to the edges, and tiny, huge and empty cells, as the formula does; a NaN cell counts nowhere, as in JavaScript", () => {
+    const [lo, width, bins] = [-2.3, 0.11, 40];
+    const memory = new WebAssembly.Memory({ initial: 1, maximum: 1, shared: true });
+    const kernels = FieldKernels.of(memory)!;
+    const [psi, edges, sums] = [new Float64Array(memory.buffer, 0, 2), new Float64Array(memory.buffer, 64, bins + 1), new Float64Array(memory.buffer, 1024, 2 * bins)];
+    edges.set(binEdges(lo, width, bins));
+    const bin = (r: number) => Math.min(bins - 1, Math.max(0, Math.floor((Math.log10(Math.max(r, 1e-30)) - lo) / width)));
+    const xs = [0, 1e-40, 1e-3, 1e3, 1e200];
+    for (let j = 1; j < bins; j++) {
+      const re = Math.sqrt(edges[j]!);
+      xs.push(re, below(re), below(below(re)), re * (1 + 2e-16), re * (1 + 1e-12), re * (1 - 1e-12), re * (1 + 1e-9), re * (1 - 1e-9));
+    }
+    for (const x of xs) {
+      psi.set([x, 0]);
+      sums.fill(0);
+      runPdfTask({ kind: "pdf-histogram", at: { rows: 1, blocks: 1, n2: 1 }, psi, sums, mean: 1, lo, width, bins, edges, wasm: true }, 0, 1, kernels);
+      expect(sums.findIndex((v) => v > 0)).toBe(bin(x * x));
+      expect(sums[bin(x * x)]).toBe(1);
+    }
+    psi.set([NaN, 0]);
+    sums.fill(0);
+    runPdfTask({ kind: "pdf-histogram", at: { rows: 1, blocks: 1, n2: 1 }, psi, sums, mean: 1, lo, width, bins, edges, wasm: true }, 0, 1, kernels);
+    expect(sums.every((v) => v === 0)).toBe(true);
   });
 });

@@ -6,7 +6,7 @@ import { Grid } from "../../src/grid/grid.js";
 import { ComplexFft, outerCount } from "../../src/fields/fft.js";
 import { SimpleTransforms } from "../../src/fields/field-transforms.js";
 import { PooledTransforms } from "../../src/integrators/pooled-transforms.js";
-import { densestPoints, densityPdf, densityPowerSpectrum, kineticSplit, meanDensity } from "../../src/diagnostics/analysis.js";
+import { densestPoints, densityPdf, densityPowerSpectrum, kineticSplit, meanDensity, radialProfile } from "../../src/diagnostics/analysis.js";
 import { runnerOf } from "../../src/diagnostics/block-tasks.js";
 import { kineticFromGradient, periodicPotentialFromContrast } from "../../src/diagnostics/energies.js";
 import { energyAndKineticSplit, energySplit } from "../../src/diagnostics/energy-split.js";
@@ -14,6 +14,8 @@ import { granuleStats } from "../../src/diagnostics/granules.js";
 import { HusimiSampler, husimiWindowRange } from "../../src/diagnostics/husimi.js";
 import { fieldStats, loadField } from "../../src/simulation/from-snapshot.js";
 import { gaussianComplexField } from "../helpers/random-field.js";
+import { blockTablesLength, blockTablesOf } from "../../src/diagnostics/block-tables.js";
+import { modeShells } from "../../src/diagnostics/shells.js";
 
 /** Largest |a − b| over every number in two results of the same shape, divided by `scale`. */
 function worst(a: unknown, b: unknown, scale: number): number {
@@ -165,5 +167,106 @@ describe("field energies of a snapshot", () => {
     expect(Math.abs(measured.kineticMsunKm2S2 / reference.kineticMsunKm2S2 - 1)).toBeLessThan(1e-12);
     expect(Math.abs(measured.potentialMsunKm2S2 / reference.potentialMsunKm2S2 - 1)).toBeLessThan(1e-12);
     expect({ ...measured, kineticMsunKm2S2: 0, potentialMsunKm2S2: 0, totalMsunKm2S2: 0, virialRatio: 0 }).toEqual({ ...reference, kineticMsunKm2S2: 0, potentialMsunKm2S2: 0, totalMsunKm2S2: 0, virialRatio: 0 });
+  });
+});
+
+describe("the passes in WebAssembly (the tables analyze gives the transforms, ψ in their third work grid)", () => {
+  it.each(cases)("$cells: energy split, P(k), the PDF, the periodic W, the granules, the densest points and their profiles are the same bits as the passes in JavaScript, on 1 and 2 threads, every time", ({ cells, a }) => {
+    const grid = new Grid([...cells], cells.map((_, i) => 1 + 0.25 * i));
+    const psi = gaussianComplexField(grid, (k2) => Math.exp(-k2 / 300), 7);
+    for (let i = 0; i < grid.size; i++) psi[2 * i] = psi[2 * i]! + 0.5;
+    const measure = (fft: PooledTransforms) => {
+      const on = fft.work(2);
+      on.set(psi);
+      const both = energyAndKineticSplit(grid, on, a, fft);
+      const power = densityPowerSpectrum(grid, on, fft, 0, both.meanDensity);
+      const pdf = densityPdf(on, 40, runnerOf(fft, on), blockTablesOf(fft, grid, on));
+      // the periodic W from δ's spectrum that P(k) leaves
+      const potential = periodicPotentialFromContrast(grid, fft.work(0), both.meanDensity, a, blockTablesOf(fft, grid, on));
+      // as analyze measures the granules: from δ's spectrum that P(k) leaves, with the split's moments and ρ̄
+      const granules = granuleStats(grid, on, a, fft, undefined, undefined, { contrastSpectrum: fft.work(0), moments: both.moments, meanDensity: both.meanDensity });
+      // and on their own (δ and ψ's spectrum transformed here)
+      const alone = granuleStats(grid, on, a, fft);
+      // the densest points (work grid 1 their scratch) and the profiles around them
+      const tables = blockTablesOf(fft, grid, on);
+      const peaks = densestPoints(grid, on, 5, 2, fft.work(1), tables);
+      const profiles = peaks.map((p) => radialProfile(grid, on, p.coords, Math.min(...grid.lengths) / 4, tables));
+      return { both, power, pdf, potential, granules, alone, peaks, profiles, wasm: tables !== undefined };
+    };
+    const plain = new PooledTransforms(grid, 3, { threads: 1, backend: "wasm" });
+    opened.push(plain);
+    const reference = measure(plain);
+    expect(reference.wasm).toBe(false);
+    // and the JavaScript passes agree with fft.js's analysis (the tests above) to 1e-12
+    const split = energySplit(grid, psi, a, new SimpleTransforms(grid.shape));
+    expect(worst(reference.both.split, split, split.kinetic)).toBeLessThan(1e-12);
+    for (const threads of [1, 2]) {
+      const fast = new PooledTransforms(grid, 3, { threads, backend: "wasm", tables: blockTablesLength(grid) });
+      opened.push(fast);
+      const first = measure(fast);
+      expect(first.wasm).toBe(true);
+      expect({ ...first, wasm: false }).toStrictEqual(reference);
+      expect({ ...measure(fast), wasm: false }).toStrictEqual(reference);
+    }
+  });
+
+  it("the shells of the half space equal modeShells' shell of every mode (c > n2/2 by its mirror n2 − c), Σ|k| and mode counts bit for bit", () => {
+    const grid = new Grid([16, 8, 32], [1, 0.7, 1.3]);
+    const fast = new PooledTransforms(grid, 3, { threads: 1, backend: "wasm", tables: blockTablesLength(grid) });
+    opened.push(fast);
+    const tables = blockTablesOf(fast, grid)!;
+    const full = modeShells(grid);
+    const [n0, n1, n2] = grid.shape;
+    const half = n2 / 2;
+    for (let r = 0; r < n0 * n1; r++) for (let c = 0; c < n2; c++) expect(tables.bins[r * (half + 1) + (c <= half ? c : n2 - c)]).toBe(full.bins[r * n2 + c]);
+    expect(tables.ksum).toStrictEqual(full.ksum);
+    expect(tables.modes).toStrictEqual(full.modes);
+  });
+
+  it("a plane wave ψ = √ρ̄ e^{ik·x} measured there has no quantum part and K = ½ M k²/a² (textbook)", () => {
+    const grid = new Grid([16, 16, 16], [1, 1, 1]);
+    const a = 0.8;
+    const k = [2 * Math.PI * 2, 2 * Math.PI * -1, 2 * Math.PI * 3];
+    const fast = new PooledTransforms(grid, 3, { threads: 2, backend: "wasm", tables: blockTablesLength(grid) });
+    opened.push(fast);
+    const on = fast.work(2);
+    for (let i = 0; i < 16; i++)
+      for (let j = 0; j < 16; j++)
+        for (let l = 0; l < 16; l++) {
+          const phase = (k[0]! * i + k[1]! * j + k[2]! * l) / 16;
+          const p = 2 * ((i * 16 + j) * 16 + l);
+          on[p] = Math.sqrt(3) * Math.cos(phase);
+          on[p + 1] = Math.sqrt(3) * Math.sin(phase);
+        }
+    expect(blockTablesOf(fast, grid, on)).toBeDefined();
+    const s = energyAndKineticSplit(grid, on, a, fast).split;
+    const kinetic = (0.5 * 3 * (k[0]! ** 2 + k[1]! ** 2 + k[2]! ** 2)) / (a * a);
+    expect(Math.abs(s.kinetic / kinetic - 1)).toBeLessThan(1e-12);
+    expect(Math.abs(s.quantum) / kinetic).toBeLessThan(1e-12);
+    expect(Math.abs(s.incompressible / kinetic - 1)).toBeLessThan(1e-12);
+  });
+});
+
+describe("the local maxima in WebAssembly", () => {
+  it("found a few rows at a time into a small room are every cell no neighbour exceeds (checked cell by cell here), in storage order", () => {
+    const grid = new Grid([8, 16, 32], [1, 1, 1]);
+    const fast = new PooledTransforms(grid, 3, { threads: 1, backend: "wasm", tables: blockTablesLength(grid) });
+    opened.push(fast);
+    const tables = blockTablesOf(fast, grid)!;
+    const psi = gaussianComplexField(grid, (k2) => Math.exp(-k2 / 100), 11);
+    const rho = fast.work(1).subarray(0, grid.size);
+    for (let i = 0; i < grid.size; i++) rho[i] = Math.round(4 * (psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2)) / 4;
+    const [n0, n1, n2] = grid.shape;
+    const expected: number[] = [];
+    for (let a = 0; a < n0; a++)
+      for (let b = 0; b < n1; b++)
+        for (let c = 0; c < n2; c++) {
+          const v = rho[(a * n1 + b) * n2 + c]!;
+          const at = (x: number, y: number, z: number) => rho[(((x + n0) % n0) * n1 + ((y + n1) % n1)) * n2 + ((z + n2) % n2)]!;
+          if ([at(a + 1, b, c), at(a - 1, b, c), at(a, b + 1, c), at(a, b - 1, c), at(a, b, c + 1), at(a, b, c - 1)].every((u) => u <= v)) expected.push((a * n1 + b) * n2 + c);
+        }
+    // rounded densities: ties between neighbours, which both count
+    expect(expected.length).toBeGreaterThan(40);
+    for (const room of [tables.sums.subarray(0, 17), tables.sums.subarray(0, 40), tables.sums]) expect(Array.from(tables.kernels.peakCandidates(rho, grid.shape, room))).toEqual(expected);
   });
 });
