@@ -77,7 +77,13 @@ function cellWords(colours: Uint8Array): Uint32Array {
   return out;
 }
 
-/** A figure's PNG scanlines from resvg's premultiplied RGBA pixels `px`, band by band: each band's rows laid, in place, over white and inside the underlay's rectangle over its cells (every pixel ends opaque), then written behind filter byte 0. */
+/**
+ * A figure's PNG scanlines from resvg's premultiplied RGBA pixels `px`, band by band, each row written behind
+ * filter byte 0. With an underlay (resvg drew on a clear background), each band's rows are laid first, in place,
+ * over white and inside the underlay's rectangle over its cells, so that every pixel ends opaque; without one,
+ * resvg drew on its own white background, where every pixel is opaque already (source-over onto an opaque pixel
+ * stays opaque), and the rows are copied as they are.
+ */
 export function figureScanlines(px: Uint8Array, width: number, under?: Underlay): ScanlineWriter {
   if (!LITTLE_ENDIAN || px.byteOffset % 4 !== 0) throw new Error("figure pixels must be 32-bit aligned words on a little-endian machine");
   const p = new Uint32Array(px.buffer, px.byteOffset, px.length >> 2);
@@ -85,7 +91,7 @@ export function figureScanlines(px: Uint8Array, width: number, under?: Underlay)
   const line = 4 * width;
   return (out, y0, rows) => {
     for (let y = y0; y < y0 + rows; y++) {
-      layOverRow(p, width, y, under, cells);
+      if (under) layOverRow(p, width, y, under, cells);
       const o = (line + 1) * (y - y0);
       out[o] = 0;
       out.set(px.subarray(line * y, line * (y + 1)), o + 1);
@@ -94,9 +100,9 @@ export function figureScanlines(px: Uint8Array, width: number, under?: Underlay)
 }
 
 /** Row y of the pixel words over white and inside the underlay's rectangle over its cells (`cells`: each cell's pixel word). */
-function layOverRow(p: Uint32Array, width: number, y: number, under: Underlay | undefined, cells: Uint32Array): void {
-  const r = under ? y - under.y0 : -1;
-  if (!under || r < 0 || r >= under.rows.length) return rowOverWhite(p, width * y, width * (y + 1));
+function layOverRow(p: Uint32Array, width: number, y: number, under: Underlay, cells: Uint32Array): void {
+  const r = y - under.y0;
+  if (r < 0 || r >= under.rows.length) return rowOverWhite(p, width * y, width * (y + 1));
   const x0 = Math.max(0, Math.min(width, under.x0));
   const x1 = Math.max(x0, Math.min(width, under.x0 + under.columns.length));
   rowOverWhite(p, width * y, width * y + x0);
