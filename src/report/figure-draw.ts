@@ -20,6 +20,7 @@ import type * as vega from "vega";
 import type { TopLevelSpec } from "vega-lite";
 import { bandedPng, blockPng, FIGURE_LEVEL } from "./png.js";
 import { rasterOptions } from "./figure-font.js";
+import { facesFor } from "./figure-faces.js";
 import { figureScanlines, underlay } from "./figure-pixels.js";
 import { chartSvg, type ChartSpec } from "./chart/chart.js";
 
@@ -73,12 +74,13 @@ async function figureSvg(source: FigureSource): Promise<{ svg: string; origin: [
   return vegaSvg("spec" in source ? source.spec : vegaOfLite(source.vegaLite));
 }
 
-/** Draw a figure with the figure font's `fonts` (null: the system's): rasterise with resvg, for a plane picture put its cells under the frame and fill the SVG's raster in, and encode the PNG here (at a fast zlib level). */
+/** Draw a figure with the figure font's `fonts` (null: the system's; resvg is given copies with the outlines the figures use, figure-faces.ts): rasterise with resvg, for a plane picture put its cells under the frame and fill the SVG's raster in, and encode the PNG here (at a fast zlib level). */
 export async function drawFigure(Resvg: ResvgClass, job: FigureJob, fonts: string[] | null): Promise<DrawnFigure> {
   const { svg, origin } = await figureSvg(job);
   const raster = job.raster;
-  const options = rasterOptions(job.scale, fonts);
-  const image = raster ? new Resvg(frameOnly(svg), { ...options, background: undefined }).render() : new Resvg(svg, options).render();
+  const drawn = raster ? frameOnly(svg) : svg;
+  const options = rasterOptions(job.scale, fonts && facesFor(fonts, drawn));
+  const image = new Resvg(drawn, raster ? { ...options, background: undefined } : options).render();
   const { width, height } = image;
   // a copy of resvg's pixels at each read: changed in place here
   const px = image.pixels;
