@@ -1,15 +1,15 @@
 /**
  * A figure's pixels into a PNG's scanlines: resvg's premultiplied RGBA
- * pixels laid, in place, over white, and inside a plane picture's rectangle
- * over its cells (source-over: colour + (1 − alpha)·what is under it),
- * every pixel ending opaque; then the rows copied behind their filter bytes
- * (0, none: at a fast zlib level, filtering a figure's large flat areas
- * gains little). Both are done a band of rows at a time, as the PNG
- * encoder asks for its next band (png.ts), so the band is still in the
- * cache when it is copied and a figure's whole scanlines are never held.
- * Pixels are read and written whole, as 32-bit words (R in the lowest
- * byte: the platform's byte order, checked once), where most of them are
- * copied or left as they are.
+ * pixels, drawn over white (opaque) everywhere but inside a plane
+ * picture's rectangle, laid there, in place, over its cells (source-over:
+ * colour + (1 − alpha)·what is under it), every pixel ending opaque; then
+ * the rows copied behind their filter bytes (0, none: at a fast zlib
+ * level, filtering a figure's large flat areas gains little). Both are
+ * done a band of rows at a time, as the PNG encoder asks for its next band
+ * (png.ts), so the band is still in the cache when it is copied and a
+ * figure's whole scanlines are never held. Pixels are read and written
+ * whole, as 32-bit words (R in the lowest byte: the platform's byte order,
+ * checked once), where most of them are copied or left as they are.
  */
 import type { ScanlineWriter } from "./png.js";
 
@@ -44,7 +44,6 @@ export function underlay(r: { readonly width: number; readonly height: number; r
 const LITTLE_ENDIAN = new Uint8Array(Uint32Array.of(1).buffer)[0] === 1;
 /** Alpha 255 in a pixel word, as a signed 32-bit integer (words are read and written signed: small integers to V8, never boxed numbers, even before it optimises a loop). */
 const OPAQUE = 0xff000000 | 0;
-const WHITE = -1;
 
 /** A colour as a pixel word: R, G, B, A = 255 from the lowest byte up. */
 const word = (r: number, g: number, b: number) => OPAQUE | (b << 16) | (g << 8) | r;
@@ -53,19 +52,6 @@ const word = (r: number, g: number, b: number) => OPAQUE | (b << 16) | (g << 8) 
 function over(v: number, r: number, g: number, b: number): number {
   const k = 255 - (v >>> 24);
   return word((v & 255) + Math.round((r * k) / 255), ((v >>> 8) & 255) + Math.round((g * k) / 255), ((v >>> 16) & 255) + Math.round((b * k) / 255));
-}
-
-/** Pixels from … to − 1 of a row of words over white: c + 255 − a, which is c + round(255·(255 − a)/255) exactly (a clear pixel, all zeros, becomes white). */
-function rowOverWhite(p: Int32Array, from: number, to: number): void {
-  for (let i = from; i < to; i++) {
-    const v = p[i]!;
-    if (v >> 24 === -1) continue;
-    if (v === 0) p[i] = WHITE;
-    else {
-      const k = 255 - (v >>> 24);
-      p[i] = word((v & 255) + k, ((v >>> 8) & 255) + k, ((v >>> 16) & 255) + k);
-    }
-  }
 }
 
 /** The underlay's pixel columns of one row (starting at word `i`, the rectangle's left edge), over the cells of the row starting at cell `cellRow`; `cells` holds each cell's pixel word. */
@@ -87,10 +73,9 @@ function cellWords(colours: Uint8Array): Int32Array {
 
 /**
  * A figure's PNG scanlines from resvg's premultiplied RGBA pixels `px`, band by band, each row written behind
- * filter byte 0. With an underlay (resvg drew on a clear background), each band's rows are laid first, in place,
- * over white and inside the underlay's rectangle over its cells, so that every pixel ends opaque; without one,
- * resvg drew on its own white background, where every pixel is opaque already (source-over onto an opaque pixel
- * stays opaque), and the rows are copied as they are.
+ * filter byte 0. resvg drew on a white background, so every pixel is opaque already (source-over onto an opaque
+ * pixel stays opaque), except, with an underlay, inside its rectangle, which resvg's background left clear: there
+ * each band's pixels are laid, in place, over their cells first, so that every pixel ends opaque.
  */
 export function figureScanlines(px: Uint8Array, width: number, under?: Underlay): ScanlineWriter {
   if (!LITTLE_ENDIAN || px.byteOffset % 4 !== 0) throw new Error("figure pixels must be 32-bit aligned words on a little-endian machine");
@@ -101,7 +86,7 @@ export function figureScanlines(px: Uint8Array, width: number, under?: Underlay)
   const line = 4 * width;
   return (out, y0, rows) => {
     for (let y = y0; y < y0 + rows; y++) {
-      if (under) layOverRow(p, width, y, under, cells);
+      if (under) layOverCells(p, width, y, under, cells);
       const o = (line + 1) * (y - y0);
       out[o] = 0;
       out.set(bytes.subarray(line * y, line * (y + 1)), o + 1);
@@ -109,13 +94,11 @@ export function figureScanlines(px: Uint8Array, width: number, under?: Underlay)
   };
 }
 
-/** Row y of the pixel words over white and inside the underlay's rectangle over its cells (`cells`: each cell's pixel word). */
-function layOverRow(p: Int32Array, width: number, y: number, under: Underlay, cells: Int32Array): void {
+/** Row y's pixel words inside the underlay's rectangle over its cells (`cells`: each cell's pixel word). */
+function layOverCells(p: Int32Array, width: number, y: number, under: Underlay, cells: Int32Array): void {
   const r = y - under.y0;
-  if (r < 0 || r >= under.rows.length) return rowOverWhite(p, width * y, width * (y + 1));
+  if (r < 0 || r >= under.rows.length) return;
   const x0 = Math.max(0, Math.min(width, under.x0));
   const x1 = Math.max(x0, Math.min(width, under.x0 + under.columns.length));
-  rowOverWhite(p, width * y, width * y + x0);
   rowOverCells(p, width * y + under.x0, under.columns, x0 - under.x0, x1 - under.x0, cells, under.rows[r]!);
-  rowOverWhite(p, width * y + x1, width * (y + 1));
 }

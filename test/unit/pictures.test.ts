@@ -361,5 +361,14 @@ describe("PNG files", () => {
       }
     expect(worst).toBeLessThanOrEqual(1);
     expect(compared).toBeGreaterThan(0.75 * ours.width * ours.height);
+    // outside the raster's rectangle (90 × 80 units from the plot's origin) resvg drew on white in both: the same pixels
+    let outside = 0;
+    for (let y = 0; y < ours.height; y++)
+      for (let x = 0; x < ours.width; x++) {
+        if (x >= x0! && x < x0! + 90 * PNG_SCALE && y >= y0! && y < y0! + 80 * PNG_SCALE) continue;
+        outside++;
+        for (let c = 0, i = 4 * (y * ours.width + x); c < 4; c++) if (ours.data[i + c] !== drawn[i + c]) throw new Error(`pixel (${x}, ${y}) outside the raster differs`);
+      }
+    expect(outside).toBeGreaterThan(0.3 * ours.width * ours.height);
   });
 });
