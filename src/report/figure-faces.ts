@@ -11,10 +11,10 @@
  * that cannot be done (no /proc, no temporary folder, a face that is not
  * plain TrueType), resvg is given the whole faces.
  */
-import { randomBytes } from "node:crypto";
 import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
+import { threadId } from "node:worker_threads";
 import { outlineSubset } from "./font-outlines.js";
 
 /** The characters the copies always keep: printable ASCII, Latin-1 and Latin Extended-A, combining marks, Greek, punctuation, super- and subscripts, letterlike symbols, arrows, mathematical operators, angle brackets. */
@@ -50,7 +50,8 @@ export function newCharacters(svg: string, covered: ReadonlySet<number>): Set<nu
 
 /** A file of `bytes`, removed from its folder and held open: its name under /proc/self/fd and its descriptor. */
 function heldFile(bytes: Uint8Array): { name: string; fd: number } {
-  const file = path.join(os.tmpdir(), `psibox-face-${process.pid}-${randomBytes(6).toString("hex")}.ttf`);
+  // a name of its own (created exclusively: a name taken already fails, and the whole faces are used)
+  const file = path.join(os.tmpdir(), `psibox-face-${process.pid}-${threadId}-${Math.floor(Math.random() * 2 ** 48).toString(36)}.ttf`);
   const fd = fs.openSync(file, "wx+", 0o600);
   try {
     fs.unlinkSync(file);
