@@ -1,9 +1,9 @@
 /**
  * PNG encoding of 8-bit RGB or RGBA pixels (W3C PNG specification, 2nd
  * edition), deflated by zlib where it is called: the rasters that figures
- * embed (a density plane enlarged to whole pixel blocks, a colour bar),
- * their scanlines filtered by "Up" (each byte minus the one above it, so
- * the repeated rows of an enlarged raster become runs of zeros), and the
+ * embed (a colour bar, its scanlines filtered by "Up": each byte minus the
+ * one above it; a density plane enlarged to whole pixel blocks, filtered so
+ * that its repeated bytes become runs of zeros: `blockPng`), and the
  * figures themselves band by band (`bandedPng`): the caller writes a band
  * of scanlines at a time into one of two buffers of about 256 kB, and
  * zlib's stream deflates it on libuv's thread pool while the next band is
@@ -98,11 +98,17 @@ export type ScanlineWriter = (out: Uint8Array, y: number, rows: number) => void;
 /** Bytes of scanlines in a band (whole rows; at least one row). */
 const BAND_BYTES = 1 << 18;
 
-/** A PNG of `width` × `height` 8-bit pixels (RGB with 3 channels, RGBA with 4), its scanlines written band by band by `write` and deflated at zlib `level` as they come. */
-export async function bandedPng(width: number, height: number, channels: 3 | 4, level: number, write: ScanlineWriter): Promise<Buffer> {
+/** How a PNG's scanlines are deflated: zlib's level, or its options (a level and a strategy). */
+export type Deflation = number | zlib.ZlibOptions;
+
+/** The embedded rasters' deflation: zlib's run-length strategy (matches at a distance of one byte only). */
+const BLOCK_DEFLATE: zlib.ZlibOptions = { level: 6, strategy: zlib.constants.Z_RLE };
+
+/** A PNG of `width` × `height` 8-bit pixels (RGB with 3 channels, RGBA with 4), its scanlines written band by band by `write` and deflated (at zlib `level`, or with zlib's options) as they come. */
+export async function bandedPng(width: number, height: number, channels: 3 | 4, level: Deflation, write: ScanlineWriter): Promise<Buffer> {
   const line = channels * width + 1;
   const rows = Math.max(1, Math.floor(BAND_BYTES / line));
-  const deflate = zlib.createDeflate({ level });
+  const deflate = zlib.createDeflate(typeof level === "number" ? { level } : level);
   const parts: Buffer[] = [];
   deflate.on("data", (b: Buffer) => parts.push(b));
   const done = once(deflate, "end");
@@ -123,24 +129,28 @@ export async function bandedPng(width: number, height: number, channels: 3 | 4, 
 }
 
 /**
- * The cells as a PNG of zoom × zoom pixel blocks. Its scanlines are Up-filtered as `encodePng` filters
- * the enlarged pixels (the same file, byte for byte), written here band by band without enlarging first:
- * a block's first row holds its cells minus the cells above, its other rows are zeros.
+ * The cells as a PNG of zoom × zoom pixel blocks, written band by band without enlarging first. A block's
+ * first row is filtered by "Sub" (each byte minus the one a pixel to its left: the cell's colour minus its
+ * left neighbour's at the block's first pixel, zeros across the rest of the block), its other rows by "Up"
+ * (all zeros), so that nearly every byte is a zero in long runs, which zlib's run-length strategy deflates in
+ * about a third of the time its default level took for the Up-filtered rows, to files about a sixth larger.
  */
 export function blockPng(colours: Uint8Array, nx: number, ny: number, zoom: number): Promise<Buffer> {
   const line = 3 * nx * zoom;
-  return bandedPng(nx * zoom, ny * zoom, 3, zlib.constants.Z_DEFAULT_COMPRESSION, (out, y0, rows) => {
+  return bandedPng(nx * zoom, ny * zoom, 3, BLOCK_DEFLATE, (out, y0, rows) => {
     out.fill(0);
     for (let row = y0; row < y0 + rows; row++) {
       const o = (line + 1) * (row - y0);
-      out[o] = 2;
-      if (row % zoom !== 0) continue;
-      const y = row / zoom;
+      if (row % zoom !== 0) {
+        out[o] = 2;
+        continue;
+      }
+      out[o] = 1;
+      const first = 3 * nx * (row / zoom);
       for (let x = 0; x < nx; x++)
         for (let c = 0; c < 3; c++) {
-          const i = 3 * (y * nx + x) + c;
-          const up = (colours[i]! - (y > 0 ? colours[i - 3 * nx]! : 0)) & 255;
-          for (let p = o + 1 + 3 * x * zoom + c, end = p + 3 * zoom; p < end; p += 3) out[p] = up;
+          const i = first + 3 * x + c;
+          out[o + 1 + 3 * x * zoom + c] = (colours[i]! - (x > 0 ? colours[i - 3]! : 0)) & 255;
         }
     }
   });

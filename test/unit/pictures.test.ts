@@ -301,8 +301,14 @@ describe("PNG files", () => {
     const { Resvg } = await import("@resvg/resvg-js");
     const { FONT, PNG_SCALE, figureFontFiles, rasterise } = await import("../../src/report/render.js");
     const { PNG } = await import("pngjs");
-    const svg = `<svg xmlns="http://www.w3.org/2000/svg" width="120" height="40"><text x="4" y="22" font-family="${FONT}" font-size="10">log₁₀ Σ</text><circle cx="100" cy="20" r="12" fill="#3b528b"/></svg>`;
+    // translucent marks over each other and over text: the worker copies resvg's pixels over its white background as
+    // they are, which source-over onto opaque pixels leaves opaque (every alpha 255)
+    const svg =
+      `<svg xmlns="http://www.w3.org/2000/svg" width="120" height="40"><text x="4" y="22" font-family="${FONT}" font-size="10">log₁₀ Σ</text><circle cx="100" cy="20" r="12" fill="#3b528b"/>` +
+      `<g fill="#e45756" fill-opacity="0.7"><circle cx="20" cy="18" r="7.3"/><circle cx="25.5" cy="21.2" r="6.1"/></g><path d="M2,30.3L117.6,7.1" stroke="#f58518" stroke-width="1.7" stroke-opacity="0.4" stroke-dasharray="3,2"/></svg>`;
     const here = new Resvg(svg, { fitTo: { mode: "zoom", value: PNG_SCALE }, font: { loadSystemFonts: false, fontFiles: figureFontFiles()!, defaultFontFamily: FONT, sansSerifFamily: FONT }, background: "white" }).render();
+    const alphas = new Set(Array.from({ length: here.pixels.length / 4 }, (_, i) => here.pixels[4 * i + 3]));
+    expect([...alphas]).toEqual([255]);
     const [a, b] = await Promise.all([rasterise(svg), rasterise(svg)]);
     for (const f of [a, b]) expect(Buffer.compare(Buffer.from(PNG.sync.read(f.png).data), Buffer.from(here.pixels))).toBe(0);
   });
@@ -355,5 +361,14 @@ describe("PNG files", () => {
       }
     expect(worst).toBeLessThanOrEqual(1);
     expect(compared).toBeGreaterThan(0.75 * ours.width * ours.height);
+    // outside the raster's rectangle (90 × 80 units from the plot's origin) resvg drew on white in both: the same pixels
+    let outside = 0;
+    for (let y = 0; y < ours.height; y++)
+      for (let x = 0; x < ours.width; x++) {
+        if (x >= x0! && x < x0! + 90 * PNG_SCALE && y >= y0! && y < y0! + 80 * PNG_SCALE) continue;
+        outside++;
+        for (let c = 0, i = 4 * (y * ours.width + x); c < 4; c++) if (ours.data[i + c] !== drawn[i + c]) throw new Error(`pixel (${x}, ${y}) outside the raster differs`);
+      }
+    expect(outside).toBeGreaterThan(0.3 * ours.width * ours.height);
   });
 });
