@@ -60,9 +60,9 @@ export class AnalysisHelper {
     }) as Promise<Answer>;
   }
 
-  /** The vortex census of a job on the helper thread. */
-  async vortices(job: VortexJob): Promise<VortexTable> {
-    const a = await this.ask({ op: "vortices", job });
+  /** The vortex census of a job on the helper thread (`last`: the thread ends after it). */
+  async vortices(job: VortexJob, last = false): Promise<VortexTable> {
+    const a = await this.ask({ op: "vortices", job, last });
     if (a.error !== undefined || !a.table) throw new Error(`the vortex scan failed: ${a.error ?? "no answer"}`);
     return a.table;
   }

@@ -28,7 +28,7 @@ export class AnalysisTransforms {
   private current: PooledTransforms | undefined;
   private helperThread: AnalysisHelper | undefined;
 
-  /** @param single one snapshot only: the helper thread ends after its census (its memory is given back before the pictures are drawn) */
+  /** @param single one snapshot only: the helper thread ends as soon as it has answered its census (its memory is given back while the numbers are computed) */
   constructor(private readonly single = false) {}
 
   /** The transforms of `grid`'s shape (made when the shape is new). */
@@ -60,7 +60,8 @@ export class AnalysisTransforms {
     const job = vortexJobOf(grid, psi, kpc);
     const helper = this.helper(grid);
     if (!job || !helper) return undefined;
-    const census = helper.vortices(job);
+    // one snapshot's census is the helper's last: the thread ends as soon as it has answered
+    const census = helper.vortices(job, this.single);
     return this.single ? census.finally(() => this.closeHelper()) : census;
   }
 

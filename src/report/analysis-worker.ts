@@ -5,8 +5,8 @@
 import { parentPort } from "node:worker_threads";
 import { vortexTableOf, type VortexJob } from "./vortex-table.js";
 
-/** A task: a census. */
-export type HelperTask = { readonly op: "vortices"; readonly job: VortexJob };
+/** A task: a census; `last`: the thread ends once it has answered. */
+export type HelperTask = { readonly op: "vortices"; readonly job: VortexJob; readonly last?: boolean };
 /** A task as sent, numbered for its answer. */
 export type HelperRequest = HelperTask & { readonly id: number };
 
@@ -22,5 +22,10 @@ function answer(m: HelperRequest): void {
 // one request at a time, in order
 let queue = Promise.resolve();
 parentPort!.on("message", (m: HelperRequest) => {
-  queue = queue.then(() => answer(m));
+  queue = queue.then(() => {
+    answer(m);
+    // the last task: closing the port ends this thread now (the answer is delivered first), so that its heap is given
+    // back while the main thread is still busy, not when it next turns to its events and stops the thread
+    if (m.last) parentPort!.close();
+  });
 });

@@ -85,9 +85,16 @@ async function measure(file: string, snap: Snapshot, field: LoadedField, outDir:
   // the granules from δ's spectrum while P(k) leaves it in work grid 0 (with ψ's moments and ρ̄ from the split)
   let granules: GranuleStats | undefined;
   const inputs = both ? { moments: both.moments, meanDensity: both.meanDensity } : {};
-  const contrast = chosen.has("granules") ? (spectrum: Float64Array) => (granules = granuleStats(field.grid, field.psi, field.scaleFactor, fft, undefined, undefined, { contrastSpectrum: spectrum, ...inputs })) : undefined;
+  // the granules' transforms are the last passes on the pool's threads: stopped right after them (the rest of the
+  // tables runs on this thread), their heaps are given back while the densest points and the halos are measured
+  const contrast = chosen.has("granules")
+    ? (spectrum: Float64Array) => {
+        granules = granuleStats(field.grid, field.psi, field.scaleFactor, fft, undefined, undefined, { contrastSpectrum: spectrum, ...inputs });
+        transforms.poolDone();
+      }
+    : undefined;
   const { summary, power } = snapshotTables(file, snap, field, outDir, fft, both, contrast);
-  // the halos, the census and the rest run on this thread and the helper's: the pool's thread is given back
+  // the halos, the census and the rest run on this thread and the helper's: the pool's thread is given back (now, without the granules)
   transforms.poolDone();
   const powerFigure = withPictures ? later(powerFigureOf(file, snap, field, power)) : undefined;
   // the halos' scratch: the first half of work grid 1, as the densest points' (snapshot-tables.ts)
