@@ -29,7 +29,7 @@ export class AnalysisTransforms {
   private helperThread: AnalysisHelper | undefined;
 
   /** @param single one snapshot only: the helper thread ends as soon as it has answered its census (its memory is given back while the numbers are computed) */
-  constructor(private readonly single = false) {}
+  constructor(readonly single = false) {}
 
   /** The transforms of `grid`'s shape (made when the shape is new). */
   of(grid: Grid): PooledTransforms {

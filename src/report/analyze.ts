@@ -68,11 +68,18 @@ interface Measured {
   readonly summary: Record<string, unknown>;
   readonly diagnostics: ReturnType<typeof fieldDiagnostics>;
   readonly powerFigure?: Promise<Figure>;
-  /** The energy split's and the vortices' figures, each started as soon as its numbers are known. */
-  readonly splitFigures?: Record<string, Promise<Figure>>;
+  /** The diagnostics' figures started already: the vortices' (as soon as the census is known) and, in a run, the energy split's. */
+  readonly started?: Record<string, Promise<Figure>>;
 }
 
-/** The tables and the field diagnostics of a snapshot; the energy split's and P(k)'s figures are handed to the figure worker as soon as they are known, and drawn while the rest is computed. */
+/**
+ * The tables and the field diagnostics of a snapshot; P(k)'s and the vortices' figures are handed to the figure
+ * worker as soon as they are known, and drawn while the rest is computed. The energy split's figures are too in
+ * a run (its grids are kept anyway); one snapshot's are drawn after its grids are given back, with the other
+ * diagnostics' figures: the energy spectra's is the widest figure (1890×975 pixels at 128³), and the memory
+ * resvg's allocator keeps after drawing it and the velocity power stayed on top of the grids to the end of the
+ * numbers (about 11 MB of the analysis's peak at 128³, at the same wall time).
+ */
 async function measure(file: string, snap: Snapshot, field: LoadedField, outDir: string, request: DiagnosticRequest, chosen: Set<FieldDiagnostic>, withPictures: boolean, transforms: AnalysisTransforms, tracks: RunTracks | undefined): Promise<Measured> {
   const fft = transforms.of(field.grid);
   // the vortex scan reads ψ on a thread of its own while this one computes the rest (on a grid the cores pay for)
@@ -80,7 +87,7 @@ async function measure(file: string, snap: Snapshot, field: LoadedField, outDir:
   if (vortexJob) later(vortexJob);
   // the energy split's transforms give the tables' kinetic split too
   const both = chosen.has("energy-split") ? energyAndKineticSplit(field.grid, field.psi, field.scaleFactor, fft) : undefined;
-  const split = withPictures && both ? splitFigures(field, both.split, physicalScales(field), timeCaption(snap)) : undefined;
+  const split = withPictures && both && !transforms.single ? splitFigures(field, both.split, physicalScales(field), timeCaption(snap)) : undefined;
   if (split) Object.values(split).forEach(later);
   // the granules from δ's spectrum while P(k) leaves it in work grid 0 (with ψ's moments and ρ̄ from the split)
   let granules: GranuleStats | undefined;
@@ -105,8 +112,7 @@ async function measure(file: string, snap: Snapshot, field: LoadedField, outDir:
   // its picture is drawn while the granules and the Husimi distribution are measured
   const vortexPicture = withPictures && vortices ? later(vortexFigure(field, vortices.report, physicalScales(field), timeCaption(snap))) : undefined;
   const diagnostics = fieldDiagnostics(field, chosen, outDir, fft, request.husimiWindowKpc, request.husimiPointsKpc, both?.split, granules, vortices);
-  const started = { ...split, ...(vortexPicture ? { vortices: vortexPicture } : {}) };
-  return { summary, diagnostics, ...(powerFigure ? { powerFigure } : {}), splitFigures: started };
+  return { summary, diagnostics, ...(powerFigure ? { powerFigure } : {}), started: { ...split, ...(vortexPicture ? { vortices: vortexPicture } : {}) } };
 }
 
 /** The P(k) figure, with the linear prediction of a cosmological run. */
@@ -152,7 +158,8 @@ interface SnapshotNumbers {
   readonly figures?: {
     readonly density: ReturnType<typeof snapshotPictures>;
     readonly power: Promise<Figure>;
-    readonly diagnostic: ReturnType<typeof diagnosticFigures>;
+    /** The diagnostics' figures not started yet (the granules', the Husimi distribution's, one snapshot's energy split's), requested by calling it. */
+    readonly diagnostic: () => ReturnType<typeof diagnosticFigures>;
   };
 }
 
@@ -164,8 +171,10 @@ async function analyzeWith(file: string, outDir: string, withPictures: boolean, 
   const figures: Record<string, Figure> = {};
   const planes: SnapshotAnalysis["planes"] = {};
   if (drawn) {
-    // drawn together: they share the figure workers
-    const [pics, power, diagnostic] = await Promise.all([drawn.density, drawn.power, drawn.diagnostic]);
+    // drawn together: they share the figure workers. The diagnostics' last figures are the largest (the granules',
+    // the Husimi points' and the energy spectra's are 7-13 MB of pixels each at 128³, and resvg holds a copy of
+    // them besides): sent to the worker only now, their pixels no longer come on top of one snapshot's grids
+    const [pics, power, diagnostic] = await Promise.all([drawn.density, drawn.power, drawn.diagnostic()]);
     figures["slice"] = pics.slice;
     if (pics.projection) figures["projection"] = pics.projection;
     if (pics.slicePlane) planes.slice = pics.slicePlane;
@@ -191,14 +200,16 @@ async function snapshotNumbers(file: string, outDir: string, withPictures: boole
   const { kpcPerCode, densityUnit } = units(field);
   // the density pictures need ψ alone: drawn while the numbers are computed
   const density = withPictures ? later(snapshotPictures(snap, field, kpcPerCode, densityUnit, pictures)) : undefined;
-  const { summary, diagnostics, powerFigure, splitFigures: split } = await measure(file, snap, field, outDir, request, chosen, withPictures, transforms, tracks);
+  const { summary, diagnostics, powerFigure, started } = await measure(file, snap, field, outDir, request, chosen, withPictures, transforms, tracks);
   Object.assign(summary, diagnostics.summary);
   writeFileAtomic(path.join(outDir, "summary.json"), JSON.stringify(summary, null, 2) + "\n");
   const caption = timeCaption(snap);
   const numbers = { summary, time: snap.meta.time, caption };
   if (!density || !powerFigure) return numbers;
-  // the diagnostics' figures need the grid, not ψ (a field without it, so that their drawing holds no view of it)
-  const diagnostic = later(diagnosticFigures({ ...field, psi: new Float64Array(0) }, diagnostics, physicalScales(field), caption, split));
+  // the diagnostics' figures need the grid, not ψ (a field without it, made now: the closure holds no view of ψ)
+  const bare = { ...field, psi: new Float64Array(0) };
+  const scales = physicalScales(field);
+  const diagnostic = () => diagnosticFigures(bare, diagnostics, scales, caption, started);
   return { ...numbers, figures: { density, power: powerFigure, diagnostic } };
 }
 
