@@ -44,7 +44,18 @@ function h5pyRead(python, file, fresh, reused) {
     `fresh = timed(lambda f: (f['psi_re'][...], f['psi_im'][...]), ${fresh})`,
     "with h5py.File(sys.argv[1], 'r') as f: re, im = f['psi_re'][...], f['psi_im'][...]",
     `reused = timed(lambda f: (f['psi_re'].read_direct(re), f['psi_im'].read_direct(im)), ${reused})`,
-    "print(json.dumps({'fresh': fresh, 'reused': reused}))",
+    // the array psibox's read gives: one complex128 ψ (read_direct takes C-contiguous arrays only, so the parts
+    // go through arrays as stored)
+    "def whole(f):",
+    "    psi = np.empty(f['psi_re'].shape, np.complex128)",
+    "    psi.real, psi.imag = f['psi_re'][...], f['psi_im'][...]",
+    "psi = np.empty(re.shape, np.complex128)",
+    "def again(f):",
+    "    f['psi_re'].read_direct(re); f['psi_im'].read_direct(im)",
+    "    psi.real, psi.imag = re, im",
+    `freshSame = timed(whole, ${fresh})`,
+    `reusedSame = timed(again, ${reused})`,
+    "print(json.dumps({'fresh': fresh, 'reused': reused, 'freshSame': freshSame, 'reusedSame': reusedSame}))",
   ].join("\n");
   const r = spawnSync(python, ["-c", script, file], { encoding: "utf8" });
   return r.status === 0 ? JSON.parse(r.stdout.trim()) : undefined;
@@ -86,6 +97,8 @@ export async function printIoRows(n = 128) {
     const them = theirs === undefined ? "" : `; h5py ${ms(med(theirs.wall))} ms, CPU ${ms(med(theirs.cpu))} ms: psibox takes ${(med(ours.wall) / med(theirs.wall)).toFixed(2)}× h5py's time (CPU ${(med(ours.cpu) / med(theirs.cpu)).toFixed(2)}×)`;
     return `  read ${what}: ${ms(med(ours.wall))} ms (${(mb / (med(ours.wall) / 1000)).toFixed(0)} MB/s of field), CPU ${ms(med(ours.cpu))} ms${them}`;
   };
+  const same = (ours, theirs) =>
+    `    h5py to psibox's result, one complex128 ψ (psi.real, psi.imag = re, im after the read): ${ms(med(theirs.wall))} ms, CPU ${ms(med(theirs.cpu))} ms: psibox takes ${(med(ours.wall) / med(theirs.wall)).toFixed(2)}×`;
   try {
     for (const precision of ["float64", "float32"]) {
       const file = path.join(dir, `s-${precision}.h5`);
@@ -94,6 +107,8 @@ export async function printIoRows(n = 128) {
       const reused = { wall: [], cpu: [] };
       // h5py's reads into reused memory in turn with psibox's (the load of a shared machine changes within a run)
       const theirs = python === undefined ? undefined : { wall: [], cpu: [] };
+      // and h5py's reads to the array psibox's read gives (one complex128 ψ), in the same turns
+      const theirsSame = python === undefined ? undefined : { wall: [], cpu: [] };
       let into;
       for (let r = 0; r < FRESH; r++) {
         write.push(timed(() => writeSnapshot(file, { meta, psi }, precision)).wall);
@@ -108,12 +123,16 @@ export async function printIoRows(n = 128) {
         const their = theirs && h5pyRead(python, file, 0, REUSED / FRESH);
         theirs?.wall.push(...(their?.reused.wall ?? []));
         theirs?.cpu.push(...(their?.reused.cpu ?? []));
+        theirsSame?.wall.push(...(their?.reusedSame.wall ?? []));
+        theirsSame?.cpu.push(...(their?.reusedSame.cpu ?? []));
       }
       const size = fs.statSync(file).size / 1e6;
       const h5py = python === undefined ? undefined : h5pyRead(python, file, FRESH, 0);
       console.log(`${n}³ ${precision}: ${size.toFixed(0)} MB file; write ${(mb / (med(write) / 1000)).toFixed(0)} MB/s of field (with fsync)`);
       console.log(row("into new memory", fresh, h5py?.fresh));
+      if (h5py) console.log(same(fresh, h5py.freshSame));
       console.log(row("into reused memory", reused, theirs?.wall.length ? theirs : undefined));
+      if (theirsSame?.wall.length) console.log(same(reused, theirsSame));
     }
   } finally {
     fs.rmSync(dir, { recursive: true, force: true });
