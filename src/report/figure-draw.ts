@@ -20,10 +20,11 @@ import type { ResvgRenderOptions } from "@resvg/resvg-js";
 import type * as vega from "vega";
 import type { TopLevelSpec } from "vega-lite";
 import { bandedPng, blockPng, FIGURE_LEVEL } from "./png.js";
-import { rasterOptions } from "./figure-font.js";
 import { facesFor } from "./figure-faces.js";
 import { figureScanlines, underlay, type Underlay } from "./figure-pixels.js";
 import { chartSvg, type ChartSpec } from "./chart/chart.js";
+import { setTextMeasure } from "./chart/text.js";
+import { figureTextMeasure, rasterOptions } from "./figure-font.js";
 
 /** The placeholder address of a plane picture's image (a data address that Vega keeps as it is). */
 export const RASTER_MARKER = "data:image/png;base64,cHNpYm94LXJhc3Rlcg==";
@@ -82,8 +83,10 @@ async function figureSvg(source: FigureSource): Promise<{ svg: string; origin: [
   return vegaSvg("spec" in source ? source.spec : vegaOfLite(source.vegaLite));
 }
 
-/** Draw a figure with the figure font's `fonts` (null: the system's; resvg is given copies with the outlines the figures use, figure-faces.ts): rasterise with resvg, for a plane picture put its cells under the frame and fill the SVG's raster in, and encode the PNG here (at a fast zlib level). */
+/** Draw a figure with the figure font's `fonts` (null: the system's; resvg is given copies with the outlines the figures use, figure-faces.ts; its text is laid out with their widths): rasterise with resvg, for a plane picture put its cells under the frame and fill the SVG's raster in, and encode the PNG here (at a fast zlib level). */
 export async function drawFigure(Resvg: ResvgClass, job: FigureJob, fonts: string[] | null): Promise<DrawnFigure> {
+  // text laid out as wide as these faces set it (chart writer and Vega alike)
+  setTextMeasure(figureTextMeasure(fonts));
   const { svg, origin } = await figureSvg(job);
   const raster = job.raster;
   const cells = raster && underlay(raster, origin, job.scale);

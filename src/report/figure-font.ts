@@ -10,6 +10,8 @@ import { execFile, execFileSync } from "node:child_process";
 import fs from "node:fs";
 import type { ResvgRenderOptions } from "@resvg/resvg-js";
 import { FONT } from "./figure-style.js";
+import { faceMetrics, type FaceMetrics } from "./font-metrics.js";
+import type { TextMeasure } from "./chart/text.js";
 
 let fontFiles: string[] | null | undefined;
 
@@ -65,4 +67,28 @@ export function findFigureFont(): Promise<string[] | null> {
 export function rasterOptions(scale: number, files: string[] | null): ResvgRenderOptions {
   const font = files ? { loadSystemFonts: false, fontFiles: files } : { loadSystemFonts: true };
   return { fitTo: { mode: "zoom", value: scale }, font: { ...font, defaultFontFamily: FONT, sansSerifFamily: FONT }, background: "white" };
+}
+
+const measures = new Map<string, TextMeasure | undefined>();
+
+/**
+ * How the faces in `files` (the figure font's, as resvg is given them) set a line of text: the bold face for bold
+ * text, the regular one for the rest (read once per thread); undefined where no face can be read, or where the
+ * files are unknown (resvg then picks among the system's fonts).
+ */
+export function figureTextMeasure(files: readonly string[] | null): TextMeasure | undefined {
+  if (!files || files.length === 0) return undefined;
+  const key = files.join("\n");
+  if (!measures.has(key)) {
+    let faces: FaceMetrics[] = [];
+    try {
+      faces = files.map((f) => faceMetrics(fs.readFileSync(f))).filter((f): f is FaceMetrics => f !== undefined);
+    } catch {
+      // an unreadable face: the estimate
+    }
+    const regular = faces.find((f) => !f.bold) ?? faces[0];
+    const bold = faces.find((f) => f.bold) ?? regular;
+    measures.set(key, regular && bold ? (text, b) => (b ? bold : regular).width(text) : undefined);
+  }
+  return measures.get(key);
 }

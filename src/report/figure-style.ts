@@ -27,5 +27,7 @@ export const STYLE = {
   },
   legend: { labelFont: FONT, titleFont: FONT, labelFontSize: 10, titleFontSize: 10, titleFontWeight: "normal", labelLimit: 300, titleLimit: 400 },
   text: { font: FONT },
+  // lines turn round at their points: a sharp turn of a mitred line draws a spike past the point
+  line: { strokeJoin: "round" },
   view: { stroke: "#333" },
 } as const;

@@ -12,26 +12,34 @@
  * size lays text out in about a third of the time.
  */
 
-interface Table {
+export interface Table {
   readonly offset: number;
   readonly length: number;
 }
 
-/** The face's tables by tag; undefined unless it is a single TrueType face with outlines in 'glyf'. */
-function tableDirectory(v: DataView): Map<string, Table> | undefined {
+/** A single face's tables by tag (TrueType or CFF outlines); undefined for anything else (a collection, a web font). */
+export function fontTables(v: DataView): Map<string, Table> | undefined {
+  if (v.byteLength < 12) return undefined;
   const version = v.getUint32(0);
-  if (version !== 0x00010000 && version !== 0x74727565) return undefined; // 'true': Apple's TrueType tag
+  // 'true': Apple's TrueType tag; 'OTTO': CFF outlines
+  if (version !== 0x00010000 && version !== 0x74727565 && version !== 0x4f54544f) return undefined;
   const tables = new Map<string, Table>();
   for (let i = 0, n = v.getUint16(4); i < n; i++) {
     const o = 12 + 16 * i;
     const tag = String.fromCharCode(v.getUint8(o), v.getUint8(o + 1), v.getUint8(o + 2), v.getUint8(o + 3));
     tables.set(tag, { offset: v.getUint32(o + 8), length: v.getUint32(o + 12) });
   }
-  return ["cmap", "glyf", "loca", "head", "maxp", "post"].every((t) => tables.has(t)) ? tables : undefined;
+  return tables;
 }
 
-/** The glyphs that 'cmap' maps the code points to (its Unicode subtable: format 12, else format 4). */
-function mappedGlyphs(v: DataView, cmap: number, codePoints: ReadonlySet<number>): Set<number> {
+/** The face's tables by tag; undefined unless it is a single TrueType face with outlines in 'glyf'. */
+function tableDirectory(v: DataView): Map<string, Table> | undefined {
+  const tables = fontTables(v);
+  return tables && v.getUint32(0) !== 0x4f54544f && ["cmap", "glyf", "loca", "head", "maxp", "post"].every((t) => tables.has(t)) ? tables : undefined;
+}
+
+/** Where the Unicode subtables of 'cmap' (at `cmap`) of formats 12 and 4 start, the first of each. */
+export function unicodeSubtables(v: DataView, cmap: number): { format4?: number; format12?: number } {
   let format4: number | undefined;
   let format12: number | undefined;
   for (let i = 0, n = v.getUint16(cmap + 2); i < n; i++) {
@@ -43,6 +51,12 @@ function mappedGlyphs(v: DataView, cmap: number, codePoints: ReadonlySet<number>
     if (format === 12) format12 ??= at;
     else if (format === 4) format4 ??= at;
   }
+  return { ...(format4 !== undefined ? { format4 } : {}), ...(format12 !== undefined ? { format12 } : {}) };
+}
+
+/** The glyphs that 'cmap' maps the code points to (its Unicode subtable: format 12, else format 4). */
+function mappedGlyphs(v: DataView, cmap: number, codePoints: ReadonlySet<number>): Set<number> {
+  const { format4, format12 } = unicodeSubtables(v, cmap);
   // the code points in order, walked once beside the subtable's groups or segments (sorted by the format); the
   // walk ends with the last code point
   const sorted = Float64Array.from(codePoints).sort();

@@ -98,7 +98,7 @@ function stacked(panels: readonly Panel[]): Part {
 function titleSvg(spec: ChartSpec, content: Box): { svg: string; box: Box } {
   const height = spec.subtitle ? 11 + SUBTITLE_GAP + 10 : 11;
   const [x, y] = [content.x1, content.y1 - height - TITLE_GAP];
-  const width = Math.max(textWidth(spec.title, 11), spec.subtitle ? textWidth(spec.subtitle, 10) : 0);
+  const width = Math.max(textWidth(spec.title, 11, true), spec.subtitle ? textWidth(spec.subtitle, 10) : 0);
   const svg =
     `<g class="title" transform="translate(${num(x)},${num(y)})">` +
     textSvg(0, 0, spec.title, { size: 11, bold: true, baseline: "top" }) +

@@ -43,7 +43,8 @@ function lineSvg(series: Series, pts: ([number, number] | null)[]): string {
     pen = true;
   }
   const dash = series.dash ? ` stroke-dasharray="${series.dash.join(",")}"` : "";
-  return d ? `<path class="line" d="${d}" stroke="${series.colour}" stroke-width="${series.width ?? 2}"${dash}/>` : "";
+  // joined round at each point: a sharp turn of a mitred join draws a spike past the point
+  return d ? `<path class="line" d="${d}" stroke="${series.colour}" stroke-width="${series.width ?? 2}" stroke-linejoin="round"${dash}/>` : "";
 }
 
 function pointsSvg(series: Series, pts: ([number, number] | null)[], r: number, opacity: number): string {

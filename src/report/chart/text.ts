@@ -1,8 +1,10 @@
 /**
- * Text and boxes of the chart writer. Layout never measures glyphs: a
- * line of text is taken as 0.8 em per character (the estimate the figures'
- * layout has always used, so sizes and placements stay as they were) and
- * one em high; the SVG is rasterised by resvg with the real font.
+ * Text and boxes of the chart writer. A line of text is one em high and as
+ * wide as the figure font sets it, where the thread drawing the figure has
+ * given its faces' widths (setTextMeasure: font-metrics.ts, from the faces
+ * resvg draws with); without them, 0.8 em per character (Vega's estimate
+ * when it has no canvas, wider than most text). The SVG is rasterised by
+ * resvg with the real font.
  */
 import { FONT } from "../figure-style.js";
 
@@ -39,9 +41,19 @@ export interface TextStyle {
   readonly angle?: number;
 }
 
-/** The layout width of a line of text: 0.8 em per UTF-16 unit, whole units. */
-export function textWidth(text: string, size: number): number {
-  return Math.trunc(0.8 * text.length * size);
+/** A line's width in em, in the regular or the bold face. */
+export type TextMeasure = (text: string, bold: boolean) => number;
+
+let measure: TextMeasure | undefined;
+
+/** Lay text out with `m` from now on on this thread (undefined: the estimate of 0.8 em per UTF-16 unit). */
+export function setTextMeasure(m: TextMeasure | undefined): void {
+  measure = m;
+}
+
+/** The layout width of a line of text at `size`: as the figure font sets it (rounded up) or, without its widths, 0.8 em per UTF-16 unit (rounded down, as Vega does). */
+export function textWidth(text: string, size: number, bold = false): number {
+  return measure ? Math.ceil(measure(text, bold) * size) : Math.trunc(0.8 * text.length * size);
 }
 
 /** How far below the anchor point the alphabetic baseline is drawn, whole units. */
@@ -51,7 +63,7 @@ function baselineShift(baseline: Baseline, size: number): number {
 
 /** The layout box of a text at (x, y). */
 export function textBox(x: number, y: number, text: string, style: TextStyle): Box {
-  const w = textWidth(text, style.size);
+  const w = textWidth(text, style.size, style.bold);
   const h = style.size;
   const top = baselineShift(style.baseline ?? "alphabetic", style.size) - Math.round(0.8 * h);
   const left = style.anchor === "middle" ? -w / 2 : style.anchor === "end" ? -w : 0;
