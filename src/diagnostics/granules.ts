@@ -37,7 +37,7 @@ export interface GranuleStats {
   readonly predictedLength: number;
   /** The field's 1D (peculiar) velocity dispersion σ. */
   readonly velocityDispersion: number;
-  /** ρ̄ ∫ ξ dᵈr over r < 3 × the measured correlation length (NaN without one). */
+  /** ρ̄ ∫ ξ dᵈr over r < 3 × the measured correlation length ℓ (NaN without one, or where 3ℓ exceeds half the shortest side). */
   readonly quasiParticleMass: number;
   /** π^{d/2} ρ̄ (ħ/(m a σ))ᵈ · ξ(0): the random-phase prediction. */
   readonly predictedQuasiParticleMass: number;
@@ -122,7 +122,11 @@ export function granuleStats(grid: Grid, psi: Float64Array, a: number, fft: Fiel
     }
   }
   const d = grid.dims;
-  const integral = Number.isFinite(correlationLength) ? ballSum(grid, data, 3 * correlationLength) : 0;
+  // the ball of 3ℓ must lie within half the shortest side: a larger one takes in the far side of the periodic box,
+  // where ξ sums with the rest to zero (⟨δ⟩ = 0), and its sum says nothing about the granules
+  const halfSide = Math.min(...simulatedAxes(grid).map((ax) => grid.extent[ax])) / 2;
+  const measurable = Number.isFinite(correlationLength) && 3 * correlationLength <= halfSide;
+  const integral = measurable ? ballSum(grid, data, 3 * correlationLength) : 0;
   return {
     pdf,
     variance,
@@ -131,7 +135,7 @@ export function granuleStats(grid: Grid, psi: Float64Array, a: number, fft: Fiel
     correlationLength,
     predictedLength,
     velocityDispersion: sigma,
-    quasiParticleMass: Number.isFinite(correlationLength) ? mean * integral : NaN,
+    quasiParticleMass: measurable ? mean * integral : NaN,
     predictedQuasiParticleMass: Math.pow(Math.PI, d / 2) * mean * Math.pow(predictedLength, d) * xi0,
   };
 }

@@ -4,6 +4,7 @@ import { categoryColours } from "./chart/palette.js";
 import type { Series } from "./chart/chart.js";
 import { colourRange, fieldFigure } from "./field-image.js";
 import { powerPlot } from "./plots.js";
+import { formatNumber } from "../core/format.js";
 import { rangedFigure } from "./phase-space-figure.js";
 import type { FieldDiagnosticsResult, PhysicalScales } from "./field-diagnostics.js";
 import type { LoadedField } from "../simulation/from-snapshot.js";
@@ -56,11 +57,14 @@ function vortexScatter(points: { x: number; y: number; charge: string }[], box: 
 
 /** The density PDF against the exponential and Gamma laws, and ξ(r) against the random-phase law. */
 function granulePlot(g: NonNullable<FieldDiagnosticsResult["granules"]>, s: PhysicalScales, caption: string): Promise<Figure> {
-  const [measured, exponential, gamma, phase] = ["measured", "exponential (random phase)", `Gamma, shape ${g.gammaShape.toPrecision(3)}`, "random phase, ħ/(m a σ)"];
+  const [measured, exponential, gamma, phase] = ["measured", "exponential (random phase)", `Gamma, shape ${formatNumber(g.gammaShape)}`, "random phase, ħ/(m a σ)"];
   const { colour, entries } = named([measured, exponential, gamma, phase]);
   const pdf = g.pdf.filter((b) => b.pdf > 0);
+  // the laws down to two decades below the smallest measured bin: a narrow PDF's Gamma law falls through tens of
+  // decades within the bins, and the log axis would flatten the measured points against its top
+  const floor = pdf.length ? Math.min(...pdf.map((b) => b.pdf)) / 100 : 0;
   const law = (name: string, rows: { x: number; p: number }[], mark: Series["mark"]): Series => {
-    const shown = rows.filter((r) => r.p > 0);
+    const shown = rows.filter((r) => r.p > 0 && r.p >= floor);
     return { name, colour: colour(name), x: shown.map((r) => r.x), y: shown.map((r) => r.p), mark, size: 20 };
   };
   const reach = 6 * (Number.isFinite(g.correlationLength) ? g.correlationLength : g.predictedLength) * s.kpc;
@@ -85,7 +89,7 @@ function granulePlot(g: NonNullable<FieldDiagnosticsResult["granules"]>, s: Phys
 /** Speed distributions of the Husimi function at the chosen points. */
 function speedPlot(points: NonNullable<FieldDiagnosticsResult["husimiPoints"]>, d: number, caption: string): Promise<Figure> {
   const peak = Math.max(...points.flatMap((p) => p.speed.map((b) => b.F)));
-  const label = (p: (typeof points)[number], i: number) => `${i + 1}: (${p.point.map((x) => x.toPrecision(3)).join(", ")}) kpc`;
+  const label = (p: (typeof points)[number], i: number) => `${i + 1}: (${p.point.map((x) => formatNumber(x)).join(", ")}) kpc`;
   const { colour, entries } = named(points.map(label));
   const series: Series[] = points.map((p, i) => {
     const shown = p.speed.filter((b) => b.F > 1e-4 * peak);
@@ -119,9 +123,11 @@ export function vortexFigure(field: LoadedField, vortices: NonNullable<FieldDiag
   const [, n1, n2] = field.grid.shape;
   const area = field.grid.spacing[1] * field.grid.spacing[2] * s.kpc * s.kpc;
   const values = Float64Array.from(vortices.projection, (v) => (v * s.kpc) / area);
+  // no line at all: said in the title, on a colour bar from 0 (line length is never negative)
+  const none = values.every((v) => v === 0);
   return fieldFigure(
     { nx: n2, ny: n1, values, x0: 0, y0: 0, width: box[2]!, height: box[1]! },
-    { xTitle: "z [kpc]", yTitle: "y [kpc]", legend: "line length / area [1/kpc]", title: "Vortex lines projected along x", subtitle: caption, range: colourRange(values, Infinity), colourMap: "viridis" },
+    { xTitle: "z [kpc]", yTitle: "y [kpc]", legend: "line length / area [1/kpc]", title: none ? "No vortex lines (projected along x)" : "Vortex lines projected along x", subtitle: caption, range: none ? [0, 1] : colourRange(values, Infinity), colourMap: "viridis" },
   );
 }
 
@@ -136,9 +142,9 @@ export async function diagnosticFigures(field: LoadedField, r: FieldDiagnosticsR
     const im = r.husimiImage;
     figures["husimi"] = rangedFigure(
       { nx: im.x.length, ny: im.v.length, values: im.log10f, x: [0, box[0]!], y: [im.v[0]!, im.v[im.v.length - 1]!] },
-      { xTitle: "x [kpc]", yTitle: "v [km/s]", legend: "log₁₀ f [Msun/(kpc km/s)]", caption: `Husimi f(x, v), η = ${(r.eta! * s.kpc).toPrecision(3)} kpc, ${caption}`, decades: 8 },
+      { xTitle: "x [kpc]", yTitle: "v [km/s]", legend: "log₁₀ f [Msun/(kpc km/s)]", caption: `Husimi f(x, v), η = ${formatNumber(r.eta! * s.kpc)} kpc, ${caption}`, decades: 8 },
     );
   }
-  if (r.husimiPoints) figures["husimi-points"] = speedPlot(r.husimiPoints, d, `Husimi speed distribution, η = ${(r.eta! * s.kpc).toPrecision(3)} kpc, ${caption}`);
+  if (r.husimiPoints) figures["husimi-points"] = speedPlot(r.husimiPoints, d, `Husimi speed distribution, η = ${formatNumber(r.eta! * s.kpc)} kpc, ${caption}`);
   return figuresTogether(figures);
 }

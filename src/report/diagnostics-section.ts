@@ -30,7 +30,10 @@ function sentences(summary: Record<string, unknown>): string[] {
   const g = summary["granules"] as Record<string, number> | undefined;
   if (g) {
     out.push(
-      `Granules: density variance ${num(g["density_variance"])} (1 for a random-phase field), correlation length ${num(g["correlation_length_kpc"])} kpc against ħ/(m a σ) = ${num(g["random_phase_length_kpc"])} kpc for σ = ${num(g["velocity_dispersion_1d_km_s"])} km/s; quasi-particle mass ${num(g["quasi_particle_mass_Msun"])} Msun.`,
+      `Granules: density variance ${num(g["density_variance"])} (1 for a random-phase field), correlation length ${num(g["correlation_length_kpc"])} kpc against ħ/(m a σ) = ${num(g["random_phase_length_kpc"])} kpc for σ = ${num(g["velocity_dispersion_1d_km_s"])} km/s; ` +
+        (typeof g["quasi_particle_mass_Msun"] === "number"
+          ? `quasi-particle mass ${num(g["quasi_particle_mass_Msun"])} Msun.`
+          : `quasi-particle mass not measured (no correlation length, or three of them exceed half the box).`),
     );
   }
   const h = summary["husimi"] as Record<string, unknown> | undefined;

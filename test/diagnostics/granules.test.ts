@@ -47,6 +47,19 @@ describe("granules", () => {
     expect(Math.abs(s.quasiParticleMass / s.predictedQuasiParticleMass - 1)).toBeLessThan(0.1);
   });
 
+  it("a correlation length beyond a sixth of the box leaves the quasi-particle mass unmeasured: ξ sums to zero over a periodic box (⟨δ⟩ = 0; computed independently)", () => {
+    const g = new Grid([64, 64], [64, 64]);
+    const psi = gaussianComplexField(g, maxwellian(1 / 20), 61);
+    const s = granuleStats(g, psi, 1);
+    expect(s.correlationLength).toBeGreaterThan(64 / 6);
+    expect(s.quasiParticleMass).toBeNaN();
+    expect(s.predictedQuasiParticleMass).toBeGreaterThan(0);
+    // the sum the ball would have taken: the whole box's ΔV Σ ξ = ΔV Σ δ(x) Σ δ(x + r) / N = 0
+    const rho = Array.from({ length: g.size }, (_, i) => psi[2 * i]! ** 2 + psi[2 * i + 1]! ** 2);
+    const mean = rho.reduce((t, v) => t + v, 0) / g.size;
+    expect(Math.abs(rho.reduce((t, v) => t + (v / mean - 1), 0))).toBeLessThan(1e-9 * g.size);
+  });
+
   it("two independent fields give a Gamma PDF of shape 2 (the sum of two exponential variables)", () => {
     const g = new Grid([256, 256], [256, 256]);
     const a1 = gaussianComplexField(g, maxwellian(sigma), 51);
