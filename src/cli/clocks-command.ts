@@ -106,7 +106,7 @@ export async function clocksCommand(paths: readonly string[], flags: ClocksFlags
     const { units, grid } = field;
     const region = tracked ? tracked.region(file, field) : regionOf(flags, field);
     const m = modeCoefficients({ grid, psi: field.psi, scaleFactor: field.scaleFactor, particleMass: units.particleMassKg / units.massKg, gravity: field.gravity, region, contact: field.contact });
-    if (!(m.particles >= 1)) throw new InputError(`${file}: the mode holds N = ${m.particles.toPrecision(3)} particles (< 1); choose a larger region`);
+    if (!(m.particles >= 1)) throw new InputError(`${file}: the mode holds N = ${formatNumber(m.particles)} particles (< 1); choose a larger region`);
     const tS = snap.meta.time * snapshotTimeUnit(file, snap.meta.timeUnit);
     const toS = 1 / units.timeS;
     // χ_ad = (1/ħ) dμ/dN of a stationary state (quantum/adiabatic.ts: 2μ/(ħN) for self-gravity alone, with a contact term its dilation estimate)

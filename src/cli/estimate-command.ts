@@ -5,6 +5,7 @@ import { parseAs, UnitSyntaxError, type QuantityKind } from "../physics/units.js
 import { estimateClocks } from "../quantum/estimate.js";
 import { formatDuration } from "../quantum/clocks.js";
 import { PLANCK_AGE_S } from "../quantum/sidecar-report.js";
+import { formatNumber } from "../core/format.js";
 import { C_M_PER_S, M_SUN_KG } from "../physics/constants.js";
 import { scatteringLengthFromDecayConstant } from "../physics/contact.js";
 import { readModeState, type ModeStateFlags } from "./mode-state-options.js";
@@ -51,13 +52,16 @@ function scatteringLength(flags: EstimateFlags, m: number): number | undefined {
   }
 }
 
+/** A number for people with four significant digits (formatNumber: plain decimals, else × 10ⁿ, a true minus). */
+const f4 = (x: number) => formatNumber(x, 4);
+
 /** The interaction's lines of the printed estimate. */
 function contactLines(est: ReturnType<typeof estimateClocks>, a: number | undefined, solitonMass: number | undefined): string[] {
   if (a === undefined || a === 0) return [];
-  const lines = [`contact interaction     a_s = ${a.toPrecision(4)} m: χ_SI = ${est.chiContactPerS.toPrecision(4)} /s (ħχ_SI = g∫|φ|⁴, g = 4πħ²a_s/m), χ_grav = ${est.chiGravityPerS.toPrecision(4)} /s`];
+  const lines = [`contact interaction     a_s = ${f4(a)} m: χ_SI = ${f4(est.chiContactPerS)} /s (ħχ_SI = g∫|φ|⁴, g = 4πħ²a_s/m), χ_grav = ${f4(est.chiGravityPerS)} /s`];
   if (est.criticalMassKg !== undefined) {
     const over = solitonMass !== undefined && solitonMass > est.criticalMassKg ? "; the soliton is above it and collapses" : "";
-    lines.push(`largest stable soliton  M_max = 1.0125 ħ/√(G m |a_s|) = ${(est.criticalMassKg / M_SUN_KG).toPrecision(4)} Msun${over}`);
+    lines.push(`largest stable soliton  M_max = 1.0125 ħ/√(G m |a_s|) = ${f4(est.criticalMassKg / M_SUN_KG)} Msun${over}`);
   }
   return lines;
 }
@@ -109,20 +113,21 @@ export function estimateCommand(flags: EstimateFlags): number {
     return 0;
   }
   const lines = [
-    `particles in the mode   N = ${est.particles.toPrecision(4)}   (ln N = ${Math.log(est.particles).toFixed(1)})`,
-    `initial state           ${describeStart(state.start)}, ΔN = ${est.numberSpread.toPrecision(4)}${state.lossRatePerS > 0 || state.dephasingRatePerS > 0 ? `; loss γ = ${state.lossRatePerS.toPrecision(3)} /s, dephasing κ = ${state.dephasingRatePerS.toPrecision(3)} /s` : ""}`,
-    `velocity dispersion     ${(est.velocityMS / 1e3).toPrecision(4)} km/s = ${(est.velocityMS / C_M_PER_S).toPrecision(3)} c`,
-    `${a ? "Kerr rate               N|χ| = N|χ_grav + χ_SI|" : "self-gravity rate       N|χ| = 2 m⟨v²⟩/ħ"} = ${est.rateNChiPerS.toPrecision(4)} /s   (χ = ${est.chiPerS.toPrecision(4)} /s frozen mode, χ_ad = ${est.chiAdiabaticPerS.toPrecision(4)} /s adiabatic)`,
+    `particles in the mode   N = ${f4(est.particles)}   (ln N = ${Math.log(est.particles).toFixed(1)})`,
+    `initial state           ${describeStart(state.start)}, ΔN = ${f4(est.numberSpread)}${state.lossRatePerS > 0 || state.dephasingRatePerS > 0 ? `; loss γ = ${formatNumber(state.lossRatePerS)} /s, dephasing κ = ${formatNumber(state.dephasingRatePerS)} /s` : ""}`,
+    `velocity dispersion     ${f4(est.velocityMS / 1e3)} km/s = ${formatNumber(est.velocityMS / C_M_PER_S)} c`,
+    `${a ? "Kerr rate               N|χ| = N|χ_grav + χ_SI|" : "self-gravity rate       N|χ| = 2 m⟨v²⟩/ħ"} = ${f4(est.rateNChiPerS)} /s   (χ = ${f4(est.chiPerS)} /s frozen mode, χ_ad = ${f4(est.chiAdiabaticPerS)} /s adiabatic)`,
     ...contactLines(est, a, solitonMass),
-    ...(est.lambdaPerS !== undefined ? [`dynamical rate          λ = √(4πGρ) = ${est.lambdaPerS.toPrecision(4)} /s`] : []),
+    ...(est.lambdaPerS !== undefined ? [`dynamical rate          λ = √(4πGρ) = ${f4(est.lambdaPerS)} /s`] : []),
     "",
   ];
   const width = Math.max(...est.clocks.map((c) => c.name.length));
-  for (const c of est.clocks) {
-    const when = c.timeS === undefined ? "—" : formatDuration(c.timeS);
-    const age = c.timeS === undefined ? "" : `  (${(c.timeS / PLANCK_AGE_S).toPrecision(3)} × the age of the universe)`;
-    lines.push(`${c.name.padEnd(width)}  ${when.padEnd(12)} ${c.formula}${age}${c.note ? `\n${" ".repeat(width + 2)}note: ${c.note}` : ""}`);
-  }
+  const whens = est.clocks.map((c) => (c.timeS === undefined ? "—" : formatDuration(c.timeS)));
+  const whenWidth = Math.max(12, ...whens.map((w) => w.length));
+  est.clocks.forEach((c, i) => {
+    const age = c.timeS === undefined ? "" : `  (${formatNumber(c.timeS / PLANCK_AGE_S)} × the age of the universe)`;
+    lines.push(`${c.name.padEnd(width)}  ${whens[i]!.padEnd(whenWidth)} ${c.formula}${age}${c.note ? `\n${" ".repeat(width + 2)}note: ${c.note}` : ""}`);
+  });
   process.stdout.write(lines.join("\n") + "\n");
   return 0;
 }

@@ -7,6 +7,7 @@ import { quoteValue } from "../core/sanitize.js";
 import fs from "node:fs";
 import path from "node:path";
 import { InputError, ConfigError } from "../core/errors.js";
+import { formatNumber } from "../core/format.js";
 import { Dataset, hdf5Reason, loadHdf5, openHdf5 } from "../io/h5.js";
 import { readFloat64 } from "../io/slabs.js";
 import { readNpyComplex, type ComplexArray } from "../io/npy.js";
@@ -188,6 +189,6 @@ export async function importCommand(source: string, flags: ImportFlags): Promise
     },
     psi,
   });
-  process.stdout.write(`wrote ${flags.out}: ${field.shape.join("×")} cells, mass ${(mass * cellKpc3 * depth).toPrecision(6)} Msun\n`);
+  process.stdout.write(`wrote ${flags.out}: ${field.shape.join("×")} cells, mass ${formatNumber(mass * cellKpc3 * depth, 4)} Msun\n`);
   return 0;
 }

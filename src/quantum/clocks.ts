@@ -216,7 +216,7 @@ export class ClockAccumulator {
     const project = (name: ClockResult["name"], target: number | undefined, value: number, rate: number, what: string): ClockResult => {
       const t = this.rung.get(name);
       if (t !== undefined) return { name, reached: true, time: t, method: `${what}, crossed during the run (linear within the step)` };
-      if (target === undefined) return never(name, `never: the best single-mode squeezing for N = ${this.particles.toPrecision(3)} does not reach ${this.squeezingDb} dB`);
+      if (target === undefined) return never(name, `never: the best single-mode squeezing for N = ${formatNumber(this.particles)} does not reach ${formatNumber(this.squeezingDb)} dB`);
       if (!(rate > 0)) return never(name, `${what}; the rate is zero, so it never rings`);
       return { name, reached: false, time: now + (target - value) / rate, method: `${what}, projected past the end with the last rate` };
     };
@@ -247,7 +247,7 @@ export class ClockAccumulator {
       } catch (e) {
         if (!(e instanceof RangeError)) throw e;
       }
-      if (tau === undefined) return never(name, `${what}; never within ${horizon.toPrecision(3)} time units with the last rates (loss or dephasing act first)`);
+      if (tau === undefined) return never(name, `${what}; never within ${formatNumber(horizon)} time units with the last rates (loss or dephasing act first)`);
       return { name, reached: false, time: now + tau, method: `${what}, projected past the end with the last rates` };
     };
     const chiNow = this.rates.chiTilde; // a frozen at its last value, as for the coherent clocks

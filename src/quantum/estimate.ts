@@ -24,6 +24,7 @@
  * solitonBranchAdiabaticChi). All inputs and outputs in SI.
  */
 import { G_SI, HBAR_J_S } from "../physics/constants.js";
+import { formatNumber } from "../core/format.js";
 import { contactCouplingSI, criticalMassKg } from "../physics/contact.js";
 import { solitonBranchAdiabaticChi } from "./adiabatic.js";
 import { xForSqueezing } from "./kerr.js";
@@ -120,7 +121,7 @@ function contactChi(inp: EstimateInputs, rho: number | undefined): number {
 export function estimateClocks(inp: EstimateInputs): Estimate {
   const m = inp.particleMassKg;
   const N = inp.modeMassKg / m;
-  if (!(N >= 1)) throw new RangeError(`the mode holds N = ${N.toPrecision(3)} particles (< 1): give a larger mode mass`);
+  if (!(N >= 1)) throw new RangeError(`the mode holds N = ${formatNumber(N)} particles (< 1): give a larger mode mass`);
   const start = inp.start ?? COHERENT;
   validateStart(N, start);
   const gamma = inp.lossRatePerS ?? 0;
@@ -135,7 +136,7 @@ export function estimateClocks(inp: EstimateInputs): Estimate {
   const chiAd = solitonBranchAdiabaticChi(chiGravity, chiContact);
   const lambda = rho === undefined ? undefined : Math.sqrt(4 * Math.PI * G_SI * rho);
   const open = gamma > 0 || kappa > 0;
-  const stateNote = `${isCoherent(start) ? "coherent start" : "the chosen start"}${open ? `, loss γ = ${gamma.toPrecision(3)} /s and dephasing κ = ${kappa.toPrecision(3)} /s` : ""}`;
+  const stateNote = `${isCoherent(start) ? "coherent start" : "the chosen start"}${open ? `, loss γ = ${formatNumber(gamma)} /s and dephasing κ = ${formatNumber(kappa)} /s` : ""}`;
   // the squeezing level
   const xClosed = isCoherent(start) ? xForSqueezing(N, inp.squeezingDb) : xForSqueezingOf(N, start, inp.squeezingDb, -1);
   let tLevel = xClosed === undefined ? undefined : xClosed / Math.abs(chi);
@@ -167,12 +168,12 @@ export function estimateClocks(inp: EstimateInputs): Estimate {
     clocks: [
       { name: "squeezing onset", timeS: 1 / rate, formula: chiContact !== 0 ? "1/(N|χ|), χ = −2m⟨v²⟩/(Nħ) + χ_SI" : "1/(N|χ|) = ħ/(2 m ⟨v²⟩)", ...(vNote ? { note: vNote } : {}) },
       {
-        name: `squeezing to ${inp.squeezingDb} dB`,
+        name: `squeezing to ${formatNumber(inp.squeezingDb)} dB`,
         timeS: tLevel,
         formula: `first time the exact variance reaches the level (${stateNote})`,
-        ...(tLevel === undefined ? { note: `the squeezing of this state never reaches ${inp.squeezingDb} dB` } : tLevel === 0 ? { note: "the start is already squeezed to this level" } : {}),
+        ...(tLevel === undefined ? { note: `the squeezing of this state never reaches ${formatNumber(inp.squeezingDb)} dB` } : tLevel === 0 ? { note: "the start is already squeezed to this level" } : {}),
       },
-      { name: "phase diffusion, frozen mode", timeS: diffusion(chi), formula: `|⟨b⟩|² down by 1/e with χ: X_c ≈ 1/ΔN, ΔN = ${dN.toPrecision(4)} (${stateNote})` },
+      { name: "phase diffusion, frozen mode", timeS: diffusion(chi), formula: `|⟨b⟩|² down by 1/e with χ: X_c ≈ 1/ΔN, ΔN = ${formatNumber(dN, 4)} (${stateNote})` },
       { name: "phase diffusion, adiabatic", timeS: diffusion(chiAd), formula: chiContact !== 0 ? "the same with χ_ad = (3/2) χ_grav + 10 χ_SI (stationary soliton, first order in the interaction)" : "the same with χ_ad = (1/ħ) dμ/dN = (3/2) χ (stationary state)" },
       {
         name: "classical breakdown",

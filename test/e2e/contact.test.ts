@@ -77,7 +77,7 @@ describe("psibox estimate with an interaction", () => {
     expect(est.chiContactPerS).toBeLessThan(0);
     expect(est.criticalMassKg / 1.98841e30 / 4.92e9 - 1).toBeLessThan(1e-3);
     const text = runPsibox(work, ["estimate", "--particle-mass", "1e-22 eV", "--soliton-mass", "1e10 Msun", "--scattering-length", "-1e-80 m"]);
-    expect(text.stdout).toMatch(/largest stable soliton {2}M_max = 1\.0125 ħ\/√\(G m \|a_s\|\) = 4\.92\de\+9 Msun; the soliton is above it and collapses/);
+    expect(text.stdout).toMatch(/largest stable soliton {2}M_max = 1\.0125 ħ\/√\(G m \|a_s\|\) = 4\.92\d × 10⁹ Msun; the soliton is above it and collapses/);
     expect(oneLine(runPsibox(work, ["estimate", "--particle-mass", "1e-22 eV", "--soliton-mass", "1e9 Msun", "--scattering-length", "1 m", "--decay-constant", "1 GeV"]), 2)).toMatch(/^--decay-constant: give either/);
   });
 });
