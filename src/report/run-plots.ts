@@ -69,24 +69,49 @@ export interface Ring {
   readonly label: string;
 }
 
-function ringLayers(rings: readonly Ring[], withText: boolean): object[] {
+function ringLayers(rings: readonly Ring[], withText: boolean, tRange?: readonly [number, number]): object[] {
   if (rings.length === 0) return [];
-  // labels stacked downwards so that clocks ringing close together stay readable
-  const labelled = rings.map((r, i) => ({ ...r, y: 3 + 11 * i }));
+  // labels stacked downwards so that clocks ringing close together stay readable; a label goes to the left of its
+  // line where a later clock's line would cross it on the right (and there is room on the left)
+  const at = (t: number) => (tRange && tRange[1] > tRange[0] ? ((t - tRange[0]) / (tRange[1] - tRange[0])) * PANEL.width : 0);
+  // an upper bound of a label's width at 9 units (DejaVu Sans sets letters within 0.7 em)
+  const wide = (label: string) => 3 + 0.7 * 9 * label.length;
+  const labelled = rings.map((r, i) => {
+    const x = at(r.t);
+    const crossed = rings.some((o, j) => j !== i && at(o.t) >= x && at(o.t) <= x + wide(r.label));
+    return { ...r, y: 3 + 11 * i, side: crossed && x >= wide(r.label) ? "left" : "right" };
+  });
+  const text = (side: "left" | "right") => ({
+    data: { values: labelled.filter((r) => r.side === side) },
+    mark: { type: "text", align: side === "right" ? "left" : "right", baseline: "top", dx: side === "right" ? 3 : -3, fontSize: 9, color: COLOURS.mark },
+    encoding: { x: { field: "t", type: "quantitative" }, y: { field: "y", type: "quantitative", scale: null }, text: { field: "label" } },
+  });
   return [
     { data: { values: rings }, mark: { type: "rule", strokeDash: [2, 2], color: COLOURS.mark }, encoding: { x: { field: "t", type: "quantitative" } } },
-    ...(withText
-      ? [{ data: { values: labelled }, mark: { type: "text", align: "left", baseline: "top", dx: 3, fontSize: 9, color: COLOURS.mark }, encoding: { x: { field: "t", type: "quantitative" }, y: { field: "y", type: "quantitative", scale: null }, text: { field: "label" } } }]
-      : []),
+    ...(withText ? [text("right"), text("left")] : []),
   ];
 }
 
-function threshold(value: number, label: string): object[] {
+/**
+ * A dashed threshold line and its label at the right, under the line, or over it where the line lies less than
+ * `LABEL_ROOM` units above the panel's bottom (`above`: the line's height in the panel, 0 at the bottom, 1 at the top).
+ */
+function threshold(value: number, label: string, above: number, height: number): object[] {
   const one = { values: [{}] };
+  const under = above * height >= LABEL_ROOM;
   return [
     { data: one, mark: { type: "rule", strokeDash: [5, 3], color: COLOURS.K }, encoding: { y: { datum: value } } },
-    { data: one, mark: { type: "text", align: "right", baseline: "top", dy: 3, fontSize: 9, color: COLOURS.K }, encoding: { x: { value: PANEL.width - 2 }, y: { datum: value }, text: { value: label } } },
+    { data: one, mark: { type: "text", align: "right", baseline: under ? "top" : "bottom", dy: under ? 3 : -3, fontSize: 9, color: COLOURS.K }, encoding: { x: { value: PANEL.width - 2 }, y: { datum: value }, text: { value: label } } },
   ];
+}
+
+/** Room a threshold's label needs under its line (9 units of text and 3 of gap, and a little more). */
+const LABEL_ROOM = 16;
+
+/** Where `v` lies in `domain`, 0 at its start and 1 at its end (on a log scale with `log`). */
+function within(v: number, domain: readonly [number, number], log = false): number {
+  const f = log ? Math.log : (x: number) => x;
+  return (f(v) - f(domain[0])) / (f(domain[1]) - f(domain[0]));
 }
 
 /** Squeezing (with its target), the mean-field decay on a log axis that reaches its threshold, and ∫λ dt up to ln N. */
@@ -103,21 +128,22 @@ export function clocksPlot(series: Row[], tCol: string, tTitle: string, opts: { 
   const tRange: [number, number] = [rows[0]!.t, rows.at(-1)!.t];
   const line = (field: string, y: object) => ({ data: { values: field === "dephasing" ? positive : rows }, mark: { type: "line", strokeWidth: 1.5, color: COLOURS.W }, encoding: { x: xEnc(tTitle, field === "breakdown", tRange), y: { field, type: "quantitative", ...y } } });
   const minDb = Math.min(opts.targetDb * 1.2, ...rows.map((r) => r.squeezing).filter(Number.isFinite));
+  const breakdownDomain: [number, number] = [0, Math.max(opts.lnN * 1.08, ...rows.map((r) => r.breakdown))];
   return renderVegaLite({
     $schema: SCHEMA,
     title: { text: "Quantum clocks of the whole-box mode", subtitle: `dotted: when a clock rang; dashed: its threshold (squeezing target ${formatNumber(opts.targetDb)} dB)` },
     spacing: 10,
     vconcat: [
-      { ...panel, layer: [line("squeezing", { title: "squeezing [dB]", scale: { domain: [minDb, 0], nice: false } }), ...threshold(opts.targetDb, `target ${formatNumber(opts.targetDb)} dB`), ...ringLayers(opts.rings, true)] },
+      { ...panel, layer: [line("squeezing", { title: "squeezing [dB]", scale: { domain: [minDb, 0], nice: false } }), ...threshold(opts.targetDb, `target ${formatNumber(opts.targetDb)} dB`, within(opts.targetDb, [minDb, 0]), panel.height), ...ringLayers(opts.rings, true, tRange)] },
       {
         ...panel,
         layer: [
           line("dephasing", { title: "−ln(|⟨b⟩|²/N)", scale: { type: "log", domain: deph.domain, nice: false }, axis: { values: deph.values } }),
-          ...threshold(1, "phase diffusion at 1"),
+          ...threshold(1, "phase diffusion at 1", within(1, deph.domain, true), panel.height),
           ...ringLayers(opts.rings, false),
         ],
       },
-      { ...panel, layer: [line("breakdown", { title: "∫λ dt", scale: { domain: [0, Math.max(opts.lnN * 1.08, ...rows.map((r) => r.breakdown))], nice: false } }), ...threshold(opts.lnN, `breakdown at ln N = ${formatNumber(opts.lnN)}`), ...ringLayers(opts.rings, false)] },
+      { ...panel, layer: [line("breakdown", { title: "∫λ dt", scale: { domain: breakdownDomain, nice: false } }), ...threshold(opts.lnN, `breakdown at ln N = ${formatNumber(opts.lnN)}`, within(opts.lnN, breakdownDomain), panel.height), ...ringLayers(opts.rings, false)] },
     ],
   } as unknown as TopLevelSpec);
 }
