@@ -21,7 +21,7 @@ function lines(long: Row[], colours: Record<string, string>, tTitle: string | nu
   const x = { field: "t", type: "quantitative", title: tTitle, scale: { nice: false, zero: false, domain } };
   const y = { type: "quantitative", title: yTitle };
   // the adiabatic Kerr mode dashed: it often lies on the frozen one
-  const dashes = { field: "series", type: "nominal", legend: null, scale: { domain: Object.keys(colours), range: Object.keys(colours).map((k) => (k === LABEL.adiabatic ? [5, 3] : [1, 0])) } };
+  const dashes = { field: "series", type: "nominal", legend: { orient: "top", direction: "horizontal", title: null }, scale: { domain: Object.keys(colours), range: Object.keys(colours).map((k) => (k === LABEL.adiabatic ? [5, 3] : [1, 0])) } };
   const bands = long.filter((r) => Number.isFinite(r["e"] as number));
   // a level far above the curves would flatten them: drawn only when within twice their top
   const top = Math.max(...long.map((r) => (r["v"] as number) + (Number.isFinite(r["e"] as number) ? (r["e"] as number) : 0)).filter(Number.isFinite));
@@ -51,7 +51,8 @@ export function ensembleComparisonPlot(rows: readonly Record<string, string>[], 
     $schema: SCHEMA,
     title: { text: "The ensemble against the linear and the single-mode pictures", subtitle: ["bands: ± one error; red dashes (when in range): the clocks' levels,", `depletion ${formatNumber(depletionLevel, 3)} particles and |⟨b⟩|/√N = e^(−1/2)`] },
     spacing: 10,
-    resolve: { scale: { color: "independent" }, legend: { color: "independent" } },
+    // each panel's own colours and dashes (the second has three series, the first two)
+    resolve: { scale: { color: "independent", strokeDash: "independent" }, legend: { color: "independent", strokeDash: "independent" } },
     vconcat: [
       { width: WIDTH, height: 130, layer: lines(depletion, { [LABEL.ensemble]: INK.ensemble, [LABEL.tangent]: INK.tangent }, null, domain, "depletion [particles]", depletionLevel) },
       { width: WIDTH, height: 130, layer: lines(meanField, { [LABEL.ensemble]: INK.ensemble, [LABEL.kerr]: INK.kerr, [LABEL.adiabatic]: INK.adiabatic }, `t [${unit}]`, domain, "mean field |⟨b⟩|/√N", meanFieldLevel) },
