@@ -49,6 +49,8 @@ describe("psibox ensemble", () => {
     // psibox report on the ensemble folder: the headline sentences, the figure and the series table
     const report = runPsibox(work, ["report", "output/small/ensemble"]);
     expect(report.code).toBe(0);
+    // nothing but the line naming the file: no warning of the figures' libraries on the terminal
+    expect(report.stderr).toBe("");
     const html = fs.readFileSync(path.join(dir, "report.html"), "utf8");
     expect(html).toMatch(/4 of 4 members reduced \(completed\); N = 100 particles over 16 grid modes/);
     expect(html).toMatch(/<img alt="The condensate fraction/);
