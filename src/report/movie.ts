@@ -7,7 +7,6 @@
 import { spawnSync } from "node:child_process";
 import fs from "node:fs";
 import path from "node:path";
-import { PNG } from "pngjs";
 import { fsyncFolder, fsyncPath, temporaryPathFor } from "../io/atomic.js";
 
 export interface Encoder {
@@ -26,14 +25,30 @@ export function findEncoder(program = process.env["PSIBOX_FFMPEG"] ?? "ffmpeg"):
   return undefined;
 }
 
+/** A PNG file's size in pixels, from its header (the IHDR chunk's first eight bytes). */
+function pngSize(file: string): { width: number; height: number } {
+  const head = Buffer.alloc(24);
+  const fd = fs.openSync(file, "r");
+  try {
+    fs.readSync(fd, head, 0, 24, 0);
+  } finally {
+    fs.closeSync(fd);
+  }
+  return { width: head.readUInt32BE(16), height: head.readUInt32BE(20) };
+}
+
+const evenUp = (n: number) => n + (n % 2);
+
 /** Encode `frame_NNNNN.png` files (all from one run) into `<outBase>.<ext>`, written atomically; returns the file. */
 export function encodeMovie(encoder: Encoder, frameDir: string, outBase: string, framesPerSecond = 4): string {
-  const first = fs.readdirSync(frameDir).filter((f) => /^frame_\d{5}\.png$/.test(f)).sort()[0];
-  if (!first) throw new Error(`no frames in ${frameDir}`);
-  const size = PNG.sync.read(fs.readFileSync(path.join(frameDir, first)));
-  // H.264 and VP9 with 4:2:0 colour need even sizes; every frame is fitted to the first one's
-  const W = size.width + (size.width % 2);
-  const H = size.height + (size.height % 2);
+  const frames = fs.readdirSync(frameDir).filter((f) => /^frame_\d{5}\.png$/.test(f)).sort();
+  if (frames.length === 0) throw new Error(`no frames in ${frameDir}`);
+  // frames differ in width with their subtitle's length (the time and step): each is put at the top left of the
+  // largest one, on white, as it is, so that the plot stays in place and at its size from frame to frame; H.264 and
+  // VP9 with 4:2:0 colour need even sizes
+  const sizes = frames.map((f) => pngSize(path.join(frameDir, f)));
+  const W = evenUp(Math.max(...sizes.map((s) => s.width)));
+  const H = evenUp(Math.max(...sizes.map((s) => s.height)));
   const target = `${outBase}.${encoder.extension}`;
   const temp = temporaryPathFor(target);
   const codecArgs = encoder.codec === "libx264" ? ["-c:v", "libx264", "-crf", "18", "-preset", "medium"] : ["-c:v", encoder.codec, "-b:v", "0", "-crf", "30"];
@@ -43,7 +58,7 @@ export function encodeMovie(encoder: Encoder, frameDir: string, outBase: string,
       "-hide_banner", "-loglevel", "error", "-y",
       "-framerate", String(framesPerSecond),
       "-i", path.join(frameDir, "frame_%05d.png"),
-      "-vf", `scale=${W}:${H}:force_original_aspect_ratio=decrease,pad=${W}:${H}:(ow-iw)/2:(oh-ih)/2:color=white`,
+      "-vf", `pad=${W}:${H}:0:0:color=white`,
       ...codecArgs,
       "-pix_fmt", "yuv420p",
       "-threads", "1",
