@@ -78,6 +78,8 @@ export interface FieldFigureOptions {
   readonly legend: string;
   readonly title: string;
   readonly subtitle?: string;
+  /** Subtitles to make room for besides its own (see ChartSpec). */
+  readonly subtitleRoom?: readonly string[];
   readonly range: readonly [number, number];
   readonly colourMap: ColourMap;
   /** Longer side of the image in SVG units (default 250). */
@@ -102,6 +104,7 @@ export async function fieldFigure(plane: Plane, opts: FieldFigureOptions): Promi
   const chart: ChartSpec = {
     title: opts.title,
     ...(opts.subtitle ? { subtitle: opts.subtitle } : {}),
+    ...(opts.subtitleRoom ? { subtitleRoom: opts.subtitleRoom } : {}),
     margin: 6,
     image: {
       width: w,

@@ -76,13 +76,14 @@ export function powerPlot(measured: { k: number; P: number }[], linear: { k: num
   });
 }
 
-/** A 1D density profile on a log axis (its decades cover `domainValues`, default the profile's own). */
-export function densityLinePlot(rows: { x: number; rho: number }[], xTitle: string, yTitle: string, title: string, subtitle: string, domainValues?: number[]): Promise<Figure> {
+/** A 1D density profile on a log axis (its decades cover `domainValues`, default the profile's own; room made for the subtitles `subtitleRoom` besides its own). */
+export function densityLinePlot(rows: { x: number; rho: number }[], xTitle: string, yTitle: string, title: string, subtitle: string, domainValues?: number[], subtitleRoom?: readonly string[]): Promise<Figure> {
   const ya = logAxis(domainValues ?? rows.map((r) => r.rho));
   const shown = rows.filter((r) => r.rho > 0);
   return renderChart({
     title,
     subtitle,
+    ...(subtitleRoom ? { subtitleRoom } : {}),
     panels: [{ ...PANEL, x: { title: xTitle, nice: false, zero: false }, y: { title: yTitle, log: true, ...ya, nice: false }, series: [{ colour: MEASURED, x: shown.map((r) => r.x), y: shown.map((r) => r.rho), mark: "line", width: 1.5 }] }],
   });
 }

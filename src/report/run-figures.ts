@@ -87,6 +87,15 @@ async function inGroups(count: number, draw: (i: number) => Promise<void>): Prom
   }
 }
 
+/**
+ * The texts of `texts` with the most characters (at most eight): the widest when set (digits, the most of what
+ * differs between a run's captions, are all one width in the figure font), sent with each frame instead of all.
+ */
+function longest(texts: readonly string[]): string[] {
+  const most = Math.max(...texts.map((t) => t.length));
+  return [...new Set(texts.filter((t) => t.length >= most - 1))].slice(0, 8);
+}
+
 /** Frames of the whole run on one colour range; returns how many were written. */
 async function writeFrames(snapshots: readonly SnapshotLike[], files: readonly string[], frameDir: string, first: SnapshotMeta, opts: PictureOptions): Promise<number> {
   fs.mkdirSync(frameDir, { recursive: true });
@@ -103,7 +112,9 @@ async function writeFrames(snapshots: readonly SnapshotLike[], files: readonly s
       return Array.from({ length: n }, (_, i) => ({ x: i * unit, rho: s.psi[2 * i]! ** 2 + s.psi[2 * i + 1]! ** 2 }));
     });
     const all = profiles.flat().map((p) => p.rho);
-    await inGroups(profiles.length, async (i) => writeFileAtomic(frame(i), (await densityLinePlot(profiles[i]!, "x [kpc]", "ρ [Msun/kpc³]", "Density", snapshots[i]!.caption, all)).png));
+    // every frame as wide as the widest (the subtitles' times and steps differ in length)
+    const room = longest(snapshots.map((s) => s.caption));
+    await inGroups(profiles.length, async (i) => writeFileAtomic(frame(i), (await densityLinePlot(profiles[i]!, "x [kpc]", "ρ [Msun/kpc³]", "Density", snapshots[i]!.caption, all, room)).png));
     return profiles.length;
   }
   const pick = (s: SnapshotLike) => (dims === 3 ? s.planes.projection : s.planes.slice)!;
@@ -114,6 +125,8 @@ async function writeFrames(snapshots: readonly SnapshotLike[], files: readonly s
   const range = fixed ? ([fixed[0], fixed[1]] as const) : colourRange(Float64Array.of(hi - opts.decades, hi), opts.decades);
   const p0 = pick(snapshots[0]!);
   const unit = axisUnit(Math.max(...first.boxSizeKpc)).name;
+  const subtitles = snapshots.map((s) => `${s.caption}; ${fixed ? "fixed colours" : `colours: the run's maximum and ${formatNumber(opts.decades)} decades below`}`);
+  const room = longest(subtitles);
   await inGroups(snapshots.length, async (i) => {
     const s = snapshots[i]!;
     const plane = pick(s);
@@ -124,7 +137,9 @@ async function writeFrames(snapshots: readonly SnapshotLike[], files: readonly s
         yTitle: `${AXIS_NAMES[p0.up]} [${unit}]`,
         legend: dims === 3 ? "log₁₀ Σ [Msun/kpc²]" : "log₁₀ ρ [Msun/kpc³]",
         title: dims === 3 ? `Column density along ${AXIS_NAMES[p0.normal!]}` : "Density",
-        subtitle: `${s.caption}; ${fixed ? "fixed colours" : `colours: the run's maximum and ${formatNumber(opts.decades)} decades below`}`,
+        subtitle: subtitles[i]!,
+        // every frame as wide as the widest (the subtitles' times and steps differ in length)
+        subtitleRoom: room,
         range,
         colourMap: opts.colourMap,
       },

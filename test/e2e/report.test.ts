@@ -75,6 +75,9 @@ describe("psibox analyze: every picture type from real runs", () => {
     for (const f of ["energies", "clocks"]) checkPicture(path.join(a, `${f}.png`));
     expect(fs.readdirSync(path.join(a, "frames"))).toEqual(["frame_00000.png", "frame_00001.png", "frame_00002.png"]);
     checkPicture(path.join(a, "frames/frame_00001.png"), 600, false); // frames are PNG only
+    // every frame of one size, though their subtitles' times and steps differ in length
+    const sizes = fs.readdirSync(path.join(a, "frames")).map((f) => PNG.sync.read(fs.readFileSync(path.join(a, "frames", f)))).map((p) => `${p.width}×${p.height}`);
+    expect(new Set(sizes).size, sizes.join(", ")).toBe(1);
   });
 
   it("1D: the density on a log axis and the space–time diagram", () => {

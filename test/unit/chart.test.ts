@@ -91,6 +91,15 @@ describe("charts", () => {
     expect(origin[1]).toBeGreaterThan(30);
   });
 
+  it("make room for the subtitles of a set of figures: two frames with subtitles of different lengths are one width", () => {
+    const frame = (subtitle: string) => ({ title: "Density", subtitle, subtitleRoom: ["t = 1.25 Gyr (step 12345); colours: the run's maximum", "t = 0 Gyr (step 0)"], panels: [{ width: 120, height: 80, x: { title: "x" }, y: { title: "y" }, series: [] }] });
+    const width = (svg: string) => Number(/width="(\d+)"/.exec(svg)![1]);
+    const [a, b] = [chartSvg(frame("t = 0 Gyr (step 0)")).svg, chartSvg(frame("t = 1.25 Gyr (step 12345); colours: the run's maximum")).svg];
+    expect(width(a)).toBe(width(b));
+    // and as wide as the widest subtitle needs: wider than the same chart without the room
+    expect(width(a)).toBeGreaterThan(width(chartSvg({ ...frame("t = 0 Gyr (step 0)"), subtitleRoom: [] }).svg));
+  });
+
   it("are drawn the same by the figure workers as on this thread", async () => {
     const { Resvg } = await import("@resvg/resvg-js");
     const { PNG_SCALE, figureFontFiles, renderChart } = await import("../../src/report/render.js");

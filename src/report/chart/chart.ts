@@ -29,6 +29,8 @@ export interface Panel {
 export interface ChartSpec {
   readonly title: string;
   readonly subtitle?: string;
+  /** Subtitles the figure is made wide enough for besides its own (a movie's frames: each as wide as the widest). */
+  readonly subtitleRoom?: readonly string[];
   /** Plot areas stacked from the top, `PANEL_GAP` apart (or an image area instead). */
   readonly panels?: readonly Panel[];
   readonly image?: ImageArea;
@@ -98,7 +100,7 @@ function stacked(panels: readonly Panel[]): Part {
 function titleSvg(spec: ChartSpec, content: Box): { svg: string; box: Box } {
   const height = spec.subtitle ? 11 + SUBTITLE_GAP + 10 : 11;
   const [x, y] = [content.x1, content.y1 - height - TITLE_GAP];
-  const width = Math.max(textWidth(spec.title, 11, true), spec.subtitle ? textWidth(spec.subtitle, 10) : 0);
+  const width = Math.max(textWidth(spec.title, 11, true), ...[spec.subtitle ?? "", ...(spec.subtitleRoom ?? [])].map((s) => textWidth(s, 10)));
   const svg =
     `<g class="title" transform="translate(${num(x)},${num(y)})">` +
     textSvg(0, 0, spec.title, { size: 11, bold: true, baseline: "top" }) +
