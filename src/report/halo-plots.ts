@@ -107,7 +107,8 @@ function trackPlot(rows: readonly TrackRow[], dims: number): Promise<Figure> {
     encoding: {
       x: { field: "t", type: "quantitative", title: `t [${unit.name}]`, scale: { nice: false, zero: false } },
       y: { field: "mass", type: "quantitative", title: "mass [Msun]", scale: { type: "log", domain: ya.domain, nice: false }, axis: { values: ya.values } },
-      color: { field: "track", type: "nominal", title: null, scale: { domain: names, scheme: "tableau10" }, legend: { orient: "right" } },
+      // lines in the legend, as in the plot
+      color: { field: "track", type: "nominal", title: null, scale: { domain: names, scheme: "tableau10" }, legend: { orient: "right", symbolType: "stroke", symbolStrokeWidth: 2 } },
       // the subtitle says which is which (a legend of dash patterns draws no symbol in this renderer)
       strokeDash: { field: "quantity", type: "nominal", title: null, scale: { domain: ["halo M", "core M_c"], range: [[1, 0], [5, 3]] }, legend: null },
       detail: { field: "quantity" },
