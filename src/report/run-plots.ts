@@ -71,20 +71,22 @@ export interface Ring {
 
 function ringLayers(rings: readonly Ring[], withText: boolean, tRange?: readonly [number, number]): object[] {
   if (rings.length === 0) return [];
-  // labels stacked downwards so that clocks ringing close together stay readable; a label goes to the left of its
-  // line where a later clock's line would cross it on the right (and there is room on the left)
-  const at = (t: number) => (tRange && tRange[1] > tRange[0] ? ((t - tRange[0]) / (tRange[1] - tRange[0])) * PANEL.width : 0);
+  // labels stacked downwards so that clocks ringing close together stay readable; a label a later clock's line would
+  // cross on the right goes to the left of its line where there is room, else to the right of the last line it
+  // would cross (its anchor time `at`)
+  const x = (t: number) => (tRange && tRange[1] > tRange[0] ? ((t - tRange[0]) / (tRange[1] - tRange[0])) * PANEL.width : 0);
   // an upper bound of a label's width at 9 units (DejaVu Sans sets letters within 0.7 em)
   const wide = (label: string) => 3 + 0.7 * 9 * label.length;
   const labelled = rings.map((r, i) => {
-    const x = at(r.t);
-    const crossed = rings.some((o, j) => j !== i && at(o.t) >= x && at(o.t) <= x + wide(r.label));
-    return { ...r, y: 3 + 11 * i, side: crossed && x >= wide(r.label) ? "left" : "right" };
+    const crossing = rings.filter((o, j) => j !== i && x(o.t) >= x(r.t) && x(o.t) <= x(r.t) + wide(r.label));
+    const side = crossing.length > 0 && x(r.t) >= wide(r.label) ? "left" : "right";
+    const at = side === "right" && crossing.length > 0 ? Math.max(...crossing.map((o) => o.t)) : r.t;
+    return { ...r, at, y: 3 + 11 * i, side };
   });
   const text = (side: "left" | "right") => ({
     data: { values: labelled.filter((r) => r.side === side) },
     mark: { type: "text", align: side === "right" ? "left" : "right", baseline: "top", dx: side === "right" ? 3 : -3, fontSize: 9, color: COLOURS.mark },
-    encoding: { x: { field: "t", type: "quantitative" }, y: { field: "y", type: "quantitative", scale: null }, text: { field: "label" } },
+    encoding: { x: { field: "at", type: "quantitative" }, y: { field: "y", type: "quantitative", scale: null }, text: { field: "label" } },
   });
   return [
     { data: { values: rings }, mark: { type: "rule", strokeDash: [2, 2], color: COLOURS.mark }, encoding: { x: { field: "t", type: "quantitative" } } },

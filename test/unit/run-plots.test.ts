@@ -40,4 +40,15 @@ describe("the clocks figure", () => {
     expect(onset!.x).toBeLessThan(120);
     expect(target!.x).toBeGreaterThan(132);
   });
+
+  it("puts a clock's label right of the next clock's line when there is no room left of its own (clocks ringing early)", async () => {
+    const series = rows((t) => ({ squeezing_dB: -0.1 * t, log10_meanfield_fraction: -1e-3 * t, breakdown_integral: 0.01 * t }));
+    const { svg } = await clocksPlot(series, "t", "t [Myr]", { lnN: 50, targetDb: -10, rings: [{ t: 4, label: "onset" }, { t: 6, label: "target" }] });
+    const [onset, target] = ["onset", "target"].map((l) => texts(svg).find((t) => t.text === l)!);
+    // both start right of the later line (6 Myr of 100 on a 300-unit axis: 18 units), one above the other
+    expect(onset!.anchor).toBe("start");
+    expect(onset!.x).toBeGreaterThan(18);
+    expect(target!.x).toBeGreaterThan(18);
+    expect(target!.y).toBeGreaterThan(onset!.y);
+  });
 });
