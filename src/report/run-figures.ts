@@ -88,8 +88,9 @@ async function inGroups(count: number, draw: (i: number) => Promise<void>): Prom
 }
 
 /**
- * The texts of `texts` with the most characters (at most eight): the widest when set (digits, the most of what
- * differs between a run's captions, are all one width in the figure font), sent with each frame instead of all.
+ * The texts of `texts` with the most characters or one fewer (at most eight): among them the widest when set
+ * (digits, most of what differs between a run's captions, are all one width in the figure font), sent with each
+ * frame instead of all.
  */
 function longest(texts: readonly string[]): string[] {
   const most = Math.max(...texts.map((t) => t.length));
