@@ -8,6 +8,7 @@ import fs from "node:fs";
 import path from "node:path";
 import { InputError } from "../core/errors.js";
 import { writeFileAtomic } from "../io/atomic.js";
+import { tidy } from "../core/format.js";
 
 /** The manifest a sweep writes (sweep.json). */
 export interface SweepManifest {
@@ -128,7 +129,8 @@ export function buildSummary(sweepDir: string): { manifest: SweepManifest; rows:
 
 function csvCell(v: string | number | boolean | null): string {
   if (v === null) return "";
-  const s = String(v);
+  // numbers to 12 significant digits, as the runs' time series: 0.844576514, not 0.8445765140000001
+  const s = String(typeof v === "number" ? tidy(v) : v);
   return /[",\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
 }
 

@@ -67,6 +67,8 @@ export async function runCommand(
     const config = checkConfig(fillFromSnapshot(applyOverrides(readTomlFile(configFile), flags.set)));
     if (config.sweep) throw new InputError(`${fileName(configFile)} describes a sweep ([sweep] section): run it with psibox sweep ${fileName(configFile)}`);
     run = resolveRun(config, path.basename(configFile).replace(/\.[^.]*$/, ""), process.cwd());
+    // a config kept in its own output folder (a sweep entry's entry.toml) names the run after the folder, as --resume does
+    if (path.resolve(run.outputDir) === path.dirname(path.resolve(configFile))) run = { ...run, name: path.basename(run.outputDir) };
     checkBreakdownMemory(run);
     owned = takeRunFolder(run.outputDir, { force: flags.force });
   }

@@ -8,7 +8,7 @@
  */
 import { collapseProblem } from "./collapse-guard.js";
 import fs from "node:fs";
-import { formatNumber } from "../core/format.js";
+import { formatNumber, tidy } from "../core/format.js";
 import { writeFileAtomic } from "../io/atomic.js";
 import { loadHdf5 } from "../io/h5.js";
 import type { ResolvedRun } from "../config/resolve.js";
@@ -215,7 +215,8 @@ function summaryOf(session: RunSession, start: RunStart, result: EvolveResult, s
   const { run, stepper, background, expanding, scales } = session;
   const point = (t: number) => {
     const a = background.scaleFactor(t);
-    return { t: scales.time(t), a, z: expanding ? 1 / a - 1 : null };
+    // round-off removed: a run that ends at 100 Myr or z = 11 says so, not 99.99999999999999
+    return { t: tidy(scales.time(t)), a: tidy(a), z: expanding ? tidy(1 / a - 1) : null };
   };
   const initialOnly = session.options.initialOnly === true;
   return {
@@ -223,7 +224,7 @@ function summaryOf(session: RunSession, start: RunStart, result: EvolveResult, s
     status: result.status,
     ...(result.reason ? { reason: result.reason } : {}),
     steps: result.steps,
-    wall_time_s: start.wallBefore + (performance.now() - session.wallStart) / 1000,
+    wall_time_s: tidy(start.wallBefore + (performance.now() - session.wallStart) / 1000),
     time_unit: scales.timeUnit,
     start: point(run.span.startTime),
     end: point(initialOnly ? run.span.startTime : stepper.time),

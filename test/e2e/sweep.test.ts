@@ -57,7 +57,13 @@ describe("psibox sweep", () => {
     ]);
     expect(rows.every((r: { status: string }) => r.status === "completed")).toBe(true);
     for (const r of rows as { entry: string; flow_resolved: boolean; unresolved_mass_fraction: number }[]) {
-      const flow = readJson<{ flow_resolution: { resolved: boolean; worst_unresolved_mass_fraction: number } }>(path.join(work, "full", r.entry, "summary.json")).flow_resolution;
+      const entrySummary = readJson<{ name: string; end: { t: number }; flow_resolution: { resolved: boolean; worst_unresolved_mass_fraction: number } }>(path.join(work, "full", r.entry, "summary.json"));
+      const flow = entrySummary.flow_resolution;
+      // each entry's run is named after its entry (its config file is entry.toml), as a resumed one is
+      expect(entrySummary.name).toBe(r.entry);
+      expect(fs.readFileSync(path.join(work, "full", r.entry, "run.log"), "utf8")).toContain(`started ${r.entry}:`);
+      // the end of the span, not its round-off (300 Myr reached by steps of a few Myr)
+      expect(entrySummary.end.t).toBe(300);
       expect([r.flow_resolved, r.unresolved_mass_fraction]).toEqual([flow.resolved, flow.worst_unresolved_mass_fraction]);
       // the mode's start and rates from clocks.json, the final squeezing and mean field from the time series
       expect(r).toMatchObject({ mode_start: "coherent", loss_rate_per_s: 0, dephasing_rate_per_s: 0, outflow_loss_rate_per_s: null });
@@ -65,7 +71,12 @@ describe("psibox sweep", () => {
       expect((r as unknown as { final_squeezing_dB: number }).final_squeezing_dB).toBeCloseTo(final.squeezing_db, 9);
       expect((r as unknown as { final_log10_meanfield_fraction: number }).final_log10_meanfield_fraction).toBeLessThanOrEqual(0);
     }
-    expect(fs.readFileSync(path.join(work, "full/sweep-summary.csv"), "utf8").split("\n")[0]).toMatch(/^entry,particle\.mass,initial\.contrast,status,reason,steps,wall_time_s,/);
+    const csv = fs.readFileSync(path.join(work, "full/sweep-summary.csv"), "utf8");
+    expect(csv.split("\n")[0]).toMatch(/^entry,particle\.mass,initial\.contrast,status,reason,steps,wall_time_s,/);
+    // numbers to at most 12 significant digits (a wall time of 0.8445765140000001 s is round-off)
+    const digits = csv.match(/(?<=^|,)-?[\d.]+(?:e[-+]?\d+)?(?=,|$)/gm)!.map((v) => v.replace(/e.*$/, "").replace(/[-.]/g, "").replace(/^0+|0+$/g, "").length);
+    expect(digits.length).toBeGreaterThan(40);
+    expect(Math.max(...digits), csv).toBeLessThanOrEqual(12);
 
     // the same sweep, its parent killed with SIGKILL once the first checkpoints exist
     const child = spawn(process.execPath, [BIN, "sweep", "s.toml", "--workers", "2", "--set", 'output.dir="cut"'], { cwd: work, stdio: "ignore" });
