@@ -9,12 +9,14 @@ import { planSweep } from "../batch/plan.js";
 import { runSweep } from "../batch/runner.js";
 import { emitSlurm } from "../batch/slurm.js";
 import { writeSummary } from "../batch/summary.js";
+import { prepareSweepFolder } from "../batch/sweep-folder.js";
 
 export interface SweepFlags {
   set: string[];
   workers?: string;
   emit?: string;
   summary?: string;
+  force: boolean;
 }
 
 /** The CLI entry script (dist/cli/bin.js). */
@@ -35,6 +37,7 @@ export async function sweepCommand(configFile: string | undefined, flags: SweepF
   const raw = applyOverrides(readTomlFile(configFile), flags.set);
   const plan = planSweep(raw, path.basename(configFile).replace(/\.[^.]*$/, ""), process.cwd());
   const where = escapeControls(path.relative(process.cwd(), plan.dir) || ".");
+  for (const note of prepareSweepFolder(plan, flags.force)) process.stderr.write(`psibox: ${escapeControls(note)}\n`);
   if (flags.emit !== undefined) {
     if (flags.emit !== "slurm") throw new InputError(`--emit: the only target is "slurm", got "${shorten(flags.emit)}"`);
     const files = emitSlurm(plan, binPath());

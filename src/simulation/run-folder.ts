@@ -85,6 +85,9 @@ export function takeRunFolder(dir: string, options: { force: boolean; resume?: b
 }
 
 function prepareForNewRun(dir: string, force: boolean, notes: string[]): void {
+  if (fs.existsSync(path.join(dir, "sweep.json"))) {
+    throw new InputError(`output folder ${fileName(dir)} holds a sweep (sweep.json); a run needs a folder of its own: set output.dir`);
+  }
   const held = ["summary.json", "timeseries.csv", "config.toml", "checkpoint.h5"].some((f) => fs.existsSync(path.join(dir, f)));
   if (held && !force) {
     throw new InputError(`output folder ${fileName(dir)} already holds a run; pass --force to replace the files psibox wrote there, or set output.dir`);

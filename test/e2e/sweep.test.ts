@@ -152,6 +152,42 @@ describe("psibox sweep", () => {
     });
   }
 
+  it("never mixes a sweep with a run, nor results of another config: refused in one line, --force starts the changed entries afresh", () => {
+    const base = `[grid]\ncells = 64\nbox = "20 kpc"\ngravity = "none"\n[particle]\nmass = "1e-22 eV"\n[span]\nduration = "10 Myr"\n[initial]\nkind = "gaussian-packet"\nmass = "1e8 Msun"\nwidth = "1 kpc"\ncenter = ["8 kpc"]\n[output]\ndir = "m"\n`;
+    const sweep = `${base}[sweep]\n[sweep.values]\n"initial.width" = ["1 kpc", "2 kpc"]\n`;
+    // a sweep into the folder of a run
+    fs.writeFileSync(path.join(work, "m.toml"), base);
+    expect(psibox(["run", "m.toml", "-q"]).code).toBe(0);
+    fs.writeFileSync(path.join(work, "m.toml"), sweep);
+    for (const extra of [[], ["--emit", "slurm"], ["--force"]]) {
+      const r = psibox(["sweep", "m.toml", ...extra]);
+      expect([r.code, r.stderr]).toEqual([2, `psibox: output folder ${path.join(work, "m")} holds a run; a sweep needs a folder of its own: set output.dir (e.g. --set 'output.dir="output/m-sweep"') or move the run away\n`]);
+    }
+    expect(fs.existsSync(path.join(work, "m/sweep.json"))).toBe(false);
+    // a run into the folder of a sweep, even with --force
+    expect(psibox(["sweep", "m.toml", "--workers", "2", "--set", 'output.dir="ms"']).code).toBe(0);
+    fs.writeFileSync(path.join(work, "m.toml"), base);
+    const into = psibox(["run", "m.toml", "--set", 'output.dir="ms"', "--force"]);
+    expect([into.code, into.stderr]).toEqual([2, `psibox: output folder ${path.join(work, "ms")} holds a sweep (sweep.json); a run needs a folder of its own: set output.dir\n`]);
+    // the same sweep with a longer span: the entries' 10 Myr results must not pass for 20 Myr ones
+    fs.writeFileSync(path.join(work, "m.toml"), sweep);
+    const endOf = (entry: string) => readJson<{ end: { t: number } }>(path.join(work, "ms", entry, "summary.json")).end.t;
+    for (const extra of [[], ["--emit", "slurm"]]) {
+      const r = psibox(["sweep", "m.toml", "--set", 'output.dir="ms"', "--set", 'span.duration="20 Myr"', ...extra]);
+      expect([r.code, r.stderr]).toEqual([2, `psibox: sweep entry width=1kpc in ${path.join(work, "ms")} was run with another config (span.duration differs); pass --force to start the changed entries afresh, or set output.dir for a new sweep\n`]);
+    }
+    expect([endOf("width=1kpc"), endOf("width=2kpc")]).toEqual([10, 10]);
+    // unchanged (keys in another order, output.dir given another way): nothing to start again
+    fs.writeFileSync(path.join(work, "m.toml"), sweep.replace('[span]\nduration = "10 Myr"\n', "") + '[span]\nduration = "10 Myr"\n');
+    const same = psibox(["sweep", "m.toml", "--set", `output.dir="${path.join(work, "ms")}"`]);
+    expect(same.stderr).toMatch(/\[2\/2\] width=\dkpc: already completed/);
+    const forced = psibox(["sweep", "m.toml", "--set", 'output.dir="ms"', "--set", 'span.duration="20 Myr"', "--force", "--workers", "2"]);
+    expect(forced.code, forced.stderr).toBe(0);
+    expect(forced.stderr).toContain("psibox: --force: entry width=2kpc starts afresh (span.duration changed)\n");
+    expect(forced.stdout).toMatch(/^sweep done: 2 completed, 0 already done, 0 failed/);
+    expect([endOf("width=1kpc"), endOf("width=2kpc")]).toEqual([20, 20]);
+  });
+
   it("psibox run refuses a sweep config and points to psibox sweep", () => {
     fs.writeFileSync(path.join(work, "sw.toml"), SWEEP);
     expect(psibox(["run", "sw.toml"]).stderr).toBe("psibox: sw.toml describes a sweep ([sweep] section): run it with psibox sweep sw.toml\n");

@@ -1,6 +1,6 @@
 /** `psibox sweep CONFIG`, `--emit slurm`, `--summary DIR`. */
 import type { SweepFlags } from "../sweep-command.js";
-import { SET_OPTION, type CommandSpec } from "../options.js";
+import { FORCE_OPTION, SET_OPTION, type CommandSpec } from "../options.js";
 
 export const sweepSpec: CommandSpec<SweepFlags, [string | undefined]> = {
   name: "sweep",
@@ -11,6 +11,7 @@ export const sweepSpec: CommandSpec<SweepFlags, [string | undefined]> = {
     workers: { flags: "--workers <n>", help: "child processes at once (default: the number of cores)" },
     emit: { flags: "--emit <target>", help: "write job scripts instead of running: slurm" },
     summary: { flags: "--summary <dir>", help: "rebuild sweep-summary.csv and .json from a sweep folder" },
+    force: { ...FORCE_OPTION, help: "start afresh the entries whose earlier runs used another config (without it such a sweep is refused)" },
   },
   run: async ([config], flags) => (await import("../sweep-command.js")).sweepCommand(config, flags),
 };
