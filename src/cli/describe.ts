@@ -26,8 +26,8 @@ function breakdownLine(run: ResolvedRun, scales: OutputScales): string | undefin
   return `├─ breakdown    ${what} by ${by}: ${n} extra field${n > 1 ? "s" : ""}, +${formatNumber(mb)} MB, about ${n + 1} times the work per step; seed ${b.seed}`;
 }
 
-/** Describe a run in physical units. */
-export function describeRun(run: ResolvedRun): string {
+/** Describe a run in physical units, headed by the command that does it (`psibox ic`, `psibox extend`, …). */
+export function describeRun(run: ResolvedRun, command = "run"): string {
   const c = run.config;
   const scales = new OutputScales(run);
   const cells = run.grid.cells.join("×");
@@ -39,7 +39,7 @@ export function describeRun(run: ResolvedRun): string {
     ? `z = ${c.span.start_redshift} → ${c.span.end_redshift ?? 0} (${scales.formatTime(run.span.startTime)} → ${scales.formatTime(run.span.endTime)})`
     : `${c.span.duration}`;
   const lines = [
-    `psibox run "${run.name}"`,
+    `psibox ${command} "${run.name}"`,
     `├─ grid         ${run.grid.cells.length}D, ${cells} cells, box ${box}, gravity ${run.grid.gravity}`,
     `├─ particle     ${particleText(c.particle)}`,
     `├─ background   ${bg}`,

@@ -93,7 +93,7 @@ function completedBefore(file: string): boolean {
 /** Run (or resume) in a folder this process holds; returns the exit code. */
 async function runOwned(run: ResolvedRun, flags: RunFlags & { readonly initialOnly?: boolean; readonly extendedConfig?: string | undefined }): Promise<number> {
   const reporter = flags.quiet ? silentReporter : new TextReporter();
-  if (!flags.quiet) process.stderr.write(describeRun(run) + "\n");
+  if (!flags.quiet) process.stderr.write(describeRun(run, flags.initialOnly ? "ic" : flags.extendedConfig !== undefined ? "extend" : flags.resume !== undefined ? "run --resume" : "run") + "\n");
   let interrupted: string | undefined;
   // a run started by psibox sweep stops (with a checkpoint) when the sweep itself is gone
   const parent = Number(process.env["PSIBOX_PARENT_PID"] ?? 0);

@@ -50,6 +50,8 @@ describe("psibox ic", () => {
     fs.writeFileSync(path.join(work, "late.toml"), COSMO.replace("start_redshift = 100", "start_redshift = 0.5").replace('"2 Mpc/h"', '"0.5 Mpc/h"').replace("[16, 16, 16]", "[32, 32, 32]").replace('"1e-22 eV"', '"1e-20 eV"'));
     const r = psibox(["ic", "late.toml"]);
     expect(r.code).toBe(0);
+    // headed by the command the user gave
+    expect(r.stderr).toMatch(/^psibox ic "late"\n├─ grid /);
     expect(r.stderr).toMatch(/warning: span\.start_redshift: the field is already nonlinear at the start \(max \|δ\| = [\d.]+ > 1.*\); start at a higher redshift or use a coarser grid/);
   });
 
