@@ -12,7 +12,7 @@ import type { CheckedConfig } from "../config/schema.js";
 import { DEFAULT_CLUSTER } from "./slurm-script.js";
 
 type Table = Record<string, unknown>;
-type Value = number | string | boolean | number[];
+type Value = number | string | boolean | (number | string)[];
 
 /** One run of a sweep. */
 export interface SweepEntry {
@@ -77,9 +77,17 @@ function label(key: string, keys: readonly string[]): string {
   return keys.filter((k) => k.split(".").at(-1) === last).length > 1 ? key : last;
 }
 
-function slug(v: Value): string {
-  const text = Array.isArray(v) ? v.join("x") : String(v);
+/** A value as a folder name's part, its numbers to `digits` significant digits (2.15443469003e-22 eV → 2.154e-22eV at 4). */
+function slug(v: Value, digits = 12): string {
+  const text = (Array.isArray(v) ? v.join("x") : String(v)).replace(/\d+(?:\.\d+)?(?:e[-+]?\d+)?/g, (n) => String(Number(Number(n).toPrecision(digits))));
   return text.replace(/\s+/g, "").replace(/\//g, "per").replace(/[^A-Za-z0-9.+\-x^]/g, "").replace(/\^/g, "");
+}
+
+/** The fewest significant digits (4 to 12) at which a key's values keep the names they have at 12. */
+function nameDigits(values: readonly Value[]): number {
+  const distinct = new Set(values.map((v) => slug(v))).size;
+  for (let digits = 4; digits < 12; digits++) if (new Set(values.map((v) => slug(v, digits))).size === distinct) return digits;
+  return 12;
 }
 
 /**
@@ -115,8 +123,9 @@ export function planSweep(raw: Table, name: string, cwd: string): SweepPlan {
   if (combos.length > 10000) throw new ConfigError("sweep.values", `expands to ${combos.length} entries; at most 10000`);
   const baseDir = path.resolve(cwd, base.output.dir ?? path.join("output", name));
   const seen = new Map<string, number>();
+  const digits = lists.map(nameDigits);
   const entries: SweepEntry[] = combos.map((combo, index) => {
-    const entryName = combo.map((v, i) => `${label(keys[i] as string, keys)}=${slug(v)}`).join("_");
+    const entryName = combo.map((v, i) => `${label(keys[i] as string, keys)}=${slug(v, digits[i])}`).join("_");
     if (seen.has(entryName)) {
       throw new ConfigError("sweep.values", `entries ${seen.get(entryName)! + 1} and ${index + 1} would share the folder "${entryName}"; make the values distinct`);
     }

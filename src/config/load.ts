@@ -116,6 +116,12 @@ function issueToError(issue: z.core.$ZodIssue, raw: unknown): ConfigError {
         const options = (issue as unknown as { options: unknown[] }).options.map((o) => `"${String(o)}"`).join(", ");
         return new ConfigError(key, `must be one of ${options}`);
       }
+      if (path[0] === "sweep" && path[1] === "values" && path.length >= 3) {
+        return new ConfigError(
+          shorten(`sweep.values."${path[2]}"`),
+          'expected a list of values (numbers, quantities such as "2 kpc", true or false, or lists of them for a vector key such as initial.center) or a range { from = …, to = …, count = … }',
+        );
+      }
       return new ConfigError(key, issue.message);
     case "invalid_type": {
       const got = lookup(raw, path);

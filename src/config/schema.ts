@@ -318,7 +318,7 @@ export const sweepSchema = z.strictObject({
   /** How the value lists combine: every combination, or the i-th values together. @default "product" */
   combine: z.enum(["product", "zip"]).default("product"),
   /** The swept keys ("section.key") with a list of values or a range. */
-  values: z.record(z.string(), z.union([z.array(z.union([z.number(), z.string(), z.boolean(), z.array(z.number())])), sweepRange])),
+  values: z.record(z.string(), z.union([z.array(z.union([z.number(), z.string(), z.boolean(), z.array(z.union([z.number(), z.string()]))])), sweepRange])),
 });
 
 export const clusterSchema = z.strictObject({

@@ -1,0 +1,52 @@
+// The sweep's entries as planned from a config (no runs): their folder names and values, and the config errors of
+// the [sweep] section. The values of a log range are its ends times powers of their ratio (computed independently).
+import { describe, expect, it } from "vitest";
+import { parse } from "smol-toml";
+import { planSweep } from "../../src/batch/plan.js";
+import { checkConfig } from "../../src/config/load.js";
+
+const BASE = `[grid]
+cells = 64
+box = "20 kpc"
+gravity = "none"
+[particle]
+mass = "1e-22 eV"
+[span]
+duration = "10 Myr"
+[initial]
+kind = "gaussian-packet"
+mass = "1e8 Msun"
+width = "1 kpc"
+center = ["8 kpc"]
+`;
+
+const plan = (values: string) => planSweep(parse(`${BASE}[sweep]\n[sweep.values]\n${values}\n`) as Record<string, unknown>, "names", "/");
+
+describe("sweep entries", () => {
+  it("are named with as few digits as keep them apart (at least 4), and keep their values whole", () => {
+    const p = plan(`"particle.mass" = { from = "1e-22 eV", to = "1e-21 eV", count = 4, scale = "log" }`);
+    expect(p.entries.map((e) => e.name)).toEqual(["mass=1e-22eV", "mass=2.154e-22eV", "mass=4.642e-22eV", "mass=1e-21eV"]);
+    // 10^(-22 + 1/3) and 10^(-22 + 2/3) to the 12 digits the range keeps
+    expect(p.entries.map((e) => e.values["particle.mass"])).toEqual(["1e-22 eV", "2.15443469003e-22 eV", "4.64158883361e-22 eV", "1e-21 eV"]);
+    expect(p.entries[1]!.config).toMatchObject({ particle: { mass: "2.15443469003e-22 eV" } });
+  });
+
+  it("take more digits where four would merge two values", () => {
+    const p = plan(`"initial.width" = ["1.00001 kpc", "1.00002 kpc", "2 kpc"]`);
+    expect(p.entries.map((e) => e.name)).toEqual(["width=1.00001kpc", "width=1.00002kpc", "width=2kpc"]);
+  });
+
+  it("sweep vector keys given as lists of quantities", () => {
+    const p = plan(`"initial.center" = [["6 kpc"], ["6.5 kpc"]]\n"grid.cells" = [[64], [128]]`);
+    expect(p.entries.map((e) => e.name)).toEqual(["center=6kpc_cells=64", "center=6kpc_cells=128", "center=6.5kpc_cells=64", "center=6.5kpc_cells=128"]);
+    expect(p.entries[2]!.config).toMatchObject({ initial: { center: ["6.5 kpc"] }, grid: { cells: [64] } });
+  });
+
+  it("say what a swept key's values may be", () => {
+    for (const bad of [`"initial.width" = "1 kpc"`, `"initial.width" = [{ a = 1 }]`]) {
+      expect(() => checkConfig(parse(`${BASE}[sweep]\n[sweep.values]\n${bad}\n`))).toThrow(
+        'sweep.values."initial.width": expected a list of values (numbers, quantities such as "2 kpc", true or false, or lists of them for a vector key such as initial.center) or a range { from = …, to = …, count = … }',
+      );
+    }
+  });
+});
