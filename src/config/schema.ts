@@ -292,7 +292,7 @@ export const ensembleSchema = z.strictObject({
   /** Members M of the truncated-Wigner ensemble (psibox ensemble), at least 2. @default 64 */
   members: z.number().default(64),
   /** Particles N in the box, which sets the vacuum noise: "physical" (the field's mass over particle.mass) or a number ≥ 1 (an effective N). @default "physical" */
-  particles: z.union([z.number(), z.literal("physical")]).default("physical"),
+  particles: z.union([z.number(), z.literal("physical")], { error: 'expected "physical" or a number ≥ 1, e.g. 1e6' }).default("physical"),
   /** Seed of the members' vacuum noise, a whole number from 0 to 4294967295. @default 1 */
   noise_seed: z.number().default(1),
   /** Sample times: the span cut into this many equal intervals (the start and every cut). @default 16 */
@@ -305,9 +305,9 @@ export const ensembleSchema = z.strictObject({
 
 const sweepRange = z.strictObject({
   /** First value: a number, or a quantity with its unit. */
-  from: z.union([z.number(), z.string()]),
+  from: z.union([z.number(), z.string()], { error: 'expected a number or a quantity such as "2 kpc"' }),
   /** Last value (same unit as `from`). */
-  to: z.union([z.number(), z.string()]),
+  to: z.union([z.number(), z.string()], { error: 'expected a number or a quantity such as "2 kpc"' }),
   /** How many values, ≥ 2. */
   count: z.number().int(),
   /** Spacing. @default "linear" */

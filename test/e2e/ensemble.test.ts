@@ -59,6 +59,7 @@ describe("psibox ensemble", () => {
   });
   for (const [label, cells, ensemble, key] of [
     ["one member", "16", "members = 1", /ensemble\.members: must be a whole number from 2/],
+    ["a particle number that is neither a number nor \"physical\"", "16", 'particles = "many"', /^psibox: ensemble\.particles: expected "physical" or a number ≥ 1, e\.g\. 1e6$/m],
     ["a 3D ensemble beyond the machine's memory", "[256, 256, 256]", "members = 100000", /ensemble\.members: 100000 members of 256×256×256 cells need about .* of memory/],
   ] as const) {
     it(`refuses ${label} with a one-line error and exit code 2`, () => {
