@@ -2,6 +2,7 @@
 import fs from "node:fs";
 import path from "node:path";
 import { InputError } from "../core/errors.js";
+import { notRunFolder } from "../simulation/run-folder.js";
 import { loadHdf5 } from "../io/h5.js";
 import { analyzeRun, analyzeSnapshot, checkRunSnapshots, runSnapshots } from "../report/analyze.js";
 import { writeReport } from "../report/html.js";
@@ -63,7 +64,7 @@ export function diagnosticRequest(flags: AnalyzeFlags): DiagnosticRequest {
 const what = (flags: AnalyzeFlags): string => (flags.pictures ? "tables and pictures" : "tables (no pictures)");
 
 function runFolder(p: string): string[] {
-  if (!fs.existsSync(path.join(p, "snapshots"))) throw new InputError(`${p}: not a psibox run folder (no snapshots/)`);
+  if (!fs.existsSync(path.join(p, "snapshots"))) throw notRunFolder(p, "snapshots/");
   return runSnapshots(p);
 }
 

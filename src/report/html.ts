@@ -6,7 +6,7 @@
  */
 import fs from "node:fs";
 import path from "node:path";
-import { InputError } from "../core/errors.js";
+import { notRunFolder } from "../simulation/run-folder.js";
 import { formatNumber, formatQuantity } from "../core/format.js";
 import { readSnapshotMeta } from "../io/snapshot.js";
 import { analyzeRun, type RunAnalysisOptions } from "./analyze.js";
@@ -112,7 +112,7 @@ ${table(header, rows)}
 /** Write <run>/report.html (and the analysis it shows under <run>/analysis); returns the report's path. */
 export async function writeReport(runDir: string, outFile?: string, options: RunAnalysisOptions = {}): Promise<string> {
   const summary = readJson<RunSummary>(path.join(runDir, "summary.json"));
-  if (!summary) throw new InputError(`${runDir}: not a finished psibox run folder (no summary.json)`);
+  if (!summary) throw notRunFolder(runDir, "summary.json");
   const config = fs.existsSync(path.join(runDir, "config.toml")) ? fs.readFileSync(path.join(runDir, "config.toml"), "utf8") : "";
   const clocks = readJson<Parameters<typeof modeSentence>[0] & { clocks: ClockEntry[]; squeezing_db_target?: number; adiabatic_twin?: Parameters<typeof twinSentence>[0]; outflow?: Parameters<typeof outflowSentence>[0] }>(path.join(runDir, "clocks.json"));
   const analysis = await analyzeRun(runDir, path.join(runDir, "analysis"), { ...options, pictures: true });

@@ -104,3 +104,21 @@ function prepareForNewRun(dir: string, force: boolean, notes: string[]): void {
   const snapshotNames = fs.existsSync(snapshots) && fs.statSync(snapshots).isDirectory() ? fs.readdirSync(snapshots).map((n) => `snapshots/${n}`) : [];
   checkNotForeign(dir, [...RUN_FILES, ...OTHER_FILES, "analysis/", ...snapshotNames.filter((n) => /\/snap_\d{5}\.h5$/.test(n))]);
 }
+
+/**
+ * The error for a folder that is not the run a command wants (`lacking` names what is missing); a sweep's folder
+ * is told apart, with one of its entries to give instead.
+ */
+export function notRunFolder(dir: string, lacking: string): InputError {
+  const manifest = path.join(dir, "sweep.json");
+  if (fs.existsSync(manifest)) {
+    let first: string | undefined;
+    try {
+      first = (JSON.parse(fs.readFileSync(manifest, "utf8")) as { entries?: { name?: string }[] }).entries?.[0]?.name;
+    } catch {
+      first = undefined;
+    }
+    return new InputError(`${fileName(dir)}: a sweep's folder, not a run: give one of its entries${first ? `, e.g. ${fileName(path.join(dir, first))}` : ""}; the sweep's table is sweep-summary.csv`);
+  }
+  return new InputError(`${fileName(dir)}: not a ${lacking === "summary.json" ? "finished " : ""}psibox run folder (no ${lacking})`);
+}

@@ -186,6 +186,11 @@ describe("psibox sweep", () => {
     expect(forced.stderr).toContain("psibox: --force: entry width=2kpc starts afresh (span.duration changed)\n");
     expect(forced.stdout).toMatch(/^sweep done: 2 completed, 0 already done, 0 failed/);
     expect([endOf("width=1kpc"), endOf("width=2kpc")]).toEqual([20, 20]);
+    // a sweep's folder given where a run's is wanted
+    for (const command of ["report", "analyze"]) {
+      const r = psibox([command, "ms"]);
+      expect([r.code, r.stderr]).toEqual([2, "psibox: ms: a sweep's folder, not a run: give one of its entries, e.g. ms/width=1kpc; the sweep's table is sweep-summary.csv\n"]);
+    }
   });
 
   it("psibox run refuses a sweep config and points to psibox sweep", () => {
