@@ -110,6 +110,11 @@ export async function reportCommand(runDir: string, flags: PictureFlags & { out?
   const pictures = pictureOptions(flags);
   const halos = haloRequest(flags);
   if (!fs.existsSync(runDir)) throw new InputError(`${runDir}: no such folder`);
+  if (fs.existsSync(path.join(runDir, "sweep.json"))) {
+    const { writeSweepReport } = await import("../batch/sweep-report.js");
+    process.stdout.write(`wrote ${await writeSweepReport(runDir, flags.out)}\n`);
+    return 0;
+  }
   if (fs.existsSync(path.join(runDir, "ensemble.json"))) {
     const { writeEnsembleReport } = await import("../report/ensemble-report.js");
     recordIfInside(runDir, flags.out ?? path.join(runDir, "report.html"));

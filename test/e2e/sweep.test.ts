@@ -187,9 +187,43 @@ describe("psibox sweep", () => {
     expect(forced.stdout).toMatch(/^sweep done: 2 completed, 0 already done, 0 failed/);
     expect([endOf("width=1kpc"), endOf("width=2kpc")]).toEqual([20, 20]);
     // a sweep's folder given where a run's is wanted
-    for (const command of ["report", "analyze"]) {
-      const r = psibox([command, "ms"]);
-      expect([r.code, r.stderr]).toEqual([2, "psibox: ms: a sweep's folder, not a run: give one of its entries, e.g. ms/width=1kpc; the sweep's table is sweep-summary.csv\n"]);
+    const analysed = psibox(["analyze", "ms"]);
+    expect([analysed.code, analysed.stderr]).toEqual([2, "psibox: ms: a sweep's folder, not a run: give one of its entries, e.g. ms/width=1kpc; the sweep's table is sweep-summary.csv\n"]);
+  });
+
+  it("reports a sweep: each entry's clocks as its own clocks.json gives them, and the clocks against each numeric key", async () => {
+    fs.writeFileSync(path.join(work, "r.toml"), `${BASE}[sweep]\n[sweep.values]\n"particle.mass" = { from = "1e-22 eV", to = "3e-22 eV", count = 3, scale = "log" }\n"initial.contrast" = [0.1, 0.2]\n`);
+    expect(psibox(["sweep", "r.toml", "--workers", "2"]).code).toBe(0);
+    const r = psibox(["report", "output/r"]);
+    expect([r.code, r.stdout, r.stderr]).toEqual([0, "wrote output/r/report.html\n", ""]);
+    const html = fs.readFileSync(path.join(work, "output/r/report.html"), "utf8");
+    expect(html).toContain("<h1>psibox sweep “r”</h1>");
+    expect(html).toContain("6 entries, the combinations of particle.mass, initial.contrast: 6 completed.");
+    expect(html).toContain("<p>Every entry: status completed; end 300 Myr.</p>");
+    const entries = readJson<{ entries: { name: string }[] }>(path.join(work, "output/r/sweep.json")).entries.map((e) => e.name);
+    expect(entries).toContain("mass=1.732e-22eV_contrast=0.2");
+    const rows = html.split("<tr>");
+    let projected = 0;
+    for (const name of entries) {
+      const row = rows.find((t) => t.startsWith(`<td>${name}</td>`))!;
+      expect(row, name).toBeDefined();
+      const clocks = readJson<{ clocks: { time_s: number | null; time: string; reached: boolean }[] }>(path.join(work, "output/r", name, "clocks.json")).clocks;
+      for (const c of clocks.filter((x) => x.time_s !== null)) {
+        expect(row).toContain(`<td>${c.reached ? "" : "≈ "}${c.time}</td>`);
+        if (!c.reached) projected++;
+      }
+    }
+    expect(projected).toBeGreaterThan(0);
+    // one figure per swept key, the three clocks that ring before ten ages of the universe drawn in their colours
+    const { PNG } = await import("pngjs");
+    const figs = [...html.matchAll(/<img alt="Each clock of the whole-box condensate mode against ([^"]+), counted from each run's start\." src="data:image\/png;base64,([^"]+)"/g)];
+    expect(figs.map((m) => m[1])).toEqual(["particle.mass", "initial.contrast"]);
+    for (const [, , b64] of figs) {
+      const png = PNG.sync.read(Buffer.from(b64!, "base64"));
+      const colours = new Set<string>();
+      for (let i = 0; i < png.data.length; i += 4) colours.add(((png.data[i]! << 16) | (png.data[i + 1]! << 8) | png.data[i + 2]!).toString(16).padStart(6, "0"));
+      // Vega's tableau10 scheme: blue, orange, red for squeezing onset, squeezing level, breakdown (estimate)
+      for (const c of ["4c78a8", "f58518", "e45756"]) expect(colours.has(c), c).toBe(true);
     }
   });
 

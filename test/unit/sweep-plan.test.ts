@@ -4,6 +4,7 @@ import { describe, expect, it } from "vitest";
 import { parse } from "smol-toml";
 import { planSweep } from "../../src/batch/plan.js";
 import { checkConfig } from "../../src/config/load.js";
+import { sweptNumber } from "../../src/batch/sweep-report.js";
 
 const BASE = `[grid]
 cells = 64
@@ -48,5 +49,13 @@ describe("sweep entries", () => {
         'sweep.values."initial.width": expected a list of values (numbers, quantities such as "2 kpc", true or false, or lists of them for a vector key such as initial.center) or a range { from = …, to = …, count = … }',
       );
     }
+  });
+
+  it("are read back as numbers of a unit where they are, for the sweep report's axes", () => {
+    expect(sweptNumber("2.15443469003e-22 eV")).toEqual({ value: 2.15443469003e-22, unit: "eV" });
+    expect(sweptNumber("1.5 Mpc/h")).toEqual({ value: 1.5, unit: "Mpc/h" });
+    expect(sweptNumber(".5kpc")).toEqual({ value: 0.5, unit: "kpc" });
+    expect(sweptNumber(0.1)).toEqual({ value: 0.1, unit: "" });
+    for (const v of ["bbks", true, ["6 kpc"], Number.NaN, "kpc 3"]) expect(sweptNumber(v)).toBeUndefined();
   });
 });

@@ -45,8 +45,8 @@ export interface ReportFlags extends PictureFlags {
 
 export const reportSpec: CommandSpec<ReportFlags, [string]> = {
   name: "report",
-  summary: "write a self-contained HTML report of a run or of an ensemble folder (report.html in the folder)",
-  arguments: [{ name: "run", help: "a run folder", required: true }],
+  summary: "write a self-contained HTML report of a run, an ensemble folder or a sweep's folder (report.html in the folder)",
+  arguments: [{ name: "run", help: "a run folder, an ensemble folder or a sweep's folder", required: true }],
   options: { out: { flags: "--out <file>", help: "the HTML file to write" }, ...HALO_OPTIONS, ...PICTURE_OPTIONS },
   run: async ([run], flags) => (await import("../analyze-command.js")).reportCommand(run, flags),
 };
