@@ -5,21 +5,9 @@ import { parse } from "smol-toml";
 import { planSweep } from "../../src/batch/plan.js";
 import { checkConfig } from "../../src/config/load.js";
 import { sweptNumber } from "../../src/batch/sweep-report.js";
+import { FREE_PACKET_1D } from "../helpers/configs.js";
 
-const BASE = `[grid]
-cells = 64
-box = "20 kpc"
-gravity = "none"
-[particle]
-mass = "1e-22 eV"
-[span]
-duration = "10 Myr"
-[initial]
-kind = "gaussian-packet"
-mass = "1e8 Msun"
-width = "1 kpc"
-center = ["8 kpc"]
-`;
+const BASE = FREE_PACKET_1D;
 
 const plan = (values: string) => planSweep(parse(`${BASE}[sweep]\n[sweep.values]\n${values}\n`) as Record<string, unknown>, "names", "/");
 
