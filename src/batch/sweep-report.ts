@@ -108,7 +108,8 @@ function entryTable(rows: readonly SummaryRow[], keys: readonly string[]): strin
   const columns: [string, (r: SummaryRow) => unknown][] = [["status", status], ["end", end]];
   const same = columns.filter(([, f]) => rows.every((r) => f(r) === f(rows[0]!)));
   const varying = columns.filter((c) => !same.includes(c));
-  const said = same.length ? `<p>Every entry: ${esc(same.map(([name, f]) => `${name} ${String(f(rows[0]!))}`).join("; "))}.</p>\n` : "";
+  const told = same.filter(([, f]) => f(rows[0]!) !== "—");
+  const said = told.length ? `<p>Every entry: ${esc(told.map(([name, f]) => `${name} ${String(f(rows[0]!))}`).join("; "))}.</p>\n` : "";
   return said + table(
     ["entry", ...keys, ...varying.map(([name]) => name), "mass drift", "squeezing at the end [dB]", ...shown.map((c) => c.label)],
     rows.map((r) => [r["entry"], ...keys.map((k) => r[k]), ...varying.map(([, f]) => f(r)), r["mass_drift"], r["final_squeezing_dB"], ...shown.map((c) => clockCell(r, c))]),
@@ -128,7 +129,9 @@ export async function writeSweepReport(sweepDir: string, outFile?: string): Prom
     numeric.every(([, x]) => x === undefined)
       ? "<p>No swept key has numbers of one unit as its values: the clocks are in the table only.</p>"
       : drawn === 0
-        ? "<p>No entry has a clock that rings or is projected to ring.</p>"
+        ? rows.some((r) => typeof r["steps"] === "number")
+          ? "<p>No entry has a clock that rings or is projected to ring.</p>"
+          : "<p>No entry has run yet.</p>"
         : "";
   const body = `<ul class="verdict"><li>${esc(`${rows.length} entries, the ${manifest.combine === "zip" ? "zipped values" : "combinations"} of ${manifest.keys.join(", ")}: ${[...counts].map(([s, n]) => `${n} ${s}`).join(", ")}.`)}</li></ul>
 <h2 id="clocks">Quantum clocks</h2>

@@ -133,6 +133,11 @@ describe("psibox sweep", () => {
     expect(JSON.parse(fs.readFileSync(path.join(entry, "summary.json"), "utf8")).status).toBe("completed");
     expect(fs.existsSync(path.join(work, "output/c", manifest[1], "summary.json"))).toBe(false);
     expect(spawnSync("bash", [script], { cwd: work, encoding: "utf8", env: { ...process.env, SLURM_ARRAY_TASK_ID: "2" } }).stdout).toMatch(/has already completed/);
+    // the report of the sweep while three of its entries wait
+    expect(psibox(["report", "output/c"]).code).toBe(0);
+    const html = fs.readFileSync(path.join(work, "output/c/report.html"), "utf8");
+    expect(html).toContain("4 entries, the combinations of particle.mass, initial.contrast: 3 pending, 1 completed.");
+    expect(html).toContain("<th>status</th>");
   });
 
   const bad: [string, string, RegExp][] = [
