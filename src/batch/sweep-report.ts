@@ -95,25 +95,35 @@ async function clockPlot(rows: readonly SummaryRow[], keys: readonly string[], k
   } as unknown as TopLevelSpec);
 }
 
-/** The entries' table: swept values, status, span, mass drift, final squeezing, then each clock that rings anywhere. */
-function entryTable(rows: readonly SummaryRow[], keys: readonly string[]): string {
+/** A clock's cell: its time as the sidecar words it, "≈ " in front when projected; a dash when it never rings. */
+function clockCell(r: SummaryRow, c: (typeof CLOCKS)[number]): string {
+  const clock = clockOf(r, c);
+  return clock === undefined ? "—" : `${clock.rang ? "" : "≈ "}${formatDuration(clock.seconds)}`;
+}
+
+/**
+ * The entries in two tables that fit the page: each entry's swept values, status and end (where they differ),
+ * mass drift and final squeezing; then the swept values again with each clock that rings for some entry.
+ */
+function entryTables(rows: readonly SummaryRow[], keys: readonly string[]): string {
   const shown = CLOCKS.filter((c) => rows.some((r) => clockOf(r, c) !== undefined));
   const end = (r: SummaryRow): string => (typeof r["end_redshift"] === "number" ? `z = ${formatNumber(r["end_redshift"], 4)}` : typeof r["end_time"] === "number" ? `${formatNumber(r["end_time"], 4)} ${String(r["time_unit"] ?? "")}` : "—");
   const status = (r: SummaryRow): string => (r["reason"] ? `${String(r["status"])}: ${String(r["reason"])}` : String(r["status"]));
-  const clockCell = (r: SummaryRow, c: (typeof CLOCKS)[number]): string => {
-    const clock = clockOf(r, c);
-    return clock === undefined ? "—" : `${clock.rang ? "" : "≈ "}${formatDuration(clock.seconds)}`;
-  };
   // a column that reads the same in every row is said once, above the table
   const columns: [string, (r: SummaryRow) => unknown][] = [["status", status], ["end", end]];
   const same = columns.filter(([, f]) => rows.every((r) => f(r) === f(rows[0]!)));
   const varying = columns.filter((c) => !same.includes(c));
   const told = same.filter(([, f]) => f(rows[0]!) !== "—");
   const said = told.length ? `<p>Every entry: ${esc(told.map(([name, f]) => `${name} ${String(f(rows[0]!))}`).join("; "))}.</p>\n` : "";
-  return said + table(
-    ["entry", ...keys, ...varying.map(([name]) => name), "mass drift", "squeezing at the end [dB]", ...shown.map((c) => c.label)],
-    rows.map((r) => [r["entry"], ...keys.map((k) => r[k]), ...varying.map(([, f]) => f(r)), r["mass_drift"], r["final_squeezing_dB"], ...shown.map((c) => clockCell(r, c))]),
+  const entries = table(
+    ["entry", ...keys, ...varying.map(([name]) => name), "mass drift", "squeezing at the end [dB]"],
+    rows.map((r) => [r["entry"], ...keys.map((k) => r[k]), ...varying.map(([, f]) => f(r)), r["mass_drift"], r["final_squeezing_dB"]]),
   );
+  const clocks = shown.length
+    ? `<h3>Clocks</h3>\n${table([...keys, ...shown.map((c) => c.label)], rows.map((r) => [...keys.map((k) => r[k]), ...shown.map((c) => clockCell(r, c))]))}
+<p class="note">${esc("Counted from each run's start; ≈: projected past the run's end with the last rates; —: never rings, or not measured.")}</p>`
+    : "";
+  return `${said}${entries}\n${clocks}`;
 }
 
 /** Write report.html of the sweep in `sweepDir` (or `outFile`); returns its path. */
@@ -137,8 +147,8 @@ export async function writeSweepReport(sweepDir: string, outFile?: string): Prom
 <h2 id="clocks">Quantum clocks</h2>
 ${noFigure}<div class="figs">${numeric.map(([k], i) => figure(figs[i], caption(k))).join("")}</div>
 <h2 id="entries">Entries</h2>
-${entryTable(rows, manifest.keys)}
-<p class="note">${esc("≈: projected past the run's end with the last rates; —: never rings, or not measured. Each entry's own report: psibox report on its folder. The same numbers for scripts: sweep-summary.csv.")}</p>`;
+${entryTables(rows, manifest.keys)}
+<p class="note">${esc("Each entry's own report: psibox report on its folder. The same numbers for scripts: sweep-summary.csv.")}</p>`;
   const values = manifest.keys.map((k) => `${JSON.stringify(k)} = [${manifest.entries.map((e) => JSON.stringify(e.values[k])).filter((v, i, all) => all.indexOf(v) === i).join(", ")}]`).join("\n");
   const target = outFile ?? path.join(sweepDir, "report.html");
   fs.mkdirSync(path.dirname(target), { recursive: true });

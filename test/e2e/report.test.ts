@@ -12,6 +12,7 @@ import { PNG } from "pngjs";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { findEncoder } from "../../src/report/movie.js";
 import { conservationDrifts, energyRows } from "../../src/report/energy-series.js";
+import { CHROMIUM, launchChromium, openPage, overflowing, pageImages } from "../helpers/page-check.js";
 
 const BIN = path.resolve("dist/cli/bin.js");
 let work: string;
@@ -142,8 +143,7 @@ describe("psibox analyze: every picture type from real runs", () => {
   });
 });
 
-const chromium = ["/usr/bin/chromium", "/usr/bin/chromium-browser"].find((p) => fs.existsSync(p));
-describe.runIf(chromium !== undefined || process.env["CI"] === "true")("psibox report in headless Chromium", () => {
+describe.runIf(CHROMIUM !== undefined || process.env["CI"] === "true")("psibox report in headless Chromium", () => {
   it("loads every image, and no text of the page or of any figure is clipped or overflows (DOM bounding boxes)", async () => {
     const r = psibox(["report", "output/cosmo"]);
     expect(r.code, r.stderr).toBe(0);
@@ -152,37 +152,18 @@ describe.runIf(chromium !== undefined || process.env["CI"] === "true")("psibox r
     expect(html).not.toMatch(/src="(?!data:)/); // every picture is inlined
     const text = html.replace(/data:[^"]+/g, "").replace(/<pre>[^]*<\/pre>/, ""); // pictures and the config as written
     expect(text).not.toMatch(/_Msun|_km_s|e[+-]\d\d|\. \(/); // human headers, formatted numbers, sentences that read
-    const { chromium: browserType } = await import("playwright-core");
-    const browser = await browserType.launch({
-      executablePath: chromium ?? "/usr/bin/chromium",
-      args: ["--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run", "--disable-background-networking", "--disable-component-update", "--disable-sync"],
-    });
+    const browser = await launchChromium();
     try {
-      const page = await browser.newPage({ viewport: { width: 1100, height: 900 } });
-      const errors: string[] = [];
-      page.on("console", (m) => {
-        if (m.type() === "error") errors.push(m.text());
-      });
-      page.on("pageerror", (e) => errors.push(e.message));
-      await page.goto(`file://${file}`);
+      const { page, errors } = await openPage(browser, file);
       for (const id of ["clocks", "breakdown", "energies", "field", "power", "diagnostics", "halos", "parameters"]) expect(await page.locator(`#${id}`).count(), id).toBe(1);
-      const images = (await page.evaluate(`Array.from(document.images).map((e) => ({ ok: e.complete && e.naturalWidth > 0, w: e.naturalWidth }))`)) as { ok: boolean; w: number }[];
+      const images = await pageImages(page);
       expect(images.length).toBeGreaterThanOrEqual(7);
       expect(images.every((i) => i.ok && i.w > 600)).toBe(true);
       // five sidecar clocks (onset, level, phase diffusion frozen and adiabatic, breakdown estimate), then four measured lines
       // (depletion, its time from the rate, scrambling, the finite-time rate)
       expect(await page.locator(".verdict li").count()).toBe(9);
       // text that overflows its box, or boxes that stick out of the page's column
-      const overflow = (await page.evaluate(`(() => {
-        const bad = [];
-        const column = document.body.getBoundingClientRect();
-        for (const e of document.querySelectorAll("h1,h2,h3,p,li,th,td,figcaption,figure,img,.table,table,pre")) {
-          const box = e.getBoundingClientRect();
-          if (e.scrollWidth > e.clientWidth + 1 && e.tagName !== "IMG") bad.push(e.tagName + " overflows: " + e.textContent.slice(0, 40));
-          if (box.right > column.right + 1 || box.left < column.left - 1) bad.push(e.tagName + " sticks out: " + e.textContent.slice(0, 40));
-        }
-        return bad;
-      })()`)) as string[];
+      const overflow = await overflowing(page);
       expect(overflow).toEqual([]);
       await page.screenshot({ path: path.join(work, "report-screenshot.png"), fullPage: true });
       // kept in the project's own (git-ignored) output/ folder for a person to look at

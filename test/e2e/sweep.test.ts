@@ -4,6 +4,7 @@ import fs from "node:fs";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { BIN, makeWork, readJson, removeWork, runPsibox } from "../helpers/cli.js";
+import { CHROMIUM, launchChromium, openPage, overflowing, pageImages } from "../helpers/page-check.js";
 
 let work: string;
 beforeAll(() => {
@@ -196,7 +197,7 @@ describe("psibox sweep", () => {
     expect([analysed.code, analysed.stderr]).toEqual([2, "psibox: ms: a sweep's folder, not a run: give one of its entries, e.g. ms/width=1kpc; the sweep's table is sweep-summary.csv\n"]);
   });
 
-  it("reports a sweep: each entry's clocks as its own clocks.json gives them, and the clocks against each numeric key", async () => {
+  it("reports a sweep: each entry's clocks as its own clocks.json gives them, the clocks against each numeric key, a page that fits (headless Chromium)", async () => {
     fs.writeFileSync(path.join(work, "r.toml"), `${BASE}[sweep]\n[sweep.values]\n"particle.mass" = { from = "1e-22 eV", to = "3e-22 eV", count = 3, scale = "log" }\n"initial.contrast" = [0.1, 0.2]\n`);
     expect(psibox(["sweep", "r.toml", "--workers", "2"]).code).toBe(0);
     const r = psibox(["report", "output/r"]);
@@ -205,12 +206,15 @@ describe("psibox sweep", () => {
     expect(html).toContain("<h1>psibox sweep “r”</h1>");
     expect(html).toContain("6 entries, the combinations of particle.mass, initial.contrast: 6 completed.");
     expect(html).toContain("<p>Every entry: status completed; end 300 Myr.</p>");
-    const entries = readJson<{ entries: { name: string }[] }>(path.join(work, "output/r/sweep.json")).entries.map((e) => e.name);
+    const manifest = readJson<{ entries: { name: string; values: Record<string, string | number> }[] }>(path.join(work, "output/r/sweep.json")).entries;
+    const entries = manifest.map((e) => e.name);
     expect(entries).toContain("mass=1.732e-22eV_contrast=0.2");
     const rows = html.split("<tr>");
     let projected = 0;
-    for (const name of entries) {
-      const row = rows.find((t) => t.startsWith(`<td>${name}</td>`))!;
+    for (const { name, values } of manifest) {
+      // the entries' table names the entry; the clocks' table gives its swept values first
+      expect(rows.some((t) => t.startsWith(`<td>${name}</td>`)), name).toBe(true);
+      const row = rows.find((t) => t.startsWith(`<td>${values["particle.mass"]}</td><td>${values["initial.contrast"]}</td><td>`))!;
       expect(row, name).toBeDefined();
       const clocks = readJson<{ clocks: { time_s: number | null; time: string; reached: boolean }[] }>(path.join(work, "output/r", name, "clocks.json")).clocks;
       for (const c of clocks.filter((x) => x.time_s !== null)) {
@@ -229,6 +233,20 @@ describe("psibox sweep", () => {
       for (let i = 0; i < png.data.length; i += 4) colours.add(((png.data[i]! << 16) | (png.data[i + 1]! << 8) | png.data[i + 2]!).toString(16).padStart(6, "0"));
       // Vega's tableau10 scheme: blue, orange, red for squeezing onset, squeezing level, breakdown (estimate)
       for (const c of ["4c78a8", "f58518", "e45756"]) expect(colours.has(c), c).toBe(true);
+    }
+    // in headless Chromium: the figures load, and no text overflows its box or the page
+    if (CHROMIUM === undefined && process.env["CI"] !== "true") return;
+    const browser = await launchChromium();
+    try {
+      const { page, errors } = await openPage(browser, path.join(work, "output/r/report.html"));
+      for (const id of ["clocks", "entries", "parameters"]) expect(await page.locator(`#${id}`).count(), id).toBe(1);
+      const images = await pageImages(page);
+      expect(images.length).toBe(2);
+      expect(images.every((i) => i.ok && i.w > 600)).toBe(true);
+      expect(await overflowing(page)).toEqual([]);
+      expect(errors).toEqual([]);
+    } finally {
+      await browser.close();
     }
   });
 
