@@ -85,13 +85,15 @@ async function measure(file: string, snap: Snapshot, field: LoadedField, outDir:
   // the vortex scan reads ψ on a thread of its own while this one computes the rest (on a grid the cores pay for)
   const vortexJob = chosen.has("vortices") ? transforms.vortices(field.grid, field.psi, physicalScales(field).kpc) : undefined;
   if (vortexJob) later(vortexJob);
-  // the energy split's transforms give the tables' kinetic split too
-  const both = chosen.has("energy-split") ? energyAndKineticSplit(field.grid, field.psi, field.scaleFactor, fft) : undefined;
-  const split = withPictures && both && !transforms.single ? splitFigures(field, both.split, physicalScales(field), timeCaption(snap)) : undefined;
+  // the energy split's passes give the tables' kinetic split, ψ's moments and ρ̄ too: run even when the split is not
+  // asked for, since they cost less time and memory than the kinetic split alone (128³ tables: 0.4 against 0.5 s,
+  // 215 against 228 MB peak)
+  const both = energyAndKineticSplit(field.grid, field.psi, field.scaleFactor, fft);
+  const split = withPictures && chosen.has("energy-split") && !transforms.single ? splitFigures(field, both.split, physicalScales(field), timeCaption(snap)) : undefined;
   if (split) Object.values(split).forEach(later);
   // the granules from δ's spectrum while P(k) leaves it in work grid 0 (with ψ's moments and ρ̄ from the split)
   let granules: GranuleStats | undefined;
-  const inputs = both ? { moments: both.moments, meanDensity: both.meanDensity } : {};
+  const inputs = { moments: both.moments, meanDensity: both.meanDensity };
   // the granules' transforms are the last passes on the pool's threads: stopped right after them (the rest of the
   // tables runs on this thread), their heaps are given back while the densest points and the halos are measured
   const contrast = chosen.has("granules")
@@ -111,7 +113,7 @@ async function measure(file: string, snap: Snapshot, field: LoadedField, outDir:
   const vortices = vortexJob ? await vortexJob : undefined;
   // its picture is drawn while the granules and the Husimi distribution are measured
   const vortexPicture = withPictures && vortices ? later(vortexFigure(field, vortices.report, physicalScales(field), timeCaption(snap))) : undefined;
-  const diagnostics = fieldDiagnostics(field, chosen, outDir, fft, request.husimiWindowKpc, request.husimiPointsKpc, both?.split, granules, vortices);
+  const diagnostics = fieldDiagnostics(field, chosen, outDir, fft, request.husimiWindowKpc, request.husimiPointsKpc, both.split, granules, vortices);
   return { summary, diagnostics, ...(powerFigure ? { powerFigure } : {}), started: { ...split, ...(vortexPicture ? { vortices: vortexPicture } : {}) } };
 }
 

@@ -90,6 +90,13 @@ describe("psibox analyze: field diagnostics", () => {
     expect(files).toContain("vortices.csv");
     expect(files).not.toContain("granule-pdf.csv");
     expect(files).not.toContain("energy-spectra.csv");
+    // the snapshot's own tables do not depend on the diagnostics chosen: the same bytes with none of them, and the
+    // same summary apart from the diagnostics' keys
+    expect(psibox(["analyze", "output/two", "--diagnostics", "none", "--no-pictures", "--out", "c"]).code).toBe(0);
+    for (const f of ["power.csv", "pdf.csv", "peaks.csv", "profiles.csv", "halos.csv"]) expect(fs.readFileSync(path.join(work, "c/snap_00001", f), "utf8"), f).toBe(fs.readFileSync(path.join(dir, f), "utf8"));
+    const bare = JSON.parse(fs.readFileSync(path.join(work, "c/snap_00001/summary.json"), "utf8"));
+    const { energy_split_Msun_km2_s2: _s, vortices: _v, granules: _g, husimi: _h, ...rest } = summary;
+    expect(bare).toEqual(rest);
   });
 
   it("bad input: one-line errors naming the option and what is valid, exit code 2", async () => {
