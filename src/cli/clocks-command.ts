@@ -156,7 +156,7 @@ export async function clocksCommand(paths: readonly string[], flags: ClocksFlags
   );
   const clockText = formatClocks(clocks, db).replace("(whole-box mode):", `(${tracked ? `track ${flags.track}` : flags.region} mode, from snapshots; times counted from the first snapshot, t₀):`);
   const skipped = tracked && given.length > files.length ? ` (the track exists in ${files.length} of the ${given.length} given)` : "";
-  process.stdout.write(`${files.length} snapshots${skipped}, mode: ${regionName}, N = ${formatNumber(a.particles, 5)}\n${table.join("\n")}\n${clockText}${outflowLine(outflow)}`);
+  process.stdout.write(`${files.length} snapshots${skipped}, mode: ${regionName}, N = ${formatNumber(a.particles, 5)}\n${table.join("\n")}\n${clockText}${outflowLine(outflow, rows.map((r) => r[3] as number))}`);
   process.stdout.write(`wrote ${path.relative(process.cwd(), path.join(outDir, "snapshot-clocks.csv")) || "snapshot-clocks.csv"} and snapshot-clocks.json\n`);
   return 0;
 }
@@ -220,9 +220,12 @@ function writeClockFiles(
 
 const nullIfNaN = (v: number): number | null => (Number.isNaN(v) ? null : v);
 
-/** The screen line of the region's measured outflow, the loss rate to feed back. */
-function outflowLine(outflow: OutflowRates): string {
+/** The screen line of the region's measured outflow, the loss rate to feed back; `particles` is N at each snapshot. */
+function outflowLine(outflow: OutflowRates, particles: readonly number[]): string {
   if (Number.isNaN(outflow.mean)) return "";
+  // a whole box (or a region nothing crosses) keeps its mass to round-off: a rate from it would be noise
+  const change = Math.max(...particles.map((n) => Math.abs(n / particles[0]! - 1)));
+  if (change < 1e-10) return `  N is the same at every snapshot to round-off (|ΔN|/N ≤ ${formatNumber(change)}): no outflow to measure\n`;
   const g = outflow.mean;
   const what = g >= 0 ? "mass outflow" : "mass inflow (a negative loss rate)";
   const hint = g > 0 ? `; as a loss rate: --loss-rate "${g.toPrecision(4)}/s" or sidecar.loss_rate = "${g.toPrecision(4)}/s"` : "";

@@ -70,6 +70,11 @@ describe("mass outflow of a region as a loss rate", () => {
     // the screen says it, with the flag to feed it back; fed back, it is the mode's loss rate
     const hint = /--loss-rate "([^"]+)"/.exec(r.stdout);
     expect(r.stdout).toMatch(/mass outflow of the region, mean over the snapshots: [\d.]+ × 10⁻¹⁷ \/s = [\d.]+ × 10⁻⁹ \/yr/);
+    // the whole periodic box keeps its mass: no rate is read from its round-off
+    const whole = runPsibox(work, ["clocks", "output/spread", "--out", "whole"]);
+    expect(whole.code).toBe(0);
+    expect(whole.stdout).toMatch(/\n {2}N is the same at every snapshot to round-off \(\|ΔN\|\/N ≤ [\d.]+ × 10⁻¹[³⁴⁵⁶]\): no outflow to measure\n/);
+    expect(whole.stdout).not.toMatch(/mass (in|out)flow/);
     const fed = runPsibox(work, [...args, "--loss-rate", hint![1]!, "--json"]);
     expect(fed.code).toBe(0);
     expect(Math.abs(JSON.parse(fed.stdout).loss_rate_per_s / summary.outflow_loss_rate_per_s - 1)).toBeLessThan(1e-3);
