@@ -25,7 +25,7 @@ import { gravityRate } from "../quantum/gravity-rate.js";
 import { readModeState, type ModeState, type ModeStateFlags } from "./mode-state-options.js";
 import { describeStart, numberSpread } from "../quantum/gaussian-start.js";
 import { stationaryAdiabaticChi } from "../quantum/adiabatic.js";
-import { outflowRates, type OutflowRates } from "../quantum/outflow.js";
+import { constantToRoundOff, outflowRates, type OutflowRates } from "../quantum/outflow.js";
 import { YEAR_S } from "../physics/constants.js";
 import { trackedRegions, type TrackedRegions } from "./track-region.js";
 
@@ -223,9 +223,8 @@ const nullIfNaN = (v: number): number | null => (Number.isNaN(v) ? null : v);
 /** The screen line of the region's measured outflow, the loss rate to feed back; `particles` is N at each snapshot. */
 function outflowLine(outflow: OutflowRates, particles: readonly number[]): string {
   if (Number.isNaN(outflow.mean)) return "";
-  // a whole box (or a region nothing crosses) keeps its mass to round-off: a rate from it would be noise
-  const change = Math.max(...particles.map((n) => Math.abs(n / particles[0]! - 1)));
-  if (change < 1e-10) return `  N is the same at every snapshot to round-off (|ΔN|/N ≤ ${formatNumber(change)}): no outflow to measure\n`;
+  const change = constantToRoundOff(particles);
+  if (change !== undefined) return `  N is the same at every snapshot to round-off (|ΔN|/N ≤ ${formatNumber(change)}): no outflow to measure\n`;
   const g = outflow.mean;
   const what = g >= 0 ? "mass outflow" : "mass inflow (a negative loss rate)";
   const hint = g > 0 ? `; as a loss rate: --loss-rate "${g.toPrecision(4)}/s" or sidecar.loss_rate = "${g.toPrecision(4)}/s"` : "";

@@ -15,6 +15,7 @@ import { recordOwned } from "../simulation/run-manifest.js";
 import { fileName } from "../core/sanitize.js";
 import { runPaths } from "../simulation/outputs.js";
 import { TextReporter } from "./progress.js";
+import { constantToRoundOff } from "../quantum/outflow.js";
 import { describeRun } from "./describe.js";
 import type { ClockReport, outflowRecord, twinRecord } from "../quantum/sidecar-report.js";
 
@@ -196,6 +197,8 @@ type OutflowSummary = ReturnType<typeof outflowRecord>;
 export function formatOutflow(o: OutflowSummary): string {
   if (o.loss_rate_per_s === null) return `  mass outflow of the ${o.region} region: too few time-series rows to measure\n`;
   const g = o.loss_rate_per_s;
+  const change = o.particles_first_N !== null && o.particles_last_N !== null ? constantToRoundOff([o.particles_first_N, o.particles_last_N]) : undefined;
+  if (change !== undefined) return `  N of the ${o.region} region is the same at the end as at the start to round-off (|ΔN|/N = ${formatNumber(change)}): no outflow to measure\n`;
   const what = g >= 0 ? "mass outflow" : "mass inflow (a negative loss rate)";
   const hint = g > 0 ? `; as a loss rate: sidecar.loss_rate = "${g.toPrecision(4)}/s"` : "";
   return `  ${what} of the ${o.region} region over the run: ${formatQuantity(g, "/s")} = ${formatQuantity(o.loss_rate_per_yr as number, "/yr")}${hint}\n`;

@@ -21,6 +21,16 @@ export interface OutflowRates {
   readonly lossIntegral: number;
 }
 
+/**
+ * The largest relative change of N from its first value when it stays below 1e-10 (a whole box keeps its mass
+ * to round-off, about 1e-14 over a run, as does a region nothing crosses): there is no outflow to read a rate
+ * from. Undefined when N changes more.
+ */
+export function constantToRoundOff(particles: readonly number[]): number | undefined {
+  const change = Math.max(...particles.map((n) => Math.abs(n / (particles[0] as number) - 1)));
+  return change < 1e-10 ? change : undefined;
+}
+
 /** Loss rates −Δ ln N/Δt from samples (times increasing, N > 0), in the inverse of the times' unit. */
 export function outflowRates(times: readonly number[], particles: readonly number[]): OutflowRates {
   if (times.length !== particles.length) throw new RangeError("outflowRates: as many times as particle counts are needed");

@@ -4,6 +4,7 @@
  * through psibox's formatter.
  */
 import { formatNumber } from "../core/format.js";
+import { constantToRoundOff } from "../quantum/outflow.js";
 import type { Figure } from "./render.js";
 import { PNG_SCALE } from "./render.js";
 import { writeFileAtomic } from "../io/atomic.js";
@@ -79,6 +80,8 @@ export function modeSentence(c: { particles_N: number; start?: { description: st
 /** The measured mass outflow of the sidecar's region in a sentence (clocks.json's outflow). */
 export function outflowSentence(o: { region: string; particles_first_N: number | null; particles_last_N: number | null; loss_rate_per_s: number | null; loss_rate_per_yr: number | null }): string {
   if (o.loss_rate_per_s === null) return `The ${o.region} region's mass outflow was measured, but the run had too few time-series rows for a rate.`;
+  const change = o.particles_first_N !== null && o.particles_last_N !== null ? constantToRoundOff([o.particles_first_N, o.particles_last_N]) : undefined;
+  if (change !== undefined) return `The ${o.region} region held ${formatNumber(o.particles_first_N!)} particles at the first time-series row and the same at the last to round-off (|ΔN|/N = ${formatNumber(change)}): no matter crossed its boundary to measure.`;
   const flow = o.loss_rate_per_s >= 0 ? "lost" : "gained";
   return (
     `The ${o.region} region held ${formatNumber(o.particles_first_N ?? Number.NaN)} particles at the first time-series row and ${formatNumber(o.particles_last_N ?? Number.NaN)} at the last: it ${flow} matter at a mean ` +

@@ -98,4 +98,18 @@ describe("mass outflow of a region as a loss rate", () => {
     const box = runPsibox(work, ["clocks", "output/spread", "--out", "box", "--json"]);
     expect(Math.abs(JSON.parse(box.stdout).outflow_loss_rate_per_s)).toBeLessThan(1e-12 / t1);
   });
+
+  it("a region nothing crosses (a cube as large as the box): its N constant to round-off, said so instead of a rate, on screen and in the report's sentence", () => {
+    writeIn(
+      work,
+      "whole.toml",
+      `[grid]\ncells = 64\nbox = "20 kpc"\ngravity = "none"\n[particle]\nmass = "1e-22 eV"\n[span]\nduration = "10 Myr"\n` +
+        `[initial]\nkind = "gaussian-packet"\nmass = "1e8 Msun"\nwidth = "1 kpc"\n[sidecar]\noutflow_region = "cube"\noutflow_center = ["10 kpc"]\noutflow_radius = "10 kpc"\n`,
+    );
+    const run = runPsibox(work, ["run", "whole.toml"]);
+    expect(run.code, run.stderr).toBe(0);
+    expect(run.stdout).toMatch(/\n {2}N of the cube region is the same at the end as at the start to round-off \(\|ΔN\|\/N = [^)]+\): no outflow to measure\n/);
+    const inline = readJson<{ outflow: Parameters<typeof outflowSentence>[0] }>(path.join(work, "output/whole/clocks.json")).outflow;
+    expect(outflowSentence(inline)).toMatch(/^The cube region held [\d.]+ × 10⁹⁶ particles at the first time-series row and the same at the last to round-off \(\|ΔN\|\/N = [^)]+\): no matter crossed its boundary to measure\.$/);
+  });
 });
