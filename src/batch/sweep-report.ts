@@ -137,7 +137,7 @@ export async function writeSweepReport(sweepDir: string, outFile?: string): Prom
   const caption = (k: string) => `Each clock of the whole-box condensate mode against ${k}, counted from each run's start.`;
   const noFigure =
     numeric.every(([, x]) => x === undefined)
-      ? "<p>No swept key has numbers of one unit as its values: the clocks are in the table only.</p>"
+      ? "<p>No swept key takes two or more numbers of one unit: the clocks are in the table only.</p>"
       : drawn === 0
         ? rows.some((r) => typeof r["steps"] === "number")
           ? "<p>No entry has a clock that rings or is projected to ring.</p>"
