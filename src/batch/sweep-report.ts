@@ -58,9 +58,12 @@ function numericKey(values: readonly unknown[]): { values: number[]; unit: strin
   return { values: parsed.map((p) => p!.value), unit };
 }
 
-/** The clocks of every entry against one swept key (entries whose clocks never ring are left out). */
-async function clockPlot(rows: readonly SummaryRow[], keys: readonly string[], key: string, x: { values: number[]; unit: string }): Promise<Figure | undefined> {
-  const others = keys.filter((k) => k !== key);
+/**
+ * The clocks of every entry against one swept key (entries whose clocks never ring are left out). A line joins
+ * the entries that share the other keys' values; in a zipped sweep, where the keys change together, all of them.
+ */
+export async function clockPlot(rows: readonly SummaryRow[], keys: readonly string[], zipped: boolean, key: string, x: { values: number[]; unit: string }): Promise<Figure | undefined> {
+  const others = zipped ? [] : keys.filter((k) => k !== key);
   const points: Row[] = [];
   const late = new Set<string>();
   rows.forEach((r, i) => {
@@ -81,7 +84,7 @@ async function clockPlot(rows: readonly SummaryRow[], keys: readonly string[], k
   const xEnc = { field: "x", type: "quantitative", title: `${key}${x.unit ? ` [${x.unit}]` : ""}`, scale: xa ? { type: "log", domain: xa.domain, nice: false } : { zero: false }, ...(xa ? { axis: { values: xa.values } } : {}) };
   const yEnc = { field: "t", type: "quantitative", title: "time from the start [yr]", scale: { type: "log", domain: ya.domain, nice: false }, axis: { values: ya.values } };
   const colour = { field: "clock", type: "nominal", title: null, scale: { domain: labels, scheme: "tableau10" }, legend: { orient: "right", symbolType: "stroke", symbolStrokeWidth: 2 } };
-  const joined = others.length ? `a line joins the entries of equal ${others.join(", ")}` : "a line joins the entries";
+  const joined = others.length ? `a line joins the entries of equal ${others.join(", ")}` : zipped && keys.length > 1 ? `a line joins the entries (${keys.join(", ")} zipped)` : "a line joins the entries";
   return renderVegaLite({
     $schema: SCHEMA,
     title: { text: `Quantum clocks against ${key}`, subtitle: [`filled: rang within the run; open: projected past its end;`, joined, ...lateNote] },
@@ -132,7 +135,7 @@ export async function writeSweepReport(sweepDir: string, outFile?: string): Prom
   const counts = new Map<string, number>();
   for (const r of rows) counts.set(String(r["status"]), (counts.get(String(r["status"])) ?? 0) + 1);
   const numeric = manifest.keys.map((k) => [k, numericKey(manifest.entries.map((e) => e.values[k]))] as const);
-  const figs = await Promise.all(numeric.map(([k, x]) => (x ? clockPlot(rows, manifest.keys, k, x) : Promise.resolve(undefined))));
+  const figs = await Promise.all(numeric.map(([k, x]) => (x ? clockPlot(rows, manifest.keys, manifest.combine === "zip", k, x) : Promise.resolve(undefined))));
   const drawn = figs.filter((f) => f !== undefined).length;
   const caption = (k: string) => `Each clock of the whole-box condensate mode against ${k}, counted from each run's start.`;
   const noFigure =

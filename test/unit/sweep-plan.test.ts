@@ -4,7 +4,7 @@ import { describe, expect, it } from "vitest";
 import { parse } from "smol-toml";
 import { planSweep } from "../../src/batch/plan.js";
 import { checkConfig } from "../../src/config/load.js";
-import { sweptNumber } from "../../src/batch/sweep-report.js";
+import { clockPlot, sweptNumber } from "../../src/batch/sweep-report.js";
 import { FREE_PACKET_1D } from "../helpers/configs.js";
 
 const BASE = FREE_PACKET_1D;
@@ -45,5 +45,19 @@ describe("sweep entries", () => {
     expect(sweptNumber(".5kpc")).toEqual({ value: 0.5, unit: "kpc" });
     expect(sweptNumber(0.1)).toEqual({ value: 0.1, unit: "" });
     for (const v of ["bbks", true, ["6 kpc"], Number.NaN, "kpc 3"]) expect(sweptNumber(v)).toBeUndefined();
+  });
+
+  it("are joined in the report's figures by the other keys' values, or all of them in a zipped sweep", async () => {
+    // two keys, two entries; the clock times are placeholders for the layout (no physics is checked here)
+    const row = (mass: string, contrast: number, t: number) => ({ entry: `${mass}_${contrast}`, "particle.mass": mass, "initial.contrast": contrast, "squeezing-onset_s": t, "squeezing-onset_reached": true });
+    const rows = [row("1e-22 eV", 0.1, 3e15), row("2e-22 eV", 0.2, 2e15)];
+    const x = { values: [1e-22, 2e-22], unit: "eV" };
+    const product = await clockPlot(rows, ["particle.mass", "initial.contrast"], false, "particle.mass", x);
+    const zipped = await clockPlot(rows, ["particle.mass", "initial.contrast"], true, "particle.mass", x);
+    expect(product!.svg).toContain("a line joins the entries of equal initial.contrast");
+    expect(zipped!.svg).toContain("a line joins the entries (particle.mass, initial.contrast zipped)");
+    // one line through both entries when zipped, a lone point each otherwise
+    const lines = (svg: string) => (svg.match(/aria-roledescription="line mark" d="M[^"]*L/g) ?? []).length;
+    expect([lines(product!.svg), lines(zipped!.svg)]).toEqual([0, 1]);
   });
 });
