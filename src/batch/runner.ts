@@ -14,6 +14,7 @@ import { writeFileAtomic } from "../io/atomic.js";
 import { escapeControls } from "../core/sanitize.js";
 import type { SweepPlan } from "./plan.js";
 import { entryStatus, writeSummary, type SweepManifest } from "./summary.js";
+import { EntryProgress } from "./entry-progress.js";
 
 /** How a sweep reports progress. */
 export interface SweepReporter {
@@ -73,13 +74,14 @@ export async function runSweep(plan: SweepPlan, bin: string, workers: number, re
     }
     fs.rmSync(path.join(dir, "sweep-status.json"), { force: true });
     const resume = fs.existsSync(path.join(dir, "checkpoint.h5"));
-    const args = resume ? [bin, "run", "--resume", dir, "-q"] : [bin, "run", path.join(dir, "entry.toml"), "-q", "--force"];
+    // not quiet: the run's progress and warnings come through its stderr (EntryProgress)
+    const args = resume ? [bin, "run", "--resume", dir] : [bin, "run", path.join(dir, "entry.toml"), "--force"];
     const started = Date.now();
     const child = spawn(process.execPath, args, { stdio: ["ignore", "ignore", "pipe"], env: { ...process.env, PSIBOX_PARENT_PID: String(process.pid), PSIBOX_THREADS: process.env["PSIBOX_THREADS"] ?? "1" } });
     fs.writeFileSync(path.join(dir, ".running"), String(child.pid ?? 0));
-    let stderr = "";
+    const progress = new EntryProgress(entry.name, started / 1000);
     child.stderr.on("data", (d: Buffer) => {
-      stderr += d.toString();
+      for (const line of progress.take(d.toString(), Date.now() / 1000)) reporter.line(line);
     });
     const code: number = await new Promise((resolve) => child.on("close", (c) => resolve(c ?? 1)));
     fs.rmSync(path.join(dir, ".running"), { force: true });
@@ -92,7 +94,7 @@ export async function runSweep(plan: SweepPlan, bin: string, workers: number, re
       return;
     }
     failed++;
-    const reason = after.reason ?? (stderr.trim().split("\n").at(-1) ?? "").replace(/^psibox: /, "") ?? `exit code ${code}`;
+    const reason = after.reason ?? progress.reason ?? `exit code ${code}`;
     writeFileAtomic(path.join(dir, "sweep-status.json"), JSON.stringify({ status: code === 130 ? "interrupted" : "failed", reason, exit_code: code }, null, 2) + "\n");
     reporter.line(`[${done}/${total}] ${entry.name}: ${code === 130 ? "interrupted" : "failed"}: ${reason}`);
   };

@@ -49,7 +49,7 @@ export async function sweepCommand(configFile: string | undefined, flags: SweepF
   }
   const workers = flags.workers === undefined ? os.availableParallelism() : Number(flags.workers);
   if (!(Number.isInteger(workers) && workers >= 1)) throw new InputError(`--workers: must be a whole number ≥ 1, got ${flags.workers}`);
-  process.stderr.write(`psibox sweep "${escapeControls(plan.name)}": ${plan.entries.length} entries (${plan.combine} of ${plan.keys.join(", ")}), ${workers} workers, in ${where}\n`);
+  process.stderr.write(`psibox sweep "${escapeControls(plan.name)}": ${plan.entries.length} entr${plan.entries.length === 1 ? "y" : "ies"} (${plan.combine} of ${plan.keys.join(", ")}), ${workers} worker${workers === 1 ? "" : "s"}, in ${where}\n`);
   const result = await runSweep(plan, binPath(), workers, { line: (t) => process.stderr.write(`  ${t}\n`) });
   process.stdout.write(
     `sweep done: ${result.completed} completed, ${result.skipped} already done, ${result.failed} failed; summary in ${where}/sweep-summary.csv\n`,
