@@ -66,6 +66,6 @@ export function comparisonHeadline(summary: Record<string, unknown>): string[] {
   const m = c.meanfield_clocks;
   return [
     `  depletion reaches ${formatNumber(100 * d.fraction)}% of N: ensemble ${when(d["ensemble"]!)}, tangent-linear ${when(d["tangent_linear"]!)}`,
-    `  mean field |<b>|²/N falls to 1/e: ensemble ${when(m["ensemble"]!)}, Kerr mode ${when(m["kerr"]!)}, adiabatic Kerr mode ${when(m["kerr_adiabatic"]!)}`,
+    `  mean field |⟨b⟩|²/N falls to 1/e: ensemble ${when(m["ensemble"]!)}, Kerr mode ${when(m["kerr"]!)}, adiabatic Kerr mode ${when(m["kerr_adiabatic"]!)}`,
   ];
 }

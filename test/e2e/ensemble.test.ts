@@ -30,7 +30,7 @@ describe("psibox ensemble", () => {
     expect(Math.abs(Number(rows[0]!["particles_N"]) - 100)).toBeLessThan(5 * Number(rows[0]!["particles_N_err"]));
     expect(fs.readdirSync(path.join(dir, "members"))).toHaveLength(4);
     // the comparison with the classical companion's predictions, and the occupation of each ±k pair (k = 0 … 8 per time)
-    expect(r.stdout).toMatch(/\n  depletion reaches 10% of N: ensemble .*, tangent-linear .*\n  mean field \|<b>\|²\/N falls to 1\/e: ensemble .*, Kerr mode .*, adiabatic Kerr mode .*\n$/);
+    expect(r.stdout).toMatch(/\n  depletion reaches 10% of N: ensemble .*, tangent-linear .*\n  mean field \|⟨b⟩\|²\/N falls to 1\/e: ensemble .*, Kerr mode .*, adiabatic Kerr mode .*\n$/);
     const comparison = readCsv(path.join(dir, "comparison.csv"));
     expect(Object.keys(comparison[0]!)).toEqual([...COMPARISON_COLUMNS]);
     expect(Number(comparison[2]!["depletion_tangent"])).toBeGreaterThan(0);
