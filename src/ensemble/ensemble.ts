@@ -180,7 +180,8 @@ export async function runEnsemble(run: ResolvedRun, options: EnsembleOptions): P
       reporter.progress(finished / Math.max(1, total), `${done.size} of ${settings.members} members`);
     },
     progress: (running) => {
-      const partial = [...running.values()].reduce((s, f) => s + f, 0);
+      // a member at the end of its span is not done until it is saved: 100% waits for the last one's
+      const partial = [...running.values()].reduce((s, f) => s + Math.min(f, 0.999), 0);
       reporter.progress((finished + partial) / Math.max(1, total), `${done.size} of ${settings.members} members, ${running.size} running`);
     },
     ...(options.stopRequested ? { stopRequested: options.stopRequested } : {}),

@@ -23,6 +23,8 @@ describe("psibox ensemble", () => {
     expect(r.stderr).toMatch(/warning: N = 100 particles is not well above the grid's 16 modes/);
     expect(r.code).toBe(0);
     expect(r.stdout).toMatch(/^completed 4 members \(N = 100\); outputs in output\/small\/ensemble\n/);
+    // the progress reaches 100% when the last member is saved, not while it is still running
+    expect(r.stderr).toMatch(/\n {2}100% 4 of 4 members\n/);
     const dir = path.join(work, "output", "small", "ensemble");
     const rows = readCsv(path.join(dir, "series.csv"));
     expect(Object.keys(rows[0]!)).toEqual([...SERIES_COLUMNS]);
