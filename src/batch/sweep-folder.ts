@@ -14,6 +14,7 @@ import { InputError } from "../core/errors.js";
 import { fileName } from "../core/sanitize.js";
 import { MANIFEST_NAME, deleteOwned } from "../simulation/run-manifest.js";
 import type { SweepPlan } from "./plan.js";
+import { entryStatus } from "./summary.js";
 
 /** Files whose presence says a folder holds (part of) a run. */
 const RUN_MARKS = ["summary.json", "timeseries.csv", "checkpoint.h5", "config.toml"];
@@ -62,7 +63,8 @@ export function prepareSweepFolder(plan: SweepPlan, force: boolean): string[] {
   for (const e of plan.entries) {
     const dir = path.join(plan.dir, e.name);
     const earlier = earlierEntry(dir);
-    if (!earlier || !(holdsRun(dir) || fs.existsSync(path.join(dir, "sweep-status.json")))) continue;
+    // what a sweep keeps of an entry: a completed run (skipped) or a checkpoint (resumed); the rest runs afresh anyway
+    if (!earlier || !(entryStatus(dir).status === "completed" || fs.existsSync(path.join(dir, "checkpoint.h5")))) continue;
     // the new config as its entry.toml will read back (TOML's own types)
     const changed = firstDifference(earlier, parse(stringify(e.config)));
     if (changed === undefined) continue;

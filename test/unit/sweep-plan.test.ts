@@ -1,8 +1,12 @@
 // The sweep's entries as planned from a config (no runs): their folder names and values, and the config errors of
 // the [sweep] section. The values of a log range are its ends times powers of their ratio (computed independently).
 import { describe, expect, it } from "vitest";
-import { parse } from "smol-toml";
+import fs from "node:fs";
+import os from "node:os";
+import path from "node:path";
+import { parse, stringify } from "smol-toml";
 import { planSweep } from "../../src/batch/plan.js";
+import { prepareSweepFolder } from "../../src/batch/sweep-folder.js";
 import { checkConfig } from "../../src/config/load.js";
 import { clockPlot, sweptNumber } from "../../src/batch/sweep-report.js";
 import { FREE_PACKET_1D } from "../helpers/configs.js";
@@ -59,5 +63,28 @@ describe("sweep entries", () => {
     // one line through both entries when zipped, a lone point each otherwise
     const lines = (svg: string) => (svg.match(/aria-roledescription="line mark" d="M[^"]*L/g) ?? []).length;
     expect([lines(product!.svg), lines(zipped!.svg)]).toEqual([0, 1]);
+  });
+
+  it("are refused when a kept result (a completed run or a checkpoint) came from another config, and not for a failure that runs afresh", () => {
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), "psibox-sweep-folder-"));
+    try {
+      const at = (duration: string) => planSweep(parse(`${BASE.replace('"10 Myr"', duration)}[output]\ndir = "s"\n[sweep]\n[sweep.values]\n"initial.width" = ["1 kpc"]\n`) as Record<string, unknown>, "s", dir);
+      const before = at('"10 Myr"');
+      const entry = path.join(dir, "s", before.entries[0]!.name);
+      fs.mkdirSync(entry, { recursive: true });
+      fs.writeFileSync(path.join(entry, "entry.toml"), stringify(before.entries[0]!.config));
+      // failed before its first checkpoint: it would run again from the start, so no --force is needed
+      fs.writeFileSync(path.join(entry, "sweep-status.json"), JSON.stringify({ status: "failed", reason: "x" }));
+      expect(prepareSweepFolder(at('"20 Myr"'), false)).toEqual([]);
+      // completed: it would be skipped, so the change is refused, or the entry cleared with force
+      fs.writeFileSync(path.join(entry, "summary.json"), JSON.stringify({ status: "completed" }));
+      fs.writeFileSync(path.join(entry, "psibox-files.txt"), "summary.json\n");
+      expect(() => prepareSweepFolder(at('"20 Myr"'), false)).toThrow(/^sweep entry width=1kpc in .* was run with another config \(span\.duration differs\); pass --force/);
+      expect(prepareSweepFolder(at('"10 Myr"'), false)).toEqual([]);
+      expect(prepareSweepFolder(at('"20 Myr"'), true)).toEqual(["--force: entry width=1kpc starts afresh (span.duration changed)"]);
+      expect(fs.readdirSync(entry).sort()).toEqual(["entry.toml"]);
+    } finally {
+      fs.rmSync(dir, { recursive: true, force: true });
+    }
   });
 });
