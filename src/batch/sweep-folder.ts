@@ -1,9 +1,9 @@
 /**
  * A sweep folder made ready for a sweep (run locally or emitted for Slurm):
- * never a run's own folder, and never with entries whose earlier runs used
- * another config. Without that check a changed base config or `--set` would
- * leave the old results standing as the new ones (completed entries are
- * skipped, interrupted ones resumed from checkpoints of the old config).
+ * never a run's own folder, and never with entries whose kept results came
+ * from another config. Without that check a changed base config or `--set`
+ * would leave the old results standing as the new ones (completed entries
+ * are skipped, interrupted ones resumed from checkpoints of the old config).
  * With `force`, such entries' run files are removed so that they start
  * afresh.
  */
@@ -33,7 +33,7 @@ function earlierEntry(dir: string): Toml | undefined {
 }
 
 /** The first dotted key at which two parsed configs differ (output.dir aside: it is the folder itself), or undefined. */
-export function firstDifference(a: unknown, b: unknown, at = ""): string | undefined {
+function firstDifference(a: unknown, b: unknown, at = ""): string | undefined {
   if (at === "output.dir") return undefined;
   const isTable = (v: unknown): v is Toml => typeof v === "object" && v !== null && !Array.isArray(v);
   if (isTable(a) && isTable(b)) {
