@@ -125,7 +125,11 @@ if [ "$COMPLETED" -ne 4 ]; then
   cat output/scan/logs/* || true
   exit 1
 fi
-echo "slurm-check: passed, 4 of 4 entries completed through Slurm"
+# each task's log shows its run's progress (a line at every tenth of the span)
+for t in 0 1 2 3; do
+  grep -q "100% step" "output/scan/logs/task-$t.err" || { echo "slurm-check: FAILED, task $t's log shows no progress"; cat output/scan/logs/* || true; exit 1; }
+done
+echo "slurm-check: passed, 4 of 4 entries completed through Slurm, each task's log with its progress"
 
 # a tiny truncated-Wigner ensemble: 6 members in a 2-task array, then its collect job (reduction)
 cat > wigner.toml <<'CFG'

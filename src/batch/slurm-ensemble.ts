@@ -31,9 +31,9 @@ export interface EnsembleArray {
   readonly cluster: ClusterResources;
 }
 
-/** The command every task and the collect job run: psibox ensemble on the folder's config. */
+/** The command every task and the collect job run: psibox ensemble on the folder's config (its progress in the task's log). */
 function command(extra: string): string {
-  return `exec "$NODE" "$PSIBOX" ensemble "$ENSEMBLE_DIR/slurm/$CONFIG" ${extra}-q\n`;
+  return `exec "$NODE" "$PSIBOX" ensemble "$ENSEMBLE_DIR/slurm/$CONFIG" ${extra.trimEnd()}\n`;
 }
 
 /** Write slurm/ensemble.sbatch, slurm/collect.sbatch and the tasks' config into the ensemble folder; returns the scripts' paths. */

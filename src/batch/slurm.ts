@@ -46,10 +46,11 @@ if grep -q '"status": "completed"' "$DIR/summary.json" 2>/dev/null; then
   echo "entry \${ENTRIES[$TASK]} has already completed"
   exit 0
 fi
+# not quiet: the task's log shows the run's progress (a line at every tenth of its span) and its warnings
 if [ -f "$DIR/checkpoint.h5" ]; then
-  exec "$NODE" "$PSIBOX" run --resume "$DIR" -q
+  exec "$NODE" "$PSIBOX" run --resume "$DIR"
 fi
-exec "$NODE" "$PSIBOX" run "$DIR/entry.toml" -q --force
+exec "$NODE" "$PSIBOX" run "$DIR/entry.toml" --force
 `;
   const collect =
     header(`${name}-collect`, c, plain ? [`#SBATCH --output=${logs}/collect.out`] : []) +

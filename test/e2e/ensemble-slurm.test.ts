@@ -32,7 +32,10 @@ describe("psibox ensemble --emit slurm", () => {
     const [script, collect] = ["ensemble.sbatch", "collect.sbatch"].map((f) => path.join(dir, "slurm", f)) as [string, string];
     for (const s of [script, collect]) expect(spawnSync("bash", ["-n", s]).status).toBe(0);
     expect(fs.readFileSync(script, "utf8")).toMatch(/^#SBATCH --array=0-1%2$/m);
-    expect(bash(script, { SLURM_ARRAY_TASK_ID: "0" }).status).toBe(0);
+    const task0 = bash(script, { SLURM_ARRAY_TASK_ID: "0" });
+    expect(task0.status).toBe(0);
+    // the task's log (its stderr) shows its progress
+    expect(task0.stderr).toMatch(/\n {2}100% 3 of 5 members\n/);
     expect(fs.readdirSync(path.join(dir, "members")).sort()).toEqual(["m000000.f64", "m000002.f64", "m000004.f64"]);
     const early = bash(collect);
     expect(early.status).toBe(3);

@@ -130,6 +130,8 @@ describe("psibox sweep", () => {
     // run task 2 by hand, as Slurm would
     const task = spawnSync("bash", [script], { cwd: work, encoding: "utf8", env: { ...process.env, SLURM_ARRAY_TASK_ID: "2" } });
     expect(task.status, task.stderr).toBe(0);
+    // the task's log (its stderr) shows the run's progress
+    expect(task.stderr).toMatch(/\n {2}100% step \d+, t = 20 Myr/);
     const entry = path.join(work, "output/c", manifest[2]);
     expect(JSON.parse(fs.readFileSync(path.join(entry, "summary.json"), "utf8")).status).toBe("completed");
     expect(fs.existsSync(path.join(work, "output/c", manifest[1], "summary.json"))).toBe(false);
