@@ -9,6 +9,7 @@ import path from "node:path";
 import { InputError } from "../core/errors.js";
 import { writeFileAtomic } from "../io/atomic.js";
 import { tidy } from "../core/format.js";
+import { lockHolder } from "../simulation/run-lock.js";
 
 /** The manifest a sweep writes (sweep.json). */
 export interface SweepManifest {
@@ -17,6 +18,9 @@ export interface SweepManifest {
   readonly combine: string;
   readonly entries: readonly { readonly name: string; readonly values: Record<string, unknown> }[];
 }
+
+/** "1 entry", "6 entries". */
+export const entriesText = (n: number): string => `${n} entr${n === 1 ? "y" : "ies"}`;
 
 /** One row of the summary. */
 export type SummaryRow = Record<string, string | number | boolean | null>;
@@ -81,6 +85,9 @@ export function entryStatus(dir: string): { status: string; reason: string | nul
   const summary = readJson(path.join(dir, "summary.json"));
   const failure = readJson(path.join(dir, "sweep-status.json"));
   if (summary?.["status"] === "completed") return { status: "completed", reason: null };
+  // a run holding the folder now (a sweep's worker, a Slurm task): its files are not yet its result
+  const holder = lockHolder(dir);
+  if (holder) return { status: "running", reason: `psibox process ${holder.pid} on ${holder.host} since ${holder.since}` };
   if (failure) return { status: String(failure["status"]), reason: (failure["reason"] as string | undefined) ?? null };
   if (summary) return { status: "stopped", reason: (summary["reason"] as string | undefined) ?? null };
   if (fs.existsSync(path.join(dir, "checkpoint.h5"))) return { status: "interrupted", reason: "no summary yet; resumable from its checkpoint" };

@@ -17,7 +17,7 @@ import { YEAR_S } from "../physics/constants.js";
 import { SCHEMA, PANEL, logAxis, type Row } from "../report/plots.js";
 import { renderVegaLite, type Figure } from "../report/render.js";
 import { esc, figure, table, writePage } from "../report/report-parts.js";
-import { buildSummary, type SummaryRow } from "./summary.js";
+import { buildSummary, entriesText, type SummaryRow } from "./summary.js";
 
 /** The clocks of a summary row: its column stem, how it says it rang, and its label. */
 const CLOCKS: readonly { stem: string; measured: boolean; label: string }[] = [
@@ -146,7 +146,7 @@ export async function writeSweepReport(sweepDir: string, outFile?: string): Prom
           ? "<p>No entry has a clock that rings or is projected to ring.</p>"
           : "<p>No entry has run yet.</p>"
         : "";
-  const body = `<ul class="verdict"><li>${esc(`${rows.length} entries, the ${manifest.combine === "zip" ? "zipped values" : "combinations"} of ${manifest.keys.join(", ")}: ${[...counts].map(([s, n]) => `${n} ${s}`).join(", ")}.`)}</li></ul>
+  const body = `<ul class="verdict"><li>${esc(`${entriesText(rows.length)}, the ${manifest.combine === "zip" ? "zipped values" : "combinations"} of ${manifest.keys.join(", ")}: ${[...counts].map(([s, n]) => `${n} ${s}`).join(", ")}.`)}</li></ul>
 <h2 id="clocks">Quantum clocks</h2>
 ${noFigure}<div class="figs">${numeric.map(([k], i) => figure(figs[i], caption(k))).join("")}</div>
 <h2 id="entries">Entries</h2>

@@ -70,7 +70,7 @@ export async function emitCommand(run: ResolvedRun, flags: { force: boolean; qui
     const files = emitEnsembleSlurm({ name: run.name, dir, configText: resolvedConfigToml(run), members: settings.members, tasks: count, cluster }, binPath());
     const rel = (p: string): string => path.relative(process.cwd(), p);
     process.stdout.write(
-      `wrote a Slurm array of ${count} tasks for ${settings.members} members${kept > 0 ? ` (${kept} kept)` : ""}: ${escapeControls(rel(files.script))}\n` +
+      `wrote a Slurm array of ${count} task${count === 1 ? "" : "s"} for ${settings.members} members${kept > 0 ? ` (${kept} kept)` : ""}: ${escapeControls(rel(files.script))}\n` +
         `submit:  jobid=$(sbatch --parsable ${shellWord(rel(files.script))}) && sbatch --dependency=afterany:$jobid ${shellWord(rel(files.collect))}\n`,
     );
     return 0;

@@ -8,7 +8,7 @@ import { applyOverrides, readTomlFile } from "../config/load.js";
 import { planSweep } from "../batch/plan.js";
 import { runSweep } from "../batch/runner.js";
 import { emitSlurm } from "../batch/slurm.js";
-import { writeSummary } from "../batch/summary.js";
+import { entriesText, writeSummary } from "../batch/summary.js";
 import { prepareSweepFolder } from "../batch/sweep-folder.js";
 
 export interface SweepFlags {
@@ -30,7 +30,7 @@ export async function sweepCommand(configFile: string | undefined, flags: SweepF
     if (configFile !== undefined) throw new InputError("give either a config file or --summary DIR, not both");
     const rows = writeSummary(path.resolve(flags.summary));
     const counts = rows.reduce<Record<string, number>>((acc, r) => ({ ...acc, [String(r["status"])]: (acc[String(r["status"])] ?? 0) + 1 }), {});
-    process.stdout.write(`${rows.length} entries (${Object.entries(counts).map(([k, v]) => `${v} ${k}`).join(", ")}); wrote sweep-summary.csv and sweep-summary.json in ${flags.summary}\n`);
+    process.stdout.write(`${entriesText(rows.length)} (${Object.entries(counts).map(([k, v]) => `${v} ${k}`).join(", ")}); wrote sweep-summary.csv and sweep-summary.json in ${flags.summary}\n`);
     return 0;
   }
   if (configFile === undefined) throw new InputError("give a sweep config (psibox sweep CONFIG) or --summary DIR");
@@ -42,14 +42,14 @@ export async function sweepCommand(configFile: string | undefined, flags: SweepF
     if (flags.emit !== "slurm") throw new InputError(`--emit: the only target is "slurm", got "${shorten(flags.emit)}"`);
     const files = emitSlurm(plan, binPath());
     process.stdout.write(
-      `wrote a Slurm array of ${plan.entries.length} tasks: ${escapeControls(path.relative(process.cwd(), files.script))}\n` +
+      `wrote a Slurm array of ${plan.entries.length} task${plan.entries.length === 1 ? "" : "s"}: ${escapeControls(path.relative(process.cwd(), files.script))}\n` +
         `submit:  jobid=$(sbatch --parsable ${shellWord(path.relative(process.cwd(), files.script))}) && sbatch --dependency=afterany:$jobid ${shellWord(path.relative(process.cwd(), files.collect))}\n`,
     );
     return 0;
   }
   const workers = flags.workers === undefined ? os.availableParallelism() : Number(flags.workers);
   if (!(Number.isInteger(workers) && workers >= 1)) throw new InputError(`--workers: must be a whole number ≥ 1, got ${flags.workers}`);
-  process.stderr.write(`psibox sweep "${escapeControls(plan.name)}": ${plan.entries.length} entr${plan.entries.length === 1 ? "y" : "ies"} (${plan.combine} of ${plan.keys.join(", ")}), ${workers} worker${workers === 1 ? "" : "s"}, in ${where}\n`);
+  process.stderr.write(`psibox sweep "${escapeControls(plan.name)}": ${entriesText(plan.entries.length)} (${plan.combine} of ${plan.keys.join(", ")}), ${workers} worker${workers === 1 ? "" : "s"}, in ${where}\n`);
   const result = await runSweep(plan, binPath(), workers, { line: (t) => process.stderr.write(`  ${t}\n`) });
   process.stdout.write(
     `sweep done: ${result.completed} completed, ${result.skipped} already done, ${result.failed} failed; summary in ${where}/sweep-summary.csv\n`,

@@ -154,3 +154,9 @@ export function lockRunFolder(dir: string): RunLock {
   }
   throw new InputError(`run folder ${fileName(dir)}: could not take its lock ${fileName(file)}; remove it if no psibox run uses the folder`);
 }
+
+/** Who holds run folder `dir`'s lock, when a live process does (or one on another host, which cannot be checked). */
+export function lockHolder(dir: string): { readonly pid: number; readonly host: string; readonly since: string } | undefined {
+  const info = parse(readOrEmpty(path.join(dir, LOCK_NAME)));
+  return info && !isStale(info) ? { pid: info.pid, host: info.host, since: info.since } : undefined;
+}

@@ -7,6 +7,7 @@ import path from "node:path";
 import { parse, stringify } from "smol-toml";
 import { planSweep } from "../../src/batch/plan.js";
 import { prepareSweepFolder } from "../../src/batch/sweep-folder.js";
+import { entryStatus } from "../../src/batch/summary.js";
 import { checkConfig } from "../../src/config/load.js";
 import { clockPlot, sweptNumber } from "../../src/batch/sweep-report.js";
 import { FREE_PACKET_1D } from "../helpers/configs.js";
@@ -83,6 +84,26 @@ describe("sweep entries", () => {
       expect(prepareSweepFolder(at('"10 Myr"'), false)).toEqual([]);
       expect(prepareSweepFolder(at('"20 Myr"'), true)).toEqual(["--force: entry width=1kpc starts afresh (span.duration changed)"]);
       expect(fs.readdirSync(entry).sort()).toEqual(["entry.toml"]);
+    } finally {
+      fs.rmSync(dir, { recursive: true, force: true });
+    }
+  });
+
+  it("are running while a live process holds their run folder's lock, whatever files they hold yet", () => {
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), "psibox-entry-status-"));
+    try {
+      expect(entryStatus(dir)).toEqual({ status: "pending", reason: null });
+      fs.writeFileSync(path.join(dir, "checkpoint.h5"), "");
+      const lock = (pid: number) => fs.writeFileSync(path.join(dir, ".psibox-lock"), JSON.stringify({ pid, host: os.hostname(), started: null, since: "2026-01-01T00:00:00.000Z" }));
+      // this test's own process stands for the run
+      lock(process.pid);
+      expect(entryStatus(dir)).toEqual({ status: "running", reason: `psibox process ${process.pid} on ${os.hostname()} since 2026-01-01T00:00:00.000Z` });
+      // a lock whose process is gone is a killed run's: resumable from its checkpoint
+      lock(2 ** 22 + 12345);
+      expect(entryStatus(dir).status).toBe("interrupted");
+      fs.writeFileSync(path.join(dir, "summary.json"), JSON.stringify({ status: "completed" }));
+      lock(process.pid);
+      expect(entryStatus(dir).status).toBe("completed");
     } finally {
       fs.rmSync(dir, { recursive: true, force: true });
     }
