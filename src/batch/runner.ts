@@ -42,34 +42,43 @@ function alive(pid: number): boolean {
   }
 }
 
+/**
+ * Wait for the run a killed sweep left in `dir` to stop (it notices its sweep is gone at its next step and writes
+ * a checkpoint). `.running` holds that run's pid and its sweep's; a run whose sweep is alive belongs to another
+ * sweep running now, and is left alone (its folder's lock then says the entry is running).
+ */
 async function waitForStaleRun(dir: string): Promise<void> {
   const lock = path.join(dir, ".running");
   const start = Date.now();
   while (fs.existsSync(lock)) {
-    const pid = Number(fs.readFileSync(lock, "utf8"));
-    if (!(pid > 0) || !alive(pid) || Date.now() - start > 120_000) break;
+    const [pid, sweep] = fs.readFileSync(lock, "utf8").split(" ").map(Number);
+    if (sweep !== undefined && sweep !== process.pid && sweep > 0 && alive(sweep) && pid! > 0 && alive(pid!)) return;
+    if (!(pid! > 0) || !alive(pid!) || Date.now() - start > 120_000) break;
     await new Promise((r) => setTimeout(r, 100));
   }
   fs.rmSync(lock, { force: true });
 }
 
 /** Run every entry not yet completed; returns the counts. */
-export async function runSweep(plan: SweepPlan, bin: string, workers: number, reporter: SweepReporter): Promise<{ completed: number; failed: number; skipped: number }> {
+export async function runSweep(plan: SweepPlan, bin: string, workers: number, reporter: SweepReporter): Promise<{ completed: number; failed: number; skipped: number; elsewhere: number }> {
   writeSweepFiles(plan);
   const queue = [...plan.entries];
   let completed = 0;
   let failed = 0;
   let skipped = 0;
+  let elsewhere = 0;
   let done = 0;
   const total = plan.entries.length;
   const runOne = async (entry: SweepPlan["entries"][number]): Promise<void> => {
     const dir = path.join(plan.dir, entry.name);
     await waitForStaleRun(dir);
     const before = entryStatus(dir);
-    if (before.status === "completed") {
-      skipped++;
+    if (before.status === "completed" || before.status === "running") {
+      if (before.status === "completed") skipped++;
+      else elsewhere++;
       done++;
-      reporter.line(`[${done}/${total}] ${entry.name}: already completed`);
+      // an entry another process is running (another sweep, a Slurm task) is left to it
+      reporter.line(`[${done}/${total}] ${entry.name}: ${before.status === "completed" ? "already completed" : `being run by ${before.reason}; left to it`}`);
       return;
     }
     fs.rmSync(path.join(dir, "sweep-status.json"), { force: true });
@@ -78,7 +87,7 @@ export async function runSweep(plan: SweepPlan, bin: string, workers: number, re
     const args = resume ? [bin, "run", "--resume", dir] : [bin, "run", path.join(dir, "entry.toml"), "--force"];
     const started = Date.now();
     const child = spawn(process.execPath, args, { stdio: ["ignore", "ignore", "pipe"], env: { ...process.env, PSIBOX_PARENT_PID: String(process.pid), PSIBOX_THREADS: process.env["PSIBOX_THREADS"] ?? "1" } });
-    fs.writeFileSync(path.join(dir, ".running"), String(child.pid ?? 0));
+    fs.writeFileSync(path.join(dir, ".running"), `${child.pid ?? 0} ${process.pid}`);
     const progress = new EntryProgress(entry.name, started / 1000);
     child.stderr.on("data", (d: Buffer) => {
       for (const line of progress.take(d.toString(), Date.now() / 1000)) reporter.line(line);
@@ -103,5 +112,5 @@ export async function runSweep(plan: SweepPlan, bin: string, workers: number, re
   });
   await Promise.all(pool);
   writeSummary(plan.dir);
-  return { completed, failed, skipped };
+  return { completed, failed, skipped, elsewhere };
 }

@@ -52,7 +52,7 @@ export async function sweepCommand(configFile: string | undefined, flags: SweepF
   process.stderr.write(`psibox sweep "${escapeControls(plan.name)}": ${entriesText(plan.entries.length)} (${plan.combine} of ${plan.keys.join(", ")}), ${workers} worker${workers === 1 ? "" : "s"}, in ${where}\n`);
   const result = await runSweep(plan, binPath(), workers, { line: (t) => process.stderr.write(`  ${t}\n`) });
   process.stdout.write(
-    `sweep done: ${result.completed} completed, ${result.skipped} already done, ${result.failed} failed; summary in ${where}/sweep-summary.csv\n`,
+    `sweep done: ${result.completed} completed, ${result.skipped} already done,${result.elsewhere > 0 ? ` ${result.elsewhere} being run by another process,` : ""} ${result.failed} failed; summary in ${where}/sweep-summary.csv\n`,
   );
   return result.failed > 0 ? 3 : 0;
 }

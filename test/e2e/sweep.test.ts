@@ -252,6 +252,22 @@ describe("psibox sweep", () => {
     }
   });
 
+  it("leaves an entry another sweep is running to it, and calls it running", async () => {
+    fs.writeFileSync(path.join(work, "twice.toml"), `${BASE.replace("[64, 64]", "[128, 128]").replace('"300 Myr"', '"1500 Myr"')}[sweep]\n[sweep.values]\n"initial.contrast" = [0.15]\n`);
+    const first = spawn(process.execPath, [BIN, "sweep", "twice.toml", "--workers", "1"], { cwd: work, stdio: "ignore" });
+    const exited = new Promise<number | null>((r) => first.on("exit", (c) => r(c)));
+    const lock = path.join(work, "output/twice/contrast=0.15/.psibox-lock");
+    const start = Date.now();
+    while (!fs.existsSync(lock) && Date.now() - start < 60_000) await new Promise((r) => setTimeout(r, 20));
+    const second = psibox(["sweep", "twice.toml", "--workers", "1"]);
+    expect(second.code, second.stderr).toBe(0);
+    expect(second.stderr).toMatch(/\[1\/1\] contrast=0\.15: being run by psibox process \d+ on .* since .*; left to it\n/);
+    expect(second.stdout).toMatch(/^sweep done: 0 completed, 0 already done, 1 being run by another process, 0 failed/);
+    expect(readJson<{ entries: { status: string }[] }>(path.join(work, "output/twice/sweep-summary.json")).entries[0]!.status).toBe("running");
+    expect(await exited).toBe(0);
+    expect(readJson<{ entries: { status: string }[] }>(path.join(work, "output/twice/sweep-summary.json")).entries[0]!.status).toBe("completed");
+  });
+
   it("psibox run refuses a sweep config and points to psibox sweep", () => {
     fs.writeFileSync(path.join(work, "sw.toml"), SWEEP);
     expect(psibox(["run", "sw.toml"]).stderr).toBe("psibox: sw.toml describes a sweep ([sweep] section): run it with psibox sweep sw.toml\n");
